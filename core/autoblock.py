@@ -1,0 +1,68 @@
+"""Choosing blocking rules from the data when the user gives none."""
+
+from __future__ import annotations
+
+import pandas as pd
+
+from .blocking import Rule, _drop_common_tokens, _exploded, estimate_pairs, parse_rule, rule_pairs
+from .types import FieldSpec
+
+MAX_EXACT = 3
+MAX_TOKENS = 2
+
+
+def _budget(n_left: int, n_right: int, max_pairs: int) -> int:
+    # Enough for every record to meet a few dozen candidates, far below all possible pairs.
+    return min(max_pairs, max(10_000, 40 * (n_left + n_right)))
+
+
+def choose_rules(left: pd.DataFrame, right: pd.DataFrame | None, fields: list[FieldSpec],
+                 max_pairs: int) -> list[Rule]:
+    """Cheap exact keys on distinctive fields, plus shared-word keys on name-like fields.
+
+    Exact keys (codes, dates, distinctive numbers) catch pairs whose text is garbled; word keys
+    catch pairs whose codes changed. Each must cover at least half of the records, and their
+    estimated pairs together stay within a budget that grows with the number of records.
+    """
+    n_right = len(left) if right is None else len(right)
+    budget = _budget(len(left), n_right, max_pairs)
+    exact, tokens = [], []
+    for f in fields:
+        lvals = left[f.left_column]
+        rvals = lvals if right is None else right[f.right_column]
+        fill = min(lvals.notna().mean(), rvals.notna().mean())
+        if fill < 0.5:
+            continue
+        if f.kind in ("code", "date", "number"):
+            distinct = lvals.nunique() / max(1, lvals.notna().sum())
+            if distinct < 0.5:
+                continue
+            text, bucket = f.name, exact
+        else:
+            text, bucket = f"tokens({f.name})", tokens
+        rule = parse_rule(text, fields)
+        kind_of = {g.name: g.kind for g in fields}
+        lk = _exploded(rule, left, {g.name: g.left_column for g in fields}, kind_of)
+        rk = None if right is None else _exploded(rule, right,
+                                                  {g.name: g.right_column for g in fields},
+                                                  kind_of)
+        lk, rk = _drop_common_tokens(rule, lk, rk, 0.01)
+        covered = lk["pos"].nunique() / max(1, len(left))
+        if covered < 0.5:
+            continue
+        if estimate_pairs(lk, rk) > max_pairs:
+            continue
+        # The estimate counts a pair once per shared word; the real join is what costs.
+        found = len(rule_pairs(rule, left, right, fields, max_pairs)[0])
+        bucket.append((found, f.kind != "name", rule))
+    chosen: list[Rule] = []
+    spent = 0
+    for pool, limit in ((sorted(exact, key=lambda t: t[0]), MAX_EXACT),
+                        (sorted(tokens, key=lambda t: (t[1], t[0])), MAX_TOKENS)):
+        taken = 0
+        for pairs, _, rule in pool:
+            if taken < limit and spent + pairs <= budget:
+                chosen.append(rule)
+                spent += pairs
+                taken += 1
+    return chosen

@@ -1,0 +1,230 @@
+"""Blocking: which record pairs become candidate pairs.
+
+A rule is one or more keys joined by ``&``; records whose keys are all equal form a pair. Several
+rules are OR-ed. Keys:
+
+  ``col``           the normalised value
+  ``col[:N]``       its first N characters
+  ``tokens(col)``   any one shared word (words held by too many records are skipped)
+  ``digits(col)``   only its digits
+  ``year(col)``     the year of a date
+
+Example: ``--block "postcode" --block "tokens(owner) & year(born)"``.
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Callable
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from . import normalise
+from .errors import DocketError
+from .types import FieldSpec
+
+_KEY = re.compile(r"^\s*(?:(tokens|digits|year)\s*\(\s*([^()]+?)\s*\)|([^\[\]()&]+?)"
+                  r"(?:\[\s*:\s*(\d+)\s*\])?)\s*$")
+DEFAULT_MAX_PAIRS = 5_000_000
+
+
+@dataclass(frozen=True)
+class Key:
+    func: str  # "value", "prefix", "tokens", "digits", "year"
+    column: str
+    length: int = 0
+
+    def __str__(self) -> str:
+        if self.func == "value":
+            return self.column
+        if self.func == "prefix":
+            return f"{self.column}[:{self.length}]"
+        return f"{self.func}({self.column})"
+
+
+@dataclass(frozen=True)
+class Rule:
+    keys: tuple[Key, ...]
+
+    def __str__(self) -> str:
+        return " & ".join(str(k) for k in self.keys)
+
+
+@dataclass
+class BlockingReport:
+    rules: list[str]
+    auto: bool
+    pairs: int
+    possible: int
+    per_rule: dict[str, int] = field(default_factory=dict)  # pairs each rule finds on its own
+
+    @property
+    def reduction_ratio(self) -> float:
+        return 1.0 - self.pairs / self.possible if self.possible else 0.0
+
+    def to_dict(self) -> dict:
+        return {"rules": self.rules, "auto": self.auto, "pairs": self.pairs,
+                "possible": self.possible, "reduction_ratio": self.reduction_ratio,
+                "per_rule": self.per_rule}
+
+
+def parse_rule(text: str, fields: list[FieldSpec]) -> Rule:
+    names = {f.name for f in fields}
+    keys = []
+    for part in text.split("&"):
+        m = _KEY.match(part)
+        if not m:
+            raise DocketError(f"--block {text!r}: cannot read '{part.strip()}'; write keys like "
+                              "postcode, owner[:3], tokens(title), digits(phone), year(born), "
+                              "joined by &")
+        func, inner, col, length = m.groups()
+        column = (inner or col).strip()
+        if column not in names:
+            raise DocketError(f"--block {text!r}: no compared field '{column}'; "
+                              f"fields are {', '.join(sorted(names))}")
+        if func:
+            keys.append(Key(func, column))
+        elif length:
+            keys.append(Key("prefix", column, int(length)))
+        else:
+            keys.append(Key("value", column))
+    return Rule(tuple(keys))
+
+
+def _key_values(key: Key, values: pd.Series, kind: str) -> list[list[str]]:
+    """Each record's key strings (a list, because tokens give several)."""
+    norm: Callable[[str], object]
+    if key.func == "digits":
+        def norm(v: str) -> object:
+            return "".join(ch for ch in v if ch.isdigit()) or None
+    elif key.func == "year":
+        def norm(v: str) -> object:
+            d = normalise.date(v)
+            if d is None:
+                return None
+            return str(np.datetime64(int(d), "D").astype("datetime64[Y]"))
+    elif key.func == "tokens":
+        norm = normalise.words
+    elif kind in ("number", "date", "code"):
+        norm = normalise.NORMALISERS[kind]
+    else:
+        norm = normalise.words
+    done = normalise.per_distinct(values, norm)
+    out: list[list[str]] = []
+    for v in done:
+        if v is None:
+            out.append([])
+        elif key.func == "tokens":
+            out.append(sorted({t for t in str(v).split() if len(t) > 1}))
+        elif key.func == "prefix":
+            out.append([str(v)[: key.length]])
+        else:
+            out.append([str(v)])
+    return out
+
+
+def _exploded(rule: Rule, frame: pd.DataFrame, column_of: dict[str, str],
+              kind_of: dict[str, str]) -> pd.DataFrame:
+    """Frame of (pos, key) with one row per record and combined key."""
+    result: pd.DataFrame | None = None
+    for key in rule.keys:
+        lists = _key_values(key, frame[column_of[key.column]], kind_of[key.column])
+        pos = np.repeat(np.arange(len(lists)), [len(x) for x in lists])
+        flat = [k for x in lists for k in x]
+        part = pd.DataFrame({"pos": pos, str(key): flat})
+        result = part if result is None else result.merge(part, on="pos")
+    assert result is not None
+    cols = [str(k) for k in rule.keys]
+    key = result[cols[0]].astype(str)
+    for c in cols[1:]:
+        key = key + "\x1f" + result[c].astype(str)
+    return pd.DataFrame({"pos": result["pos"].to_numpy(), "key": key.to_numpy()})
+
+
+def _drop_common_tokens(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
+                        max_share: float) -> tuple[pd.DataFrame, pd.DataFrame | None]:
+    if not any(k.func == "tokens" for k in rule.keys):
+        return left, right
+    n = left["pos"].nunique() + (0 if right is None else right["pos"].nunique())
+    limit = max(10, int(max_share * n))
+    counts = left["key"].value_counts()
+    if right is not None:
+        counts = counts.add(right["key"].value_counts(), fill_value=0)
+    keep = set(counts.index[counts <= limit])
+    left = left[left["key"].isin(keep)]
+    return left, (None if right is None else right[right["key"].isin(keep)])
+
+
+def estimate_pairs(left: pd.DataFrame, right: pd.DataFrame | None) -> int:
+    """How many pairs a key join would make, without making them."""
+    lc = left.groupby("key").size()
+    if right is None:
+        return int((lc * (lc - 1) // 2).sum())
+    rc = right.groupby("key").size()
+    both = lc.to_frame("l").join(rc.to_frame("r"), how="inner")
+    return int((both["l"] * both["r"]).sum())
+
+
+def rule_pairs(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
+               fields: list[FieldSpec], max_pairs: int, token_share: float = 0.01
+               ) -> tuple[np.ndarray, np.ndarray]:
+    """Record positions (left, right) of the pairs one rule finds; dedupe mode when no right."""
+    kind_of = {f.name: f.kind for f in fields}
+    lk = _exploded(rule, left, {f.name: f.left_column for f in fields}, kind_of)
+    rk = None if right is None else _exploded(rule, right,
+                                              {f.name: f.right_column for f in fields}, kind_of)
+    lk, rk = _drop_common_tokens(rule, lk, rk, token_share)
+    expected = estimate_pairs(lk, rk)
+    if expected > max_pairs:
+        raise DocketError(f"--block {str(rule)!r} would make about {expected:,} pairs, over the "
+                          f"cap of {max_pairs:,}; add a key with & (for example "
+                          f"'{rule} & {fields[0].name}[:2]') or raise --max-pairs")
+    joined = lk.merge(lk if rk is None else rk, on="key", suffixes=("_l", "_r"))
+    li = joined["pos_l"].to_numpy(np.int64)
+    ri = joined["pos_r"].to_numpy(np.int64)
+    if rk is None:
+        keep = li < ri
+        li, ri = li[keep], ri[keep]
+    return dedupe_pairs(li, ri)
+
+
+def dedupe_pairs(li: np.ndarray, ri: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    if len(li) == 0:
+        return li, ri
+    code = np.unique(li.astype(np.int64) * (int(ri.max()) + 1) + ri)
+    width = int(ri.max()) + 1
+    return code // width, code % width
+
+
+def block(rules: list[Rule], left: pd.DataFrame, right: pd.DataFrame | None,
+          fields: list[FieldSpec], max_pairs: int = DEFAULT_MAX_PAIRS, auto: bool = False,
+          progress: Callable[[int, int], None] | None = None
+          ) -> tuple[np.ndarray, np.ndarray, np.ndarray, BlockingReport]:
+    """OR of the rules: positions of left and right records, the first rule index, a report."""
+    parts_l, parts_r, parts_rule = [], [], []
+    per_rule: dict[str, int] = {}
+    for i, rule in enumerate(rules):
+        li, ri = rule_pairs(rule, left, right, fields, max_pairs)
+        per_rule[str(rule)] = len(li)
+        parts_l.append(li)
+        parts_r.append(ri)
+        parts_rule.append(np.full(len(li), i, dtype=np.int16))
+        if progress:
+            progress(i + 1, len(rules))
+    li = np.concatenate(parts_l) if parts_l else np.zeros(0, np.int64)
+    ri = np.concatenate(parts_r) if parts_r else np.zeros(0, np.int64)
+    rule_ix = np.concatenate(parts_rule) if parts_rule else np.zeros(0, np.int16)
+    width = max(len(left), 0 if right is None else len(right)) + 1
+    code = li * width + ri
+    _, first = np.unique(code, return_index=True)
+    first.sort()
+    li, ri, rule_ix = li[first], ri[first], rule_ix[first]
+    if len(li) > max_pairs:
+        raise DocketError(f"the rules together make {len(li):,} pairs, over the cap of "
+                          f"{max_pairs:,}; use tighter rules or raise --max-pairs")
+    n_l = len(left)
+    possible = n_l * (n_l - 1) // 2 if right is None else n_l * len(right)
+    report = BlockingReport([str(r) for r in rules], auto, len(li), int(possible), per_rule)
+    return li, ri, rule_ix, report

@@ -1,0 +1,216 @@
+"""Creating a project: records -> candidate pairs -> comparison -> model -> queue -> file.
+
+Everything is built in a temporary file beside the target and renamed into place at the end,
+so a failed or cancelled build leaves no project file and never touches an existing one.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import os
+import threading
+from collections.abc import Callable
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from . import autoblock, blocking, queue, scoring, store
+from . import fields as fieldmod
+from .compare import level_names
+from .errors import Cancelled, DocketError
+from .model import FSModel, fit_em
+from .sources import Table, load_table, read_frame
+from .types import FieldSpec
+
+Progress = Callable[[str, int, int], None]
+
+
+@dataclass
+class NewProject:
+    """What ``docket new`` was asked to build."""
+
+    path: Path
+    left: Path
+    right: Path | None = None
+    id_column: str | None = None
+    left_id: str | None = None
+    right_id: str | None = None
+    column_map: dict[str, str] = field(default_factory=dict)
+    kinds: dict[str, str] = field(default_factory=dict)
+    pairs_file: Path | None = None
+    rules: list[str] = field(default_factory=list)
+    audit: int | None = None
+    overlap: float = 0.2
+    one_to_one: bool = False
+    max_pairs: int = blocking.DEFAULT_MAX_PAIRS
+    threshold: float = 0.5
+    seed: int = 0
+    refit_every: int = 25
+    force: bool = False
+    name: str | None = None
+
+
+@dataclass
+class Built:
+    """What was built, for the report the CLI prints."""
+
+    path: Path
+    mode: str
+    n_left: int
+    n_right: int
+    fields: list[FieldSpec]
+    blocking: blocking.BlockingReport
+    model: FSModel
+    audit_size: int
+    overlap_pairs: int
+
+
+def _check(spec: NewProject) -> None:
+    if spec.path.exists() and not spec.force:
+        raise DocketError(f"{spec.path}: already exists; pass --force to replace it")
+    if spec.path.exists() and spec.path.is_dir():
+        raise DocketError(f"{spec.path}: is a folder; give a file name for the project")
+    if not 0.0 <= spec.overlap <= 1.0:
+        raise DocketError(f"--overlap {spec.overlap}: give a share between 0 and 1")
+    if spec.audit is not None and spec.audit < 0:
+        raise DocketError(f"--audit {spec.audit}: give a number of pairs, 0 or more")
+    if spec.pairs_file and spec.rules:
+        raise DocketError("give either --pairs or --block, not both")
+    if spec.one_to_one and spec.right is None:
+        raise DocketError("--one-to-one needs two tables (--left and --right)")
+
+
+def _tables(spec: NewProject) -> tuple[Table, Table | None]:
+    left = load_table(spec.left, spec.left_id or spec.id_column)
+    if spec.right is None:
+        return left, None
+    right = load_table(spec.right, spec.right_id or spec.id_column or
+                       (left.id_column if left.id_column in read_frame(spec.right).columns
+                        else None))
+    return left, right
+
+
+def _given_pairs(path: Path, left: Table, right: Table | None
+                 ) -> tuple[np.ndarray, np.ndarray]:
+    frame = read_frame(path)
+    if frame.shape[1] < 2:
+        raise DocketError(f"{path}: needs two columns, left id and right id")
+    cols = ([c for c in ("left_id", "right_id") if c in frame.columns]
+            if {"left_id", "right_id"} <= set(frame.columns) else list(frame.columns[:2]))
+    a, b = frame[cols[0]], frame[cols[1]]
+    if a.isna().any() or b.isna().any():
+        row = int(np.flatnonzero((a.isna() | b.isna()).to_numpy())[0]) + 2
+        raise DocketError(f"{path}: row {row} has an empty id; every pair needs both ids")
+    other = left if right is None else right
+    lpos = pd.Index(left.frame.index).get_indexer(a)
+    rpos = pd.Index(other.frame.index).get_indexer(b)
+    for pos, ids, side, table in ((lpos, a, "left", left), (rpos, b, "right", other)):
+        if (pos < 0).any():
+            bad = list(dict.fromkeys(ids[pos < 0].tolist()))
+            raise DocketError(f"{path}: {len(bad)} {side} id(s) not in {table.path.name}: "
+                              f"{', '.join(map(str, bad[:5]))}{'…' if len(bad) > 5 else ''}")
+    li, ri = lpos.astype(np.int64), rpos.astype(np.int64)
+    if right is None:  # one table: (a, b) and (b, a) are the same pair; a record is not a pair
+        li, ri = np.minimum(li, ri), np.maximum(li, ri)
+        keep = li != ri
+        li, ri = li[keep], ri[keep]
+    return blocking.dedupe_pairs(li, ri)
+
+
+def fingerprint(left: Table, right: Table | None, li: np.ndarray, ri: np.ndarray) -> str:
+    h = hashlib.sha256()
+    for table in (left, right):
+        if table is not None:
+            h.update("\x1f".join(table.frame.index).encode())
+            h.update(b"\x1e")
+    h.update(np.ascontiguousarray(li, dtype=np.int64).tobytes())
+    h.update(np.ascontiguousarray(ri, dtype=np.int64).tobytes())
+    return h.hexdigest()[:32]
+
+
+def build(spec: NewProject, progress: Progress | None = None,
+          cancel: threading.Event | None = None) -> Built:
+    """Create the project described by ``spec``; see the module docstring for the guarantees."""
+    def step(name: str, done: int = 1, total: int = 1) -> None:
+        if cancel is not None and cancel.is_set():
+            raise Cancelled(name)
+        if progress:
+            progress(name, done, total)
+
+    _check(spec)
+    step("reading records", 0, 2)
+    left, right = _tables(spec)
+    step("reading records", 2, 2)
+    fields = fieldmod.resolve_fields(left.frame, None if right is None else right.frame,
+                                     str(left.path), None if right is None else str(right.path),
+                                     spec.column_map, spec.kinds)
+    rframe = None if right is None else right.frame
+    auto = False
+    if spec.pairs_file is not None:
+        step("reading candidate pairs")
+        li, ri = _given_pairs(spec.pairs_file, left, right)
+        rule_ix = np.zeros(len(li), dtype=np.int16)
+        n_l, n_r = len(left), len(left) if right is None else len(right)
+        possible = n_l * (n_l - 1) // 2 if right is None else n_l * n_r
+        report = blocking.BlockingReport(["given"], False, len(li), int(possible),
+                                         {"given": len(li)})
+        rule_names = ["given"]
+    else:
+        if spec.rules:
+            rules = [blocking.parse_rule(r, fields) for r in spec.rules]
+        else:
+            step("choosing blocking rules")
+            rules = autoblock.choose_rules(left.frame, rframe, fields, spec.max_pairs)
+            auto = True
+            if not rules:
+                raise DocketError("no blocking rule could be chosen from the data; give one "
+                                  "with --block (for example --block 'tokens(name)')")
+        li, ri, rule_ix, report = blocking.block(
+            rules, left.frame, rframe, fields, spec.max_pairs, auto,
+            lambda d, t: step("blocking", d, t))
+        rule_names = [str(r) for r in rules]
+    if len(li) == 0:
+        raise DocketError("no candidate pairs: the blocking rules matched no records; "
+                          "try a looser rule with --block")
+    step("comparing", 0, 1)
+    lnorm = scoring.normalised(fields, left.frame, "left")
+    rnorm = lnorm if right is None else scoring.normalised(fields, right.frame, "right")
+    sims, levels = scoring.compare_pairs(fields, lnorm, rnorm, li, ri,
+                                         lambda d, t: step("comparing", d, t))
+    step("fitting the model")
+    patterns, pattern_ix, counts = scoring.group_patterns(levels)
+    names = [list(level_names(f.kind)) for f in fields]
+    model = fit_em(patterns, counts, names, [f.name for f in fields])
+    weight, prob = scoring.score_levels(model, patterns)
+
+    step("drawing the audit slice")
+    seed = spec.seed
+    fp = fingerprint(left, right, li, ri)
+    n = len(li)
+    rng = np.random.default_rng(seed)
+    pair_ids = rng.permutation(n) + 1  # random ids: pairs of equal priority come in random order
+    audit_n = queue.default_audit_size(n) if spec.audit is None else min(spec.audit, n)
+    audit = queue.draw_audit(prob[pattern_ix], audit_n, seed + 1)
+    overlap = queue.overlap_flags(pair_ids, spec.overlap, int(fp[:8], 16))
+
+    tmp = spec.path.with_name(f".{spec.path.name}.{os.getpid()}.building")
+    for extra in ("", "-wal", "-shm", "-journal"):
+        Path(f"{tmp}{extra}").unlink(missing_ok=True)
+    try:
+        conn = store.create_file(tmp, [f.name for f in fields])
+        from .writer import write_project
+        write_project(conn, spec=spec, left=left, right=right, fields=fields, li=li, ri=ri,
+                      rule_ix=rule_ix, rule_names=rule_names, sims=sims, patterns=patterns,
+                      pattern_ix=pattern_ix, counts=counts, weight=weight, prob=prob,
+                      model=model, pair_ids=pair_ids, audit=audit, overlap=overlap,
+                      fingerprint=fp, report=report, step=step)
+        store.finish_file(conn)
+        os.replace(tmp, spec.path)
+    finally:
+        for extra in ("", "-wal", "-shm", "-journal"):
+            Path(f"{tmp}{extra}").unlink(missing_ok=True)
+    return Built(spec.path, "dedupe" if right is None else "link", len(left),
+                 len(left) if right is None else len(right), fields, report, model,
+                 int(audit.selected.sum()), int(overlap.sum()))

@@ -1,0 +1,87 @@
+"""Bulk decisions from a file: all of them checked first, then written in one transaction."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from pathlib import Path
+
+import pandas as pd
+
+from . import decisions as log
+from . import store
+from .errors import DocketError
+from .project import Project
+from .sources import read_frame
+from .types import LABELS
+
+ALIASES = {"non_match": "non-match", "nonmatch": "non-match", "no-match": "non-match"}
+
+
+@dataclass
+class BulkRow:
+    pair_id: int
+    label: str
+    note: str
+
+
+def read_rows(project: Project, path: Path) -> list[BulkRow]:
+    frame = read_frame(path)
+    cols = set(frame.columns)
+    if "label" not in cols:
+        raise DocketError(f"{path}: needs a 'label' column (with pair_id, or left_id and "
+                          "right_id)")
+    if "pair_id" in cols:
+        ids = pd.to_numeric(frame["pair_id"], errors="coerce")
+        bad_rows = [i + 2 for i in range(len(ids)) if pd.isna(ids.iloc[i])]
+        if bad_rows:
+            raise DocketError(f"{path}: row {bad_rows[0]}: pair_id must be a number")
+        known = {r[0] for r in project.connection.execute("SELECT pair_id FROM pairs")}
+        pair_ids = [int(x) for x in ids]
+        unknown = [p for p in pair_ids if p not in known]
+        if unknown:
+            raise DocketError(f"{path}: {len(unknown)} unknown pair id(s): "
+                              f"{', '.join(map(str, unknown[:5]))}; nothing was written")
+    elif {"left_id", "right_id"} <= cols:
+        lookup = {(a, b): p for p, a, b in project.connection.execute(
+            "SELECT pair_id, left_id, right_id FROM pairs")}
+        pair_ids, unknown = [], []
+        for i, (a, b) in enumerate(zip(frame["left_id"], frame["right_id"], strict=True)):
+            p = lookup.get((a, b))
+            if p is None and not project.link:
+                p = lookup.get((b, a))
+            if p is None:
+                unknown.append(f"row {i + 2} ({a}, {b})")
+            pair_ids.append(p)
+        if unknown:
+            raise DocketError(f"{path}: {len(unknown)} pair(s) are not candidate pairs of this "
+                              f"project: {', '.join(unknown[:3])}; nothing was written")
+    else:
+        raise DocketError(f"{path}: needs pair_id, or left_id and right_id, beside 'label'")
+    rows = []
+    notes = frame["note"] if "note" in cols else pd.Series([""] * len(frame))
+    for i, (pid, label, note) in enumerate(zip(pair_ids, frame["label"], notes, strict=True)):
+        lab = str(label or "").strip().lower()
+        lab = ALIASES.get(lab, lab)
+        if lab not in LABELS:
+            raise DocketError(f"{path}: row {i + 2}: label '{label}' is not one of "
+                              f"{', '.join(LABELS)}; nothing was written")
+        rows.append(BulkRow(int(pid), lab, "" if note is None else str(note)))
+    return rows
+
+
+def apply_rows(project: Project, reviewer: str, rows: list[BulkRow], role: str = "reviewer"
+               ) -> int:
+    conn = project.connection
+    conn.execute("BEGIN IMMEDIATE")
+    try:
+        conn.execute("INSERT OR IGNORE INTO reviewers VALUES (?, ?, ?)",
+                     (reviewer, role, store.now()))
+        for r in rows:
+            prior = log.current_of(conn, r.pair_id, reviewer)
+            log.append(conn, r.pair_id, reviewer, r.label, r.note, 0.0,
+                       None if prior is None else prior.decision_id, role)
+        conn.execute("COMMIT")
+    except BaseException:
+        conn.execute("ROLLBACK")
+        raise
+    return len(rows)

@@ -1,0 +1,144 @@
+"""Comparators: per-field similarity and its discrete levels, vectorised over pairs.
+
+This module is the pure scorer's first half: arrays of normalised values in, similarities and
+levels out. It never touches the project file, so the same code runs over any chunk of pairs.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+from rapidfuzz import fuzz, process
+from rapidfuzz.distance import OSA, JaroWinkler, Levenshtein
+
+MISSING = "missing"
+
+
+@dataclass(frozen=True)
+class KindRule:
+    """How one field kind is compared and cut into levels (best level first)."""
+
+    levels: tuple[str, ...]
+    cuts: tuple[float, ...]  # similarity lower bounds for levels[1:-1]; levels[0] means sim == 1
+
+
+def _string_scorer(scorer: Callable, scale: float = 1.0) -> Callable[[list, list], np.ndarray]:
+    def run(a: list, b: list) -> np.ndarray:
+        if not a:
+            return np.zeros(0, dtype=np.float32)
+        out = process.cpdist(a, b, scorer=scorer, workers=-1, dtype=np.float32)
+        return out / np.float32(scale) if scale != 1.0 else out
+    return run
+
+
+KINDS: dict[str, KindRule] = {
+    "name": KindRule(("exact", "close", "similar", "different"), (0.92, 0.80)),
+    "text": KindRule(("exact", "close", "similar", "different"), (0.90, 0.70)),
+    "longtext": KindRule(("exact", "close", "similar", "weak", "different"), (0.90, 0.70, 0.50)),
+    "code": KindRule(("exact", "one edit", "different"), ()),
+    "number": KindRule(("exact", "near", "different"), ()),
+    "date": KindRule(("exact", "day/month swapped", "within a month", "different"), ()),
+}
+
+SCORERS: dict[str, Callable[[list, list], np.ndarray]] = {
+    "name": _string_scorer(JaroWinkler.normalized_similarity),
+    "text": _string_scorer(Levenshtein.normalized_similarity),
+    "longtext": _string_scorer(fuzz.token_set_ratio, 100.0),
+    "code": _string_scorer(OSA.normalized_similarity),
+}
+
+
+def level_names(kind: str) -> tuple[str, ...]:
+    """All levels of a kind, the missing level last."""
+    return (*KINDS[kind].levels, MISSING)
+
+
+def _string_levels(kind: str, sim: np.ndarray, a: list, b: list) -> np.ndarray:
+    rule = KINDS[kind]
+    exact = np.fromiter((x == y for x, y in zip(a, b, strict=True)), dtype=bool, count=len(a))
+    last = len(rule.levels) - 1
+    lv = np.full(len(sim), last, dtype=np.int8)
+    for i, cut in reversed(list(enumerate(rule.cuts, start=1))):
+        lv[sim >= cut] = i
+    if kind == "code":
+        dist = process.cpdist(a, b, scorer=OSA.distance, workers=-1) if a else np.zeros(0)
+        lv[dist <= 1] = 1
+    lv[exact] = 0
+    return lv
+
+
+def _number(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    a = a.astype(float)
+    b = b.astype(float)
+    diff = np.abs(a - b)
+    integers = bool(np.all(np.mod(a, 1) == 0) and np.all(np.mod(b, 1) == 0))
+    # Integers such as years or ages are near within one unit; other numbers within 1 %.
+    tol = np.ones_like(diff) if integers else 0.01 * np.maximum(np.abs(a), np.abs(b))
+    tol = np.where(tol == 0, 1e-9, tol)
+    sim = (1.0 / (1.0 + diff / tol)).astype(np.float32)
+    lv = np.where(diff == 0, 0, np.where(diff <= tol, 1, 2)).astype(np.int8)
+    return sim, lv
+
+
+def _date(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    da = pd.to_datetime(a.astype("int64"), unit="D")
+    db = pd.to_datetime(b.astype("int64"), unit="D")
+    diff = np.abs(a.astype(float) - b.astype(float))
+    swapped = ((da.day == db.month) & (da.month == db.day) & (da.year == db.year)
+               & (da.day != da.month)).to_numpy()
+    lv = np.full(len(a), 3, dtype=np.int8)
+    lv[diff <= 31] = 2
+    lv[swapped] = 1
+    lv[diff == 0] = 0
+    sim = np.choose(lv, [1.0, 0.8, 0.6, 0.0]).astype(np.float32)
+    near = lv == 2
+    sim[near] = (0.6 + 0.2 * (1 - diff[near] / 31.0)).astype(np.float32)
+    return sim, lv
+
+
+def compare_values(kind: str, a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Similarity (float32, NaN when missing) and level (int8) for aligned value arrays."""
+    n = len(a)
+    sim = np.full(n, np.nan, dtype=np.float32)
+    lv = np.full(n, len(KINDS[kind].levels), dtype=np.int8)  # the missing level
+    present = np.fromiter((x is not None and y is not None for x, y in zip(a, b, strict=True)),
+                          dtype=bool, count=n)
+    if not present.any():
+        return sim, lv
+    pa, pb = a[present], b[present]
+    if kind == "number":
+        s, lvl = _number(pa, pb)
+    elif kind == "date":
+        s, lvl = _date(pa, pb)
+    else:
+        la, lb = pa.tolist(), pb.tolist()
+        s = SCORERS[kind](la, lb)
+        lvl = _string_levels(kind, s, la, lb)
+        s = np.where(lvl == 0, np.float32(1.0), np.minimum(s, np.float32(0.999)))
+    sim[present] = s
+    lv[present] = lvl
+    return sim, lv
+
+
+def compare_field(kind: str, left_norm: np.ndarray, right_norm: np.ndarray,
+                  li: np.ndarray, ri: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Compare one field over pairs given as record positions, each distinct value pair once.
+
+    ``left_norm``/``right_norm`` hold one normalised value per record. Many pairs repeat the same
+    two values (towns, species, years), so only distinct combinations are scored.
+    """
+    lcodes, lu = pd.factorize(pd.Series(left_norm, dtype=object), use_na_sentinel=True)
+    rcodes, ru = pd.factorize(pd.Series(right_norm, dtype=object), use_na_sentinel=True)
+    pl = lcodes[li].astype(np.int64)
+    pr = rcodes[ri].astype(np.int64)
+    combo = (pl + 1) * (len(ru) + 1) + (pr + 1)
+    uniq, inverse = np.unique(combo, return_inverse=True)
+    ul = uniq // (len(ru) + 1) - 1
+    ur = uniq % (len(ru) + 1) - 1
+    lvals = np.array(list(lu) + [None], dtype=object)[ul]  # -1 picks the trailing None
+    rvals = np.array(list(ru) + [None], dtype=object)[ur]
+    sim, lv = compare_values(kind, lvals, rvals)
+    return sim[inverse], lv[inverse]

@@ -1,0 +1,101 @@
+"""The append-only decision log and the current-label table derived from it.
+
+Nothing is ever deleted from ``decisions``. ``current`` holds, per pair and reviewer, the
+latest label decision that has not been retracted; it is rebuilt from the log for the one
+(pair, reviewer) a new decision touches, so the two can never drift apart.
+"""
+
+from __future__ import annotations
+
+import sqlite3
+import uuid
+from datetime import UTC, datetime, timedelta
+
+from .types import LABELS, Decision
+
+_last_stamp: datetime | None = None
+
+_COLUMNS = "decision_id, pair_id, reviewer, label, note, decided_at, seconds, supersedes, role"
+
+
+def stamp() -> str:
+    """UTC time, strictly increasing within this process so that 'latest' is never a tie."""
+    global _last_stamp
+    t = datetime.now(UTC)
+    if _last_stamp is not None and t <= _last_stamp:
+        t = _last_stamp + timedelta(microseconds=1)
+    _last_stamp = t
+    return t.isoformat(timespec="microseconds")
+
+
+def row_to_decision(row: tuple) -> Decision:
+    return Decision(row[0], int(row[1]), row[2], row[3], row[4] or "", row[5], float(row[6]),
+                    row[7], row[8])
+
+
+def refresh(conn: sqlite3.Connection, pair_id: int, reviewer: str) -> None:
+    """Recompute ``current`` for one pair and reviewer, then the pair's queue state."""
+    row = conn.execute(
+        "SELECT decision_id, label, role, decided_at FROM decisions d "
+        "WHERE pair_id = ? AND reviewer = ? AND label IS NOT NULL AND NOT EXISTS ("
+        "  SELECT 1 FROM decisions r WHERE r.supersedes = d.decision_id AND r.label IS NULL) "
+        "ORDER BY decided_at DESC, decision_id DESC LIMIT 1", (pair_id, reviewer)).fetchone()
+    if row is None:
+        conn.execute("DELETE FROM current WHERE pair_id = ? AND reviewer = ?",
+                     (pair_id, reviewer))
+    else:
+        conn.execute("INSERT OR REPLACE INTO current VALUES (?, ?, ?, ?, ?, ?)",
+                     (pair_id, reviewer, row[2], row[0], row[1], row[3]))
+    conn.execute(
+        "UPDATE pairs SET n_labels = (SELECT count(*) FROM current c WHERE c.pair_id = ? "
+        "AND c.role = 'reviewer') WHERE pair_id = ?", (pair_id, pair_id))
+    conn.execute("UPDATE pairs SET open = (n_labels < need) WHERE pair_id = ?", (pair_id,))
+
+
+def append(conn: sqlite3.Connection, pair_id: int, reviewer: str, label: str | None,
+           note: str = "", seconds: float = 0.0, supersedes: str | None = None,
+           role: str = "reviewer") -> Decision:
+    """Append one decision (a label, or a retraction when ``label`` is None); no commit."""
+    if label is not None and label not in LABELS:
+        raise ValueError(f"unknown label {label!r}")
+    d = Decision(str(uuid.uuid4()), int(pair_id), reviewer, label, note or "", stamp(),
+                 float(max(0.0, seconds)), supersedes, role)
+    conn.execute(f"INSERT INTO decisions ({_COLUMNS}) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
+                 (d.decision_id, d.pair_id, d.reviewer, d.label, d.note, d.decided_at,
+                  d.seconds, d.supersedes, d.role))
+    refresh(conn, d.pair_id, reviewer)
+    return d
+
+
+def current_of(conn: sqlite3.Connection, pair_id: int, reviewer: str) -> Decision | None:
+    row = conn.execute(
+        f"SELECT {', '.join('d.' + c.strip() for c in _COLUMNS.split(','))} "
+        "FROM current c JOIN decisions d ON d.decision_id = c.decision_id "
+        "WHERE c.pair_id = ? AND c.reviewer = ?", (pair_id, reviewer)).fetchone()
+    return None if row is None else row_to_decision(row)
+
+
+def latest_of(conn: sqlite3.Connection, reviewer: str) -> Decision | None:
+    """The reviewer's most recent label that still stands: what undo takes back."""
+    row = conn.execute(
+        f"SELECT {_COLUMNS} FROM decisions d WHERE reviewer = ? AND label IS NOT NULL "
+        "AND NOT EXISTS (SELECT 1 FROM decisions r WHERE r.supersedes = d.decision_id "
+        "AND r.label IS NULL) ORDER BY decided_at DESC, decision_id DESC LIMIT 1",
+        (reviewer,)).fetchone()
+    return None if row is None else row_to_decision(row)
+
+
+def history(conn: sqlite3.Connection, reviewer: str) -> list[Decision]:
+    """The reviewer's current labels, oldest first: what [ and ] walk through."""
+    rows = conn.execute(
+        f"SELECT {', '.join('d.' + c.strip() for c in _COLUMNS.split(','))} "
+        "FROM current c JOIN decisions d ON d.decision_id = c.decision_id "
+        "WHERE c.reviewer = ? ORDER BY c.decided_at, c.decision_id", (reviewer,)).fetchall()
+    return [row_to_decision(r) for r in rows]
+
+
+def log(conn: sqlite3.Connection, pair_id: int | None = None) -> list[Decision]:
+    where, args = ("WHERE pair_id = ?", (pair_id,)) if pair_id is not None else ("", ())
+    rows = conn.execute(f"SELECT {_COLUMNS} FROM decisions {where} "
+                        "ORDER BY decided_at, decision_id", args).fetchall()
+    return [row_to_decision(r) for r in rows]

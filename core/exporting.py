@@ -1,0 +1,82 @@
+"""Exports: frames of scores (and, later, gold labels) written as CSV, Parquet or JSONL."""
+
+from __future__ import annotations
+
+import io
+import sys
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from . import store
+from .errors import DocketError
+from .project import Project
+
+FORMATS = {".csv": "csv", ".parquet": "parquet", ".pq": "parquet", ".jsonl": "jsonl",
+           ".ndjson": "jsonl"}
+
+
+def output_format(target: str, fmt: str | None) -> str:
+    if fmt:
+        if fmt not in ("csv", "parquet", "jsonl"):
+            raise DocketError(f"--format {fmt}: use csv, parquet or jsonl")
+        return fmt
+    if target == "-":
+        return "csv"
+    found = FORMATS.get(Path(target).suffix.lower())
+    if found is None:
+        raise DocketError(f"{target}: cannot tell the format from the extension; "
+                          "use .csv, .parquet or .jsonl, or pass --format")
+    return found
+
+
+def predicted(frame: pd.DataFrame, threshold: float, one_to_one: bool) -> np.ndarray:
+    """Predicted match at the threshold; with one-to-one, only mutual best pairs qualify."""
+    yes = frame["probability"].to_numpy() >= threshold
+    if not one_to_one:
+        return yes
+    order = frame.sort_values(["probability", "pair_id"], ascending=[False, True])
+    best_left = ~order.duplicated("left_id")
+    best_right = ~order.duplicated("right_id")
+    mutual = pd.Series(best_left & best_right).reindex(frame.index).to_numpy()
+    return yes & mutual
+
+
+def scores_frame(project: Project) -> pd.DataFrame:
+    sims = ", ".join(f"p.{store.similarity_column(f.name)}" for f in project.fields)
+    frame = pd.read_sql_query(
+        f"SELECT p.pair_id, p.left_id, p.right_id, {sims}, t.weight AS match_weight, "
+        "t.fs_probability, t.probability FROM pairs p JOIN patterns t "
+        "ON t.pattern_id = p.pattern_id ORDER BY p.pair_id", project.connection)
+    flags = predicted(frame, project.threshold, bool(project.meta.get("one_to_one")))
+    frame["predicted"] = np.where(flags, "match", "non-match")
+    return frame
+
+
+def write_frame(frame: pd.DataFrame, target: str, fmt: str | None = None) -> None:
+    """Write to a file (atomically: a temporary beside it, then renamed) or '-' for stdout."""
+    kind = output_format(target, fmt)
+    if target == "-":
+        if kind == "parquet":
+            buf = io.BytesIO()
+            frame.to_parquet(buf, index=False)
+            sys.stdout.buffer.write(buf.getvalue())
+        elif kind == "csv":
+            frame.to_csv(sys.stdout, index=False)
+        else:
+            frame.to_json(sys.stdout, orient="records", lines=True, force_ascii=False)
+        return
+    path = Path(target)
+    tmp = path.with_name(f".{path.name}.partial")
+    try:
+        if kind == "parquet":
+            frame.to_parquet(tmp, index=False)
+        elif kind == "csv":
+            frame.to_csv(tmp, index=False)
+        else:
+            frame.to_json(tmp, orient="records", lines=True, force_ascii=False)
+        tmp.replace(path)
+    except OSError as exc:
+        tmp.unlink(missing_ok=True)
+        raise DocketError(f"{target}: cannot write ({exc.strerror or exc})") from None

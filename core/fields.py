@@ -1,0 +1,113 @@
+"""Which columns are compared, and as what kind of field."""
+
+from __future__ import annotations
+
+import re
+
+import pandas as pd
+
+from . import normalise
+from .errors import DocketError
+from .types import KINDS, FieldSpec
+
+_CODE_HINT = re.compile(r"(post|zip|phone|tel|mobile|fax|e-?mail|code|iban|ssn|nhs|vat|isbn)",
+                        re.I)
+_NAME_HINT = re.compile(r"(name|owner|surname|forename|given|first|last|pet)", re.I)
+_DATE_HINT = re.compile(r"(date|dob|born|birth)", re.I)
+
+
+def detect_kind(column: str, values: pd.Series) -> str:
+    """Guess a field kind from the column name and a sample of its values."""
+    sample = values.dropna()
+    sample = sample.sample(min(len(sample), 2000), random_state=0) if len(sample) else sample
+    if len(sample) == 0:
+        return "text"
+    texts = sample.astype(str)
+    def share(func) -> float:
+        return float(texts.map(lambda v: func(v) is not None).mean())
+    mean_len = float(texts.str.len().mean())
+    mean_tokens = float(texts.str.split().str.len().mean())
+    if (_DATE_HINT.search(column) or texts.str.contains(r"\d[-/.]\d").mean() > 0.9) and \
+            share(normalise.date) > 0.9 and mean_len <= 30:
+        return "date"
+    leading_zero = texts.str.match(r"^0\d").mean() > 0.05
+    if share(normalise.number) > 0.95 and not leading_zero and not _CODE_HINT.search(column):
+        return "number"
+    if _CODE_HINT.search(column) or (texts.str.contains("@").mean() > 0.5):
+        return "code"
+    if mean_tokens >= 5 or mean_len >= 40:
+        return "longtext"
+    if _NAME_HINT.search(column) and mean_tokens <= 4:
+        return "name"
+    alpha = texts.str.fullmatch(r"[^\d@]+").mean()
+    distinct = texts.nunique() / len(texts)
+    if alpha > 0.95 and distinct > 0.3 and mean_tokens <= 4:
+        return "name"
+    if texts.str.contains(" ").mean() < 0.05 and texts.str.contains(r"\d").mean() > 0.8:
+        return "code"
+    return "text"
+
+
+def parse_map(items: list[str] | None) -> dict[str, str]:
+    out: dict[str, str] = {}
+    for item in items or []:
+        left, sep, right = item.partition("=")
+        if not sep or not left.strip() or not right.strip():
+            raise DocketError(f"--map {item!r}: write it as LEFT_COLUMN=RIGHT_COLUMN")
+        out[left.strip()] = right.strip()
+    return out
+
+
+def parse_kinds(items: list[str] | None) -> dict[str, str]:
+    out: dict[str, str] = {}
+    for item in items or []:
+        col, sep, kind = item.rpartition(":")
+        kind = kind.strip().lower().replace("-", "").replace(" ", "")
+        if not sep or not col.strip():
+            raise DocketError(f"--field {item!r}: write it as COLUMN:KIND, "
+                              f"with KIND one of {', '.join(KINDS)}")
+        if kind == "skip":
+            out[col.strip()] = "skip"
+            continue
+        if kind not in KINDS:
+            raise DocketError(f"--field {item!r}: unknown kind '{kind}'; "
+                              f"use one of {', '.join(KINDS)} (or skip)")
+        out[col.strip()] = kind
+    return out
+
+
+def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: str,
+                   right_name: str | None, mapping: dict[str, str],
+                   kinds: dict[str, str]) -> list[FieldSpec]:
+    """The compared fields: common columns (after the map), each with a detected kind."""
+    right_frame = left if right is None else right
+    for lcol, rcol in mapping.items():
+        if lcol not in left.columns:
+            raise DocketError(f"{left_name}: --map names column '{lcol}', which it does not have "
+                              f"(columns: {', '.join(left.columns)})")
+        if rcol not in right_frame.columns:
+            raise DocketError(f"{right_name or left_name}: --map names column '{rcol}', which it "
+                              f"does not have (columns: {', '.join(right_frame.columns)})")
+    pairs: list[tuple[str, str]] = []
+    for lcol in left.columns:
+        rcol = mapping.get(lcol, lcol)
+        if rcol in right_frame.columns:
+            pairs.append((lcol, rcol))
+    for col in kinds:
+        if col not in {p[0] for p in pairs}:
+            raise DocketError(f"--field {col}: no compared column of that name; compared "
+                              f"columns are {', '.join(p[0] for p in pairs) or '(none)'}")
+    fields = []
+    for lcol, rcol in pairs:
+        kind = kinds.get(lcol)
+        if kind == "skip":
+            continue
+        if kind is None:
+            both = left[lcol] if right is None else pd.concat([left[lcol], right_frame[rcol]])
+            kind = detect_kind(lcol, both)
+        fields.append(FieldSpec(name=lcol, left_column=lcol, right_column=rcol, kind=kind))
+    if not fields:
+        where = left_name if right is None else f"{left_name} and {right_name}"
+        raise DocketError(f"{where}: no columns in common to compare; "
+                          "name them alike or pair them with --map LEFT=RIGHT")
+    return fields

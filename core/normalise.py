@@ -1,0 +1,101 @@
+"""Normalising raw values before comparison, once per distinct value.
+
+Each function maps one raw string to its comparable form, or None when nothing comparable is
+left. Callers apply them through :func:`per_distinct`, which normalises each distinct value once
+and takes the results back by index: far cheaper than normalising once per record or per pair.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import html
+import re
+import unicodedata
+from collections.abc import Callable
+
+import numpy as np
+import pandas as pd
+
+_NON_WORD = re.compile(r"[^\w]+", re.UNICODE)
+_SEPARATORS = re.compile(r"[\s\-./()_]+")
+_PHONE = re.compile(r"^\+?\d{7,}$")
+_ISO = re.compile(r"^(\d{4})-(\d{1,2})-(\d{1,2})")
+_DMY = re.compile(r"^(\d{1,2})[/.\-](\d{1,2})[/.\-](\d{4})$")
+
+
+def fold(value: str) -> str:
+    """Case-fold and strip diacritics, so that 'Zoë' and 'ZOE' compare equal."""
+    decomposed = unicodedata.normalize("NFKD", value)
+    stripped = "".join(ch for ch in decomposed if not unicodedata.combining(ch))
+    return stripped.casefold()
+
+
+def words(value: str) -> str | None:
+    text = _NON_WORD.sub(" ", fold(html.unescape(value))).strip()
+    return " ".join(text.split()) or None
+
+
+def name(value: str) -> str | None:
+    """Words in sorted order: 'Nowak, Kasia' and 'Kasia Nowak' become the same string."""
+    w = words(value)
+    return " ".join(sorted(w.split())) if w else None
+
+
+def code(value: str) -> str | None:
+    """Separators removed; phone-like codes keep their last nine digits (drops +44 / 0 prefixes)."""
+    text = _SEPARATORS.sub("", fold(value))
+    if not text:
+        return None
+    if _PHONE.match(text):
+        return text[-9:]
+    return text
+
+
+def number(value: str) -> float | None:
+    try:
+        x = float(value.replace(",", "").strip())
+    except ValueError:
+        return None
+    return x if np.isfinite(x) else None
+
+
+def date(value: str) -> float | None:
+    """Days since 1970-01-01. ISO first, then day/month/year (the usual order outside the US)."""
+    text = value.strip()
+    m = _ISO.match(text)
+    parts: tuple[int, int, int] | None = None
+    if m:
+        parts = (int(m[1]), int(m[2]), int(m[3]))
+    else:
+        m = _DMY.match(text)
+        if m:
+            parts = (int(m[3]), int(m[2]), int(m[1]))
+    if parts is None:
+        try:
+            ts = pd.Timestamp(text)
+        except (ValueError, TypeError):
+            return None
+        if pd.isna(ts):
+            return None
+        parts = (ts.year, ts.month, ts.day)
+    try:
+        return float(dt.date(*parts).toordinal() - 719163)
+    except ValueError:
+        return None
+
+
+NORMALISERS: dict[str, Callable[[str], object]] = {
+    "name": name,
+    "text": words,
+    "longtext": words,
+    "code": code,
+    "number": number,
+    "date": date,
+}
+
+
+def per_distinct(values: pd.Series | list, func: Callable[[str], object]) -> np.ndarray:
+    """Apply ``func`` to each distinct non-missing value once; missing stays None."""
+    codes, uniques = pd.factorize(pd.Series(values, dtype=object), use_na_sentinel=True)
+    done = np.array([func(u) for u in uniques] + [None], dtype=object)
+    return done[codes]  # code -1 (missing) picks the trailing None

@@ -1,0 +1,284 @@
+"""The facade: one object per open project, offering the verbs the front ends need.
+
+The CLI and the TUI call only this (and the plain dataclasses in ``types``); they hold no SQL
+and no statistics.
+"""
+
+from __future__ import annotations
+
+import sqlite3
+import threading
+from pathlib import Path
+from typing import Any
+
+from . import decisions as log
+from . import queue, store
+from .build import Built, NewProject, Progress, build
+from .errors import DocketError
+from .refit import RefitResult, refit
+from .types import LABELS, Decision, FieldComparison, FieldSpec, PairCard, QueueItem
+
+ROLES = ("reviewer", "adjudicator")
+
+
+class Project:
+    """An open project file. Thread-safe for one writer: calls are serialised by a lock."""
+
+    def __init__(self, path: Path, conn: sqlite3.Connection) -> None:
+        self.path = path
+        self._conn = conn
+        self._lock = threading.RLock()
+        self.meta: dict[str, Any] = store.get_meta(conn)
+        self.fields = [FieldSpec(**f) for f in self.meta["fields"]]
+        self.link = self.meta["mode"] == "link"
+
+    # -- opening -----------------------------------------------------------------------------
+    @classmethod
+    def open(cls, path: str | Path, readonly: bool = False) -> Project:
+        path = Path(path)
+        return cls(path, store.open_file(path, readonly=readonly))
+
+    @staticmethod
+    def create(spec: NewProject, progress: Progress | None = None,
+               cancel: threading.Event | None = None) -> Built:
+        return build(spec, progress, cancel)
+
+    def close(self) -> None:
+        with self._lock:
+            self._conn.close()
+
+    def __enter__(self) -> Project:
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        self.close()
+
+    def reload(self) -> None:
+        with self._lock:
+            self.meta = store.get_meta(self._conn)
+
+    @property
+    def threshold(self) -> float:
+        return float(self.meta["threshold"])
+
+    @property
+    def connection(self) -> sqlite3.Connection:
+        """For modules of the core that read the store directly (agreement, export)."""
+        return self._conn
+
+    # -- reviewers ---------------------------------------------------------------------------
+    def ensure_reviewer(self, name: str, role: str = "reviewer") -> None:
+        name = name.strip()
+        if not name:
+            raise DocketError("a reviewer needs a name; pass --reviewer NAME")
+        if role not in ROLES:
+            raise DocketError(f"unknown role '{role}'; use reviewer or adjudicator")
+        with self._lock:
+            self._conn.execute("INSERT OR IGNORE INTO reviewers VALUES (?, ?, ?)",
+                               (name, role, store.now()))
+
+    # -- queue -------------------------------------------------------------------------------
+    def _stream(self, reviewer: str, audit: bool, n: int, exclude: tuple[int, ...]) -> list:
+        skip = f"AND p.pair_id NOT IN ({','.join(map(str, exclude))})" if exclude else ""
+        order = "p.audit_order" if audit else "t.priority, t.pattern_id, p.pair_id"
+        return self._conn.execute(
+            "SELECT p.pair_id, p.left_id, p.right_id, t.probability, p.audit, p.overlap, "
+            "p.n_labels FROM pairs p JOIN patterns t ON t.pattern_id = p.pattern_id "
+            f"WHERE p.open = 1 AND p.audit = ? {skip} AND NOT EXISTS (SELECT 1 FROM current c "
+            "WHERE c.pair_id = p.pair_id AND c.reviewer = ?) "
+            f"ORDER BY {order} LIMIT ?", (int(audit), reviewer, n)).fetchall()
+
+    def next_pairs(self, reviewer: str, n: int = 1,
+                   exclude: tuple[int, ...] = ()) -> list[QueueItem]:
+        """The next ``n`` pairs this reviewer's queue shows, audit pairs mixed in at a fixed rate."""
+        with self._lock:
+            done = self._conn.execute("SELECT count(*) FROM current WHERE reviewer = ?",
+                                      (reviewer,)).fetchone()[0]
+            audit = self._stream(reviewer, True, n, exclude)
+            other = self._stream(reviewer, False, n, exclude)
+        every = int(self.meta.get("audit_every", queue.AUDIT_EVERY))
+        out: list[QueueItem] = []
+        for i in range(n):
+            want_audit = (done + i) % every == every - 1
+            source = audit if (want_audit and audit) or not other else other
+            if not source:
+                break
+            pid, a, b, p, is_audit, overlap, n_labels = source.pop(0)
+            reason = "audit" if is_audit else ("overlap" if overlap and n_labels else
+                                               "uncertain")
+            out.append(QueueItem(pid, a, b, float(p), reason))
+        return out
+
+    def progress(self, reviewer: str) -> tuple[int, int]:
+        """(pairs this reviewer has decided, pairs still in their queue)."""
+        with self._lock:
+            decided = self._conn.execute("SELECT count(*) FROM current WHERE reviewer = ?",
+                                         (reviewer,)).fetchone()[0]
+            remaining = self._conn.execute(
+                "SELECT count(*) FROM pairs p WHERE open = 1 AND NOT EXISTS (SELECT 1 FROM "
+                "current c WHERE c.pair_id = p.pair_id AND c.reviewer = ?)",
+                (reviewer,)).fetchone()[0]
+        return int(decided), int(remaining)
+
+    # -- pairs -------------------------------------------------------------------------------
+    def _record(self, side: str, record_id: str) -> dict[str, str | None]:
+        table = "right_records" if side == "right" and self.link else "left_records"
+        column = self.meta["right_id_column" if table == "right_records" else "left_id_column"]
+        cur = self._conn.execute(f"SELECT * FROM {table} WHERE {store.quote(column)} = ?",
+                                 (record_id,))
+        row = cur.fetchone()
+        if row is None:
+            return {}
+        names = [d[0] for d in cur.description]
+        return {k: v for k, v in zip(names, row, strict=True) if k != column}
+
+    def record(self, side: str, record_id: str) -> dict[str, str | None]:
+        with self._lock:
+            return self._record(side, record_id)
+
+    def card(self, pair_id: int, reason: str | None = None) -> PairCard:
+        """Everything the pair card and evidence panel show for one pair."""
+        with self._lock:
+            sims = ", ".join(store.similarity_column(f.name) for f in self.fields)
+            row = self._conn.execute(
+                f"SELECT p.left_id, p.right_id, p.audit, p.overlap, p.n_labels, t.levels, "
+                f"t.weight, t.probability, {sims} FROM pairs p JOIN patterns t "
+                "ON t.pattern_id = p.pattern_id WHERE p.pair_id = ?", (pair_id,)).fetchone()
+            if row is None:
+                raise DocketError(f"no pair {pair_id} in {self.path}")
+            left_id, right_id, audit, overlap, n_labels, levels, weight, prob = row[:8]
+            weights = {(f, lv): (name, w) for f, lv, name, w in self._conn.execute(
+                "SELECT field, level, level_name, weight FROM model")}
+            left = self._record("left", left_id)
+            right = self._record("right", right_id)
+            counts = [self._conn.execute(f"SELECT count(*) - 1 FROM pairs WHERE {col} = ?",
+                                         (rid,)).fetchone()[0]
+                      for col, rid in (("left_id", left_id), ("right_id", right_id))]
+            if not self.link:  # one table: a record can sit on either side of a pair
+                counts = [self._conn.execute(
+                    "SELECT count(*) - 1 FROM pairs WHERE left_id = ? OR right_id = ?",
+                    (rid, rid)).fetchone()[0] for rid in (left_id, right_id)]
+        lvls = [int(x) for x in levels.split(",")]
+        rows = []
+        for f, lv, sim in zip(self.fields, lvls, row[8:], strict=True):
+            name, w = weights[(f.name, lv)]
+            rows.append(FieldComparison(f.name, f.kind, left.get(f.left_column),
+                                        right.get(f.right_column), sim, lv, name, float(w)))
+        compared_l = {f.left_column for f in self.fields}
+        compared_r = {f.right_column for f in self.fields}
+        if reason is None:
+            reason = "audit" if audit else ("overlap" if overlap and n_labels else "uncertain")
+        prior = float(self.meta["fs_model"]["prior"])
+        from .model import FSModel
+        return PairCard(
+            pair_id, left_id, right_id, float(prob), float(weight),
+            FSModel.from_dict(self.meta["fs_model"]).prior_weight if prior else 0.0, reason,
+            tuple(rows), {k: v for k, v in left.items() if k not in compared_l},
+            {k: v for k, v in right.items() if k not in compared_r}, int(counts[0]),
+            int(counts[1]))
+
+    def candidates_of(self, side: str, record_id: str) -> list[QueueItem]:
+        """Every candidate pair that names this record (the evidence panel's 'others')."""
+        where = ("p.left_id = ? OR p.right_id = ?" if not self.link else
+                 f"p.{'left' if side == 'left' else 'right'}_id = ?")
+        args = (record_id, record_id) if not self.link else (record_id,)
+        with self._lock:
+            rows = self._conn.execute(
+                "SELECT p.pair_id, p.left_id, p.right_id, t.probability FROM pairs p "
+                f"JOIN patterns t ON t.pattern_id = p.pattern_id WHERE {where} "
+                "ORDER BY t.probability DESC, p.pair_id", args).fetchall()
+        return [QueueItem(int(a), b, c, float(d), "candidate") for a, b, c, d in rows]
+
+    def find(self, text: str, limit: int = 50) -> list[int]:
+        """Pairs by pair id, or by a record id or text on either side (case-insensitive)."""
+        text = text.strip()
+        if not text:
+            return []
+        with self._lock:
+            if text.isdigit():
+                hit = self._conn.execute("SELECT pair_id FROM pairs WHERE pair_id = ?",
+                                         (int(text),)).fetchall()
+                if hit:
+                    return [hit[0][0]]
+            ids = self._conn.execute(
+                "SELECT pair_id FROM pairs WHERE left_id = ? OR right_id = ? ORDER BY pair_id "
+                "LIMIT ?", (text, text, limit)).fetchall()
+            if ids:
+                return [r[0] for r in ids]
+            like = f"%{text}%"
+            found: list[int] = []
+            for side, table in (("left", "left_records"),
+                                ("right", "right_records" if self.link else "left_records")):
+                cols = [r[1] for r in self._conn.execute(f"PRAGMA table_info({table})")]
+                cond = " OR ".join(f"{store.quote(c)} LIKE ?" for c in cols)
+                key = self.meta[f"{side}_id_column"] if self.link or side == "left" else \
+                    self.meta["left_id_column"]
+                for (rid,) in self._conn.execute(
+                        f"SELECT {store.quote(key)} FROM {table} WHERE {cond} LIMIT ?",
+                        (*([like] * len(cols)), limit)):
+                    found += [r[0] for r in self._conn.execute(
+                        f"SELECT pair_id FROM pairs WHERE {side}_id = ? LIMIT ?", (rid, limit))]
+                if len(found) >= limit:
+                    break
+        return sorted(set(found))[:limit]
+
+    # -- decisions ---------------------------------------------------------------------------
+    def decide(self, pair_id: int, reviewer: str, label: str, note: str = "",
+               seconds: float = 0.0, role: str = "reviewer") -> Decision:
+        """Append a decision and commit it before returning."""
+        if label not in LABELS:
+            raise DocketError(f"unknown label '{label}'; use one of {', '.join(LABELS)}")
+        with self._lock:
+            prior = log.current_of(self._conn, pair_id, reviewer)
+            self._conn.execute("BEGIN IMMEDIATE")
+            try:
+                self._conn.execute("INSERT OR IGNORE INTO reviewers VALUES (?, ?, ?)",
+                                   (reviewer, role, store.now()))
+                d = log.append(self._conn, pair_id, reviewer, label, note, seconds,
+                               None if prior is None else prior.decision_id, role)
+                self._conn.execute("COMMIT")
+            except BaseException:
+                self._conn.execute("ROLLBACK")
+                raise
+        return d
+
+    def undo(self, reviewer: str) -> Decision | None:
+        """Retract the reviewer's latest standing label; returns the retracted decision."""
+        with self._lock:
+            last = log.latest_of(self._conn, reviewer)
+            if last is None:
+                return None
+            self._conn.execute("BEGIN IMMEDIATE")
+            try:
+                log.append(self._conn, last.pair_id, reviewer, None, "", 0.0,
+                           last.decision_id, last.role)
+                self._conn.execute("COMMIT")
+            except BaseException:
+                self._conn.execute("ROLLBACK")
+                raise
+        return last
+
+    def current_label(self, pair_id: int, reviewer: str) -> Decision | None:
+        with self._lock:
+            return log.current_of(self._conn, pair_id, reviewer)
+
+    def history(self, reviewer: str) -> list[Decision]:
+        with self._lock:
+            return log.history(self._conn, reviewer)
+
+    def decisions(self, pair_id: int | None = None) -> list[Decision]:
+        with self._lock:
+            return log.log(self._conn, pair_id)
+
+    def decisions_since_refit(self) -> int:
+        with self._lock:
+            return int(self._conn.execute("SELECT count(*) FROM decisions WHERE decided_at > ?",
+                                          (self.meta.get("refit_at", ""),)).fetchone()[0])
+
+    # -- model -------------------------------------------------------------------------------
+    def refit(self) -> RefitResult:
+        with self._lock:
+            result = refit(self._conn)
+            store.set_meta(self._conn, refit_at=log.stamp())
+            self.meta = store.get_meta(self._conn)
+        return result

@@ -1,0 +1,73 @@
+"""What ``status`` shows: records, pairs, decisions, and the model's weights."""
+
+from __future__ import annotations
+
+from typing import Any
+
+from . import store
+from .project import Project
+
+CAUTION = ("Records may be personal data: keep the project file private (it is created readable "
+           "by you alone), mask what reviewers need not see, and let people review before any "
+           "merge. Follow your local data-protection law and your organisation's policy.")
+
+
+def status(project: Project) -> dict[str, Any]:
+    conn = project.connection
+    meta = project.meta
+
+    def one(sql: str, *args: Any) -> Any:
+        return conn.execute(sql, args).fetchone()[0]
+
+    n_left = one("SELECT count(*) FROM left_records")
+    n_right = one("SELECT count(*) FROM right_records") if project.link else n_left
+    per_reviewer: dict[str, dict[str, int]] = {}
+    for reviewer, label, n in conn.execute(
+            "SELECT reviewer, label, count(*) FROM current GROUP BY reviewer, label "
+            "ORDER BY reviewer, label"):
+        per_reviewer.setdefault(reviewer, {})[label] = n
+    roles = dict(conn.execute("SELECT name, role FROM reviewers"))
+    model = []
+    for f in project.fields:
+        levels = [{"level": name, "m": m, "u": u, "weight": round(w, 3)}
+                  for name, m, u, w in conn.execute(
+                      "SELECT level_name, m, u, weight FROM model WHERE field = ? ORDER BY level",
+                      (f.name,))]
+        model.append({"field": f.name, "kind": f.kind, "levels": levels})
+    fs = meta["fs_model"]
+    return {
+        "project": str(project.path),
+        "name": meta.get("name"),
+        "mode": meta["mode"],
+        "schema_version": store.SCHEMA_VERSION,
+        "records": {"left": n_left, "right": n_right},
+        "fields": [f.to_dict() for f in project.fields],
+        "pairs": {
+            "candidates": one("SELECT count(*) FROM pairs"),
+            "open": one("SELECT count(*) FROM pairs WHERE open = 1"),
+            "audit": one("SELECT count(*) FROM pairs WHERE audit = 1"),
+            "overlap": one("SELECT count(*) FROM pairs WHERE overlap = 1"),
+        },
+        "blocking": meta["blocking"],
+        "decisions": {
+            "log_entries": one("SELECT count(*) FROM decisions"),
+            "retractions": one("SELECT count(*) FROM decisions WHERE label IS NULL"),
+            "current_labels": one("SELECT count(*) FROM current"),
+            "pairs_decided": one("SELECT count(DISTINCT pair_id) FROM current"),
+            "per_reviewer": {r: {"role": roles.get(r, "reviewer"), **c}
+                             for r, c in per_reviewer.items()},
+        },
+        "model": {
+            "ranker": meta.get("ranker"),
+            "ranker_note": meta.get("ranker_note"),
+            "prior": fs["prior"],
+            "threshold": meta["threshold"],
+            "one_to_one": meta.get("one_to_one", False),
+            "refits": meta.get("refits", 0),
+            "labels_used": fs.get("labels_used", 0),
+            "fields": model,
+        },
+        "settings": {"overlap_share": meta["overlap_share"], "audit_every": meta["audit_every"],
+                     "refit_every": meta["refit_every"]},
+        "caution": CAUTION,
+    }

@@ -1,0 +1,107 @@
+"""Plain data passed between the core and the front ends.
+
+Everything here is a frozen dataclass of built-in types, so the TUI and the CLI can draw or
+serialise it without knowing how the project file is laid out.
+"""
+
+from __future__ import annotations
+
+from dataclasses import asdict, dataclass, field
+from typing import Any, Literal
+
+Label = Literal["match", "non-match", "hold"]
+LABELS: tuple[str, ...] = ("match", "non-match", "hold")
+KINDS: tuple[str, ...] = ("name", "text", "longtext", "code", "number", "date")
+Reason = Literal["uncertain", "audit", "overlap"]
+
+
+@dataclass(frozen=True)
+class FieldComparison:
+    """One compared field of one pair, as the pair card shows it."""
+
+    field: str
+    kind: str
+    left: str | None  # raw value as read; None when missing
+    right: str | None
+    similarity: float | None  # None when either side is missing
+    level: int  # index into the field's levels
+    level_name: str  # "exact", "close", ..., "missing"
+    weight: float  # Fellegi–Sunter match weight of that level, log2(m/u)
+
+
+@dataclass(frozen=True)
+class PairCard:
+    """Everything the review screen needs to show one candidate pair."""
+
+    pair_id: int
+    left_id: str
+    right_id: str
+    probability: float
+    weight: float  # total match weight: sum of field weights
+    prior_weight: float  # log2(prior / (1 - prior))
+    reason: str  # why it is in the queue: uncertain, audit or overlap
+    fields: tuple[FieldComparison, ...]
+    left_extra: dict[str, str | None] = field(default_factory=dict)  # columns not compared
+    right_extra: dict[str, str | None] = field(default_factory=dict)
+    left_candidates: int = 0  # other candidate pairs that name the left record
+    right_candidates: int = 0
+
+
+@dataclass(frozen=True)
+class QueueItem:
+    pair_id: int
+    left_id: str
+    right_id: str
+    probability: float
+    reason: str
+
+    def to_dict(self) -> dict[str, Any]:
+        return asdict(self)
+
+
+@dataclass(frozen=True)
+class Decision:
+    """One row of the append-only decision log.
+
+    A retraction has ``label`` None and ``supersedes`` the decision it takes back.
+    """
+
+    decision_id: str
+    pair_id: int
+    reviewer: str
+    label: str | None
+    note: str
+    decided_at: str
+    seconds: float
+    supersedes: str | None = None
+    role: str = "reviewer"
+
+    @property
+    def is_retraction(self) -> bool:
+        return self.label is None
+
+    def to_dict(self) -> dict[str, Any]:
+        return asdict(self)
+
+
+@dataclass(frozen=True)
+class Progress:
+    """How far one reviewer has got."""
+
+    reviewer: str
+    decided: int  # pairs this reviewer currently has a label on
+    remaining: int  # pairs still in this reviewer's queue
+    total_pairs: int
+
+
+@dataclass(frozen=True)
+class FieldSpec:
+    """A compared field: its name on each side and its kind."""
+
+    name: str  # the name docket uses (the left column's name)
+    left_column: str
+    right_column: str
+    kind: str
+
+    def to_dict(self) -> dict[str, Any]:
+        return asdict(self)

@@ -1,0 +1,112 @@
+"""Writing a freshly built project into its (temporary) SQLite file."""
+
+from __future__ import annotations
+
+import json
+import sqlite3
+from collections.abc import Callable
+from typing import Any
+
+import numpy as np
+import sqlite_utils
+
+from . import queue, store
+from .model import FSModel
+from .types import FieldSpec
+
+BATCH = 50_000
+
+
+def write_records(conn: sqlite3.Connection, table: str, frame: Any, id_column: str) -> None:
+    db = sqlite_utils.Database(conn)
+    rows = frame.reset_index()
+    rows.columns = [id_column, *frame.columns]
+    records = (dict(zip(rows.columns, r, strict=True))
+               for r in rows.itertuples(index=False, name=None))
+    db[table].insert_all(records, pk=id_column, batch_size=5000,
+                         columns={c: str for c in rows.columns})
+
+
+def write_model(conn: sqlite3.Connection, model: FSModel) -> None:
+    conn.execute("DELETE FROM model")
+    rows = []
+    for f, names, m, u, w in zip(model.fields, model.level_names, model.m, model.u,
+                                 model.weights(), strict=True):
+        for lv, name in enumerate(names):
+            missing = lv == len(names) - 1
+            rows.append((f, lv, name, None if missing else m[lv], None if missing else u[lv],
+                         float(w[lv])))
+    conn.executemany("INSERT INTO model VALUES (?, ?, ?, ?, ?, ?)", rows)
+
+
+def write_project(conn: sqlite3.Connection, *, spec: Any, left: Any, right: Any,
+                  fields: list[FieldSpec], li: np.ndarray, ri: np.ndarray,
+                  rule_ix: np.ndarray, rule_names: list[str], sims: np.ndarray,
+                  patterns: np.ndarray, pattern_ix: np.ndarray, counts: np.ndarray,
+                  weight: np.ndarray, prob: np.ndarray, model: FSModel, pair_ids: np.ndarray,
+                  audit: queue.AuditSlice, overlap: np.ndarray, fingerprint: str,
+                  report: Any, step: Callable[..., None]) -> None:
+    conn.execute("BEGIN")
+    step("writing records", 0, 2)
+    write_records(conn, "left_records", left.frame, left.id_column)
+    if right is not None:
+        write_records(conn, "right_records", right.frame, right.id_column)
+    step("writing records", 2, 2)
+    conn.executemany(
+        "INSERT INTO fields VALUES (?, ?, ?, ?, ?, ?)",
+        [(i, f.name, f.left_column, f.right_column, f.kind,
+          json.dumps(model.level_names[i])) for i, f in enumerate(fields)])
+    prio = queue.priority(prob, spec.threshold)
+    conn.executemany(
+        "INSERT INTO patterns VALUES (?, ?, ?, ?, ?, ?, ?)",
+        [(i, ",".join(map(str, patterns[i])), int(counts[i]), float(weight[i]),
+          float(prob[i]), float(prob[i]), float(prio[i])) for i in range(len(patterns))])
+    write_model(conn, model)
+
+    order = np.argsort(pair_ids)
+    lid = left.frame.index.to_numpy()
+    rid = (left if right is None else right).frame.index.to_numpy()
+    sim_cols = ", ".join(store.similarity_column(f.name) for f in fields)
+    marks = ", ".join("?" * (13 + len(fields)))
+    sql = (f"INSERT INTO pairs (pair_id, left_id, right_id, pattern_id, rule, overlap, need, "
+           f"n_labels, open, audit, stratum, inclusion, audit_order, {sim_cols}) "
+           f"VALUES ({marks})")
+    rules = np.array(rule_names, dtype=object)
+    n = len(order)
+    for start in range(0, n, BATCH):
+        ix = order[start:start + BATCH]
+        s = sims[ix].astype(float)
+        s_rows = [[None if np.isnan(v) else round(v, 4) for v in row] for row in s.tolist()]
+        cols = zip(pair_ids[ix].tolist(), lid[li[ix]].tolist(), rid[ri[ix]].tolist(),
+                   pattern_ix[ix].tolist(), rules[rule_ix[ix]].tolist(),
+                   overlap[ix].astype(int).tolist(), (1 + overlap[ix]).astype(int).tolist(),
+                   audit.selected[ix].astype(int).tolist(), audit.stratum[ix].tolist(),
+                   audit.inclusion[ix].tolist(), audit.order[ix].tolist(), s_rows, strict=True)
+        conn.executemany(sql, ((p, a, b, pat, rule, ov, need, 0, 1, au, st, inc,
+                                None if o < 0 else o, *srow)
+                               for p, a, b, pat, rule, ov, need, au, st, inc, o, srow in cols))
+        step("writing pairs", min(n, start + BATCH), n)
+    store.set_meta(
+        conn,
+        name=spec.name or spec.path.stem,
+        mode="dedupe" if right is None else "link",
+        created_at=store.now(),
+        left_file=str(left.path.name), right_file=None if right is None else str(right.path.name),
+        left_id_column=left.id_column,
+        right_id_column=None if right is None else right.id_column,
+        fields=[f.to_dict() for f in fields],
+        blocking=report.to_dict(),
+        threshold=spec.threshold,
+        one_to_one=bool(spec.one_to_one),
+        overlap_share=spec.overlap,
+        audit_every=queue.AUDIT_EVERY,
+        audit_strata={str(h): list(v) for h, v in audit.sizes.items()},
+        refit_every=spec.refit_every,
+        seed=spec.seed,
+        fingerprint=fingerprint,
+        fs_model=model.to_dict(),
+        ranker="fellegi-sunter",
+        ranker_note="no labels yet",
+        refits=0,
+    )
+    conn.execute("COMMIT")
