@@ -87,8 +87,8 @@ def _date(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     da = pd.to_datetime(a.astype("int64"), unit="D")
     db = pd.to_datetime(b.astype("int64"), unit="D")
     diff = np.abs(a.astype(float) - b.astype(float))
-    swapped = ((da.day == db.month) & (da.month == db.day) & (da.year == db.year)
-               & (da.day != da.month)).to_numpy()
+    swapped = np.asarray((da.day == db.month) & (da.month == db.day) & (da.year == db.year)
+                         & (da.day != da.month))
     lv = np.full(len(a), 3, dtype=np.int8)
     lv[diff <= 31] = 2
     lv[swapped] = 1
@@ -138,7 +138,7 @@ def compare_field(kind: str, left_norm: np.ndarray, right_norm: np.ndarray,
     uniq, inverse = np.unique(combo, return_inverse=True)
     ul = uniq // (len(ru) + 1) - 1
     ur = uniq % (len(ru) + 1) - 1
-    lvals = np.array(list(lu) + [None], dtype=object)[ul]  # -1 picks the trailing None
-    rvals = np.array(list(ru) + [None], dtype=object)[ur]
+    lvals = np.array([*lu, None], dtype=object)[ul]  # -1 picks the trailing None
+    rvals = np.array([*ru, None], dtype=object)[ur]
     sim, lv = compare_values(kind, lvals, rvals)
     return sim[inverse], lv[inverse]

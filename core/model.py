@@ -97,7 +97,7 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
         u = [np.asarray(x, dtype=float) for x in start.u]
         prior = start.prior
     it = 0
-    for it in range(1, max_iter + 1):
+    for it in range(1, max_iter + 1):  # noqa: B007 - the count is reported
         model = FSModel(fields, level_names, [list(x) for x in m], [list(x) for x in u], prior)
         g = model.probability(patterns)
         wm = free * g + lab_m
@@ -115,6 +115,10 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
         m, u, prior = new_m, new_u, new_prior
         if delta < tol:
             break
+    for f, k in enumerate(n_lv):
+        # A level no pair reaches carries no evidence: give it weight 0, not a smoothing artefact.
+        unseen = _level_counts(patterns, counts, k, f) == 0
+        m[f][unseen] = u[f][unseen] = np.minimum(m[f][unseen], u[f][unseen])
     model = FSModel(fields, level_names, [list(map(float, x)) for x in m],
                     [list(map(float, x)) for x in u], prior, it, int(lab_m.sum() + lab_n.sum()))
     return _oriented(model)

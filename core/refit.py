@@ -125,7 +125,8 @@ def refit(conn: sqlite3.Connection) -> RefitResult:
     audit_m = int(lab_y[is_audit].sum())
     if (n_match >= MIN_PER_CLASS and len(lab_y) - n_match >= MIN_PER_CLASS
             and audit_m >= MIN_AUDIT and is_audit.sum() - audit_m >= MIN_AUDIT):
-        logit = np.clip(np.log(fs_prob) - np.log1p(-fs_prob), -30, 30)
+        q = np.clip(fs_prob, 1e-13, 1 - 1e-13)
+        logit = np.log(q) - np.log1p(-q)
         x_all = one_hot(patterns, n_levels, logit)
         train_w = _training_weights(lab_w)
         fold = lab_pairs % FOLDS

@@ -1,0 +1,458 @@
+"""Inter-rater agreement between reviewers.
+
+Cohen's kappa with its standard errors, PABAK with the prevalence and bias indices, Fleiss'
+kappa, Krippendorff's alpha for nominal labels, the Landis & Koch bands, and two summaries
+over reviewers: every pair of them, and all of them at once.
+
+Pure statistics over plain Python / numpy data: nothing here opens a project file.
+
+Degenerate data never raises. When a coefficient is undefined (no units, or chance agreement
+p_e == 1 because both reviewers used one and the same category for every unit) it is NaN and
+its band is "undefined". Reporting 1.0 for "everyone always said match" would claim a
+reliability the data cannot show: such data cannot tell a careful reviewer from a constant one.
+"""
+
+from __future__ import annotations
+
+import math
+from collections import Counter
+from collections.abc import Hashable, Mapping, Sequence
+from dataclasses import asdict, dataclass
+from itertools import combinations
+from statistics import NormalDist
+from typing import Any
+
+import numpy as np
+
+# The label vocabulary of core.types.Label, repeated so this module stays dependency-free.
+MATCH, NON_MATCH, HOLD = "match", "non-match", "hold"
+DECIDED: tuple[str, ...] = (MATCH, NON_MATCH)
+WITH_HOLD: tuple[str, ...] = (MATCH, NON_MATCH, HOLD)
+UNDEFINED = "undefined"
+Z_95 = NormalDist().inv_cdf(0.975)  # 1.959964...
+
+_NAN = math.nan
+_EPS = 1e-12  # how close to 1 chance agreement may come before kappa counts as undefined
+
+
+def json_ready(value: Any) -> Any:
+    """Turn nested results into JSON-serialisable data; NaN and infinities become None."""
+    if isinstance(value, Mapping):
+        return {str(k): json_ready(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [json_ready(v) for v in value]
+    if isinstance(value, np.integer):
+        return int(value)
+    if isinstance(value, (float, np.floating)):
+        number = float(value)
+        return number if math.isfinite(number) else None
+    return value
+
+
+class _ToDict:
+    def to_dict(self) -> dict[str, Any]:
+        return json_ready(asdict(self))  # type: ignore[call-overload]
+
+
+def _count_table(table: Any, *, square: bool) -> np.ndarray:
+    counts = np.asarray(table, dtype=float)
+    if counts.ndim != 2 or (square and counts.shape[0] != counts.shape[1]):
+        raise ValueError(f"expected a {'square ' if square else ''}2-D table, got {counts.shape}")
+    if not np.all(np.isfinite(counts)) or np.any(counts < 0) or np.any(counts != np.round(counts)):
+        raise ValueError("a table holds counts: whole numbers, zero or more")
+    return counts.astype(np.int64)
+
+
+def _names(categories: Sequence[str] | None, k: int) -> tuple[str, ...]:
+    names = tuple(str(i) for i in range(k)) if categories is None else tuple(categories)
+    if len(names) != k or len(set(names)) != k:
+        raise ValueError(f"need {k} distinct category names, got {list(names)}")
+    return names
+
+
+def confusion(a: Sequence[str], b: Sequence[str], categories: Sequence[str]) -> np.ndarray:
+    """Counts of (a's label, b's label): rows follow ``a``, columns ``b``, in category order."""
+    if len(a) != len(b):
+        raise ValueError(f"the two label sequences differ in length ({len(a)} vs {len(b)})")
+    k = len(categories)
+    index = {c: i for i, c in enumerate(_names(categories, k))}
+    try:
+        rows = np.fromiter((index[x] for x in a), dtype=np.intp, count=len(a))
+        cols = np.fromiter((index[x] for x in b), dtype=np.intp, count=len(b))
+    except KeyError as err:
+        raise ValueError(f"label {err.args[0]!r} is not one of {list(categories)}") from None
+    return np.bincount(rows * k + cols, minlength=k * k).reshape(k, k)
+
+
+_BANDS: tuple[tuple[float, str], ...] = (
+    (0.20, "Slight"), (0.40, "Fair"), (0.60, "Moderate"), (0.80, "Substantial"),
+    (1.00, "Almost perfect"),
+)  # fmt: skip
+
+
+def landis_koch(kappa: float | None) -> str:
+    """Landis & Koch (1977) strength-of-agreement band for a kappa.
+
+    The published bands (0.00-0.20, 0.21-0.40, ...) leave gaps for a continuous kappa; docket
+    closes them upper-inclusively: kappa < 0 Poor; 0 <= kappa <= 0.20 Slight;
+    0.20 < kappa <= 0.40 Fair; 0.40 < kappa <= 0.60 Moderate; 0.60 < kappa <= 0.80 Substantial;
+    0.80 < kappa <= 1 Almost perfect. Kappa is rounded to 12 decimals first, so that a computed
+    0.2 carrying float noise (0.20000000000000004) stays Slight. NaN or None gives "undefined";
+    a kappa above 1 is an error.
+    """
+    if kappa is None or math.isnan(kappa):
+        return UNDEFINED
+    value = round(kappa, 12)
+    if value < 0:
+        return "Poor"
+    for upper, name in _BANDS:
+        if value <= upper:
+            return name
+    raise ValueError(f"kappa cannot exceed 1, got {kappa}")
+
+
+
+@dataclass(frozen=True)
+class CohenResult(_ToDict):
+    """Cohen's (1960) kappa for two reviewers, from their k x k table of counts.
+
+    ``se`` is the large-sample non-null asymptotic standard error of Fleiss, Cohen & Everitt
+    (1969), the "ASE" of SAS and the SE of Stata's kapci; the confidence interval is
+    kappa +/- 1.959964 * se (not clipped). ``se0`` is the standard error under the null
+    hypothesis kappa = 0, and ``z`` = kappa / se0 (NaN when se0 is 0, which happens when one
+    reviewer used a single category). NaN fields mark an undefined kappa: see the module notes.
+    """
+
+    n: int
+    categories: tuple[str, ...]
+    table: list[list[int]]  # rows: first reviewer, columns: second reviewer
+    observed: float  # p_o
+    expected: float  # p_e, chance agreement from the two sets of marginals
+    kappa: float
+    se: float
+    se0: float
+    ci_low: float
+    ci_high: float
+    z: float
+    band: str
+
+
+def cohen_kappa(table: Any, categories: Sequence[str] | None = None) -> CohenResult:
+    """Cohen's kappa, its FCE-1969 and null standard errors and 95% interval from a k x k table.
+
+    ``categories`` names the rows/columns (default "0", "1", ...).
+    """
+    counts = _count_table(table, square=True)
+    names = _names(categories, counts.shape[0])
+    n = int(counts.sum())
+    p_o = p_e = _NAN
+    if n > 0:
+        # Integer sums first: perfect agreement then gives p_o == 1.0 and kappa == 1.0 exactly.
+        row_n, col_n = counts.sum(axis=1).tolist(), counts.sum(axis=0).tolist()
+        p_o = int(np.trace(counts)) / n
+        p_e = sum(r * c for r, c in zip(row_n, col_n, strict=True)) / (n * n)
+        p = counts / n
+        rows, cols = p.sum(axis=1), p.sum(axis=0)
+    if n == 0 or 1.0 - p_e < _EPS:
+        return CohenResult(
+            n, names, counts.tolist(), p_o, p_e, _NAN, _NAN, _NAN, _NAN, _NAN, _NAN, UNDEFINED
+        )
+    kappa = (p_o - p_e) / (1.0 - p_e)
+    term_a = float(np.sum(np.diag(p) * (1.0 - (rows + cols) * (1.0 - kappa)) ** 2))
+    off = p * (cols[:, None] + rows[None, :]) ** 2  # p_ij (p_.i + p_j.)^2
+    np.fill_diagonal(off, 0.0)
+    term_b = (1.0 - kappa) ** 2 * float(off.sum())
+    term_c = (kappa - p_e * (1.0 - kappa)) ** 2
+    scale = n * (1.0 - p_e) ** 2
+    var = (term_a + term_b - term_c) / scale
+    var0 = (p_e + p_e**2 - float(np.sum(rows * cols * (rows + cols)))) / scale
+    # Both variances are exactly 0 in boundary cases (kappa == 1, a constant reviewer); keep
+    # float noise there from turning into a tiny SE and an absurd z.
+    se = math.sqrt(var) if var * n > _EPS else 0.0
+    se0 = math.sqrt(var0) if var0 * n > _EPS else 0.0
+    z = kappa / se0 if se0 > 0 else _NAN
+    return CohenResult(
+        n=n,
+        categories=names,
+        table=counts.tolist(),
+        observed=p_o,
+        expected=p_e,
+        kappa=kappa,
+        se=se,
+        se0=se0,
+        ci_low=kappa - Z_95 * se,
+        ci_high=kappa + Z_95 * se,
+        z=z,
+        band=landis_koch(kappa),
+    )
+
+
+
+@dataclass(frozen=True)
+class PabakResult(_ToDict):
+    """Prevalence- and bias-adjusted kappa (Byrt, Bishop & Carlin 1993).
+
+    For k categories pabak = (k p_o - 1)/(k - 1), i.e. 2 p_o - 1 for a 2 x 2 table. For a 2 x 2
+    table [[a, b], [c, d]] of n units, prevalence_index = (a - d)/n and bias_index = (b - c)/n,
+    both signed; for other sizes they are None.
+    """
+
+    n: int
+    k: int
+    observed: float
+    pabak: float
+    prevalence_index: float | None
+    bias_index: float | None
+
+
+def pabak(table: Any) -> PabakResult:
+    """PABAK with the signed prevalence and bias indices (2 x 2 only) from a k x k table."""
+    counts = _count_table(table, square=True)
+    k, n = counts.shape[0], int(counts.sum())
+    p_o = float(np.trace(counts)) / n if n else _NAN
+    value = (k * p_o - 1.0) / (k - 1) if k > 1 else _NAN
+    if k != 2:
+        return PabakResult(n, k, p_o, value, None, None)
+    (a, b), (c, d) = counts.tolist()
+    if n == 0:
+        return PabakResult(n, k, p_o, value, _NAN, _NAN)
+    return PabakResult(n, k, p_o, value, (a - d) / n, (b - c) / n)
+
+
+
+@dataclass(frozen=True)
+class FleissResult(_ToDict):
+    """Fleiss' (1971) kappa with its parts; se0 is the null SE of Fleiss, Nee & Landis (1979)."""
+
+    n_subjects: int
+    n_raters: int  # ratings per subject
+    p_bar: float  # mean observed agreement over subjects
+    p_bar_e: float  # chance agreement, sum of squared category shares
+    kappa: float
+    se0: float
+    z: float
+    band: str
+
+
+def rating_counts(
+    ratings: Sequence[Sequence[Hashable]], categories: Sequence[Hashable]
+) -> np.ndarray:
+    """Subjects x categories counts from one sequence of labels per subject (one per rater)."""
+    index = {c: i for i, c in enumerate(categories)}
+    out = np.zeros((len(ratings), len(index)), dtype=np.int64)
+    for row, given in enumerate(ratings):
+        for label in given:
+            if label not in index:
+                raise ValueError(f"label {label!r} is not one of {list(categories)}")
+            out[row, index[label]] += 1
+    return out
+
+
+def fleiss(counts: Any) -> FleissResult:
+    """Fleiss' kappa from a subjects x categories table of counts.
+
+    Every subject must have the same number of ratings, at least 2; otherwise ValueError.
+    Kappa is NaN (band "undefined") when every rating fell in one category.
+    """
+    table = _count_table(counts, square=False)
+    per_subject = table.sum(axis=1)
+    if table.size == 0 or np.any(per_subject != per_subject[0]) or per_subject[0] < 2:
+        raise ValueError(
+            "Fleiss' kappa needs at least one subject, and the same number of ratings for every"
+            f" subject, at least two; got {per_subject.tolist()} ratings per subject"
+        )
+    m, n_sub = int(per_subject[0]), table.shape[0]
+    shares = table.sum(axis=0) / (n_sub * m)
+    p_bar = float(np.mean((np.sum(table.astype(float) ** 2, axis=1) - m) / (m * (m - 1))))
+    p_bar_e = float(np.sum(shares**2))
+    if 1.0 - p_bar_e < _EPS:
+        return FleissResult(n_sub, m, p_bar, p_bar_e, _NAN, _NAN, _NAN, UNDEFINED)
+    kappa = (p_bar - p_bar_e) / (1.0 - p_bar_e)
+    pq = shares * (1.0 - shares)
+    spread = float(pq.sum())
+    var0 = 2.0 * (spread**2 - float(np.sum(pq * (1.0 - 2.0 * shares))))
+    var0 /= n_sub * m * (m - 1) * spread**2
+    se0 = math.sqrt(max(var0, 0.0))
+    z = kappa / se0 if se0 > 0 else _NAN
+    return FleissResult(n_sub, m, p_bar, p_bar_e, kappa, se0, z, landis_koch(kappa))
+
+
+def fleiss_kappa(counts: Any) -> float:
+    """Fleiss' kappa from a subjects x categories table of counts (see ``fleiss``)."""
+    return fleiss(counts).kappa
+
+
+
+def _missing(value: Any) -> bool:
+    return value is None or (isinstance(value, (float, np.floating)) and math.isnan(value))
+
+
+def krippendorff_alpha_nominal(data: Any) -> float:
+    """Krippendorff's alpha for nominal values from reliability data (raters x units).
+
+    Missing values are None or NaN; any other hashable value is a category. Units with fewer
+    than two values are not pairable and drop out. NaN when nothing is pairable or only one
+    value occurs.
+    """
+    rows = [list(row) for row in data]
+    if not rows:
+        return _NAN
+    n_units = len(rows[0])
+    if any(len(row) != n_units for row in rows):
+        raise ValueError("reliability data must have one value (or None) per rater and unit")
+    index: dict[Hashable, int] = {}
+    units: list[int] = []
+    values: list[int] = []
+    for row in rows:
+        for unit, value in enumerate(row):
+            if not _missing(value):
+                units.append(unit)
+                values.append(index.setdefault(value, len(index)))
+    counts = np.zeros((n_units, len(index)))
+    np.add.at(counts, (np.asarray(units, dtype=np.intp), np.asarray(values, dtype=np.intp)), 1.0)
+    per_unit = counts.sum(axis=1)
+    pairable = per_unit >= 2
+    counts, per_unit = counts[pairable], per_unit[pairable]
+    n = float(per_unit.sum())
+    # Coincidences: diagonal sum of the coincidence matrix, then alpha = 1 - D_o / D_e.
+    agree = float(np.sum(np.sum(counts * (counts - 1.0), axis=1) / (per_unit - 1.0)))
+    chance = n * n - float(np.sum(counts.sum(axis=0) ** 2))
+    if n == 0 or chance <= 0:
+        return _NAN
+    return 1.0 - (n - 1.0) * (n - agree) / chance
+
+
+
+@dataclass(frozen=True)
+class PairwiseResult(_ToDict):
+    """Agreement of two reviewers on the units both labelled.
+
+    ``n_common`` units were labelled by both; ``n`` of them enter kappa (all of them with
+    include_hold, else those where neither reviewer chose hold). Hold rates are shares of the
+    common units.
+    """
+
+    reviewer_a: Hashable
+    reviewer_b: Hashable
+    include_hold: bool
+    n_common: int
+    n: int
+    observed: float
+    categories: tuple[str, ...]
+    table: list[list[int]]  # rows: reviewer_a, columns: reviewer_b
+    cohen: CohenResult
+    pabak: PabakResult
+    hold_rate_a: float
+    hold_rate_b: float
+
+
+@dataclass(frozen=True)
+class OverallResult(_ToDict):
+    """Agreement of all reviewers together.
+
+    Fleiss' kappa needs the same number of ratings per unit, so it uses only the units with the
+    modal number of ratings (ties go to the larger number): ``fleiss_units`` units with
+    ``fleiss_raters`` ratings each. Krippendorff's alpha uses every unit, missing ratings
+    allowed; ``alpha_units`` units had two or more ratings and so were pairable. Without
+    include_hold a hold counts as no rating.
+    """
+
+    include_hold: bool
+    categories: tuple[str, ...]
+    n_reviewers: int
+    n_units: int  # units with at least one rating counted
+    fleiss_kappa: float
+    fleiss_band: str
+    fleiss_units: int
+    fleiss_raters: int
+    krippendorff_alpha: float
+    alpha_units: int
+
+
+def _check_labels(labels: Mapping[Hashable, Mapping[Hashable, str]]) -> None:
+    for reviewer, given in labels.items():
+        for unit, label in given.items():
+            if label not in WITH_HOLD:
+                raise ValueError(
+                    f"reviewer {reviewer!r} gave unit {unit!r} the label {label!r}; "
+                    f"expected one of {list(WITH_HOLD)}"
+                )
+
+
+def pairwise_agreement(
+    labels: Mapping[Hashable, Mapping[Hashable, str]], include_hold: bool = False
+) -> list[PairwiseResult]:
+    """Cohen's kappa, PABAK and the table for every two reviewers with units in common.
+
+    ``labels`` maps reviewer -> unit -> "match" | "non-match" | "hold". By default kappa is over
+    match / non-match on the units both reviewers decided, with each reviewer's hold rate on
+    the common units reported beside it; with ``include_hold`` hold is a third category.
+    Pairs come in the order of ``labels``; pairs with nothing in common are left out.
+    """
+    _check_labels(labels)
+    categories = WITH_HOLD if include_hold else DECIDED
+    results: list[PairwiseResult] = []
+    for a, b in combinations(labels, 2):
+        given_a, given_b = labels[a], labels[b]
+        common = [unit for unit in given_a if unit in given_b]
+        if not common:
+            continue
+        used = common
+        if not include_hold:
+            used = [u for u in common if given_a[u] != HOLD and given_b[u] != HOLD]
+        table = confusion([given_a[u] for u in used], [given_b[u] for u in used], categories)
+        cohen = cohen_kappa(table, categories)
+        results.append(
+            PairwiseResult(
+                reviewer_a=a,
+                reviewer_b=b,
+                include_hold=include_hold,
+                n_common=len(common),
+                n=len(used),
+                observed=cohen.observed,
+                categories=categories,
+                table=cohen.table,
+                cohen=cohen,
+                pabak=pabak(table),
+                hold_rate_a=sum(given_a[u] == HOLD for u in common) / len(common),
+                hold_rate_b=sum(given_b[u] == HOLD for u in common) / len(common),
+            )
+        )
+    return results
+
+
+def overall_agreement(
+    labels: Mapping[Hashable, Mapping[Hashable, str]], include_hold: bool = False
+) -> OverallResult:
+    """Fleiss' kappa and Krippendorff's alpha (nominal) over all reviewers; see OverallResult."""
+    _check_labels(labels)
+    categories = WITH_HOLD if include_hold else DECIDED
+
+    def counted(label: str | None) -> str | None:
+        return label if label is not None and (include_hold or label != HOLD) else None
+
+    per_unit: dict[Hashable, list[str]] = {}
+    for given in labels.values():
+        for unit, label in given.items():
+            if counted(label) is not None:
+                per_unit.setdefault(unit, []).append(label)
+    sizes = Counter(len(v) for v in per_unit.values() if len(v) >= 2)
+    kappa, band, modal, used = _NAN, UNDEFINED, 0, 0
+    if sizes:
+        modal = max(sizes, key=lambda size: (sizes[size], size))
+        chosen = [v for v in per_unit.values() if len(v) == modal]
+        result = fleiss(rating_counts(chosen, categories))
+        kappa, band, used = result.kappa, result.band, len(chosen)
+    data = [[counted(given.get(unit)) for unit in per_unit] for given in labels.values()]
+    return OverallResult(
+        include_hold=include_hold,
+        categories=categories,
+        n_reviewers=len(labels),
+        n_units=len(per_unit),
+        fleiss_kappa=kappa,
+        fleiss_band=band,
+        fleiss_units=used,
+        fleiss_raters=modal,
+        krippendorff_alpha=krippendorff_alpha_nominal(data),
+        alpha_units=sum(len(v) >= 2 for v in per_unit.values()),
+    )

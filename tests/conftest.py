@@ -1,0 +1,60 @@
+"""Shared fixtures: the outside benchmark's location and small projects built once per session."""
+
+from __future__ import annotations
+
+import os
+import shutil
+from pathlib import Path
+
+import pytest
+
+from docket.core import NewProject, Project
+
+REPO = Path(__file__).resolve().parent.parent
+SAMPLE = REPO / "sample"
+
+
+def data_dir() -> Path:
+    return Path(os.environ.get("DOCKET_DATA", REPO.parent / "shared" / "data"))
+
+
+@pytest.fixture(scope="session")
+def dblp_acm() -> Path:
+    """The DBLP-ACM benchmark (outside data, never copied into the repository)."""
+    folder = data_dir() / "dblp-acm"
+    if not (folder / "matches.csv").exists():
+        pytest.skip(f"outside data absent: set DOCKET_DATA to the folder holding dblp-acm/ "
+                    f"(looked in {folder})")
+    return folder
+
+
+def sample_spec(path: Path, **kw) -> NewProject:
+    return NewProject(path=path, left=SAMPLE / "practice_north.csv",
+                      right=SAMPLE / "practice_south.csv", left_id="client_id", right_id="ref",
+                      column_map={"owner": "owner_name", "born": "date_of_birth"}, **kw)
+
+
+@pytest.fixture(scope="session")
+def sample_project_file(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    path = tmp_path_factory.mktemp("sample") / "vet.docket"
+    Project.create(sample_spec(path))
+    return path
+
+
+@pytest.fixture
+def sample_project(sample_project_file: Path, tmp_path: Path) -> Path:
+    """A private copy of the sample project that a test may change."""
+    copy = tmp_path / "vet.docket"
+    shutil.copy(sample_project_file, copy)
+    return copy
+
+
+@pytest.fixture
+def tiny_tables(tmp_path: Path) -> tuple[Path, Path]:
+    left = tmp_path / "left.csv"
+    right = tmp_path / "right.csv"
+    left.write_text("id,name,town,born\n1,Anna Berg,Oslo,1980-01-02\n2,Jon Dahl,Bergen,1975-05-06\n"
+                    "3,Kari Lund,Oslo,1990-12-11\n", encoding="utf-8")
+    right.write_text("id,name,town,born\na,Anna Berg,Oslo,1980-01-02\nb,Jon Dal,Bergen,1975-06-05\n"
+                     "c,Per Moe,Tromsø,1966-03-03\n", encoding="utf-8")
+    return left, right

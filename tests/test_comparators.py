@@ -1,0 +1,99 @@
+"""docket's comparators against published string-similarity values.
+
+Values from ../shared/reference/checks.md §5 (Jaro–Winkler) and §6 (Levenshtein / OSA), each
+tagged with its source as there.
+"""
+
+from __future__ import annotations
+
+import jellyfish
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from docket.core import compare, normalise
+
+JW = compare.SCORERS["name"]
+LEV = compare.SCORERS["text"]
+
+# (s1, s2, Jaro–Winkler p=0.1, source as tagged in checks.md §5)
+JW_CASES = [
+    ("MARTHA", "MARHTA", 0.9611, "Wikipedia [S via jellyfish testdata]"),
+    ("DWAYNE", "DUANE", 0.8400, "Wikipedia [S]"),
+    ("DIXON", "DICKSONX", 0.8133, "Wikipedia [S]"),
+    ("CRATE", "TRACE", 0.7333, "Wikipedia text [S]"),
+    ("William", "Williams", 0.9750, "jellyfish testdata [S]"),
+    ("SHACKLEFORD", "SHACKELFORD", 0.9818, "Winkler table, from memory [M]"),
+    ("DUNNINGHAM", "CUNNIGHAM", 0.8963, "Winkler table, from memory [M]"),
+    ("NICHLESON", "NICHULSON", 0.9556, "Winkler table, from memory [M]"),
+    ("JONES", "JOHNSON", 0.8324, "Winkler table, from memory [M]"),
+    ("MASSEY", "MASSIE", 0.9333, "Winkler table, from memory [M]"),
+    ("ABROMS", "ABRAMS", 0.9222, "Winkler table, from memory [M]"),
+    ("JULIES", "JULIUS", 0.9333, "Winkler table, from memory [M]"),
+    ("TANYA", "TONYA", 0.8800, "Winkler table, from memory [M]"),
+    ("SEAN", "SUSAN", 0.8050, "Winkler table, from memory [M]"),
+    ("JON", "JOHN", 0.9333, "Winkler table, from memory [M]"),
+]
+
+
+@pytest.mark.parametrize(("a", "b", "expected", "source"), JW_CASES)
+def test_jaro_winkler_published(a: str, b: str, expected: float, source: str) -> None:
+    assert JW([a], [b])[0] == pytest.approx(expected, abs=1e-4), source
+
+
+def test_jaro_winkler_boost_threshold() -> None:
+    # checks.md §5 notes: the prefix bonus applies only above Jaro 0.7 (Winkler's program,
+    # rapidfuzz and jellyfish); ABCDEF/ABXYZW stays at Jaro 0.5556 [C].
+    assert JW(["ABCDEF"], ["ABXYZW"])[0] == pytest.approx(0.5556, abs=1e-4)
+
+
+def test_levenshtein_published() -> None:
+    # kitten/sitting = 3 edits [S, Wikipedia mirrors]: normalised 1 - 3/7 = 0.5714 [C].
+    assert LEV(["kitten"], ["sitting"])[0] == pytest.approx(0.5714, abs=1e-4)
+    # Saturday/Sunday = 3 edits [S]: 1 - 3/8.
+    assert LEV(["Saturday"], ["Sunday"])[0] == pytest.approx(1 - 3 / 8, abs=1e-4)
+
+
+def test_code_levels_use_osa_transpositions() -> None:
+    # fish/ifsh: OSA distance 1 [S, jellyfish docs] -> the "one edit" level; CA/ABC: OSA 3 [S].
+    a = np.array(["fish", "ca", "ab12"], dtype=object)
+    b = np.array(["ifsh", "abc", "ab12"], dtype=object)
+    _, lv = compare.compare_values("code", a, b)
+    names = compare.level_names("code")
+    assert [names[i] for i in lv] == ["one edit", "different", "exact"]
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.text(alphabet="abcdefgh", min_size=1, max_size=12),
+       st.text(alphabet="abcdefgh", min_size=1, max_size=12))
+def test_jaro_winkler_agrees_with_jellyfish(a: str, b: str) -> None:
+    # jellyfish is an independent implementation (reference library, test-only).
+    assert JW([a], [b])[0] == pytest.approx(jellyfish.jaro_winkler_similarity(a, b), abs=1e-5)
+
+
+def test_missing_is_its_own_level_never_a_disagreement() -> None:
+    a = np.array(["anna", None, "x"], dtype=object)
+    b = np.array([None, "anna", "y"], dtype=object)
+    sim, lv = compare.compare_values("name", a, b)
+    missing = len(compare.level_names("name")) - 1
+    assert list(lv[:2]) == [missing, missing] and np.isnan(sim[:2]).all()
+    assert lv[2] != missing
+
+
+def test_dates_detect_day_month_swap_across_formats() -> None:
+    a = np.array([normalise.date("1981-04-07")], dtype=object)
+    b = np.array([normalise.date("04/07/1981")], dtype=object)  # day/month/year: 4 July
+    _, lv = compare.compare_values("date", a, b)
+    assert compare.level_names("date")[lv[0]] == "day/month swapped"
+
+
+def test_normalise_each_distinct_value_once() -> None:
+    calls: list[str] = []
+
+    def spy(v: str) -> str:
+        calls.append(v)
+        return v.lower()
+
+    out = normalise.per_distinct(["A", "B", "A", None, "A"], spy)
+    assert list(out) == ["a", "b", "a", None, "a"] and sorted(calls) == ["A", "B"]

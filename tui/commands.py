@@ -1,0 +1,195 @@
+"""What each ``docket`` command does: call the core facade, print the result."""
+
+from __future__ import annotations
+
+import argparse
+import getpass
+import json
+import os
+import sys
+import warnings
+from importlib import resources
+from pathlib import Path
+from typing import Any
+
+
+def version() -> str:
+    from importlib.metadata import PackageNotFoundError
+    from importlib.metadata import version as v
+    try:
+        return v("docket")
+    except PackageNotFoundError:  # running from a source tree
+        return "0+unknown"
+
+
+def default_reviewer(given: str | None) -> str:
+    name = given or os.environ.get("DOCKET_REVIEWER") or getpass.getuser()
+    return name.strip()
+
+
+def _warn_line(message: Warning | str, category: type, *rest: Any, **kw: Any) -> None:
+    print(f"docket: warning: {message}", file=sys.stderr)
+
+
+warnings.showwarning = _warn_line  # one line, no source excerpt
+
+
+def _open(path: str, readonly: bool = False) -> Any:
+    from docket.core import Project
+    return Project.open(path, readonly=readonly)
+
+
+def _print_built(built: Any) -> None:
+    r = built.blocking
+    how = "chosen from the data" if r.auto else "given"
+    print(f"created {built.path} ({built.mode} mode): {built.n_left:,} left and "
+          f"{built.n_right:,} right records" if built.mode == "link" else
+          f"created {built.path} (dedupe mode): {built.n_left:,} records")
+    print("fields compared: " + ", ".join(f"{f.name} ({f.kind})" for f in built.fields))
+    print(f"blocking rules ({how}):")
+    for rule, n in r.per_rule.items():
+        print(f"  {rule:<40} {n:>10,} pairs")
+    print(f"candidate pairs: {r.pairs:,} of {r.possible:,} possible "
+          f"(reduction ratio {r.reduction_ratio:.4f})")
+    print(f"model: prior {built.model.prior:.4f} after {built.model.iterations} EM iterations; "
+          f"audit slice {built.audit_size:,} pairs; overlap {built.overlap_pairs:,} pairs")
+
+
+def new(args: argparse.Namespace) -> int:
+    from docket.core import NewProject, Project
+    from docket.core.fields import parse_kinds, parse_map
+
+    from .progress import progress_bar
+    if args.id_column and (args.left_id or args.right_id):
+        from docket.core import DocketError
+        raise DocketError("give --id, or --left-id and --right-id, not both")
+    spec = NewProject(
+        path=Path(args.project), left=Path(args.left),
+        right=Path(args.right) if args.right else None, id_column=args.id_column,
+        left_id=args.left_id, right_id=args.right_id, column_map=parse_map(args.map),
+        kinds=parse_kinds(args.field), pairs_file=Path(args.pairs) if args.pairs else None,
+        rules=args.block or [], audit=args.audit, overlap=args.overlap,
+        one_to_one=args.one_to_one, max_pairs=args.max_pairs, threshold=args.threshold,
+        seed=args.seed, force=args.force)
+    with progress_bar() as update:
+        built = Project.create(spec, progress=update)
+    _print_built(built)
+    return 0
+
+
+def status(args: argparse.Namespace) -> int:
+    from docket.core.report import status as get_status
+    with _open(args.project, readonly=True) as project:
+        info = get_status(project)
+    if args.json:
+        print(json.dumps(info, indent=2, ensure_ascii=False))
+        return 0
+    rec, pairs, dec, model = info["records"], info["pairs"], info["decisions"], info["model"]
+    print(f"{info['name']} · {info['mode']} mode · {info['project']}")
+    print(f"records      left {rec['left']:,}" + (f", right {rec['right']:,}"
+                                                  if info["mode"] == "link" else ""))
+    print(f"pairs        {pairs['candidates']:,} candidates, {pairs['open']:,} still queued, "
+          f"audit slice {pairs['audit']:,}, overlap {pairs['overlap']:,}")
+    print(f"blocking     {'; '.join(info['blocking']['rules'])} "
+          f"(reduction ratio {info['blocking']['reduction_ratio']:.4f})")
+    print(f"decisions    {dec['current_labels']:,} standing labels on {dec['pairs_decided']:,} "
+          f"pairs ({dec['log_entries']:,} log entries, {dec['retractions']:,} retractions)")
+    for name, c in dec["per_reviewer"].items():
+        counts = ", ".join(f"{k} {v:,}" for k, v in c.items() if k != "role")
+        print(f"  {name:<16} {c['role']:<12} {counts}")
+    print(f"model        ranker {model['ranker']} ({model['ranker_note']}); prior "
+          f"{model['prior']:.4f}; threshold {model['threshold']}"
+          + ("; one-to-one" if model["one_to_one"] else ""))
+    print("match weights (log2 m/u) per field and level:")
+    for f in model["fields"]:
+        levels = "  ".join(f"{lv['level']} {lv['weight']:+.2f}" for lv in f["levels"])
+        print(f"  {f['field']:<14} {f['kind']:<9} {levels}")
+    print(f"note: {info['caution']}")
+    return 0
+
+
+def next_pairs(args: argparse.Namespace) -> int:
+    with _open(args.project) as project:
+        items = project.next_pairs(default_reviewer(args.reviewer), max(0, args.n))
+    if args.json:
+        print(json.dumps([i.to_dict() for i in items], indent=2, ensure_ascii=False))
+        return 0
+    print(f"{'pair_id':>8}  {'left_id':<22} {'right_id':<22} {'probability':>11}  why")
+    for i in items:
+        print(f"{i.pair_id:>8}  {i.left_id:<22} {i.right_id:<22} {i.probability:>11.4f}  "
+              f"{i.reason}")
+    if not items:
+        print("(the queue is empty for this reviewer)")
+    return 0
+
+
+def label(args: argparse.Namespace) -> int:
+    from docket.core.bulk import apply_rows, read_rows
+    reviewer = default_reviewer(args.reviewer)
+    with _open(args.project) as project:
+        project.ensure_reviewer(reviewer)
+        rows = read_rows(project, Path(args.source))
+        n = apply_rows(project, reviewer, rows)
+        result = project.refit()
+    print(f"recorded {n:,} decisions for {reviewer}; refit: ranker {result.ranker}, "
+          f"{result.labels:,} labelled pairs used")
+    return 0
+
+
+def export(args: argparse.Namespace) -> int:
+    from docket.core.exporting import output_format, scores_frame, write_frame
+    output_format(args.output, args.format)  # a bad target fails before any work
+    with _open(args.project, readonly=True) as project:
+        frame = scores_frame(project)
+    write_frame(frame, args.output, args.format)
+    if args.output != "-":
+        print(f"wrote {len(frame):,} pairs to {args.output}", file=sys.stderr)
+    return 0
+
+
+def _run_review(path: Path, reviewer: str, mask: list[str]) -> int:
+    try:
+        from .app import run_review
+    except ImportError as exc:  # pragma: no cover - a broken install
+        from docket.core import DocketError
+        raise DocketError(f"the review screen could not load ({exc})") from None
+    run_review(path, reviewer, mask)
+    return 0
+
+
+def review(args: argparse.Namespace) -> int:
+    mask = [c.strip() for c in (args.mask or "").split(",") if c.strip()]
+    with _open(args.project) as project:  # fails cleanly before the screen starts
+        project.ensure_reviewer(default_reviewer(args.reviewer))
+    return _run_review(Path(args.project), default_reviewer(args.reviewer), mask)
+
+
+def sample_dir() -> Path:
+    return Path(str(resources.files("docket.sample")))
+
+
+def demo_spec(folder: Path) -> Any:
+    from docket.core import NewProject
+    s = sample_dir()
+    return NewProject(path=folder / "vet-clients.docket", left=s / "practice_north.csv",
+                      right=s / "practice_south.csv", left_id="client_id", right_id="ref",
+                      column_map={"owner": "owner_name", "born": "date_of_birth"},
+                      name="vet-clients", force=True)
+
+
+def demo(args: argparse.Namespace) -> int:
+    from docket.core import Project
+
+    from .progress import progress_bar
+    folder = Path(args.dir)
+    folder.mkdir(parents=True, exist_ok=True)
+    spec = demo_spec(folder)
+    if spec.path.exists() and not args.fresh:
+        print(f"using the existing demo project {spec.path} (pass --fresh to rebuild it)")
+    else:
+        with progress_bar() as update:
+            built = Project.create(spec, progress=update)
+        _print_built(built)
+    if args.no_open:
+        return status(argparse.Namespace(project=str(spec.path), json=False))
+    return _run_review(spec.path, default_reviewer(args.reviewer), [])
