@@ -58,7 +58,7 @@ def level_names(kind: str) -> tuple[str, ...]:
 
 def _string_levels(kind: str, sim: np.ndarray, a: list, b: list) -> np.ndarray:
     rule = KINDS[kind]
-    exact = np.fromiter((x == y for x, y in zip(a, b, strict=True)), dtype=bool, count=len(a))
+    exact = np.asarray(np.array(a, dtype=object) == np.array(b, dtype=object), dtype=bool)
     last = len(rule.levels) - 1
     lv = np.full(len(sim), last, dtype=np.int8)
     for i, cut in reversed(list(enumerate(rule.cuts, start=1))):
@@ -104,8 +104,7 @@ def compare_values(kind: str, a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray,
     n = len(a)
     sim = np.full(n, np.nan, dtype=np.float32)
     lv = np.full(n, len(KINDS[kind].levels), dtype=np.int8)  # the missing level
-    present = np.fromiter((x is not None and y is not None for x, y in zip(a, b, strict=True)),
-                          dtype=bool, count=n)
+    present = np.asarray((a != None) & (b != None), dtype=bool)  # noqa: E711 - elementwise
     if not present.any():
         return sim, lv
     pa, pb = a[present], b[present]

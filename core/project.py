@@ -90,7 +90,7 @@ class Project:
 
     def next_pairs(self, reviewer: str, n: int = 1,
                    exclude: tuple[int, ...] = ()) -> list[QueueItem]:
-        """The next ``n`` pairs this reviewer's queue shows, audit pairs mixed in at a fixed rate."""
+        """The next ``n`` pairs of this reviewer's queue, audit pairs mixed in at a fixed rate."""
         with self._lock:
             done = self._conn.execute("SELECT count(*) FROM current WHERE reviewer = ?",
                                       (reviewer,)).fetchone()[0]

@@ -61,8 +61,8 @@ def pattern_codes(levels: np.ndarray, radix: int = 8) -> np.ndarray:
 def group_patterns(levels: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Distinct level vectors, the pattern index of each pair, and each pattern's count."""
     codes = pattern_codes(levels)
-    uniq, first, inverse, counts = np.unique(codes, return_index=True, return_inverse=True,
-                                             return_counts=True)
+    _, first, inverse, counts = np.unique(codes, return_index=True, return_inverse=True,
+                                          return_counts=True)
     return levels[first].astype(np.int64), inverse, counts
 
 

@@ -67,10 +67,7 @@ def read_frame(path: Path) -> pd.DataFrame:
         raise DocketError(f"{path}: is a folder, not a file of records")
     fmt = detect_format(path)
     try:
-        if fmt == "parquet":
-            frame = pd.read_parquet(path)
-        else:
-            frame = _read_text(path, fmt)
+        frame = pd.read_parquet(path) if fmt == "parquet" else _read_text(path, fmt)
     except DocketError:
         raise
     except pd.errors.EmptyDataError:

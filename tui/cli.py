@@ -44,7 +44,8 @@ def build_parser() -> argparse.ArgumentParser:
                  "--left-id client_id --right-id ref --map owner=owner_name",
                  commands.new)
     p.add_argument("project", help="project file to create")
-    p.add_argument("--left", required=True, metavar="FILE", help="records (CSV, TSV, Parquet, JSONL)")
+    p.add_argument("--left", required=True, metavar="FILE",
+                   help="records (CSV, TSV, Parquet, JSONL)")
     p.add_argument("--right", metavar="FILE", help="second table: link mode")
     p.add_argument("--id", dest="id_column", metavar="COL", help="id column of both tables")
     p.add_argument("--left-id", metavar="COL", help="id column of the left table")
@@ -53,7 +54,8 @@ def build_parser() -> argparse.ArgumentParser:
                    help="compare left column L with right column R (repeatable)")
     p.add_argument("--field", action="append", metavar="COL:KIND",
                    help="set a field's kind instead of the detected one (repeatable)")
-    p.add_argument("--pairs", metavar="FILE", help="candidate pairs from elsewhere: left id, right id")
+    p.add_argument("--pairs", metavar="FILE",
+                   help="candidate pairs from elsewhere: left id, right id")
     p.add_argument("--block", action="append", metavar="RULE", help="a blocking rule (repeatable)")
     p.add_argument("--max-pairs", type=int, default=5_000_000, metavar="N",
                    help="stop if blocking would make more pairs than this (default 5,000,000)")
@@ -114,7 +116,8 @@ def build_parser() -> argparse.ArgumentParser:
                  "Two invented veterinary practices merging their client registers. The project "
                  "is built once in DIR and opened in the review screen.",
                  "docket demo --dir /tmp/docket-demo", commands.demo)
-    p.add_argument("--dir", default="docket-demo", help="folder for the demo (default ./docket-demo)")
+    p.add_argument("--dir", default="docket-demo",
+                   help="folder for the demo (default ./docket-demo)")
     p.add_argument("--fresh", action="store_true", help="rebuild the demo project from scratch")
     p.add_argument("--no-open", action="store_true", help="build only; do not open the screen")
     p.add_argument("--reviewer", metavar="NAME", help="who reviews (default: your user name)")

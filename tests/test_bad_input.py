@@ -1,0 +1,153 @@
+"""Every user mistake: one line on stderr naming the file/row/column, exit code 2, and no
+project file left behind (or the existing one unchanged)."""
+
+from __future__ import annotations
+
+import hashlib
+import sqlite3
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from docket.tui.cli import main
+
+
+def run(capsys: pytest.CaptureFixture[str], *argv: str) -> tuple[int, str]:
+    code = main(list(argv))
+    err = capsys.readouterr().err
+    return code, err
+
+
+def assert_one_line_error(code: int, err: str, *needles: str) -> None:
+    lines = [x for x in err.splitlines() if x.strip()]
+    assert code == 2, err
+    assert len(lines) == 1, err
+    for needle in needles:
+        assert needle in lines[0], lines[0]
+
+
+def write(path: Path, text: str, encoding: str = "utf-8") -> Path:
+    path.write_text(text, encoding=encoding)
+    return path
+
+
+@pytest.fixture
+def good(tmp_path: Path) -> Path:
+    return write(tmp_path / "good.csv", "id,name,town\n1,Anna,Oslo\n2,Jon,Bergen\n3,Anne,Oslo\n")
+
+
+CASES = {
+    "missing file": (lambda d: d / "nope.csv", ["nope.csv", "no such file"]),
+    "unreadable format": (lambda d: write(d / "data.xlsx", "x"),
+                          ["data.xlsx", "unknown file type"]),
+    "garbled parquet": (lambda d: write(d / "bad.parquet", "not parquet"), ["bad.parquet"]),
+    "id column missing": (lambda d: write(d / "noid.csv", "key,name\n1,a\n"), ["noid.csv", "'id'"]),
+    "empty ids": (lambda d: write(d / "emptyid.csv", "id,name\n1,a\n,b\n"),
+                  ["emptyid.csv", "row(s) 3"]),
+    "duplicate ids": (lambda d: write(d / "dup.csv", "id,name\n1,a\n1,b\n2,c\n2,d\n"),
+                      ["dup.csv", "duplicate ids", "1, 2"]),
+    "empty table": (lambda d: write(d / "empty.csv", "id,name\n"), ["empty.csv", "no records"]),
+    "empty file": (lambda d: write(d / "blank.csv", ""), ["blank.csv", "empty"]),
+}
+
+
+@pytest.mark.parametrize("case", sorted(CASES))
+def test_bad_left_table(case: str, tmp_path: Path, capsys) -> None:
+    make, needles = CASES[case]
+    bad = make(tmp_path)
+    project = tmp_path / "p.docket"
+    code, err = run(capsys, "new", str(project), "--left", str(bad), "--id", "id")
+    assert_one_line_error(code, err, *needles)
+    assert not project.exists()
+    assert [p.name for p in tmp_path.iterdir() if "docket" in p.name] == []
+
+
+def test_no_columns_in_common(tmp_path: Path, good: Path, capsys) -> None:
+    other = write(tmp_path / "other.csv", "id,colour\n9,red\n")
+    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(good),
+                    "--right", str(other), "--id", "id")
+    assert_one_line_error(code, err, "no columns in common", "--map")
+    assert not (tmp_path / "p.docket").exists()
+
+
+def test_unknown_ids_in_pairs_file(tmp_path: Path, good: Path, capsys) -> None:
+    pairs = write(tmp_path / "pairs.csv", "left_id,right_id\n1,2\n1,77\n99,3\n")
+    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(good), "--id", "id",
+                    "--pairs", str(pairs))
+    assert_one_line_error(code, err, "pairs.csv", "99")
+    assert not (tmp_path / "p.docket").exists()
+
+
+def test_rule_over_the_cap_suggests_a_tighter_rule(tmp_path: Path, good: Path, capsys) -> None:
+    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(good), "--id", "id",
+                    "--block", "town[:0]", "--max-pairs", "1")
+    assert_one_line_error(code, err, "over the cap", "&")
+
+
+def test_cp1252_file_is_read_with_a_warning(tmp_path: Path, capsys) -> None:
+    left = write(tmp_path / "latin.csv", "id,name\n1,Zoë Ågren\n2,Zoe Agren\n3,Per Moe\n",
+                 encoding="cp1252")
+    with pytest.warns(UserWarning, match=r"latin\.csv: not valid UTF-8; read as cp1252"):
+        code = main(["new", str(tmp_path / "p.docket"), "--left", str(left), "--id", "id",
+                     "--block", "name[:1]"])
+    assert code == 0
+
+
+def test_refuses_to_overwrite_and_keeps_the_file(tmp_path: Path, good: Path, capsys) -> None:
+    project = tmp_path / "p.docket"
+    assert main(["new", str(project), "--left", str(good), "--id", "id", "--block", "town"]) == 0
+    before = hashlib.sha256(project.read_bytes()).hexdigest()
+    code, err = run(capsys, "new", str(project), "--left", str(good), "--id", "id")
+    assert_one_line_error(code, err, "already exists", "--force")
+    # A failing --force build must not touch the existing project either.
+    code, err = run(capsys, "new", str(project), "--left", str(tmp_path / "gone.csv"),
+                    "--id", "id", "--force")
+    assert code == 2
+    assert hashlib.sha256(project.read_bytes()).hexdigest() == before
+
+
+def test_not_a_project_and_newer_version(tmp_path: Path, capsys) -> None:
+    text = write(tmp_path / "notes.docket", "hello")
+    code, err = run(capsys, "status", str(text))
+    assert_one_line_error(code, err, "not a docket project")
+    assert text.read_text() == "hello"
+    other = tmp_path / "other.db"
+    sqlite3.connect(other).execute("CREATE TABLE t (x)").connection.close()
+    code, err = run(capsys, "status", str(other))
+    assert_one_line_error(code, err, "not a docket project")
+
+
+def test_newer_schema_is_refused_untouched(sample_project: Path, capsys) -> None:
+    conn = sqlite3.connect(sample_project)
+    conn.execute("PRAGMA user_version = 99")
+    conn.close()
+    before = hashlib.sha256(sample_project.read_bytes()).hexdigest()
+    code, err = run(capsys, "status", str(sample_project))
+    assert_one_line_error(code, err, "newer docket")
+    assert hashlib.sha256(sample_project.read_bytes()).hexdigest() == before
+
+
+@pytest.mark.parametrize(("body", "needle"), [
+    ("pair_id,label\n999999,match\n", "unknown pair id"),
+    ("pair_id,label\n1,maybe\n", "label 'maybe'"),
+    ("left_id,right_id,label\nN-00001,S-99999,match\n", "not candidate pairs"),
+    ("who,label\n1,match\n", "pair_id"),
+])
+def test_bad_label_file_writes_nothing(sample_project: Path, tmp_path: Path, capsys,
+                                       body: str, needle: str) -> None:
+    labels = write(tmp_path / "labels.csv", body)
+    code, err = run(capsys, "label", str(sample_project), "--reviewer", "maya", "--from",
+                    str(labels))
+    assert_one_line_error(code, err, needle)
+    n = sqlite3.connect(sample_project).execute("SELECT count(*) FROM decisions").fetchone()[0]
+    assert n == 0
+
+
+def test_real_process_exit_code_and_no_traceback(tmp_path: Path) -> None:
+    done = subprocess.run([sys.executable, "-m", "docket.tui.cli", "new", str(tmp_path / "x"),
+                           "--left", str(tmp_path / "missing.csv")], capture_output=True,
+                          text=True)
+    assert done.returncode == 2
+    assert "Traceback" not in done.stderr and len(done.stderr.strip().splitlines()) == 1

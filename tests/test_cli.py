@@ -1,0 +1,87 @@
+"""The non-interactive commands end to end, and --help on every command."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pandas as pd
+import pyarrow.parquet as pq
+import pytest
+
+from docket.tui.cli import build_parser, main
+
+
+def test_every_command_has_help_with_an_example(capsys) -> None:
+    parser = build_parser()
+    sub = next(a for a in parser._actions if a.dest == "command")
+    for name in sub.choices:
+        with pytest.raises(SystemExit) as done:
+            main([name, "--help"])
+        assert done.value.code == 0
+        out = capsys.readouterr().out
+        assert "example:" in out and f"docket {name}" in out, name
+
+
+def test_link_project_from_start_to_export(tiny_tables, tmp_path: Path, capsys) -> None:
+    left, right = tiny_tables
+    project = tmp_path / "t.docket"
+    assert main(["new", str(project), "--left", str(left), "--right", str(right), "--id", "id",
+                 "--block", "town", "--block", "year(born)", "--field", "born:date"]) == 0
+    out = capsys.readouterr().out
+    assert "candidate pairs" in out and "reduction ratio" in out and "year(born)" in out
+
+    assert main(["status", str(project), "--json"]) == 0
+    info = json.loads(capsys.readouterr().out)
+    assert info["records"] == {"left": 3, "right": 3} and info["pairs"]["candidates"] >= 2
+    assert {f["field"] for f in info["model"]["fields"]} == {"name", "town", "born"}
+
+    assert main(["next", str(project), "--reviewer", "maya", "-n", "3", "--json"]) == 0
+    items = json.loads(capsys.readouterr().out)
+    assert items and set(items[0]) == {"pair_id", "left_id", "right_id", "probability", "reason"}
+
+    labels = tmp_path / "labels.jsonl"
+    labels.write_text('{"left_id": "1", "right_id": "a", "label": "match", "note": "same"}\n',
+                      encoding="utf-8")
+    assert main(["label", str(project), "--reviewer", "maya", "--from", str(labels)]) == 0
+    assert "recorded 1 decisions" in capsys.readouterr().out
+    assert main(["status", str(project), "--json"]) == 0
+    info = json.loads(capsys.readouterr().out)
+    assert info["decisions"]["per_reviewer"]["maya"]["match"] == 1
+
+    frames = {}
+    for ext in ("csv", "parquet", "jsonl"):
+        target = tmp_path / f"scores.{ext}"
+        assert main(["export", str(project), "--what", "scores", "-o", str(target)]) == 0
+        frames[ext] = (pd.read_csv(target, dtype={"left_id": str, "right_id": str}) if ext == "csv"
+                       else pq.read_table(target).to_pandas() if ext == "parquet"
+                       else pd.read_json(target, lines=True, dtype={"left_id": str}))
+    cols = {"pair_id", "left_id", "right_id", "sim_name", "sim_town", "sim_born", "match_weight",
+            "probability", "predicted"}
+    for frame in frames.values():
+        assert cols <= set(frame.columns) and len(frame) == info["pairs"]["candidates"]
+    assert main(["export", str(project), "--what", "scores", "-o", "-"]) == 0
+    assert capsys.readouterr().out.startswith("pair_id,left_id,right_id")
+
+
+def test_dedupe_mode_and_given_pairs(tmp_path: Path, capsys) -> None:
+    table = tmp_path / "people.tsv"
+    table.write_text("id\tname\tphone\n1\tAnna Berg\t0123\n2\tAnna Berg\t0123\n3\tPer Moe\t999\n",
+                     encoding="utf-8")
+    pairs = tmp_path / "pairs.csv"
+    pairs.write_text("left_id,right_id\n2,1\n1,2\n1,3\n3,3\n", encoding="utf-8")
+    project = tmp_path / "d.docket"
+    assert main(["new", str(project), "--left", str(table), "--id", "id", "--pairs",
+                 str(pairs)]) == 0
+    capsys.readouterr()
+    assert main(["status", str(project), "--json"]) == 0
+    info = json.loads(capsys.readouterr().out)
+    assert info["mode"] == "dedupe" and info["pairs"]["candidates"] == 2  # (1,2) once; no (3,3)
+
+
+def test_demo_builds_without_opening(tmp_path: Path, capsys) -> None:
+    assert main(["demo", "--dir", str(tmp_path), "--no-open"]) == 0
+    out = capsys.readouterr().out
+    assert "vet-clients" in out and "Records may be personal data" in out
+    assert main(["demo", "--dir", str(tmp_path), "--no-open"]) == 0  # reuses it
+    assert "using the existing demo project" in capsys.readouterr().out

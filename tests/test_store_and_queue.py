@@ -1,0 +1,101 @@
+"""The project store (file mode, WAL, schema, append-only log) and the queue's rules."""
+
+from __future__ import annotations
+
+import os
+import sqlite3
+import stat
+from pathlib import Path
+
+import numpy as np
+
+from docket.core import Project, queue
+from tests.conftest import sample_spec
+
+
+def test_file_is_private_wal_and_versioned(sample_project_file: Path) -> None:
+    assert stat.S_IMODE(os.stat(sample_project_file).st_mode) == 0o600
+    conn = sqlite3.connect(sample_project_file)
+    assert conn.execute("PRAGMA journal_mode").fetchone()[0] == "wal"
+    assert conn.execute("PRAGMA user_version").fetchone()[0] == 1
+    assert conn.execute("SELECT version, name FROM migrations").fetchall() == [(1, "initial")]
+    assert conn.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
+
+
+def test_undo_appends_a_retraction_and_nothing_is_deleted(sample_project: Path) -> None:
+    with Project.open(sample_project) as p:
+        first, second = p.next_pairs("maya", 2)
+        d1 = p.decide(first.pair_id, "maya", "match", note="same pet and phone", seconds=4.2)
+        p.decide(second.pair_id, "maya", "non-match")
+        undone = p.undo("maya")
+        assert undone is not None and undone.pair_id == second.pair_id
+        log = p.decisions()
+        assert len(log) == 3 and log[-1].is_retraction and log[-1].supersedes == undone.decision_id
+        assert p.current_label(second.pair_id, "maya") is None
+        kept = p.current_label(first.pair_id, "maya")
+        assert kept is not None and kept.note == "same pet and phone" and kept.seconds == 4.2
+        # the undone pair is back in maya's queue
+        assert second.pair_id in [i.pair_id for i in p.next_pairs("maya", 5)]
+        # changing a past decision appends a new one that supersedes it
+        changed = p.decide(first.pair_id, "maya", "hold")
+        assert changed.supersedes == d1.decision_id and len(p.decisions()) == 4
+        assert [d.label for d in p.history("maya")] == ["hold"]
+
+
+def test_overlap_pairs_need_two_reviewers(sample_project: Path) -> None:
+    with Project.open(sample_project) as p:
+        conn = p.connection
+        overlap_id = conn.execute(
+            "SELECT pair_id FROM pairs WHERE overlap = 1 LIMIT 1").fetchone()[0]
+        single_id = conn.execute("SELECT pair_id FROM pairs WHERE overlap = 0 AND audit = 0 "
+                                 "LIMIT 1").fetchone()[0]
+        p.decide(overlap_id, "maya", "match")
+        p.decide(single_id, "maya", "match")
+        state = dict(conn.execute("SELECT pair_id, open FROM pairs WHERE pair_id IN (?, ?)",
+                                  (overlap_id, single_id)).fetchall())
+        assert state == {overlap_id: 1, single_id: 0}
+        p.decide(overlap_id, "ravi", "match")
+        assert conn.execute("SELECT open FROM pairs WHERE pair_id = ?",
+                            (overlap_id,)).fetchone()[0] == 0
+
+
+def test_audit_slice_mixed_in_at_a_fixed_rate(sample_project: Path) -> None:
+    with Project.open(sample_project) as p:
+        reasons = [i.reason for i in p.next_pairs("maya", 20)]
+        every = p.meta["audit_every"]
+        assert [i for i, r in enumerate(reasons) if r == "audit"] == \
+            list(range(every - 1, 20, every))
+
+
+def test_audit_inclusion_probabilities() -> None:
+    rng = np.random.default_rng(0)
+    prob = np.concatenate([rng.random(5000) * 0.01, rng.random(300), 0.99 + rng.random(200) / 100])
+    s = queue.draw_audit(prob, 400, seed=1)
+    assert s.selected.sum() == 400
+    for h, (big, drawn) in s.sizes.items():
+        members = s.stratum == h
+        assert members.sum() == big and s.selected[members].sum() == drawn
+        assert np.allclose(s.inclusion[members], drawn / big)
+    assert (queue.draw_audit(prob, 400, seed=1).selected == s.selected).all()  # deterministic
+
+
+def test_refit_is_deterministic(sample_project_file: Path, tmp_path: Path) -> None:
+    results = []
+    for name in ("a", "b"):
+        path = tmp_path / f"{name}.docket"
+        Project.create(sample_spec(path))
+        with Project.open(path) as p:
+            for item in p.next_pairs("maya", 30):
+                p.decide(item.pair_id, "maya", "match" if item.probability > 0.5 else "non-match")
+            p.refit()
+            results.append((p.meta["fs_model"], p.connection.execute(
+                "SELECT probability FROM patterns ORDER BY pattern_id").fetchall()))
+    assert results[0] == results[1]
+
+
+def test_busy_timeout_lets_two_connections_write(sample_project: Path) -> None:
+    with Project.open(sample_project) as a, Project.open(sample_project) as b:
+        x, y = a.next_pairs("maya", 2)
+        a.decide(x.pair_id, "maya", "match")
+        b.decide(y.pair_id, "ravi", "non-match")
+        assert len(a.decisions()) == 2
