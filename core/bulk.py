@@ -77,7 +77,7 @@ def apply_rows(project: Project, reviewer: str, rows: list[BulkRow], role: str =
         conn.execute("INSERT OR IGNORE INTO reviewers VALUES (?, ?, ?)",
                      (reviewer, role, store.now()))
         for r in rows:
-            prior = log.current_of(conn, r.pair_id, reviewer)
+            prior = log.current_of(conn, r.pair_id, reviewer, role)
             log.append(conn, r.pair_id, reviewer, r.label, r.note, 0.0,
                        None if prior is None else prior.decision_id, role)
         conn.execute("COMMIT")

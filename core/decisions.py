@@ -1,8 +1,9 @@
 """The append-only decision log and the current-label table derived from it.
 
-Nothing is ever deleted from ``decisions``. ``current`` holds, per pair and reviewer, the
-latest label decision that has not been retracted; it is rebuilt from the log for the one
-(pair, reviewer) a new decision touches, so the two can never drift apart.
+Nothing is ever deleted from ``decisions``. ``current`` holds, per pair, reviewer and role
+(a person may review a pair and later adjudicate it), the latest label decision that has not
+been retracted; it is rebuilt from the log for the one (pair, reviewer, role) a new decision
+touches, so the two can never drift apart.
 """
 
 from __future__ import annotations
@@ -16,6 +17,7 @@ from .types import LABELS, Decision
 _last_stamp: datetime | None = None
 
 _COLUMNS = "decision_id, pair_id, reviewer, label, note, decided_at, seconds, supersedes, role"
+_D_COLUMNS = ", ".join("d." + c.strip() for c in _COLUMNS.split(","))
 
 
 def stamp() -> str:
@@ -33,16 +35,18 @@ def row_to_decision(row: tuple) -> Decision:
                     row[7], row[8])
 
 
-def refresh(conn: sqlite3.Connection, pair_id: int, reviewer: str) -> None:
-    """Recompute ``current`` for one pair and reviewer, then the pair's queue state."""
+def refresh(conn: sqlite3.Connection, pair_id: int, reviewer: str,
+            role: str = "reviewer") -> None:
+    """Recompute ``current`` for one pair, reviewer and role, then the pair's queue state."""
     row = conn.execute(
         "SELECT decision_id, label, role, decided_at FROM decisions d "
-        "WHERE pair_id = ? AND reviewer = ? AND label IS NOT NULL AND NOT EXISTS ("
+        "WHERE pair_id = ? AND reviewer = ? AND role = ? AND label IS NOT NULL AND NOT EXISTS ("
         "  SELECT 1 FROM decisions r WHERE r.supersedes = d.decision_id AND r.label IS NULL) "
-        "ORDER BY decided_at DESC, decision_id DESC LIMIT 1", (pair_id, reviewer)).fetchone()
+        "ORDER BY decided_at DESC, decision_id DESC LIMIT 1",
+        (pair_id, reviewer, role)).fetchone()
     if row is None:
-        conn.execute("DELETE FROM current WHERE pair_id = ? AND reviewer = ?",
-                     (pair_id, reviewer))
+        conn.execute("DELETE FROM current WHERE pair_id = ? AND reviewer = ? AND role = ?",
+                     (pair_id, reviewer, role))
     else:
         conn.execute("INSERT OR REPLACE INTO current VALUES (?, ?, ?, ?, ?, ?)",
                      (pair_id, reviewer, row[2], row[0], row[1], row[3]))
@@ -63,34 +67,36 @@ def append(conn: sqlite3.Connection, pair_id: int, reviewer: str, label: str | N
     conn.execute(f"INSERT INTO decisions ({_COLUMNS}) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
                  (d.decision_id, d.pair_id, d.reviewer, d.label, d.note, d.decided_at,
                   d.seconds, d.supersedes, d.role))
-    refresh(conn, d.pair_id, reviewer)
+    refresh(conn, d.pair_id, reviewer, role)
     return d
 
 
-def current_of(conn: sqlite3.Connection, pair_id: int, reviewer: str) -> Decision | None:
+def current_of(conn: sqlite3.Connection, pair_id: int, reviewer: str,
+               role: str = "reviewer") -> Decision | None:
     row = conn.execute(
-        f"SELECT {', '.join('d.' + c.strip() for c in _COLUMNS.split(','))} "
-        "FROM current c JOIN decisions d ON d.decision_id = c.decision_id "
-        "WHERE c.pair_id = ? AND c.reviewer = ?", (pair_id, reviewer)).fetchone()
+        f"SELECT {_D_COLUMNS} FROM current c JOIN decisions d ON d.decision_id = c.decision_id "
+        "WHERE c.pair_id = ? AND c.reviewer = ? AND c.role = ?",
+        (pair_id, reviewer, role)).fetchone()
     return None if row is None else row_to_decision(row)
 
 
-def latest_of(conn: sqlite3.Connection, reviewer: str) -> Decision | None:
-    """The reviewer's most recent label that still stands: what undo takes back."""
+def latest_of(conn: sqlite3.Connection, reviewer: str,
+              role: str = "reviewer") -> Decision | None:
+    """The reviewer's most recent label in this role that still stands: what undo takes back."""
     row = conn.execute(
-        f"SELECT {_COLUMNS} FROM decisions d WHERE reviewer = ? AND label IS NOT NULL "
-        "AND NOT EXISTS (SELECT 1 FROM decisions r WHERE r.supersedes = d.decision_id "
-        "AND r.label IS NULL) ORDER BY decided_at DESC, decision_id DESC LIMIT 1",
-        (reviewer,)).fetchone()
+        f"SELECT {_COLUMNS} FROM decisions d WHERE reviewer = ? AND role = ? "
+        "AND label IS NOT NULL AND NOT EXISTS (SELECT 1 FROM decisions r "
+        "WHERE r.supersedes = d.decision_id AND r.label IS NULL) "
+        "ORDER BY decided_at DESC, decision_id DESC LIMIT 1", (reviewer, role)).fetchone()
     return None if row is None else row_to_decision(row)
 
 
-def history(conn: sqlite3.Connection, reviewer: str) -> list[Decision]:
-    """The reviewer's current labels, oldest first: what [ and ] walk through."""
+def history(conn: sqlite3.Connection, reviewer: str, role: str = "reviewer") -> list[Decision]:
+    """The reviewer's current labels in this role, oldest first: what [ and ] walk through."""
     rows = conn.execute(
-        f"SELECT {', '.join('d.' + c.strip() for c in _COLUMNS.split(','))} "
-        "FROM current c JOIN decisions d ON d.decision_id = c.decision_id "
-        "WHERE c.reviewer = ? ORDER BY c.decided_at, c.decision_id", (reviewer,)).fetchall()
+        f"SELECT {_D_COLUMNS} FROM current c JOIN decisions d ON d.decision_id = c.decision_id "
+        "WHERE c.reviewer = ? AND c.role = ? ORDER BY c.decided_at, c.decision_id",
+        (reviewer, role)).fetchall()
     return [row_to_decision(r) for r in rows]
 
 

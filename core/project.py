@@ -85,15 +85,15 @@ class Project:
             "SELECT p.pair_id, p.left_id, p.right_id, t.probability, p.audit, p.overlap, "
             "p.n_labels FROM pairs p JOIN patterns t ON t.pattern_id = p.pattern_id "
             f"WHERE p.open = 1 AND p.audit = ? {skip} AND NOT EXISTS (SELECT 1 FROM current c "
-            "WHERE c.pair_id = p.pair_id AND c.reviewer = ?) "
+            "WHERE c.pair_id = p.pair_id AND c.reviewer = ? AND c.role = 'reviewer') "
             f"ORDER BY {order} LIMIT ?", (int(audit), reviewer, n)).fetchall()
 
     def next_pairs(self, reviewer: str, n: int = 1,
                    exclude: tuple[int, ...] = ()) -> list[QueueItem]:
         """The next ``n`` pairs of this reviewer's queue, audit pairs mixed in at a fixed rate."""
         with self._lock:
-            done = self._conn.execute("SELECT count(*) FROM current WHERE reviewer = ?",
-                                      (reviewer,)).fetchone()[0]
+            done = self._conn.execute("SELECT count(*) FROM current WHERE reviewer = ? "
+                                      "AND role = 'reviewer'", (reviewer,)).fetchone()[0]
             audit = self._stream(reviewer, True, n, exclude)
             other = self._stream(reviewer, False, n, exclude)
         every = int(self.meta.get("audit_every", queue.AUDIT_EVERY))
@@ -112,11 +112,12 @@ class Project:
     def progress(self, reviewer: str) -> tuple[int, int]:
         """(pairs this reviewer has decided, pairs still in their queue)."""
         with self._lock:
-            decided = self._conn.execute("SELECT count(*) FROM current WHERE reviewer = ?",
-                                         (reviewer,)).fetchone()[0]
+            decided = self._conn.execute("SELECT count(*) FROM current WHERE reviewer = ? "
+                                         "AND role = 'reviewer'", (reviewer,)).fetchone()[0]
             remaining = self._conn.execute(
                 "SELECT count(*) FROM pairs p WHERE open = 1 AND NOT EXISTS (SELECT 1 FROM "
-                "current c WHERE c.pair_id = p.pair_id AND c.reviewer = ?)",
+                "current c WHERE c.pair_id = p.pair_id AND c.reviewer = ? "
+                "AND c.role = 'reviewer')",
                 (reviewer,)).fetchone()[0]
         return int(decided), int(remaining)
 
@@ -229,7 +230,7 @@ class Project:
         if label not in LABELS:
             raise DocketError(f"unknown label '{label}'; use one of {', '.join(LABELS)}")
         with self._lock:
-            prior = log.current_of(self._conn, pair_id, reviewer)
+            prior = log.current_of(self._conn, pair_id, reviewer, role)
             self._conn.execute("BEGIN IMMEDIATE")
             try:
                 self._conn.execute("INSERT OR IGNORE INTO reviewers VALUES (?, ?, ?)",
@@ -242,10 +243,10 @@ class Project:
                 raise
         return d
 
-    def undo(self, reviewer: str) -> Decision | None:
+    def undo(self, reviewer: str, role: str = "reviewer") -> Decision | None:
         """Retract the reviewer's latest standing label; returns the retracted decision."""
         with self._lock:
-            last = log.latest_of(self._conn, reviewer)
+            last = log.latest_of(self._conn, reviewer, role)
             if last is None:
                 return None
             self._conn.execute("BEGIN IMMEDIATE")
@@ -258,13 +259,14 @@ class Project:
                 raise
         return last
 
-    def current_label(self, pair_id: int, reviewer: str) -> Decision | None:
+    def current_label(self, pair_id: int, reviewer: str,
+                      role: str = "reviewer") -> Decision | None:
         with self._lock:
-            return log.current_of(self._conn, pair_id, reviewer)
+            return log.current_of(self._conn, pair_id, reviewer, role)
 
-    def history(self, reviewer: str) -> list[Decision]:
+    def history(self, reviewer: str, role: str = "reviewer") -> list[Decision]:
         with self._lock:
-            return log.history(self._conn, reviewer)
+            return log.history(self._conn, reviewer, role)
 
     def decisions(self, pair_id: int | None = None) -> list[Decision]:
         with self._lock:

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from . import store
+from . import gold, store
 from .project import Project
 
 CAUTION = ("Records may be personal data: keep the project file private (it is created readable "
@@ -23,8 +23,8 @@ def status(project: Project) -> dict[str, Any]:
     n_right = one("SELECT count(*) FROM right_records") if project.link else n_left
     per_reviewer: dict[str, dict[str, int]] = {}
     for reviewer, label, n in conn.execute(
-            "SELECT reviewer, label, count(*) FROM current GROUP BY reviewer, label "
-            "ORDER BY reviewer, label"):
+            "SELECT reviewer, label, count(*) FROM current WHERE role = 'reviewer' "
+            "GROUP BY reviewer, label ORDER BY reviewer, label"):
         per_reviewer.setdefault(reviewer, {})[label] = n
     roles = dict(conn.execute("SELECT name, role FROM reviewers"))
     model = []
@@ -69,5 +69,9 @@ def status(project: Project) -> dict[str, Any]:
         },
         "settings": {"overlap_share": meta["overlap_share"], "audit_every": meta["audit_every"],
                      "refit_every": meta["refit_every"]},
+        "gold_policy": {**gold.policy(conn),
+                        "rules": "unanimous decisions become gold; disagreements only when "
+                                 "adjudicated; holds never"},
+        "gold_labels": len(gold.gold_labels(conn)),
         "caution": CAUTION,
     }

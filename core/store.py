@@ -56,7 +56,7 @@ CREATE INDEX decisions_supersedes ON decisions(supersedes);
 CREATE TABLE current (
     pair_id INTEGER NOT NULL, reviewer TEXT NOT NULL, role TEXT NOT NULL,
     decision_id TEXT NOT NULL, label TEXT NOT NULL, decided_at TEXT NOT NULL,
-    PRIMARY KEY (pair_id, reviewer));
+    PRIMARY KEY (pair_id, reviewer, role));
 CREATE INDEX current_reviewer ON current(reviewer, decided_at);
 CREATE VIEW current_labels AS
     SELECT d.* FROM current c JOIN decisions d ON d.decision_id = c.decision_id;

@@ -104,6 +104,9 @@ def status(args: argparse.Namespace) -> int:
     for f in model["fields"]:
         levels = "  ".join(f"{lv['level']} {lv['weight']:+.2f}" for lv in f["levels"])
         print(f"  {f['field']:<14} {f['kind']:<9} {levels}")
+    pol = info["gold_policy"]
+    print(f"gold labels  {info['gold_labels']:,} (policy: at least {pol['min_reviews']} "
+          f"review(s); {pol['rules']})")
     print(f"note: {info['caution']}")
     return 0
 
