@@ -4,8 +4,17 @@ Front ends use :class:`Project` and the dataclasses in :mod:`docket.core.types`;
 imports a user interface.
 """
 
-from .build import NewProject
+from typing import Any
+
 from .errors import DocketError
 from .project import Project
 
 __all__ = ["DocketError", "NewProject", "Project"]
+
+
+def __getattr__(name: str) -> Any:
+    # NewProject lives with the build code, which needs pandas: load it only when asked for.
+    if name == "NewProject":
+        from .build import NewProject
+        return NewProject
+    raise AttributeError(name)

@@ -9,14 +9,16 @@ from __future__ import annotations
 import sqlite3
 import threading
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from . import decisions as log
 from . import queue, store
-from .build import Built, NewProject, Progress, build
 from .errors import DocketError
 from .refit import RefitResult, refit
 from .types import LABELS, Decision, FieldComparison, FieldSpec, PairCard, QueueItem
+
+if TYPE_CHECKING:  # building needs pandas; opening a project does not
+    from .build import Built, NewProject, Progress
 
 ROLES = ("reviewer", "adjudicator")
 
@@ -41,6 +43,7 @@ class Project:
     @staticmethod
     def create(spec: NewProject, progress: Progress | None = None,
                cancel: threading.Event | None = None) -> Built:
+        from .build import build
         return build(spec, progress, cancel)
 
     def close(self) -> None:

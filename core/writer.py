@@ -8,7 +8,6 @@ from collections.abc import Callable
 from typing import Any
 
 import numpy as np
-import sqlite_utils
 
 from . import queue, store
 from .model import FSModel
@@ -18,6 +17,8 @@ BATCH = 50_000
 
 
 def write_records(conn: sqlite3.Connection, table: str, frame: Any, id_column: str) -> None:
+    import sqlite_utils  # pulls in pandas: only building a project needs it
+
     db = sqlite_utils.Database(conn)
     rows = frame.reset_index()
     rows.columns = [id_column, *frame.columns]

@@ -99,3 +99,18 @@ def test_busy_timeout_lets_two_connections_write(sample_project: Path) -> None:
         a.decide(x.pair_id, "maya", "match")
         b.decide(y.pair_id, "ravi", "non-match")
         assert len(a.decisions()) == 2
+
+
+def test_registered_migrations_upgrade_an_older_file(sample_project: Path, monkeypatch) -> None:
+    from docket.core import store
+
+    def add_column(conn: sqlite3.Connection) -> None:
+        conn.execute("ALTER TABLE reviewers ADD COLUMN email TEXT")
+
+    monkeypatch.setattr(store, "SCHEMA_VERSION", 2)
+    monkeypatch.setitem(store.MIGRATIONS, 2, ("reviewer e-mail", add_column))
+    with Project.open(sample_project) as p:
+        conn = p.connection
+        assert conn.execute("PRAGMA user_version").fetchone()[0] == 2
+        assert [r[0] for r in conn.execute("SELECT version FROM migrations ORDER BY 1")] == [1, 2]
+        assert "email" in [r[1] for r in conn.execute("PRAGMA table_info(reviewers)")]
