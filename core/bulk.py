@@ -71,17 +71,11 @@ def read_rows(project: Project, path: Path) -> list[BulkRow]:
 
 def apply_rows(project: Project, reviewer: str, rows: list[BulkRow], role: str = "reviewer"
                ) -> int:
-    conn = project.connection
-    conn.execute("BEGIN IMMEDIATE")
-    try:
+    with project.transaction() as conn:
         conn.execute("INSERT OR IGNORE INTO reviewers VALUES (?, ?, ?)",
                      (reviewer, role, store.now()))
         for r in rows:
             prior = log.current_of(conn, r.pair_id, reviewer, role)
             log.append(conn, r.pair_id, reviewer, r.label, r.note, 0.0,
                        None if prior is None else prior.decision_id, role)
-        conn.execute("COMMIT")
-    except BaseException:
-        conn.execute("ROLLBACK")
-        raise
     return len(rows)

@@ -8,6 +8,8 @@ from __future__ import annotations
 
 import sqlite3
 import threading
+from collections.abc import Iterator
+from contextlib import contextmanager
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
@@ -68,6 +70,24 @@ class Project:
     def connection(self) -> sqlite3.Connection:
         """For modules of the core that read the store directly (agreement, export)."""
         return self._conn
+
+    @contextmanager
+    def reading(self) -> Iterator[sqlite3.Connection]:
+        """The connection, serialised with every other call on this project object."""
+        with self._lock:
+            yield self._conn
+
+    @contextmanager
+    def transaction(self) -> Iterator[sqlite3.Connection]:
+        """One write transaction: committed when the block ends, rolled back on any error."""
+        with self._lock:
+            self._conn.execute("BEGIN IMMEDIATE")
+            try:
+                yield self._conn
+                self._conn.execute("COMMIT")
+            except BaseException:
+                self._conn.execute("ROLLBACK")
+                raise
 
     # -- reviewers ---------------------------------------------------------------------------
     def ensure_reviewer(self, name: str, role: str = "reviewer") -> None:
@@ -232,34 +252,20 @@ class Project:
         """Append a decision and commit it before returning."""
         if label not in LABELS:
             raise DocketError(f"unknown label '{label}'; use one of {', '.join(LABELS)}")
-        with self._lock:
-            prior = log.current_of(self._conn, pair_id, reviewer, role)
-            self._conn.execute("BEGIN IMMEDIATE")
-            try:
-                self._conn.execute("INSERT OR IGNORE INTO reviewers VALUES (?, ?, ?)",
-                                   (reviewer, role, store.now()))
-                d = log.append(self._conn, pair_id, reviewer, label, note, seconds,
-                               None if prior is None else prior.decision_id, role)
-                self._conn.execute("COMMIT")
-            except BaseException:
-                self._conn.execute("ROLLBACK")
-                raise
-        return d
+        with self.transaction() as conn:
+            prior = log.current_of(conn, pair_id, reviewer, role)
+            conn.execute("INSERT OR IGNORE INTO reviewers VALUES (?, ?, ?)",
+                         (reviewer, role, store.now()))
+            return log.append(conn, pair_id, reviewer, label, note, seconds,
+                              None if prior is None else prior.decision_id, role)
 
     def undo(self, reviewer: str, role: str = "reviewer") -> Decision | None:
         """Retract the reviewer's latest standing label; returns the retracted decision."""
-        with self._lock:
-            last = log.latest_of(self._conn, reviewer, role)
-            if last is None:
-                return None
-            self._conn.execute("BEGIN IMMEDIATE")
-            try:
-                log.append(self._conn, last.pair_id, reviewer, None, "", 0.0,
-                           last.decision_id, last.role)
-                self._conn.execute("COMMIT")
-            except BaseException:
-                self._conn.execute("ROLLBACK")
-                raise
+        with self.transaction() as conn:
+            last = log.latest_of(conn, reviewer, role)
+            if last is not None:
+                log.append(conn, last.pair_id, reviewer, None, "", 0.0, last.decision_id,
+                           last.role)
         return last
 
     def current_label(self, pair_id: int, reviewer: str,

@@ -121,6 +121,9 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--fresh", action="store_true", help="rebuild the demo project from scratch")
     p.add_argument("--no-open", action="store_true", help="build only; do not open the screen")
     p.add_argument("--reviewer", metavar="NAME", help="who reviews (default: your user name)")
+
+    from .cli_team import register as register_team
+    register_team(sub)
     return parser
 
 

@@ -112,8 +112,10 @@ def status(args: argparse.Namespace) -> int:
 
 
 def next_pairs(args: argparse.Namespace) -> int:
+    reviewer = default_reviewer(args.reviewer)
     with _open(args.project) as project:
-        items = project.next_pairs(default_reviewer(args.reviewer), max(0, args.n))
+        project.ensure_reviewer(reviewer)
+        items = project.next_pairs(reviewer, max(0, args.n))
     if args.json:
         print(json.dumps([i.to_dict() for i in items], indent=2, ensure_ascii=False))
         return 0
@@ -193,6 +195,12 @@ def demo(args: argparse.Namespace) -> int:
         with progress_bar() as update:
             built = Project.create(spec, progress=update)
         _print_built(built)
+        from .cli_team import DEMO_SECOND_REVIEWER, apply_second_reviewer
+        with Project.open(spec.path) as project:
+            n = apply_second_reviewer(project, sample_dir() / "second_reviewer.csv",
+                                      adjudicator=args.reviewer)
+        print(f"second reviewer {DEMO_SECOND_REVIEWER}: {n:,} labels on overlap pairs; "
+              f"{default_reviewer(args.reviewer)} is an adjudicator")
     if args.no_open:
         return status(argparse.Namespace(project=str(spec.path), json=False))
     return _run_review(spec.path, default_reviewer(args.reviewer), [])

@@ -1,0 +1,95 @@
+"""Adjudication: who may settle a pair, which pairs wait for it, and the settling itself.
+
+An adjudication is a decision in the role 'adjudicator', with its reason stored as the
+decision's note, so the log shows how every adjudicated gold label was reached. Which pairs
+wait, and what becomes gold, is the policy of ``core.gold``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from . import gold
+from .errors import DocketError
+from .project import Project
+from .types import LABELS, Decision
+
+
+@dataclass(frozen=True)
+class Review:
+    """One standing label on a pair, as the adjudication screen lists it.
+
+    ``seconds`` is all the time this person spent on the pair in that role, retracted
+    decisions included. ``own`` flags the adjudicator's own earlier reviewer label, which they
+    are then asked to settle. Entries with role 'adjudicator' are standing adjudications: a
+    hold that left the pair waiting, or a final label someone may overrule.
+    """
+
+    reviewer: str
+    label: str
+    note: str
+    seconds: float
+    decided_at: str
+    own: bool
+    role: str = "reviewer"
+
+
+def is_adjudicator(project: Project, name: str) -> bool:
+    with project.reading():
+        row = project.connection.execute("SELECT role FROM reviewers WHERE name = ?",
+                                         (name.strip(),)).fetchone()
+    return row is not None and row[0] == "adjudicator"
+
+
+def require_adjudicator(project: Project, name: str) -> None:
+    if not name.strip():
+        raise DocketError("adjudication needs a name; pass --reviewer NAME")
+    if not is_adjudicator(project, name):
+        raise DocketError(f"{name.strip()} is not an adjudicator of {project.path}, and only "
+                          f"adjudicators may settle pairs; add one with 'docket reviewers "
+                          f"{project.path} add {name.strip()} --role adjudicator'")
+
+
+def queue(project: Project, extra: set[int] | None = None) -> list[tuple[int, str]]:
+    """(pair_id, why) for the pairs waiting for an adjudicator; see gold.needs_adjudication."""
+    with project.reading():
+        return gold.needs_adjudication(project.connection, extra)
+
+
+def reviews_of(project: Project, pair_id: int, adjudicator: str) -> list[Review]:
+    """Every standing label on the pair: reviewers' first, then adjudications; each by time."""
+    with project.reading():
+        rows = project.connection.execute(
+            "SELECT d.reviewer, d.label, d.note, d.decided_at, d.role, ("
+            "  SELECT coalesce(sum(s.seconds), 0) FROM decisions s WHERE s.pair_id = d.pair_id "
+            "  AND s.reviewer = d.reviewer AND s.role = d.role) "
+            "FROM current_labels d WHERE d.pair_id = ? "
+            "ORDER BY d.role = 'adjudicator', d.decided_at, d.reviewer", (pair_id,)).fetchall()
+    name = adjudicator.strip()
+    return [Review(reviewer, label, note or "", float(seconds), decided_at,
+                   reviewer == name and role == "reviewer", role)
+            for reviewer, label, note, decided_at, role, seconds in rows]
+
+
+def adjudicate(project: Project, pair_id: int, adjudicator: str, label: str, reason: str,
+               seconds: float = 0.0) -> Decision:
+    """Record the final label with its reason; a hold leaves the pair waiting."""
+    require_adjudicator(project, adjudicator)
+    if label not in LABELS:
+        raise DocketError(f"unknown label '{label}'; use one of {', '.join(LABELS)}")
+    reason = (reason or "").strip()
+    if not reason:
+        raise DocketError("an adjudication needs a short reason; say why this label")
+    with project.reading():
+        exists = project.connection.execute("SELECT 1 FROM pairs WHERE pair_id = ?",
+                                            (pair_id,)).fetchone()
+    if exists is None:
+        raise DocketError(f"no pair {pair_id} in {project.path}")
+    return project.decide(pair_id, adjudicator.strip(), label, reason, seconds,
+                          role="adjudicator")
+
+
+def undo(project: Project, adjudicator: str) -> Decision | None:
+    """Retract this adjudicator's latest standing adjudication; None when there is none."""
+    require_adjudicator(project, adjudicator)
+    return project.undo(adjudicator.strip(), role="adjudicator")

@@ -1,0 +1,232 @@
+"""Reviewers of a project, and how far they agree.
+
+``reviewers`` holds who may work on the project and in which role: a reviewer labels pairs, an
+adjudicator may also settle them. Agreement is computed from the standing reviewer labels
+(``current`` with role 'reviewer'); adjudications never count as a rating, since an
+adjudicator decides after seeing everyone's labels.
+"""
+
+from __future__ import annotations
+
+from collections import Counter
+from dataclasses import dataclass
+from typing import Any
+
+from . import store
+from .errors import DocketError
+from .project import ROLES, Project
+
+SE_KIND = ("Fleiss, Cohen & Everitt (1969) large-sample non-null standard error (SAS 'ASE', "
+           "Stata kapci); se0 is the standard error under kappa = 0")
+CI_KIND = "kappa ± 1.959964 × se, not clipped to [-1, 1]"
+BAND_CONVENTION = ("Landis & Koch (1977), edges closed upper-inclusively: kappa < 0 Poor; "
+                   "0 ≤ kappa ≤ 0.20 Slight; 0.20 < kappa ≤ 0.40 Fair; 0.40 < kappa ≤ 0.60 "
+                   "Moderate; 0.60 < kappa ≤ 0.80 Substantial; 0.80 < kappa ≤ 1 Almost perfect")
+DS_MAX_ITER = 1000
+HOLD_CONVENTION = {
+    False: "kappa over match / non-match on pairs both reviewers decided; a hold counts as no "
+           "rating, and each reviewer's hold rate on the pairs in common is reported beside it",
+    True: "hold counted as a third category beside match and non-match",
+}
+
+
+# -- reviewers -----------------------------------------------------------------------------
+@dataclass(frozen=True)
+class ReviewerChange:
+    """What ``add_reviewer`` did: ``before`` is the earlier role, None for a new name."""
+
+    name: str
+    role: str
+    before: str | None
+
+    @property
+    def changed(self) -> bool:
+        return self.before != self.role
+
+    @property
+    def message(self) -> str:
+        if self.before is None:
+            return f"added {self.name} as {self.role}"
+        if self.before == self.role:
+            return f"{self.name} is already {self.role}; nothing changed"
+        return f"{self.name}: role changed from {self.before} to {self.role}"
+
+
+def clean_name(name: str) -> str:
+    name = (name or "").strip()
+    if not name:
+        raise DocketError("a reviewer needs a name; give one, e.g. 'add maya'")
+    if any(not ch.isprintable() for ch in name):
+        raise DocketError(f"reviewer name {name!r} holds control characters; use plain text")
+    return name
+
+
+def add_reviewer(project: Project, name: str, role: str = "reviewer") -> ReviewerChange:
+    """Register ``name`` in ``role``; an existing reviewer's role is changed (and said so)."""
+    name = clean_name(name)
+    if role not in ROLES:
+        raise DocketError(f"unknown role '{role}'; use reviewer or adjudicator")
+    with project.transaction() as conn:
+        row = conn.execute("SELECT role FROM reviewers WHERE name = ?", (name,)).fetchone()
+        if row is None:
+            conn.execute("INSERT INTO reviewers VALUES (?, ?, ?)", (name, role, store.now()))
+        elif row[0] != role:
+            conn.execute("UPDATE reviewers SET role = ? WHERE name = ?", (role, name))
+    return ReviewerChange(name, role, None if row is None else row[0])
+
+
+def list_reviewers(project: Project) -> list[dict[str, Any]]:
+    """Everyone registered (or with decisions), by name: role, added_at and their work so far.
+
+    ``labels`` and ``holds`` count standing reviewer labels, ``adjudications`` standing
+    adjudicator labels; ``seconds`` is the time spent over every label decision they made,
+    retracted ones included (the time was spent all the same).
+    """
+    conn = project.connection
+    with project.reading():
+        people = {name: {"name": name, "role": role, "added_at": added}
+                  for name, role, added in conn.execute("SELECT name, role, added_at "
+                                                        "FROM reviewers")}
+        for (name,) in conn.execute("SELECT DISTINCT reviewer FROM decisions"):
+            people.setdefault(name, {"name": name, "role": "reviewer", "added_at": None})
+        counts = {(r, role, label): n for r, role, label, n in conn.execute(
+            "SELECT reviewer, role, label, count(*) FROM current GROUP BY reviewer, role, label")}
+        seconds = dict(conn.execute("SELECT reviewer, sum(seconds) FROM decisions "
+                                    "WHERE label IS NOT NULL GROUP BY reviewer"))
+    out = []
+    for name in sorted(people):
+        mine = {k: n for k, n in counts.items() if k[0] == name}
+        out.append({**people[name],
+                    "labels": sum(n for (_, role, _), n in mine.items() if role == "reviewer"),
+                    "holds": mine.get((name, "reviewer", "hold"), 0),
+                    "adjudications": sum(n for (_, role, _), n in mine.items()
+                                         if role == "adjudicator"),
+                    "seconds": round(float(seconds.get(name) or 0.0), 3)})
+    return out
+
+
+# -- agreement -----------------------------------------------------------------------------
+def labels_by_reviewer(project: Project) -> dict[str, dict[int, str]]:
+    """reviewer -> pair_id -> standing label, reviewer role only; reviewers in name order."""
+    out: dict[str, dict[int, str]] = {}
+    with project.reading():
+        rows = project.connection.execute(
+            "SELECT reviewer, pair_id, label FROM current WHERE role = 'reviewer' "
+            "ORDER BY reviewer, pair_id").fetchall()
+    for reviewer, pair_id, label in rows:
+        out.setdefault(reviewer, {})[int(pair_id)] = label
+    return out
+
+
+def _pair_entry(r: Any) -> dict[str, Any]:
+    c, pb = r.cohen, r.pabak
+    return {
+        "reviewer_a": r.reviewer_a, "reviewer_b": r.reviewer_b, "n_common": r.n_common,
+        "n": r.n, "observed": c.observed, "expected": c.expected, "kappa": c.kappa,
+        "se": c.se, "se0": c.se0, "z": c.z, "ci_low": c.ci_low, "ci_high": c.ci_high,
+        "band": c.band, "pabak": pb.pabak, "prevalence_index": pb.prevalence_index,
+        "bias_index": pb.bias_index,
+        "confusion": {"rows": r.reviewer_a, "columns": r.reviewer_b,
+                      "categories": list(r.categories), "table": r.table},
+        "hold_rate_a": r.hold_rate_a, "hold_rate_b": r.hold_rate_b,
+    }
+
+
+def _majority(votes: list[str]) -> str | None:
+    top = Counter(votes).most_common()
+    return top[0][0] if len(top) == 1 or top[0][1] > top[1][1] else None
+
+
+def _dawid_skene(labels: dict[str, dict[int, str]], categories: tuple[str, ...]
+                 ) -> dict[str, Any] | None:
+    from .dawid_skene import dawid_skene
+
+    ratings = [(pid, name, label) for name, given in labels.items()
+               for pid, label in given.items() if label in categories]
+    if not ratings:
+        return None
+    # Mostly single-rated pairs make EM slow to settle; the default 200 rounds can fall short.
+    fit = dawid_skene(ratings, categories, max_iter=DS_MAX_ITER)
+    votes: dict[int, list[str]] = {}
+    for pid, _, label in ratings:
+        votes.setdefault(pid, []).append(label)
+    differs, ties = [], 0
+    for pid in sorted(votes):
+        major = _majority(votes[pid])
+        if major is None:
+            ties += 1
+        elif fit.labels[pid] != major:
+            differs.append(pid)
+    m, nm = categories.index("match"), categories.index("non-match")
+    return {
+        "categories": list(categories), "iterations": fit.iterations,
+        "converged": fit.converged, "log_likelihood": fit.log_likelihood,
+        "priors": fit.priors, "units": len(votes),
+        "units_rated_twice": sum(len(v) >= 2 for v in votes.values()),
+        "reviewers": {name: {"sensitivity": conf[m][m], "specificity": conf[nm][nm],
+                             "confusion": conf}
+                      for name, conf in fit.confusion.items()},
+        "differs_from_majority": len(differs), "differs_pairs": differs,
+        "no_majority": ties,
+        "posterior_matches": sum(v == "match" for v in fit.labels.values()),
+        "pairs": {pid: {"label": fit.labels[pid], "p_match": round(fit.posteriors[pid]["match"], 6)}
+                  for pid in sorted(votes)},
+    }
+
+
+def agreement_report(project: Project, include_hold: bool = False) -> dict[str, Any]:
+    """Everything ``docket agreement`` prints, as JSON-ready data (NaN becomes None).
+
+    ``reviewer_pairs``: Cohen's kappa, its SE and 95 % CI, PABAK with the prevalence and bias
+    indices, the confusion matrix (rows reviewer_a) and hold rates, for every two reviewers
+    with pairs in common. ``overall``: Fleiss' kappa on the pairs with the modal number of
+    ratings, and Krippendorff's alpha (nominal) on all pairs. ``dawid_skene``: each reviewer's
+    sensitivity P(says match | match) and specificity P(says non-match | non-match) from the
+    fitted confusion matrices (with hold included, the latent classes include hold too), and
+    how many pairs' most probable class differs from the reviewers' strict majority; its
+    ``pairs`` holds each rated pair's most probable class and posterior P(match).
+    """
+    from .agreement import DECIDED, WITH_HOLD, json_ready, overall_agreement, pairwise_agreement
+
+    labels = labels_by_reviewer(project)
+    categories = WITH_HOLD if include_hold else DECIDED
+    pairs = pairwise_agreement(labels, include_hold)
+    overall = overall_agreement(labels, include_hold)
+    return json_ready({
+        "project": str(project.path),
+        "name": project.meta.get("name"),
+        "include_hold": include_hold,
+        "categories": list(categories),
+        "conventions": {"se": SE_KIND, "ci": CI_KIND, "bands": BAND_CONVENTION,
+                        "holds": HOLD_CONVENTION[include_hold],
+                        "ratings": "standing reviewer labels; adjudications are not ratings"},
+        "reviewers": {name: {"labels": len(given),
+                             "holds": sum(v == "hold" for v in given.values())}
+                      for name, given in labels.items()},
+        "reviewer_pairs": [_pair_entry(r) for r in pairs],
+        "overall": overall.to_dict(),
+        "dawid_skene": _dawid_skene(labels, categories),
+    })
+
+
+def disagreements(project: Project, a: str, b: str) -> list[dict[str, Any]]:
+    """Pairs both reviewers labelled differently (a hold against a label counts), by pair id."""
+    if a == b:
+        raise DocketError(f"give two different reviewers, not {a} twice")
+    with project.reading():
+        known = {r for (r,) in project.connection.execute(
+            "SELECT DISTINCT reviewer FROM current WHERE role = 'reviewer'")}
+        for name in (a, b):
+            if name not in known:
+                raise DocketError(f"{name} has no standing labels in {project.path}; "
+                                  "see 'docket reviewers PROJECT list'")
+        rows = project.connection.execute(
+            "SELECT p.pair_id, p.left_id, p.right_id, x.label, x.note, y.label, y.note "
+            "FROM current_labels x JOIN current_labels y ON y.pair_id = x.pair_id "
+            "JOIN pairs p ON p.pair_id = x.pair_id "
+            "WHERE x.reviewer = ? AND x.role = 'reviewer' AND y.reviewer = ? "
+            "AND y.role = 'reviewer' AND x.label <> y.label ORDER BY p.pair_id",
+            (a, b)).fetchall()
+    return [{"pair_id": int(pid), "left_id": left, "right_id": right, "reviewer_a": a,
+             "label_a": la, "note_a": na or "", "reviewer_b": b, "label_b": lb,
+             "note_b": nb or ""} for pid, left, right, la, na, lb, nb in rows]

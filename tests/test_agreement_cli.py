@@ -1,0 +1,94 @@
+"""The CLI end to end: two reviewers' decisions entered with ``docket label`` reproduce the
+2x2 worked example's kappa in ``docket agreement``."""
+
+from __future__ import annotations
+
+import json
+import sqlite3
+from pathlib import Path
+
+import pytest
+from statsmodels.stats.inter_rater import cohens_kappa
+
+from .team_support import run
+
+# Wikipedia "Cohen's kappa", 50 grant proposals: rows reviewer A, columns reviewer B, categories
+# (match, non-match) for (Yes, No). The table and p_o = 0.70 [S via the howcodex mirror]; the
+# Wikipedia text itself is from memory (checks.md §1a).
+TABLE = [[20, 5], [10, 15]]
+CELLS = (("match", "match"), ("match", "non-match"), ("non-match", "match"),
+         ("non-match", "non-match"))
+
+
+def enter(project: Path, tmp_path: Path, extra: dict[str, list[tuple[int, str]]] | None = None
+          ) -> list[int]:
+    with sqlite3.connect(project) as conn:
+        ids = [r[0] for r in conn.execute("SELECT pair_id FROM pairs ORDER BY pair_id LIMIT 60")]
+    rows: dict[str, list[tuple[int, str]]] = {"ana": [], "ben": []}
+    at = 0
+    for (la, lb), n in zip(CELLS, [c for row in TABLE for c in row], strict=True):
+        for pid in ids[at:at + n]:
+            rows["ana"].append((pid, la))
+            rows["ben"].append((pid, lb))
+        at += n
+    for name, more in (extra or {}).items():
+        rows[name] += more
+    for name, given in rows.items():
+        source = tmp_path / f"{name}.csv"
+        source.write_text("pair_id,label,note\n" + "".join(f"{p},{lab},\n" for p, lab in given),
+                          encoding="utf-8")
+        assert run(["label", str(project), "--reviewer", name, "--from", str(source)]) == 0
+    return ids
+
+
+def test_label_then_agreement_reproduces_the_worked_example(
+        sample_project: Path, tmp_path: Path, capsys) -> None:
+    enter(sample_project, tmp_path)
+    capsys.readouterr()
+    assert run(["agreement", str(sample_project), "--json"]) == 0
+    report = json.loads(capsys.readouterr().out)
+    (pair,) = report["reviewer_pairs"]
+    assert (pair["reviewer_a"], pair["reviewer_b"], pair["n"]) == ("ana", "ben", 50)
+    assert pair["confusion"]["table"] == TABLE
+    assert pair["observed"] == pytest.approx(0.70)  # [S via howcodex mirror], checks.md §1a
+    assert pair["expected"] == pytest.approx(0.50)  # checks.md §1a
+    assert pair["kappa"] == pytest.approx(0.4000, abs=5e-5)  # checks.md §1a [S]
+    # FCE (1969) non-null ASE 0.1270, CI 0.1511-0.6489 [C] (statsmodels), checks.md §1c
+    assert pair["se"] == pytest.approx(0.1270, abs=5e-5)
+    assert (pair["ci_low"], pair["ci_high"]) == (pytest.approx(0.1511, abs=5e-5),
+                                                 pytest.approx(0.6489, abs=5e-5))
+    assert pair["se0"] == pytest.approx(0.1386, abs=5e-5)  # null SE [C], checks.md §1c
+    reference = cohens_kappa(TABLE)  # statsmodels, the reference library checks.md names
+    assert pair["se"] == pytest.approx(reference.std_kappa, rel=1e-9)
+    # PABAK 0.4000, prevalence index 0.10, bias index -0.10: checks.md §8, formulas [S]
+    # (Statalist 2013-07 msg01157)
+    assert pair["pabak"] == pytest.approx(0.4000)
+    assert pair["prevalence_index"] == pytest.approx(0.10)
+    assert pair["bias_index"] == pytest.approx(-0.10)
+    assert pair["band"] == "Fair"  # 0.20 < 0.40 <= 0.40, the upper-inclusive convention
+    assert report["overall"]["fleiss_units"] == 50
+    assert report["dawid_skene"]["units"] == 50
+
+    assert run(["agreement", str(sample_project)]) == 0
+    out = capsys.readouterr().out
+    assert "ana × ben: 50 pairs used of 50 in common" in out
+    assert "Cohen's kappa 0.4000  SE 0.1270  95% CI 0.1511 – 0.6489  (Fair)" in out
+    assert "Fleiss, Cohen & Everitt (1969)" in out and "Landis & Koch" in out
+
+
+def test_holds_are_left_out_by_default_and_counted_on_request(
+        sample_project: Path, tmp_path: Path, capsys) -> None:
+    with sqlite3.connect(sample_project) as conn:
+        spare = conn.execute("SELECT pair_id FROM pairs ORDER BY pair_id LIMIT 1 OFFSET 55"
+                             ).fetchone()[0]
+    enter(sample_project, tmp_path, {"ana": [(spare, "hold")], "ben": [(spare, "match")]})
+    capsys.readouterr()
+    assert run(["agreement", str(sample_project), "--json"]) == 0
+    (pair,) = json.loads(capsys.readouterr().out)["reviewer_pairs"]
+    assert (pair["n_common"], pair["n"]) == (51, 50)
+    assert pair["kappa"] == pytest.approx(0.4000, abs=5e-5)  # checks.md §1a [S]
+    assert pair["hold_rate_a"] == pytest.approx(1 / 51) and pair["hold_rate_b"] == 0
+    assert run(["agreement", str(sample_project), "--json", "--include-hold"]) == 0
+    (pair,) = json.loads(capsys.readouterr().out)["reviewer_pairs"]
+    assert pair["n"] == 51 and pair["confusion"]["categories"] == ["match", "non-match", "hold"]
+    assert pair["confusion"]["table"] == [[20, 5, 0], [10, 15, 0], [1, 0, 0]]

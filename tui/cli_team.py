@@ -1,0 +1,208 @@
+"""The team commands: ``reviewers``, ``agreement`` and ``merge``; and the demo's second reviewer.
+
+Argument parsing and printing only; the work is done by ``docket.core.team``,
+``docket.core.merge`` and ``docket.core.bulk``.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+from pathlib import Path
+from typing import Any
+
+from .cli import _command
+from .commands import _open, default_reviewer
+
+DEMO_SECOND_REVIEWER = "ines"
+
+
+def register(sub: argparse._SubParsersAction) -> None:
+    p = _command(sub, "reviewers", "Add reviewers and adjudicators to a project, or list them.",
+                 "add NAME registers a reviewer (--role adjudicator: one who may also settle "
+                 "pairs in adjudication); adding an existing name changes its role. A name used "
+                 "with review, next or label is registered as a reviewer on first use; "
+                 "adjudicators are added here.\nlist shows each person's role, standing labels, "
+                 "holds, adjudications and time spent.",
+                 "docket reviewers vets.docket add ines --role adjudicator", reviewers)
+    p.add_argument("project")
+    actions = p.add_subparsers(dest="action", metavar="ACTION", required=True)
+    a = actions.add_parser("add", help="register a reviewer or change their role",
+                           description="Register a reviewer, or change an existing one's role.")
+    a.add_argument("name")
+    a.add_argument("--role", choices=["reviewer", "adjudicator"], default="reviewer",
+                   help="default reviewer")
+    b = actions.add_parser("list", help="list reviewers with their work so far",
+                           description="List reviewers with their role and work so far.")
+    b.add_argument("--json", action="store_true", help="machine-readable output")
+
+    p = _command(sub, "agreement", "Show how far the reviewers agree.",
+                 "For every two reviewers with pairs in common: Cohen's kappa with its standard "
+                 "error (Fleiss, Cohen & Everitt 1969, non-null) and 95% CI, PABAK with the "
+                 "prevalence and bias indices, the confusion matrix, the Landis & Koch band and "
+                 "hold rates. Over all reviewers: Fleiss' kappa and Krippendorff's alpha "
+                 "(nominal). Dawid-Skene: each reviewer's sensitivity and specificity.\nBy "
+                 "default kappa is over match / non-match on pairs both decided; --include-hold "
+                 "counts hold as a third category.",
+                 "docket agreement vets.docket --json", agreement)
+    p.add_argument("project")
+    p.add_argument("--json", action="store_true", help="machine-readable output")
+    p.add_argument("--include-hold", action="store_true",
+                   help="count hold as a third category")
+
+    p = _command(sub, "merge", "Bring in decisions made offline in copies of this project.",
+                 "Each OTHER must be a copy of the same project (same records and candidate "
+                 "pairs); it is opened read-only. Merging twice changes nothing, and the order "
+                 "of the files does not matter. All files are checked before anything is "
+                 "written; then the model is refit.",
+                 "docket merge vets.docket laptop-ines.docket laptop-maya.docket", merge)
+    p.add_argument("project")
+    p.add_argument("others", nargs="+", metavar="OTHER", help="a copy of the project")
+
+
+# -- reviewers -----------------------------------------------------------------------------
+def _duration(seconds: float) -> str:
+    s = round(seconds)
+    return f"{s // 3600}:{s % 3600 // 60:02d}:{s % 60:02d}"
+
+
+def reviewers(args: argparse.Namespace) -> int:
+    from docket.core.team import add_reviewer, list_reviewers
+    if args.action == "add":
+        with _open(args.project) as project:
+            change = add_reviewer(project, args.name, args.role)
+        print(change.message)
+        return 0
+    with _open(args.project, readonly=True) as project:
+        people = list_reviewers(project)
+    if args.json:
+        print(json.dumps(people, indent=2, ensure_ascii=False))
+        return 0
+    if not people:
+        print("no reviewers yet; add one with 'docket reviewers PROJECT add NAME'")
+        return 0
+    print(f"{'name':<18} {'role':<12} {'labels':>7} {'holds':>6} {'adjudicated':>11} "
+          f"{'time':>9}  added")
+    for r in people:
+        print(f"{r['name']:<18} {r['role']:<12} {r['labels']:>7,} {r['holds']:>6,} "
+              f"{r['adjudications']:>11,} {_duration(r['seconds']):>9}  "
+              f"{(r['added_at'] or '—')[:19].replace('T', ' ')}")
+    return 0
+
+
+# -- agreement -----------------------------------------------------------------------------
+def _num(value: float | None, digits: int = 4) -> str:
+    return "—" if value is None else f"{value:.{digits}f}"
+
+
+def _pct(value: float | None) -> str:
+    return "—" if value is None else f"{100 * value:.1f}%"
+
+
+def _print_pair(r: dict[str, Any]) -> None:
+    a, b = r["reviewer_a"], r["reviewer_b"]
+    print(f"{a} × {b}: {r['n']:,} pairs used of {r['n_common']:,} in common")
+    print(f"  Cohen's kappa {_num(r['kappa'])}  SE {_num(r['se'])}  95% CI "
+          f"{_num(r['ci_low'])} – {_num(r['ci_high'])}  ({r['band']})")
+    print(f"  observed {_num(r['observed'])}  chance {_num(r['expected'])}  PABAK "
+          f"{_num(r['pabak'])}  prevalence index {_num(r['prevalence_index'])}  bias index "
+          f"{_num(r['bias_index'])}")
+    print(f"  holds: {a} {_pct(r['hold_rate_a'])}, {b} {_pct(r['hold_rate_b'])}")
+    conf = r["confusion"]
+    cats = conf["categories"]
+    width = max(len(c) for c in cats) + 2
+    print(f"  confusion (rows {a}, columns {b}):")
+    print(f"    {'':<{width}}" + "".join(f"{c:>11}" for c in cats))
+    for cat, row in zip(cats, conf["table"], strict=True):
+        print(f"    {cat:<{width}}" + "".join(f"{n:>11,}" for n in row))
+
+
+def print_agreement(report: dict[str, Any]) -> None:
+    names = list(report["reviewers"])
+    if not names:
+        print(f"agreement · {report['name']} · no reviewer labels yet")
+        return
+    print(f"agreement · {report['name']} · {len(names)} reviewer(s): " + ", ".join(
+        f"{n} {v['labels']:,} labels" for n, v in report["reviewers"].items()))
+    print(f"({report['conventions']['holds']})")
+    if not report["reviewer_pairs"]:
+        print("\nno two reviewers have pairs in common yet")
+    for r in report["reviewer_pairs"]:
+        print()
+        _print_pair(r)
+    o = report["overall"]
+    print("\nall reviewers")
+    if o["fleiss_units"]:
+        print(f"  Fleiss' kappa {_num(o['fleiss_kappa'])} ({o['fleiss_band']}) on "
+              f"{o['fleiss_units']:,} pairs with {o['fleiss_raters']} ratings each")
+    else:
+        print("  Fleiss' kappa — (no pair has two ratings yet)")
+    print(f"  Krippendorff's alpha (nominal) {_num(o['krippendorff_alpha'])} on "
+          f"{o['alpha_units']:,} pairs with two or more ratings")
+    ds = report["dawid_skene"]
+    if ds:
+        state = "converged" if ds["converged"] else "not converged"
+        print(f"\nDawid-Skene ({ds['iterations']} EM iterations, {state}; "
+              f"{ds['units']:,} pairs, {ds['units_rated_twice']:,} rated by two or more)")
+        print(f"  {'reviewer':<18} {'sensitivity':>11} {'specificity':>11}")
+        for name, v in ds["reviewers"].items():
+            print(f"  {name:<18} {_num(v['sensitivity'], 3):>11} {_num(v['specificity'], 3):>11}")
+        print(f"  posterior label differs from the reviewers' majority on "
+              f"{ds['differs_from_majority']:,} pair(s); {ds['no_majority']:,} pair(s) tied")
+    c = report["conventions"]
+    print(f"\nSE: {c['se']}.\nCI: {c['ci']}.\nbands: {c['bands']}.")
+
+
+def agreement(args: argparse.Namespace) -> int:
+    from docket.core.team import agreement_report
+    with _open(args.project, readonly=True) as project:
+        report = agreement_report(project, include_hold=args.include_hold)
+    if args.json:
+        print(json.dumps(report, indent=2, ensure_ascii=False))
+    else:
+        print_agreement(report)
+    return 0
+
+
+# -- merge ---------------------------------------------------------------------------------
+def merge(args: argparse.Namespace) -> int:
+    from docket.core.merge import merge as merge_files
+    with _open(args.project) as project:
+        result = merge_files(project, [Path(p) for p in args.others])
+        refit = project.refit() if result.added else None
+    for f in result.files:
+        print(f"  {f.path}: {f.decisions:,} decisions, {f.new:,} new")
+    if not result.added:
+        print(f"nothing new: every decision in these files is already in {args.project}")
+        return 0
+    who = ", ".join(f"{n} {k:,}" for n, k in result.by_reviewer.items())
+    print(f"brought {result.added:,} decisions into {args.project} ({who}) on "
+          f"{result.pairs_touched:,} pairs")
+    if result.new_reviewers:
+        print("new reviewers: " + ", ".join(result.new_reviewers))
+    for name in result.unconfirmed_adjudicators:
+        print(f"note: {name} adjudicated in a copy but is not an adjudicator here; confirm with "
+              f"'docket reviewers {args.project} add {name} --role adjudicator'")
+    if refit is not None:
+        print(f"refit: ranker {refit.ranker}, {refit.labels:,} labelled pairs used")
+    return 0
+
+
+# -- demo ----------------------------------------------------------------------------------
+def apply_second_reviewer(project: Any, csv_path: Path, name: str = DEMO_SECOND_REVIEWER,
+                          adjudicator: str | None = None) -> int:
+    """Record the demo's second reviewer's labels and make the demo user an adjudicator.
+
+    Returns the number of labels recorded; 0 when ``name`` already has decisions (a demo
+    project opened again). No refit: the demo user should meet these overlap pairs near the
+    top of their queue, where the generator picked them.
+    """
+    from docket.core.bulk import apply_rows, read_rows
+    from docket.core.team import add_reviewer
+    user = default_reviewer(adjudicator)
+    if user != name:
+        add_reviewer(project, user, "adjudicator")
+    if project.connection.execute("SELECT 1 FROM decisions WHERE reviewer = ? LIMIT 1",
+                                  (name,)).fetchone():
+        return 0
+    return apply_rows(project, name, read_rows(project, Path(csv_path)))
