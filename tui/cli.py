@@ -93,15 +93,28 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--reviewer", required=True, metavar="NAME")
     p.add_argument("--from", dest="source", required=True, metavar="FILE")
 
-    p = _command(sub, "export", "Write a project's pairs out.",
+    p = _command(sub, "export", "Write a project's pairs, gold labels or clusters out.",
                  "scores: every candidate pair with per-field similarities, match weight, "
-                 "probability and the predicted label at the project's threshold.",
-                 "docket export vets.docket --what scores -o scores.parquet", commands.export)
+                 "probability and the predicted label at the project's threshold.\n"
+                 "gold: the gold labels, how each was decided, reviewers, audit flag and "
+                 "inclusion probability.\ntraining: gold plus both records and the "
+                 "similarities, with a stable train/test split (--for-lm: text for a language "
+                 "model, JSON lines).\nclusters: record id -> cluster id from gold matches; "
+                 "conflicts: clusters that hold a gold non-match.",
+                 "docket export vets.docket --what training -o training.parquet", commands.export)
     p.add_argument("project")
-    p.add_argument("--what", choices=["scores"], default="scores")
+    p.add_argument("--what", choices=["scores", "gold", "training", "clusters", "conflicts"],
+                   default="scores")
     p.add_argument("-o", "--output", required=True, metavar="FILE|-",
                    help="file (.csv, .parquet, .jsonl) or - for standard output")
     p.add_argument("--format", choices=["csv", "parquet", "jsonl"])
+    p.add_argument("--test-share", type=float, default=0.2, metavar="SHARE",
+                   help="training: share in the test split (default 0.2)")
+    p.add_argument("--seed", type=int, default=0, help="training: seed of the split (default 0)")
+    p.add_argument("--for-lm", action="store_true",
+                   help="gold or training: pairs as text, JSON lines, for a language model")
+    p.add_argument("--all-records", action="store_true",
+                   help="clusters: every record, singletons too")
 
     p = _command(sub, "review", "Open the review screen on a reviewer's queue.",
                  "Keys: s match, d non-match, h hold, z undo, e note, [ ] history, / find, "
@@ -122,8 +135,10 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--no-open", action="store_true", help="build only; do not open the screen")
     p.add_argument("--reviewer", metavar="NAME", help="who reviews (default: your user name)")
 
+    from .cli_gold import register as register_gold
     from .cli_team import register as register_team
     register_team(sub)
+    register_gold(sub)
     return parser
 
 

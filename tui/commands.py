@@ -143,7 +143,14 @@ def label(args: argparse.Namespace) -> int:
 
 def export(args: argparse.Namespace) -> int:
     from docket.core.exporting import output_format, scores_frame, write_frame
-    output_format(args.output, args.format)  # a bad target fails before any work
+    if not (args.for_lm and args.output == "-"):
+        output_format(args.output, args.format)  # a bad target fails before any work
+    if args.what != "scores":
+        from . import cli_gold
+        with _open(args.project, readonly=True) as project:
+            result = cli_gold.export_other(project, args.what, args)
+        cli_gold.write_export(result, args.output, args.format)
+        return 0
     with _open(args.project, readonly=True) as project:
         frame = scores_frame(project)
     write_frame(frame, args.output, args.format)

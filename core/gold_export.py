@@ -1,0 +1,315 @@
+"""Gold labels out: the gold table, a training set, language-model records, clusters, conflicts.
+
+Every frame here is built from the gold labels under the project's policy (``core.gold``), so
+pairs on hold or in disagreement never leave the project as if they were settled.
+
+The train/test split is a seeded hash of the pair id alone (``split_of``): a pair keeps its side
+however many labels arrive later, however files are merged, and whatever other pairs are
+relabelled. Each label gets the test share in expectation, independently of the other label;
+an exact per-label count would have to move pairs between sides as labels arrive, which would
+leak earlier test pairs into later training runs.
+"""
+
+from __future__ import annotations
+
+import json
+import re
+import sys
+from collections.abc import Iterable
+from dataclasses import asdict, dataclass
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+from . import clusters as clustering
+from . import queue, store
+from .errors import DocketError
+from .gold import gold_labels, needs_adjudication
+from .project import Project
+
+GOLD_COLUMNS = ("pair_id", "left_id", "right_id", "label", "how", "reviewers", "n_reviews",
+                "audit", "audit_stratum", "inclusion_probability")
+SPLIT_SALT = 0x7E57_5917  # keeps the split's hash stream apart from the overlap and the audit
+MISSING = "(missing)"
+LM_INSTRUCTION = ("Do Record A and Record B describe the same real-world entity? "
+                  "Answer match or non-match.")
+LEFT, RIGHT = "L:", "R:"  # link mode: the two sides share no id space once clustered
+
+
+# -- gold ---------------------------------------------------------------------------------------
+def gold_frame(project: Project) -> pd.DataFrame:
+    """One row per gold-labelled pair, by pair id.
+
+    ``how`` is unanimous, adjudicated or single; ``reviewers`` is ';'-joined. ``audit_stratum``
+    and ``inclusion_probability`` are set only for pairs of the audit slice: a pair the queue
+    chose by uncertainty has no known probability of having been chosen.
+    """
+    golds = gold_labels(project.connection)
+    rows = {pid: (a, b, audit, stratum, inc) for pid, a, b, audit, stratum, inc in
+            project.connection.execute(
+                "SELECT pair_id, left_id, right_id, audit, stratum, inclusion FROM pairs "
+                "WHERE pair_id IN (SELECT pair_id FROM current)")}
+    records = []
+    for g in golds:
+        a, b, audit, stratum, inc = rows[g.pair_id]
+        records.append((g.pair_id, a, b, g.label, g.how, ";".join(g.reviewers), g.n_reviews,
+                        bool(audit), stratum if audit else None, inc if audit else None))
+    frame = pd.DataFrame.from_records(records, columns=list(GOLD_COLUMNS))
+    return frame.astype({"pair_id": "int64", "n_reviews": "int64", "audit": "bool",
+                         "audit_stratum": "Int64", "inclusion_probability": "float64",
+                         **{c: "object" for c in ("left_id", "right_id", "label", "how",
+                                                  "reviewers")}})
+
+
+def split_of(pair_ids: Iterable[int] | np.ndarray, test_share: float = 0.2,
+             seed: int = 0) -> np.ndarray:
+    """'train' or 'test' per pair: a pure function of pair id and seed (see the module notes)."""
+    if not 0.0 <= test_share < 1.0:
+        raise DocketError(f"--test-share {test_share}: give a share from 0 up to (not) 1")
+    ids = np.asarray(list(pair_ids) if not isinstance(pair_ids, np.ndarray) else pair_ids,
+                     dtype=np.int64)
+    u = queue.unit_hash(ids, (int(seed) * 0x9E3779B1) ^ SPLIT_SALT)
+    return np.where(u < test_share, "test", "train").astype(object)
+
+
+# -- training -----------------------------------------------------------------------------------
+def _records(project: Project, side: str, ids: Iterable[str]) -> pd.DataFrame:
+    """Records of one side, indexed by id, every column as stored (text or None)."""
+    table = "right_records" if side == "right" and project.link else "left_records"
+    key = project.meta["right_id_column" if table == "right_records" else "left_id_column"]
+    wanted = sorted(set(ids))
+    if not wanted:
+        cols = [r[1] for r in project.connection.execute(f"PRAGMA table_info({table})")]
+        return pd.DataFrame(columns=[c for c in cols if c != key])
+    parts = []
+    for start in range(0, len(wanted), 900):  # stay under SQLite's bound-parameter limit
+        chunk = wanted[start:start + 900]
+        parts.append(pd.read_sql_query(
+            f"SELECT * FROM {table} WHERE {store.quote(key)} IN ({','.join('?' * len(chunk))})",
+            project.connection, params=chunk))
+    frame = pd.concat(parts, ignore_index=True).set_index(key)
+    return frame.astype(object).where(frame.notna(), None)
+
+
+def _prefixed(frame: pd.DataFrame, prefix: str, taken: set[str]) -> pd.DataFrame:
+    names = {}
+    for col in frame.columns:
+        name = f"{prefix}{col}"
+        while name in taken:  # a record column called "id" must not overwrite left_id
+            name += "_"
+        taken.add(name)
+        names[col] = name
+    return frame.rename(columns=names)
+
+
+def training_frame(project: Project, test_share: float = 0.2, seed: int = 0) -> pd.DataFrame:
+    """Gold rows plus ``split``, the per-field similarities and both records' columns.
+
+    Similarity columns are ``sim_<field>`` (None where a side is missing); record columns are
+    ``left_<column>`` and ``right_<column>``, every column of the record but its id.
+    """
+    gold = gold_frame(project)
+    gold.insert(4, "split", split_of(gold["pair_id"].to_numpy(), test_share, seed))
+    sim_names = [f"sim_{f.name}" for f in project.fields]
+    sims = pd.read_sql_query(
+        f"SELECT pair_id, {', '.join(store.similarity_column(f.name) for f in project.fields)} "
+        "FROM pairs WHERE pair_id IN (SELECT pair_id FROM current)", project.connection)
+    sims = sims.astype({c: "float64" for c in sim_names})
+    out = gold.merge(sims, on="pair_id", how="left")
+    taken = set(out.columns)
+    for side in ("left", "right"):
+        recs = _records(project, side, out[f"{side}_id"])
+        recs = _prefixed(recs, f"{side}_", taken)
+        out = out.join(recs, on=f"{side}_id")
+    return out.reset_index(drop=True)
+
+
+# -- language-model records ---------------------------------------------------------------------
+def _clean(value: object) -> str:
+    if value is None or (isinstance(value, float) and np.isnan(value)):
+        return MISSING
+    text = re.sub(r"\s+", " ", str(value)).strip()
+    return text or MISSING
+
+
+def serialise_pair(names: list[str], left: list[object], right: list[object]) -> str:
+    """The pair as text: 'Record A: owner: …; pet: …' then 'Record B: …' on a second line.
+
+    Both records use the same field names, in the same order, so a model compares like with
+    like; whitespace inside a value is collapsed so that a value never breaks the layout.
+    """
+    a = "; ".join(f"{n}: {_clean(v)}" for n, v in zip(names, left, strict=True))
+    b = "; ".join(f"{n}: {_clean(v)}" for n, v in zip(names, right, strict=True))
+    return f"Record A: {a}\nRecord B: {b}"
+
+
+def lm_records(project: Project, test_share: float = 0.2, seed: int = 0,
+               instruction: str = LM_INSTRUCTION) -> list[dict[str, Any]]:
+    """One dict per gold pair: pair_id, instruction, input (the serialised pair), label, split.
+
+    The compared fields are serialised under docket's field names, left record as A.
+    """
+    gold = gold_frame(project)
+    left = _records(project, "left", gold["left_id"])
+    right = _records(project, "right", gold["right_id"])
+    names = [f.name for f in project.fields]
+    splits = split_of(gold["pair_id"].to_numpy(), test_share, seed)
+    out = []
+    for row, split in zip(gold.itertuples(index=False), splits, strict=True):
+        a = [left.at[row.left_id, f.left_column] for f in project.fields]
+        b = [right.at[row.right_id, f.right_column] for f in project.fields]
+        out.append({"pair_id": int(row.pair_id), "instruction": instruction,
+                    "input": serialise_pair(names, a, b), "label": row.label, "split": split})
+    return out
+
+
+def write_jsonl(records: list[dict[str, Any]], target: str) -> None:
+    """JSON lines to a file (atomically, via a temporary beside it) or '-' for stdout."""
+    lines = "".join(json.dumps(r, ensure_ascii=False) + "\n" for r in records)
+    if target == "-":
+        sys.stdout.write(lines)
+        return
+    path = Path(target)
+    tmp = path.with_name(f".{path.name}.partial")
+    try:
+        tmp.write_text(lines, encoding="utf-8")
+        tmp.replace(path)
+    except OSError as exc:
+        tmp.unlink(missing_ok=True)
+        raise DocketError(f"{target}: cannot write ({exc.strerror or exc})") from None
+
+
+# -- clusters and conflicts ---------------------------------------------------------------------
+@dataclass(frozen=True)
+class ClusterConflict:
+    """A cluster of gold matches that holds a gold non-match between two of its members."""
+
+    cluster: int
+    members: tuple[tuple[str, str], ...]  # (side, record id); side is "" in dedupe mode
+    non_match_pairs: tuple[int, ...]  # the gold non-matches inside the cluster
+    match_pairs: tuple[int, ...]  # the gold matches that hold the cluster together
+
+    def to_dict(self) -> dict[str, Any]:
+        return asdict(self)
+
+
+@dataclass(frozen=True)
+class _State:
+    cluster_of: dict[str, int]
+    conflicts: list[clustering.Conflict]
+    match_pairs: dict[int, list[int]]  # cluster -> gold match pair ids
+    non_match_ids: dict[tuple[str, str], int]  # sorted node pair -> pair id
+
+
+def _node(project: Project, side: str, record_id: str) -> str:
+    if not project.link:
+        return record_id
+    return (LEFT if side == "left" else RIGHT) + record_id
+
+
+def _unnode(project: Project, node: str) -> tuple[str, str]:
+    if not project.link:
+        return "", node
+    return ("left" if node.startswith(LEFT) else "right"), node[len(LEFT):]
+
+
+def _state(project: Project, all_records: bool = False) -> _State:
+    gold = gold_frame(project)
+    ends = [(int(p), _node(project, "left", a), _node(project, "right", b), lab)
+            for p, a, b, lab in gold[["pair_id", "left_id", "right_id", "label"]]
+            .itertuples(index=False)]
+    nodes = {n for _, a, b, _ in ends for n in (a, b)}
+    if all_records:
+        key = store.quote(project.meta["left_id_column"])
+        nodes |= {_node(project, "left", r) for (r,) in
+                  project.connection.execute(f"SELECT {key} FROM left_records")}
+        if project.link:
+            key = store.quote(project.meta["right_id_column"])
+            nodes |= {_node(project, "right", r) for (r,) in
+                      project.connection.execute(f"SELECT {key} FROM right_records")}
+    matches = [(a, b) for _, a, b, lab in ends if lab == "match"]
+    non = [(a, b) for _, a, b, lab in ends if lab == "non-match"]
+    cluster_of = clustering.clusters(nodes, matches)
+    by_cluster: dict[int, list[int]] = {}
+    for p, a, _, lab in ends:
+        if lab == "match":
+            by_cluster.setdefault(cluster_of[a], []).append(p)
+    non_ids = {(min(a, b), max(a, b)): p for p, a, b, lab in ends if lab == "non-match"}
+    return _State(cluster_of, clustering.conflicts(cluster_of, non), by_cluster, non_ids)
+
+
+def clusters_frame(project: Project, all_records: bool = False) -> pd.DataFrame:
+    """Record id -> cluster id over the connected components of the gold matches.
+
+    By default the records named by some gold label; with ``all_records`` every record (the
+    rest are singletons). Link mode adds ``side`` (left or right): the same id may occur on
+    both sides and name different records. ``cluster_size`` counts members; ``conflict`` marks
+    a cluster that holds a gold non-match.
+    """
+    state = _state(project, all_records)
+    sizes = pd.Series(list(state.cluster_of.values())).value_counts().to_dict()
+    bad = {c.cluster for c in state.conflicts}
+    rows = []
+    for node, c in state.cluster_of.items():
+        side, rid = _unnode(project, node)
+        rows.append((side, rid, c, int(sizes[c]), c in bad))
+    frame = pd.DataFrame.from_records(
+        rows, columns=["side", "record_id", "cluster", "cluster_size", "conflict"])
+    frame = frame.astype({"side": "object", "record_id": "object", "cluster": "int64",
+                          "cluster_size": "int64", "conflict": "bool"})
+    frame = frame.sort_values(["cluster", "side", "record_id"], kind="stable")
+    if not project.link:
+        frame = frame.drop(columns="side")
+    return frame.reset_index(drop=True)
+
+
+def conflicts(project: Project) -> list[ClusterConflict]:
+    """Clusters of gold matches that contain a gold non-match, by cluster id."""
+    state = _state(project)
+    return [ClusterConflict(
+        c.cluster, tuple(_unnode(project, m) for m in c.members),
+        tuple(sorted(state.non_match_ids[pair] for pair in c.non_matches)),
+        tuple(sorted(state.match_pairs.get(c.cluster, []))))
+        for c in state.conflicts]
+
+
+def conflict_pairs(project: Project) -> set[int]:
+    """Pair ids of the gold non-matches that a chain of gold matches contradicts."""
+    return {p for c in conflicts(project) for p in c.non_match_pairs}
+
+
+def conflicts_frame(project: Project) -> pd.DataFrame:
+    """The conflicts listing: one row per contradicted gold non-match."""
+    gold = gold_frame(project).set_index("pair_id")
+    rows = []
+    for c in conflicts(project):
+        for p in c.non_match_pairs:
+            rows.append((c.cluster, p, gold.at[p, "left_id"], gold.at[p, "right_id"],
+                         len(c.members), ";".join(map(str, c.match_pairs))))
+    frame = pd.DataFrame.from_records(rows, columns=["cluster", "pair_id", "left_id",
+                                                     "right_id", "cluster_size",
+                                                     "match_pairs"])
+    return frame.astype({"cluster": "int64", "pair_id": "int64", "cluster_size": "int64",
+                         "left_id": "object", "right_id": "object", "match_pairs": "object"})
+
+
+def conflict_queue_pairs(project: Project) -> set[int]:
+    """The pairs a conflict sends to adjudication.
+
+    The contradicted non-matches first; once an adjudicator has confirmed every non-match of
+    a cluster, the chain of matches is what must be wrong, so its matches not yet adjudicated
+    go instead. Without that step a confirmed conflict would leave the queue unresolved.
+    """
+    how = dict(gold_frame(project)[["pair_id", "how"]].itertuples(index=False))
+    out: set[int] = set()
+    for c in conflicts(project):
+        open_ = {p for p in c.non_match_pairs if how.get(p) != "adjudicated"}
+        out |= open_ or {p for p in c.match_pairs if how.get(p) != "adjudicated"}
+    return out
+
+
+def adjudication_queue(project: Project) -> list[tuple[int, str]]:
+    """``core.gold.needs_adjudication`` with the cluster conflicts added ("cluster conflict")."""
+    return needs_adjudication(project.connection, extra=conflict_queue_pairs(project))

@@ -1,0 +1,206 @@
+"""``docket evaluate`` and the gold-label exports of ``docket export``.
+
+Argument parsing and printing only: the figures come from ``docket.core.evaluate`` and the
+frames from ``docket.core.gold_export``.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from typing import Any
+
+EXPORTS = ("gold", "training", "clusters", "conflicts")
+
+
+def _shares(text: str) -> list[float]:
+    try:
+        return [float(t) for t in text.split(",") if t.strip()]
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r}: give numbers separated by commas, "
+                                         "e.g. 0.5,0.9,0.99") from None
+
+
+def register(sub: argparse._SubParsersAction) -> None:
+    """Add ``docket evaluate`` to the command's sub-parsers."""
+    from .cli import _command
+    p = _command(
+        sub, "evaluate", "Estimate precision, recall and F1 from the audit slice.",
+        "Design-based (Horvitz-Thompson) estimates with 95% confidence intervals at a range of "
+        "thresholds, from the gold labels of the audit slice only. The naive figure from all "
+        "gold labels is shown beside them, marked biased: the queue picks uncertain pairs "
+        "first. Recall is within the candidate pairs; matches that blocking never paired are "
+        "outside it.\n\nWith --predictions, any matcher's output (left_id, right_id and a "
+        "score or a label column) is judged the same way and scored as a machine rater "
+        "(Cohen's kappa against the gold labels).",
+        "docket evaluate vets.docket --target-precision 0.95", evaluate)
+    p.add_argument("project")
+    p.add_argument("--json", action="store_true", help="machine-readable output")
+    p.add_argument("--predictions", metavar="FILE",
+                   help="a matcher's output to evaluate (CSV, Parquet, JSONL)")
+    p.add_argument("--threshold", type=float, metavar="T",
+                   help="with --predictions: the score at which a pair is a predicted match "
+                        "(default: the project's threshold)")
+    p.add_argument("--thresholds", type=_shares, metavar="T,T,...",
+                   help="thresholds for the table (default 0.1 ... 0.9, 0.95, 0.99 and the "
+                        "project's)")
+    goal = p.add_mutually_exclusive_group()
+    goal.add_argument("--target-precision", type=float, metavar="P",
+                      help="suggest the lowest threshold whose estimated precision reaches P")
+    goal.add_argument("--target-recall", type=float, metavar="R",
+                      help="suggest the highest threshold whose estimated recall reaches R")
+
+
+def evaluate(args: argparse.Namespace) -> int:
+    from docket.core import Project
+    from docket.core.evaluate import evaluate as model_report
+    from docket.core.evaluate import evaluate_predictions
+    with Project.open(args.project, readonly=True) as project:
+        if args.predictions:
+            report = evaluate_predictions(project, args.predictions, args.threshold,
+                                          args.thresholds, args.target_precision,
+                                          args.target_recall)
+        else:
+            if args.threshold is not None:
+                from docket.core import DocketError
+                raise DocketError("--threshold goes with --predictions; the project's own "
+                                  "threshold is set at 'docket new'")
+            report = model_report(project, args.thresholds, args.target_precision,
+                                  args.target_recall)
+        name = project.meta.get("name") or project.path.stem
+    if args.json:
+        print(json.dumps(report, indent=2, ensure_ascii=False))
+        return 0
+    print("\n".join(render(report, name)))
+    return 0
+
+
+# -- human output -------------------------------------------------------------------------------
+def _iv(d: dict[str, Any]) -> str:
+    if d.get("value") is None:
+        return f"{'—':<22}"
+    if d.get("low") is None:
+        return f"{d['value']:.3f}{'':<17}"
+    return f"{d['value']:.3f} [{d['low']:.3f}, {d['high']:.3f}]"
+
+
+def _row(e: dict[str, Any], mark: str) -> str:
+    return (f"{mark} {e['threshold']:>8.4g}  {_iv(e['precision']):<24}{_iv(e['recall']):<24}"
+            f"{_iv(e['f1']):<24}{e['predicted_positives']:>12,.0f}")
+
+
+def _short(e: dict[str, Any]) -> str:
+    return (f"precision {_iv(e['precision']).strip()}, recall {_iv(e['recall']).strip()}, "
+            f"F1 {_iv(e['f1']).strip()}")
+
+
+def render(report: dict[str, Any], name: str) -> list[str]:
+    """The evaluation as lines of text: table, suggestion, naive line, scope, machine rater."""
+    a = report["audit"]
+    conf = f"{report['confidence']:.0%}"
+    out = [f"{name} · quality from the audit slice: {a['labelled']:,} of {a['drawn']:,} drawn "
+           f"pairs have gold labels ({a['matches']:,} matches); {conf} intervals",
+           f"score: {report['model']['score']}; decision threshold {report['threshold']:g}", ""]
+    head = f"{'precision':<24}{'recall':<24}{'F1':<24}{'predicted':>12}"
+    out.append(f"{'threshold':>10}  {head}")
+    for e in report["estimates"]:
+        out.append(_row(e, "*" if e["threshold"] == report["threshold"] else " "))
+    first = report["at_threshold"]
+    out.append(f"  * decision threshold. Intervals: precision and recall "
+               f"{first['precision']['method']}, F1 {first['f1']['method']}; estimated "
+               f"predicted matches among {first['n_pairs']:,} candidate pairs.")
+    s = report["suggested"]
+    if s is not None:
+        if s["threshold"] is None:
+            out.append(f"suggested threshold: none — {s['note']}")
+        else:
+            out.append(f"suggested threshold: {s['threshold']:.4g} for {s['target']} ≥ "
+                       f"{s['goal']:g}: {_short(s['estimate'])} ({s['note']})")
+    elif report["best_f1"] is not None:
+        b = report["best_f1"]
+        out.append(f"suggested threshold: {b['threshold']:g} (highest estimated F1 in the table, "
+                   f"{b['f1']:.3f}); pass --target-precision or --target-recall to aim at one")
+    n = report["naive_at_threshold"]
+    out.append(f"naive, BIASED by the queue order ({report['gold_labels']:,} gold labels, "
+               f"unweighted) at {n['threshold']:g}: {_short(n)}")
+    notes = [t for t in first["note"].split("; ") if t]
+    out += [f"note at {first['threshold']:g}: {t}" for t in notes]
+    sc = report["scope"]
+    b = sc["blocking"]
+    out += ["", f"{sc['note']}."]
+    if b.get("candidate_pairs") is not None:
+        out.append(f"blocking reach: {b['candidate_pairs']:,} candidate pairs of "
+                   f"{b['possible_pairs']:,} possible (reduction ratio "
+                   f"{b['reduction_ratio']:.4f})")
+    for rule, k in b.get("pairs_per_rule", {}).items():
+        out.append(f"  {rule:<40} {k:>12,} pairs")
+    if "machine_rater" in report:
+        out += ["", *_machine_lines(report)]
+    return out
+
+
+def _machine_lines(report: dict[str, Any]) -> list[str]:
+    p, m = report["predictions"], report["machine_rater"]
+    out = [f"machine rater {p['file']}: {p['candidate_pairs_given']:,} candidate pairs given "
+           f"({p['column']} column); {p['absent_count_as_non_match']:,} absent pairs count as "
+           f"predicted non-matches"]
+    if p["outside_candidates"]:
+        out.append(f"  {p['outside_candidates']:,} predictions name pairs outside the candidate "
+                   "pairs: not evaluated (no audit stratum holds them)")
+    if m["kappa"] is None:
+        out.append(f"Cohen's kappa against {m['n']:,} gold labels: undefined ({m['band']})")
+    else:
+        out.append(f"Cohen's kappa against {m['n']:,} gold labels: {m['kappa']:.3f} "
+                   f"[{m['ci_low']:.3f}, {m['ci_high']:.3f}] ({m['band']}); observed "
+                   f"agreement {m['observed_agreement']:.3f}")
+    (tp, fp), (fn, tn) = m["table"]
+    out += [f"  {'':<20}{'gold match':>12}{'gold non-match':>16}",
+            f"  {'predicted match':<20}{tp:>12,}{fp:>16,}",
+            f"  {'predicted non-match':<20}{fn:>12,}{tn:>16,}"]
+    return out
+
+
+# -- exports ------------------------------------------------------------------------------------
+def export_other(project: Any, what: str, args: argparse.Namespace) -> Any:
+    """The frame (or, with --for-lm, the list of records) that ``docket export --what`` writes.
+
+    ``what`` is gold, training, clusters or conflicts; ``args`` may carry ``test_share``,
+    ``seed``, ``for_lm`` and ``all_records``.
+    """
+    from docket.core import DocketError
+    from docket.core import gold_export as ge
+    share = getattr(args, "test_share", None)
+    share = 0.2 if share is None else float(share)
+    seed = int(getattr(args, "seed", 0) or 0)
+    if getattr(args, "for_lm", False):
+        if what not in ("gold", "training"):
+            raise DocketError(f"--for-lm goes with --what gold or training, not {what}")
+        return ge.lm_records(project, share, seed)
+    if what == "gold":
+        return ge.gold_frame(project)
+    if what == "training":
+        return ge.training_frame(project, share, seed)
+    if what == "clusters":
+        return ge.clusters_frame(project, bool(getattr(args, "all_records", False)))
+    if what == "conflicts":
+        return ge.conflicts_frame(project)
+    raise DocketError(f"--what {what}: use one of scores, {', '.join(EXPORTS)}")
+
+
+def write_export(result: Any, target: str, fmt: str | None) -> int:
+    """Write what ``export_other`` returned; returns the number of rows written."""
+    from docket.core import DocketError
+    from docket.core.exporting import output_format, write_frame
+    from docket.core.gold_export import write_jsonl
+    if isinstance(result, list):
+        kind = fmt or ("jsonl" if target == "-" else output_format(target, None))
+        if kind != "jsonl":
+            raise DocketError("--for-lm writes JSON lines: give a .jsonl file, or "
+                              "--format jsonl")
+        write_jsonl(result, target)
+    else:
+        write_frame(result, target, fmt)
+    if target != "-":
+        print(f"wrote {len(result):,} rows to {target}", file=sys.stderr)
+    return len(result)
