@@ -1,0 +1,404 @@
+"""Pilot tests for every key of the review screen, against the sample project."""
+
+# ruff: noqa: F811 - pytest fixtures imported from fixtures_review arrive as arguments
+
+from __future__ import annotations
+
+import sqlite3
+import threading
+from pathlib import Path
+
+from docket.core import Project
+from docket.tui.keymap import keymap_path, load_keymap
+from docket.tui.screens import HelpScreen, NoteScreen, PairPicker, ReviewScreen
+from tests.fixtures_review import (  # noqa: F401 - fixtures are used by name
+    FrozenClock,
+    frozen_clock,
+    pilot_test,
+    review_app,
+    review_sample,
+    review_sample_master,
+    screen_text,
+)
+
+SIZE = (120, 40)
+
+
+def rows(path: Path, sql: str, args: tuple = ()) -> list[tuple]:
+    with sqlite3.connect(path) as conn:
+        return conn.execute(sql, args).fetchall()
+
+
+def log(path: Path) -> list[tuple]:
+    return rows(path, "SELECT pair_id, reviewer, label, note, seconds, supersedes FROM decisions "
+                      "ORDER BY decided_at")
+
+
+async def settle(pilot) -> None:
+    await pilot.pause()
+    await pilot.app.workers.wait_for_complete()
+    await pilot.pause()
+
+
+async def press(pilot, *keys: str) -> None:
+    """Press each key and let the screen catch up before the next."""
+    for key in keys:
+        await pilot.press(key)
+        await pilot.pause()
+
+
+def review(app) -> ReviewScreen:
+    assert isinstance(app.screen, ReviewScreen)
+    return app.screen
+
+
+@pilot_test
+async def test_match_non_match_hold_store_label_reviewer_and_time(review_sample, review_app,
+                                                                  frozen_clock: FrozenClock):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        shown = []
+        for key, seconds in (("s", 3.5), ("d", 1.25), ("h", 7.0)):
+            shown.append(review(app).item.pair_id)
+            frozen_clock.advance(seconds)
+            await press(pilot, key)
+        assert review(app).item.pair_id not in shown
+        assert review(app).decided == 3
+    assert log(review_sample) == [
+        (shown[0], "maya", "match", "", 3.5, None),
+        (shown[1], "maya", "non-match", "", 1.25, None),
+        (shown[2], "maya", "hold", "", 7.0, None)]
+
+
+@pilot_test
+async def test_each_decision_is_committed_before_the_next_pair_is_painted(review_sample,
+                                                                         review_app):
+    app = review_app(review_sample)
+    seen: list[int] = []
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        app.on_painted = lambda: seen.append(rows(review_sample,
+                                                  "SELECT count(*) FROM decisions")[0][0])
+        for key in "sdsh":
+            await press(pilot, key)
+    assert seen[:4] == [1, 2, 3, 4]
+
+
+@pilot_test
+async def test_undo_appends_a_retraction_and_brings_the_pair_back(review_sample, review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        first = review(app).item.pair_id
+        await press(pilot, "s")
+        await press(pilot, "z")
+        screen = review(app)
+        assert screen.item.pair_id == first and screen.mode == "aside"
+        assert screen.decided == 0
+        assert "undone" in screen_text(app)
+        await pilot.press("z")  # nothing left to undo: no new row
+        await pilot.pause()
+    entries = log(review_sample)
+    assert len(entries) == 2
+    (pair, _, label, _, _, sup), (pair2, _, label2, _, _, sup2) = entries
+    assert (pair, label, sup) == (first, "match", None)
+    decision_id = rows(review_sample, "SELECT decision_id FROM decisions WHERE label IS NOT NULL")
+    assert (pair2, label2, sup2) == (first, None, decision_id[0][0])
+
+
+@pilot_test
+async def test_note_is_saved_with_the_decision(review_sample, review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await press(pilot, "e")
+        assert isinstance(app.screen, NoteScreen)
+        await press(pilot, *"twins?", "enter")
+        assert review(app).pending_note == "twins?"
+        await press(pilot, "d")
+    assert log(review_sample)[0][2:4] == ("non-match", "twins?")
+
+
+@pilot_test
+async def test_note_on_a_decided_pair_appends_a_decision_with_the_same_label(review_sample,
+                                                                            review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await pilot.press("s")
+        await press(pilot, "left_square_bracket")
+        await press(pilot, "e", *"later: same vet", "enter")
+        assert review(app).mine.note == "later: same vet"
+        await pilot.press("e", "escape")  # cancelling changes nothing
+        await pilot.pause()
+    (a, *_), (b, _, label, note, _, sup) = log(review_sample)
+    assert a == b and (label, note) == ("match", "later: same vet") and sup is not None
+
+
+@pilot_test
+async def test_history_back_forward_and_changing_a_past_decision(review_sample, review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        decided = []
+        for key in "sss":
+            decided.append(review(app).item.pair_id)
+            await press(pilot, key)
+        waiting = review(app).item.pair_id
+        await press(pilot, "left_square_bracket", "left_square_bracket")
+        screen = review(app)
+        assert (screen.mode, screen.item.pair_id, screen.mine.label) == ("history", decided[1],
+                                                                         "match")
+        assert "history 2 of 3" in screen_text(app)
+        await pilot.press("d")  # change it: appends, then steps forward
+        await pilot.pause()
+        assert review(app).item.pair_id == decided[2]
+        await pilot.press("right_square_bracket")  # past the newest: back to the queue
+        await pilot.pause()
+        assert (review(app).mode, review(app).item.pair_id) == ("queue", waiting)
+        assert review(app).decided == 3
+    changed = rows(review_sample, "SELECT label, supersedes IS NOT NULL FROM decisions "
+                                   "WHERE pair_id = ? ORDER BY decided_at", (decided[1],))
+    assert changed == [("match", 0), ("non-match", 1)]
+    with Project.open(review_sample) as project:
+        assert project.current_label(decided[1], "maya").label == "non-match"
+
+
+@pilot_test
+async def test_find_by_pair_id_opens_it_and_deciding_returns_to_the_queue(review_sample,
+                                                                         review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        waiting = review(app).item.pair_id
+        target = 4242 if waiting != 4242 else 4243
+        await press(pilot, "slash")
+        assert isinstance(app.screen, PairPicker)
+        await press(pilot, *str(target), "enter")
+        await press(pilot, "enter")
+        assert (review(app).mode, review(app).item.pair_id) == ("aside", target)
+        await press(pilot, "h")
+        assert (review(app).mode, review(app).item.pair_id) == ("queue", waiting)
+    assert log(review_sample)[0][:3] == (target, "maya", "hold")
+
+
+@pilot_test
+async def test_find_by_text_and_escape_back_to_the_queue(review_sample, review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        waiting = review(app).item.pair_id
+        await press(pilot, "slash", *"Fjelholm", "enter")
+        assert "Fjelholm" in screen_text(app)
+        await press(pilot, "enter")
+        assert review(app).mode == "aside"
+        await press(pilot, "escape")
+        assert (review(app).mode, review(app).item.pair_id) == ("queue", waiting)
+    assert log(review_sample) == []
+
+
+@pilot_test
+async def test_other_candidates_can_be_opened(review_sample, review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        card = review(app).card
+        await press(pilot, "c")
+        assert isinstance(app.screen, PairPicker)
+        assert "left record" in screen_text(app)
+        await press(pilot, "enter")
+        opened = review(app).card
+        assert opened.pair_id != card.pair_id
+        assert card.left_id in (opened.left_id, opened.right_id) or \
+            card.right_id in (opened.left_id, opened.right_id)
+
+
+@pilot_test
+async def test_extra_columns_toggle(review_sample, review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert "not compared" not in screen_text(app)
+        await press(pilot, "x")
+        assert "not compared" in screen_text(app)
+        await press(pilot, "x")
+        assert "not compared" not in screen_text(app)
+
+
+@pilot_test
+async def test_help_lists_every_binding_and_the_caution(review_sample, review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await press(pilot, "question_mark")
+        assert isinstance(app.screen, HelpScreen)
+        text = screen_text(app)
+        for binding in ReviewScreen.BINDINGS:
+            assert binding.id in text, binding.id
+            assert binding.description in text
+        assert "personal data" in text and "private" in text
+        await press(pilot, "escape")
+        assert isinstance(app.screen, ReviewScreen)
+
+
+@pilot_test
+async def test_footer_shows_the_decision_keys(review_sample, review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        text = screen_text(app)
+        for words in ("match", "non-match", "hold", "undo", "note", "find", "help", "quit"):
+            assert words in text
+
+
+@pilot_test
+async def test_quit_and_reopen_resumes_where_the_reviewer_stopped(review_sample, review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        done = []
+        for key in "sd":
+            done.append(review(app).item.pair_id)
+            await press(pilot, key)
+        waiting = review(app).item.pair_id
+        await press(pilot, "q")
+    assert not app.is_running
+    again = review_app(review_sample)
+    async with again.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert review(again).item.pair_id == waiting
+        assert review(again).decided == 2
+
+
+@pilot_test
+async def test_redraw_paints_without_writing(review_sample, review_app):
+    app = review_app(review_sample)
+    painted: list[int] = []
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        app.on_painted = lambda: painted.append(1)
+        before = review(app).item
+        await press(pilot, "ctrl+l")
+        assert painted and review(app).item == before
+    assert log(review_sample) == []
+
+
+@pilot_test
+async def test_blind_another_reviewers_label_and_note_never_show(review_sample, review_app):
+    with Project.open(review_sample) as project:
+        shared = project.connection.execute(
+            "SELECT pair_id FROM pairs WHERE overlap = 1 ORDER BY pair_id LIMIT 1").fetchone()[0]
+        project.decide(shared, "olek", "non-match", "SECRETNOTE", 2.0)
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await press(pilot, "slash", *str(shared), "enter")
+        await press(pilot, "enter")
+        assert review(app).item.pair_id == shared and review(app).mine is None
+        text = screen_text(app)
+        assert "SECRETNOTE" not in text and "olek" not in text
+        assert "you: " not in text and "non-match" not in text.split("s match")[0]
+        await pilot.press("left_square_bracket")  # maya has no history: olek's is not hers
+        await pilot.pause()
+        assert review(app).mode == "aside"
+
+
+@pilot_test
+async def test_keymap_file_remaps_keys(review_sample, review_app, tmp_path):
+    keymap = tmp_path / "keymap.toml"
+    keymap.write_text('match = "m"\nno-such-binding = "k"\n')
+    app = review_app(review_sample, keymap_file=keymap)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert any("no-such-binding" in p for p in app.keymap.problems)
+        await pilot.press("s")  # no longer bound
+        await pilot.pause()
+        assert log(review_sample) == []
+        await press(pilot, "m")
+        assert "m match" in screen_text(app)
+    assert log(review_sample)[0][2] == "match"
+
+
+@pilot_test
+async def test_refit_runs_in_the_background_and_keeps_the_pair_on_screen(review_sample,
+                                                                         review_app):
+    app = review_app(review_sample, refit_every=3)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        for key in "sds":
+            await pilot.press(key)
+        on_screen = review(app).item
+        await settle(pilot)
+        assert review(app).item == on_screen
+        assert "model refit" in review(app).model_note
+    assert rows(review_sample, "SELECT value FROM meta WHERE key = 'refits'") == [("1",)]
+
+
+@pilot_test
+async def test_layout_stacks_when_narrow_and_follows_resizes(review_sample, review_app):
+    from docket.tui.widgets import PairCardView
+
+    app = review_app(review_sample)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        assert app.screen.query_one(PairCardView).stacked
+        await pilot.resize_terminal(140, 40)
+        await pilot.pause()
+        assert not app.screen.query_one(PairCardView).stacked
+        assert " R " not in screen_text(app).split("field")[1][:200]
+
+
+@pilot_test
+async def test_input_is_not_blocked_while_a_refit_runs(review_sample, review_app):
+    app = review_app(review_sample, refit_every=1)
+    release = threading.Event()
+    bg = app.background()
+    real_refit = bg.refit
+
+    def slow_refit():
+        assert release.wait(timeout=30)
+        return real_refit()
+
+    bg.refit = slow_refit  # type: ignore[method-assign]
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        seen = []
+        for key in "sdd":  # the first starts a refit that waits; the others go through
+            seen.append(review(app).item.pair_id)
+            await press(pilot, key)
+        assert review(app).refitting
+        assert len(log(review_sample)) == 3 and len(set(seen)) == 3
+        on_screen = review(app).item
+        release.set()
+        await settle(pilot)
+        assert not review(app).refitting and review(app).item == on_screen
+
+
+@pilot_test
+async def test_theme_change_repaints_with_the_new_theme(review_sample, review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        before = review(app).palette
+        app.theme = "textual-light"
+        await settle(pilot)
+        assert review(app).palette != before
+
+
+def test_keymap_file_forms_and_problems(tmp_path):
+    ids = ["match", "non-match", "find"]
+    path = tmp_path / "keymap.toml"
+    path.write_text('[keymap]\nmatch = ["m", "enter"]\nfind = "ctrl+f"\nnon-match = 3\n')
+    loaded = load_keymap(ids, path)
+    assert loaded.keymap == {"match": "m,enter", "find": "ctrl+f"}
+    assert any("'non-match' needs a key name" in p for p in loaded.problems)
+    path.write_text('match = "x"\nnon-match = "x"\n')
+    assert any("key 'x' is given to match, non-match" in p
+               for p in load_keymap(ids, path).problems)
+    path.write_text("match = \n")
+    broken = load_keymap(ids, path)
+    assert broken.keymap == {} and "not read" in broken.problems[0]
+    assert load_keymap(ids, tmp_path / "absent.toml").problems == []
+    assert keymap_path({"XDG_CONFIG_HOME": "/x"}) == Path("/x/docket/keymap.toml")
+    assert keymap_path({"HOME": "/home/u"}) == Path("/home/u/.config/docket/keymap.toml")

@@ -1,0 +1,132 @@
+"""The review app: ``run_review`` is what ``docket review`` calls; ``make_app`` builds it for tests.
+
+The UI thread owns one connection to the project; refits and full recounts run in thread
+workers on a second connection (``background()``), so input never waits on them. SQLite in
+WAL mode lets the UI keep reading and committing decisions while a refit reads.
+"""
+
+from __future__ import annotations
+
+import gc
+import threading
+import time
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+from pathlib import Path
+
+from textual.app import App
+from textual.binding import Binding
+
+from docket.core.project import Project
+
+from .keymap import LoadedKeymap, load_keymap
+from .masking import Mask
+from .screens.review import ReviewScreen
+
+Clock = Callable[[], float]
+
+
+@dataclass(frozen=True)
+class Recount:
+    """A full count made by a worker on the second connection."""
+
+    decided: int
+    remaining: int
+    counted_at: int  # the app's ``counted`` when the worker started
+    note: str = ""  # what a refit did, for the evidence panel
+
+
+def binding_ids() -> list[str]:
+    """Every binding id that a keymap file may remap."""
+    return [b.id for b in ReviewScreen.BINDINGS if isinstance(b, Binding) and b.id]
+
+
+class ReviewApp(App[None]):
+    """One reviewer, one project, one pair at a time."""
+
+    CSS_PATH = "review.tcss"
+    TITLE = "docket"
+    ENABLE_COMMAND_PALETTE = False
+
+    def __init__(self, project: Project, reviewer: str, mask: Sequence[str] = (), *,
+                 clock: Clock = time.monotonic, refit_every: int | None = None,
+                 keymap_file: Path | None = None) -> None:
+        super().__init__()
+        self.project = project
+        self.reviewer = reviewer
+        self.mask = Mask.of(mask)
+        self.clock = clock
+        every = project.meta.get("refit_every", 25) if refit_every is None else refit_every
+        self.refit_every: int = max(0, int(every))
+        self.keymap: LoadedKeymap = load_keymap(binding_ids(), keymap_file)
+        self.counted = 0  # net change in this reviewer's decided pairs during the session
+        self.on_painted: Callable[[], None] | None = None  # tests and benchmarks: frame is up
+        self._background: Project | None = None
+        self._background_lock = threading.Lock()
+        self._clash_reported = False
+
+    @property
+    def project_name(self) -> str:
+        return str(self.project.meta.get("name") or self.project.path.stem)
+
+    def background(self) -> Project:
+        """The second connection, opened on first use (from a worker thread)."""
+        with self._background_lock:
+            if self._background is None:
+                self._background = Project.open(self.project.path)
+            return self._background
+
+    def recount(self, counted_at: int) -> Recount:
+        """Worker thread: this reviewer's decided and remaining pairs, counted in full."""
+        decided, remaining = self.background().progress(self.reviewer)
+        return Recount(decided, remaining, counted_at)
+
+    def refit(self, counted_at: int) -> Recount:
+        """Worker thread: refit the model and re-rank the queue, then count again."""
+        result = self.background().refit()
+        count = self.recount(counted_at)
+        return Recount(count.decided, count.remaining, counted_at,
+                       f"model refit: {result.labels} labels, {result.ranker}")
+
+    def on_mount(self) -> None:
+        if self.keymap.keymap:
+            self.set_keymap(self.keymap.keymap)
+        for problem in self.keymap.problems:
+            self.notify(problem, title="keymap", severity="warning", markup=False, timeout=8)
+        self.push_screen(ReviewScreen())
+        # Everything built so far (Textual, the project, the first card) lives for the whole
+        # session; moving it out of the collector's reach takes the collector's pauses out of
+        # the key-to-paint time (measured: p99 from ~40 ms to ~20 ms on a busy machine).
+        self.call_after_refresh(gc.freeze)
+
+    def handle_bindings_clash(self, clashed_bindings: set[Binding], node: object) -> None:
+        if not self._clash_reported:
+            self._clash_reported = True
+            ids = ", ".join(sorted(b.id or b.action for b in clashed_bindings))
+            self.notify(f"Two bindings share a key ({ids}); check {self.keymap.path}",
+                        title="keymap", severity="warning", markup=False, timeout=8)
+
+    def on_unmount(self) -> None:
+        with self._background_lock:
+            if self._background is not None:
+                self._background.close()
+                self._background = None
+
+
+def make_app(path: Path | str, reviewer: str, mask: Sequence[str] = (), *,
+             clock: Clock | None = None, refit_every: int | None = None,
+             keymap_file: Path | None = None) -> ReviewApp:
+    """Open the project and build the app (errors such as a missing file raise here)."""
+    project = Project.open(Path(path))
+    project.ensure_reviewer(reviewer)
+    return ReviewApp(project, reviewer.strip(), mask, clock=clock or time.monotonic,
+                     refit_every=refit_every, keymap_file=keymap_file)
+
+
+def run_review(path: Path, reviewer: str, mask: list[str]) -> None:
+    """Open the review screen on ``reviewer``'s queue in ``path`` until they quit."""
+    app = make_app(path, reviewer, mask)
+    try:
+        app.run()
+    finally:
+        app.project.close()

@@ -1,0 +1,89 @@
+"""Remapping keys from a file in the user's config folder.
+
+``$XDG_CONFIG_HOME/docket/keymap.toml`` (``~/.config/docket/keymap.toml`` when the variable
+is not set) maps binding ids to keys, in Textual's key names or as the character itself::
+
+    match = "m"
+    non-match = "n"
+    history-back = "comma"
+    find = "ctrl+f"
+
+A ``[keymap]`` table holding the same lines works too. Several keys for one binding are
+written comma-separated (``"s,enter"``). Problems (unknown ids, wrong types, a file that is
+not TOML) never stop the review: they come back as messages and the defaults stay in place.
+"""
+
+from __future__ import annotations
+
+import os
+import tomllib
+from collections.abc import Iterable
+from dataclasses import dataclass, field
+from pathlib import Path
+
+FILE_NAME = "keymap.toml"
+
+
+@dataclass
+class LoadedKeymap:
+    path: Path
+    keymap: dict[str, str] = field(default_factory=dict)
+    problems: list[str] = field(default_factory=list)
+
+
+def config_dir(environ: dict[str, str] | None = None) -> Path:
+    env = os.environ if environ is None else environ
+    base = env.get("XDG_CONFIG_HOME") or str(Path(env.get("HOME", "~")).expanduser() /
+                                               ".config")
+    return Path(base) / "docket"
+
+
+def keymap_path(environ: dict[str, str] | None = None) -> Path:
+    return config_dir(environ) / FILE_NAME
+
+
+def _keys(value: object) -> str | None:
+    if isinstance(value, str) and value.strip():
+        return ",".join(k.strip() for k in value.split(",") if k.strip())
+    if isinstance(value, list) and value and all(isinstance(v, str) and v.strip()
+                                                  for v in value):
+        return ",".join(v.strip() for v in value)
+    return None
+
+
+def load_keymap(known_ids: Iterable[str], path: Path | None = None) -> LoadedKeymap:
+    """Read the keymap file (if there is one) and keep the entries for known binding ids."""
+    path = keymap_path() if path is None else path
+    loaded = LoadedKeymap(path)
+    if not path.exists():
+        return loaded
+    try:
+        data = tomllib.loads(path.read_text(encoding="utf-8"))
+    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError) as exc:
+        loaded.problems.append(f"{path}: not read ({exc}); using the default keys")
+        return loaded
+    table = data.get("keymap", data) if isinstance(data.get("keymap"), dict) else data
+    known = set(known_ids)
+    for binding_id, value in table.items():
+        if binding_id not in known:
+            loaded.problems.append(f"{path}: no binding '{binding_id}' (known: "
+                                   f"{', '.join(sorted(known))})")
+            continue
+        keys = _keys(value)
+        if keys is None:
+            loaded.problems.append(f"{path}: '{binding_id}' needs a key name such as \"m\" "
+                                   f"or \"ctrl+f\", not {value!r}")
+            continue
+        loaded.keymap[binding_id] = keys
+    clashes = _clashes(loaded.keymap)
+    loaded.problems += [f"{path}: key '{k}' is given to {', '.join(ids)}; only the first works"
+                        for k, ids in clashes.items()]
+    return loaded
+
+
+def _clashes(keymap: dict[str, str]) -> dict[str, list[str]]:
+    owners: dict[str, list[str]] = {}
+    for binding_id, keys in keymap.items():
+        for key in keys.split(","):
+            owners.setdefault(key, []).append(binding_id)
+    return {k: ids for k, ids in owners.items() if len(ids) > 1}

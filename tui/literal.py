@@ -1,0 +1,142 @@
+"""Record values shown as text, never interpreted.
+
+Values reach the screen only as plain characters in a ``rich.text.Text`` (no markup parsing),
+and every character a terminal or the layout could act on is replaced by a visible stand-in:
+C0/C1 control characters (ESC, NUL, TAB, newline...) as ``\\x1b``-style escapes, and format
+characters (BiDi overrides and isolates, zero-width characters, line separators) as
+``⟨U+202E⟩``. Leading and trailing spaces are shown as ``·`` so that they can be seen. Very
+long values are cut at ``CAP`` characters with a marker saying how much was left out.
+"""
+
+from __future__ import annotations
+
+import unicodedata
+from functools import lru_cache
+
+from rich.style import Style, StyleType
+from rich.text import Text
+
+CAP = 600  # characters of one value shown on the pair card
+NAMED = {"\t": "\\t", "\n": "\\n", "\r": "\\r"}
+EDGE_SPACE = "·"
+
+
+@lru_cache(maxsize=4096)
+def stand_in(char: str) -> str | None:
+    """The visible form of a character that must not reach the terminal as is; None if safe."""
+    if char in NAMED:
+        return NAMED[char]
+    code = ord(char)
+    category = unicodedata.category(char)
+    if category == "Cc":
+        return f"\\x{code:02x}"
+    if category in ("Cf", "Zl", "Zp", "Cs", "Co", "Cn") and not _harmless_unassigned(char):
+        return f"⟨U+{code:04X}⟩"
+    return None
+
+
+def _harmless_unassigned(char: str) -> bool:
+    # Unassigned code points ("Cn") in this Python's Unicode table may be assigned later;
+    # only the noncharacters and the specials block are worth flagging.
+    if unicodedata.category(char) != "Cn":
+        return False
+    code = ord(char)
+    return not (0xFDD0 <= code <= 0xFDEF or (code & 0xFFFE) == 0xFFFE or code >= 0xFFF0)
+
+
+def is_plain(value: str) -> bool:
+    """True when no character of ``value`` can need a stand-in (the fast path).
+
+    ``str.isprintable`` is False for every category ``stand_in`` looks at (and for spaces
+    other than U+0020, which then simply take the slow path and are shown as they are).
+    """
+    return value.isprintable()
+
+
+def _style(style: StyleType) -> Style:
+    return Style.parse(style) if isinstance(style, str) else style
+
+
+def visible(value: str) -> str:
+    """``value`` with every unsafe character replaced by its stand-in (no styling)."""
+    if is_plain(value):
+        return value
+    return "".join(stand_in(c) or c for c in value)
+
+
+def edge_spaces(value: str) -> tuple[int, int]:
+    """How many spaces lead and trail ``value`` (a value of only spaces counts as leading)."""
+    lead = len(value) - len(value.lstrip(" "))
+    if lead == len(value):
+        return lead, 0
+    return lead, len(value) - len(value.rstrip(" "))
+
+
+def append_literal(text: Text, value: str, style: StyleType = "",
+                   escape_style: StyleType = "", start: int = 0, edges: tuple[int, int] = (0, 0),
+                   full_length: int | None = None) -> None:
+    """Append ``value`` to ``text`` literally, stand-ins carrying ``escape_style``.
+
+    ``start``, ``edges`` and ``full_length`` let a caller append a value in pieces (one per
+    highlight run) while still marking the leading/trailing spaces of the whole value.
+    """
+    if not value:
+        return
+    total = len(value) if full_length is None else full_length
+    lead, trail = edges
+    escape = _style(style) + _style(escape_style)
+    edge_from = total - trail
+    if is_plain(value) and start >= lead and start + len(value) <= edge_from:
+        text.append(value, style)
+        return
+    run: list[str] = []
+    for offset, char in enumerate(value):
+        pos = start + offset
+        shown = stand_in(char)
+        if shown is None and char == " " and (pos < lead or pos >= edge_from):
+            shown = EDGE_SPACE
+        if shown is None:
+            run.append(char)
+            continue
+        if run:
+            text.append("".join(run), style)
+            run = []
+        text.append(shown, escape)
+    if run:
+        text.append("".join(run), style)
+
+
+def capped(value: str, cap: int = CAP) -> tuple[str, int]:
+    """The part of ``value`` that is shown, and how many characters were left out."""
+    if len(value) <= cap:
+        return value, 0
+    return value[:cap], len(value) - cap
+
+
+def cut_marker(left_out: int) -> str:
+    return f" … [+{left_out:,} characters]"
+
+
+def literal_text(value: str | None, style: StyleType = "", escape_style: StyleType = "bold",
+                 cap: int = CAP, missing: str = "— missing —",
+                 missing_style: StyleType = "italic") -> Text:
+    """A whole value as a ``Text``: escaped, edge spaces marked, capped; None as missing."""
+    text = Text(no_wrap=False, overflow="fold")
+    if value is None:
+        text.append(missing, missing_style)
+        return text
+    shown, left_out = capped(value, cap)
+    lead, trail = edge_spaces(value)
+    append_literal(text, shown, style, escape_style, edges=(lead, 0 if left_out else trail),
+                   full_length=len(shown))
+    if left_out:
+        text.append(cut_marker(left_out), escape_style)
+    return text
+
+
+def one_line(value: str | None, width: int, escape_style: StyleType = "bold") -> Text:
+    """A value squeezed onto one line of at most ``width`` cells (for lists and titles)."""
+    text = literal_text(value, escape_style=escape_style, cap=max(width * 2, 8))
+    text.no_wrap = True
+    text.truncate(width, overflow="ellipsis")
+    return text

@@ -1,0 +1,112 @@
+"""``/`` and ``c``: pick a pair, found by id or text, or among a record's other candidates."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import ClassVar
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import Vertical
+from textual.screen import ModalScreen
+from textual.widgets import Input, OptionList, Static
+from textual.widgets.option_list import Option
+
+from docket.core.project import Project
+
+from .. import literal
+from ..masking import Mask, masked
+from ..widgets.evidence import probability_text
+
+LIMIT = 50
+
+
+@dataclass(frozen=True)
+class Group:
+    """A heading and the pairs under it (for the candidates of one record)."""
+
+    heading: str
+    pair_ids: tuple[int, ...]
+
+
+class PairPicker(ModalScreen[int | None]):
+    """Returns the chosen pair id, or None. Shows only this reviewer's own labels."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("escape", "cancel", "close", id="picker-close")]
+
+    def __init__(self, project: Project, reviewer: str, mask: Mask, *, title: str,
+                 search: bool = True, groups: tuple[Group, ...] = ()) -> None:
+        super().__init__()
+        self.project = project
+        self.reviewer = reviewer
+        self.mask = mask
+        self.title_text = title
+        self.search = search
+        self.groups = groups
+
+    def compose(self) -> ComposeResult:
+        with Vertical(id="picker-box") as box:
+            box.border_title = self.title_text
+            if self.search:
+                yield Input(placeholder="pair id, record id, or text in a record",
+                            id="picker-input")
+            yield OptionList(id="picker-results")
+            yield Static(Text("Enter opens the pair · Escape closes"), id="picker-hint")
+
+    def on_mount(self) -> None:
+        if self.search:
+            self.query_one(Input).focus()
+        else:
+            self._fill(self.groups)
+            self.query_one(OptionList).focus()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        event.stop()
+        found = self.project.find(event.value, limit=LIMIT)
+        heading = (f"{len(found)} pair{'s' if len(found) != 1 else ''}"
+                   + (f" (first {LIMIT})" if len(found) >= LIMIT else ""))
+        self._fill((Group(heading, tuple(found)),))
+        results = self.query_one(OptionList)
+        if found:
+            results.focus()
+
+    def _fill(self, groups: tuple[Group, ...]) -> None:
+        results = self.query_one(OptionList)
+        results.clear_options()
+        options: list[Option] = []
+        for group in groups:
+            options.append(Option(Text(group.heading, "bold"), disabled=True))
+            options += [Option(self._line(pid), id=str(pid)) for pid in group.pair_ids[:LIMIT]]
+        results.add_options(options)
+        first = next((i for i, o in enumerate(options) if not o.disabled), None)
+        if first is not None:
+            results.highlighted = first
+
+    def _line(self, pair_id: int) -> Text:
+        card = self.project.card(pair_id)
+        mine = self.project.current_label(pair_id, self.reviewer)
+        text = Text(f"{pair_id:>7}  ", no_wrap=True, overflow="ellipsis")
+        text.append_text(literal.one_line(card.left_id, 14))
+        text.append(" ↔ ")
+        text.append_text(literal.one_line(card.right_id, 14))
+        text.append(f"  p {probability_text(card.probability)}  ")
+        if card.fields:
+            first = card.fields[0]
+            hide = bool(self.mask) and self.mask.applies(first.field)
+            for value, end in ((first.left, " / "), (first.right, "")):
+                shown = value if value is None or not hide else masked(value)
+                text.append_text(literal.one_line(shown, 18))
+                text.append(end)
+        if mine is not None:
+            text.append(f"  your label: {mine.label}", "italic")
+        return text
+
+    def on_option_list_option_selected(self, event: OptionList.OptionSelected) -> None:
+        event.stop()
+        if event.option.id is not None:
+            self.dismiss(int(event.option.id))
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)

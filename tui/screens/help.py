@@ -1,0 +1,112 @@
+"""``?``: the keys of the review screen, built from its live bindings, and a caution."""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass, replace
+from pathlib import Path
+from typing import ClassVar
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import VerticalScroll
+from textual.screen import ModalScreen, Screen
+from textual.widgets import Static
+
+CAUTION = (
+    "Records may be personal data. Keep the project file private: it holds every record and "
+    "every decision. Do not copy it to shared places, and delete copies you no longer need. "
+    "Decisions made here can merge people's records; when you cannot tell, hold the pair."
+)
+
+HOW = (
+    "Every decision is saved the moment you make it; quitting loses nothing, and reopening "
+    "resumes your queue. Review is blind: other reviewers' labels are never shown. A note is "
+    "saved with your decision on the pair (on a pair you have decided, at once). Changing a "
+    "past decision, or undoing one, adds to the log; nothing is deleted."
+)
+
+
+@dataclass(frozen=True)
+class KeyRow:
+    keys: str
+    description: str
+    binding_id: str
+    tooltip: str
+
+
+def key_rows(screen: Screen, key_display: Callable[[Binding], str],
+             keymap: dict[str, str]) -> list[KeyRow]:
+    """One row per binding of ``screen`` itself, keys as live now (after the keymap).
+
+    Bindings switched off at the moment (such as "back to the queue" while in the queue) are
+    not among the live ones; they are listed from the class with their remapped keys.
+    """
+    own = {b.id for b in type(screen).BINDINGS if isinstance(b, Binding) and b.id}
+    rows: dict[str, KeyRow] = {}
+    for active in screen.active_bindings.values():
+        binding: Binding = active.binding
+        if binding.id not in own or not binding.description:
+            continue
+        bid = binding.id or binding.action
+        shown = key_display(binding)
+        if bid in rows:
+            old = rows[bid]
+            rows[bid] = KeyRow(f"{old.keys} {shown}", old.description, bid, old.tooltip)
+        else:
+            rows[bid] = KeyRow(shown, binding.description, bid, binding.tooltip)
+    for binding in type(screen).BINDINGS:
+        if not isinstance(binding, Binding) or not binding.id or binding.id in rows:
+            continue
+        keys = keymap.get(binding.id, binding.key)
+        shown = " ".join(key_display(replace(binding, key=k)) for k in keys.split(","))
+        rows[binding.id] = KeyRow(shown, binding.description, binding.id, binding.tooltip)
+    order = [b.id for b in type(screen).BINDINGS if isinstance(b, Binding)]
+    return sorted(rows.values(), key=lambda r: order.index(r.binding_id)
+                  if r.binding_id in order else len(order))
+
+
+class HelpScreen(ModalScreen[None]):
+    """Keys, what they do and their ids (for the keymap file), then the caution."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("escape", "close", "close", id="help-close"),
+        Binding("question_mark", "close", "close", show=False, id="help-close-again"),
+        Binding("q", "close", "close", show=False, id="help-close-q"),
+    ]
+
+    def __init__(self, rows: list[KeyRow], keymap_file: Path, problems: list[str]) -> None:
+        super().__init__()
+        self.rows = rows
+        self.keymap_file = keymap_file
+        self.problems = problems
+
+    def compose(self) -> ComposeResult:
+        with VerticalScroll(id="help-box") as box:
+            box.border_title = "help"
+            yield Static(Text(CAUTION, style="bold"), id="help-caution")
+            yield Static(self._keys(), id="help-keys")
+            yield Static(Text(HOW), id="help-how")
+            yield Static(self._keymap(), id="help-keymap")
+
+    def _keys(self) -> Text:
+        text = Text()
+        width = max((len(r.keys) for r in self.rows), default=4) + 2
+        for row in self.rows:
+            text.append(f"{row.keys:<{width}}", "bold")
+            text.append(f"{row.description:<12}")
+            text.append(f" {row.tooltip}\n" if row.tooltip else "\n")
+        return text
+
+    def _keymap(self) -> Text:
+        text = Text("Remap keys in ")
+        text.append(str(self.keymap_file), "bold")
+        text.append(", one line per binding id, for example  match = \"m\"\n")
+        text.append("ids: " + ", ".join(r.binding_id for r in self.rows))
+        for problem in self.problems:
+            text.append("\n" + problem, "italic")
+        return text
+
+    def action_close(self) -> None:
+        self.dismiss(None)

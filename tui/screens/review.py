@@ -1,0 +1,395 @@
+"""The review screen: one candidate pair at a time, decided with one key, saved at once.
+
+Where the pair on screen comes from is the screen's ``mode``: the reviewer's ``queue``; their
+``history`` (walked with ``[`` and ``]``); or ``aside``, a pair opened from find, from another
+record's candidates, or brought back by undo. Deciding a pair always moves on: to the next
+queue pair, the next history pair, or (from aside) back to the queue pair that was left.
+Nothing here holds statistics or SQL; it asks :class:`~docket.core.project.Project` and draws.
+"""
+
+from __future__ import annotations
+
+import sqlite3
+from functools import partial
+from typing import TYPE_CHECKING, ClassVar, Literal
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import Horizontal, VerticalScroll
+from textual.screen import Screen
+from textual.widgets import Footer
+from textual.worker import Worker, WorkerState
+
+from docket.core.errors import DocketError
+from docket.core.types import Decision, PairCard, QueueItem
+
+from ..diff import PLAIN, Palette
+from ..widgets import CardOptions, EvidencePanel, Pace, PairCardView, StatusLine, YourSide
+from ..widgets.pair_card import card_title
+from .find import Group, PairPicker
+from .help import HelpScreen, key_rows
+from .note import NoteScreen
+
+if TYPE_CHECKING:
+    from ..app import Recount, ReviewApp
+
+Mode = Literal["queue", "history", "aside"]
+
+
+class ReviewScreen(Screen[None]):
+    HORIZONTAL_BREAKPOINTS: ClassVar[list[tuple[int, str]] | None] = [
+        (0, "-tiny"), (64, "-narrow"), (110, "-wide")]
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("s", "decide('match')", "match", id="match",
+                tooltip="same entity: record a match"),
+        Binding("d", "decide('non-match')", "non-match", id="non-match",
+                tooltip="different entities: record a non-match"),
+        Binding("h", "decide('hold')", "hold", id="hold",
+                tooltip="cannot tell: hold it for adjudication"),
+        Binding("z", "undo", "undo", id="undo", tooltip="take back your latest decision"),
+        Binding("e", "note", "note", id="note", tooltip="write a note on this pair"),
+        Binding("left_square_bracket", "back", "back", key_display="[", id="history-back",
+                tooltip="step back through your decisions (decide again to change one)"),
+        Binding("right_square_bracket", "forward", "fwd", key_display="]",
+                id="history-forward", tooltip="step forward again, back to the queue"),
+        Binding("slash", "find", "find", key_display="/", id="find",
+                tooltip="find a pair by pair id, record id or text"),
+        Binding("question_mark", "help", "help", key_display="?", id="help",
+                tooltip="this help"),
+        Binding("q", "quit", "quit", id="quit", tooltip="quit (everything is already saved)"),
+        Binding("escape", "to_queue", "queue", id="to-queue",
+                tooltip="leave history or a found pair, back to the queue"),
+        Binding("c", "candidates", "others", id="candidates",
+                tooltip="the other candidate pairs of these two records"),
+        Binding("x", "extra", "columns", id="extra-columns",
+                tooltip="show or hide the columns that are not compared"),
+        Binding("ctrl+l", "redraw", "redraw", show=False, id="redraw",
+                tooltip="paint the screen again"),
+    ]
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.mode: Mode = "queue"
+        self.item: QueueItem | None = None
+        self.card: PairCard | None = None
+        self.mine: Decision | None = None  # this reviewer's own current label on the pair
+        self.pending_note = ""
+        self.parked: QueueItem | None = None  # the queue pair left for history / aside
+        self.trail: list[int] = []  # history pair ids, fixed while walking them
+        self.pos = 0
+        self.where = ""
+        self.shown_at = 0.0
+        self.show_extra = False
+        self.decided: int = 0
+        self.remaining: int | None = None
+        self.since_refit = 0
+        self.refitting = False
+        self.model_note = ""
+        self.palette: Palette = PLAIN
+        self._footer_in_queue = True
+        self._title = ""
+        self._where_shown = ""
+        self._scrolled_for = -1
+
+    @property
+    def review_app(self) -> ReviewApp:
+        return self.app  # type: ignore[return-value]
+
+    # -- building ----------------------------------------------------------------------------
+    def compose(self) -> ComposeResult:
+        yield StatusLine(id="status")
+        with Horizontal(id="body"):
+            with VerticalScroll(id="card-box"):
+                yield PairCardView(id="card")
+            yield EvidencePanel(id="evidence")
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        app = self.review_app
+        self._set_palette()
+        app.theme_changed_signal.subscribe(self, lambda _theme: self._on_theme())
+        self.pace = Pace(app.clock())
+        self.query_one(StatusLine).set_who(app.project_name, app.reviewer)
+        self._show_queue()
+        self._count()
+        self.set_interval(1.0, self._tick)
+
+    def _set_palette(self) -> None:
+        self.palette = Palette.from_variables(self.app.get_css_variables(), self.app.no_color)
+
+    def _on_theme(self) -> None:
+        self._set_palette()
+        self._title = ""  # repaint the title in the new colours too
+        self._paint()
+
+    # -- showing a pair ----------------------------------------------------------------------
+    def _show(self, item: QueueItem | None, mode: Mode, where: str = "") -> None:
+        project = self.review_app.project
+        self.mode, self.item, self.where, self.pending_note = mode, item, where, ""
+        self.card = None if item is None else project.card(item.pair_id, item.reason)
+        self.mine = None if item is None else project.current_label(item.pair_id,
+                                                                   self.review_app.reviewer)
+        self.shown_at = self.review_app.clock()
+        if (mode == "queue") != self._footer_in_queue:
+            # Only when "back to the queue" appears or goes: the footer rebuilds itself on
+            # every refresh_bindings, which would cost a frame's worth of widgets per pair.
+            self._footer_in_queue = mode == "queue"
+            self.refresh_bindings()
+        self._paint()
+
+    def _show_queue(self) -> None:
+        app = self.review_app
+        parked, self.parked = self.parked, None
+        if parked is not None and app.project.current_label(parked.pair_id,
+                                                            app.reviewer) is None:
+            self._show(parked, "queue")
+            return
+        nxt = app.project.next_pairs(app.reviewer, 1)
+        self._show(nxt[0] if nxt else None, "queue")
+
+    def _show_pair(self, pair_id: int, mode: Mode, where: str) -> None:
+        card = self.review_app.project.card(pair_id)
+        self._show(QueueItem(pair_id, card.left_id, card.right_id, card.probability,
+                             card.reason), mode, where)
+
+    def _paint(self) -> None:
+        """Draw the pair on screen; the app's ``on_painted`` hook runs after the frame."""
+        card_view = self.query_one(PairCardView)
+        box = self.query_one("#card-box", VerticalScroll)
+        evidence = self.query_one(EvidencePanel)
+        if self.card is None:
+            card_view.show_message(Text(
+                "Nothing left in your queue. [ looks back at your decisions; / finds a pair; "
+                "q quits.", self.palette.muted))
+            box.border_title = Text("queue empty")
+            box.border_subtitle = None
+            self._title, self._where_shown = "", ""
+            evidence.show(None, self.palette, model_note=self.model_note)
+        else:
+            opts = CardOptions(self.palette, self.review_app.mask, self.show_extra)
+            card_view.show(self.card, opts)
+            title = card_title(self.card, self.palette)
+            if title.plain != self._title:
+                self._title = title.plain
+                box.border_title = title
+            if self.where != self._where_shown:
+                self._where_shown = self.where
+                box.border_subtitle = Text(self.where) if self.where else None
+            you = YourSide(None if self.mine is None else self.mine.label,
+                           self.pending_note or ("" if self.mine is None else self.mine.note),
+                           bool(self.pending_note))
+            evidence.show(self.card, self.palette, you, self.model_note)
+            if box.scroll_y and self.card.pair_id != self._scrolled_for:
+                box.scroll_home(animate=False)  # a new pair starts at its top
+            self._scrolled_for = self.card.pair_id
+        self._status()
+        hook = self.review_app.on_painted
+        if hook is not None:
+            self.call_after_refresh(hook)
+
+    def _status(self) -> None:
+        status = self.query_one(StatusLine)
+        status.set_counts(self.decided, self.remaining)
+        self._tick()
+
+    def _tick(self) -> None:
+        now = self.review_app.clock()
+        on_pair = None if self.card is None else now - self.shown_at
+        self.query_one(StatusLine).set_timing(self.pace.per_minute(now), on_pair)
+
+    # -- deciding ----------------------------------------------------------------------------
+    def action_decide(self, label: str) -> None:
+        app = self.review_app
+        if self.item is None:
+            self.notify("Nothing to decide: your queue is empty.", severity="warning")
+            return
+        before = self.mine
+        note = self.pending_note or ("" if before is None else before.note)
+        try:
+            app.project.decide(self.item.pair_id, app.reviewer, label, note,
+                               app.clock() - self.shown_at)
+        except (DocketError, sqlite3.Error) as exc:
+            self.notify(f"Not saved: {exc}. The pair stays on screen; try again.",
+                        severity="error", markup=False)
+            return
+        if before is None:
+            self._counted(+1)
+        self.pace.record(app.clock())
+        self._after_decision()
+        self._advance()
+
+    def _counted(self, change: int) -> None:
+        self.decided += change
+        if self.remaining is not None:
+            self.remaining = max(0, self.remaining - change)
+        self.review_app.counted += change
+
+    def _advance(self) -> None:
+        if self.mode == "history":
+            self.pos += 1
+            if self.pos < len(self.trail):
+                self._show_history()
+                return
+        self._show_queue()
+
+    def action_undo(self) -> None:
+        app = self.review_app
+        try:
+            undone = app.project.undo(app.reviewer)
+        except (DocketError, sqlite3.Error) as exc:
+            self.notify(f"Undo not saved: {exc}", severity="error", markup=False)
+            return
+        if undone is None:
+            self.notify("Nothing to undo.")
+            return
+        if app.project.current_label(undone.pair_id, app.reviewer) is None:
+            self._counted(-1)
+        # The queue pair on screen (if any) is not parked: still undecided, it comes back in
+        # its turn once the undone pair is decided again.
+        self._show_pair(undone.pair_id, "aside", f"undone ({undone.label}): decide again")
+
+    def action_note(self) -> None:
+        if self.item is None:
+            return
+        initial = self.pending_note or ("" if self.mine is None else self.mine.note)
+        self.app.push_screen(NoteScreen(self.item.pair_id, initial, self.mine is not None),
+                             self._save_note)
+
+    def _save_note(self, note: str | None) -> None:
+        if note is None or self.item is None:
+            return
+        app = self.review_app
+        if self.mine is None:
+            self.pending_note = note
+        else:
+            try:
+                self.mine = app.project.decide(self.item.pair_id, app.reviewer,
+                                               str(self.mine.label), note,
+                                               app.clock() - self.shown_at)
+            except (DocketError, sqlite3.Error) as exc:
+                self.notify(f"Note not saved: {exc}", severity="error", markup=False)
+                return
+            self.shown_at = app.clock()
+            self.notify("Note saved.")
+        self._paint()
+
+    # -- moving around -----------------------------------------------------------------------
+    def _show_history(self) -> None:
+        where = f"history {self.pos + 1} of {len(self.trail)}"
+        self._show_pair(self.trail[self.pos], "history", where)
+
+    def action_back(self) -> None:
+        if self.mode != "history":
+            trail = [d.pair_id for d in self.review_app.project.history(self.review_app.reviewer)]
+            if not trail:
+                self.notify("No decisions yet to look back at.")
+                return
+            self._park()
+            self.trail, self.pos = trail, len(trail) - 1
+        elif self.pos == 0:
+            self.notify("This is your first decision.")
+            return
+        else:
+            self.pos -= 1
+        self._show_history()
+
+    def action_forward(self) -> None:
+        if self.mode == "queue":
+            self.notify("You are at the newest pair.")
+            return
+        if self.mode == "history" and self.pos + 1 < len(self.trail):
+            self.pos += 1
+            self._show_history()
+            return
+        self._show_queue()
+
+    def action_to_queue(self) -> None:
+        if self.mode != "queue":
+            self._show_queue()
+
+    def _park(self) -> None:
+        if self.mode == "queue" and self.item is not None:
+            self.parked = self.item
+
+    def _open_aside(self, pair_id: int | None) -> None:
+        if pair_id is None:
+            return
+        self._park()
+        self._show_pair(pair_id, "aside", "opened: deciding returns to the queue")
+
+    def action_find(self) -> None:
+        app = self.review_app
+        self.app.push_screen(PairPicker(app.project, app.reviewer, app.mask,
+                                        title="find a pair"), self._open_aside)
+
+    def action_candidates(self) -> None:
+        app = self.review_app
+        if self.card is None:
+            return
+        groups = []
+        for side, rid in (("left", self.card.left_id), ("right", self.card.right_id)):
+            others = tuple(q.pair_id for q in app.project.candidates_of(side, rid)
+                           if q.pair_id != self.card.pair_id)
+            groups.append(Group(f"{side} record: {len(others)} other candidate"
+                                f"{'s' if len(others) != 1 else ''}", others))
+        self.app.push_screen(PairPicker(app.project, app.reviewer, app.mask,
+                                        title="other candidates", search=False,
+                                        groups=tuple(groups)), self._open_aside)
+
+    def action_extra(self) -> None:
+        self.show_extra = not self.show_extra
+        self._paint()
+
+    def action_help(self) -> None:
+        app = self.review_app
+        rows = key_rows(self, app.get_key_display, app.keymap.keymap)
+        self.app.push_screen(HelpScreen(rows, app.keymap.path, app.keymap.problems))
+
+    def action_quit(self) -> None:
+        self.app.exit()
+
+    def action_redraw(self) -> None:
+        """Paint the same card again (no commit, no queue step): also the benchmark's baseline."""
+        self._paint()
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        if action == "to_queue":
+            return self.mode != "queue"
+        return True
+
+    # -- the background: counting and refitting ----------------------------------------------
+    def _count(self) -> None:
+        app = self.review_app
+        self.run_worker(partial(app.recount, app.counted), thread=True, group="count",
+                        name="count")
+
+    def _after_decision(self) -> None:
+        app = self.review_app
+        self.since_refit += 1
+        if app.refit_every and self.since_refit >= app.refit_every and not self.refitting:
+            self.since_refit = 0
+            self.refitting = True
+            self.query_one(StatusLine).set_who(app.project_name, app.reviewer, "refitting")
+            self.run_worker(partial(app.refit, app.counted), thread=True, group="refit",
+                            name="refit")
+
+    def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
+        worker, app = event.worker, self.review_app
+        if worker.group == "refit" and event.state in (WorkerState.ERROR,
+                                                       WorkerState.SUCCESS):
+            self.refitting = False
+            self.query_one(StatusLine).set_who(app.project_name, app.reviewer)
+        if event.state == WorkerState.ERROR:
+            self.notify(f"{worker.name} failed: {worker.error}", severity="error",
+                        markup=False)
+            return
+        if event.state != WorkerState.SUCCESS:
+            return
+        count: Recount = worker.result
+        if worker.group == "refit":
+            self.model_note = count.note
+            app.project.reload()
+        moved = app.counted - count.counted_at  # decisions made while the worker counted
+        self.decided, self.remaining = count.decided + moved, max(0, count.remaining - moved)
+        self._status()
