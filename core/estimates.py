@@ -8,21 +8,31 @@ precision, recall and F1 are ratios of Horvitz–Thompson totals.
 
 A pair is a predicted match when its score is at or above the threshold.
 
-Intervals. Sampling variance comes from the stratified rescaling bootstrap (Rao–Wu: m_h - 1
-draws with replacement inside each stratum, weights rescaled with the finite-population
-correction), seeded so that a call is repeatable. Precision and recall, which are proportions,
-get the Korn–Graubard interval: Clopper–Pearson at the effective sample size p (1 - p) / var.
-Plain percentile intervals fall short with rare matches: few missed matches reach the sample,
-so recall sits near 1 with a skewed sampling distribution. In simulated audits (20,000 pairs,
-5 % matches, 600 labels, 95 % intervals) percentile intervals held the true recall 80–96 % of
-the time, Korn–Graubard 87–99 %. F1 and the total of true matches get percentile intervals.
-When every labelled pair carries the same weight (a self-weighting design) the Horvitz–Thompson
-ratios equal the plain proportions, and precision and recall get the Wilson score interval on
-the plain counts.
+Intervals. Precision and recall, which are proportions, get a Korn–Graubard-type interval:
+Clopper–Pearson at the effective sample size p (1 - p) / var, where var is the linearised
+(Taylor) variance of a ratio of stratified totals, with a zero-count allowance (``method``
+"smoothed-korn-graubard"). Why the allowance: a stratum whose labelled predicted matches are
+all matches (or whose labelled matches were all found) adds no variance, though errors may hide
+among its unlabelled pairs. When errors are rare (a one-to-one matcher: about 1 % false
+positives and missed matches) most strata show none, and the plain design variance makes the
+intervals far too narrow: on DBLP-ACM they held the true precision and recall in 40 and 42 of
+50 redrawn audit slices. So such a stratum's share x / n is taken as (x + 1/2) / (n + 1), as if
+half a pair of the unseen kind had been labelled (add-half smoothing, the posterior mean under
+the Jeffreys prior), and keeps the larger of the two variances. Source: common practice
+(design-based survey estimation); the Korn–Graubard construction is named from memory. With the
+allowance the one-to-one slices hold the truth 50/50 and 50/50, the plain project's 46/50 and
+50/50, and median widths barely move: what widens are the intervals of slices that saw no error.
+
+F1 and the total of true matches get percentile intervals from the stratified rescaling
+bootstrap (Rao–Wu: m_h - 1 draws with replacement inside each stratum, weights rescaled with
+the finite-population correction), seeded so that a call is repeatable; they lack the
+allowance. When every labelled pair carries the same weight (a self-weighting design) the
+Horvitz–Thompson ratios equal the plain proportions, and precision and recall get the Wilson
+score interval on the plain counts.
 
 Known weakness, shared by every design-based interval: a stratum whose labels hold no match
-adds nothing to the variance, though matches may hide in it. The note of each estimate bounds
-how many could.
+adds nothing to recall's variance, though matches may hide in it. The note of each estimate
+bounds how many could.
 """
 
 from __future__ import annotations
@@ -38,7 +48,8 @@ from .intervals import clopper_pearson, wilson
 
 BOOTSTRAP = "stratified-bootstrap"
 WILSON = "wilson"
-KORN_GRAUBARD = "korn-graubard"
+KORN_GRAUBARD = "smoothed-korn-graubard"
+SMOOTHING = 0.5  # pseudo-count of the unseen kind in a stratum that shows only one
 NAIVE = "naive-unweighted"
 
 
@@ -235,20 +246,71 @@ def _percentile(num: float, den: float, rep_num: np.ndarray, rep_den: np.ndarray
     return Interval(float(num / den), float(low), float(high), BOOTSTRAP)
 
 
-def _korn_graubard(num: float, den: float, rep_num: np.ndarray, rep_den: np.ndarray,
-                   confidence: float, domain_weights: np.ndarray) -> Interval:
-    """Clopper–Pearson at the effective sample size p (1 - p) / var, var from the replicates.
+def _stratum_totals(sample: AuditSample, values: np.ndarray) -> tuple[np.ndarray, ...]:
+    """Per labelled stratum: m_h, N_h and the column sums of ``values`` (rows: strata)."""
+    strata = sorted(sample.labelled_counts().items(), key=lambda kv: str(kv[0]))
+    m = np.array([m_h for _, m_h in strata], dtype=float)
+    big_n = np.array([sample.stratum_sizes[h] for h, _ in strata], dtype=float)
+    sums = np.stack([values[sample.stratum == h].sum(axis=0) for h, _ in strata])
+    return m, big_n, sums
 
-    Without spread in the replicates (p is 0 or 1) the Kish effective size of the pairs in the
-    denominator stands in, so a sample in which every predicted match was a match still gets a
-    lower bound below 1. The effective size is capped at the estimated number of pairs in the
-    denominator.
+
+def _z_variance(share: np.ndarray, q: np.ndarray, ratio: np.ndarray,
+                m: np.ndarray) -> np.ndarray:
+    """Sample variance (ddof 1) of z = right - ratio * in_domain over the m_h labels of each
+    stratum, a share q of them in the domain and a share ``share`` of those right."""
+    mean = q * (share - ratio)
+    second = q * (share * (1.0 - ratio) ** 2 + (1.0 - share) * ratio ** 2)
+    return m / np.maximum(m - 1.0, 1.0) * np.maximum(second - mean ** 2, 0.0)
+
+
+def _smoothed_ratio(num: np.ndarray, den: np.ndarray, m: np.ndarray, big_n: np.ndarray,
+                    allowance: float = SMOOTHING) -> tuple[np.ndarray, np.ndarray]:
+    """Smoothed ratio and its linearised variance, per column of the (strata, k) label counts.
+
+    ``den`` counts the labelled pairs of the domain (predicted matches for precision, matches
+    for recall) in each stratum and ``num`` those of them that are right. Where a stratum's
+    labelled domain pairs are all of one kind (no error, or nothing right), its share
+    p_h = num / den gets the allowance (num + a) / (den + 2 a), a = ``allowance``, as if a
+    fraction of one pair of the unseen kind had been labelled; the stratum then keeps whichever
+    of the two variances is larger, so the allowance does not narrow its share. R, the ratio
+    recomputed from the allowed shares, is the linearisation point: with z = right - R in_domain
+    per pair, var = sum_h N_h^2 (1 - m_h / N_h) s_h^2 / m_h / D^2, s_h^2 the variance of z
+    within stratum h and D the estimated domain total. Strata with one label add nothing:
+    their variance cannot be estimated.
+    """
+    weight = (big_n / m)[:, None]
+    total = (weight * den).sum(axis=0)
+    seen = den > 0
+    share = np.divide(num, den, out=np.zeros_like(num), where=seen)
+    one_kind = seen & ((num == 0) | (num == den))
+    allowed = np.divide(num + allowance, den + 2.0 * allowance, out=share.copy(), where=one_kind)
+    ratio = np.divide((weight * den * allowed).sum(axis=0), total, out=np.zeros_like(total),
+                      where=total > 0)
+    q, m_col = den / m[:, None], m[:, None]
+    s2 = np.maximum(_z_variance(share, q, ratio, m_col), _z_variance(allowed, q, ratio, m_col))
+    s2 = np.where(m_col >= 2, s2, 0.0)
+    per_stratum = (big_n ** 2 * (1.0 - m / big_n) / m)[:, None] * s2
+    var = np.divide(per_stratum.sum(axis=0), total ** 2, out=np.zeros_like(total),
+                    where=total > 0)
+    return ratio, var
+
+
+def _korn_graubard(num: float, den: float, smoothed: float, var: float, confidence: float,
+                   domain_weights: np.ndarray) -> Interval:
+    """Clopper–Pearson at the effective sample size p~ (1 - p~) / var around the HT ratio.
+
+    ``smoothed`` (p~) and ``var`` come from ``_smoothed_ratio``; thanks to the smoothing they
+    stay informative when the sample shows no error at all (HT ratio 0 or 1). Should the
+    variance still be nil (every domain stratum a census or a single label) the Kish effective
+    size of the pairs in the denominator stands in. The effective size is capped at the
+    estimated number of pairs in the denominator.
     """
     if not den > 0:
         return Interval(None, None, None, KORN_GRAUBARD)
     p = float(num / den)
-    var = float(np.var(rep_num / rep_den, ddof=1)) if rep_num.size > 1 else 0.0
-    n_eff = p * (1.0 - p) / var if var > 0 and 0.0 < p < 1.0 else _kish(domain_weights)
+    spread = smoothed * (1.0 - smoothed)
+    n_eff = spread / var if var > 0 and spread > 0 else _kish(domain_weights)
     n_eff = min(n_eff, float(den))
     return Interval(p, *clopper_pearson(p * n_eff, n_eff, confidence), KORN_GRAUBARD)
 
@@ -299,6 +361,10 @@ def threshold_table(
     w = sample.weights()
     point = w @ values
     reps = _replicate_totals(sample, values, n_boot, seed)
+    m_h, big_n, sums = _stratum_totals(sample, values)
+    tp_h = sums[:, 0::3]
+    p_smooth, p_var = _smoothed_ratio(tp_h, sums[:, 1::3], m_h, big_n)
+    r_smooth, r_var = _smoothed_ratio(tp_h, sums[:, 2::3], m_h, big_n)
     self_weighting = sample.is_self_weighting()
     raw = values.sum(axis=0)  # unweighted counts, for Wilson when the design is self-weighting
     n_pairs = sum(sample.stratum_sizes[h] for h in sample.labelled_counts())
@@ -314,8 +380,9 @@ def threshold_table(
             recall = _wilson(x_tp, x_m, confidence)
         else:
             predicted = values[:, 3 * k + 1] > 0
-            precision = _korn_graubard(tp, pp, r_tp, r_pp, confidence, w[predicted])
-            recall = _korn_graubard(tp, m, r_tp, r_m, confidence, w[sample.label == 1])
+            precision = _korn_graubard(tp, pp, p_smooth[k], p_var[k], confidence, w[predicted])
+            recall = _korn_graubard(tp, m, r_smooth[k], r_var[k], confidence,
+                                    w[sample.label == 1])
         notes = list(design)
         if precision.value is None:
             notes.append("no labelled pair scores at or above the threshold: precision undefined")
@@ -349,12 +416,13 @@ def estimate_at(
     """Design-based precision, recall and F1 of "score >= threshold" over all candidate pairs.
 
     Point estimates are ratios of Horvitz–Thompson totals (weights N_h / m_h, see
-    ``AuditSample``). The variance comes from the stratified rescaling bootstrap with
-    ``n_boot`` replicates drawn from ``seed``, so the same call gives the same answer.
-    Precision and recall carry Korn–Graubard intervals (``method`` "korn-graubard"); F1 and
-    the total of true matches carry percentile intervals ("stratified-bootstrap"). When the
-    design is self-weighting, precision and recall carry the Wilson interval on the plain
-    counts instead (``method`` "wilson"). Each interval names its own method.
+    ``AuditSample``). Precision and recall carry Korn–Graubard intervals on the linearised
+    variance with the zero-count allowance (``method`` "smoothed-korn-graubard", see the
+    module notes); they need no replicates. F1 and the total of true matches carry percentile
+    intervals ("stratified-bootstrap") from ``n_boot`` replicates drawn from ``seed``, so the
+    same call gives the same answer. When the design is self-weighting, precision and recall
+    carry the Wilson interval on the plain counts instead (``method`` "wilson"). Each interval
+    names its own method.
     """
     return threshold_table(sample, [threshold], confidence, n_boot, seed)[0]
 
