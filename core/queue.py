@@ -55,7 +55,8 @@ def draw_audit(probability: np.ndarray, size: int, seed: int) -> AuditSlice:
     Half the slice is spread equally over the non-empty strata, half by Neyman allocation
     (N_h times the stratum's mean sqrt(p(1−p)), floored). The equal half makes sure the thin
     strata, where precision is decided, get enough pairs; the Neyman half follows where the
-    uncertainty about the number of matches is. Every stratum gets at least a few pairs.
+    uncertainty about the number of matches is. Every stratum gets at least a few pairs, and
+    none gives more than half of its pairs (small strata excepted).
     """
     probability = np.asarray(probability, dtype=float)
     n = len(probability)
@@ -74,7 +75,11 @@ def draw_audit(probability: np.ndarray, size: int, seed: int) -> AuditSlice:
                    for h in labels])
     neyman = big_n * np.maximum(sd, 0.05)
     score = 0.5 * neyman / neyman.sum() + 0.5 / len(labels)
-    alloc = _allocate(size, big_n, score)
+    # At most half of a stratum goes to the audit slice (small strata excepted), so that the
+    # uncertain queue, which never takes audit pairs, keeps pairs near the threshold.
+    caps = np.maximum(np.minimum(big_n, 2 * MIN_PER_STRATUM), big_n // 2)
+    size = int(min(size, caps.sum()))
+    alloc = _allocate(size, caps, score)
     for h, n_h, big in zip(labels, alloc, big_n, strict=True):
         members = np.flatnonzero(stratum == h)
         picked = rng.choice(members, size=int(n_h), replace=False)
