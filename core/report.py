@@ -59,7 +59,9 @@ def status(project: Project) -> dict[str, Any]:
         },
         "model": {
             "ranker": meta.get("ranker"),
-            "ranker_note": meta.get("ranker_note"),
+            "ranker_note": (meta.get("ranker_note") if meta.get("refits") or
+                            not one("SELECT count(*) FROM current") else
+                            "labels recorded, not refit yet"),
             "prior": fs["prior"],
             "threshold": meta["threshold"],
             "one_to_one": meta.get("one_to_one", False),

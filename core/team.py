@@ -186,7 +186,8 @@ def agreement_report(project: Project, include_hold: bool = False) -> dict[str, 
     how many pairs' most probable class differs from the reviewers' strict majority; its
     ``pairs`` holds each rated pair's most probable class and posterior P(match).
     """
-    from .agreement import DECIDED, WITH_HOLD, json_ready, overall_agreement, pairwise_agreement
+    from .agreement import DECIDED, WITH_HOLD, json_ready
+    from .agreement_summary import overall_agreement, pairwise_agreement
 
     labels = labels_by_reviewer(project)
     categories = WITH_HOLD if include_hold else DECIDED

@@ -15,11 +15,10 @@ from docket.core.agreement import (
     fleiss_kappa,
     krippendorff_alpha_nominal,
     landis_koch,
-    overall_agreement,
     pabak,
-    pairwise_agreement,
     rating_counts,
 )
+from docket.core.agreement_summary import overall_agreement, pairwise_agreement
 
 WIKI_2X2 = [[20, 5], [10, 15]]
 SAS_3X3 = [[0, 4, 1], [0, 8, 0], [0, 1, 5]]

@@ -1,0 +1,152 @@
+"""The labelled audit slice as a sample, and the plain results estimated from it.
+
+Kept apart from :mod:`estimates` (the estimators), so the data a caller builds and the
+numbers it gets back can be read without the statistics.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Hashable, Mapping, Sequence
+from dataclasses import asdict, dataclass
+from typing import Any
+
+import numpy as np
+
+
+@dataclass(frozen=True, eq=False)
+class AuditSample:
+    """The labelled pairs of the audit slice and the design they were drawn under.
+
+    ``score``, ``label`` (1 match, 0 non-match), ``stratum`` and ``inclusion_probability``
+    (pi = n_h / N_h) hold one entry per *labelled* audit pair. ``stratum_sizes`` gives N_h, the
+    candidate pairs in each stratum, and ``drawn`` gives n_h, the audit pairs drawn there.
+
+    Drawn pairs without a label (not reviewed yet, or on hold) are treated as missing at random
+    within their stratum: the m_h labelled pairs of stratum h are taken as a simple random sample
+    of its N_h pairs, so each weighs N_h / m_h rather than 1 / pi. Strata with no label at all
+    cannot be reweighted; estimates then speak only for the strata that have labels, and the note
+    of every estimate says which were left out.
+    """
+
+    score: np.ndarray
+    label: np.ndarray
+    stratum: np.ndarray
+    inclusion_probability: np.ndarray
+    stratum_sizes: Mapping[Hashable, int]
+    drawn: Mapping[Hashable, int]
+
+    def __post_init__(self) -> None:
+        set_ = object.__setattr__  # frozen: coerce once here, never again
+        for name, dtype in (("score", float), ("label", None), ("stratum", None),
+                            ("inclusion_probability", float)):
+            set_(self, name, np.asarray(getattr(self, name), dtype=dtype))
+            if getattr(self, name).shape != (self.score.size,):
+                raise ValueError(f"{name} must be one-dimensional and as long as score")
+        set_(self, "stratum_sizes", {k: int(v) for k, v in self.stratum_sizes.items()})
+        set_(self, "drawn", {k: int(v) for k, v in self.drawn.items()})
+        self._validate()
+        set_(self, "label", self.label.astype(np.int8))
+
+    def _validate(self) -> None:
+        if not np.all(np.isfinite(self.score)):
+            raise ValueError("score holds a missing or infinite value")
+        if not np.all(np.isin(self.label, (0, 1))):
+            raise ValueError("label must be 1 (match) or 0 (non-match) for every labelled pair")
+        pi = self.inclusion_probability
+        if np.any(~(pi > 0) | (pi > 1)):
+            raise ValueError("inclusion_probability must lie in (0, 1]")
+        labelled = self.labelled_counts()
+        for h, m_h in labelled.items():
+            if h not in self.stratum_sizes or h not in self.drawn:
+                raise ValueError(f"stratum {h!r} has no population size or drawn count")
+            big_n, n_h = self.stratum_sizes[h], self.drawn[h]
+            if not m_h <= n_h <= big_n:
+                raise ValueError(f"stratum {h!r}: need labelled ({m_h}) <= drawn ({n_h}) "
+                                 f"<= size ({big_n})")
+            if not np.allclose(pi[self.stratum == h], n_h / big_n, rtol=1e-6, atol=0.0):
+                raise ValueError(f"stratum {h!r}: inclusion probability is not drawn / size")
+
+    @classmethod
+    def from_audit(
+        cls,
+        score: Sequence[float] | np.ndarray,
+        label: Sequence[float | None] | np.ndarray,
+        stratum: Sequence[Hashable] | np.ndarray,
+        inclusion_probability: Sequence[float] | np.ndarray,
+    ) -> AuditSample:
+        """Build from every drawn audit pair, labelled or not (label None or NaN when not).
+
+        n_h is the count of drawn pairs per stratum and N_h = n_h / pi, rounded.
+        """
+        lab = np.asarray(label, dtype=float)  # None becomes NaN
+        strata = np.asarray(stratum)
+        pi = np.asarray(inclusion_probability, dtype=float)
+        sizes: dict[Hashable, int] = {}
+        drawn: dict[Hashable, int] = {}
+        for h in np.unique(strata).tolist():
+            in_h = strata == h
+            if not np.allclose(pi[in_h], pi[in_h][0], rtol=1e-9, atol=0.0):
+                raise ValueError(f"stratum {h!r}: inclusion probability differs within it")
+            drawn[h] = int(in_h.sum())
+            sizes[h] = round(drawn[h] / pi[in_h][0])
+        keep = ~np.isnan(lab)
+        return cls(np.asarray(score, dtype=float)[keep], lab[keep], strata[keep], pi[keep],
+                   sizes, drawn)
+
+    @property
+    def n_labelled(self) -> int:
+        return int(self.score.size)
+
+    def labelled_counts(self) -> dict[Hashable, int]:
+        """m_h: labelled pairs per stratum, for the strata that have any."""
+        values, counts = np.unique(self.stratum, return_counts=True)
+        return dict(zip(values.tolist(), counts.tolist(), strict=True))
+
+    def weights(self) -> np.ndarray:
+        """Design weight N_h / m_h of each labelled pair (1 / pi when all drawn are labelled)."""
+        m = self.labelled_counts()
+        per_stratum = {h: self.stratum_sizes[h] / m_h for h, m_h in m.items()}
+        return np.array([per_stratum[h] for h in self.stratum.tolist()], dtype=float)
+
+    def is_self_weighting(self) -> bool:
+        """True when all labelled pairs weigh the same (e.g. all pi equal and all labelled)."""
+        w = self.weights()
+        return w.size > 0 and bool(np.allclose(w, w[0], rtol=1e-9, atol=0.0))
+
+
+@dataclass(frozen=True)
+class Interval:
+    """A point estimate with its confidence interval; None where it is undefined."""
+
+    value: float | None
+    low: float | None
+    high: float | None
+    method: str
+
+
+@dataclass(frozen=True)
+class QualityEstimate:
+    """Precision, recall and F1 of the rule "score >= threshold", with intervals.
+
+    ``true_matches``, ``predicted_positives`` and ``true_positives`` are estimated totals over the
+    ``n_pairs`` candidate pairs the estimate speaks for. ``biased`` marks a figure that is not a
+    design-based estimate (see ``naive_estimate``); ``note`` says what to keep in mind.
+    """
+
+    threshold: float
+    precision: Interval
+    recall: Interval
+    f1: Interval
+    true_matches: Interval
+    predicted_positives: float
+    true_positives: float
+    n_labelled: int
+    n_pairs: int
+    confidence: float
+    method: str
+    biased: bool = False
+    note: str = ""
+
+    def to_dict(self) -> dict[str, Any]:
+        """Plain built-in types only (undefined values are None), ready for ``json.dumps``."""
+        return asdict(self)
