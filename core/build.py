@@ -43,6 +43,7 @@ class NewProject:
     rules: list[str] = field(default_factory=list)
     audit: int | None = None
     overlap: float = 0.2
+    overlap_reviewers: int = 2  # how many different reviewers decide each overlap pair
     one_to_one: bool = False
     max_pairs: int = blocking.DEFAULT_MAX_PAIRS
     threshold: float = 0.5
@@ -74,6 +75,8 @@ def _check(spec: NewProject) -> None:
         raise DocketError(f"{spec.path}: is a folder; give a file name for the project")
     if not 0.0 <= spec.overlap <= 1.0:
         raise DocketError(f"--overlap {spec.overlap}: give a share between 0 and 1")
+    if spec.overlap_reviewers < 2:
+        raise DocketError(f"--overlap-reviewers {spec.overlap_reviewers}: give 2 or more")
     if spec.audit is not None and spec.audit < 0:
         raise DocketError(f"--audit {spec.audit}: give a number of pairs, 0 or more")
     if spec.pairs_file and spec.rules:

@@ -69,7 +69,9 @@ def status(project: Project) -> dict[str, Any]:
             "labels_used": fs.get("labels_used", 0),
             "fields": model,
         },
-        "settings": {"overlap_share": meta["overlap_share"], "audit_every": meta["audit_every"],
+        "settings": {"overlap_share": meta["overlap_share"],
+                     "overlap_reviewers": meta.get("overlap_reviewers", 2),
+                     "audit_every": meta["audit_every"],
                      "refit_every": meta["refit_every"]},
         "gold_policy": {**gold.policy(conn),
                         "rules": "unanimous decisions become gold; disagreements only when "

@@ -114,3 +114,16 @@ def test_registered_migrations_upgrade_an_older_file(sample_project: Path, monke
         assert conn.execute("PRAGMA user_version").fetchone()[0] == 2
         assert [r[0] for r in conn.execute("SELECT version FROM migrations ORDER BY 1")] == [1, 2]
         assert "email" in [r[1] for r in conn.execute("PRAGMA table_info(reviewers)")]
+
+
+def test_overlap_pairs_can_need_three_reviewers(tmp_path: Path) -> None:
+    path = tmp_path / "k3.docket"
+    Project.create(sample_spec(path, overlap=1.0, overlap_reviewers=3))
+    with Project.open(path) as p:
+        pid = p.next_pairs("a", 1)[0].pair_id
+        for i, name in enumerate(("a", "b", "c")):
+            assert p.connection.execute("SELECT open FROM pairs WHERE pair_id = ?",
+                                        (pid,)).fetchone()[0] == 1, i
+            p.decide(pid, name, "match")
+        assert p.connection.execute("SELECT open FROM pairs WHERE pair_id = ?",
+                                    (pid,)).fetchone()[0] == 0

@@ -63,6 +63,8 @@ def build_parser() -> argparse.ArgumentParser:
                    help="audit slice size (default 5%% of pairs, at most 1,000)")
     p.add_argument("--overlap", type=float, default=0.2, metavar="SHARE",
                    help="share of pairs that two reviewers decide (default 0.2)")
+    p.add_argument("--overlap-reviewers", type=int, default=2, metavar="K",
+                   help="how many different reviewers decide each overlap pair (default 2)")
     p.add_argument("--one-to-one", action="store_true",
                    help="link mode: each record matches at most one on the other side")
     p.add_argument("--threshold", type=float, default=0.5, metavar="P",
@@ -136,9 +138,11 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--reviewer", metavar="NAME", help="who reviews (default: your user name)")
 
     from .cli_gold import register as register_gold
+    from .cli_screens import register as register_screens
     from .cli_team import register as register_team
     register_team(sub)
     register_gold(sub)
+    register_screens(sub)
     return parser
 
 

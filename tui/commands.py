@@ -69,6 +69,7 @@ def new(args: argparse.Namespace) -> int:
         left_id=args.left_id, right_id=args.right_id, column_map=parse_map(args.map),
         kinds=parse_kinds(args.field), pairs_file=Path(args.pairs) if args.pairs else None,
         rules=args.block or [], audit=args.audit, overlap=args.overlap,
+        overlap_reviewers=args.overlap_reviewers,
         one_to_one=args.one_to_one, max_pairs=args.max_pairs, threshold=args.threshold,
         seed=args.seed, force=args.force)
     with progress_bar() as update:
