@@ -65,7 +65,7 @@ def read_rows(project: Project, path: Path) -> list[BulkRow]:
         if lab not in LABELS:
             raise DocketError(f"{path}: row {i + 2}: label '{label}' is not one of "
                               f"{', '.join(LABELS)}; nothing was written")
-        rows.append(BulkRow(int(pid), lab, "" if note is None else str(note)))
+        rows.append(BulkRow(int(pid), lab, "" if note is None or pd.isna(note) else str(note)))
     return rows
 
 

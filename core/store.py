@@ -122,13 +122,19 @@ def open_file(path: Path, readonly: bool = False) -> sqlite3.Connection:
     """Open an existing project, checking it is one and migrating it if it is older."""
     if not path.exists():
         raise DocketError(f"{path}: no such project; create it with 'docket new {path} ...'")
-    with open(path, "rb") as fh:
-        head = fh.read(100)
-    if not head.startswith(b"SQLite format 3\x00"):
+    if path.is_dir():
+        raise NotAProject(f"{path}: a folder, not a docket project; check the path")
+    # The header is read through SQLite, never with open(): closing any other handle on the
+    # file would drop this process's SQLite locks on it (POSIX advisory locks are per process).
+    probe = sqlite3.connect(f"file:{path}?mode=ro", uri=True)
+    try:
+        app_id = probe.execute("PRAGMA application_id").fetchone()[0]
+        version = probe.execute("PRAGMA user_version").fetchone()[0]
+    except sqlite3.DatabaseError:
         raise NotAProject(f"{path}: not a docket project (not an SQLite file); "
-                          "check the path, or create one with 'docket new'")
-    app_id = int.from_bytes(head[68:72], "big")
-    version = int.from_bytes(head[60:64], "big")
+                          "check the path, or create one with 'docket new'") from None
+    finally:
+        probe.close()
     if app_id != APPLICATION_ID:
         raise NotAProject(f"{path}: an SQLite file, but not a docket project; check the path")
     if version > SCHEMA_VERSION:

@@ -127,3 +127,27 @@ def test_overlap_pairs_can_need_three_reviewers(tmp_path: Path) -> None:
             p.decide(pid, name, "match")
         assert p.connection.execute("SELECT open FROM pairs WHERE pair_id = ?",
                                     (pid,)).fetchone()[0] == 0
+
+
+def test_another_process_reading_does_not_break_our_connections(sample_project: Path) -> None:
+    # A user may inspect the file with sqlite3 while docket runs, and the screens open a second
+    # connection for background work: both must keep working side by side.
+    import subprocess
+    import sys
+    holder = ("import sqlite3, sys; c = sqlite3.connect(sys.argv[1]); "
+              "c.execute('SELECT count(*) FROM decisions').fetchone(); print('ready', flush=True); "
+              "sys.stdin.read(); c.execute('SELECT count(*) FROM pairs').fetchone()")
+    with Project.open(sample_project) as first:
+        item = first.next_pairs("maya", 1)[0]
+        other = subprocess.Popen([sys.executable, "-c", holder, str(sample_project)],
+                                 stdin=subprocess.PIPE, stdout=subprocess.PIPE, text=True)
+        try:
+            assert other.stdout is not None and other.stdout.readline().strip() == "ready"
+            first.decide(item.pair_id, "maya", "match")
+            with Project.open(sample_project) as second:
+                assert len(second.decisions()) == 1
+                second.decide(second.next_pairs("ravi", 1)[0].pair_id, "ravi", "non-match")
+            assert len(first.decisions()) == 2
+        finally:
+            other.communicate("", timeout=30)
+        assert other.returncode == 0

@@ -37,6 +37,8 @@ def register(sub: argparse._SubParsersAction) -> None:
         "docket evaluate vets.docket --target-precision 0.95", evaluate)
     p.add_argument("project")
     p.add_argument("--json", action="store_true", help="machine-readable output")
+    p.add_argument("--screen", action="store_true",
+                   help="open the quality screen (plots, threshold table, clusters) instead")
     p.add_argument("--predictions", metavar="FILE",
                    help="a matcher's output to evaluate (CSV, Parquet, JSONL)")
     p.add_argument("--threshold", type=float, metavar="T",
@@ -54,6 +56,13 @@ def register(sub: argparse._SubParsersAction) -> None:
 
 def evaluate(args: argparse.Namespace) -> int:
     from docket.core import Project
+    if args.screen:
+        from pathlib import Path
+
+        from .adjudicate_app import run_quality
+        Project.open(args.project, readonly=True).close()  # a bad path fails as one line
+        run_quality(Path(args.project))
+        return 0
     from docket.core.evaluate import evaluate as model_report
     from docket.core.evaluate import evaluate_predictions
     with Project.open(args.project, readonly=True) as project:

@@ -47,6 +47,8 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "docket agreement vets.docket --json", agreement)
     p.add_argument("project")
     p.add_argument("--json", action="store_true", help="machine-readable output")
+    p.add_argument("--screen", action="store_true",
+                   help="open the agreement screen instead of printing")
     p.add_argument("--include-hold", action="store_true",
                    help="count hold as a third category")
 
@@ -155,6 +157,14 @@ def print_agreement(report: dict[str, Any]) -> None:
 
 def agreement(args: argparse.Namespace) -> int:
     from docket.core.team import agreement_report
+    if args.screen:
+        from pathlib import Path
+
+        from .adjudicate_app import run_agreement
+        with _open(args.project, readonly=True):
+            pass  # a bad path fails here, as one line, before any screen opens
+        run_agreement(Path(args.project))
+        return 0
     with _open(args.project, readonly=True) as project:
         report = agreement_report(project, include_hold=args.include_hold)
     if args.json:

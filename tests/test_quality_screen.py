@@ -1,0 +1,88 @@
+"""Pilot tests of the quality screen: threshold table, plots, clusters and a conflict."""
+
+# ruff: noqa: F811 - pytest fixtures imported from screens_support arrive as arguments
+
+from __future__ import annotations
+
+from docket.core import Project
+from docket.core.evaluate import DEFAULT_THRESHOLDS, evaluate
+from docket.core.gold_export import conflicts
+from docket.tui.screens.conflict import ConflictScreen
+from docket.tui.screens.pair_detail import PairDetailScreen
+from docket.tui.screens.quality import QualityScreen
+from tests.fixtures_review import pilot_test, screen_text
+from tests.screens_support import (  # noqa: F401 - fixtures are used by name
+    press,
+    settle,
+    team,
+    team_app,
+    team_master,
+)
+
+SIZE = (120, 40)
+
+
+def quality(app) -> QualityScreen:
+    assert isinstance(app.screen, QualityScreen)
+    return app.screen
+
+
+@pilot_test
+async def test_threshold_table_is_design_based_with_the_naive_figures_marked(team, team_app):
+    path, _ = team
+    with Project.open(path, readonly=True) as project:
+        report = evaluate(project)
+    at = report["at_threshold"]
+    app = team_app(path, start="quality")
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        table = quality(app).query_one("#threshold-table")
+        assert table.row_count == len(set(DEFAULT_THRESHOLDS) | {report["threshold"]})
+        row = [c.plain for c in table.get_row(str(at["threshold"]))]
+        p = at["precision"]
+        assert row[0] == "*" and row[2] == f"{p['value']:.3f} [{p['low']:.3f}, {p['high']:.3f}]"
+        text = screen_text(app)
+        assert "naive P / R (biased)" in text and "biased by the queue order" in text
+        assert "within the candidate pairs" in text
+        assert f"{report['audit']['labelled']} of {report['audit']['drawn']:,} drawn" in text
+        await press(pilot, "1")
+        text = screen_text(app)
+        assert "score of gold-labelled pairs" in text and "design-based" in text
+        assert "naive (biased)" in text
+
+
+@pilot_test
+async def test_clusters_tab_lists_the_conflict_and_enter_shows_its_members(team, team_app):
+    path, layout = team
+    with Project.open(path, readonly=True) as project:
+        (conflict,) = conflicts(project)
+    app = team_app(path, start="quality")
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await press(pilot, "3")
+        assert "1 conflict" in screen_text(app)
+        await press(pilot, "enter")
+        assert isinstance(app.screen, ConflictScreen)
+        text = screen_text(app)
+        for _, record_id in conflict.members:
+            assert record_id in text
+        members = app.screen.query_one("#conflict-members")
+        assert members.row_count == len(conflict.members)
+        await press(pilot, "enter")  # the first pair listed is the contradicted non-match
+        assert isinstance(app.screen, PairDetailScreen)
+        assert app.screen.pair_id == layout.conflict_non_match
+        assert "different owner" in screen_text(app)
+        await press(pilot, "escape", "escape")
+        assert isinstance(app.screen, QualityScreen)
+
+
+@pilot_test
+async def test_without_audit_labels_the_screen_says_what_is_missing(sample_project,
+                                                                    team_app):
+    app = team_app(sample_project, start="quality")
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        text = screen_text(app)
+        assert "no estimates yet" in text and "audit slice has no gold labels" in text
+        await press(pilot, "3")
+        assert "No conflicts" in screen_text(app)

@@ -1,0 +1,380 @@
+"""The adjudication screen: one waiting pair at a time, every reviewer's label beside the card.
+
+The pair card is the review screen's; the reviews panel replaces the evidence panel. A
+decision key asks for a reason, then saves the adjudication (role 'adjudicator', the reason
+as its note) before moving on. The queue (disagreements, holds, cluster conflicts) is worked
+out in a worker after every change; between two refreshes the screen steps through the copy
+it has, so the next pair is on screen at once.
+"""
+
+from __future__ import annotations
+
+import sqlite3
+from dataclasses import dataclass, field
+from functools import partial
+from typing import TYPE_CHECKING, ClassVar, Literal
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import Horizontal, VerticalScroll
+from textual.screen import Screen
+from textual.widgets import Footer
+from textual.worker import Worker, WorkerState
+
+from docket.core import adjudication
+from docket.core.errors import DocketError
+from docket.core.gold import gold_labels
+from docket.core.gold_export import adjudication_queue, conflicts
+from docket.core.project import Project
+from docket.core.types import PairCard
+
+from ..diff import PLAIN, Palette
+from ..widgets import CardOptions, Pace, PairCardView, StatusLine
+from ..widgets.pair_card import card_title
+from ..widgets.reviews import ConflictInfo, PairStanding, ReviewsPanel
+from .help import key_rows
+from .reason import ReasonScreen
+from .team_help import ADJUDICATION, TeamHelp
+
+if TYPE_CHECKING:
+    from ..adjudicate_app import TeamApp
+
+Mode = Literal["queue", "history", "aside"]
+HELD = "held by adjudicator"
+
+
+@dataclass(frozen=True)
+class QueueState:
+    """What a queue worker found: the waiting pairs and what the panel says about them."""
+
+    generation: int
+    entries: tuple[tuple[int, str], ...]  # (pair_id, why), in the core's order
+    conflicts: dict[int, ConflictInfo] = field(default_factory=dict)
+    gold: dict[int, tuple[str, str]] = field(default_factory=dict)  # pair -> (label, how)
+    decided: int = 0  # this adjudicator's standing adjudications
+
+
+def load_queue(project: Project, adjudicator: str, generation: int) -> QueueState:
+    """Worker thread: the adjudication queue with conflicts and gold labels, on ``project``."""
+    entries = tuple(adjudication_queue(project))
+    found: dict[int, ConflictInfo] = {}
+    for c in conflicts(project):
+        info = ConflictInfo(c.cluster, len(c.members), c.match_pairs, c.non_match_pairs)
+        for pid in (*c.match_pairs, *c.non_match_pairs):
+            found[pid] = info
+    gold = {g.pair_id: (g.label, g.how) for g in gold_labels(project.connection)}
+    decided = len(project.history(adjudicator, role="adjudicator"))
+    return QueueState(generation, entries, found, gold, decided)
+
+
+class AdjudicateScreen(Screen[None]):
+    HORIZONTAL_BREAKPOINTS: ClassVar[list[tuple[int, str]] | None] = [
+        (0, "-tiny"), (64, "-narrow"), (110, "-wide")]
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("s", "decide('match')", "match", id="match",
+                tooltip="final label: same entity (then give a reason)"),
+        Binding("d", "decide('non-match')", "non-match", id="non-match",
+                tooltip="final label: different entities (then give a reason)"),
+        Binding("h", "decide('hold')", "hold", id="hold",
+                tooltip="cannot settle it yet: hold it (it stays in the queue)"),
+        Binding("z", "undo", "undo", id="undo", tooltip="take back your latest adjudication"),
+        Binding("left_square_bracket", "back", "back", key_display="[", id="history-back",
+                tooltip="step back through your adjudications (decide again to change one)"),
+        Binding("right_square_bracket", "forward", "fwd", key_display="]",
+                id="history-forward", tooltip="step forward again, back to the queue"),
+        Binding("question_mark", "help", "help", key_display="?", id="help",
+                tooltip="this help"),
+        Binding("q", "quit", "quit", id="quit", tooltip="quit (everything is already saved)"),
+        Binding("a", "agreement", "agreement", id="agreement",
+                tooltip="how far the reviewers agree, and their disagreements"),
+        Binding("g", "quality", "quality", id="quality",
+                tooltip="precision and recall from the audit slice; clusters and conflicts"),
+        Binding("escape", "to_queue", "queue", id="to-queue",
+                tooltip="leave your history or an undone pair, back to the queue"),
+        Binding("x", "extra", "columns", id="extra-columns",
+                tooltip="show or hide the columns that are not compared"),
+        Binding("ctrl+l", "redraw", "redraw", show=False, id="redraw",
+                tooltip="paint the screen again"),
+    ]
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.mode: Mode = "queue"
+        self.queue: list[tuple[int, str]] | None = None  # None until the first worker is back
+        self.held: list[int] = []  # pairs this adjudicator held in this session: asked last
+        self.generation = 0
+        self.conflicts: dict[int, ConflictInfo] = {}
+        self.gold: dict[int, tuple[str, str]] = {}
+        self.pair_id: int | None = None
+        self.card: PairCard | None = None
+        self.standing = PairStanding()
+        self.parked: int | None = None  # the queue pair left for history or an undone pair
+        self.trail: list[int] = []
+        self.pos = 0
+        self.where = ""
+        self.shown_at = 0.0
+        self.show_extra = False
+        self.decided = 0
+        self.palette: Palette = PLAIN
+        self._footer_in_queue = True
+
+    @property
+    def team_app(self) -> TeamApp:
+        return self.app  # type: ignore[return-value]
+
+    # -- building ----------------------------------------------------------------------------
+    def compose(self) -> ComposeResult:
+        yield StatusLine(id="status")
+        with Horizontal(id="body"):
+            with VerticalScroll(id="card-box"):
+                yield PairCardView(id="card")
+            yield ReviewsPanel(id="reviews")
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        app = self.team_app
+        self._set_palette()
+        app.theme_changed_signal.subscribe(self, lambda _theme: self._on_theme())
+        self.pace = Pace(app.clock())
+        self.query_one(StatusLine).set_who(app.project_name, app.adjudicator)
+        self._refresh_queue()
+        self._paint()
+        self.set_interval(1.0, self._tick)
+
+    def _set_palette(self) -> None:
+        self.palette = Palette.from_variables(self.app.get_css_variables(), self.app.no_color)
+
+    def _on_theme(self) -> None:
+        self._set_palette()
+        self._paint()
+
+    # -- the queue ---------------------------------------------------------------------------
+    def _refresh_queue(self) -> None:
+        self.generation += 1
+        app, generation = self.team_app, self.generation
+
+        def work() -> QueueState:
+            with app.reader() as project:
+                return load_queue(project, app.adjudicator, generation)
+
+        self.run_worker(work, thread=True, exit_on_error=False, group="queue",
+                        name="adjudication queue")
+
+    def _ordered(self, entries: tuple[tuple[int, str], ...]) -> list[tuple[int, str]]:
+        held = {p: i for i, p in enumerate(self.held)}
+        first = [e for e in entries if e[0] not in held]
+        last = sorted((e for e in entries if e[0] in held), key=lambda e: held[e[0]])
+        return first + last
+
+    def _why(self, pair_id: int) -> str:
+        return next((why for pid, why in self.queue or () if pid == pair_id), "")
+
+    def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
+        worker = event.worker
+        if worker.group != "queue":
+            return
+        if event.state == WorkerState.ERROR:
+            self.notify(f"The adjudication queue could not be read: {worker.error}",
+                        severity="error", markup=False)
+            return
+        if event.state != WorkerState.SUCCESS:
+            return
+        state: QueueState = worker.result
+        if state.generation != self.generation:
+            return  # a later change started a newer count; wait for that one
+        self.queue = self._ordered(state.entries)
+        self.conflicts, self.gold, self.decided = state.conflicts, state.gold, state.decided
+        if self.pair_id is None and self.mode == "queue":
+            self._show_queue()
+        elif self.pair_id is not None:
+            self._show(self.pair_id, self.mode, self.where, keep_time=True)
+        else:
+            self._paint()
+
+    # -- showing a pair ----------------------------------------------------------------------
+    def _show(self, pair_id: int | None, mode: Mode, where: str = "",
+              keep_time: bool = False) -> None:
+        app = self.team_app
+        self.mode, self.pair_id, self.where = mode, pair_id, where
+        if pair_id is None:
+            self.card, self.standing = None, PairStanding()
+        else:
+            why = self._why(pair_id)
+            self.card = app.project.card(pair_id, why or "adjudication")
+            reviews = adjudication.reviews_of(app.project, pair_id, app.adjudicator)
+            self.standing = PairStanding(why, tuple(reviews), self.gold.get(pair_id),
+                                         self.conflicts.get(pair_id))
+        if not keep_time:
+            self.shown_at = app.clock()
+        if (mode == "queue") != self._footer_in_queue:
+            self._footer_in_queue = mode == "queue"
+            self.refresh_bindings()
+        self._paint()
+
+    def _show_queue(self) -> None:
+        parked, self.parked = self.parked, None
+        waiting = [pid for pid, _ in self.queue or ()]
+        if parked is not None and parked in waiting:
+            self._show(parked, "queue")
+            return
+        self._show(waiting[0] if waiting else None, "queue")
+
+    def _empty_message(self) -> Text:
+        if self.queue is None:
+            return Text("Reading the adjudication queue…", self.palette.muted)
+        path = self.team_app.project.path
+        return Text(
+            "Nothing waits for adjudication: every disagreement, hold and cluster conflict is "
+            "settled.\n\nWhat next: [ looks back at your adjudications; a shows how far the "
+            "reviewers agree; g shows the model's quality; q quits. New pairs arrive here as "
+            f"reviewers label overlap pairs (docket review {path}). Export the gold labels "
+            f"with: docket export {path} --what gold -o gold.csv", self.palette.muted)
+
+    def _paint(self) -> None:
+        app = self.team_app
+        card_view = self.query_one(PairCardView)
+        box = self.query_one("#card-box", VerticalScroll)
+        panel = self.query_one(ReviewsPanel)
+        if self.card is None:
+            card_view.show_message(self._empty_message())
+            box.border_title = Text("adjudication queue empty" if self.queue is not None
+                                    else "adjudication")
+            box.border_subtitle = None
+            panel.show_message(Text(""))
+        else:
+            card_view.show(self.card, CardOptions(self.palette, app.mask, self.show_extra))
+            box.border_title = card_title(self.card, self.palette)
+            box.border_subtitle = Text(self.where) if self.where else None
+            panel.show(self.card, self.standing, app.adjudicator, app.blind, self.palette)
+        panel.border_title = "reviews · names hidden" if app.blind else "reviews"
+        status = self.query_one(StatusLine)
+        status.set_counts(self.decided, None if self.queue is None else len(self.queue))
+        self._tick()
+
+    def _tick(self) -> None:
+        now = self.team_app.clock()
+        on_pair = None if self.card is None else now - self.shown_at
+        self.query_one(StatusLine).set_timing(self.pace.per_minute(now), on_pair)
+
+    # -- deciding ----------------------------------------------------------------------------
+    def action_decide(self, label: str) -> None:
+        if self.pair_id is None:
+            self.notify("Nothing to decide: the adjudication queue is empty.",
+                        severity="warning")
+            return
+        self.app.push_screen(ReasonScreen(self.pair_id, label),
+                             partial(self._save, self.pair_id, label))
+
+    def _save(self, pair_id: int, label: str, reason: str | None) -> None:
+        app = self.team_app
+        if reason is None:
+            self.notify("Cancelled: nothing was written.")
+            return
+        try:
+            adjudication.adjudicate(app.project, pair_id, app.adjudicator, label, reason,
+                                    app.clock() - self.shown_at)
+        except (DocketError, sqlite3.Error) as exc:
+            self.notify(f"Not saved: {exc}. The pair stays on screen; try again.",
+                        severity="error", markup=False)
+            return
+        self.pace.record(app.clock())
+        if self.queue is not None:
+            self.queue = [e for e in self.queue if e[0] != pair_id]
+            if pair_id in self.held:
+                self.held.remove(pair_id)
+            if label == "hold":
+                self.held.append(pair_id)
+                self.queue.append((pair_id, HELD))
+        self._refresh_queue()
+        if self.mode == "history":
+            self.pos += 1
+            if self.pos < len(self.trail):
+                self._show_history()
+                return
+        self._show_queue()
+
+    def action_undo(self) -> None:
+        app = self.team_app
+        try:
+            undone = adjudication.undo(app.project, app.adjudicator)
+        except (DocketError, sqlite3.Error) as exc:
+            self.notify(f"Undo not saved: {exc}", severity="error", markup=False)
+            return
+        if undone is None:
+            self.notify("Nothing to undo: you have no standing adjudication.")
+            return
+        if undone.pair_id in self.held:
+            self.held.remove(undone.pair_id)
+        # The queue pair on screen is not parked: still waiting, it comes back in its turn.
+        self._refresh_queue()
+        self._show(undone.pair_id, "aside", f"undone ({undone.label}): decide again")
+
+    # -- moving around -----------------------------------------------------------------------
+    def _park(self) -> None:
+        if self.mode == "queue" and self.pair_id is not None:
+            self.parked = self.pair_id
+
+    def _show_history(self) -> None:
+        where = f"your adjudication {self.pos + 1} of {len(self.trail)}"
+        self._show(self.trail[self.pos], "history", where)
+
+    def action_back(self) -> None:
+        app = self.team_app
+        if self.mode != "history":
+            trail = [d.pair_id for d in app.project.history(app.adjudicator,
+                                                             role="adjudicator")]
+            if not trail:
+                self.notify("No adjudications yet to look back at.")
+                return
+            self._park()
+            self.trail, self.pos = trail, len(trail) - 1
+        elif self.pos == 0:
+            self.notify("This is your first adjudication.")
+            return
+        else:
+            self.pos -= 1
+        self._show_history()
+
+    def action_forward(self) -> None:
+        if self.mode == "queue":
+            self.notify("You are at the newest pair.")
+            return
+        if self.mode == "history" and self.pos + 1 < len(self.trail):
+            self.pos += 1
+            self._show_history()
+            return
+        self._show_queue()
+
+    def action_to_queue(self) -> None:
+        if self.mode != "queue":
+            self._show_queue()
+
+    def action_extra(self) -> None:
+        self.show_extra = not self.show_extra
+        self._paint()
+
+    def action_agreement(self) -> None:
+        from .agreement import AgreementScreen
+        self.app.push_screen(AgreementScreen())
+
+    def action_quality(self) -> None:
+        from .quality import QualityScreen
+        self.app.push_screen(QualityScreen())
+
+    def action_help(self) -> None:
+        app = self.team_app
+        rows = key_rows(self, app.get_key_display, app.keymap.keymap)
+        self.app.push_screen(TeamHelp(rows, app.keymap.path, app.keymap.problems,
+                                      ADJUDICATION))
+
+    def action_quit(self) -> None:
+        self.app.exit()
+
+    def action_redraw(self) -> None:
+        self._paint()
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        if action == "to_queue":
+            return self.mode != "queue"
+        return True

@@ -1,0 +1,361 @@
+"""The agreement screen: the reviewer-by-reviewer kappa matrix, and each pair's disagreements.
+
+The figures come from ``core.team.agreement_report``, worked out in a worker. A cell holds
+Cohen's kappa with its 95 % CI, the number of pairs it rests on and the Landis & Koch band;
+Enter on a cell lists where those two reviewers differ, and Enter on one of those opens the
+pair with both labels and notes. With ``--blind`` the reviewers are "reviewer A", "B"...
+"""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING, Any, ClassVar
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import VerticalScroll
+from textual.coordinate import Coordinate
+from textual.screen import Screen
+from textual.widgets import DataTable, Footer, Static
+from textual.worker import Worker, WorkerState
+
+from docket.core.team import agreement_report, disagreements
+
+from .. import literal
+from ..diff import PLAIN, Palette
+from ..widgets.reviews import blind_aliases, label_style
+from .help import key_rows
+from .pair_detail import PairDetailScreen
+from .team_help import AGREEMENT, TeamHelp
+
+if TYPE_CHECKING:
+    from ..adjudicate_app import TeamApp
+
+NAME_WIDTH = 18
+
+
+def _num(value: float | None, digits: int = 2) -> str:
+    return "—" if value is None else f"{value:.{digits}f}"
+
+
+def _pct(value: float | None) -> str:
+    return "—" if value is None else f"{100 * value:.1f} %"
+
+
+def cell_text(entry: dict[str, Any] | None, palette: Palette = PLAIN) -> Text:
+    """One matrix cell: ``0.62 [0.48, 0.76]`` over ``n 40 · Substantial``."""
+    if entry is None:
+        return Text("no pairs\nin common", palette.muted)
+    if entry["kappa"] is None:
+        top = Text("kappa undefined", palette.muted)
+    else:
+        top = Text(f"{entry['kappa']:.2f} ", palette.heading)
+        top.append(f"[{_num(entry['ci_low'])}, {_num(entry['ci_high'])}]")
+    top.append(f"\nn {entry['n']:,} · {entry['band']}", palette.muted)
+    return top
+
+
+def detail_text(entry: dict[str, Any], shown: dict[str, str], palette: Palette = PLAIN
+                ) -> Text:
+    """Every figure for the highlighted reviewer pair; names as ``shown`` maps them."""
+    p = palette
+    a = shown.get(entry["reviewer_a"], entry["reviewer_a"])
+    b = shown.get(entry["reviewer_b"], entry["reviewer_b"])
+    text = literal.one_line(a, NAME_WIDTH, p.escape)
+    text.append(" × ")
+    text.append_text(literal.one_line(b, NAME_WIDTH, p.escape))
+    text.append(f": {entry['n']:,} pairs used of {entry['n_common']:,} in common\n", p.muted)
+    text.append("Cohen's kappa ", p.muted)
+    text.append(_num(entry["kappa"], 3), p.heading)
+    text.append(f"  SE {_num(entry['se'], 3)}  95 % CI [{_num(entry['ci_low'], 3)}, "
+                f"{_num(entry['ci_high'], 3)}]  {entry['band']}\n")
+    text.append(f"observed {_num(entry['observed'], 3)}  chance {_num(entry['expected'], 3)}  "
+                f"PABAK {_num(entry['pabak'], 3)}  prevalence index "
+                f"{_num(entry['prevalence_index'], 3)}  bias index "
+                f"{_num(entry['bias_index'], 3)}\n", p.muted)
+    text.append("holds on the pairs in common: ", p.muted)
+    text.append_text(literal.one_line(a, NAME_WIDTH, p.escape))
+    text.append(f" {_pct(entry['hold_rate_a'])}, ", p.muted)
+    text.append_text(literal.one_line(b, NAME_WIDTH, p.escape))
+    text.append(f" {_pct(entry['hold_rate_b'])} · Enter lists their disagreements", p.muted)
+    return text
+
+
+def overall_text(report: dict[str, Any], shown: dict[str, str],
+                 palette: Palette = PLAIN) -> Text:
+    p = palette
+    o = report["overall"]
+    text = Text("all reviewers  ", p.muted)
+    if o["fleiss_units"]:
+        text.append(f"Fleiss' kappa {_num(o['fleiss_kappa'], 3)} ({o['fleiss_band']}) on "
+                    f"{o['fleiss_units']:,} pairs with {o['fleiss_raters']} ratings each")
+    else:
+        text.append("Fleiss' kappa — (no pair has two ratings yet)")
+    text.append(f" · Krippendorff's alpha (nominal) {_num(o['krippendorff_alpha'], 3)} on "
+                f"{o['alpha_units']:,} pairs\n")
+    ds = report.get("dawid_skene")
+    if ds:
+        text.append("Dawid–Skene  ", p.muted)
+        parts = []
+        for name, v in sorted(ds["reviewers"].items(), key=lambda kv: shown.get(kv[0], kv[0])):
+            part = literal.one_line(shown.get(name, name), NAME_WIDTH, p.escape)
+            part.append(f" sensitivity {_num(v['sensitivity'])}, specificity "
+                        f"{_num(v['specificity'])}")
+            parts.append(part)
+        text.append_text(Text("; ").join(parts))
+        text.append("\n")
+    c = report["conventions"]
+    text.append(f"{c['holds']}.\nSE: {c['se']}. CI: {c['ci']}.\nBands: {c['bands']}.",
+                p.muted)
+    return text
+
+
+class AgreementScreen(Screen[None]):
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("enter", "open", "disagreements", id="agreement-open", priority=True,
+                tooltip="list the disagreements of the reviewer pair under the cursor"),
+        Binding("h", "holds", "holds", id="agreement-holds",
+                tooltip="count hold as a third category, or (again) as no rating"),
+        Binding("r", "reload", "recount", id="agreement-reload",
+                tooltip="work the figures out again from the latest labels"),
+        Binding("question_mark", "help", "help", key_display="?", id="agreement-help",
+                tooltip="this help"),
+        Binding("escape", "back", "back", id="agreement-back",
+                tooltip="back to the screen you came from"),
+        Binding("q", "quit", "quit", id="agreement-quit", tooltip="quit docket"),
+    ]
+
+    def __init__(self, standalone: bool = False) -> None:
+        super().__init__()
+        self.standalone = standalone
+        self.include_hold = False
+        self.report: dict[str, Any] | None = None
+        self.shown: dict[str, str] = {}  # reviewer -> name on screen
+        self.entries: dict[tuple[str, str], dict[str, Any]] = {}
+        self.palette: Palette = PLAIN
+
+    @property
+    def team_app(self) -> TeamApp:
+        return self.app  # type: ignore[return-value]
+
+    def compose(self) -> ComposeResult:
+        with VerticalScroll(id="agree-body"):
+            yield Static(id="agree-head")
+            yield DataTable(id="agree-matrix", cursor_type="cell", zebra_stripes=True)
+            yield Static(id="agree-detail")
+            yield Static(id="agree-overall")
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        self.palette = Palette.from_variables(self.app.get_css_variables(), self.app.no_color)
+        self.query_one("#agree-head", Static).update(Text("Working out agreement…"))
+        self._load()
+
+    def _load(self) -> None:
+        app, include_hold = self.team_app, self.include_hold
+
+        def work() -> dict[str, Any]:
+            with app.reader() as project:
+                return agreement_report(project, include_hold=include_hold)
+
+        self.run_worker(work, thread=True, exit_on_error=False, group="agreement", name="agreement",
+                        exclusive=True)
+
+    def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
+        if event.worker.group != "agreement":
+            return
+        if event.state == WorkerState.ERROR:
+            self.query_one("#agree-head", Static).update(
+                Text(f"Agreement could not be worked out: {event.worker.error}"))
+            return
+        if event.state == WorkerState.SUCCESS:
+            report: dict[str, Any] = event.worker.result
+            if report["include_hold"] == self.include_hold:
+                self._paint(report)
+
+    # -- painting ----------------------------------------------------------------------------
+    def _paint(self, report: dict[str, Any]) -> None:
+        app, p = self.team_app, self.palette
+        self.report = report
+        names = list(report["reviewers"])
+        self.shown = blind_aliases(names) if app.blind else {n: n for n in names}
+        names.sort(key=lambda n: self.shown[n])
+        self.entries = {}
+        for r in report["reviewer_pairs"]:
+            self.entries[(r["reviewer_a"], r["reviewer_b"])] = r
+            self.entries[(r["reviewer_b"], r["reviewer_a"])] = r
+        head = Text(f"agreement · {app.project_name} · ", "bold")
+        head.append(f"{len(names)} reviewer{'s' if len(names) != 1 else ''}")
+        head.append(" · holds counted as a third category" if report["include_hold"] else
+                    " · holds count as no rating", p.muted)
+        if not report["reviewer_pairs"]:
+            head.append("\nNo two reviewers have pairs in common yet: agreement needs overlap "
+                        "pairs decided by two reviewers (docket review, or docket label).",
+                        p.heading)
+        self.query_one("#agree-head", Static).update(head)
+        table = self.query_one(DataTable)
+        table.clear(columns=True)
+        for name in names:
+            table.add_column(literal.one_line(self.shown[name], NAME_WIDTH, p.escape),
+                             key=name)
+        for row in names:
+            cells: list[Text] = []
+            for col in names:
+                if col == row:
+                    given = report["reviewers"][row]
+                    cells.append(Text(f"{given['labels']:,} labels\n{given['holds']:,} holds",
+                                      p.muted))
+                else:
+                    cells.append(cell_text(self.entries.get((row, col)), p))
+            table.add_row(*cells, height=2, key=row,
+                          label=literal.one_line(self.shown[row], NAME_WIDTH, p.escape))
+        self.query_one("#agree-overall", Static).update(overall_text(report, self.shown, p))
+        if report["reviewer_pairs"]:  # start on the reviewer pair with most pairs used
+            top = max(report["reviewer_pairs"], key=lambda r: r["n"])
+            a, b = sorted((top["reviewer_a"], top["reviewer_b"]), key=names.index)
+            table.move_cursor(row=names.index(a), column=names.index(b))
+        self._detail_at(table.cursor_coordinate.row, table.cursor_coordinate.column)
+        if names:
+            table.focus()
+
+    def _pair_at(self, row: int, column: int) -> tuple[str, str] | None:
+        table = self.query_one(DataTable)
+        if self.report is None or not table.is_valid_coordinate(Coordinate(row, column)):
+            return None
+        key = table.coordinate_to_cell_key(Coordinate(row, column))
+        a, b = str(key.row_key.value), str(key.column_key.value)
+        return (a, b) if a != b and (a, b) in self.entries else None
+
+    def _detail_at(self, row: int, column: int) -> None:
+        found = self._pair_at(row, column)
+        detail = self.query_one("#agree-detail", Static)
+        if found is None:
+            detail.update(Text("Move to a cell of two reviewers to see every figure; Enter "
+                               "lists their disagreements.", self.palette.muted))
+            return
+        detail.update(detail_text(self.entries[found], self.shown, self.palette))
+
+    def on_data_table_cell_highlighted(self, event: DataTable.CellHighlighted) -> None:
+        self._detail_at(event.coordinate.row, event.coordinate.column)
+
+    def on_data_table_cell_selected(self, event: DataTable.CellSelected) -> None:
+        event.stop()
+        self._open(event.coordinate.row, event.coordinate.column)
+
+    def _open(self, row: int, column: int) -> None:
+        found = self._pair_at(row, column)
+        if found is None:
+            self.notify("Choose a cell of two reviewers with pairs in common.")
+            return
+        self.app.push_screen(DisagreementsScreen(*found, self.shown))
+
+    # -- actions -----------------------------------------------------------------------------
+    def action_open(self) -> None:
+        table = self.query_one(DataTable)
+        self._open(table.cursor_coordinate.row, table.cursor_coordinate.column)
+
+    def action_holds(self) -> None:
+        self.include_hold = not self.include_hold
+        self.query_one("#agree-head", Static).update(Text("Working out agreement…"))
+        self._load()
+
+    def action_reload(self) -> None:
+        self._load()
+
+    def action_help(self) -> None:
+        app = self.team_app
+        rows = key_rows(self, app.get_key_display, app.keymap.keymap)
+        self.app.push_screen(TeamHelp(rows, app.keymap.path, app.keymap.problems, AGREEMENT))
+
+    def action_back(self) -> None:
+        self.app.pop_screen()
+
+    def action_quit(self) -> None:
+        self.app.exit()
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        if action == "back":
+            return not self.standalone
+        return True
+
+
+class DisagreementsScreen(Screen[None]):
+    """Where two reviewers labelled the same pairs differently; Enter opens a pair."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("enter", "open", "open pair", id="disagreements-open", priority=True,
+                tooltip="the pair under the cursor, with both labels and notes"),
+        Binding("escape", "back", "back", id="disagreements-back",
+                tooltip="back to the kappa matrix"),
+        Binding("q", "quit", "quit", id="disagreements-quit", tooltip="quit docket"),
+    ]
+
+    def __init__(self, a: str, b: str, shown: dict[str, str]) -> None:
+        super().__init__()
+        self.a, self.b = a, b
+        self.shown = shown
+        self.rows: list[dict[str, Any]] = []
+
+    @property
+    def team_app(self) -> TeamApp:
+        return self.app  # type: ignore[return-value]
+
+    def compose(self) -> ComposeResult:
+        yield Static(id="disagree-head")
+        yield DataTable(id="disagree-table", cursor_type="row", zebra_stripes=True)
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        app = self.team_app
+        p = Palette.from_variables(self.app.get_css_variables(), self.app.no_color)
+        self.rows = disagreements(app.project, self.a, self.b)
+        sa, sb = self.shown.get(self.a, self.a), self.shown.get(self.b, self.b)
+        head = Text(f"{len(self.rows):,} disagreement{'s' if len(self.rows) != 1 else ''} of ",
+                    "bold")
+        head.append_text(literal.one_line(sa, NAME_WIDTH, p.escape))
+        head.append(" and ", "bold")
+        head.append_text(literal.one_line(sb, NAME_WIDTH, p.escape))
+        head.append(" (a hold against a label counts) · Enter opens the pair", p.muted)
+        self.query_one("#disagree-head", Static).update(head)
+        table = self.query_one(DataTable)
+        for label in ("pair", "left", "right"):
+            table.add_column(Text(label, p.muted))
+        for name in (sa, sb):
+            table.add_column(literal.one_line(name, NAME_WIDTH, p.escape))
+            table.add_column(Text("note", p.muted))
+        for r in self.rows:
+            table.add_row(Text(str(r["pair_id"])), literal.one_line(r["left_id"], 16, p.escape),
+                          literal.one_line(r["right_id"], 16, p.escape),
+                          Text(r["label_a"], label_style(r["label_a"], p)),
+                          literal.one_line(r["note_a"] or "—", 28, p.escape),
+                          Text(r["label_b"], label_style(r["label_b"], p)),
+                          literal.one_line(r["note_b"] or "—", 28, p.escape),
+                          key=str(r["pair_id"]))
+        table.focus()
+
+    def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
+        event.stop()
+        self._open(int(str(event.row_key.value)))
+
+    def action_open(self) -> None:
+        table = self.query_one(DataTable)
+        if not self.rows or not table.is_valid_row_index(table.cursor_row):
+            self.notify("No disagreement to open.")
+            return
+        key = table.coordinate_to_cell_key(Coordinate(table.cursor_row, 0)).row_key
+        self._open(int(str(key.value)))
+
+    def _open(self, pair_id: int) -> None:
+        p = Palette.from_variables(self.app.get_css_variables(), self.app.no_color)
+        heading = Text(f"pair {pair_id}: a disagreement of ", p.muted)
+        heading.append_text(literal.one_line(self.shown.get(self.a, self.a), NAME_WIDTH))
+        heading.append(" and ", p.muted)
+        heading.append_text(literal.one_line(self.shown.get(self.b, self.b), NAME_WIDTH))
+        heading.append(" · Escape goes back to the list", p.muted)
+        self.app.push_screen(PairDetailScreen(pair_id, heading, self.shown))
+
+    def action_back(self) -> None:
+        self.app.pop_screen()
+
+    def action_quit(self) -> None:
+        self.app.exit()

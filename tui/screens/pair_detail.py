@@ -1,0 +1,89 @@
+"""One pair looked at from the agreement or quality screen: the card and everyone's labels.
+
+Read-only: nothing is decided here (adjudication happens on the adjudication screen).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from typing import TYPE_CHECKING, ClassVar
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import Horizontal, VerticalScroll
+from textual.screen import Screen
+from textual.widgets import Footer, Static
+
+from docket.core import adjudication
+from docket.core.gold import gold_labels
+
+from ..diff import Palette
+from ..widgets import CardOptions, PairCardView
+from ..widgets.pair_card import card_title
+from ..widgets.reviews import PairStanding, ReviewsPanel
+
+if TYPE_CHECKING:
+    from ..adjudicate_app import TeamApp
+
+
+class PairDetailScreen(Screen[None]):
+    HORIZONTAL_BREAKPOINTS: ClassVar[list[tuple[int, str]] | None] = [
+        (0, "-tiny"), (64, "-narrow"), (110, "-wide")]
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("escape", "back", "back", id="detail-back", tooltip="back to the list"),
+        Binding("x", "extra", "columns", id="detail-extra-columns",
+                tooltip="show or hide the columns that are not compared"),
+        Binding("q", "quit", "quit", id="detail-quit", tooltip="quit docket"),
+    ]
+
+    def __init__(self, pair_id: int, heading: Text | None = None,
+                 aliases: Mapping[str, str] | None = None) -> None:
+        super().__init__()
+        self.pair_id = pair_id
+        self.heading = heading or Text()
+        self.aliases = aliases
+        self.show_extra = False
+
+    @property
+    def team_app(self) -> TeamApp:
+        return self.app  # type: ignore[return-value]
+
+    def compose(self) -> ComposeResult:
+        yield Static(self.heading, id="detail-heading")
+        with Horizontal(id="body"):
+            with VerticalScroll(id="card-box"):
+                yield PairCardView(id="card")
+            yield ReviewsPanel(id="reviews")
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        self._paint()
+
+    def _paint(self) -> None:
+        app = self.team_app
+        palette = Palette.from_variables(self.app.get_css_variables(), self.app.no_color)
+        project = app.project
+        card = project.card(self.pair_id, "")
+        reviews = adjudication.reviews_of(project, self.pair_id, app.adjudicator)
+        with project.reading() as conn:
+            gold = next(((g.label, g.how) for g in gold_labels(conn)
+                         if g.pair_id == self.pair_id), None)
+        self.query_one(PairCardView).show(card, CardOptions(palette, app.mask,
+                                                            self.show_extra))
+        box = self.query_one("#card-box", VerticalScroll)
+        box.border_title = card_title(card, palette)
+        panel = self.query_one(ReviewsPanel)
+        panel.show(card, PairStanding(None, tuple(reviews), gold), app.adjudicator, app.blind,
+                   palette, self.aliases)
+        panel.border_title = "reviews · names hidden" if app.blind else "reviews"
+
+    def action_extra(self) -> None:
+        self.show_extra = not self.show_extra
+        self._paint()
+
+    def action_back(self) -> None:
+        self.app.pop_screen()
+
+    def action_quit(self) -> None:
+        self.app.exit()

@@ -1,0 +1,367 @@
+"""The quality screen: how good the model is, honestly, and where the gold labels contradict.
+
+Three tabs. Plots: the score of gold-labelled pairs by label, and the precision–recall curve
+(design-based from the audit slice, with the naive curve beside it). Thresholds: the table of
+``core.evaluate`` with intervals, the naive figures marked biased, and the note that recall is
+within the candidate pairs. Clusters: the conflicts, clusters of gold matches holding a gold
+non-match (Enter shows the members). Everything is worked out in a worker.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, Any, ClassVar
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import Horizontal, VerticalScroll
+from textual.coordinate import Coordinate
+from textual.screen import Screen
+from textual.widgets import DataTable, Footer, Static, TabbedContent, TabPane
+from textual.worker import Worker, WorkerState
+from textual_plotext import PlotextPlot
+
+from docket.core.errors import DocketError
+from docket.core.evaluate import DEFAULT_THRESHOLDS, evaluate, model_scores
+from docket.core.gold import gold_labels
+from docket.core.gold_export import ClusterConflict, clusters_frame, conflicts
+from docket.core.project import Project
+
+from .. import literal
+from ..diff import PLAIN, Palette
+from .conflict import ConflictScreen
+from .help import key_rows
+from .team_help import QUALITY, TeamHelp
+
+if TYPE_CHECKING:
+    from ..adjudicate_app import TeamApp
+
+CURVE = tuple(round(0.025 * i, 3) for i in range(1, 40))  # thresholds of the drawn curve
+BINS = 20
+
+
+@dataclass(frozen=True)
+class QualityData:
+    """What the worker found; a part that could not be worked out says why instead."""
+
+    report: dict[str, Any] | None = None  # core.evaluate at its default thresholds
+    curve: dict[str, Any] | None = None  # core.evaluate on a fine grid, for the curve
+    problem: str = ""  # why there is no report
+    scores: dict[str, list[float]] = field(default_factory=dict)  # gold label -> scores
+    conflicts: tuple[ClusterConflict, ...] = ()
+    clusters: int = 0  # clusters of two or more records
+    largest: int = 0
+    clustered: int = 0  # records in those clusters
+    cluster_problem: str = ""
+
+
+def load_quality(project: Project) -> QualityData:
+    """Worker thread: evaluation, scores by gold label, clusters and conflicts."""
+    report = curve = None
+    problem = cluster_problem = ""
+    try:
+        report = evaluate(project)
+        curve = evaluate(project, thresholds=CURVE)
+    except DocketError as exc:
+        problem = str(exc)
+    except (ValueError, ArithmeticError) as exc:  # a figure the estimator could not form
+        problem = f"the estimates could not be worked out ({exc})"
+    scores: dict[str, list[float]] = {"match": [], "non-match": []}
+    by_pair = model_scores(project)
+    for g in gold_labels(project.connection):
+        scores.setdefault(g.label, []).append(float(by_pair.get(g.pair_id, 0.0)))
+    found: tuple[ClusterConflict, ...] = ()
+    clusters = largest = clustered = 0
+    try:
+        found = tuple(conflicts(project))
+        frame = clusters_frame(project)
+        sizes = frame.drop_duplicates("cluster")["cluster_size"]
+        multi = sizes[sizes >= 2]
+        clusters, clustered = len(multi), int(multi.sum())
+        largest = int(multi.max()) if len(multi) else 0
+    except (DocketError, ValueError) as exc:
+        cluster_problem = f"clusters could not be formed ({exc})"
+    return QualityData(report, curve, problem, scores, found, clusters, largest, clustered,
+                       cluster_problem)
+
+
+def interval(d: dict[str, Any]) -> Text:
+    if d.get("value") is None:
+        return Text("—")
+    if d.get("low") is None:
+        return Text(f"{d['value']:.3f}")
+    return Text(f"{d['value']:.3f} [{d['low']:.3f}, {d['high']:.3f}]")
+
+
+def _point(d: dict[str, Any]) -> str:
+    return "—" if d.get("value") is None else f"{d['value']:.3f}"
+
+
+def notes_text(report: dict[str, Any], palette: Palette = PLAIN) -> Text:
+    p = palette
+    at, naive = report["at_threshold"], report["naive_at_threshold"]
+    text = Text(f"* the project's decision threshold, {report['threshold']:g}. Intervals: "
+                f"precision and recall {at['precision']['method']}; F1 {at['f1']['method']}. "
+                f"Predicted: estimated matches among {at['n_pairs']:,} candidate pairs.\n",
+                p.muted)
+    s, best = report["suggested"], report["best_f1"]
+    if s is not None and s["threshold"] is not None:
+        text.append(f"suggested threshold {s['threshold']:.4g} for {s['target']} ≥ "
+                    f"{s['goal']:g} ({s['note']})\n")
+    elif best is not None:
+        text.append(f"highest estimated F1 in the table: {best['f1']:.3f} at threshold "
+                    f"{best['threshold']:g} (docket evaluate --target-precision P or "
+                    "--target-recall R suggests one for a goal)\n")
+    text.append("naive column: ", p.heading)
+    text.append(f"precision / recall {naive['note']}; their Wilson intervals are in "
+                "docket evaluate --json.\n", p.muted)
+    scope = report["scope"]
+    text.append(scope["note"].capitalize() + ".", p.heading)
+    b = scope["blocking"]
+    if b.get("candidate_pairs") is not None:
+        text.append(f" Blocking reach: {b['candidate_pairs']:,} candidate pairs of "
+                    f"{b['possible_pairs']:,} possible (reduction ratio "
+                    f"{b['reduction_ratio']:.4f}).", p.muted)
+    for note in (n for n in at["note"].split("; ") if n):
+        text.append(f"\nat {at['threshold']:g}: {note}", p.muted)
+    return text
+
+
+class QualityScreen(Screen[None]):
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("1", "tab('tab-plots')", "plots", id="quality-plots",
+                tooltip="score by gold label and the precision-recall curve"),
+        Binding("2", "tab('tab-thresholds')", "thresholds", id="quality-thresholds",
+                tooltip="precision, recall and F1 per threshold, with intervals"),
+        Binding("3", "tab('tab-clusters')", "clusters", id="quality-clusters",
+                tooltip="clusters of gold matches and their conflicts"),
+        Binding("enter", "open", "members", id="quality-open", priority=True,
+                tooltip="clusters tab: the members and gold labels of the conflict under "
+                        "the cursor"),
+        Binding("r", "reload", "recount", id="quality-reload",
+                tooltip="work everything out again from the latest labels"),
+        Binding("question_mark", "help", "help", key_display="?", id="quality-help",
+                tooltip="this help"),
+        Binding("escape", "back", "back", id="quality-back",
+                tooltip="back to the screen you came from"),
+        Binding("q", "quit", "quit", id="quality-quit", tooltip="quit docket"),
+    ]
+
+    def __init__(self, standalone: bool = False) -> None:
+        super().__init__()
+        self.standalone = standalone
+        self.data: QualityData | None = None
+        self.palette: Palette = PLAIN
+
+    @property
+    def team_app(self) -> TeamApp:
+        return self.app  # type: ignore[return-value]
+
+    def compose(self) -> ComposeResult:
+        yield Static(id="quality-head")
+        with TabbedContent(id="quality-tabs", initial="tab-thresholds"):
+            with TabPane("plots", id="tab-plots"), Horizontal(id="quality-plots"):
+                yield PlotextPlot(id="score-plot")
+                yield PlotextPlot(id="pr-plot")
+            with TabPane("thresholds", id="tab-thresholds"), VerticalScroll():
+                yield DataTable(id="threshold-table", cursor_type="row", zebra_stripes=True)
+                yield Static(id="threshold-notes")
+            with TabPane("clusters", id="tab-clusters"), VerticalScroll():
+                yield Static(id="cluster-summary")
+                yield DataTable(id="conflict-table", cursor_type="row", zebra_stripes=True)
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        self.palette = Palette.from_variables(self.app.get_css_variables(), self.app.no_color)
+        self.query_one("#quality-head", Static).update(Text("Working out the quality figures…"))
+        self._load()
+
+    def _load(self) -> None:
+        app = self.team_app
+
+        def work() -> QualityData:
+            with app.reader() as project:
+                return load_quality(project)
+
+        self.run_worker(work, thread=True, exit_on_error=False, group="quality", name="quality",
+                        exclusive=True)
+
+    def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
+        if event.worker.group != "quality":
+            return
+        if event.state == WorkerState.ERROR:
+            self.query_one("#quality-head", Static).update(
+                Text(f"The quality figures could not be worked out: {event.worker.error}"))
+        elif event.state == WorkerState.SUCCESS:
+            self.data = event.worker.result
+            self._paint()
+
+    # -- painting ----------------------------------------------------------------------------
+    def _paint(self) -> None:
+        data, p = self.data, self.palette
+        if data is None:
+            return
+        head = Text(f"quality · {self.team_app.project_name} · ", "bold")
+        if data.report is None:
+            head.append(f"no estimates yet: {data.problem}", p.heading)
+        else:
+            a = data.report["audit"]
+            head.append(f"from the audit slice: {a['labelled']:,} of {a['drawn']:,} drawn pairs "
+                        f"have gold labels ({a['matches']:,} matches); "
+                        f"{data.report['confidence']:.0%} intervals")
+        self.query_one("#quality-head", Static).update(head)
+        self._table(data)
+        self._plots(data)
+        self._clusters(data)
+
+    def _table(self, data: QualityData) -> None:
+        p = self.palette
+        table = self.query_one("#threshold-table", DataTable)
+        table.clear(columns=True)
+        notes = self.query_one("#threshold-notes", Static)
+        if data.report is None:
+            notes.update(Text(f"No threshold table yet: {data.problem}", p.heading))
+            return
+        for label in ("", "threshold", "precision [95 % CI]", "recall [95 % CI]",
+                      "F1 [95 % CI]", "predicted", "naive P / R (biased)"):
+            table.add_column(Text(label, p.negative if label.startswith("naive") else p.muted))
+        report = data.report
+        shown = set(DEFAULT_THRESHOLDS) | {report["threshold"]}
+        for e, n in zip(report["estimates"], report["naive"], strict=True):
+            if e["threshold"] not in shown:
+                continue
+            mark = "*" if e["threshold"] == report["threshold"] else ""
+            table.add_row(Text(mark, p.heading), Text(f"{e['threshold']:g}"),
+                          interval(e["precision"]), interval(e["recall"]), interval(e["f1"]),
+                          Text(f"{e['predicted_positives']:,.0f}"),
+                          Text(f"{_point(n['precision'])} / {_point(n['recall'])}", p.muted),
+                          key=str(e["threshold"]))
+        notes.update(notes_text(report, p))
+
+    def _plots(self, data: QualityData) -> None:
+        scores = self.query_one("#score-plot", PlotextPlot)
+        plt = scores.plt
+        plt.clear_figure()
+        plt.title("score of gold-labelled pairs, by gold label")
+        plt.xlabel("model score (match probability)")
+        plt.ylabel("gold-labelled pairs")
+        for label in ("non-match", "match"):
+            values = data.scores.get(label, [])
+            if values:
+                plt.hist(values, bins=BINS, label=f"gold {label} ({len(values):,})")
+        plt.xlim(0, 1)
+        scores.refresh()
+        pr = self.query_one("#pr-plot", PlotextPlot)
+        plt = pr.plt
+        plt.clear_figure()
+        plt.xlabel("recall (within the candidate pairs)")
+        plt.ylabel("precision")
+        ticks = [0.0, 0.25, 0.5, 0.75, 1.0]
+        plt.xlim(0, 1)
+        plt.ylim(0, 1)
+        plt.xticks(ticks)
+        plt.yticks(ticks)
+        if data.curve is None:
+            plt.title("precision-recall: no estimates yet")
+        else:
+            plt.title("precision-recall from the audit slice")
+            for rows, name in ((data.curve["estimates"], "design-based"),
+                               (data.curve["naive"], "naive (biased)")):
+                points = [(r["recall"]["value"], r["precision"]["value"]) for r in rows
+                          if r["recall"]["value"] is not None and
+                          r["precision"]["value"] is not None]
+                if points:
+                    plt.plot([x for x, _ in points], [y for _, y in points], label=name,
+                             marker="braille")
+            at = data.report["at_threshold"] if data.report else None
+            if at and at["recall"]["value"] is not None and at["precision"]["value"] is not None:
+                plt.scatter([at["recall"]["value"]], [at["precision"]["value"]], marker="x",
+                            label=f"threshold {at['threshold']:g}")
+        pr.refresh()
+
+    def _clusters(self, data: QualityData) -> None:
+        p = self.palette
+        summary = Text()
+        if data.cluster_problem:
+            summary.append(data.cluster_problem, p.heading)
+        else:
+            summary.append(f"{data.clusters:,} clusters of two or more records hold "
+                           f"{data.clustered:,} records (largest {data.largest:,}), from the "
+                           "gold matches. ")
+            if data.conflicts:
+                summary.append(f"{len(data.conflicts):,} conflict"
+                               f"{'s' if len(data.conflicts) != 1 else ''}: a chain of gold "
+                               "matches joins two records that a gold non-match keeps apart. "
+                               "They wait in the adjudication queue. Enter shows the members.",
+                               p.heading)
+            else:
+                summary.append("No conflicts: no gold non-match falls inside a cluster.",
+                               p.muted)
+        self.query_one("#cluster-summary", Static).update(summary)
+        table = self.query_one("#conflict-table", DataTable)
+        table.clear(columns=True)
+        for label in ("cluster", "records", "gold non-match", "held together by gold matches"):
+            table.add_column(Text(label, p.muted))
+        for c in data.conflicts:
+            members = Text(f"{len(c.members)}: ")
+            members.append_text(literal.one_line(", ".join(rid for _, rid in c.members), 40,
+                                                 p.escape))
+            table.add_row(Text(str(c.cluster)), members,
+                          Text(", ".join(map(str, c.non_match_pairs))),
+                          Text(", ".join(map(str, c.match_pairs[:12])) +
+                               (" …" if len(c.match_pairs) > 12 else "")),
+                          key=str(c.cluster))
+
+    def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
+        if event.data_table.id != "conflict-table":
+            return
+        event.stop()
+        self._open(int(str(event.row_key.value)))
+
+    def action_open(self) -> None:
+        table = self.query_one("#conflict-table", DataTable)
+        if not table.row_count:
+            self.notify("No conflict to open: no gold non-match falls inside a cluster.")
+            return
+        key = table.coordinate_to_cell_key(Coordinate(table.cursor_row, 0)).row_key
+        self._open(int(str(key.value)))
+
+    def _open(self, cluster: int) -> None:
+        found = next((c for c in self.data.conflicts if c.cluster == cluster), None) \
+            if self.data is not None else None
+        if found is not None:
+            self.app.push_screen(ConflictScreen(found))
+
+    def on_tabbed_content_tab_activated(self, event: TabbedContent.TabActivated) -> None:
+        self.refresh_bindings()  # Enter opens a conflict only on the clusters tab
+
+    # -- actions -----------------------------------------------------------------------------
+    def action_tab(self, tab: str) -> None:
+        self.query_one(TabbedContent).active = tab
+        focus = {"tab-thresholds": "#threshold-table", "tab-clusters": "#conflict-table"}
+        if tab in focus:
+            self.query_one(focus[tab], DataTable).focus()
+
+    def action_reload(self) -> None:
+        self.query_one("#quality-head", Static).update(Text("Working out the quality figures…"))
+        self._load()
+
+    def action_help(self) -> None:
+        app = self.team_app
+        rows = key_rows(self, app.get_key_display, app.keymap.keymap)
+        self.app.push_screen(TeamHelp(rows, app.keymap.path, app.keymap.problems, QUALITY))
+
+    def action_back(self) -> None:
+        self.app.pop_screen()
+
+    def action_quit(self) -> None:
+        self.app.exit()
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        if action == "back":
+            return not self.standalone
+        if action == "open":
+            tabs = self.query(TabbedContent)
+            return bool(tabs) and tabs.first().active == "tab-clusters"
+        return True
