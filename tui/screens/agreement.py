@@ -15,7 +15,6 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import VerticalScroll
 from textual.coordinate import Coordinate
-from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Static
 from textual.worker import Worker, WorkerState
 
@@ -24,12 +23,12 @@ from docket.core.team import agreement_report, disagreements
 from .. import literal
 from ..diff import PLAIN, Palette
 from ..widgets.reviews import blind_aliases, label_style
-from .help import key_rows
 from .pair_detail import PairDetailScreen
-from .team_help import AGREEMENT, TeamHelp
+from .team_base import TeamScreen
+from .team_help import AGREEMENT
 
 if TYPE_CHECKING:
-    from ..adjudicate_app import TeamApp
+    pass
 
 NAME_WIDTH = 18
 
@@ -110,7 +109,8 @@ def overall_text(report: dict[str, Any], shown: dict[str, str],
     return text
 
 
-class AgreementScreen(Screen[None]):
+class AgreementScreen(TeamScreen):
+    HELP = AGREEMENT
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("enter", "open", "disagreements", id="agreement-open", priority=True,
                 tooltip="list the disagreements of the reviewer pair under the cursor"),
@@ -133,10 +133,6 @@ class AgreementScreen(Screen[None]):
         self.shown: dict[str, str] = {}  # reviewer -> name on screen
         self.entries: dict[tuple[str, str], dict[str, Any]] = {}
         self.palette: Palette = PLAIN
-
-    @property
-    def team_app(self) -> TeamApp:
-        return self.app  # type: ignore[return-value]
 
     def compose(self) -> ComposeResult:
         with VerticalScroll(id="agree-body"):
@@ -262,24 +258,13 @@ class AgreementScreen(Screen[None]):
     def action_reload(self) -> None:
         self._load()
 
-    def action_help(self) -> None:
-        app = self.team_app
-        rows = key_rows(self, app.get_key_display, app.keymap.keymap)
-        self.app.push_screen(TeamHelp(rows, app.keymap.path, app.keymap.problems, AGREEMENT))
-
-    def action_back(self) -> None:
-        self.app.pop_screen()
-
-    def action_quit(self) -> None:
-        self.app.exit()
-
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
         if action == "back":
             return not self.standalone
         return True
 
 
-class DisagreementsScreen(Screen[None]):
+class DisagreementsScreen(TeamScreen):
     """Where two reviewers labelled the same pairs differently; Enter opens a pair."""
 
     BINDINGS: ClassVar[list[BindingType]] = [
@@ -295,10 +280,6 @@ class DisagreementsScreen(Screen[None]):
         self.a, self.b = a, b
         self.shown = shown
         self.rows: list[dict[str, Any]] = []
-
-    @property
-    def team_app(self) -> TeamApp:
-        return self.app  # type: ignore[return-value]
 
     def compose(self) -> ComposeResult:
         yield Static(id="disagree-head")
@@ -353,9 +334,3 @@ class DisagreementsScreen(Screen[None]):
         heading.append_text(literal.one_line(self.shown.get(self.b, self.b), NAME_WIDTH))
         heading.append(" · Escape goes back to the list", p.muted)
         self.app.push_screen(PairDetailScreen(pair_id, heading, self.shown))
-
-    def action_back(self) -> None:
-        self.app.pop_screen()
-
-    def action_quit(self) -> None:
-        self.app.exit()

@@ -17,7 +17,6 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, VerticalScroll
 from textual.coordinate import Coordinate
-from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Static, TabbedContent, TabPane
 from textual.worker import Worker, WorkerState
 from textual_plotext import PlotextPlot
@@ -31,11 +30,11 @@ from docket.core.project import Project
 from .. import literal
 from ..diff import PLAIN, Palette
 from .conflict import ConflictScreen
-from .help import key_rows
-from .team_help import QUALITY, TeamHelp
+from .team_base import TeamScreen
+from .team_help import QUALITY
 
 if TYPE_CHECKING:
-    from ..adjudicate_app import TeamApp
+    pass
 
 CURVE = tuple(round(0.025 * i, 3) for i in range(1, 40))  # thresholds of the drawn curve
 BINS = 20
@@ -128,7 +127,8 @@ def notes_text(report: dict[str, Any], palette: Palette = PLAIN) -> Text:
     return text
 
 
-class QualityScreen(Screen[None]):
+class QualityScreen(TeamScreen):
+    HELP = QUALITY
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("1", "tab('tab-plots')", "plots", id="quality-plots",
                 tooltip="score by gold label and the precision-recall curve"),
@@ -153,10 +153,6 @@ class QualityScreen(Screen[None]):
         self.standalone = standalone
         self.data: QualityData | None = None
         self.palette: Palette = PLAIN
-
-    @property
-    def team_app(self) -> TeamApp:
-        return self.app  # type: ignore[return-value]
 
     def compose(self) -> ComposeResult:
         yield Static(id="quality-head")
@@ -346,17 +342,6 @@ class QualityScreen(Screen[None]):
     def action_reload(self) -> None:
         self.query_one("#quality-head", Static).update(Text("Working out the quality figures…"))
         self._load()
-
-    def action_help(self) -> None:
-        app = self.team_app
-        rows = key_rows(self, app.get_key_display, app.keymap.keymap)
-        self.app.push_screen(TeamHelp(rows, app.keymap.path, app.keymap.problems, QUALITY))
-
-    def action_back(self) -> None:
-        self.app.pop_screen()
-
-    def action_quit(self) -> None:
-        self.app.exit()
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
         if action == "back":

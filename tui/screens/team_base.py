@@ -1,0 +1,34 @@
+"""What the adjudicator's screens share: the app they run in, help, back and quit."""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING, ClassVar
+
+from textual.screen import Screen
+
+from .help import key_rows
+from .team_help import TeamHelp
+
+if TYPE_CHECKING:
+    from ..adjudicate_app import TeamApp
+
+
+class TeamScreen(Screen[None]):
+    """A screen of the adjudicator's app. ``HELP`` is the text its help screen ends with."""
+
+    HELP: ClassVar[str] = ""
+
+    @property
+    def team_app(self) -> TeamApp:
+        return self.app  # type: ignore[return-value]
+
+    def action_help(self) -> None:
+        app = self.team_app
+        rows = key_rows(self, app.get_key_display, app.keymap.keymap)
+        self.app.push_screen(TeamHelp(rows, app.keymap.path, app.keymap.problems, self.HELP))
+
+    def action_back(self) -> None:
+        self.app.pop_screen()
+
+    def action_quit(self) -> None:
+        self.app.exit()
