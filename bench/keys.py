@@ -1,4 +1,4 @@
-"""Issue 3's benchmark: how fast the review screen moves from one pair to the next.
+"""The review screen's benchmark: how fast it moves from one pair to the next.
 
     /tmp/venv/bin/python bench/keys.py [--decisions 500] [--work /tmp/docket_bench]
 
