@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import io
 import sys
+from collections.abc import Callable
 from pathlib import Path
 
 import numpy as np
@@ -67,16 +68,24 @@ def write_frame(frame: pd.DataFrame, target: str, fmt: str | None = None) -> Non
         else:
             frame.to_json(sys.stdout, orient="records", lines=True, force_ascii=False)
         return
-    path = Path(target)
-    tmp = path.with_name(f".{path.name}.partial")
-    try:
+
+    def write(tmp: Path) -> None:
         if kind == "parquet":
             frame.to_parquet(tmp, index=False)
         elif kind == "csv":
             frame.to_csv(tmp, index=False)
         else:
             frame.to_json(tmp, orient="records", lines=True, force_ascii=False)
+
+    atomic_write(Path(target), write)
+
+
+def atomic_write(path: Path, write: Callable[[Path], None]) -> None:
+    """Let ``write`` fill a temporary file beside ``path``, then rename it into place."""
+    tmp = path.with_name(f".{path.name}.partial")
+    try:
+        write(tmp)
         tmp.replace(path)
     except OSError as exc:
         tmp.unlink(missing_ok=True)
-        raise DocketError(f"{target}: cannot write ({exc.strerror or exc})") from None
+        raise DocketError(f"{path}: cannot write ({exc.strerror or exc})") from None

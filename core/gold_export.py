@@ -26,6 +26,7 @@ import pandas as pd
 from . import clusters as clustering
 from . import queue, store
 from .errors import DocketError
+from .exporting import atomic_write
 from .gold import gold_labels, needs_adjudication
 from .project import Project
 
@@ -171,14 +172,7 @@ def write_jsonl(records: list[dict[str, Any]], target: str) -> None:
     if target == "-":
         sys.stdout.write(lines)
         return
-    path = Path(target)
-    tmp = path.with_name(f".{path.name}.partial")
-    try:
-        tmp.write_text(lines, encoding="utf-8")
-        tmp.replace(path)
-    except OSError as exc:
-        tmp.unlink(missing_ok=True)
-        raise DocketError(f"{target}: cannot write ({exc.strerror or exc})") from None
+    atomic_write(Path(target), lambda tmp: tmp.write_text(lines, encoding="utf-8"))
 
 
 # -- clusters and conflicts ---------------------------------------------------------------------
