@@ -231,17 +231,21 @@ class Project:
                 return [r[0] for r in ids]
             like = f"%{text}%"
             found: list[int] = []
-            for side, table in (("left", "left_records"),
-                                ("right", "right_records" if self.link else "left_records")):
+            sources = [("left_records", self.meta["left_id_column"], ("left_id",))]
+            if self.link:
+                sources.append(("right_records", self.meta["right_id_column"], ("right_id",)))
+            else:  # one table: a record may sit on either side of a pair
+                sources[0] = ("left_records", self.meta["left_id_column"], ("left_id", "right_id"))
+            for table, key, sides in sources:
                 cols = [r[1] for r in self._conn.execute(f"PRAGMA table_info({table})")]
                 cond = " OR ".join(f"{store.quote(c)} LIKE ?" for c in cols)
-                key = self.meta[f"{side}_id_column"] if self.link or side == "left" else \
-                    self.meta["left_id_column"]
+                where = " OR ".join(f"{side} = ?" for side in sides)
                 for (rid,) in self._conn.execute(
                         f"SELECT {store.quote(key)} FROM {table} WHERE {cond} LIMIT ?",
                         (*([like] * len(cols)), limit)):
                     found += [r[0] for r in self._conn.execute(
-                        f"SELECT pair_id FROM pairs WHERE {side}_id = ? LIMIT ?", (rid, limit))]
+                        f"SELECT pair_id FROM pairs WHERE {where} LIMIT ?",
+                        (*([rid] * len(sides)), limit))]
                 if len(found) >= limit:
                     break
         return sorted(set(found))[:limit]

@@ -151,3 +151,24 @@ def test_another_process_reading_does_not_break_our_connections(sample_project: 
         finally:
             other.communicate("", timeout=30)
         assert other.returncode == 0
+
+
+def test_find_by_pair_id_record_id_and_text(sample_project: Path, tmp_path: Path) -> None:
+    with Project.open(sample_project) as p:
+        pid, left_id, right_id = p.connection.execute(
+            "SELECT pair_id, left_id, right_id FROM pairs ORDER BY pair_id LIMIT 1").fetchone()
+        assert p.find(str(pid)) == [pid]
+        assert pid in p.find(right_id)
+        owner = p.record("left", left_id)["owner"]
+        assert pid in p.find(owner)
+    # one table: a record found by its text may sit on either side of its pairs
+    path = tmp_path / "one.docket"
+    from docket.core import NewProject
+    from tests.conftest import SAMPLE
+    Project.create(NewProject(path=path, left=SAMPLE / "practice_north.csv",
+                              id_column="client_id", rules=["postcode"]))
+    with Project.open(path) as p:
+        pid, a, b = p.connection.execute(
+            "SELECT pair_id, left_id, right_id FROM pairs ORDER BY pair_id LIMIT 1").fetchone()
+        assert pid in p.find(p.record("right", b)["owner"])
+        assert pid in p.find(p.record("left", a)["owner"])
