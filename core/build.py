@@ -209,7 +209,9 @@ def build(spec: NewProject, progress: Progress | None = None,
                       pattern_ix=pattern_ix, counts=counts, weight=weight, prob=prob,
                       model=model, pair_ids=pair_ids, audit=audit, overlap=overlap,
                       fingerprint=fp, report=report, step=step)
+        step("building indexes")
         store.finish_file(conn)
+        step("building indexes", 1, 1)
         os.replace(tmp, spec.path)
     finally:
         for extra in ("", "-wal", "-shm", "-journal"):

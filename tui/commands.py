@@ -39,6 +39,14 @@ def _open(path: str, readonly: bool = False) -> Any:
     return Project.open(path, readonly=readonly)
 
 
+def _ratio(value: float) -> str:
+    """Enough decimals that a ratio of 0.99998 does not print as 1.0000."""
+    digits = 4
+    while digits < 9 and round(value, digits) == 1.0 and value < 1.0:
+        digits += 1
+    return f"{value:.{digits}f}"
+
+
 def _print_built(built: Any) -> None:
     r = built.blocking
     how = "chosen from the data" if r.auto else "given"
@@ -50,8 +58,9 @@ def _print_built(built: Any) -> None:
     for rule, n in r.per_rule.items():
         print(f"  {rule:<40} {n:>10,} pairs")
     print(f"candidate pairs: {r.pairs:,} of {r.possible:,} possible "
-          f"(reduction ratio {r.reduction_ratio:.4f})")
-    print(f"model: prior {built.model.prior:.4f} after {built.model.iterations} EM iterations; "
+          f"(reduction ratio {_ratio(r.reduction_ratio)}; "
+          f"{100 * r.pairs / max(1, r.possible):.3g} % of all pairs)")
+    print(f"model: prior {built.model.prior:.4g} after {built.model.iterations} EM iterations; "
           f"audit slice {built.audit_size:,} pairs; overlap {built.overlap_pairs:,} pairs")
 
 
@@ -92,14 +101,14 @@ def status(args: argparse.Namespace) -> int:
     print(f"pairs        {pairs['candidates']:,} candidates, {pairs['open']:,} still queued, "
           f"audit slice {pairs['audit']:,}, overlap {pairs['overlap']:,}")
     print(f"blocking     {'; '.join(info['blocking']['rules'])} "
-          f"(reduction ratio {info['blocking']['reduction_ratio']:.4f})")
+          f"(reduction ratio {_ratio(info['blocking']['reduction_ratio'])})")
     print(f"decisions    {dec['current_labels']:,} standing labels on {dec['pairs_decided']:,} "
           f"pairs ({dec['log_entries']:,} log entries, {dec['retractions']:,} retractions)")
     for name, c in dec["per_reviewer"].items():
         counts = ", ".join(f"{k} {v:,}" for k, v in c.items() if k != "role")
         print(f"  {name:<16} {c['role']:<12} {counts}")
     print(f"model        ranker {model['ranker']} ({model['ranker_note']}); prior "
-          f"{model['prior']:.4f}; threshold {model['threshold']}"
+          f"{model['prior']:.4g}; threshold {model['threshold']}"
           + ("; one-to-one" if model["one_to_one"] else ""))
     print("match weights (log2 m/u) per field and level:")
     for f in model["fields"]:
