@@ -220,4 +220,8 @@ def demo(args: argparse.Namespace) -> int:
               f"{default_reviewer(args.reviewer)} is an adjudicator")
     if args.no_open:
         return status(argparse.Namespace(project=str(spec.path), json=False))
-    return _run_review(spec.path, default_reviewer(args.reviewer), [])
+    _run_review(spec.path, default_reviewer(args.reviewer), [])
+    print(f"your decisions are saved in {spec.path}; next, try:\n"
+          f"  docket status {spec.path}\n  docket agreement {spec.path}\n"
+          f"  docket adjudicate {spec.path}\n  docket evaluate {spec.path}")
+    return 0
