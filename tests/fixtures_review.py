@@ -40,6 +40,13 @@ HOSTILE_RIGHT = [
 ]
 
 
+async def settle(pilot) -> None:
+    """Let the screen catch up and every worker finish."""
+    await pilot.pause()
+    await pilot.app.workers.wait_for_complete()
+    await pilot.pause()
+
+
 def pilot_test(func: Callable[..., Coroutine[Any, Any, None]]) -> Callable[..., None]:
     """Run an async test body in its own event loop (no asyncio plugin is installed)."""
     @functools.wraps(func)

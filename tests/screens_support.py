@@ -26,7 +26,7 @@ from docket.core import Project
 from docket.core.bulk import BulkRow, apply_rows
 from docket.core.team import add_reviewer
 from docket.tui.adjudicate_app import TeamApp, make_team_app
-from tests.fixtures_review import FrozenClock
+from tests.fixtures_review import FrozenClock, settle
 
 TRUTH = Path(__file__).resolve().parents[1] / "sample" / "truth.csv"
 SHARED = 24
@@ -138,13 +138,6 @@ def team_app(tmp_path: Path):
         kw.setdefault("keymap_file", tmp_path / "no-keymap.toml")
         return make_team_app(path, adjudicator, **kw)  # type: ignore[arg-type]
     return build
-
-
-async def settle(pilot) -> None:
-    """Let the screen catch up and every worker finish."""
-    await pilot.pause()
-    await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
 
 
 async def press(pilot, *keys: str) -> None:

@@ -19,6 +19,7 @@ from tests.fixtures_review import (  # noqa: F401 - fixtures are used by name
     review_sample,
     review_sample_master,
     screen_text,
+    settle,
 )
 
 SIZE = (120, 40)
@@ -32,12 +33,6 @@ def rows(path: Path, sql: str, args: tuple = ()) -> list[tuple]:
 def log(path: Path) -> list[tuple]:
     return rows(path, "SELECT pair_id, reviewer, label, note, seconds, supersedes FROM decisions "
                       "ORDER BY decided_at")
-
-
-async def settle(pilot) -> None:
-    await pilot.pause()
-    await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
 
 
 async def press(pilot, *keys: str) -> None:
