@@ -6,6 +6,7 @@ and no statistics.
 
 from __future__ import annotations
 
+import math
 import sqlite3
 import threading
 from collections.abc import Iterator
@@ -175,10 +176,11 @@ class Project:
                 "SELECT field, level, level_name, weight FROM model")}
             left = self._record("left", left_id)
             right = self._record("right", right_id)
-            counts = [self._conn.execute(f"SELECT count(*) - 1 FROM pairs WHERE {col} = ?",
-                                         (rid,)).fetchone()[0]
-                      for col, rid in (("left_id", left_id), ("right_id", right_id))]
-            if not self.link:  # one table: a record can sit on either side of a pair
+            if self.link:
+                counts = [self._conn.execute(f"SELECT count(*) - 1 FROM pairs WHERE {col} = ?",
+                                             (rid,)).fetchone()[0]
+                          for col, rid in (("left_id", left_id), ("right_id", right_id))]
+            else:  # one table: a record can sit on either side of a pair
                 counts = [self._conn.execute(
                     "SELECT count(*) - 1 FROM pairs WHERE left_id = ? OR right_id = ?",
                     (rid, rid)).fetchone()[0] for rid in (left_id, right_id)]
@@ -192,11 +194,10 @@ class Project:
         compared_r = {f.right_column for f in self.fields}
         if reason is None:
             reason = "audit" if audit else ("overlap" if overlap and n_labels else "uncertain")
-        prior = float(self.meta["fs_model"]["prior"])
-        from .model import FSModel
+        prior = float(self.meta["fs_model"]["prior"])  # EM keeps it strictly inside (0, 1)
         return PairCard(
             pair_id, left_id, right_id, float(prob), float(weight),
-            FSModel.from_dict(self.meta["fs_model"]).prior_weight if prior else 0.0, reason,
+            math.log2(prior / (1.0 - prior)), reason,
             tuple(rows), {k: v for k, v in left.items() if k not in compared_l},
             {k: v for k, v in right.items() if k not in compared_r}, int(counts[0]),
             int(counts[1]))

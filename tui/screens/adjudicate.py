@@ -29,6 +29,7 @@ from docket.core.gold_export import adjudication_queue, conflicts
 from docket.core.project import Project
 from docket.core.types import PairCard
 
+from .. import bindings as shared
 from ..diff import PLAIN, Palette
 from ..widgets import CardOptions, Pace, PairCardView, StatusLine
 from ..widgets.pair_card import card_title
@@ -79,23 +80,17 @@ class AdjudicateScreen(Screen[None]):
         Binding("h", "decide('hold')", "hold", id="hold",
                 tooltip="cannot settle it yet: hold it (it stays in the queue)"),
         Binding("z", "undo", "undo", id="undo", tooltip="take back your latest adjudication"),
-        Binding("left_square_bracket", "back", "back", key_display="[", id="history-back",
-                tooltip="step back through your adjudications (decide again to change one)"),
-        Binding("right_square_bracket", "forward", "fwd", key_display="]",
-                id="history-forward", tooltip="step forward again, back to the queue"),
-        Binding("question_mark", "help", "help", key_display="?", id="help",
-                tooltip="this help"),
-        Binding("q", "quit", "quit", id="quit", tooltip="quit (everything is already saved)"),
+        *shared.history("adjudications"),
+        shared.HELP,
+        shared.QUIT,
         Binding("a", "agreement", "agreement", id="agreement",
                 tooltip="how far the reviewers agree, and their disagreements"),
         Binding("g", "quality", "quality", id="quality",
                 tooltip="precision and recall from the audit slice; clusters and conflicts"),
         Binding("escape", "to_queue", "queue", id="to-queue",
                 tooltip="leave your history or an undone pair, back to the queue"),
-        Binding("x", "extra", "columns", id="extra-columns",
-                tooltip="show or hide the columns that are not compared"),
-        Binding("ctrl+l", "redraw", "redraw", show=False, id="redraw",
-                tooltip="paint the screen again"),
+        shared.EXTRA_COLUMNS,
+        shared.REDRAW,
     ]
 
     def __init__(self) -> None:

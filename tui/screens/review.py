@@ -24,6 +24,7 @@ from textual.worker import Worker, WorkerState
 from docket.core.errors import DocketError
 from docket.core.types import Decision, PairCard, QueueItem
 
+from .. import bindings as shared
 from ..diff import PLAIN, Palette
 from ..widgets import CardOptions, EvidencePanel, Pace, PairCardView, StatusLine, YourSide
 from ..widgets.pair_card import card_title
@@ -49,23 +50,17 @@ class ReviewScreen(Screen[None]):
                 tooltip="cannot tell: hold it for adjudication"),
         Binding("z", "undo", "undo", id="undo", tooltip="take back your latest decision"),
         Binding("e", "note", "note", id="note", tooltip="write a note on this pair"),
-        Binding("left_square_bracket", "back", "back", key_display="[", id="history-back",
-                tooltip="step back through your decisions (decide again to change one)"),
-        Binding("right_square_bracket", "forward", "fwd", key_display="]",
-                id="history-forward", tooltip="step forward again, back to the queue"),
+        *shared.history("decisions"),
         Binding("slash", "find", "find", key_display="/", id="find",
                 tooltip="find a pair by pair id, record id or text"),
-        Binding("question_mark", "help", "help", key_display="?", id="help",
-                tooltip="this help"),
-        Binding("q", "quit", "quit", id="quit", tooltip="quit (everything is already saved)"),
+        shared.HELP,
+        shared.QUIT,
         Binding("escape", "to_queue", "queue", id="to-queue",
                 tooltip="leave history or a found pair, back to the queue"),
         Binding("c", "candidates", "others", id="candidates",
                 tooltip="the other candidate pairs of these two records"),
-        Binding("x", "extra", "columns", id="extra-columns",
-                tooltip="show or hide the columns that are not compared"),
-        Binding("ctrl+l", "redraw", "redraw", show=False, id="redraw",
-                tooltip="paint the screen again"),
+        shared.EXTRA_COLUMNS,
+        shared.REDRAW,
     ]
 
     def __init__(self) -> None:
