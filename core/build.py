@@ -199,6 +199,7 @@ def build(spec: NewProject, progress: Progress | None = None,
     overlap = queue.overlap_flags(pair_ids, spec.overlap, int(fp[:8], 16))
 
     tmp = spec.path.with_name(f".{spec.path.name}.{os.getpid()}.building")
+    remove_stale_builds(spec.path)
     for extra in ("", "-wal", "-shm", "-journal"):
         Path(f"{tmp}{extra}").unlink(missing_ok=True)
     try:
@@ -212,10 +213,51 @@ def build(spec: NewProject, progress: Progress | None = None,
         step("building indexes")
         store.finish_file(conn)
         step("building indexes", 1, 1)
-        os.replace(tmp, spec.path)
+        replace_project_file(tmp, spec.path)
     finally:
         for extra in ("", "-wal", "-shm", "-journal"):
             Path(f"{tmp}{extra}").unlink(missing_ok=True)
     return Built(spec.path, "dedupe" if right is None else "link", len(left),
                  len(left) if right is None else len(right), fields, report, model,
                  int(audit.selected.sum()), int(overlap.sum()))
+
+
+def replace_project_file(new: Path, target: Path) -> None:
+    """Put a finished build at ``target``, taking the old file's ``-wal``/``-shm`` with it.
+
+    SQLite would replay an old write-ahead log into the new file ("database disk image is
+    malformed"), so the old file is moved aside first and its side files removed before the new
+    one takes its name.
+    """
+    if target.exists():
+        aside = target.with_name(f".{target.name}.{os.getpid()}.replaced")
+        os.replace(target, aside)
+        for extra in ("", "-wal", "-shm", "-journal"):
+            Path(f"{aside}{extra}").unlink(missing_ok=True)
+    for extra in ("-wal", "-shm", "-journal"):
+        Path(f"{target}{extra}").unlink(missing_ok=True)
+    os.replace(new, target)
+
+
+def remove_stale_builds(target: Path) -> None:
+    """Delete hidden copies left by builds whose process has died (``.NAME.PID.building``)."""
+    for leftover in target.parent.glob(f".{target.name}.*"):
+        rest = leftover.name[len(target.name) + 2:]
+        for extra in ("-wal", "-shm", "-journal"):
+            rest = rest.removesuffix(extra)
+        parts = rest.split(".")
+        if len(parts) < 2 or parts[1] not in {"building", "replaced"} or not parts[0].isdigit():
+            continue
+        if int(parts[0]) != os.getpid() and _alive(int(parts[0])):
+            continue
+        leftover.unlink(missing_ok=True)
+
+
+def _alive(pid: int) -> bool:
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except PermissionError:
+        return True
+    return True

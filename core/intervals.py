@@ -19,8 +19,9 @@ def wilson(x: float, n: float, confidence: float = 0.95) -> tuple[float, float]:
     ``x`` and ``n`` may be fractional (an effective count from a weighted sample). The bounds
     are clipped to [0, 1]; with ``n == 0`` nothing is known and the interval is (0.0, 1.0).
     """
-    if n < 0 or x < 0 or x > n:
+    if n < 0 or x < 0 or x > n * (1.0 + 1e-9) + 1e-12:
         raise ValueError(f"need 0 <= x <= n, got x={x}, n={n}")
+    x = min(x, n)  # p * n_eff can pass n_eff by a rounding error when p == 1
     z = z_value(confidence)
     if n == 0:
         return (0.0, 1.0)
@@ -90,8 +91,9 @@ def clopper_pearson(x: float, n: float, confidence: float = 0.95) -> tuple[float
     Fractional ``x`` and ``n`` are allowed, as the Korn–Graubard interval for a survey estimate
     needs (the counts are then an effective sample). With ``n == 0`` the interval is (0.0, 1.0).
     """
-    if n < 0 or x < 0 or x > n:
+    if n < 0 or x < 0 or x > n * (1.0 + 1e-9) + 1e-12:
         raise ValueError(f"need 0 <= x <= n, got x={x}, n={n}")
+    x = min(x, n)  # p * n_eff can pass n_eff by a rounding error when p == 1
     if not 0.0 < confidence < 1.0:
         raise ValueError(f"confidence must lie strictly between 0 and 1, got {confidence}")
     if n == 0:

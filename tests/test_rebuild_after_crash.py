@@ -1,0 +1,83 @@
+"""A rebuild over a project whose last user crashed must not inherit the old write-ahead log."""
+
+from __future__ import annotations
+
+import os
+import signal
+import sqlite3
+import subprocess
+import sys
+from pathlib import Path
+
+from docket.core import Project
+from docket.core.intervals import clopper_pearson
+from tests.conftest import sample_spec
+
+# A child that commits a decision in WAL mode and is then killed before it can checkpoint, so
+# the project's -wal file holds committed pages of the old database.
+_CRASHER = """
+import os, signal, sqlite3, sys
+conn = sqlite3.connect(sys.argv[1], isolation_level=None)
+conn.execute("PRAGMA wal_autocheckpoint = 0")
+for i in range(200):
+    conn.execute("INSERT INTO meta VALUES (?, ?)", (f"crash-{i}", "x" * 500))
+print("ready", flush=True)
+os.kill(os.getpid(), signal.SIGKILL)
+"""
+
+
+def test_kill_then_force_rebuild_opens(tmp_path: Path) -> None:
+    path = tmp_path / "p.docket"
+    Project.create(sample_spec(path, audit=50))
+    run = subprocess.run([sys.executable, "-c", _CRASHER, str(path)], capture_output=True,
+                         text=True)
+    assert run.returncode == -signal.SIGKILL and "ready" in run.stdout
+    assert Path(f"{path}-wal").stat().st_size > 0  # the crash left committed pages behind
+
+    Project.create(sample_spec(path, audit=60, force=True))
+    with Project.open(path) as project:
+        assert project.connection.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
+        crashed = project.connection.execute(
+            "SELECT count(*) FROM meta WHERE key LIKE 'crash-%'").fetchone()[0]
+        assert crashed == 0  # nothing of the old file came back
+    assert not list(tmp_path.glob(".p.docket.*"))
+
+
+def test_stale_hidden_build_copies_are_removed(tmp_path: Path) -> None:
+    path = tmp_path / "p.docket"
+    dead = subprocess.run([sys.executable, "-c", "import os; print(os.getpid())"],
+                          capture_output=True, text=True).stdout.strip()
+    stale = tmp_path / f".p.docket.{dead}.building"
+    stale.write_bytes(b"records of a crashed build")
+    Path(f"{stale}-wal").write_bytes(b"")
+    Project.create(sample_spec(path, audit=50))
+    assert not stale.exists() and not Path(f"{stale}-wal").exists()
+    with Project.open(path) as project:
+        assert project.connection.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
+    assert os.stat(path).st_mode & 0o777 == 0o600
+
+
+def test_clopper_pearson_takes_a_rounded_full_count() -> None:
+    # The demo's evaluate reached x = p * n_eff just above n_eff with p == 1 (a rounding error).
+    n = 6.598805646036919
+    low, high = clopper_pearson(6.59880564603692, n)
+    assert high == 1.0 and 0.0 < low < 1.0
+    # Exactness where it matters: x = n = 10 gives (alpha/2)^(1/n) as the lower bound
+    # (Clopper & Pearson 1934; the closed form for x = n is common practice).
+    assert abs(clopper_pearson(10, 10)[0] - 0.025 ** (1 / 10)) < 1e-9
+    try:
+        clopper_pearson(7.0, n)
+    except ValueError:
+        pass
+    else:
+        raise AssertionError("a count well above n must still be refused")
+
+
+def test_sqlite_sees_no_wal_of_the_old_file(tmp_path: Path) -> None:
+    path = tmp_path / "p.docket"
+    Project.create(sample_spec(path, audit=50))
+    Path(f"{path}-wal").write_bytes(b"\0" * 4096)  # junk an older crash might leave
+    Project.create(sample_spec(path, audit=50, force=True))
+    conn = sqlite3.connect(path)
+    assert conn.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
+    conn.close()
