@@ -11,8 +11,10 @@ import numpy as np
 from _common import best_of, data_dir
 from rapidfuzz import process
 
-from docket.core import blocking, compare, fields, scoring, sources
-from docket.core.autoblock import choose_rules
+from docket.core.matching import compare, scoring
+from docket.core.pairs import blocking
+from docket.core.pairs.autoblock import choose_rules
+from docket.core.records import fields, sources
 
 
 def main() -> None:

@@ -15,6 +15,6 @@ __all__ = ["DocketError", "NewProject", "Project"]
 def __getattr__(name: str) -> Any:
     # NewProject lives with the build code, which needs pandas: load it only when asked for.
     if name == "NewProject":
-        from .build import NewProject
+        from .storage.build import NewProject
         return NewProject
     raise AttributeError(name)

@@ -7,88 +7,31 @@ and no statistics.
 from __future__ import annotations
 
 import math
-import sqlite3
 import threading
-from collections.abc import Iterator
-from contextlib import contextmanager
-from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING
 
-from . import decisions as log
-from . import queue, store
 from .errors import DocketError
-from .refit import RefitResult, refit
-from .types import LABELS, Decision, FieldComparison, FieldSpec, PairCard, QueueItem
+from .ordering import queue
+from .storage import decisions as log
+from .storage import store
+from .storage.project_file import ProjectFile
+from .storage.refit import RefitResult, refit
+from .types import ROLES, Decision, FieldComparison, PairCard, QueueItem
 
 if TYPE_CHECKING:  # building needs pandas; opening a project does not
-    from .build import Built, NewProject, Progress
+    from .storage.build import Built, NewProject, Progress
 
-ROLES = ("reviewer", "adjudicator")
+class Project(ProjectFile):
+    """The facade: an open project file plus the verbs the front ends need.
 
-
-class Project:
-    """An open project file. Thread-safe for one writer: calls are serialised by a lock."""
-
-    def __init__(self, path: Path, conn: sqlite3.Connection) -> None:
-        self.path = path
-        self._conn = conn
-        self._lock = threading.RLock()
-        self.meta: dict[str, Any] = store.get_meta(conn)
-        self.fields = [FieldSpec(**f) for f in self.meta["fields"]]
-        self.link = self.meta["mode"] == "link"
-
-    # -- opening -----------------------------------------------------------------------------
-    @classmethod
-    def open(cls, path: str | Path, readonly: bool = False) -> Project:
-        path = Path(path)
-        return cls(path, store.open_file(path, readonly=readonly))
+    Thread-safe for one writer: calls are serialised by the file's lock.
+    """
 
     @staticmethod
     def create(spec: NewProject, progress: Progress | None = None,
                cancel: threading.Event | None = None) -> Built:
-        from .build import build
+        from .storage.build import build
         return build(spec, progress, cancel)
-
-    def close(self) -> None:
-        with self._lock:
-            self._conn.close()
-
-    def __enter__(self) -> Project:
-        return self
-
-    def __exit__(self, *exc: object) -> None:
-        self.close()
-
-    def reload(self) -> None:
-        with self._lock:
-            self.meta = store.get_meta(self._conn)
-
-    @property
-    def threshold(self) -> float:
-        return float(self.meta["threshold"])
-
-    @property
-    def connection(self) -> sqlite3.Connection:
-        """For modules of the core that read the store directly (agreement, export)."""
-        return self._conn
-
-    @contextmanager
-    def reading(self) -> Iterator[sqlite3.Connection]:
-        """The connection, serialised with every other call on this project object."""
-        with self._lock:
-            yield self._conn
-
-    @contextmanager
-    def transaction(self) -> Iterator[sqlite3.Connection]:
-        """One write transaction: committed when the block ends, rolled back on any error."""
-        with self._lock:
-            self._conn.execute("BEGIN IMMEDIATE")
-            try:
-                yield self._conn
-                self._conn.execute("COMMIT")
-            except BaseException:
-                self._conn.execute("ROLLBACK")
-                raise
 
     # -- reviewers ---------------------------------------------------------------------------
     def ensure_reviewer(self, name: str, role: str = "reviewer") -> None:
@@ -252,27 +195,6 @@ class Project:
         return sorted(set(found))[:limit]
 
     # -- decisions ---------------------------------------------------------------------------
-    def decide(self, pair_id: int, reviewer: str, label: str, note: str = "",
-               seconds: float = 0.0, role: str = "reviewer") -> Decision:
-        """Append a decision and commit it before returning."""
-        if label not in LABELS:
-            raise DocketError(f"unknown label '{label}'; use one of {', '.join(LABELS)}")
-        with self.transaction() as conn:
-            prior = log.current_of(conn, pair_id, reviewer, role)
-            conn.execute("INSERT OR IGNORE INTO reviewers VALUES (?, ?, ?)",
-                         (reviewer, role, store.now()))
-            return log.append(conn, pair_id, reviewer, label, note, seconds,
-                              None if prior is None else prior.decision_id, role)
-
-    def undo(self, reviewer: str, role: str = "reviewer") -> Decision | None:
-        """Retract the reviewer's latest standing label; returns the retracted decision."""
-        with self.transaction() as conn:
-            last = log.latest_of(conn, reviewer, role)
-            if last is not None:
-                log.append(conn, last.pair_id, reviewer, None, "", 0.0, last.decision_id,
-                           last.role)
-        return last
-
     def current_label(self, pair_id: int, reviewer: str,
                       role: str = "reviewer") -> Decision | None:
         with self._lock:

@@ -4,15 +4,16 @@ from __future__ import annotations
 
 from typing import Any
 
-from . import gold, store
-from .project import Project
+from .reviewing import gold
+from .storage import store
+from .storage.project_file import ProjectFile
 
 CAUTION = ("Records may be personal data: keep the project file private (it is created readable "
            "by you alone), mask what reviewers need not see, and let people review before any "
            "merge. Follow your local data-protection law and your organisation's policy.")
 
 
-def status(project: Project) -> dict[str, Any]:
+def status(project: ProjectFile) -> dict[str, Any]:
     conn = project.connection
     meta = project.meta
 

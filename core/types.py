@@ -11,6 +11,7 @@ from typing import Any, Literal
 
 Label = Literal["match", "non-match", "hold"]
 LABELS: tuple[str, ...] = ("match", "non-match", "hold")
+ROLES: tuple[str, ...] = ("reviewer", "adjudicator")
 KINDS: tuple[str, ...] = ("name", "text", "longtext", "code", "number", "date")
 Reason = Literal["uncertain", "audit", "overlap"]
 

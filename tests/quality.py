@@ -7,7 +7,7 @@ from pathlib import Path
 import pandas as pd
 
 from docket.core import Project
-from docket.core.exporting import scores_frame
+from docket.core.exports.exporting import scores_frame
 
 
 def load_truth(path: Path, left: str, right: str) -> set[tuple[str, str]]:

@@ -23,8 +23,8 @@ from pathlib import Path
 import pytest
 
 from docket.core import Project
-from docket.core.bulk import BulkRow, apply_rows
-from docket.core.team import add_reviewer
+from docket.core.reviewing.bulk import BulkRow, apply_rows
+from docket.core.reviewing.team import add_reviewer
 from docket.tui.adjudicate_app import TeamApp, make_team_app
 from tests.fixtures_review import FrozenClock, settle
 

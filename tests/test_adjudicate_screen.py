@@ -10,8 +10,8 @@ from pathlib import Path
 import pytest
 
 from docket.core import DocketError, Project
-from docket.core.gold import gold_labels
-from docket.core.team import add_reviewer
+from docket.core.reviewing.gold import gold_labels
+from docket.core.reviewing.team import add_reviewer
 from docket.tui import cli
 from docket.tui.screens.adjudicate import AdjudicateScreen
 from docket.tui.screens.agreement import AgreementScreen
@@ -244,7 +244,7 @@ def test_adjudication_120x40(snap_compare, team, team_app):
 
 
 def test_notes_and_names_are_shown_literally_and_blind_names_are_stand_ins():
-    from docket.core.adjudication import Review
+    from docket.core.reviewing.adjudication import Review
     from docket.core.types import PairCard
     from docket.tui.widgets.reviews import PairStanding, blind_aliases, reviews_text
 

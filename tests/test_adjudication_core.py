@@ -8,9 +8,9 @@ from pathlib import Path
 import pytest
 
 from docket.core import DocketError, Project
-from docket.core import adjudication as adj
-from docket.core.gold import gold_labels
-from docket.core.team import add_reviewer
+from docket.core.reviewing import adjudication as adj
+from docket.core.reviewing.gold import gold_labels
+from docket.core.reviewing.team import add_reviewer
 
 from .team_support import tiny_project
 

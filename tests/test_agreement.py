@@ -8,7 +8,7 @@ import math
 import numpy as np
 import pytest
 
-from docket.core.agreement import (
+from docket.core.reviewing.agreement import (
     cohen_kappa,
     confusion,
     fleiss,
@@ -18,7 +18,7 @@ from docket.core.agreement import (
     pabak,
     rating_counts,
 )
-from docket.core.agreement_summary import overall_agreement, pairwise_agreement
+from docket.core.reviewing.agreement_summary import overall_agreement, pairwise_agreement
 
 WIKI_2X2 = [[20, 5], [10, 15]]
 SAS_3X3 = [[0, 4, 1], [0, 8, 0], [0, 1, 5]]

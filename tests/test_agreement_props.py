@@ -17,7 +17,7 @@ from sklearn.metrics import cohen_kappa_score
 from statsmodels.stats.inter_rater import aggregate_raters, cohens_kappa
 from statsmodels.stats.inter_rater import fleiss_kappa as sm_fleiss_kappa
 
-from docket.core.agreement import (
+from docket.core.reviewing.agreement import (
     cohen_kappa,
     confusion,
     fleiss_kappa,

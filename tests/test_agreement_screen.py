@@ -5,7 +5,7 @@
 from __future__ import annotations
 
 from docket.core import Project
-from docket.core.team import agreement_report
+from docket.core.reviewing.team import agreement_report
 from docket.tui.screens.agreement import AgreementScreen, DisagreementsScreen, cell_text
 from docket.tui.screens.pair_detail import PairDetailScreen
 from docket.tui.widgets.reviews import ReviewsPanel

@@ -12,7 +12,7 @@ from hypothesis import strategies as st
 from scipy.sparse import coo_matrix
 from scipy.sparse.csgraph import connected_components
 
-from docket.core.clusters import Conflict, cluster_members, clusters, conflicts
+from docket.core.exports.clusters import Conflict, cluster_members, clusters, conflicts
 
 IDS = [f"r{i:02d}" for i in range(25)]
 edges = st.lists(st.tuples(st.sampled_from(IDS), st.sampled_from(IDS)), max_size=40)

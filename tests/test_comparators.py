@@ -12,7 +12,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from docket.core import compare, normalise
+from docket.core.matching import compare
+from docket.core.records import normalise
 
 JW = compare.SCORERS["name"]
 LEV = compare.SCORERS["text"]

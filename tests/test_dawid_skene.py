@@ -11,7 +11,7 @@ import math
 import numpy as np
 import pytest
 
-from docket.core.dawid_skene import dawid_skene
+from docket.core.reviewing.dawid_skene import dawid_skene
 
 CATEGORIES = ["match", "non-match"]
 # reviewer: (sensitivity, specificity), with "match" as the positive class

@@ -11,7 +11,7 @@ from hypothesis import strategies as st
 from sklearn.metrics import f1_score, precision_score, recall_score
 from statsmodels.stats.proportion import proportion_confint
 
-from docket.core.estimates import (
+from docket.core.quality.estimates import (
     AuditSample,
     QualityEstimate,
     _replicate_totals,

@@ -10,16 +10,17 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from docket.core import DocketError, NewProject, Project, queue
-from docket.core.estimates import threshold_table
-from docket.core.evaluate import (
+from docket.core import DocketError, NewProject, Project
+from docket.core.exports.exporting import scores_frame
+from docket.core.ordering import queue
+from docket.core.quality.estimates import threshold_table
+from docket.core.quality.evaluate import (
     audit_sample,
     evaluate,
     evaluate_predictions,
     model_scores,
     sample_from,
 )
-from docket.core.exporting import scores_frame
 from docket.tui import cli_gold
 from tests.conftest import SAMPLE, sample_spec
 from tests.quality import answer_in_queue_order, load_truth
@@ -111,7 +112,7 @@ def test_audit_intervals_cover_the_truth_one_to_one(dblp_acm: Path, dblp_truth, 
     # Outside check: DBLP-ACM benchmark, Köpcke, Thor & Rahm PVLDB 2010
     # (../shared/data/dblp-acm). Errors are rare here (about 1 % false positives and missed
     # matches), so most strata show none in a slice; the zero-count allowance in
-    # core.estimates keeps them adding variance. Measured with seeds 1..50: precision 50/50,
+    # core.quality.estimates keeps them adding variance. Measured with seeds 1..50: precision 50/50,
     # recall 50/50 (300 repetitions: 98.7 %, 99.7 %); without the allowance 40/50 and 42/50.
     with build_dblp(dblp_acm, tmp_path / "dblp11.docket", one_to_one=True) as project:
         cov_p, cov_r = coverage(project, dblp_truth)

@@ -5,7 +5,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from docket.core.model import FSModel, fit_em, posterior
+from docket.core.matching.model import FSModel, fit_em, posterior
 
 NAMES = ["agree", "disagree", "missing"]
 

@@ -20,8 +20,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from docket.core import DocketError, NewProject, Project
-from docket.core import gold_export as ge
-from docket.core.exporting import write_frame
+from docket.core.exports import gold_export as ge
+from docket.core.exports.exporting import write_frame
 
 GOLDEN = Path(__file__).resolve().parent / "golden"
 UPDATE = os.environ.get("DOCKET_UPDATE_GOLDEN") == "1"

@@ -1,13 +1,126 @@
-"""The core is a library: importing it must never load the user interface."""
+"""The core is a library whose imports point one way: down the floors of DEVELOPERS.md.
 
+Floors, lowest first. A module may import its own floor and the floors below it; within a floor
+the module graph has no cycle. Nothing in the core imports a user interface.
+"""
+
+import ast
+import pkgutil
 import subprocess
 import sys
+from pathlib import Path
+
+import docket.core
+
+FLOORS = [
+    {"errors", "types"},  # plain data
+    {"records"},
+    {"pairs"},
+    {"matching"},
+    {"ordering"},
+    {"storage"},
+    {"reviewing"},
+    {"quality"},
+    {"exports"},
+    {"project", "report", ""},  # the facade ("" is docket.core itself)
+]
+UI = ("textual", "rich")
+CORE = Path(docket.core.__file__).parent
 
 
-def test_core_does_not_import_textual() -> None:
-    code = ("import sys, docket.core, docket.core.project, docket.core.report, "
-            "docket.core.exporting, docket.core.bulk; "
-            "bad = [m for m in sys.modules if m.split('.')[0] in ('textual', 'rich')]; "
-            "print(bad); sys.exit(1 if bad else 0)")
+def _module_name(path: Path) -> str:
+    parts = list(path.relative_to(CORE).with_suffix("").parts)
+    if parts[-1] == "__init__":
+        parts.pop()
+    return ".".join(["docket.core", *parts])
+
+
+MODULES = {_module_name(p): p for p in sorted(CORE.rglob("*.py"))}
+
+
+def _floor(module: str) -> int:
+    part = module.removeprefix("docket.core").lstrip(".").split(".")[0]
+    for rank, names in enumerate(FLOORS):
+        if part in names:
+            return rank
+    raise AssertionError(f"{module} sits on no floor; add its sub-package to FLOORS and "
+                         "DEVELOPERS.md")
+
+
+def _imports(module: str, path: Path) -> list[tuple[int, str]]:
+    """(line, imported module) for every import in the file, including those inside functions."""
+    package = module if path.name == "__init__.py" else module.rpartition(".")[0]
+    found = []
+    for node in ast.walk(ast.parse(path.read_text(), str(path))):
+        if isinstance(node, ast.Import):
+            found += [(node.lineno, a.name) for a in node.names]
+        elif isinstance(node, ast.ImportFrom):
+            base = node.module or ""
+            if node.level:
+                anchor = package.split(".")
+                anchor = anchor[:len(anchor) - node.level + 1]
+                base = ".".join(anchor + ([base] if base else []))
+            for alias in node.names:
+                sub = f"{base}.{alias.name}"
+                found.append((node.lineno, sub if sub in MODULES else base))
+    return found
+
+
+def test_every_core_module_is_seen() -> None:
+    # the walk below must cover the sub-packages, not only the top level
+    assert "docket.core.storage.store" in MODULES
+    assert len(MODULES) > 40
+
+
+def test_core_imports_no_user_interface() -> None:
+    bad = [f"{MODULES[m].relative_to(CORE)}:{line} imports {target}"
+           for m in MODULES for line, target in _imports(m, MODULES[m])
+           if target.split(".")[0] in UI or target.startswith("docket.tui")]
+    assert not bad, "\n".join(bad)
+
+
+def test_core_imports_point_down() -> None:
+    bad = []
+    for m, path in MODULES.items():
+        for line, target in _imports(m, path):
+            if target.startswith("docket.core") and _floor(target) > _floor(m):
+                bad.append(f"{path.relative_to(CORE)}:{line} imports {target}, a higher floor")
+    assert not bad, "\n".join(bad)
+
+
+def test_core_module_graph_has_no_cycle() -> None:
+    graph = {m: {t for _, t in _imports(m, p) if t in MODULES and t != m}
+             for m, p in MODULES.items()}
+    state: dict[str, int] = {}
+
+    def visit(m: str, trail: list[str]) -> None:
+        state[m] = 1
+        for t in sorted(graph[m]):
+            if state.get(t) == 1:
+                raise AssertionError("import cycle: " + " -> ".join([*trail, m, t]))
+            if t not in state:
+                visit(t, [*trail, m])
+        state[m] = 2
+
+    for m in sorted(graph):
+        if m not in state:
+            visit(m, [])
+
+
+def test_importing_every_core_module_loads_no_user_interface() -> None:
+    # a fresh interpreter, so modules the test run itself imported do not hide a leak
+    code = ("import sys, importlib, pkgutil, docket.core as c\n"
+            "for info in pkgutil.walk_packages(c.__path__, 'docket.core.'):\n"
+            "    importlib.import_module(info.name)\n"
+            "bad = [m for m in sys.modules if m.split('.')[0] in ('textual', 'rich') "
+            "or m.startswith('docket.tui')]\n"
+            "print(len([m for m in sys.modules if m.startswith('docket.core')]), bad)\n"
+            "sys.exit(1 if bad else 0)")
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True)
     assert done.returncode == 0, done.stdout + done.stderr
+    assert int(done.stdout.split()[0]) == len(MODULES), done.stdout
+
+
+def test_walk_finds_every_module() -> None:
+    walked = {i.name for i in pkgutil.walk_packages(docket.core.__path__, "docket.core.")}
+    assert walked | {"docket.core"} == set(MODULES)

@@ -12,7 +12,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from docket.core import DocketError, Project
-from docket.core.merge import merge
+from docket.core.reviewing.merge import merge
 
 from .team_support import LEFT, RIGHT, run, tiny_project
 

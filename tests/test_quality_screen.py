@@ -5,8 +5,8 @@
 from __future__ import annotations
 
 from docket.core import Project
-from docket.core.evaluate import DEFAULT_THRESHOLDS, evaluate
-from docket.core.gold_export import conflicts
+from docket.core.exports.gold_export import conflicts
+from docket.core.quality.evaluate import DEFAULT_THRESHOLDS, evaluate
 from docket.tui.screens.conflict import ConflictScreen
 from docket.tui.screens.pair_detail import PairDetailScreen
 from docket.tui.screens.quality import QualityScreen

@@ -9,7 +9,8 @@ from pathlib import Path
 
 import numpy as np
 
-from docket.core import Project, queue
+from docket.core import Project
+from docket.core.ordering import queue
 from tests.conftest import sample_spec
 
 
@@ -102,7 +103,7 @@ def test_busy_timeout_lets_two_connections_write(sample_project: Path) -> None:
 
 
 def test_registered_migrations_upgrade_an_older_file(sample_project: Path, monkeypatch) -> None:
-    from docket.core import store
+    from docket.core.storage import store
 
     def add_column(conn: sqlite3.Connection) -> None:
         conn.execute("ALTER TABLE reviewers ADD COLUMN email TEXT")

@@ -12,7 +12,7 @@ from pathlib import Path
 import pytest
 
 from docket.core import DocketError, Project
-from docket.core.team import (
+from docket.core.reviewing.team import (
     add_reviewer,
     agreement_report,
     disagreements,

@@ -22,8 +22,8 @@ from textual.app import App
 from textual.binding import Binding
 from textual.screen import Screen
 
-from docket.core.adjudication import require_adjudicator
 from docket.core.project import Project
+from docket.core.reviewing.adjudication import require_adjudicator
 
 from .keymap import LoadedKeymap, load_keymap
 from .masking import Mask

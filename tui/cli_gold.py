@@ -1,7 +1,7 @@
 """``docket evaluate`` and the gold-label exports of ``docket export``.
 
-Argument parsing and printing only: the figures come from ``docket.core.evaluate`` and the
-frames from ``docket.core.gold_export``.
+Argument parsing and printing only: the figures come from ``docket.core.quality.evaluate`` and the
+frames from ``docket.core.exports.gold_export``.
 """
 
 from __future__ import annotations
@@ -63,8 +63,8 @@ def evaluate(args: argparse.Namespace) -> int:
         Project.open(args.project, readonly=True).close()  # a bad path fails as one line
         run_quality(Path(args.project))
         return 0
-    from docket.core.evaluate import evaluate as model_report
-    from docket.core.evaluate import evaluate_predictions
+    from docket.core.quality.evaluate import evaluate as model_report
+    from docket.core.quality.evaluate import evaluate_predictions
     with Project.open(args.project, readonly=True) as project:
         if args.predictions:
             report = evaluate_predictions(project, args.predictions, args.threshold,
@@ -178,7 +178,7 @@ def export_other(project: Any, what: str, args: argparse.Namespace) -> Any:
     ``seed``, ``for_lm`` and ``all_records``.
     """
     from docket.core import DocketError
-    from docket.core import gold_export as ge
+    from docket.core.exports import gold_export as ge
     share = getattr(args, "test_share", None)
     share = 0.2 if share is None else float(share)
     seed = int(getattr(args, "seed", 0) or 0)
@@ -200,8 +200,8 @@ def export_other(project: Any, what: str, args: argparse.Namespace) -> Any:
 def write_export(result: Any, target: str, fmt: str | None) -> int:
     """Write what ``export_other`` returned; returns the number of rows written."""
     from docket.core import DocketError
-    from docket.core.exporting import output_format, write_frame
-    from docket.core.gold_export import write_jsonl
+    from docket.core.exports.exporting import output_format, write_frame
+    from docket.core.exports.gold_export import write_jsonl
     if isinstance(result, list):
         kind = fmt or ("jsonl" if target == "-" else output_format(target, None))
         if kind != "jsonl":

@@ -1,7 +1,7 @@
 """The team commands: ``reviewers``, ``agreement`` and ``merge``; and the demo's second reviewer.
 
-Argument parsing and printing only; the work is done by ``docket.core.team``,
-``docket.core.merge`` and ``docket.core.bulk``.
+Argument parsing and printing only; the work is done by ``docket.core.reviewing.team``,
+``docket.core.reviewing.merge`` and ``docket.core.reviewing.bulk``.
 """
 
 from __future__ import annotations
@@ -69,7 +69,7 @@ def _duration(seconds: float) -> str:
 
 
 def reviewers(args: argparse.Namespace) -> int:
-    from docket.core.team import add_reviewer, list_reviewers
+    from docket.core.reviewing.team import add_reviewer, list_reviewers
     if args.action == "add":
         with _open(args.project) as project:
             change = add_reviewer(project, args.name, args.role)
@@ -156,7 +156,7 @@ def print_agreement(report: dict[str, Any]) -> None:
 
 
 def agreement(args: argparse.Namespace) -> int:
-    from docket.core.team import agreement_report
+    from docket.core.reviewing.team import agreement_report
     if args.screen:
         from pathlib import Path
 
@@ -176,7 +176,7 @@ def agreement(args: argparse.Namespace) -> int:
 
 # -- merge ---------------------------------------------------------------------------------
 def merge(args: argparse.Namespace) -> int:
-    from docket.core.merge import merge as merge_files
+    from docket.core.reviewing.merge import merge as merge_files
     with _open(args.project) as project:
         result = merge_files(project, [Path(p) for p in args.others])
         refit = project.refit() if result.added else None
@@ -207,8 +207,8 @@ def apply_second_reviewer(project: Any, csv_path: Path, name: str = DEMO_SECOND_
     project opened again). No refit: the demo user should meet these overlap pairs near the
     top of their queue, where the generator picked them.
     """
-    from docket.core.bulk import apply_rows, read_rows
-    from docket.core.team import add_reviewer
+    from docket.core.reviewing.bulk import apply_rows, read_rows
+    from docket.core.reviewing.team import add_reviewer
     user = default_reviewer(adjudicator)
     if user != name:
         add_reviewer(project, user, "adjudicator")

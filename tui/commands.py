@@ -66,7 +66,7 @@ def _print_built(built: Any) -> None:
 
 def new(args: argparse.Namespace) -> int:
     from docket.core import NewProject, Project
-    from docket.core.fields import parse_kinds, parse_map
+    from docket.core.records.fields import parse_kinds, parse_map
 
     from .progress import progress_bar
     if args.id_column and (args.left_id or args.right_id):
@@ -139,7 +139,7 @@ def next_pairs(args: argparse.Namespace) -> int:
 
 
 def label(args: argparse.Namespace) -> int:
-    from docket.core.bulk import apply_rows, read_rows
+    from docket.core.reviewing.bulk import apply_rows, read_rows
     reviewer = default_reviewer(args.reviewer)
     with _open(args.project) as project:
         project.ensure_reviewer(reviewer)
@@ -152,7 +152,7 @@ def label(args: argparse.Namespace) -> int:
 
 
 def export(args: argparse.Namespace) -> int:
-    from docket.core.exporting import output_format, scores_frame, write_frame
+    from docket.core.exports.exporting import output_format, scores_frame, write_frame
     if not (args.for_lm and args.output == "-"):
         output_format(args.output, args.format)  # a bad target fails before any work
     if args.what != "scores":

@@ -22,11 +22,11 @@ from textual.screen import Screen
 from textual.widgets import Footer
 from textual.worker import Worker, WorkerState
 
-from docket.core import adjudication
 from docket.core.errors import DocketError
-from docket.core.gold import gold_labels
-from docket.core.gold_export import adjudication_queue, conflicts
+from docket.core.exports.gold_export import adjudication_queue, conflicts
 from docket.core.project import Project
+from docket.core.reviewing import adjudication
+from docket.core.reviewing.gold import gold_labels
 from docket.core.types import PairCard
 
 from .. import bindings as shared

@@ -1,6 +1,6 @@
 """The agreement screen: the reviewer-by-reviewer kappa matrix, and each pair's disagreements.
 
-The figures come from ``core.team.agreement_report``, worked out in a worker. A cell holds
+The figures come from ``core.reviewing.team.agreement_report``, worked out in a worker. A cell holds
 Cohen's kappa with its 95 % CI, the number of pairs it rests on and the Landis & Koch band;
 Enter on a cell lists where those two reviewers differ, and Enter on one of those opens the
 pair with both labels and notes. With ``--blind`` the reviewers are "reviewer A", "B"...
@@ -18,7 +18,7 @@ from textual.coordinate import Coordinate
 from textual.widgets import DataTable, Footer, Static
 from textual.worker import Worker, WorkerState
 
-from docket.core.team import agreement_report, disagreements
+from docket.core.reviewing.team import agreement_report, disagreements
 
 from .. import literal
 from ..diff import PLAIN, Palette

@@ -15,8 +15,8 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.screen import Screen
 from textual.widgets import Footer, Static
 
-from docket.core import adjudication
-from docket.core.gold import gold_labels
+from docket.core.reviewing import adjudication
+from docket.core.reviewing.gold import gold_labels
 
 from ..diff import Palette
 from ..widgets import CardOptions, PairCardView

@@ -2,7 +2,7 @@
 
 Three tabs. Plots: the score of gold-labelled pairs by label, and the precision–recall curve
 (design-based from the audit slice, with the naive curve beside it). Thresholds: the table of
-``core.evaluate`` with intervals, the naive figures marked biased, and the note that recall is
+``quality.evaluate`` with intervals, the naive figures marked biased, and the note that recall is
 within the candidate pairs. Clusters: the conflicts, clusters of gold matches holding a gold
 non-match (Enter shows the members). Everything is worked out in a worker.
 """
@@ -22,10 +22,10 @@ from textual.worker import Worker, WorkerState
 from textual_plotext import PlotextPlot
 
 from docket.core.errors import DocketError
-from docket.core.evaluate import DEFAULT_THRESHOLDS, evaluate, model_scores
-from docket.core.gold import gold_labels
-from docket.core.gold_export import ClusterConflict, clusters_frame, conflicts
+from docket.core.exports.gold_export import ClusterConflict, clusters_frame, conflicts
 from docket.core.project import Project
+from docket.core.quality.evaluate import DEFAULT_THRESHOLDS, evaluate, model_scores
+from docket.core.reviewing.gold import gold_labels
 
 from .. import literal
 from ..diff import PLAIN, Palette
@@ -44,8 +44,8 @@ BINS = 20
 class QualityData:
     """What the worker found; a part that could not be worked out says why instead."""
 
-    report: dict[str, Any] | None = None  # core.evaluate at its default thresholds
-    curve: dict[str, Any] | None = None  # core.evaluate on a fine grid, for the curve
+    report: dict[str, Any] | None = None  # core.quality.evaluate at its default thresholds
+    curve: dict[str, Any] | None = None  # core.quality.evaluate on a fine grid, for the curve
     problem: str = ""  # why there is no report
     scores: dict[str, list[float]] = field(default_factory=dict)  # gold label -> scores
     conflicts: tuple[ClusterConflict, ...] = ()

@@ -17,7 +17,7 @@ from rich.style import Style
 from rich.text import Text
 from textual.widgets import Static
 
-from docket.core.adjudication import Review
+from docket.core.reviewing.adjudication import Review
 from docket.core.types import PairCard
 
 from .. import literal

@@ -1,6 +1,6 @@
 """Honest quality of the project's model, or of any matcher's output, from the audit slice.
 
-The design-based figures come from ``core.estimates`` (Horvitz–Thompson ratios over the audit
+The design-based figures come from ``quality.estimates`` (Horvitz–Thompson ratios over the audit
 slice's strata, intervals named per figure). Beside them sits the naive figure from every gold
 label, unweighted, marked biased: the queue shows uncertain pairs first, so the labelled pairs
 are not a sample of the candidate pairs.
@@ -18,14 +18,15 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from . import estimates, store
-from .agreement import cohen_kappa, json_ready
-from .errors import DocketError
-from .exporting import predicted
-from .gold import gold_labels
+from ..errors import DocketError
+from ..matching.decision_rule import predicted
+from ..records.sources import read_frame
+from ..reviewing.agreement import cohen_kappa, json_ready
+from ..reviewing.gold import gold_labels
+from ..storage import store
+from ..storage.project_file import ProjectFile
+from . import estimates
 from .intervals import clopper_pearson
-from .project import Project
-from .sources import read_frame
 
 DEFAULT_THRESHOLDS = (0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 0.99)
 WITHIN_CANDIDATES = ("recall is measured within the candidate pairs: true matches that the "
@@ -64,27 +65,27 @@ def sample_from(score: Sequence[float] | np.ndarray, label: Sequence[int | None]
                                  np.asarray(inclusion, dtype=float)[keep], sizes, drawn)
 
 
-def _gold_y(project: Project) -> dict[int, int]:
+def _gold_y(project: ProjectFile) -> dict[int, int]:
     """pair_id -> 1 (match) / 0 (non-match) for every gold label."""
     return {g.pair_id: int(g.label == "match") for g in gold_labels(project.connection)}
 
 
-def _audit_rows(project: Project) -> pd.DataFrame:
+def _audit_rows(project: ProjectFile) -> pd.DataFrame:
     return pd.read_sql_query(
         "SELECT pair_id, stratum, inclusion FROM pairs WHERE audit = 1 ORDER BY pair_id",
         project.connection)
 
 
-def _strata(project: Project) -> dict[int, list[int]]:
+def _strata(project: ProjectFile) -> dict[int, list[int]]:
     return {int(h): v for h, v in project.meta.get("audit_strata", {}).items()}
 
 
-def model_scores(project: Project) -> pd.Series:
+def model_scores(project: ProjectFile) -> pd.Series:
     """The model's score per pair id, as the project predicts with it.
 
     Plain projects: the match probability. One-to-one projects: the probability where the pair
     is both records' best candidate and 0 elsewhere, so "score >= t" is the one-to-one
-    prediction (``core.exporting.predicted``) at every threshold t > 0.
+    prediction (``core.matching.decision_rule.predicted``) at every threshold t > 0.
     """
     frame = pd.read_sql_query(
         "SELECT p.pair_id, p.left_id, p.right_id, t.probability FROM pairs p "
@@ -95,7 +96,7 @@ def model_scores(project: Project) -> pd.Series:
     return pd.Series(score, index=frame["pair_id"].to_numpy())
 
 
-def audit_sample(project: Project, scores: pd.Series | None = None) -> estimates.AuditSample:
+def audit_sample(project: ProjectFile, scores: pd.Series | None = None) -> estimates.AuditSample:
     """The audit slice's standing gold labels with their strata and inclusion probabilities.
 
     ``scores`` (by pair id) defaults to ``model_scores``. Audit pairs without a gold label (not
@@ -151,7 +152,7 @@ def rare_error_notes(sample: estimates.AuditSample, threshold: float,
     return notes
 
 
-def _blocking(project: Project) -> dict[str, Any]:
+def _blocking(project: ProjectFile) -> dict[str, Any]:
     b = project.meta.get("blocking", {})
     return {"rules": b.get("rules", []), "pairs_per_rule": b.get("per_rule", {}),
             "candidate_pairs": b.get("pairs"), "possible_pairs": b.get("possible"),
@@ -163,7 +164,7 @@ def _check_target(name: str, value: float | None) -> None:
         raise DocketError(f"--target-{name} {value}: give a share above 0, at most 1")
 
 
-def _report(project: Project, scores: pd.Series, threshold: float,
+def _report(project: ProjectFile, scores: pd.Series, threshold: float,
             thresholds: Sequence[float] | None, target_precision: float | None,
             target_recall: float | None, confidence: float, n_boot: int,
             seed: int) -> dict[str, Any]:
@@ -227,7 +228,7 @@ def _report(project: Project, scores: pd.Series, threshold: float,
     }
 
 
-def evaluate(project: Project, thresholds: Sequence[float] | None = None,
+def evaluate(project: ProjectFile, thresholds: Sequence[float] | None = None,
              target_precision: float | None = None, target_recall: float | None = None,
              confidence: float = 0.95, n_boot: int = 2000, seed: int = 0) -> dict[str, Any]:
     """The project's model judged on the audit slice: a JSON-ready dict.
@@ -267,13 +268,13 @@ def _numbers(values: pd.Series, column: str, path: Path) -> np.ndarray:
     return num.to_numpy(dtype=float)
 
 
-def _known_ids(project: Project, side: str) -> set[str]:
+def _known_ids(project: ProjectFile, side: str) -> set[str]:
     table = "right_records" if side == "right" and project.link else "left_records"
     key = project.meta["right_id_column" if table == "right_records" else "left_id_column"]
     return {r for (r,) in project.connection.execute(f"SELECT {store.quote(key)} FROM {table}")}
 
 
-def read_predictions(project: Project, path: str | Path) -> tuple[pd.Series, dict[str, Any]]:
+def read_predictions(project: ProjectFile, path: str | Path) -> tuple[pd.Series, dict[str, Any]]:
     """Scores per candidate pair id from a matcher's file, and what was read.
 
     The file (CSV, Parquet or JSONL) has left_id, right_id and a score (``score`` or
@@ -334,7 +335,7 @@ def read_predictions(project: Project, path: str | Path) -> tuple[pd.Series, dic
     return full, info
 
 
-def machine_rater(project: Project, predicted_match: pd.Series) -> dict[str, Any]:
+def machine_rater(project: ProjectFile, predicted_match: pd.Series) -> dict[str, Any]:
     """Cohen's kappa of a matcher's labels against the gold labels: a machine rater.
 
     ``predicted_match`` is a bool per pair id. Rows of ``table`` are the machine rater, columns
@@ -354,7 +355,7 @@ def machine_rater(project: Project, predicted_match: pd.Series) -> dict[str, Any
             "se_method": "Fleiss, Cohen & Everitt (1969) large-sample standard error"}
 
 
-def evaluate_predictions(project: Project, path: str | Path, threshold: float | None = None,
+def evaluate_predictions(project: ProjectFile, path: str | Path, threshold: float | None = None,
                          thresholds: Sequence[float] | None = None,
                          target_precision: float | None = None,
                          target_recall: float | None = None, confidence: float = 0.95,

@@ -2,17 +2,17 @@
 
 An adjudication is a decision in the role 'adjudicator', with its reason stored as the
 decision's note, so the log shows how every adjudicated gold label was reached. Which pairs
-wait, and what becomes gold, is the policy of ``core.gold``.
+wait, and what becomes gold, is the policy of ``reviewing.gold``.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
 
+from ..errors import DocketError
+from ..storage.project_file import ProjectFile
+from ..types import LABELS, Decision
 from . import gold
-from .errors import DocketError
-from .project import Project
-from .types import LABELS, Decision
 
 
 @dataclass(frozen=True)
@@ -34,14 +34,14 @@ class Review:
     role: str = "reviewer"
 
 
-def is_adjudicator(project: Project, name: str) -> bool:
+def is_adjudicator(project: ProjectFile, name: str) -> bool:
     with project.reading():
         row = project.connection.execute("SELECT role FROM reviewers WHERE name = ?",
                                          (name.strip(),)).fetchone()
     return row is not None and row[0] == "adjudicator"
 
 
-def require_adjudicator(project: Project, name: str) -> None:
+def require_adjudicator(project: ProjectFile, name: str) -> None:
     if not name.strip():
         raise DocketError("adjudication needs a name; pass --reviewer NAME")
     if not is_adjudicator(project, name):
@@ -50,13 +50,13 @@ def require_adjudicator(project: Project, name: str) -> None:
                           f"{project.path} add {name.strip()} --role adjudicator'")
 
 
-def queue(project: Project, extra: set[int] | None = None) -> list[tuple[int, str]]:
+def queue(project: ProjectFile, extra: set[int] | None = None) -> list[tuple[int, str]]:
     """(pair_id, why) for the pairs waiting for an adjudicator; see gold.needs_adjudication."""
     with project.reading():
         return gold.needs_adjudication(project.connection, extra)
 
 
-def reviews_of(project: Project, pair_id: int, adjudicator: str) -> list[Review]:
+def reviews_of(project: ProjectFile, pair_id: int, adjudicator: str) -> list[Review]:
     """Every standing label on the pair: reviewers' first, then adjudications; each by time."""
     with project.reading():
         rows = project.connection.execute(
@@ -71,7 +71,7 @@ def reviews_of(project: Project, pair_id: int, adjudicator: str) -> list[Review]
             for reviewer, label, note, decided_at, role, seconds in rows]
 
 
-def adjudicate(project: Project, pair_id: int, adjudicator: str, label: str, reason: str,
+def adjudicate(project: ProjectFile, pair_id: int, adjudicator: str, label: str, reason: str,
                seconds: float = 0.0) -> Decision:
     """Record the final label with its reason; a hold leaves the pair waiting."""
     require_adjudicator(project, adjudicator)
@@ -89,7 +89,7 @@ def adjudicate(project: Project, pair_id: int, adjudicator: str, label: str, rea
                           role="adjudicator")
 
 
-def undo(project: Project, adjudicator: str) -> Decision | None:
+def undo(project: ProjectFile, adjudicator: str) -> Decision | None:
     """Retract this adjudicator's latest standing adjudication; None when there is none."""
     require_adjudicator(project, adjudicator)
     return project.undo(adjudicator.strip(), role="adjudicator")

@@ -11,9 +11,10 @@ from collections.abc import Callable
 import numpy as np
 import pandas as pd
 
-from . import compare, normalise
+from ..records import normalise
+from ..types import FieldSpec
+from . import compare
 from .model import FSModel
-from .types import FieldSpec
 
 CHUNK = 250_000
 

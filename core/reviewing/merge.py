@@ -20,10 +20,10 @@ from dataclasses import asdict, dataclass, field
 from pathlib import Path
 from typing import Any
 
-from . import decisions as log
-from . import store
-from .errors import DocketError
-from .project import Project
+from ..errors import DocketError
+from ..storage import decisions as log
+from ..storage import store
+from ..storage.project_file import ProjectFile
 
 COLUMNS = ("decision_id", "pair_id", "reviewer", "role", "label", "note", "decided_at",
            "seconds", "supersedes")
@@ -82,7 +82,7 @@ def _same_file(a: Path, b: Path) -> bool:
         return False
 
 
-def _read(path: Path, project: Project) -> _Other:
+def _read(path: Path, project: ProjectFile) -> _Other:
     """Everything needed from one other file, opened read-only and checked."""
     if _same_file(path, project.path):
         raise DocketError(f"{path}: is this project itself; give the copies other reviewers "
@@ -107,7 +107,7 @@ def _read(path: Path, project: Project) -> _Other:
     return _Other(path, rows, reviewers, pairs)
 
 
-def _check_pairs(project: Project, other: _Other) -> None:
+def _check_pairs(project: ProjectFile, other: _Other) -> None:
     ours = _pairs_of(project.connection, sorted(other.pairs))
     for pid, ids in sorted(other.pairs.items()):
         if ours.get(pid) != ids:
@@ -126,7 +126,7 @@ def _existing(conn: sqlite3.Connection, ids: list[str]) -> dict[str, Row]:
     return out
 
 
-def merge(project: Project, others: list[Path]) -> MergeResult:
+def merge(project: ProjectFile, others: list[Path]) -> MergeResult:
     """Bring in the decisions (and reviewers) of ``others``; all of them or, on error, none."""
     if not others:
         raise DocketError("give at least one project copy to merge")

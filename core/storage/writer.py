@@ -9,9 +9,10 @@ from typing import Any
 
 import numpy as np
 
-from . import queue, store
-from .model import FSModel
-from .types import FieldSpec
+from ..matching.model import FSModel
+from ..ordering import queue
+from ..types import FieldSpec
+from . import store
 
 BATCH = 50_000
 

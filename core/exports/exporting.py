@@ -10,9 +10,10 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from . import store
-from .errors import DocketError
-from .project import Project
+from ..errors import DocketError
+from ..matching.decision_rule import predicted
+from ..storage import store
+from ..storage.project_file import ProjectFile
 
 FORMATS = {".csv": "csv", ".parquet": "parquet", ".pq": "parquet", ".jsonl": "jsonl",
            ".ndjson": "jsonl"}
@@ -32,19 +33,7 @@ def output_format(target: str, fmt: str | None) -> str:
     return found
 
 
-def predicted(frame: pd.DataFrame, threshold: float, one_to_one: bool) -> np.ndarray:
-    """Predicted match at the threshold; with one-to-one, only mutual best pairs qualify."""
-    yes = frame["probability"].to_numpy() >= threshold
-    if not one_to_one:
-        return yes
-    order = frame.sort_values(["probability", "pair_id"], ascending=[False, True])
-    best_left = ~order.duplicated("left_id")
-    best_right = ~order.duplicated("right_id")
-    mutual = pd.Series(best_left & best_right).reindex(frame.index).to_numpy()
-    return yes & mutual
-
-
-def scores_frame(project: Project) -> pd.DataFrame:
+def scores_frame(project: ProjectFile) -> pd.DataFrame:
     sims = ", ".join(f"p.{store.similarity_column(f.name)}" for f in project.fields)
     frame = pd.read_sql_query(
         f"SELECT p.pair_id, p.left_id, p.right_id, {sims}, t.weight AS match_weight, "

@@ -12,7 +12,7 @@ import sqlite3
 import uuid
 from datetime import UTC, datetime, timedelta
 
-from .types import LABELS, Decision
+from ..types import LABELS, Decision
 
 _last_stamp: datetime | None = None
 

@@ -8,7 +8,7 @@ from pathlib import Path
 
 import pandas as pd
 
-from .errors import DocketError
+from ..errors import DocketError
 
 FORMATS = {".csv": "csv", ".tsv": "tsv", ".tab": "tsv", ".parquet": "parquet", ".pq": "parquet",
            ".jsonl": "jsonl", ".ndjson": "jsonl", ".json": "jsonl"}

@@ -15,7 +15,7 @@ from datetime import UTC, datetime
 from pathlib import Path
 from typing import Any
 
-from .errors import DocketError, NotAProject
+from ..errors import DocketError, NotAProject
 
 APPLICATION_ID = 0x646F636B  # "dock": marks the file as a docket project
 SCHEMA_VERSION = 1

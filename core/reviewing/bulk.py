@@ -7,12 +7,12 @@ from pathlib import Path
 
 import pandas as pd
 
-from . import decisions as log
-from . import store
-from .errors import DocketError
-from .project import Project
-from .sources import read_frame
-from .types import LABELS
+from ..errors import DocketError
+from ..records.sources import read_frame
+from ..storage import decisions as log
+from ..storage import store
+from ..storage.project_file import ProjectFile
+from ..types import LABELS
 
 ALIASES = {"non_match": "non-match", "nonmatch": "non-match", "no-match": "non-match"}
 
@@ -24,7 +24,7 @@ class BulkRow:
     note: str
 
 
-def read_rows(project: Project, path: Path) -> list[BulkRow]:
+def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
     frame = read_frame(path)
     cols = set(frame.columns)
     if "label" not in cols:
@@ -69,7 +69,7 @@ def read_rows(project: Project, path: Path) -> list[BulkRow]:
     return rows
 
 
-def apply_rows(project: Project, reviewer: str, rows: list[BulkRow], role: str = "reviewer"
+def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: str = "reviewer"
                ) -> int:
     with project.transaction() as conn:
         conn.execute("INSERT OR IGNORE INTO reviewers VALUES (?, ?, ?)",

@@ -12,9 +12,10 @@ from collections import Counter
 from dataclasses import dataclass
 from typing import Any
 
-from . import store
-from .errors import DocketError
-from .project import ROLES, Project
+from ..errors import DocketError
+from ..storage import store
+from ..storage.project_file import ProjectFile
+from ..types import ROLES
 
 SE_KIND = ("Fleiss, Cohen & Everitt (1969) large-sample non-null standard error (SAS 'ASE', "
            "Stata kapci); se0 is the standard error under kappa = 0")
@@ -61,7 +62,7 @@ def clean_name(name: str) -> str:
     return name
 
 
-def add_reviewer(project: Project, name: str, role: str = "reviewer") -> ReviewerChange:
+def add_reviewer(project: ProjectFile, name: str, role: str = "reviewer") -> ReviewerChange:
     """Register ``name`` in ``role``; an existing reviewer's role is changed (and said so)."""
     name = clean_name(name)
     if role not in ROLES:
@@ -75,7 +76,7 @@ def add_reviewer(project: Project, name: str, role: str = "reviewer") -> Reviewe
     return ReviewerChange(name, role, None if row is None else row[0])
 
 
-def list_reviewers(project: Project) -> list[dict[str, Any]]:
+def list_reviewers(project: ProjectFile) -> list[dict[str, Any]]:
     """Everyone registered (or with decisions), by name: role, added_at and their work so far.
 
     ``labels`` and ``holds`` count standing reviewer labels, ``adjudications`` standing
@@ -106,7 +107,7 @@ def list_reviewers(project: Project) -> list[dict[str, Any]]:
 
 
 # -- agreement -----------------------------------------------------------------------------
-def labels_by_reviewer(project: Project) -> dict[str, dict[int, str]]:
+def labels_by_reviewer(project: ProjectFile) -> dict[str, dict[int, str]]:
     """reviewer -> pair_id -> standing label, reviewer role only; reviewers in name order."""
     out: dict[str, dict[int, str]] = {}
     with project.reading():
@@ -174,7 +175,7 @@ def _dawid_skene(labels: dict[str, dict[int, str]], categories: tuple[str, ...]
     }
 
 
-def agreement_report(project: Project, include_hold: bool = False) -> dict[str, Any]:
+def agreement_report(project: ProjectFile, include_hold: bool = False) -> dict[str, Any]:
     """Everything ``docket agreement`` prints, as JSON-ready data (NaN becomes None).
 
     ``reviewer_pairs``: Cohen's kappa, its SE and 95 % CI, PABAK with the prevalence and bias
@@ -210,7 +211,7 @@ def agreement_report(project: Project, include_hold: bool = False) -> dict[str, 
     })
 
 
-def disagreements(project: Project, a: str, b: str) -> list[dict[str, Any]]:
+def disagreements(project: ProjectFile, a: str, b: str) -> list[dict[str, Any]]:
     """Pairs both reviewers labelled differently (a hold against a label counts), by pair id."""
     if a == b:
         raise DocketError(f"give two different reviewers, not {a} twice")

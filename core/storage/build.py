@@ -16,13 +16,16 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from . import autoblock, blocking, queue, scoring, store
-from . import fields as fieldmod
-from .compare import level_names
-from .errors import Cancelled, DocketError
-from .model import FSModel, fit_em
-from .sources import Table, load_table, read_frame
-from .types import FieldSpec
+from ..errors import Cancelled, DocketError
+from ..matching import scoring
+from ..matching.compare import level_names
+from ..matching.model import FSModel, fit_em
+from ..ordering import queue
+from ..pairs import autoblock, blocking
+from ..records import fields as fieldmod
+from ..records.sources import Table, load_table, read_frame
+from ..types import FieldSpec
+from . import store
 
 Progress = Callable[[str, int, int], None]
 

@@ -21,9 +21,9 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from . import normalise
-from .errors import DocketError
-from .types import FieldSpec
+from ..errors import DocketError
+from ..records import normalise
+from ..types import FieldSpec
 
 _KEY = re.compile(r"^\s*(?:(tokens|digits|year)\s*\(\s*([^()]+?)\s*\)|([^\[\]()&]+?)"
                   r"(?:\[\s*:\s*(\d+)\s*\])?)\s*$")

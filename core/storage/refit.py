@@ -11,9 +11,10 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from . import queue, store
-from .logistic import fit_logistic, one_hot
-from .model import FSModel, fit_em
+from ..matching.logistic import fit_logistic, one_hot
+from ..matching.model import FSModel, fit_em
+from ..ordering import queue
+from . import store
 from .writer import write_model
 
 FOLDS = 5

@@ -6,9 +6,9 @@ import re
 
 import pandas as pd
 
+from ..errors import DocketError
+from ..types import KINDS, FieldSpec
 from . import normalise
-from .errors import DocketError
-from .types import KINDS, FieldSpec
 
 _CODE_HINT = re.compile(r"(post|zip|phone|tel|mobile|fax|e-?mail|code|iban|ssn|nhs|vat|isbn)",
                         re.I)

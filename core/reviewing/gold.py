@@ -14,7 +14,7 @@ import sqlite3
 from dataclasses import asdict, dataclass, field
 from typing import Any
 
-from . import store
+from ..storage import store
 
 DEFAULT_POLICY = {"min_reviews": 1}
 

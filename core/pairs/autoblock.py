@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import pandas as pd
 
+from ..types import FieldSpec
 from .blocking import Rule, _drop_common_tokens, _exploded, estimate_pairs, parse_rule, rule_pairs
-from .types import FieldSpec
 
 MAX_EXACT = 3
 MAX_TOKENS = 2

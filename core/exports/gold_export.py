@@ -1,6 +1,6 @@
 """Gold labels out: the gold table, a training set, language-model records, clusters, conflicts.
 
-Every frame here is built from the gold labels under the project's policy (``core.gold``), so
+Every frame here is built from the gold labels under the project's policy (``reviewing.gold``), so
 pairs on hold or in disagreement never leave the project as if they were settled.
 
 The train/test split is a seeded hash of the pair id alone (``split_of``): a pair keeps its side
@@ -23,12 +23,13 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from ..errors import DocketError
+from ..ordering import queue
+from ..reviewing.gold import gold_labels, needs_adjudication
+from ..storage import store
+from ..storage.project_file import ProjectFile
 from . import clusters as clustering
-from . import queue, store
-from .errors import DocketError
 from .exporting import atomic_write
-from .gold import gold_labels, needs_adjudication
-from .project import Project
 
 GOLD_COLUMNS = ("pair_id", "left_id", "right_id", "label", "how", "reviewers", "n_reviews",
                 "audit", "audit_stratum", "inclusion_probability")
@@ -40,7 +41,7 @@ LEFT, RIGHT = "L:", "R:"  # link mode: the two sides share no id space once clus
 
 
 # -- gold ---------------------------------------------------------------------------------------
-def gold_frame(project: Project) -> pd.DataFrame:
+def gold_frame(project: ProjectFile) -> pd.DataFrame:
     """One row per gold-labelled pair, by pair id.
 
     ``how`` is unanimous, adjudicated or single; ``reviewers`` is ';'-joined. ``audit_stratum``
@@ -76,7 +77,7 @@ def split_of(pair_ids: Iterable[int] | np.ndarray, test_share: float = 0.2,
 
 
 # -- training -----------------------------------------------------------------------------------
-def _records(project: Project, side: str, ids: Iterable[str]) -> pd.DataFrame:
+def _records(project: ProjectFile, side: str, ids: Iterable[str]) -> pd.DataFrame:
     """Records of one side, indexed by id, every column as stored (text or None)."""
     table = "right_records" if side == "right" and project.link else "left_records"
     key = project.meta["right_id_column" if table == "right_records" else "left_id_column"]
@@ -105,7 +106,7 @@ def _prefixed(frame: pd.DataFrame, prefix: str, taken: set[str]) -> pd.DataFrame
     return frame.rename(columns=names)
 
 
-def training_frame(project: Project, test_share: float = 0.2, seed: int = 0) -> pd.DataFrame:
+def training_frame(project: ProjectFile, test_share: float = 0.2, seed: int = 0) -> pd.DataFrame:
     """Gold rows plus ``split``, the per-field similarities and both records' columns.
 
     Similarity columns are ``sim_<field>`` (None where a side is missing); record columns are
@@ -146,7 +147,7 @@ def serialise_pair(names: list[str], left: list[object], right: list[object]) ->
     return f"Record A: {a}\nRecord B: {b}"
 
 
-def lm_records(project: Project, test_share: float = 0.2, seed: int = 0,
+def lm_records(project: ProjectFile, test_share: float = 0.2, seed: int = 0,
                instruction: str = LM_INSTRUCTION) -> list[dict[str, Any]]:
     """One dict per gold pair: pair_id, instruction, input (the serialised pair), label, split.
 
@@ -197,19 +198,19 @@ class _State:
     non_match_ids: dict[tuple[str, str], int]  # sorted node pair -> pair id
 
 
-def _node(project: Project, side: str, record_id: str) -> str:
+def _node(project: ProjectFile, side: str, record_id: str) -> str:
     if not project.link:
         return record_id
     return (LEFT if side == "left" else RIGHT) + record_id
 
 
-def _unnode(project: Project, node: str) -> tuple[str, str]:
+def _unnode(project: ProjectFile, node: str) -> tuple[str, str]:
     if not project.link:
         return "", node
     return ("left" if node.startswith(LEFT) else "right"), node[len(LEFT):]
 
 
-def _state(project: Project, all_records: bool = False) -> _State:
+def _state(project: ProjectFile, all_records: bool = False) -> _State:
     gold = gold_frame(project)
     ends = [(int(p), _node(project, "left", a), _node(project, "right", b), lab)
             for p, a, b, lab in gold[["pair_id", "left_id", "right_id", "label"]]
@@ -234,7 +235,7 @@ def _state(project: Project, all_records: bool = False) -> _State:
     return _State(cluster_of, clustering.conflicts(cluster_of, non), by_cluster, non_ids)
 
 
-def clusters_frame(project: Project, all_records: bool = False) -> pd.DataFrame:
+def clusters_frame(project: ProjectFile, all_records: bool = False) -> pd.DataFrame:
     """Record id -> cluster id over the connected components of the gold matches.
 
     By default the records named by some gold label; with ``all_records`` every record (the
@@ -259,7 +260,7 @@ def clusters_frame(project: Project, all_records: bool = False) -> pd.DataFrame:
     return frame.reset_index(drop=True)
 
 
-def conflicts(project: Project) -> list[ClusterConflict]:
+def conflicts(project: ProjectFile) -> list[ClusterConflict]:
     """Clusters of gold matches that contain a gold non-match, by cluster id."""
     state = _state(project)
     return [ClusterConflict(
@@ -269,12 +270,12 @@ def conflicts(project: Project) -> list[ClusterConflict]:
         for c in state.conflicts]
 
 
-def conflict_pairs(project: Project) -> set[int]:
+def conflict_pairs(project: ProjectFile) -> set[int]:
     """Pair ids of the gold non-matches that a chain of gold matches contradicts."""
     return {p for c in conflicts(project) for p in c.non_match_pairs}
 
 
-def conflicts_frame(project: Project) -> pd.DataFrame:
+def conflicts_frame(project: ProjectFile) -> pd.DataFrame:
     """The conflicts listing: one row per contradicted gold non-match."""
     gold = gold_frame(project).set_index("pair_id")
     rows = []
@@ -289,7 +290,7 @@ def conflicts_frame(project: Project) -> pd.DataFrame:
                          "left_id": "object", "right_id": "object", "match_pairs": "object"})
 
 
-def conflict_queue_pairs(project: Project) -> set[int]:
+def conflict_queue_pairs(project: ProjectFile) -> set[int]:
     """The pairs a conflict sends to adjudication.
 
     The contradicted non-matches first; once an adjudicator has confirmed every non-match of
@@ -304,6 +305,6 @@ def conflict_queue_pairs(project: Project) -> set[int]:
     return out
 
 
-def adjudication_queue(project: Project) -> list[tuple[int, str]]:
-    """``core.gold.needs_adjudication`` with the cluster conflicts added ("cluster conflict")."""
+def adjudication_queue(project: ProjectFile) -> list[tuple[int, str]]:
+    """``gold.needs_adjudication`` with the cluster conflicts added ("cluster conflict")."""
     return needs_adjudication(project.connection, extra=conflict_queue_pairs(project))

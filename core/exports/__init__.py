@@ -1,0 +1,1 @@
+"""Files out: scores, gold labels, training sets and clusters."""

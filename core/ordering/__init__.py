@@ -1,0 +1,1 @@
+"""The review queue's arithmetic: priority, the audit slice and overlap."""

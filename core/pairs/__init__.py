@@ -1,0 +1,1 @@
+"""Candidate pairs: blocking rules (given or chosen automatically)."""

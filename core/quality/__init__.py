@@ -1,0 +1,1 @@
+"""Honest figures: the audit sample, quality estimates and their intervals, evaluation."""

@@ -1,0 +1,1 @@
+"""Records in: reading tables, choosing and mapping fields, normalising values."""
