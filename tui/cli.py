@@ -8,6 +8,7 @@ import sys
 from collections.abc import Callable
 
 from . import commands
+from .terminal import safe_streams, shown
 
 EPILOG_CAUTION = ("Records are often personal data: keep project files private and let people "
                   "review before any merge.")
@@ -117,6 +118,9 @@ def build_parser() -> argparse.ArgumentParser:
                    help="gold or training: pairs as text, JSON lines, for a language model")
     p.add_argument("--all-records", action="store_true",
                    help="clusters: every record, singletons too")
+    p.add_argument("--no-formula-guard", dest="formula_guard", action="store_false",
+                   help="CSV: write cells beginning with = + - @ tab or CR as they are (by "
+                        "default they get a leading ' so a spreadsheet cannot run them)")
 
     p = _command(sub, "review", "Open the review screen on a reviewer's queue.",
                  "Keys: s match, d non-match, h hold, z undo, e note, [ ] history, / find, "
@@ -147,6 +151,11 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def main(argv: list[str] | None = None) -> int:
+    with safe_streams():  # every line printed below reaches the terminal inert
+        return _main(argv)
+
+
+def _main(argv: list[str] | None) -> int:
     parser = build_parser()
     args = parser.parse_args(argv)
     if not getattr(args, "func", None):
@@ -156,7 +165,7 @@ def main(argv: list[str] | None = None) -> int:
     try:
         return int(args.func(args) or 0)
     except DocketError as exc:
-        print(f"docket: {exc}", file=sys.stderr)
+        print(f"docket: {shown(exc)}", file=sys.stderr)
         return exc.exit_code
     except KeyboardInterrupt:
         print("docket: interrupted; nothing was half-written", file=sys.stderr)

@@ -7,9 +7,10 @@ frames from ``docket.core.exports.gold_export``.
 from __future__ import annotations
 
 import argparse
-import json
 import sys
 from typing import Any
+
+from .terminal import json_text
 
 EXPORTS = ("gold", "training", "clusters", "conflicts")
 
@@ -79,7 +80,7 @@ def evaluate(args: argparse.Namespace) -> int:
                                   args.target_recall)
         name = project.meta.get("name") or project.path.stem
     if args.json:
-        print(json.dumps(report, indent=2, ensure_ascii=False))
+        print(json_text(report))
         return 0
     print("\n".join(render(report, name)))
     return 0
@@ -197,7 +198,7 @@ def export_other(project: Any, what: str, args: argparse.Namespace) -> Any:
     raise DocketError(f"--what {what}: use one of scores, {', '.join(EXPORTS)}")
 
 
-def write_export(result: Any, target: str, fmt: str | None) -> int:
+def write_export(result: Any, target: str, fmt: str | None, guard: bool = True) -> int:
     """Write what ``export_other`` returned; returns the number of rows written."""
     from docket.core import DocketError
     from docket.core.exports.exporting import output_format, write_frame
@@ -209,7 +210,7 @@ def write_export(result: Any, target: str, fmt: str | None) -> int:
                               "--format jsonl")
         write_jsonl(result, target)
     else:
-        write_frame(result, target, fmt)
+        write_frame(result, target, fmt, guard)
     if target != "-":
         print(f"wrote {len(result):,} rows to {target}", file=sys.stderr)
     return len(result)

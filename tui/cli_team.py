@@ -7,12 +7,12 @@ Argument parsing and printing only; the work is done by ``docket.core.reviewing.
 from __future__ import annotations
 
 import argparse
-import json
 from pathlib import Path
 from typing import Any
 
 from .cli import _command
 from .commands import _open, default_reviewer
+from .terminal import json_text
 
 DEMO_SECOND_REVIEWER = "ines"
 
@@ -78,7 +78,7 @@ def reviewers(args: argparse.Namespace) -> int:
     with _open(args.project, readonly=True) as project:
         people = list_reviewers(project)
     if args.json:
-        print(json.dumps(people, indent=2, ensure_ascii=False))
+        print(json_text(people))
         return 0
     if not people:
         print("no reviewers yet; add one with 'docket reviewers PROJECT add NAME'")
@@ -168,7 +168,7 @@ def agreement(args: argparse.Namespace) -> int:
     with _open(args.project, readonly=True) as project:
         report = agreement_report(project, include_hold=args.include_hold)
     if args.json:
-        print(json.dumps(report, indent=2, ensure_ascii=False))
+        print(json_text(report))
     else:
         print_agreement(report)
     return 0

@@ -4,13 +4,14 @@ from __future__ import annotations
 
 import argparse
 import getpass
-import json
 import os
 import sys
 import warnings
 from importlib import resources
 from pathlib import Path
 from typing import Any
+
+from .terminal import json_text
 
 
 def version() -> str:
@@ -92,7 +93,7 @@ def status(args: argparse.Namespace) -> int:
     with _open(args.project, readonly=True) as project:
         info = get_status(project)
     if args.json:
-        print(json.dumps(info, indent=2, ensure_ascii=False))
+        print(json_text(info))
         return 0
     rec, pairs, dec, model = info["records"], info["pairs"], info["decisions"], info["model"]
     print(f"{info['name']} · {info['mode']} mode · {info['project']}")
@@ -127,7 +128,7 @@ def next_pairs(args: argparse.Namespace) -> int:
         project.ensure_reviewer(reviewer)
         items = project.next_pairs(reviewer, max(0, args.n))
     if args.json:
-        print(json.dumps([i.to_dict() for i in items], indent=2, ensure_ascii=False))
+        print(json_text([i.to_dict() for i in items]))
         return 0
     print(f"{'pair_id':>8}  {'left_id':<22} {'right_id':<22} {'probability':>11}  why")
     for i in items:
@@ -159,11 +160,12 @@ def export(args: argparse.Namespace) -> int:
         from . import cli_gold
         with _open(args.project, readonly=True) as project:
             result = cli_gold.export_other(project, args.what, args)
-        cli_gold.write_export(result, args.output, args.format)
+        cli_gold.write_export(result, args.output, args.format,
+                              guard=getattr(args, "formula_guard", True))
         return 0
     with _open(args.project, readonly=True) as project:
         frame = scores_frame(project)
-    write_frame(frame, args.output, args.format)
+    write_frame(frame, args.output, args.format, guard=getattr(args, "formula_guard", True))
     if args.output != "-":
         print(f"wrote {len(frame):,} pairs to {args.output}", file=sys.stderr)
     return 0

@@ -10,58 +10,18 @@ long values are cut at ``CAP`` characters with a marker saying how much was left
 
 from __future__ import annotations
 
-import unicodedata
-from functools import lru_cache
-
 from rich.style import Style, StyleType
 from rich.text import Text
 
+from .characters import is_plain, stand_in
+from .characters import visible as visible  # re-exported: the note editor uses it
+
 CAP = 600  # characters of one value shown on the pair card
-NAMED = {"\t": "\\t", "\n": "\\n", "\r": "\\r"}
 EDGE_SPACE = "·"
-
-
-@lru_cache(maxsize=4096)
-def stand_in(char: str) -> str | None:
-    """The visible form of a character that must not reach the terminal as is; None if safe."""
-    if char in NAMED:
-        return NAMED[char]
-    code = ord(char)
-    category = unicodedata.category(char)
-    if category == "Cc":
-        return f"\\x{code:02x}"
-    if category in ("Cf", "Zl", "Zp", "Cs", "Co", "Cn") and not _harmless_unassigned(char):
-        return f"⟨U+{code:04X}⟩"
-    return None
-
-
-def _harmless_unassigned(char: str) -> bool:
-    # Unassigned code points ("Cn") in this Python's Unicode table may be assigned later;
-    # only the noncharacters and the specials block are worth flagging.
-    if unicodedata.category(char) != "Cn":
-        return False
-    code = ord(char)
-    return not (0xFDD0 <= code <= 0xFDEF or (code & 0xFFFE) == 0xFFFE or code >= 0xFFF0)
-
-
-def is_plain(value: str) -> bool:
-    """True when no character of ``value`` can need a stand-in (the fast path).
-
-    ``str.isprintable`` is False for every category ``stand_in`` looks at (and for spaces
-    other than U+0020, which then simply take the slow path and are shown as they are).
-    """
-    return value.isprintable()
 
 
 def _style(style: StyleType) -> Style:
     return Style.parse(style) if isinstance(style, str) else style
-
-
-def visible(value: str) -> str:
-    """``value`` with every unsafe character replaced by its stand-in (no styling)."""
-    if is_plain(value):
-        return value
-    return "".join(stand_in(c) or c for c in value)
 
 
 def edge_spaces(value: str) -> tuple[int, int]:

@@ -8,6 +8,8 @@ from collections.abc import Iterator
 from contextlib import contextmanager
 from typing import Any
 
+from .terminal import unwrapped
+
 
 @contextmanager
 def progress_bar(enabled: bool = True) -> Iterator[Any]:
@@ -19,7 +21,8 @@ def progress_bar(enabled: bool = True) -> Iterator[Any]:
     from rich.progress import BarColumn, Progress, TaskProgressColumn, TextColumn, TimeElapsedColumn
 
     bars = Progress(TextColumn("{task.description:<24}"), BarColumn(), TaskProgressColumn(),
-                    TimeElapsedColumn(), console=Console(stderr=True), transient=False)
+                    TimeElapsedColumn(), console=Console(file=unwrapped(sys.stderr)),
+                    transient=False)
     tasks: dict[str, Any] = {}
     started = time.monotonic()
 

@@ -3,7 +3,9 @@
 from __future__ import annotations
 
 import io
+import os
 import sys
+import tempfile
 from collections.abc import Callable
 from pathlib import Path
 
@@ -44,25 +46,63 @@ def scores_frame(project: ProjectFile) -> pd.DataFrame:
     return frame
 
 
-def write_frame(frame: pd.DataFrame, target: str, fmt: str | None = None) -> None:
-    """Write to a file (atomically: a temporary beside it, then renamed) or '-' for stdout."""
+FORMULA_START = ("=", "+", "-", "@", "\t", "\r")  # what a spreadsheet may take for a formula
+GUARD = "'"  # the usual guard: a leading apostrophe makes a spreadsheet show the cell as text
+
+
+def guarded(frame: pd.DataFrame) -> pd.DataFrame:
+    """Text cells that a spreadsheet would run as a formula, prefixed with an apostrophe.
+
+    Only text columns: numbers (a negative weight) are not formulas. Common practice for CSV
+    injection (OWASP, "CSV Injection"): prefix cells beginning with = + - @ tab or CR.
+    """
+    out = frame.copy()
+    for col in out.columns:
+        if out[col].dtype == object:
+            out[col] = out[col].map(lambda v: GUARD + v if isinstance(v, str)
+                                    and v.startswith(FORMULA_START) else v)
+    return out
+
+
+def csv_text(frame: pd.DataFrame, guard: bool = True) -> str:
+    """CSV with CRLF line ends (RFC 4180), so a field holding a bare CR or LF is quoted too."""
+    return (guarded(frame) if guard else frame).to_csv(index=False, lineterminator="\r\n")
+
+
+def to_stdout(text: str | bytes) -> None:
+    """Export data on standard output: exact bytes to a pipe; to a terminal, as printed text."""
+    if isinstance(text, str) and sys.stdout.isatty():
+        sys.stdout.write(text)  # a terminal gets what every printed line gets: no raw controls
+        sys.stdout.flush()
+        return
+    sys.stdout.flush()
+    sys.stdout.buffer.write(text.encode("utf-8") if isinstance(text, str) else text)
+    sys.stdout.buffer.flush()
+
+
+def write_frame(frame: pd.DataFrame, target: str, fmt: str | None = None,
+                guard: bool = True) -> None:
+    """Write to a file (atomically: a temporary beside it, then renamed) or '-' for stdout.
+
+    ``guard``: CSV cells that a spreadsheet would take for a formula start with an apostrophe.
+    """
     kind = output_format(target, fmt)
     if target == "-":
         if kind == "parquet":
             buf = io.BytesIO()
             frame.to_parquet(buf, index=False)
-            sys.stdout.buffer.write(buf.getvalue())
+            to_stdout(buf.getvalue())
         elif kind == "csv":
-            frame.to_csv(sys.stdout, index=False)
+            to_stdout(csv_text(frame, guard))
         else:
-            frame.to_json(sys.stdout, orient="records", lines=True, force_ascii=False)
+            to_stdout(frame.to_json(orient="records", lines=True, force_ascii=False))
         return
 
     def write(tmp: Path) -> None:
         if kind == "parquet":
             frame.to_parquet(tmp, index=False)
         elif kind == "csv":
-            frame.to_csv(tmp, index=False)
+            tmp.write_text(csv_text(frame, guard), encoding="utf-8", newline="")
         else:
             frame.to_json(tmp, orient="records", lines=True, force_ascii=False)
 
@@ -70,11 +110,24 @@ def write_frame(frame: pd.DataFrame, target: str, fmt: str | None = None) -> Non
 
 
 def atomic_write(path: Path, write: Callable[[Path], None]) -> None:
-    """Let ``write`` fill a temporary file beside ``path``, then rename it into place."""
-    tmp = path.with_name(f".{path.name}.partial")
+    """Let ``write`` fill a temporary file beside ``path``, then rename it into place.
+
+    The temporary has a name of its own (two exports to one path at once do not share it)
+    and is created readable by the owner alone, like the project file: exports hold records.
+    The rename gives the export that mode whatever the file it replaces had.
+    """
+    try:
+        fd, name = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".partial", dir=path.parent)
+    except OSError as exc:
+        raise DocketError(f"{path}: cannot write ({exc.strerror or exc})") from None
+    os.close(fd)
+    tmp = Path(name)
     try:
         write(tmp)
+        os.chmod(tmp, 0o600)  # a writer may have replaced the file rather than filled it
         tmp.replace(path)
-    except OSError as exc:
+    except BaseException as exc:
         tmp.unlink(missing_ok=True)
-        raise DocketError(f"{path}: cannot write ({exc.strerror or exc})") from None
+        if isinstance(exc, OSError):
+            raise DocketError(f"{path}: cannot write ({exc.strerror or exc})") from None
+        raise

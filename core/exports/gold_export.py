@@ -14,7 +14,6 @@ from __future__ import annotations
 
 import json
 import re
-import sys
 from collections.abc import Iterable
 from dataclasses import asdict, dataclass
 from pathlib import Path
@@ -29,7 +28,7 @@ from ..reviewing.gold import gold_labels, needs_adjudication
 from ..storage import store
 from ..storage.project_file import ProjectFile
 from . import clusters as clustering
-from .exporting import atomic_write
+from .exporting import atomic_write, to_stdout
 
 GOLD_COLUMNS = ("pair_id", "left_id", "right_id", "label", "how", "reviewers", "n_reviews",
                 "audit", "audit_stratum", "inclusion_probability")
@@ -171,7 +170,7 @@ def write_jsonl(records: list[dict[str, Any]], target: str) -> None:
     """JSON lines to a file (atomically, via a temporary beside it) or '-' for stdout."""
     lines = "".join(json.dumps(r, ensure_ascii=False) + "\n" for r in records)
     if target == "-":
-        sys.stdout.write(lines)
+        to_stdout(lines)
         return
     atomic_write(Path(target), lambda tmp: tmp.write_text(lines, encoding="utf-8"))
 

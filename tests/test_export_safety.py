@@ -1,0 +1,134 @@
+"""Exports hold records: private file mode, no spreadsheet formulas, exact CSV round trips,
+and no shared temporary file between two exports to one path."""
+
+from __future__ import annotations
+
+import json
+import os
+import stat
+from pathlib import Path
+
+import pandas as pd
+import pytest
+
+from docket.core import DocketError, Project
+from docket.core.exporting import atomic_write
+from docket.tui.cli import main
+
+# Cells a spreadsheet would run (OWASP "CSV Injection": = + - @ tab CR), and values holding a
+# bare CR or LF in the middle, which must be quoted to stay one row.
+TRICKY = ["=HYPERLINK(\"http://x\")", "+41 22", "-3", "@SUM(A1)", "\tlead", "\rlead",
+          "Anna\rBerg", "Jon\nDahl", "Kari\r\nLund", 'say "hi", then go', "plain", "Åse Ørn",
+          "x\r"]
+
+
+def _table(path: Path, prefix: str) -> Path:
+    rows = [{"id": f"{prefix}{k}", "name": v, "town": "Oslo"} for k, v in enumerate(TRICKY)]
+    path.write_text("".join(json.dumps(r) + "\n" for r in rows), encoding="utf-8")
+    return path
+
+
+@pytest.fixture
+def project(tmp_path: Path) -> Path:
+    left, right = _table(tmp_path / "l.jsonl", "L"), _table(tmp_path / "r.jsonl", "R")
+    pairs = tmp_path / "pairs.csv"
+    pairs.write_text("left_id,right_id\n" + "".join(f"L{k},R{k}\n" for k in range(len(TRICKY))),
+                     encoding="utf-8")
+    path = tmp_path / "p.docket"
+    assert main(["new", str(path), "--left", str(left), "--right", str(right), "--id", "id",
+                 "--pairs", str(pairs)]) == 0
+    with Project.open(path) as opened:
+        for item in opened.next_pairs("maya", 100):
+            opened.decide(item.pair_id, "maya", "match")
+    return path
+
+
+def _read(path: Path) -> pd.DataFrame:
+    return pd.read_csv(path, dtype=str, keep_default_na=False)
+
+
+def test_exports_are_private_and_stay_private(project: Path, tmp_path: Path,
+                                              capsys: pytest.CaptureFixture[str]) -> None:
+    old = os.umask(0o022)  # the usual umask, under which a plain file would be 0644
+    try:
+        for what, name in (("scores", "s.csv"), ("gold", "g.parquet"), ("training", "t.jsonl"),
+                           ("clusters", "c.csv")):
+            target = tmp_path / name
+            assert main(["export", str(project), "--what", what, "-o", str(target)]) == 0
+            assert stat.S_IMODE(target.stat().st_mode) == 0o600, name
+            assert main(["export", str(project), "--what", what, "-o", str(target)]) == 0
+            assert stat.S_IMODE(target.stat().st_mode) == 0o600, f"{name} re-exported"
+        lm = tmp_path / "lm.jsonl"
+        assert main(["export", str(project), "--what", "gold", "--for-lm", "-o", str(lm)]) == 0
+        assert stat.S_IMODE(lm.stat().st_mode) == 0o600
+        wide = tmp_path / "wide.csv"
+        wide.write_text("x")
+        wide.chmod(0o644)
+        assert main(["export", str(project), "-o", str(wide)]) == 0
+        assert stat.S_IMODE(wide.stat().st_mode) == 0o600  # an export never widens, nor keeps wide
+    finally:
+        os.umask(old)
+    assert [p.name for p in tmp_path.iterdir() if p.name.endswith(".partial")] == []
+
+
+def test_csv_round_trip_through_pandas_with_bare_cr(project: Path, tmp_path: Path) -> None:
+    gold, training = tmp_path / "gold.csv", tmp_path / "training.csv"
+    assert main(["export", str(project), "--what", "gold", "-o", str(gold)]) == 0
+    assert len(_read(gold)) == len(TRICKY) == 13
+    assert main(["export", str(project), "--what", "training", "-o", str(training),
+                 "--no-formula-guard"]) == 0
+    back = _read(training)
+    assert len(back) == 13
+    assert sorted(back["left_name"]) == sorted(TRICKY)
+    assert sorted(back["right_name"]) == sorted(TRICKY)
+
+
+def test_formula_guard_and_its_off_switch(project: Path, tmp_path: Path) -> None:
+    guarded, raw = tmp_path / "guarded.csv", tmp_path / "raw.csv"
+    assert main(["export", str(project), "--what", "training", "-o", str(guarded)]) == 0
+    assert main(["export", str(project), "--what", "training", "-o", str(raw),
+                 "--no-formula-guard"]) == 0
+    shown = dict(zip(_read(raw)["left_name"], _read(guarded)["left_name"], strict=True))
+    for value in TRICKY:
+        risky = value[:1] in ("=", "+", "-", "@", "\t", "\r")
+        assert shown[value] == ("'" + value if risky else value), repr(value)
+    # Numbers are not formulas: a negative weight in the scores export stays a number.
+    scores = tmp_path / "scores.csv"
+    assert main(["export", str(project), "-o", str(scores)]) == 0
+    assert pd.read_csv(scores)["match_weight"].dtype.kind == "f"
+    # Parquet keeps values exact: no spreadsheet opens it as text.
+    parquet = tmp_path / "t.parquet"
+    assert main(["export", str(project), "--what", "training", "-o", str(parquet)]) == 0
+    assert sorted(pd.read_parquet(parquet)["left_name"]) == sorted(TRICKY)
+
+
+def test_two_exports_to_one_path_at_once_do_not_collide(tmp_path: Path) -> None:
+    # The inner export runs while the outer one still has its temporary open: with one
+    # shared temporary name the outer rename would find its file gone.
+    target = tmp_path / "out.csv"
+    seen: list[Path] = []
+
+    def outer(tmp: Path) -> None:
+        seen.append(tmp)
+        tmp.write_text("outer\n", encoding="utf-8")
+        atomic_write(target, inner)
+        assert tmp.read_text(encoding="utf-8") == "outer\n"
+
+    def inner(tmp: Path) -> None:
+        seen.append(tmp)
+        tmp.write_text("inner\n", encoding="utf-8")
+
+    atomic_write(target, outer)
+    assert seen[0] != seen[1]
+    assert target.read_text(encoding="utf-8") == "outer\n"
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["out.csv"]
+
+
+def test_a_failed_export_leaves_no_temporary(tmp_path: Path) -> None:
+    def broken(tmp: Path) -> None:
+        tmp.write_text("half", encoding="utf-8")
+        raise OSError(28, "No space left on device")
+
+    with pytest.raises(DocketError, match="No space left"):
+        atomic_write(tmp_path / "out.csv", broken)
+    assert list(tmp_path.iterdir()) == []

@@ -1,0 +1,109 @@
+"""The one door between the command line and the terminal: nothing printed acts on it.
+
+Every ``docket`` command runs with standard output and standard error behind ``SafeStream``:
+each character a terminal could act on (ESC and the OSC/CSI sequences it starts, BEL, NUL, a
+bare CR that would overwrite the line, C1 controls, BiDi overrides...) is written as the
+same visible stand-in the screens use (``\\x1b``, ``⟨U+202E⟩``), whatever printed it: a table
+of reviewer names, a record id in an error message, a warning, argparse's usage line. Only
+the newline that ends a line passes as it is. JSON output is escaped inside its strings
+instead (``json_text``), so it stays valid and exact. Data written to ``-`` by ``export``
+goes to the binary stream beneath (``raw_bytes``) when that is not a terminal: a pipe gets
+the exact bytes.
+"""
+
+from __future__ import annotations
+
+import io
+import json
+import sys
+from collections.abc import Iterator
+from contextlib import contextmanager
+from typing import Any, TextIO
+
+from .characters import stand_in
+
+
+def shown(value: object) -> str:
+    """``value`` as text with every unsafe character, newline included, made visible."""
+    text = str(value)
+    if text.isprintable():
+        return text
+    return "".join(stand_in(c) or c for c in text)
+
+
+def _line_safe(text: str) -> str:
+    if text.replace("\n", "").isprintable():
+        return text
+    return "".join(c if c == "\n" else (stand_in(c) or c) for c in text)
+
+
+class SafeStream(io.TextIOBase):
+    """A text stream that writes through ``_line_safe`` to the stream it wraps."""
+
+    def __init__(self, inner: TextIO) -> None:
+        super().__init__()
+        self.inner = inner
+
+    def write(self, text: str) -> int:
+        self.inner.write(_line_safe(text))
+        return len(text)
+
+    def flush(self) -> None:
+        self.inner.flush()
+
+    def isatty(self) -> bool:
+        return self.inner.isatty()
+
+    def fileno(self) -> int:
+        return self.inner.fileno()
+
+    def writable(self) -> bool:
+        return True
+
+    @property
+    def encoding(self) -> str:  # type: ignore[override]
+        return getattr(self.inner, "encoding", "utf-8")
+
+    @property
+    def buffer(self) -> Any:
+        return self.inner.buffer
+
+
+@contextmanager
+def safe_streams() -> Iterator[None]:
+    """Put standard output and error behind ``SafeStream`` for the length of a command."""
+    saved = sys.stdout, sys.stderr
+    sys.stdout, sys.stderr = SafeStream(saved[0]), SafeStream(saved[1])  # type: ignore[assignment]
+    try:
+        yield
+    finally:
+        for stream in (sys.stdout, sys.stderr):
+            stream.flush()
+        sys.stdout, sys.stderr = saved
+
+
+def unwrapped(stream: Any) -> Any:
+    """The stream a ``SafeStream`` wraps (for drawing our own progress bars); else ``stream``."""
+    return stream.inner if isinstance(stream, SafeStream) else stream
+
+
+
+def _json_escape(char: str) -> str:
+    code = ord(char)
+    if code <= 0xFFFF:
+        return f"\\u{code:04x}"
+    code -= 0x10000
+    return f"\\u{0xD800 + (code >> 10):04x}\\u{0xDC00 + (code & 0x3FF):04x}"
+
+
+def json_text(value: Any, indent: int | None = 2) -> str:
+    """JSON of ``value`` with readable non-ASCII text but every unsafe character escaped.
+
+    ``json.dumps`` already escapes C0 controls; C1 controls, DEL and format characters
+    (BiDi overrides, zero-width characters, line separators) become ``\\uXXXX`` here. They
+    can only sit inside strings, so the document keeps its meaning exactly.
+    """
+    text = json.dumps(value, indent=indent, ensure_ascii=False)
+    if text.replace("\n", "").isprintable():
+        return text
+    return "".join(_json_escape(c) if c != "\n" and stand_in(c) else c for c in text)
