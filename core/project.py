@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import math
 import threading
+from collections.abc import Collection
 from typing import TYPE_CHECKING
 
 from .errors import DocketError
@@ -157,8 +158,12 @@ class Project(ProjectFile):
                 "ORDER BY t.probability DESC, p.pair_id", args).fetchall()
         return [QueueItem(int(a), b, c, float(d), "candidate") for a, b, c, d in rows]
 
-    def find(self, text: str, limit: int = 50) -> list[int]:
-        """Pairs by pair id, or by a record id or text on either side (case-insensitive)."""
+    def find(self, text: str, limit: int = 50, skip: Collection[str] = ()) -> list[int]:
+        """Pairs by pair id, or by a record id or text on either side (case-insensitive).
+
+        ``skip``: columns (compared case-insensitively) whose text is never searched, so a
+        masked value cannot be confirmed by guessing it.
+        """
         text = text.strip()
         if not text:
             return []
@@ -174,6 +179,7 @@ class Project(ProjectFile):
             if ids:
                 return [r[0] for r in ids]
             like = f"%{text}%"
+            hidden = {c.casefold() for c in skip}
             found: list[int] = []
             sources = [("left_records", self.meta["left_id_column"], ("left_id",))]
             if self.link:
@@ -181,7 +187,10 @@ class Project(ProjectFile):
             else:  # one table: a record may sit on either side of a pair
                 sources[0] = ("left_records", self.meta["left_id_column"], ("left_id", "right_id"))
             for table, key, sides in sources:
-                cols = [r[1] for r in self._conn.execute(f"PRAGMA table_info({table})")]
+                cols = [r[1] for r in self._conn.execute(f"PRAGMA table_info({table})")
+                        if r[1].casefold() not in hidden]
+                if not cols:
+                    continue
                 cond = " OR ".join(f"{store.quote(c)} LIKE ?" for c in cols)
                 where = " OR ".join(f"{side} = ?" for side in sides)
                 for (rid,) in self._conn.execute(

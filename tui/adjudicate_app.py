@@ -26,7 +26,7 @@ from docket.core.project import Project
 from docket.core.reviewing.adjudication import require_adjudicator
 
 from .keymap import LoadedKeymap, load_keymap
-from .masking import Mask
+from .masking import Mask, expand_mask
 
 Clock = Callable[[], float]
 Start = Literal["adjudicate", "agreement", "quality"]
@@ -119,6 +119,7 @@ def make_team_app(path: Path | str, adjudicator: str = "", *, start: Start = "ad
     try:
         if start == "adjudicate":
             require_adjudicator(project, adjudicator)
+        mask = expand_mask(project, mask)
     except BaseException:
         project.close()
         raise

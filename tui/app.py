@@ -20,7 +20,7 @@ from textual.binding import Binding
 from docket.core.project import Project
 
 from .keymap import LoadedKeymap, load_keymap
-from .masking import Mask
+from .masking import Mask, expand_mask
 from .screens.review import ReviewScreen
 
 Clock = Callable[[], float]
@@ -118,6 +118,11 @@ def make_app(path: Path | str, reviewer: str, mask: Sequence[str] = (), *,
              keymap_file: Path | None = None) -> ReviewApp:
     """Open the project and build the app (errors such as a missing file raise here)."""
     project = Project.open(Path(path))
+    try:
+        mask = expand_mask(project, mask)  # an unknown column fails before anything is written
+    except BaseException:
+        project.close()
+        raise
     project.ensure_reviewer(reviewer)
     return ReviewApp(project, reviewer.strip(), mask, clock=clock or time.monotonic,
                      refit_every=refit_every, keymap_file=keymap_file)

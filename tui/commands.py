@@ -182,8 +182,10 @@ def _run_review(path: Path, reviewer: str, mask: list[str]) -> int:
 
 
 def review(args: argparse.Namespace) -> int:
-    mask = [c.strip() for c in (args.mask or "").split(",") if c.strip()]
+    from .masking import expand_mask, parse_mask
+    mask = parse_mask(args.mask)
     with _open(args.project) as project:  # fails cleanly before the screen starts
+        expand_mask(project, mask)
         project.ensure_reviewer(default_reviewer(args.reviewer))
     return _run_review(Path(args.project), default_reviewer(args.reviewer), mask)
 

@@ -9,9 +9,13 @@ file; this only changes what is painted.
 
 from __future__ import annotations
 
+import difflib
 import re
-from collections.abc import Iterable
+from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field
+from typing import Any
+
+from docket.core.errors import DocketError
 
 MASK_CHAR = "•"
 KEEP_DIGITS = 2  # digits kept at each end of a phone number or other digit string
@@ -34,6 +38,40 @@ class Mask:
     def applies(self, *names: str) -> bool:
         """True if any of ``names`` (a field name, its left or right column) is masked."""
         return any(n.casefold() in self.columns for n in names)
+
+
+def record_columns(project: Any) -> list[str]:
+    """Every column of the project's records, left table first (ids included)."""
+    tables = ["left_records", "right_records"] if project.link else ["left_records"]
+    with project.reading() as conn:
+        names = [r[1] for t in tables for r in conn.execute(f"PRAGMA table_info({t})")]
+    return list(dict.fromkeys(names))
+
+
+def expand_mask(project: Any, names: Sequence[str]) -> list[str]:
+    """``--mask`` names checked against the project, each widened to both sides of its field.
+
+    A name may be a field, or a column of either table: ``--mask owner_name`` masks the field
+    compared with it, whichever side it came from. An unknown name is an error (a typo must
+    not leave a column silently unmasked), with the nearest column suggested.
+    """
+    columns = record_columns(project)
+    known = {c.casefold(): c for c in columns}
+    sides = [(f.name, f.left_column, f.right_column) for f in project.fields]
+    known.update({f[0].casefold(): f[0] for f in sides})
+    out: list[str] = []
+    for name in names:
+        if name.strip().casefold() not in known:
+            near = difflib.get_close_matches(name.casefold(), list(known), n=1, cutoff=0.6)
+            hint = f"did you mean '{known[near[0]]}'? " if near else ""
+            raise DocketError(f"--mask {name}: no such column; {hint}columns are "
+                              f"{', '.join(columns)}")
+        key = name.strip().casefold()
+        out.append(name.strip())
+        for group in sides:
+            if key in (g.casefold() for g in group):
+                out += group
+    return list(dict.fromkeys(out))
 
 
 def parse_mask(option: str | None) -> list[str]:

@@ -64,7 +64,7 @@ class PairPicker(ModalScreen[int | None]):
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         event.stop()
-        found = self.project.find(event.value, limit=LIMIT)
+        found = self.project.find(event.value, limit=LIMIT, skip=self.mask.columns)
         heading = (f"{len(found)} pair{'s' if len(found) != 1 else ''}"
                    + (f" (first {LIMIT})" if len(found) >= LIMIT else ""))
         self._fill((Group(heading, tuple(found)),))

@@ -1,0 +1,51 @@
+"""``--mask``: either side's column names, unknown names refused, masked columns never searched."""
+
+from __future__ import annotations
+
+import sqlite3
+from pathlib import Path
+
+import pytest
+
+from docket.core import Project
+from docket.tui.cli import main
+from docket.tui.masking import Mask, expand_mask
+
+
+def test_find_does_not_search_masked_columns(sample_project: Path) -> None:
+    with Project.open(sample_project) as project:
+        email = project.record("left", "N-00001")["email"]
+        owner = project.record("left", "N-00001")["owner"]
+        assert email and owner
+        assert project.find(email)  # unmasked, the guess is confirmed...
+        assert project.find(email, skip={"EMAIL"}) == []  # ...masked, it is not
+        # Masking the right-hand name of the owner field hides the left-hand column too.
+        mask = Mask.of(expand_mask(project, ["owner_name"]))
+        assert project.find(owner)
+        assert project.find(owner, skip=mask.columns) == []
+        # Ids are not masked values: a pair is still found by its record id.
+        assert project.find("N-00001", skip=mask.columns)
+
+
+def test_mask_accepts_either_sides_names(sample_project: Path) -> None:
+    with Project.open(sample_project) as project:
+        for given in (["owner_name"], ["owner"], ["OWNER"]):
+            mask = Mask.of(expand_mask(project, given))
+            assert mask.applies("owner") and mask.applies("owner_name"), given
+        mask = Mask.of(expand_mask(project, ["date_of_birth", "phone"]))
+        assert mask.applies("born") and mask.applies("phone") and not mask.applies("email")
+
+
+@pytest.mark.parametrize("command", ["review", "adjudicate"])
+def test_unknown_mask_column_is_an_error_with_a_suggestion(
+        command: str, sample_project: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    assert main(["reviewers", str(sample_project), "add", "ines", "--role", "adjudicator"]) == 0
+    capsys.readouterr()
+    before = sample_project.read_bytes()
+    code = main([command, str(sample_project), "--reviewer", "ines", "--mask", "phone,emial"])
+    err = [x for x in capsys.readouterr().err.splitlines() if x.strip()]
+    assert code == 2 and len(err) == 1, err
+    assert "--mask emial" in err[0] and "did you mean 'email'" in err[0]
+    assert sample_project.read_bytes() == before
+    with sqlite3.connect(sample_project) as conn:
+        assert [r[0] for r in conn.execute("SELECT name FROM reviewers")] == ["ines"]
