@@ -11,6 +11,7 @@ from pathlib import Path
 
 import pytest
 
+from docket.core import Project
 from docket.tui.cli import main
 
 
@@ -89,10 +90,12 @@ def test_rule_over_the_cap_suggests_a_tighter_rule(tmp_path: Path, good: Path, c
 def test_cp1252_file_is_read_with_a_warning(tmp_path: Path, capsys) -> None:
     left = write(tmp_path / "latin.csv", "id,name\n1,Zoë Ågren\n2,Zoe Agren\n3,Per Moe\n",
                  encoding="cp1252")
-    with pytest.warns(UserWarning, match=r"latin\.csv: not valid UTF-8; read as cp1252"):
-        code = main(["new", str(tmp_path / "p.docket"), "--left", str(left), "--id", "id",
-                     "--block", "name[:1]"])
+    code = main(["new", str(tmp_path / "p.docket"), "--left", str(left), "--id", "id",
+                 "--block", "name[:1]"])
     assert code == 0
+    assert "latin.csv: not valid UTF-8; read as cp1252" in capsys.readouterr().err
+    with Project.open(tmp_path / "p.docket", readonly=True) as project:
+        assert project.record("left", "1")["name"] == "Zoë Ågren"
 
 
 def test_refuses_to_overwrite_and_keeps_the_file(tmp_path: Path, good: Path, capsys) -> None:

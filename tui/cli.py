@@ -5,9 +5,11 @@ from __future__ import annotations
 import argparse
 import os
 import sys
+import warnings
 from collections.abc import Callable
 
 from . import commands
+from .cli_checks import Parser, at_least, parse, share
 from .terminal import safe_streams, shown
 
 EPILOG_CAUTION = ("Records are often personal data: keep project files private and let people "
@@ -28,7 +30,7 @@ def _command(sub: argparse._SubParsersAction, name: str, summary: str, descripti
 
 
 def build_parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(
+    parser = Parser(
         prog="docket", formatter_class=_Formatter,
         description="Review candidate record pairs, measure agreement and export gold labels.",
         epilog=f"Start with:  docket demo\n{EPILOG_CAUTION}")
@@ -58,17 +60,17 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--pairs", metavar="FILE",
                    help="candidate pairs from elsewhere: left id, right id")
     p.add_argument("--block", action="append", metavar="RULE", help="a blocking rule (repeatable)")
-    p.add_argument("--max-pairs", type=int, default=5_000_000, metavar="N",
+    p.add_argument("--max-pairs", type=at_least(1), default=5_000_000, metavar="N",
                    help="stop if blocking would make more pairs than this (default 5,000,000)")
-    p.add_argument("--audit", type=int, metavar="N",
+    p.add_argument("--audit", type=at_least(1), metavar="N",
                    help="audit slice size (default 5%% of pairs, at most 1,000)")
-    p.add_argument("--overlap", type=float, default=0.2, metavar="SHARE",
+    p.add_argument("--overlap", type=share, default=0.2, metavar="SHARE",
                    help="share of pairs that two reviewers decide (default 0.2)")
-    p.add_argument("--overlap-reviewers", type=int, default=2, metavar="K",
+    p.add_argument("--overlap-reviewers", type=at_least(2), default=2, metavar="K",
                    help="how many different reviewers decide each overlap pair (default 2)")
     p.add_argument("--one-to-one", action="store_true",
                    help="link mode: each record matches at most one on the other side")
-    p.add_argument("--threshold", type=float, default=0.5, metavar="P",
+    p.add_argument("--threshold", type=share, default=0.5, metavar="P",
                    help="match probability at which a pair is predicted a match (default 0.5)")
     p.add_argument("--seed", type=int, default=0, help="seed for the audit slice (default 0)")
     p.add_argument("--force", action="store_true", help="replace an existing project file")
@@ -84,7 +86,7 @@ def build_parser() -> argparse.ArgumentParser:
                  "docket next vets.docket --reviewer maya -n 5", commands.next_pairs)
     p.add_argument("project")
     p.add_argument("--reviewer", required=True, metavar="NAME")
-    p.add_argument("-n", type=int, default=10, metavar="N", help="how many (default 10)")
+    p.add_argument("-n", type=at_least(0), default=10, metavar="N", help="how many (default 10)")
     p.add_argument("--json", action="store_true", help="machine-readable output")
 
     p = _command(sub, "label", "Record decisions in bulk from a file, then refit the model.",
@@ -111,7 +113,7 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("-o", "--output", required=True, metavar="FILE|-",
                    help="file (.csv, .parquet, .jsonl) or - for standard output")
     p.add_argument("--format", choices=["csv", "parquet", "jsonl"])
-    p.add_argument("--test-share", type=float, default=0.2, metavar="SHARE",
+    p.add_argument("--test-share", type=share, default=0.2, metavar="SHARE",
                    help="training: share in the test split (default 0.2)")
     p.add_argument("--seed", type=int, default=0, help="training: seed of the split (default 0)")
     p.add_argument("--for-lm", action="store_true",
@@ -151,13 +153,15 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def main(argv: list[str] | None = None) -> int:
-    with safe_streams():  # every line printed below reaches the terminal inert
+    with safe_streams(), warnings.catch_warnings():  # every line printed reaches it inert
+        warnings.simplefilter("always")
+        warnings.showwarning = commands.warn_line  # one line each, on standard error
         return _main(argv)
 
 
 def _main(argv: list[str] | None) -> int:
     parser = build_parser()
-    args = parser.parse_args(argv)
+    args = parse(parser, argv)
     if not getattr(args, "func", None):
         parser.print_help()
         return 0

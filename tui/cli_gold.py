@@ -26,6 +26,7 @@ def _shares(text: str) -> list[float]:
 def register(sub: argparse._SubParsersAction) -> None:
     """Add ``docket evaluate`` to the command's sub-parsers."""
     from .cli import _command
+    from .cli_checks import share
     p = _command(
         sub, "evaluate", "Estimate precision, recall and F1 from the audit slice.",
         "Design-based (Horvitz-Thompson) estimates with 95% confidence intervals at a range of "
@@ -49,9 +50,9 @@ def register(sub: argparse._SubParsersAction) -> None:
                    help="thresholds for the table (default 0.1 ... 0.9, 0.95, 0.99 and the "
                         "project's)")
     goal = p.add_mutually_exclusive_group()
-    goal.add_argument("--target-precision", type=float, metavar="P",
+    goal.add_argument("--target-precision", type=share, metavar="P",
                       help="suggest the lowest threshold whose estimated precision reaches P")
-    goal.add_argument("--target-recall", type=float, metavar="R",
+    goal.add_argument("--target-recall", type=share, metavar="R",
                       help="suggest the highest threshold whose estimated recall reaches R")
 
 

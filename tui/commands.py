@@ -6,7 +6,6 @@ import argparse
 import getpass
 import os
 import sys
-import warnings
 from importlib import resources
 from pathlib import Path
 from typing import Any
@@ -28,11 +27,9 @@ def default_reviewer(given: str | None) -> str:
     return name.strip()
 
 
-def _warn_line(message: Warning | str, category: type, *rest: Any, **kw: Any) -> None:
+def warn_line(message: Warning | str, category: type, *rest: Any, **kw: Any) -> None:
+    """How the command line shows a warning: one line, no source excerpt."""
     print(f"docket: warning: {message}", file=sys.stderr)
-
-
-warnings.showwarning = _warn_line  # one line, no source excerpt
 
 
 def _open(path: str, readonly: bool = False) -> Any:

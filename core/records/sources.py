@@ -2,20 +2,19 @@
 
 from __future__ import annotations
 
-import warnings
 from dataclasses import dataclass
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 
 from ..errors import DocketError
+from .text_tables import EncodingWarning_ as EncodingWarning_
+from .text_tables import check_names, read_delimited, read_json
 
 FORMATS = {".csv": "csv", ".tsv": "tsv", ".tab": "tsv", ".parquet": "parquet", ".pq": "parquet",
            ".jsonl": "jsonl", ".ndjson": "jsonl", ".json": "jsonl"}
-
-
-class EncodingWarning_(UserWarning):
-    """A text file was not UTF-8 and was read as cp1252."""
+MAX_COLUMNS = 2000  # SQLite's default limit on the columns of one table
 
 
 @dataclass
@@ -45,18 +44,7 @@ def detect_format(path: Path) -> str:
 
 
 def _read_text(path: Path, fmt: str) -> pd.DataFrame:
-    sep = "\t" if fmt == "tsv" else ","
-    for encoding in ("utf-8-sig", "cp1252"):
-        try:
-            if fmt == "jsonl":
-                return pd.read_json(path, lines=True, dtype=False, encoding=encoding)
-            return pd.read_csv(path, sep=sep, dtype=str, keep_default_na=False,
-                               encoding=encoding)
-        except UnicodeDecodeError:
-            warnings.warn(f"{path}: not valid UTF-8; read as cp1252 (Windows Latin-1) instead",
-                          EncodingWarning_, stacklevel=3)
-            continue
-    raise DocketError(f"{path}: cannot decode the text; save it as UTF-8")  # pragma: no cover
+    return read_json(path) if fmt == "jsonl" else read_delimited(path, fmt)
 
 
 def read_frame(path: Path) -> pd.DataFrame:
@@ -76,6 +64,11 @@ def read_frame(path: Path) -> pd.DataFrame:
         first = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
         raise DocketError(f"{path}: cannot read it as {fmt} ({first}); "
                           "check the file type and its contents") from None
+    if frame.shape[1] > MAX_COLUMNS:
+        raise DocketError(f"{path}: {frame.shape[1]:,} columns, more than the {MAX_COLUMNS:,} a "
+                          "project can hold; keep only the id and the columns worth comparing "
+                          "or showing")
+    check_names(path, list(frame.columns))
     frame.columns = [str(c).strip() for c in frame.columns]
     return _as_text(frame)
 
@@ -124,10 +117,28 @@ def load_table(path: str | Path, id_column: str | None) -> Table:
         raise DocketError(f"{path}: column '{id_column}' has duplicate ids "
                           f"({', '.join(map(str, first))}{'…' if dup.nunique() > 5 else ''}); "
                           "ids must be unique")
+    _check_edge_spaces(path, id_column, ids)
     frame = frame.set_index(id_column, drop=True)
     frame.index = frame.index.astype(str)
     frame.index.name = id_column
     return Table(path=path, id_column=id_column, frame=frame)
+
+
+def _check_edge_spaces(path: Path, id_column: str, ids: pd.Series) -> None:
+    """Refuse ids that are one id once the spaces at their ends are trimmed ('1', ' 1', '1 ').
+
+    Kept apart they would be different records that a pairs or label file, typed by hand,
+    cannot tell apart; trimmed silently, an id would no longer be the one in the file.
+    """
+    trimmed = ids.str.strip()
+    clash = trimmed.duplicated(keep=False).to_numpy()
+    if clash.any():
+        first = trimmed[clash].iloc[0]
+        rows = [str(i + 2) for i in np.flatnonzero(clash & (trimmed == first).to_numpy())[:5]]
+        shown = ", ".join(repr(v) for v in ids[clash & (trimmed == first).to_numpy()][:5])
+        raise DocketError(f"{path}: column '{id_column}' holds ids that differ only in spaces "
+                          f"at their ends ({shown} on rows {', '.join(rows)}); trim them so "
+                          "each record has one id")
 
 
 def guess_id_column(frame: pd.DataFrame) -> str | None:

@@ -32,9 +32,13 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
                           "right_id)")
     if "pair_id" in cols:
         ids = pd.to_numeric(frame["pair_id"], errors="coerce")
-        bad_rows = [i + 2 for i in range(len(ids)) if pd.isna(ids.iloc[i])]
+        bad_rows = [i + 2 for i in range(len(ids))
+                    if pd.isna(ids.iloc[i]) or not float(ids.iloc[i]).is_integer()]
         if bad_rows:
-            raise DocketError(f"{path}: row {bad_rows[0]}: pair_id must be a number")
+            raise DocketError(f"{path}: row {bad_rows[0]}: pair_id "
+                              f"{frame['pair_id'].iloc[bad_rows[0] - 2]!r} must be a whole "
+                              "number (the pair_id column of 'docket next' or the scores "
+                              "export)")
         known = {r[0] for r in project.connection.execute("SELECT pair_id FROM pairs")}
         pair_ids = [int(x) for x in ids]
         unknown = [p for p in pair_ids if p not in known]

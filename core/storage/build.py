@@ -9,6 +9,7 @@ from __future__ import annotations
 import hashlib
 import os
 import threading
+import warnings
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -28,6 +29,9 @@ from ..types import FieldSpec
 from . import store
 
 Progress = Callable[[str, int, int], None]
+
+
+MAX_FIELDS = 2000 - 13  # SQLite's column limit less the pairs table's own columns
 
 
 @dataclass
@@ -118,11 +122,27 @@ def _given_pairs(path: Path, left: Table, right: Table | None
             raise DocketError(f"{path}: {len(bad)} {side} id(s) not in {table.path.name}: "
                               f"{', '.join(map(str, bad[:5]))}{'…' if len(bad) > 5 else ''}")
     li, ri = lpos.astype(np.int64), rpos.astype(np.int64)
+    selfs = np.zeros(len(li), dtype=bool)
     if right is None:  # one table: (a, b) and (b, a) are the same pair; a record is not a pair
         li, ri = np.minimum(li, ri), np.maximum(li, ri)
-        keep = li != ri
-        li, ri = li[keep], ri[keep]
-    return blocking.dedupe_pairs(li, ri)
+        selfs = li == ri
+    repeats = pd.DataFrame({"l": li, "r": ri}).duplicated().to_numpy() & ~selfs
+    _say_left_out(path, selfs, repeats)
+    return blocking.dedupe_pairs(li[~selfs], ri[~selfs])
+
+
+def _say_left_out(path: Path, selfs: np.ndarray, repeats: np.ndarray) -> None:
+    """One warning counting the self-pairs and repeated pairs of a pairs file, with rows."""
+    parts = []
+    for flags, what in ((selfs, "pair(s) a record with itself"),
+                        (repeats, "pair(s) given before (the same two ids, in either order)")):
+        if flags.any():
+            rows = ", ".join(str(int(i) + 2) for i in np.flatnonzero(flags)[:5])
+            more = "…" if flags.sum() > 5 else ""
+            parts.append(f"{int(flags.sum()):,} {what}, row(s) {rows}{more}")
+    if parts:
+        warnings.warn(f"{path}: left out {'; and '.join(parts)}; each pair counts once",
+                      UserWarning, stacklevel=3)
 
 
 def fingerprint(left: Table, right: Table | None, li: np.ndarray, ri: np.ndarray) -> str:
@@ -152,6 +172,10 @@ def build(spec: NewProject, progress: Progress | None = None,
     fields = fieldmod.resolve_fields(left.frame, None if right is None else right.frame,
                                      str(left.path), None if right is None else str(right.path),
                                      spec.column_map, spec.kinds)
+    if len(fields) > MAX_FIELDS:
+        raise DocketError(f"{left.path}: {len(fields):,} fields to compare, more than the "
+                          f"{MAX_FIELDS:,} a project can hold; skip some with --field COL:skip "
+                          "or keep only the columns worth comparing")
     rframe = None if right is None else right.frame
     auto = False
     if spec.pairs_file is not None:
@@ -199,6 +223,11 @@ def build(spec: NewProject, progress: Progress | None = None,
     pair_ids = rng.permutation(n) + 1  # random ids: pairs of equal priority come in random order
     audit_n = queue.default_audit_size(n) if spec.audit is None else min(spec.audit, n)
     audit = queue.draw_audit(prob[pattern_ix], audit_n, seed + 1)
+    drawn = int(audit.selected.sum())
+    if spec.audit is not None and drawn < spec.audit:
+        warnings.warn(f"--audit {spec.audit:,}: capped at {drawn:,} pairs (the audit slice takes "
+                      f"at most half of each stratum of the {n:,} candidate pairs)",
+                      UserWarning, stacklevel=2)
     overlap = queue.overlap_flags(pair_ids, spec.overlap, int(fp[:8], 16))
 
     tmp = spec.path.with_name(f".{spec.path.name}.{os.getpid()}.building")

@@ -1,0 +1,140 @@
+"""Text files of records read as their authors meant them, or refused with the row to fix.
+
+The encoding comes from a byte-order mark when there is one (UTF-8, UTF-16 and UTF-32 files
+written by spreadsheets carry one), else UTF-8, else cp1252 with a warning. A ``.csv`` whose
+header holds no comma but semicolons, tabs or bars is read with that separator, with a
+warning naming it. A row with fewer or more fields than the header is an error naming its
+line. A ``.json`` file may hold one array of objects or JSON lines.
+"""
+
+from __future__ import annotations
+
+import codecs
+import csv
+import io
+import json
+import warnings
+from pathlib import Path
+
+import pandas as pd
+
+from ..errors import DocketError
+
+HEAD_BYTES = 1 << 16
+BOMS = ((codecs.BOM_UTF32_LE, "utf-32"), (codecs.BOM_UTF32_BE, "utf-32"),
+        (codecs.BOM_UTF8, "utf-8-sig"), (codecs.BOM_UTF16_LE, "utf-16"),
+        (codecs.BOM_UTF16_BE, "utf-16"))
+SEPARATORS = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "bars"}
+
+
+class EncodingWarning_(UserWarning):
+    """A text file was not UTF-8 and was read as cp1252."""
+
+
+def bom_encoding(head: bytes) -> str | None:
+    """The encoding a byte-order mark at the start of ``head`` names, if any."""
+    for bom, name in BOMS:  # UTF-32 LE first: its mark begins with UTF-16 LE's
+        if head.startswith(bom):
+            return name
+    return None
+
+
+def _encodings(path: Path, head: bytes) -> list[str]:
+    named = bom_encoding(head)
+    if named:
+        return [named]
+    if head.count(b"\x00") > len(head) // 4:
+        raise DocketError(f"{path}: looks like UTF-16 or UTF-32 without a byte-order mark; "
+                          "save it as UTF-8")
+    return ["utf-8", "cp1252"]
+
+
+def _header(text: str, sep: str) -> list[str]:
+    return next(csv.reader(io.StringIO(text), delimiter=sep), [])
+
+
+def choose_separator(path: Path, head_text: str, expected: str) -> str:
+    """``expected``, unless the header holds none of it and another separator splits it."""
+    if len(_header(head_text, expected)) > 1:
+        return expected
+    counts = {sep: len(_header(head_text, sep)) for sep in SEPARATORS if sep != expected}
+    best = max(counts, key=lambda s: counts[s])
+    if counts[best] <= 1:
+        return expected  # one column: nothing better to offer
+    warnings.warn(f"{path}: the header is separated by {SEPARATORS[best]}, not "
+                  f"{SEPARATORS[expected]}; read with {best!r} as the separator",
+                  UserWarning, stacklevel=4)
+    return best
+
+
+def check_names(path: Path, names: list[str]) -> None:
+    """Column names must stay distinct once spaces at their ends are trimmed."""
+    seen: dict[str, int] = {}
+    for position, raw in enumerate(names, start=1):
+        name = str(raw).strip()
+        if name in seen:
+            raise DocketError(f"{path}: columns {seen[name]} and {position} are both named "
+                              f"'{name}' (spaces at the ends do not count); rename one")
+        seen[name] = position
+
+
+def check_widths(path: Path, encoding: str, sep: str) -> None:
+    """Every row has as many fields as the header (a short row would pass silently)."""
+    with path.open(encoding=encoding, newline="") as f:
+        rows = csv.reader(f, delimiter=sep)
+        try:
+            width = len(next(rows, []))
+            for row in rows:
+                if row and len(row) != width:
+                    raise DocketError(
+                        f"{path}: line {rows.line_num} has {len(row)} of the header's {width} "
+                        "fields; give every row one value per column (empty ones too), and "
+                        f"quote values that hold {sep!r}")
+        except csv.Error as exc:
+            raise DocketError(f"{path}: line {rows.line_num + 1}: {exc}; check the file's "
+                              "contents") from None
+
+
+def read_delimited(path: Path, fmt: str) -> pd.DataFrame:
+    """A CSV or TSV file as a frame of strings ("" where a field is empty)."""
+    with path.open("rb") as f:
+        head = f.read(HEAD_BYTES)
+    for encoding in _encodings(path, head):
+        try:
+            head_text = head.decode(encoding, errors="ignore" if len(head) == HEAD_BYTES
+                                    else "strict")
+            sep = choose_separator(path, head_text, "\t" if fmt == "tsv" else ",")
+            check_names(path, _header(head_text, sep))
+            check_widths(path, encoding, sep)
+            frame = pd.read_csv(path, sep=sep, dtype=str, keep_default_na=False,
+                                encoding=encoding)
+        except UnicodeDecodeError:
+            if encoding != "utf-8":
+                raise DocketError(f"{path}: cannot decode the text as {encoding}; save it "
+                                  "as UTF-8") from None
+            warnings.warn(f"{path}: not valid UTF-8; read as cp1252 (Windows Latin-1) instead",
+                          EncodingWarning_, stacklevel=3)
+            continue
+        return frame
+    raise DocketError(f"{path}: cannot decode the text; save it as UTF-8")  # pragma: no cover
+
+
+def read_json(path: Path) -> pd.DataFrame:
+    """JSON lines, or one JSON array of objects (one object per record)."""
+    with path.open("rb") as f:
+        head = f.read(HEAD_BYTES)
+    encoding = bom_encoding(head) or "utf-8"
+    first = head.decode(encoding, errors="ignore").lstrip("\ufeff \t\r\n")[:1]
+    if first != "[":
+        return pd.read_json(path, lines=True, dtype=False, encoding=encoding)
+    try:
+        data = json.loads(path.read_text(encoding=encoding))
+    except (json.JSONDecodeError, UnicodeDecodeError) as exc:
+        raise DocketError(f"{path}: not valid JSON ({exc}); give one array of objects or "
+                          "JSON lines") from None
+    odd = next((i for i, v in enumerate(data) if not isinstance(v, dict)), None)
+    if odd is not None:
+        raise DocketError(f"{path}: item {odd + 1} of the JSON array is a "
+                          f"{type(data[odd]).__name__}, not an object; give one object per "
+                          'record, e.g. [{"id": 1, "name": "..."}]')
+    return pd.DataFrame.from_records(data)

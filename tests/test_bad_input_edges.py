@@ -1,0 +1,171 @@
+"""The rest of the bad-input corpus: wide and oddly encoded files, colliding names, ids that
+differ only in spaces, ragged rows, other separators, JSON arrays, pairs and label files with
+odd rows, option values out of range and misspelled words. Refusals are one line, exit 2,
+nothing written; what docket reads anyway it reads correctly and says how."""
+
+from __future__ import annotations
+
+import codecs
+import json
+import sqlite3
+from pathlib import Path
+
+import pytest
+
+from docket.core import Project
+from docket.tui.cli import main
+
+from .test_bad_input import assert_one_line_error, run, write
+
+
+def _wide(d: Path) -> Path:
+    cols = ["id"] + [f"c{i}" for i in range(2000)]
+    return write(d / "wide.csv", ",".join(cols) + "\n"
+                 + "".join(",".join([str(r)] + ["v"] * 2000) + "\n" for r in range(3)))
+
+
+def _utf16_no_bom(d: Path) -> Path:
+    path = d / "nobom.csv"
+    path.write_bytes("id,name\n1,Åse\n2,Ola\n".encode("utf-16-le"))
+    return path
+
+
+CASES = {
+    "2,001 columns": (_wide, ["wide.csv", "2,001 columns", "2,000"]),
+    "names collide after trimming": (lambda d: write(d / "trim.csv", "id,name, name \n1,a,b\n"),
+                                     ["trim.csv", "columns 2 and 3", "'name'", "rename"]),
+    "names repeated": (lambda d: write(d / "rep.csv", "id,name,name\n1,a,b\n"),
+                       ["rep.csv", "columns 2 and 3"]),
+    "ids differ in spaces only": (lambda d: write(d / "sp.csv", "id,name\n1,a\n 1,b\n1 ,c\n"),
+                                  ["sp.csv", "'1', ' 1', '1 '", "rows 2, 3, 4", "trim"]),
+    "short row": (lambda d: write(d / "short.csv", "id,a,b,c,d,e,f,g\n1,2,3,4,5,6,7,8\n2,x,y\n"),
+                  ["short.csv", "line 3", "3 of the header's 8"]),
+    "long row": (lambda d: write(d / "long.csv", "id,a\n1,2\n2,3,4,5\n"),
+                 ["long.csv", "line 3", "4 of the header's 2"]),
+    "JSON array of numbers": (lambda d: write(d / "nums.json", json.dumps(list(range(305)))),
+                              ["nums.json", "item 1", "not an object"]),
+    "UTF-16 without a mark": (_utf16_no_bom, ["nobom.csv", "byte-order mark", "UTF-8"]),
+}
+
+
+@pytest.mark.parametrize("case", sorted(CASES))
+def test_refused_tables(case: str, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    make, needles = CASES[case]
+    bad = make(tmp_path)
+    project = tmp_path / "p.docket"
+    code, err = run(capsys, "new", str(project), "--left", str(bad), "--id", "id")
+    assert_one_line_error(code, err, *needles)
+    assert not project.exists()
+    assert [p.name for p in tmp_path.iterdir() if "docket" in p.name] == []
+
+
+def _build(capsys: pytest.CaptureFixture[str], tmp_path: Path, left: Path,
+           *extra: str) -> tuple[Project, str]:
+    path = tmp_path / "p.docket"
+    assert main(["new", str(path), "--left", str(left), "--id", "id", "--block", "town",
+                 *extra]) == 0, capsys.readouterr().err
+    return Project.open(path, readonly=True), capsys.readouterr().err
+
+
+TOWNS = "id,name,town\n1,Åse Berg,Oslo\n2,Ase Berg,Oslo\n3,Jon Ørn,Bergen\n4,Jon Orn,Bergen\n"
+
+
+@pytest.mark.parametrize("encoding", ["utf-8-sig", "utf-16", "utf-16-be", "utf-32"])
+def test_text_with_a_byte_order_mark_is_read_in_its_encoding(
+        encoding: str, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    path = tmp_path / "t.csv"
+    data = TOWNS.encode(encoding)
+    if encoding == "utf-16-be":  # Python writes no mark for an explicit byte order
+        data = codecs.BOM_UTF16_BE + data
+    path.write_bytes(data)
+    project, err = _build(capsys, tmp_path, path)
+    with project:
+        assert project.record("left", "1")["name"] == "Åse Berg"
+        assert project.record("left", "3")["town"] == "Bergen"
+    assert "warning" not in err
+
+
+@pytest.mark.parametrize("sep, said", [(";", "semicolons"), ("\t", "tabs"), ("|", "bars")])
+def test_other_separators_in_a_csv_are_read_and_named(
+        sep: str, said: str, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    left = write(tmp_path / "semi.csv", TOWNS.replace(",", sep))
+    project, err = _build(capsys, tmp_path, left)
+    with project:
+        assert project.record("left", "2") == {"name": "Ase Berg", "town": "Oslo"}
+    assert f"separated by {said}, not commas" in err and "semi.csv" in err
+
+
+def test_json_array_of_objects_is_read(tmp_path: Path, capsys: pytest.CaptureFixture[str]
+                                       ) -> None:
+    rows = [dict(zip(["id", "name", "town"], line.split(","), strict=True))
+            for line in TOWNS.splitlines()[1:]]
+    left = write(tmp_path / "people.json", json.dumps(rows, indent=1))
+    project, _ = _build(capsys, tmp_path, left)
+    with project:
+        assert project.record("left", "4") == {"name": "Jon Orn", "town": "Bergen"}
+
+
+def test_self_and_repeated_pairs_are_counted_and_named(tmp_path: Path,
+                                                       capsys: pytest.CaptureFixture[str]) -> None:
+    left = write(tmp_path / "t.csv", TOWNS)
+    pairs = write(tmp_path / "pairs.csv",
+                  "left_id,right_id\n1,2\n3,3\n2,1\n3,4\n1,2\n4,4\n")
+    path = tmp_path / "p.docket"
+    assert main(["new", str(path), "--left", str(left), "--id", "id", "--pairs",
+                 str(pairs)]) == 0
+    err = capsys.readouterr().err
+    assert "pairs.csv" in err and "2 pair(s) a record with itself, row(s) 3, 7" in err
+    assert "2 pair(s) given before" in err and "row(s) 4, 6" in err
+    with Project.open(path, readonly=True) as project:
+        assert project.connection.execute("SELECT count(*) FROM pairs").fetchone()[0] == 2
+
+
+def test_label_refuses_a_fractional_pair_id(sample_project: Path, tmp_path: Path,
+                                            capsys: pytest.CaptureFixture[str]) -> None:
+    labels = write(tmp_path / "labels.csv", "pair_id,label\n2,match\n1.7,match\n")
+    code, err = run(capsys, "label", str(sample_project), "--reviewer", "maya",
+                    "--from", str(labels))
+    assert_one_line_error(code, err, "labels.csv", "row 3", "'1.7'", "whole number")
+    with sqlite3.connect(sample_project) as conn:
+        assert conn.execute("SELECT count(*) FROM decisions WHERE reviewer = 'maya'"
+                            ).fetchone()[0] == 0
+
+
+OPTION_CASES = {
+    "threshold above 1": (["new", "P", "--left", "L", "--threshold", "1.5"],
+                          ["--threshold", "1.5", "0 to 1"]),
+    "threshold below 0": (["new", "P", "--left", "L", "--threshold", "-0.1"], ["--threshold"]),
+    "threshold not a number": (["new", "P", "--left", "L", "--threshold", "half"],
+                               ["--threshold", "'half' is not a number"]),
+    "audit 0": (["new", "P", "--left", "L", "--audit", "0"], ["--audit", "1 or more"]),
+    "overlap above 1": (["new", "P", "--left", "L", "--overlap", "2"], ["--overlap"]),
+    "test share above 1": (["export", "P", "-o", "x.csv", "--test-share", "1.2"],
+                           ["--test-share"]),
+    "negative count": (["next", "P", "--reviewer", "m", "-n", "-1"], ["-n", "0 or more"]),
+    "target precision": (["evaluate", "P", "--target-precision", "95"], ["--target-precision"]),
+    "misspelled option": (["new", "P", "--left", "L", "--treshold", "0.5"],
+                          ["--treshold", "did you mean --threshold?"]),
+    "misspelled command": (["stauts", "P"], ["'stauts'", "did you mean 'status'?"]),
+    "misspelled choice": (["export", "P", "-o", "x.csv", "--what", "gld"],
+                          ["'gld'", "did you mean 'gold'?"]),
+    "misspelled sub-command option": (["reviewers", "P", "add", "ines", "--roel", "adjudicator"],
+                                      ["did you mean --role?"]),
+}
+
+
+@pytest.mark.parametrize("case", sorted(OPTION_CASES))
+def test_option_mistakes(case: str, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    argv, needles = OPTION_CASES[case]
+    argv = [str(tmp_path / "p.docket") if a == "P" else str(tmp_path / "l.csv") if a == "L"
+            else a for a in argv]
+    with pytest.raises(SystemExit) as done:
+        main(argv)
+    err = capsys.readouterr().err
+    assert_one_line_error(int(done.value.code or 0), err, *needles)
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_a_capped_audit_size_is_said(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    left = write(tmp_path / "t.csv", TOWNS)
+    _, err = _build(capsys, tmp_path, left, "--audit", "999999")
+    assert "--audit 999,999: capped at" in err

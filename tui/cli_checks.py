@@ -1,0 +1,93 @@
+"""What the command line checks before any command runs: value ranges and misspellings.
+
+A mistake here is one line on standard error, exit code 2, naming the option and what to
+give instead; a misspelled command, option or choice gets the nearest correct one suggested.
+"""
+
+from __future__ import annotations
+
+import argparse
+import difflib
+import re
+from collections.abc import Callable, Sequence
+from typing import NoReturn
+
+_CHOICE = re.compile(r"invalid choice: '([^']*)' \(choose from (.*)\)")
+
+
+def share(text: str) -> float:
+    """A number from 0 to 1 (a probability or a share of pairs)."""
+    try:
+        value = float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a number; give one from 0 to 1, "
+                                         "e.g. 0.5") from None
+    if not 0.0 <= value <= 1.0:
+        raise argparse.ArgumentTypeError(f"{text} is outside 0 to 1; give a number from 0 to 1, "
+                                         "e.g. 0.5")
+    return value
+
+
+def at_least(low: int) -> Callable[[str], int]:
+    """A whole number no smaller than ``low``."""
+    def whole(text: str) -> int:
+        try:
+            value = int(text.replace("_", "").replace(",", ""))
+        except ValueError:
+            raise argparse.ArgumentTypeError(f"{text!r} is not a whole number") from None
+        if value < low:
+            raise argparse.ArgumentTypeError(f"{text} is too small; give {low} or more")
+        return value
+    whole.__name__ = f"whole number ≥ {low}"
+    return whole
+
+
+def nearest(word: str, choices: Sequence[str]) -> str | None:
+    found = difflib.get_close_matches(word, list(choices), n=1, cutoff=0.6)
+    return found[0] if found else None
+
+
+def _hint(message: str) -> str:
+    m = _CHOICE.search(message)
+    if m:
+        best = nearest(m[1], re.findall(r"'([^']*)'", m[2]))
+        if best:
+            return f"; did you mean '{best}'?"
+    return ""
+
+
+class Parser(argparse.ArgumentParser):
+    """argparse with one-line errors and suggestions (argparse has its own only from 3.14)."""
+
+    def error(self, message: str) -> NoReturn:
+        self.exit(2, f"{self.prog}: {message}{_hint(message)} (see '{self.prog} --help')\n")
+
+
+def _options(parser: argparse.ArgumentParser) -> list[str]:
+    return [s for a in parser._actions for s in a.option_strings]
+
+
+def chosen_parser(parser: argparse.ArgumentParser, args: argparse.Namespace
+                  ) -> argparse.ArgumentParser:
+    """The (sub-)parser of the command that ``args`` names, e.g. that of ``reviewers add``."""
+    current = parser
+    for dest in ("command", "action"):
+        sub = next((a for a in current._actions if isinstance(a, argparse._SubParsersAction)),
+                   None)
+        name = getattr(args, dest, None)
+        if sub is None or name not in sub.choices:
+            break
+        current = sub.choices[name]
+    return current
+
+
+def parse(parser: argparse.ArgumentParser, argv: list[str] | None) -> argparse.Namespace:
+    """Parse ``argv``; an unknown option is refused with the nearest option of its command."""
+    args, extra = parser.parse_known_args(argv)
+    if extra:
+        command = chosen_parser(parser, args)
+        hints = [f"did you mean {best}?" for word in extra if word.startswith("-")
+                 for best in [nearest(word.split("=")[0], _options(command))] if best]
+        command.error(f"unrecognized arguments: {' '.join(extra)}"
+                      + (f"; {' '.join(hints)}" if hints else ""))
+    return args
