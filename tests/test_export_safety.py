@@ -12,7 +12,7 @@ import pandas as pd
 import pytest
 
 from docket.core import DocketError, Project
-from docket.core.exporting import atomic_write
+from docket.core.exports.exporting import atomic_write
 from docket.tui.cli import main
 
 # Cells a spreadsheet would run (OWASP "CSV Injection": = + - @ tab CR), and values holding a
