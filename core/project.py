@@ -144,7 +144,7 @@ class Project(ProjectFile):
             math.log2(prior / (1.0 - prior)), reason,
             tuple(rows), {k: v for k, v in left.items() if k not in compared_l},
             {k: v for k, v in right.items() if k not in compared_r}, int(counts[0]),
-            int(counts[1]))
+            int(counts[1]), self.link)
 
     def candidates_of(self, side: str, record_id: str) -> list[QueueItem]:
         """Every candidate pair that names this record (the evidence panel's 'others')."""

@@ -46,6 +46,12 @@ class PairCard:
     right_extra: dict[str, str | None] = field(default_factory=dict)
     left_candidates: int = 0  # other candidate pairs that name the left record
     right_candidates: int = 0
+    link: bool = True  # two tables; False: one table deduplicated, no left or right side
+
+    @property
+    def sides(self) -> tuple[str, str]:
+        """What to call the two records: left and right tables, or first and second of one."""
+        return ("left", "right") if self.link else ("first", "second")
 
 
 @dataclass(frozen=True)

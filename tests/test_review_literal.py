@@ -13,12 +13,11 @@ import unicodedata
 from hypothesis import given, settings
 from hypothesis import strategies as st
 from rich.console import Console
-from textual.widgets import Footer
 
 from docket.tui import literal
 from docket.tui.diff import PLAIN, Palette, differing, paired, render
 from docket.tui.masking import MASK_CHAR, Mask, mask_flags, masked, parse_mask
-from docket.tui.widgets import PairCardView, StatusLine
+from docket.tui.widgets import KeyBar, PairCardView, StatusLine
 from tests.fixtures_review import (  # noqa: F401 - fixtures are used by name
     BIG,
     copy_project,
@@ -175,7 +174,7 @@ async def test_hostile_records_render_literally_at_both_sizes(review_hostile_mas
                     assert raw not in svg
                 screen = app.screen
                 assert screen.query_one(StatusLine).region.y == 0
-                assert screen.query_one(Footer).region.y == size[1] - 1
+                assert screen.query_one(KeyBar).region.y == size[1] - 1
                 assert screen.query_one(PairCardView).region.right <= size[0]
                 await pilot.press("x")
                 await pilot.pause()

@@ -10,12 +10,14 @@ from textual.binding import Binding
 
 
 def history(what: str) -> list[Binding]:
-    """[ and ] through the user's own ``what`` (decisions, adjudications)."""
+    """[ and ] through the user's own ``what`` (decisions, adjudications): one key-bar entry."""
+    group = Binding.Group("history")
     return [
         Binding("left_square_bracket", "back", "back", key_display="[", id="history-back",
-                tooltip=f"step back through your {what} (decide again to change one)"),
+                group=group, tooltip=f"step back through your {what} (decide again to change one)"),
         Binding("right_square_bracket", "forward", "fwd", key_display="]",
-                id="history-forward", tooltip="step forward again, back to the queue"),
+                id="history-forward", group=group,
+                tooltip="step forward again, back to the queue"),
     ]
 
 
@@ -23,5 +25,8 @@ HELP = Binding("question_mark", "help", "help", key_display="?", id="help", tool
 QUIT = Binding("q", "quit", "quit", id="quit", tooltip="quit (everything is already saved)")
 EXTRA_COLUMNS = Binding("x", "extra", "columns", id="extra-columns",
                         tooltip="show or hide the columns that are not compared")
+FULL_VALUES = Binding("w", "full_values", "full values", show=False, id="full-values",
+                      tooltip="values shortened with … to fit the screen: show them in full "
+                              "(the card may then scroll), or shorten them again")
 REDRAW = Binding("ctrl+l", "redraw", "redraw", show=False, id="redraw",
                  tooltip="paint the screen again")

@@ -12,9 +12,6 @@ from . import commands
 from .cli_checks import Parser, at_least, parse, share
 from .terminal import safe_streams, shown
 
-EPILOG_CAUTION = ("Records are often personal data: keep project files private and let people "
-                  "review before any merge.")
-
 
 class _Formatter(argparse.RawDescriptionHelpFormatter):
     def __init__(self, prog: str) -> None:
@@ -33,7 +30,7 @@ def build_parser() -> argparse.ArgumentParser:
     parser = Parser(
         prog="docket", formatter_class=_Formatter,
         description="Review candidate record pairs, measure agreement and export gold labels.",
-        epilog=f"Start with:  docket demo\n{EPILOG_CAUTION}")
+        epilog="Start with:  docket demo")
     parser.add_argument("--version", action="version", version=f"docket {commands.version()}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
 

@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 import getpass
 import os
+import shlex
 import sys
 from importlib import resources
 from pathlib import Path
@@ -51,6 +52,7 @@ def _print_built(built: Any) -> None:
     print(f"created {built.path} ({built.mode} mode): {built.n_left:,} left and "
           f"{built.n_right:,} right records" if built.mode == "link" else
           f"created {built.path} (dedupe mode): {built.n_left:,} records")
+    print(_ids_line(built))
     print("fields compared: " + ", ".join(f"{f.name} ({f.kind})" for f in built.fields))
     print(f"blocking rules ({how}):")
     for rule, n in r.per_rule.items():
@@ -60,6 +62,22 @@ def _print_built(built: Any) -> None:
           f"{100 * r.pairs / max(1, r.possible):.3g} % of all pairs)")
     print(f"model: prior {built.model.prior:.4g} after {built.model.iterations} EM iterations; "
           f"audit slice {built.audit_size:,} pairs; overlap {built.overlap_pairs:,} pairs")
+    from docket.core.report import CAUTION
+    print(f"note: {CAUTION}")
+
+
+def _ids_line(built: Any) -> str:
+    left, right = built.id_columns
+    how = ["chosen by docket" if g else "given" for g in built.ids_guessed]
+    if right is None:
+        line = f"id column: {left} ({how[0]})"
+    elif left == right and how[0] == how[1]:
+        line = f"id column: {left} in both tables ({how[0]})"
+    else:
+        line = f"id columns: {left} on the left ({how[0]}), {right} on the right ({how[1]})"
+    if any(built.ids_guessed):
+        line += "; pass --id (or --left-id / --right-id) to use another"
+    return line
 
 
 def new(args: argparse.Namespace) -> int:
@@ -82,6 +100,9 @@ def new(args: argparse.Namespace) -> int:
     with progress_bar() as update:
         built = Project.create(spec, progress=update)
     _print_built(built)
+    where = shlex.quote(str(built.path))
+    print(f"next: docket review {where}   (or: docket next {where} --reviewer NAME; "
+          f"docket status {where})")
     return 0
 
 
@@ -115,7 +136,6 @@ def status(args: argparse.Namespace) -> int:
     pol = info["gold_policy"]
     print(f"gold labels  {info['gold_labels']:,} (policy: at least {pol['min_reviews']} "
           f"review(s); {pol['rules']})")
-    print(f"note: {info['caution']}")
     return 0
 
 

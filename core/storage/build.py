@@ -73,6 +73,8 @@ class Built:
     model: FSModel
     audit_size: int
     overlap_pairs: int
+    id_columns: tuple[str, str | None] = ("", None)  # (left, right); right None in dedupe mode
+    ids_guessed: tuple[bool, bool] = (False, False)  # chosen by docket, not given by the user
 
 
 def _check(spec: NewProject) -> None:
@@ -251,7 +253,10 @@ def build(spec: NewProject, progress: Progress | None = None,
             Path(f"{tmp}{extra}").unlink(missing_ok=True)
     return Built(spec.path, "dedupe" if right is None else "link", len(left),
                  len(left) if right is None else len(right), fields, report, model,
-                 int(audit.selected.sum()), int(overlap.sum()))
+                 int(audit.selected.sum()), int(overlap.sum()),
+                 (left.id_column, None if right is None else right.id_column),
+                 (not (spec.left_id or spec.id_column),
+                  right is not None and not (spec.right_id or spec.id_column)))
 
 
 def replace_project_file(new: Path, target: Path) -> None:

@@ -19,7 +19,6 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Footer
 from textual.worker import Worker, WorkerState
 
 from docket.core.errors import DocketError
@@ -32,6 +31,7 @@ from docket.core.types import PairCard
 from .. import bindings as shared
 from ..diff import PLAIN, Palette
 from ..widgets import CardOptions, Pace, PairCardView, StatusLine
+from ..widgets.key_bar import KeyBar
 from ..widgets.pair_card import card_title
 from ..widgets.reviews import ConflictInfo, PairStanding, ReviewsPanel
 from .help import key_rows
@@ -80,16 +80,18 @@ class AdjudicateScreen(Screen[None]):
         Binding("h", "decide('hold')", "hold", id="hold",
                 tooltip="cannot settle it yet: hold it (it stays in the queue)"),
         Binding("z", "undo", "undo", id="undo", tooltip="take back your latest adjudication"),
-        *shared.history("adjudications"),
-        shared.HELP,
-        shared.QUIT,
+        # The key bar keeps this order and leaves out what does not fit (help lists it all).
+        Binding("escape", "to_queue", "queue", id="to-queue",
+                tooltip="leave your history or an undone pair, back to the queue"),
+        shared.EXTRA_COLUMNS,
+        shared.FULL_VALUES,
         Binding("a", "agreement", "agreement", id="agreement",
                 tooltip="how far the reviewers agree, and their disagreements"),
         Binding("g", "quality", "quality", id="quality",
                 tooltip="precision and recall from the audit slice; clusters and conflicts"),
-        Binding("escape", "to_queue", "queue", id="to-queue",
-                tooltip="leave your history or an undone pair, back to the queue"),
-        shared.EXTRA_COLUMNS,
+        *shared.history("adjudications"),
+        shared.HELP,
+        shared.QUIT,
         shared.REDRAW,
     ]
 
@@ -125,7 +127,7 @@ class AdjudicateScreen(Screen[None]):
             with VerticalScroll(id="card-box"):
                 yield PairCardView(id="card")
             yield ReviewsPanel(id="reviews")
-        yield Footer(compact=True)
+        yield KeyBar()
 
     def on_mount(self) -> None:
         app = self.team_app
@@ -344,6 +346,13 @@ class AdjudicateScreen(Screen[None]):
     def action_to_queue(self) -> None:
         if self.mode != "queue":
             self._show_queue()
+
+    def action_full_values(self) -> None:
+        self.query_one(PairCardView).toggle_full_values()
+
+    def on_resize(self) -> None:
+        # A taller or shorter terminal changes the room for the card, not its width.
+        self.call_after_refresh(self.query_one(PairCardView).refit)
 
     def action_extra(self) -> None:
         self.show_extra = not self.show_extra

@@ -15,13 +15,14 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import VerticalScroll
 from textual.coordinate import Coordinate
-from textual.widgets import DataTable, Footer, Static
+from textual.widgets import DataTable, Static
 from textual.worker import Worker, WorkerState
 
 from docket.core.reviewing.team import agreement_report, disagreements
 
 from .. import literal
 from ..diff import PLAIN, Palette
+from ..widgets.key_bar import KeyBar
 from ..widgets.reviews import blind_aliases, label_style
 from .pair_detail import PairDetailScreen
 from .team_base import TeamScreen
@@ -140,7 +141,7 @@ class AgreementScreen(TeamScreen):
             yield DataTable(id="agree-matrix", cursor_type="cell", zebra_stripes=True)
             yield Static(id="agree-detail")
             yield Static(id="agree-overall")
-        yield Footer(compact=True)
+        yield KeyBar()
 
     def on_mount(self) -> None:
         self.palette = Palette.from_variables(self.app.get_css_variables(), self.app.no_color)
@@ -284,7 +285,7 @@ class DisagreementsScreen(TeamScreen):
     def compose(self) -> ComposeResult:
         yield Static(id="disagree-head")
         yield DataTable(id="disagree-table", cursor_type="row", zebra_stripes=True)
-        yield Footer(compact=True)
+        yield KeyBar()
 
     def on_mount(self) -> None:
         app = self.team_app

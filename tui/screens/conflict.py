@@ -15,13 +15,14 @@ from textual.binding import Binding, BindingType
 from textual.containers import VerticalScroll
 from textual.coordinate import Coordinate
 from textual.screen import Screen
-from textual.widgets import DataTable, Footer, Static
+from textual.widgets import DataTable, Static
 
 from docket.core.exports.gold_export import ClusterConflict
 
 from .. import literal
 from ..diff import Palette
 from ..masking import masked
+from ..widgets.key_bar import KeyBar
 from ..widgets.reviews import label_style
 from .pair_detail import PairDetailScreen
 
@@ -54,7 +55,7 @@ class ConflictScreen(Screen[None]):
             yield DataTable(id="conflict-members", cursor_type="row", zebra_stripes=True)
             yield Static(id="conflict-pairs-head")
             yield DataTable(id="conflict-pairs", cursor_type="row", zebra_stripes=True)
-        yield Footer(compact=True)
+        yield KeyBar()
 
     def on_mount(self) -> None:
         app, c = self.team_app, self.conflict

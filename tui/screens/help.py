@@ -25,7 +25,9 @@ HOW = (
     "resumes your queue. Review is blind: other reviewers' labels are never shown. A note is "
     "saved with your decision on the pair (on a pair you have decided, at once). Changing a "
     "past decision, or undoing one, adds to the log; nothing is deleted. When the pair card is "
-    "taller than the screen, the arrow keys and Page Up / Page Down scroll it."
+    "taller than the screen, the arrow keys and Page Up / Page Down scroll it; a value shortened "
+    "with … to fit comes back in full with w. While the model is refit in the background, the "
+    "status line says so (\"refitting\"); you can go on deciding. Esc, ? or q closes this help."
 )
 
 
@@ -86,6 +88,7 @@ class HelpScreen(ModalScreen[None]):
     def compose(self) -> ComposeResult:
         with VerticalScroll(id="help-box") as box:
             box.border_title = "help"
+            box.border_subtitle = "esc closes"
             yield Static(Text(CAUTION, style="bold"), id="help-caution")
             yield Static(self._keys(), id="help-keys")
             yield Static(Text(HOW), id="help-how")

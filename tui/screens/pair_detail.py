@@ -13,13 +13,14 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Footer, Static
+from textual.widgets import Static
 
 from docket.core.reviewing import adjudication
 from docket.core.reviewing.gold import gold_labels
 
 from ..diff import Palette
 from ..widgets import CardOptions, PairCardView
+from ..widgets.key_bar import KeyBar
 from ..widgets.pair_card import card_title
 from ..widgets.reviews import PairStanding, ReviewsPanel
 
@@ -34,6 +35,8 @@ class PairDetailScreen(Screen[None]):
         Binding("escape", "back", "back", id="detail-back", tooltip="back to the list"),
         Binding("x", "extra", "columns", id="detail-extra-columns",
                 tooltip="show or hide the columns that are not compared"),
+        Binding("w", "full_values", "full values", show=False, id="detail-full-values",
+                tooltip="values shortened with … to fit: show them in full, or shorten again"),
         Binding("q", "quit", "quit", id="detail-quit", tooltip="quit docket"),
     ]
 
@@ -55,7 +58,7 @@ class PairDetailScreen(Screen[None]):
             with VerticalScroll(id="card-box"):
                 yield PairCardView(id="card")
             yield ReviewsPanel(id="reviews")
-        yield Footer(compact=True)
+        yield KeyBar()
 
     def on_mount(self) -> None:
         self._paint()
@@ -77,6 +80,13 @@ class PairDetailScreen(Screen[None]):
         panel.show(card, PairStanding(None, tuple(reviews), gold), app.adjudicator, app.blind,
                    palette, self.aliases)
         panel.border_title = "reviews · names hidden" if app.blind else "reviews"
+
+    def action_full_values(self) -> None:
+        self.query_one(PairCardView).toggle_full_values()
+
+    def on_resize(self) -> None:
+        # A taller or shorter terminal changes the room for the card, not its width.
+        self.call_after_refresh(self.query_one(PairCardView).refit)
 
     def action_extra(self) -> None:
         self.show_extra = not self.show_extra

@@ -17,19 +17,21 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, VerticalScroll
 from textual.coordinate import Coordinate
-from textual.widgets import DataTable, Footer, Static, TabbedContent, TabPane
+from textual.widgets import DataTable, Static, TabbedContent, TabPane
 from textual.worker import Worker, WorkerState
 from textual_plotext import PlotextPlot
 
 from docket.core.errors import DocketError
 from docket.core.exports.gold_export import ClusterConflict, clusters_frame, conflicts
 from docket.core.project import Project
-from docket.core.quality.evaluate import DEFAULT_THRESHOLDS, evaluate, model_scores
+from docket.core.quality.evaluate import evaluate, model_scores
 from docket.core.reviewing.gold import gold_labels
 
 from .. import literal
 from ..diff import PLAIN, Palette
+from ..widgets.key_bar import KeyBar
 from .conflict import ConflictScreen
+from .quality_table import NARROW_BELOW, fill_threshold_table, notes_text
 from .team_base import TeamScreen
 from .team_help import QUALITY
 
@@ -85,48 +87,6 @@ def load_quality(project: Project) -> QualityData:
                        cluster_problem)
 
 
-def interval(d: dict[str, Any]) -> Text:
-    if d.get("value") is None:
-        return Text("—")
-    if d.get("low") is None:
-        return Text(f"{d['value']:.3f}")
-    return Text(f"{d['value']:.3f} [{d['low']:.3f}, {d['high']:.3f}]")
-
-
-def _point(d: dict[str, Any]) -> str:
-    return "—" if d.get("value") is None else f"{d['value']:.3f}"
-
-
-def notes_text(report: dict[str, Any], palette: Palette = PLAIN) -> Text:
-    p = palette
-    at, naive = report["at_threshold"], report["naive_at_threshold"]
-    text = Text(f"* the project's decision threshold, {report['threshold']:g}. Intervals: "
-                f"precision and recall {at['precision']['method']}; F1 {at['f1']['method']}. "
-                f"Predicted: estimated matches among {at['n_pairs']:,} candidate pairs.\n",
-                p.muted)
-    s, best = report["suggested"], report["best_f1"]
-    if s is not None and s["threshold"] is not None:
-        text.append(f"suggested threshold {s['threshold']:.4g} for {s['target']} ≥ "
-                    f"{s['goal']:g} ({s['note']})\n")
-    elif best is not None:
-        text.append(f"highest estimated F1 in the table: {best['f1']:.3f} at threshold "
-                    f"{best['threshold']:g} (docket evaluate --target-precision P or "
-                    "--target-recall R suggests one for a goal)\n")
-    text.append("naive column: ", p.heading)
-    text.append(f"precision / recall {naive['note']}; their Wilson intervals are in "
-                "docket evaluate --json.\n", p.muted)
-    scope = report["scope"]
-    text.append(scope["note"].capitalize() + ".", p.heading)
-    b = scope["blocking"]
-    if b.get("candidate_pairs") is not None:
-        text.append(f" Blocking reach: {b['candidate_pairs']:,} candidate pairs of "
-                    f"{b['possible_pairs']:,} possible (reduction ratio "
-                    f"{b['reduction_ratio']:.4f}).", p.muted)
-    for note in (n for n in at["note"].split("; ") if n):
-        text.append(f"\nat {at['threshold']:g}: {note}", p.muted)
-    return text
-
-
 class QualityScreen(TeamScreen):
     HELP = QUALITY
     BINDINGS: ClassVar[list[BindingType]] = [
@@ -153,6 +113,7 @@ class QualityScreen(TeamScreen):
         self.standalone = standalone
         self.data: QualityData | None = None
         self.palette: Palette = PLAIN
+        self._narrow: bool | None = None
 
     def compose(self) -> ComposeResult:
         yield Static(id="quality-head")
@@ -166,7 +127,7 @@ class QualityScreen(TeamScreen):
             with TabPane("clusters", id="tab-clusters"), VerticalScroll():
                 yield Static(id="cluster-summary")
                 yield DataTable(id="conflict-table", cursor_type="row", zebra_stripes=True)
-        yield Footer(compact=True)
+        yield KeyBar()
 
     def on_mount(self) -> None:
         self.palette = Palette.from_variables(self.app.get_css_variables(), self.app.no_color)
@@ -192,6 +153,11 @@ class QualityScreen(TeamScreen):
         elif event.state == WorkerState.SUCCESS:
             self.data = event.worker.result
             self._paint()
+
+    def on_resize(self) -> None:
+        narrow = (self.size.width or self.app.size.width) < NARROW_BELOW
+        if self.data is not None and narrow != self._narrow:
+            self._table(self.data)
 
     # -- painting ----------------------------------------------------------------------------
     def _paint(self) -> None:
@@ -219,20 +185,10 @@ class QualityScreen(TeamScreen):
         if data.report is None:
             notes.update(Text(f"No threshold table yet: {data.problem}", p.heading))
             return
-        for label in ("", "threshold", "precision [95 % CI]", "recall [95 % CI]",
-                      "F1 [95 % CI]", "predicted", "naive P / R (biased)"):
-            table.add_column(Text(label, p.negative if label.startswith("naive") else p.muted))
+        narrow = (self.size.width or self.app.size.width) < NARROW_BELOW
+        self._narrow = narrow
+        fill_threshold_table(table, data.report, p, narrow)
         report = data.report
-        shown = set(DEFAULT_THRESHOLDS) | {report["threshold"]}
-        for e, n in zip(report["estimates"], report["naive"], strict=True):
-            if e["threshold"] not in shown:
-                continue
-            mark = "*" if e["threshold"] == report["threshold"] else ""
-            table.add_row(Text(mark, p.heading), Text(f"{e['threshold']:g}"),
-                          interval(e["precision"]), interval(e["recall"]), interval(e["f1"]),
-                          Text(f"{e['predicted_positives']:,.0f}"),
-                          Text(f"{_point(n['precision'])} / {_point(n['recall'])}", p.muted),
-                          key=str(e["threshold"]))
         notes.update(notes_text(report, p))
 
     def _plots(self, data: QualityData) -> None:

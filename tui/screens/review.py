@@ -18,7 +18,6 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Footer
 from textual.worker import Worker, WorkerState
 
 from docket.core.errors import DocketError
@@ -26,7 +25,7 @@ from docket.core.types import Decision, PairCard, QueueItem
 
 from .. import bindings as shared
 from ..diff import PLAIN, Palette
-from ..widgets import CardOptions, EvidencePanel, Pace, PairCardView, StatusLine, YourSide
+from ..widgets import CardOptions, EvidencePanel, KeyBar, Pace, PairCardView, StatusLine, YourSide
 from ..widgets.pair_card import card_title
 from .find import Group, PairPicker
 from .help import HelpScreen, key_rows
@@ -50,16 +49,19 @@ class ReviewScreen(Screen[None]):
                 tooltip="cannot tell: hold it for adjudication"),
         Binding("z", "undo", "undo", id="undo", tooltip="take back your latest decision"),
         Binding("e", "note", "note", id="note", tooltip="write a note on this pair"),
-        *shared.history("decisions"),
-        Binding("slash", "find", "find", key_display="/", id="find",
-                tooltip="find a pair by pair id, record id or text"),
-        shared.HELP,
-        shared.QUIT,
+        # The key bar shows bindings in this order and leaves out what does not fit (help
+        # lists it): the ones a newcomer cannot guess come before those they can.
         Binding("escape", "to_queue", "queue", id="to-queue",
                 tooltip="leave history or a found pair, back to the queue"),
         Binding("c", "candidates", "others", id="candidates",
                 tooltip="the other candidate pairs of these two records"),
         shared.EXTRA_COLUMNS,
+        shared.FULL_VALUES,
+        *shared.history("decisions"),
+        Binding("slash", "find", "find", key_display="/", id="find",
+                tooltip="find a pair by pair id, record id or text"),
+        shared.HELP,
+        shared.QUIT,
         shared.REDRAW,
     ]
 
@@ -98,7 +100,7 @@ class ReviewScreen(Screen[None]):
             with VerticalScroll(id="card-box"):
                 yield PairCardView(id="card")
             yield EvidencePanel(id="evidence")
-        yield Footer(compact=True)
+        yield KeyBar()
 
     def on_mount(self) -> None:
         app = self.review_app
@@ -323,14 +325,22 @@ class ReviewScreen(Screen[None]):
         if self.card is None:
             return
         groups = []
-        for side, rid in (("left", self.card.left_id), ("right", self.card.right_id)):
+        for side, rid, name in (("left", self.card.left_id, self.card.sides[0]),
+                                ("right", self.card.right_id, self.card.sides[1])):
             others = tuple(q.pair_id for q in app.project.candidates_of(side, rid)
                            if q.pair_id != self.card.pair_id)
-            groups.append(Group(f"{side} record: {len(others)} other candidate"
+            groups.append(Group(f"{name} record: {len(others)} other candidate"
                                 f"{'s' if len(others) != 1 else ''}", others))
         self.app.push_screen(PairPicker(app.project, app.reviewer, app.mask,
                                         title="other candidates", search=False,
                                         groups=tuple(groups)), self._open_aside)
+
+    def action_full_values(self) -> None:
+        self.query_one(PairCardView).toggle_full_values()
+
+    def on_resize(self) -> None:
+        # A taller or shorter terminal changes the room for the card, not its width.
+        self.call_after_refresh(self.query_one(PairCardView).refit)
 
     def action_extra(self) -> None:
         self.show_extra = not self.show_extra

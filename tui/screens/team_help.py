@@ -49,6 +49,7 @@ class TeamHelp(HelpScreen):
     def compose(self) -> ComposeResult:
         with VerticalScroll(id="help-box") as box:
             box.border_title = "help"
+            box.border_subtitle = "esc closes"
             yield Static(Text(CAUTION, style="bold"), id="help-caution")
             yield Static(self._keys(), id="help-keys")
             yield Static(Text(self.how), id="help-how")

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 from rich.text import Text
@@ -31,12 +32,20 @@ class YourSide:
 
 
 def probability_text(prob: float) -> str:
-    """Three decimals, and the tails (where three decimals would read 0 or 1) as powers."""
+    """Three decimals; towards 0 or 1, the digits it takes to show the distance to the end.
+
+    0.9994, not "1 - 6e-04": read left to right like any other probability, at most ten
+    characters wide, and never a bare 1 or 0 the model did not give.
+    """
     if 0.001 <= prob <= 0.999:
         return f"{prob:.3f}"
-    if prob < 0.001:
-        return f"{prob:.0e}" if prob > 0 else "0"
-    return f"1 - {1 - prob:.0e}" if prob < 1 else "1"
+    if prob <= 0.0 or prob >= 1.0:
+        return "0" if prob <= 0.0 else "1"
+    gap = min(prob, 1.0 - prob)
+    if gap < 1e-6:
+        return "< 0.000001" if prob < 0.5 else "> 0.999999"
+    digits = max(4, -math.floor(math.log10(gap)))
+    return f"{prob:.{digits}f}"
 
 
 def _row(text: Text, name: str, value: Text, width: int = 13) -> None:
@@ -76,7 +85,8 @@ def evidence_text(card: PairCard, palette: Palette, you: YourSide = YourSide(),
     text.append("queued  ", p.muted)
     text.append(REASONS.get(card.reason, card.reason) + "\n")
     text.append("other candidates\n", p.muted)
-    text.append(f"  left {card.left_candidates:,} · right {card.right_candidates:,}\n")
+    first, second = card.sides
+    text.append(f"  {first} {card.left_candidates:,} · {second} {card.right_candidates:,}\n")
     if card.left_candidates or card.right_candidates:
         text.append("  c: look at them\n", p.muted)
     if you.label is not None:

@@ -2,11 +2,10 @@
 
 from __future__ import annotations
 
-import io
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
-from rich.console import Console
 from rich.text import Text
+from textual.widget import Widget
 from textual.widgets import Static
 
 from docket.core.types import FieldComparison, PairCard
@@ -14,9 +13,9 @@ from docket.core.types import FieldComparison, PairCard
 from .. import literal
 from ..diff import PLAIN, Palette, paired
 from ..masking import Mask
+from .card_lines import BAR_CELLS, SHORTENED, Columns, Lines
 
 STACK_BELOW = 84  # card widths below this put the right value under the left one
-BAR_CELLS = 5
 EIGHTHS = " ▏▎▍▌▋▊▉"
 SHORT_LEVELS = {"day/month swapped": "d/m swap", "within a month": "≤ month"}
 
@@ -29,6 +28,7 @@ class CardOptions:
     mask: Mask = field(default_factory=Mask)
     show_extra: bool = False
     stacked: bool = False
+    full_values: bool = False  # wrap every long value, even when the card must then scroll
 
 
 def similarity_bar(sim: float | None, cells: int = BAR_CELLS) -> str:
@@ -62,91 +62,22 @@ def _name(name: str, quiet: bool, palette: Palette, width: int = 14) -> Text:
     return text
 
 
-@dataclass(frozen=True)
-class Columns:
-    """Cell widths of the card's columns for one content width."""
-
-    name: int  # the field-name column
-    value: int  # each of left and right (side by side), or the one value column (stacked)
-    sim: int
-    weight: int = 5
-    stacked: bool = False
-
-    @classmethod
-    def fit(cls, width: int, names: list[str], stacked: bool) -> Columns:
-        name = max(5, min(14, max((len(n) for n in names), default=5)))
-        cells = 3 if stacked else BAR_CELLS
-        sim = 6 + cells
-        fixed = name + sim + 5 + 4 + (1 if stacked else 0)  # four gaps; stacked: L/R marker
-        value = max(8, width - fixed) if stacked else max(8, (width - fixed) // 2)
-        return cls(name, value, sim, 5, stacked)
-
-
-_WRAP_CONSOLE = Console(file=io.StringIO(), width=400, color_system=None, legacy_windows=False)
-
-
-def _wrap(text: Text, width: int) -> list[Text]:
-    if text.cell_len <= width and "\n" not in text.plain:
-        return [text]
-    return list(text.wrap(_WRAP_CONSOLE, width, overflow="fold"))
-
-
-def _cell(text: Text | None, width: int, right: bool = False) -> Text:
-    if text is None or not text.plain:
-        return Text(" " * width)
-    out = text.copy()
-    out.truncate(width, overflow="ellipsis")
-    pad = " " * max(0, width - out.cell_len)
-    return Text(pad).append_text(out) if right else out.append(pad)
-
-
-class _Lines:
-    """The card's text, one fixed-width line at a time (wrapped here, not by the widget)."""
-
-    def __init__(self, cols: Columns) -> None:
-        self.cols = cols
-        self.text = Text(no_wrap=True, overflow="crop", end="")
-        self.count = 0
-
-    def line(self, text: Text, width: int) -> None:
-        """One line across the whole card (a section heading)."""
-        if self.count:
-            self.text.append("\n")
-        self.count += 1
-        self.text.append_text(_cell(text, width))
-
-    def add(self, name: Text | None, marker: Text | None, cells: list[Text | None],
-            sim: list[Text], weight: Text | None) -> None:
-        c = self.cols
-        wrapped = [_wrap(cell, c.value) if cell is not None else [] for cell in cells]
-        height = max([1, len(sim), *(len(w) for w in wrapped)])
-        for i in range(height):
-            if self.count:
-                self.text.append("\n")
-            self.count += 1
-            self.text.append_text(_cell(name if i == 0 else None, c.name))
-            self.text.append(" ")
-            if c.stacked:
-                self.text.append_text(_cell(marker if i == 0 else None, 1))
-                self.text.append(" ")
-            for lines in wrapped:
-                self.text.append_text(_cell(lines[i] if i < len(lines) else None, c.value))
-                self.text.append(" ")
-            self.text.append_text(_cell(sim[i] if i < len(sim) else None, c.sim))
-            self.text.append(" ")
-            self.text.append_text(_cell(weight if i == 0 else None, c.weight, right=True))
-
-
-def card_text(card: PairCard, opts: CardOptions, width: int) -> tuple[Text, int]:
+def card_text(card: PairCard, opts: CardOptions, width: int,
+              max_lines: int | None = None) -> tuple[Text, int]:
     """The card as one ``Text`` of fixed-width lines, and its number of lines.
 
-    Values are built literally (see :mod:`docket.tui.diff`); nothing here parses markup.
+    With ``max_lines`` (the room on screen), long values wrap only while the card still fits;
+    past that the tallest rows are shortened to one line with '…' and a last line says so,
+    unless ``opts.full_values`` asks for every value in full. Values are built literally (see
+    :mod:`docket.tui.diff`); nothing here parses markup.
     """
     p = opts.palette
     cols = Columns.fit(width, [f.field for f in card.fields], opts.stacked)
-    out = _Lines(cols)
-    head = [Text("left / right", p.muted)] if cols.stacked else [Text("left", p.muted),
-                                                                   Text("right", p.muted)]
+    out = Lines(cols, p.muted)
+    first, second = card.sides
+    marks = (first[0].upper(), second[0].upper())  # L and R, or F and S
+    head = [Text(f"{first} / {second}", p.muted)] if cols.stacked else [
+        Text(first, p.muted), Text(second, p.muted)]
     out.add(Text("field", p.muted), Text(" "), head, [Text("sim", p.muted)],
             Text("wt", p.muted))
     cells = 3 if cols.stacked else BAR_CELLS
@@ -161,19 +92,24 @@ def card_text(card: PairCard, opts: CardOptions, width: int) -> tuple[Text, int]
         level_name = "" if quiet else SHORT_LEVELS.get(row.level_name, row.level_name)
         level = Text(level_name, p.muted)
         if cols.stacked:
-            out.add(name, Text("L", p.muted), [left], [sim], weight)
-            out.add(None, Text("R", p.muted), [right], [level] if level_name else [], None)
+            out.add(name, Text(marks[0], p.muted), [left], [sim], weight)
+            out.add(None, Text(marks[1], p.muted), [right], [level] if level_name else [], None)
         else:
             shown = [sim, level] if row.level_name not in ("different", "missing") and \
                 level_name else [sim]
             out.add(name, None, [left, right], shown, weight)
     if opts.show_extra:
         _extra_rows(out, card, opts, width)
-    return out.text, out.count
+    too_tall = max_lines is not None and out.height() > max_lines
+    if too_tall and not opts.full_values and out.fit(max_lines - 1):  # type: ignore[operator]
+        out.line(Text(SHORTENED, p.muted), width)
+    text = out.render()
+    return text, out.count
 
 
-def _extra_rows(out: _Lines, card: PairCard, opts: CardOptions, width: int) -> None:
+def _extra_rows(out: Lines, card: PairCard, opts: CardOptions, width: int) -> None:
     p = opts.palette
+    marks = tuple(side[0].upper() for side in card.sides)
     keys = list(dict.fromkeys([*card.left_extra, *card.right_extra]))
     heading = "not compared" if keys else "not compared: no other columns"
     out.line(Text(heading, p.muted), width)
@@ -189,8 +125,8 @@ def _extra_rows(out: _Lines, card: PairCard, opts: CardOptions, width: int) -> N
             right = absent
         name = _name(key, False, p)
         if out.cols.stacked:
-            out.add(name, Text("L", p.muted), [left], [], None)
-            out.add(None, Text("R", p.muted), [right], [], None)
+            out.add(name, Text(marks[0], p.muted), [left], [], None)
+            out.add(None, Text(marks[1], p.muted), [right], [], None)
         else:
             out.add(name, None, [left, right], [], None)
 
@@ -214,17 +150,34 @@ class PairCardView(Static):
         self._opts = CardOptions()
         self._message: Text | None = None
         self._laid_out: tuple[int, int] = (0, 0)  # (width, lines) of the text last shown
+        self._room = 0
+        self._full = False  # kept from pair to pair, like the reviewer's other view choices
 
     @property
     def content_width(self) -> int:
         return self.size.width or max(20, self.app.size.width - 34)
 
     @property
+    def room(self) -> int:
+        """Lines the card can show without scrolling: its box's height, or a guess before
+        the first layout (the screen less the status line, key bar and borders)."""
+        box = self.parent
+        height = box.scrollable_content_region.height if isinstance(box, Widget) else 0
+        return height if height > 0 else max(5, self.app.size.height - 4)
+
+    @property
     def stacked(self) -> bool:
         return self.content_width < STACK_BELOW
 
     def show(self, card: PairCard, opts: CardOptions) -> None:
-        self._card, self._opts, self._message = card, opts, None
+        self._card, self._message = card, None
+        self._opts = replace(opts, full_values=self._full)
+        self._paint()
+
+    def toggle_full_values(self) -> None:
+        """Every long value in full (the card may scroll), or shortened to fit (the default)."""
+        self._full = not self._full
+        self._opts = replace(self._opts, full_values=self._full)
         self._paint()
 
     def show_message(self, message: Text) -> None:
@@ -241,15 +194,20 @@ class PairCardView(Static):
                 self.update(self._message)
             return
         width = self.content_width
-        opts = CardOptions(self._opts.palette, self._opts.mask, self._opts.show_extra,
-                           width < STACK_BELOW)
+        opts = replace(self._opts, stacked=width < STACK_BELOW)
         self._opts = opts
-        text, lines = card_text(self._card, opts, width)
+        self._room = self.room
+        text, lines = card_text(self._card, opts, width, self._room)
         # Same width and number of lines: the widget's size cannot change, skip the layout.
         layout = (width, lines) != self._laid_out
         self._laid_out = (width, lines)
         self.update(text, layout=layout)
 
     def on_resize(self) -> None:
-        if self._card is not None and self._laid_out[0] != self.content_width:
+        self.refit()
+
+    def refit(self) -> None:
+        """Lay the card out again if its width or the room for it has changed (resizes)."""
+        if self._card is not None and (self._laid_out[0], self._room) != (self.content_width,
+                                                                          self.room):
             self._paint()

@@ -87,7 +87,7 @@ class StatusLine(Horizontal):
         text.append(" · ")
         text.append_text(literal.one_line(reviewer, 12 if self.compact else 16))
         if busy:
-            text.append(" ↻" if self.compact else f" · {busy}", "italic")
+            text.append(f" · {busy}", "italic")  # a word: a symbol would need explaining
         self._put("who", text, sized=True)
 
     def set_counts(self, decided: int, remaining: int | None) -> None:

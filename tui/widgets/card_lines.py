@@ -1,0 +1,167 @@
+"""The pair card's lines: column widths, wrapping, shortening with '…', and fitting the room.
+
+Every line is built here at a fixed width, so the widget never wraps anything itself and a
+value's highlights (see :mod:`docket.tui.diff`) survive wrapping and shortening alike.
+"""
+
+from __future__ import annotations
+
+import io
+from dataclasses import dataclass
+
+from rich.cells import cell_len
+from rich.console import Console
+from rich.style import Style
+from rich.text import Text
+
+BAR_CELLS = 5
+
+
+@dataclass(frozen=True)
+class Columns:
+    """Cell widths of the card's columns for one content width."""
+
+    name: int  # the field-name column
+    value: int  # each of left and right (side by side), or the one value column (stacked)
+    sim: int
+    weight: int = 5
+    stacked: bool = False
+
+    @classmethod
+    def fit(cls, width: int, names: list[str], stacked: bool) -> Columns:
+        name = max(5, min(14, max((len(n) for n in names), default=5)))
+        cells = 3 if stacked else BAR_CELLS
+        sim = 6 + cells
+        fixed = name + sim + 5 + 4 + (1 if stacked else 0)  # four gaps; stacked: L/R marker
+        value = max(8, width - fixed) if stacked else max(8, (width - fixed) // 2)
+        return cls(name, value, sim, 5, stacked)
+
+
+_WRAP_CONSOLE = Console(file=io.StringIO(), width=400, color_system=None, legacy_windows=False)
+
+
+def _wrap(text: Text, width: int) -> list[Text]:
+    if text.cell_len <= width and "\n" not in text.plain:
+        return [text]
+    return list(text.wrap(_WRAP_CONSOLE, width, overflow="fold"))
+
+
+def shorten(text: Text, width: int, mark_style: str | Style = "") -> Text:
+    """``text`` in at most ``width`` cells, its middle replaced by '…' when it is longer.
+
+    The middle goes, not the end: where two values differ is as often at the end (an e-mail's
+    domain, a house number) as at the start.
+    """
+    text = Text(text.plain.replace("\n", " "), spans=text.spans)  # one line, same highlights
+    if text.cell_len <= width:
+        return text
+    keep = max(1, width - 1)
+    head_cells, tail_cells = (keep + 1) // 2, keep // 2
+    head = _cut(text, head_cells, from_end=False)
+    tail = _cut(text, tail_cells, from_end=True)
+    return Text.assemble(text[:head], ("…", mark_style), text[len(text.plain) - tail:])
+
+
+def _cut(text: Text, cells: int, from_end: bool) -> int:
+    """How many characters, from the start (or end), fill at most ``cells`` cells."""
+    chars = reversed(text.plain) if from_end else iter(text.plain)
+    used = n = 0
+    for ch in chars:
+        used += cell_len(ch)
+        if used > cells:
+            break
+        n += 1
+    return n
+
+
+def cell(text: Text | None, width: int, right: bool = False) -> Text:
+    if text is None or not text.plain:
+        return Text(" " * width)
+    out = text.copy()
+    out.truncate(width, overflow="ellipsis")
+    pad = " " * max(0, width - out.cell_len)
+    return Text(pad).append_text(out) if right else out.append(pad)
+
+
+@dataclass
+class _Row:
+    name: Text | None
+    marker: Text | None
+    cells: list[Text | None]
+    sim: list[Text]
+    weight: Text | None
+    one_line: bool = False  # shortened with '…' instead of wrapped
+
+    def height(self, value_width: int) -> int:
+        wrapped = [] if self.one_line else [len(_wrap(c, value_width)) for c in self.cells
+                                            if c is not None]
+        return max([1, len(self.sim), *wrapped])
+
+
+class Lines:
+    """The card's text, one fixed-width line at a time (wrapped here, not by the widget)."""
+
+    def __init__(self, cols: Columns, mark_style: str | Style = "") -> None:
+        self.cols = cols
+        self.text = Text(no_wrap=True, overflow="crop", end="")
+        self.count = 0
+        self.rows: list[_Row | Text] = []  # a row, or a heading across the whole card
+        self.mark_style = mark_style
+
+    def line(self, text: Text, width: int) -> None:
+        """One line across the whole card (a section heading)."""
+        self.rows.append(cell(text, width))
+
+    def add(self, name: Text | None, marker: Text | None, cells: list[Text | None],
+            sim: list[Text], weight: Text | None) -> None:
+        self.rows.append(_Row(name, marker, cells, sim, weight))
+
+    def height(self) -> int:
+        return sum(1 if isinstance(r, Text) else r.height(self.cols.value) for r in self.rows)
+
+    def fit(self, max_lines: int) -> bool:
+        """Shorten the tallest rows to one line until the card fits; True if any was."""
+        rows = sorted((r for r in self.rows if isinstance(r, _Row)),
+                      key=lambda r: -r.height(self.cols.value))
+        changed = False
+        for row in rows:
+            if self.height() <= max_lines or row.height(self.cols.value) == 1:
+                break
+            row.one_line = changed = True
+        return changed
+
+    def _emit(self, text: Text) -> None:
+        if self.count:
+            self.text.append("\n")
+        self.count += 1
+        self.text.append_text(text)
+
+    def render(self) -> Text:
+        for row in self.rows:
+            if isinstance(row, Text):
+                self._emit(row)
+            else:
+                self._render_row(row)
+        return self.text
+
+    def _render_row(self, row: _Row) -> None:
+        c = self.cols
+        wrapped = [([] if cell is None else [shorten(cell, c.value, self.mark_style)]
+                    if row.one_line else _wrap(cell, c.value)) for cell in row.cells]
+        height = max([1, len(row.sim), *(len(w) for w in wrapped)])
+        for i in range(height):
+            line = cell(row.name if i == 0 else None, c.name)
+            line.append(" ")
+            if c.stacked:
+                line.append_text(cell(row.marker if i == 0 else None, 1))
+                line.append(" ")
+            for lines in wrapped:
+                line.append_text(cell(lines[i] if i < len(lines) else None, c.value))
+                line.append(" ")
+            line.append_text(cell(row.sim[i] if i < len(row.sim) else None, c.sim))
+            line.append(" ")
+            line.append_text(cell(row.weight if i == 0 else None, c.weight, right=True))
+            self._emit(line)
+
+
+SHORTENED = "… shortened to fit; w shows every value in full"
