@@ -13,6 +13,8 @@ from typing import TYPE_CHECKING
 
 from .errors import DocketError
 from .ordering import queue
+from .reviewing import missed
+from .reviewing.missed import MissedMatch
 from .storage import decisions as log
 from .storage import store
 from .storage.project_file import ProjectFile
@@ -229,3 +231,16 @@ class Project(ProjectFile):
             store.set_meta(self._conn, refit_at=log.stamp())
             self.meta = store.get_meta(self._conn)
         return result
+
+    # -- matches that are not candidates ----------------------------------------------------
+    def record_missed(self, left_id: str, right_id: str, reviewer: str,
+                      note: str = "") -> MissedMatch:
+        """A true match blocking did not pair, by its two record ids (see reviewing.missed)."""
+        return missed.record(self, left_id, right_id, reviewer, note)
+
+    def remove_missed(self, left_id: str, right_id: str) -> bool:
+        return missed.remove(self, left_id, right_id)
+
+    def missed_matches(self) -> list[MissedMatch]:
+        with self._lock:
+            return missed.listing(self._conn)

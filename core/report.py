@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from .reviewing import gold
+from .reviewing import gold, missed
 from .storage import store
 from .storage.project_file import ProjectFile
 
@@ -36,6 +36,9 @@ def status(project: ProjectFile) -> dict[str, Any]:
                       (f.name,))]
         model.append({"field": f.name, "kind": f.kind, "levels": levels})
     fs = meta["fs_model"]
+    golds = gold.gold_labels(conn)
+    gold_matches = sum(g.label == "match" for g in golds)
+    found = missed.listing(conn)
     return {
         "project": str(project.path),
         "name": meta.get("name"),
@@ -77,6 +80,12 @@ def status(project: ProjectFile) -> dict[str, Any]:
         "gold_policy": {**gold.policy(conn),
                         "rules": "unanimous decisions become gold; disagreements only when "
                                  "adjudicated; holds never"},
-        "gold_labels": len(gold.gold_labels(conn)),
+        "gold_labels": len(golds),
+        "missed_matches": {"count": len(found),
+                           "gold_matches": gold_matches,
+                           "reach": missed.reach(gold_matches, len(found)),
+                           "note": "true matches recorded by id that no candidate pair holds; "
+                                   "reach = gold matches / (gold matches + missed), rough and "
+                                   "if anything too high"},
         "caution": CAUTION,
     }

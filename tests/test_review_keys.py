@@ -116,6 +116,26 @@ async def test_note_is_saved_with_the_decision(review_sample, review_app):
 
 
 @pilot_test
+async def test_a_note_on_an_undecided_pair_survives_quit_and_reopen(review_sample, review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        first = review(app).item.pair_id
+        await press(pilot, "e", *"ask the vet", "enter")
+        await pilot.press("q")  # quit before any decision
+    assert log(review_sample) == []  # a note alone is not a decision
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert review(app).item.pair_id == first
+        assert review(app).pending_note == "ask the vet"
+        assert "ask the vet" in screen_text(app)
+        await press(pilot, "s")
+    assert log(review_sample)[0][:4] == (first, "maya", "match", "ask the vet")
+    assert rows(review_sample, "SELECT count(*) FROM drafts") == [(0,)]  # taken by the decision
+
+
+@pilot_test
 async def test_note_on_a_decided_pair_appends_a_decision_with_the_same_label(review_sample,
                                                                             review_app):
     app = review_app(review_sample)

@@ -102,11 +102,12 @@ def build_parser() -> argparse.ArgumentParser:
                  "inclusion probability.\ntraining: gold plus both records and the "
                  "similarities, with a stable train/test split (--for-lm: text for a language "
                  "model, JSON lines).\nclusters: record id -> cluster id from gold matches; "
-                 "conflicts: clusters that hold a gold non-match.",
+                 "conflicts: clusters that hold a gold non-match; missed: true matches that "
+                 "are not candidates (docket missed).",
                  "docket export vets.docket --what training -o training.parquet", commands.export)
     p.add_argument("project")
-    p.add_argument("--what", choices=["scores", "gold", "training", "clusters", "conflicts"],
-                   default="scores")
+    p.add_argument("--what", choices=["scores", "gold", "training", "clusters", "conflicts",
+                                      "missed"], default="scores")
     p.add_argument("-o", "--output", required=True, metavar="FILE|-",
                    help="file (.csv, .parquet, .jsonl) or - for standard output")
     p.add_argument("--format", choices=["csv", "parquet", "jsonl"])
@@ -141,10 +142,12 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--reviewer", metavar="NAME", help="who reviews (default: your user name)")
 
     from .cli_gold import register as register_gold
+    from .cli_missed import register as register_missed
     from .cli_screens import register as register_screens
     from .cli_team import register as register_team
     register_team(sub)
     register_gold(sub)
+    register_missed(sub)
     register_screens(sub)
     return parser
 

@@ -12,7 +12,7 @@ from typing import Any
 
 from .terminal import json_text
 
-EXPORTS = ("gold", "training", "clusters", "conflicts")
+EXPORTS = ("gold", "training", "clusters", "conflicts", "missed")
 
 
 def _shares(text: str) -> list[float]:
@@ -196,6 +196,10 @@ def export_other(project: Any, what: str, args: argparse.Namespace) -> Any:
         return ge.clusters_frame(project, bool(getattr(args, "all_records", False)))
     if what == "conflicts":
         return ge.conflicts_frame(project)
+    if what == "missed":
+        from docket.core.reviewing.missed import frame
+        with project.reading() as conn:
+            return frame(conn)
     raise DocketError(f"--what {what}: use one of scores, {', '.join(EXPORTS)}")
 
 

@@ -136,6 +136,11 @@ def status(args: argparse.Namespace) -> int:
     pol = info["gold_policy"]
     print(f"gold labels  {info['gold_labels']:,} (policy: at least {pol['min_reviews']} "
           f"review(s); {pol['rules']})")
+    m = info["missed_matches"]
+    if m["count"]:
+        print(f"missed       {m['count']:,} true matches that are not candidates (docket missed); "
+              f"the candidates hold {m['reach']:.1%} of the {m['gold_matches'] + m['count']:,} "
+              "matches known")
     return 0
 
 

@@ -16,7 +16,7 @@ from typing import Any, Self
 from ..errors import DocketError
 from ..types import LABELS, Decision, FieldSpec
 from . import decisions as log
-from . import store
+from . import drafts, store
 
 
 class ProjectFile:
@@ -87,8 +87,20 @@ class ProjectFile:
             prior = log.current_of(conn, pair_id, reviewer, role)
             conn.execute("INSERT OR IGNORE INTO reviewers VALUES (?, ?, ?)",
                          (reviewer, role, store.now()))
+            note = note or drafts.of(conn, pair_id, reviewer, role)
+            drafts.clear(conn, pair_id, reviewer, role)  # the note is in the log now
             return log.append(conn, pair_id, reviewer, label, note, seconds,
                               None if prior is None else prior.decision_id, role)
+
+    def save_draft(self, pair_id: int, reviewer: str, note: str,
+                   role: str = "reviewer") -> None:
+        """Keep a note on a pair not yet decided, committed at once; the decision takes it."""
+        with self.transaction() as conn:
+            drafts.save(conn, pair_id, reviewer, note, role)
+
+    def draft(self, pair_id: int, reviewer: str, role: str = "reviewer") -> str:
+        with self._lock:
+            return drafts.of(self._conn, pair_id, reviewer, role)
 
     def undo(self, reviewer: str, role: str = "reviewer") -> Decision | None:
         """Retract the reviewer's latest standing label; returns the retracted decision."""

@@ -18,7 +18,7 @@ from typing import Any
 from ..errors import DocketError, NotAProject
 
 APPLICATION_ID = 0x646F636B  # "dock": marks the file as a docket project
-SCHEMA_VERSION = 1
+SCHEMA_VERSION = 2
 BUSY_TIMEOUT_MS = 5000
 
 SCHEMA_V1 = """
@@ -62,6 +62,19 @@ CREATE VIEW current_labels AS
     SELECT d.* FROM current c JOIN decisions d ON d.decision_id = c.decision_id;
 """
 
+# Version 2. drafts: a note typed on a pair not yet decided, kept until the decision takes it
+# (one per pair, person and role; local to this file, like an unsent message). missed_matches:
+# true matches that are not candidate pairs, recorded by their two ids; they never enter the
+# queue or the gold labels, and are counted apart to show what blocking lost.
+SCHEMA_V2 = (
+    "CREATE TABLE drafts (pair_id INTEGER NOT NULL REFERENCES pairs(pair_id), "
+    "reviewer TEXT NOT NULL, role TEXT NOT NULL DEFAULT 'reviewer', note TEXT NOT NULL, "
+    "saved_at TEXT NOT NULL, PRIMARY KEY (pair_id, reviewer, role))",
+    "CREATE TABLE missed_matches (missed_id TEXT PRIMARY KEY, left_id TEXT NOT NULL, "
+    "right_id TEXT NOT NULL, reviewer TEXT NOT NULL, note TEXT NOT NULL DEFAULT '', "
+    "recorded_at TEXT NOT NULL, UNIQUE (left_id, right_id))",
+)
+
 # Indexes built after the bulk load: building once is faster than maintaining during inserts.
 PAIR_INDEXES = """
 CREATE INDEX pairs_queue ON pairs(pattern_id, open, audit);
@@ -73,7 +86,18 @@ CREATE UNIQUE INDEX pairs_ids ON pairs(left_id, right_id);
 
 Migration = Callable[[sqlite3.Connection], None]
 # version -> (name, function taking a file at version-1 to version)
-MIGRATIONS: dict[int, tuple[str, Migration]] = {}
+def _to_v2(conn: sqlite3.Connection) -> None:
+    for statement in SCHEMA_V2:
+        conn.execute(statement)
+
+
+MIGRATIONS: dict[int, tuple[str, Migration]] = {2: ("drafts and missed matches", _to_v2)}
+
+
+def has_table(conn: sqlite3.Connection, name: str) -> bool:
+    """False for a table a later schema adds, in an older file opened read-only (unmigrated)."""
+    return conn.execute("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = ?",
+                        (name,)).fetchone() is not None
 
 
 def now() -> str:
@@ -107,6 +131,7 @@ def create_file(path: Path, field_names: list[str]) -> sqlite3.Connection:
     conn.execute(f"PRAGMA user_version = {SCHEMA_VERSION}")
     columns = "".join(f", {similarity_column(f)} REAL" for f in field_names)
     conn.executescript(SCHEMA_V1.replace("{similarity_columns}", columns))
+    _to_v2(conn)
     conn.execute("INSERT INTO migrations VALUES (?, ?, ?)", (SCHEMA_VERSION, "initial", now()))
     return conn
 

@@ -23,7 +23,7 @@ CAUTION = (
 HOW = (
     "Every decision is saved the moment you make it; quitting loses nothing, and reopening "
     "resumes your queue. Review is blind: other reviewers' labels are never shown. A note is "
-    "saved with your decision on the pair (on a pair you have decided, at once). Changing a "
+    "saved the moment you write it and goes with your decision on the pair. Changing a "
     "past decision, or undoing one, adds to the log; nothing is deleted. When the pair card is "
     "taller than the screen, the arrow keys and Page Up / Page Down scroll it; a value shortened "
     "with … to fit comes back in full with w. While the model is refit in the background, the "

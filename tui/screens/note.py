@@ -36,7 +36,7 @@ class NoteScreen(ModalScreen[str | None]):
             yield Input(self.initial, placeholder="why you decided as you did",
                         max_length=NOTE_LIMIT, id="note-input")
             when = ("saved now, with your current label" if self.decided else
-                    "saved with your decision on this pair")
+                    "saved now, and goes with your decision on this pair")
             yield Static(Text(f"Enter saves ({when}) · Escape cancels"), id="note-hint")
 
     def on_mount(self) -> None:

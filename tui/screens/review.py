@@ -127,6 +127,8 @@ class ReviewScreen(Screen[None]):
         self.card = None if item is None else project.card(item.pair_id, item.reason)
         self.mine = None if item is None else project.current_label(item.pair_id,
                                                                    self.review_app.reviewer)
+        if item is not None and self.mine is None:  # a note written earlier, not yet decided
+            self.pending_note = project.draft(item.pair_id, self.review_app.reviewer)
         self.shown_at = self.review_app.clock()
         if (mode == "queue") != self._footer_in_queue:
             # Only when "back to the queue" appears or goes: the footer rebuilds itself on
@@ -258,7 +260,13 @@ class ReviewScreen(Screen[None]):
             return
         app = self.review_app
         if self.mine is None:
+            try:  # saved now: quitting before the decision must not lose it
+                app.project.save_draft(self.item.pair_id, app.reviewer, note)
+            except (DocketError, sqlite3.Error) as exc:
+                self.notify(f"Note not saved: {exc}", severity="error", markup=False)
+                return
             self.pending_note = note
+            self.notify("Note saved; it goes with your decision on this pair.")
         else:
             try:
                 self.mine = app.project.decide(self.item.pair_id, app.reviewer,

@@ -93,7 +93,7 @@ def evidence_text(card: PairCard, palette: Palette, you: YourSide = YourSide(),
         text.append("you: ", p.muted)
         text.append(you.label + "\n", p.heading)
     if you.note:
-        text.append("note, saved when you decide: " if you.note_pending else "note ", p.muted)
+        text.append("note, for your decision: " if you.note_pending else "note ", p.muted)
         text.append_text(literal.literal_text(you.note, escape_style=p.escape, cap=200))
         text.append("\n")
     if model_note:

@@ -1,0 +1,71 @@
+"""Missed matches: true matches that no candidate pair holds, recorded by id and counted apart."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pandas as pd
+import pytest
+
+from docket.core import DocketError, Project
+from docket.core.reviewing.missed import reach
+from docket.tui.cli import main
+
+
+def not_a_candidate(project: Project) -> tuple[str, str]:
+    """A left and a right id that blocking did not pair (the sample has plenty)."""
+    lefts = [r for (r,) in project.connection.execute(
+        "SELECT client_id FROM left_records ORDER BY client_id LIMIT 50")]
+    rights = [r for (r,) in project.connection.execute(
+        "SELECT ref FROM right_records ORDER BY ref LIMIT 50")]
+    pairs = set(project.connection.execute("SELECT left_id, right_id FROM pairs"))
+    return next((a, b) for a in lefts for b in rights if (a, b) not in pairs)
+
+
+def test_recorded_once_refused_for_candidates_and_unknown_ids(sample_project: Path) -> None:
+    with Project.open(sample_project) as p:
+        a, b = not_a_candidate(p)
+        first = p.record_missed(a, b, "maya", "same owner, moved house")
+        again = p.record_missed(a, b, "ines")  # once is enough: the first stays
+        assert again == first and len(p.missed_matches()) == 1
+        pid, ca, cb = p.connection.execute("SELECT pair_id, left_id, right_id FROM pairs "
+                                           "LIMIT 1").fetchone()
+        with pytest.raises(DocketError, match=f"candidate pair {pid}"):
+            p.record_missed(ca, cb, "maya")
+        with pytest.raises(DocketError, match="no record 'NOPE'"):
+            p.record_missed("NOPE", b, "maya")
+        # A missed match is no candidate and no gold label: the queue never sees it.
+        assert p.connection.execute("SELECT count(*) FROM pairs WHERE left_id = ? AND "
+                                    "right_id = ?", (a, b)).fetchone()[0] == 0
+        assert p.remove_missed(a, b) and not p.remove_missed(a, b)
+        assert p.missed_matches() == []
+
+
+def test_status_and_export_count_them_apart(sample_project: Path, tmp_path: Path,
+                                            capsys) -> None:
+    with Project.open(sample_project) as p:
+        a, b = not_a_candidate(p)
+        pid = p.next_pairs("maya", 1)[0].pair_id
+        p.decide(pid, "maya", "match")
+    path = str(sample_project)
+    assert main(["missed", path, "add", a, b, "--reviewer", "maya", "--note", "twins"]) == 0
+    assert "1 in all" in capsys.readouterr().out
+    assert main(["status", path, "--json"]) == 0
+    info = json.loads(capsys.readouterr().out)
+    assert info["missed_matches"]["count"] == 1 and info["gold_labels"] == 1
+    assert info["missed_matches"]["reach"] == pytest.approx(0.5)  # 1 gold match, 1 missed
+    assert main(["status", path]) == 0
+    assert "the candidates hold 50.0% of the 2 matches known" in capsys.readouterr().out
+    out = tmp_path / "missed.csv"
+    assert main(["export", path, "--what", "missed", "-o", str(out)]) == 0
+    back = pd.read_csv(out, dtype=str, keep_default_na=False)
+    assert back[["left_id", "right_id", "reviewer", "note"]].values.tolist() == [
+        [a, b, "maya", "twins"]]
+    assert main(["missed", path, "add", a, "NOPE", "--reviewer", "maya"]) == 2
+
+
+def test_reach_is_the_share_of_known_matches_that_are_candidates() -> None:
+    # common practice: reach (pair completeness) = true matches among candidates / all known
+    assert reach(0, 0) is None
+    assert reach(9, 1) == pytest.approx(0.9)
