@@ -9,6 +9,7 @@ import pandas as pd
 import pyarrow.parquet as pq
 import pytest
 
+from docket.core import Project
 from docket.tui.cli import build_parser, main
 
 
@@ -84,4 +85,23 @@ def test_demo_builds_without_opening(tmp_path: Path, capsys) -> None:
     out = capsys.readouterr().out
     assert "vet-clients" in out and "Records may be personal data" in out
     assert main(["demo", "--dir", str(tmp_path), "--no-open"]) == 0  # reuses it
-    assert "using the existing demo project" in capsys.readouterr().out
+    out = capsys.readouterr().out
+    assert "using the existing demo project" in out
+    assert "personal data" not in out  # the caution is said at creation, not on every status
+
+
+def test_demo_fresh_refuses_to_discard_decisions_unless_told(tmp_path: Path, capsys) -> None:
+    assert main(["demo", "--dir", str(tmp_path), "--no-open", "--reviewer", "kim"]) == 0
+    path = tmp_path / "vet-clients.docket"
+    with Project.open(path) as p:
+        p.decide(p.next_pairs("kim", 1)[0].pair_id, "kim", "match")
+    capsys.readouterr()
+    assert main(["demo", "--dir", str(tmp_path), "--no-open", "--fresh"]) == 2
+    err = capsys.readouterr().err
+    assert "1 decision(s) by 1 reviewer(s)" in err and "--discard-decisions" in err
+    with Project.open(path, readonly=True) as p:
+        assert len(p.history("kim")) == 1  # nothing was touched
+    assert main(["demo", "--dir", str(tmp_path), "--no-open", "--fresh",
+                 "--discard-decisions"]) == 0
+    with Project.open(path, readonly=True) as p:
+        assert p.history("kim") == []

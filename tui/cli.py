@@ -137,7 +137,11 @@ def build_parser() -> argparse.ArgumentParser:
                  "docket demo --dir /tmp/docket-demo", commands.demo)
     p.add_argument("--dir", default="docket-demo",
                    help="folder for the demo (default ./docket-demo)")
-    p.add_argument("--fresh", action="store_true", help="rebuild the demo project from scratch")
+    p.add_argument("--fresh", action="store_true",
+                   help="rebuild the demo project from scratch (refused while it holds "
+                        "decisions, unless --discard-decisions)")
+    p.add_argument("--discard-decisions", action="store_true",
+                   help="with --fresh: rebuild even though the decisions made in it are lost")
     p.add_argument("--no-open", action="store_true", help="build only; do not open the screen")
     p.add_argument("--reviewer", metavar="NAME", help="who reviews (default: your user name)")
 

@@ -225,6 +225,20 @@ def demo_spec(folder: Path) -> Any:
                       name="vet-clients", force=True)
 
 
+def _refuse_to_discard(path: Path) -> None:
+    """--fresh over a demo that holds the user's own decisions needs saying so."""
+    from docket.core import DocketError
+    from docket.tui.cli_team import DEMO_SECOND_REVIEWER
+    with _open(str(path), readonly=True) as project, project.reading() as conn:
+        n, people = conn.execute(
+            "SELECT count(*), count(DISTINCT reviewer) FROM decisions WHERE reviewer != ?",
+            (DEMO_SECOND_REVIEWER,)).fetchone()
+    if n:
+        raise DocketError(f"{path} holds {n:,} decision(s) by {people} reviewer(s) that "
+                          "--fresh would discard; copy the file to keep them, then pass "
+                          "--fresh --discard-decisions")
+
+
 def demo(args: argparse.Namespace) -> int:
     from docket.core import Project
 
@@ -235,6 +249,8 @@ def demo(args: argparse.Namespace) -> int:
     if spec.path.exists() and not args.fresh:
         print(f"using the existing demo project {spec.path} (pass --fresh to rebuild it)")
     else:
+        if spec.path.exists() and not args.discard_decisions:
+            _refuse_to_discard(spec.path)
         with progress_bar() as update:
             built = Project.create(spec, progress=update)
         _print_built(built)
