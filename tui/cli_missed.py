@@ -1,16 +1,18 @@
 """The ``missed`` command: true matches that no candidate pair holds, recorded by their ids.
 
+What it prints goes through the terminal door (``terminal``) like every other command.
+
 Argument parsing and printing only; the work is done by ``docket.core.reviewing.missed``.
 """
 
 from __future__ import annotations
 
 import argparse
-import json
 import shlex
 
 from .cli import _command
 from .commands import _open, default_reviewer
+from .terminal import json_text
 
 
 def register(sub: argparse._SubParsersAction) -> None:
@@ -42,14 +44,13 @@ def register(sub: argparse._SubParsersAction) -> None:
 
 
 def missed(args: argparse.Namespace) -> int:
-    from . import literal
     if args.action == "add":
         reviewer = default_reviewer(args.reviewer)
         with _open(args.project) as project:
             found = project.record_missed(args.left_id, args.right_id, reviewer, args.note)
             total = len(project.missed_matches())
-        print(f"missed match {literal.visible(found.left_id)} ↔ {literal.visible(found.right_id)} "
-              f"recorded by {literal.visible(found.reviewer)}; {total:,} in all "
+        print(f"missed match {(found.left_id)} ↔ {(found.right_id)} "
+              f"recorded by {(found.reviewer)}; {total:,} in all "
               f"(see: docket status {shlex.quote(args.project)})")
         return 0
     if args.action == "remove":
@@ -60,11 +61,11 @@ def missed(args: argparse.Namespace) -> int:
     with _open(args.project, readonly=True) as project:
         found_all = project.missed_matches()
     if args.json:
-        print(json.dumps([m.to_dict() for m in found_all], indent=2, ensure_ascii=False))
+        print(json_text([m.to_dict() for m in found_all]))
         return 0
     if not found_all:
         print("(no missed matches recorded)")
     for m in found_all:
-        print(f"{literal.visible(m.left_id):<22} {literal.visible(m.right_id):<22} "
-              f"{literal.visible(m.reviewer):<14} {m.recorded_at[:10]}  {literal.visible(m.note)}")
+        print(f"{(m.left_id):<22} {(m.right_id):<22} "
+              f"{(m.reviewer):<14} {m.recorded_at[:10]}  {(m.note)}")
     return 0
