@@ -137,7 +137,7 @@ async def measure_keys(path: Path, decisions: int, refit: bool) -> dict[str, lis
     """
     from textual import events
 
-    from docket.tui.app import make_app
+    from docket.tui.review_app import make_app
 
     app = make_app(path, "bench", refit_every=None if refit else 0,
                    keymap_file=path.with_suffix(".no-keymap"))
@@ -164,7 +164,7 @@ def first_pair(path: Path) -> dict[str, float]:
     """A fresh interpreter: its import time, then review start to the first pair painted."""
     code = (
         "import time, sys, json; t0 = time.perf_counter()\n"
-        "from docket.tui.app import make_app\n"
+        "from docket.tui.review_app import make_app\n"
         "t1 = time.perf_counter()\n"
         f"app = make_app({str(path)!r}, 'bench-first', keymap_file=None)\n"
         "out = {}\n"

@@ -14,6 +14,7 @@ from typing import TYPE_CHECKING
 from .errors import DocketError
 from .ordering import queue
 from .reviewing import missed
+from .reviewing.gold import Gold, gold_labels
 from .reviewing.missed import MissedMatch
 from .storage import decisions as log
 from .storage import store
@@ -219,6 +220,14 @@ class Project(ProjectFile):
         with self._lock:
             return log.log(self._conn, pair_id)
 
+    def decisions_by_others(self, reviewer: str) -> tuple[int, int]:
+        """(decisions in the log, distinct reviewers) from anyone but ``reviewer``."""
+        with self._lock:
+            n, people = self._conn.execute(
+                "SELECT count(*), count(DISTINCT reviewer) FROM decisions WHERE reviewer != ?",
+                (reviewer,)).fetchone()
+        return int(n), int(people)
+
     def decisions_since_refit(self) -> int:
         with self._lock:
             return int(self._conn.execute("SELECT count(*) FROM decisions WHERE decided_at > ?",
@@ -244,3 +253,9 @@ class Project(ProjectFile):
     def missed_matches(self) -> list[MissedMatch]:
         with self._lock:
             return missed.listing(self._conn)
+
+    # -- gold --------------------------------------------------------------------------------
+    def gold_labels(self) -> list[Gold]:
+        """The gold labels under the project's policy, read under the lock."""
+        with self._lock:
+            return gold_labels(self._conn)

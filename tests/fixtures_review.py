@@ -18,7 +18,7 @@ from typing import Any
 import pytest
 
 from docket.core import NewProject, Project
-from docket.tui.app import ReviewApp, make_app
+from docket.tui.review_app import ReviewApp, make_app
 
 REPO = Path(__file__).resolve().parents[1]
 SAMPLE = REPO / "sample"

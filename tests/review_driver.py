@@ -15,7 +15,7 @@ from pathlib import Path
 
 from textual import events
 
-from docket.tui.app import make_app
+from docket.tui.review_app import make_app
 
 KEYS = "sdsh"  # match, non-match, match, hold, ...
 

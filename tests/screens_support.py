@@ -25,7 +25,7 @@ import pytest
 from docket.core import Project
 from docket.core.reviewing.bulk import BulkRow, apply_rows
 from docket.core.reviewing.team import add_reviewer
-from docket.tui.adjudicate_app import TeamApp, make_team_app
+from docket.tui.team_app import TeamApp, make_team_app
 from tests.fixtures_review import FrozenClock, settle
 
 TRUTH = Path(__file__).resolve().parents[1] / "sample" / "truth.csv"

@@ -1,14 +1,11 @@
-"""Helpers for the team tests: a tiny project, and the CLI with the team commands present."""
+"""Helpers for the team tests: a tiny project, and the CLI."""
 
 from __future__ import annotations
 
-import argparse
 from pathlib import Path
-from unittest import mock
 
 from docket.core import NewProject, Project
 from docket.tui import cli
-from docket.tui.cli_team import register
 
 LEFT = """id,name,town,born
 1,Anna Berg,Oslo,1980-01-02
@@ -37,18 +34,6 @@ def tiny_project(folder: Path, name: str = "tiny.docket", left: str = LEFT,
     return path
 
 
-_real_build_parser = cli.build_parser
-
-
-def _with_team_commands() -> argparse.ArgumentParser:
-    parser = _real_build_parser()
-    sub = next(a for a in parser._actions if a.dest == "command")
-    if "agreement" not in sub.choices:  # not wired into cli.py yet
-        register(sub)
-    return parser
-
-
 def run(argv: list[str]) -> int:
-    """``docket ARGV`` as the installed command runs it, team commands included."""
-    with mock.patch.object(cli, "build_parser", _with_team_commands):
-        return cli.main(argv)
+    """``docket ARGV`` as the installed command runs it."""
+    return cli.main(argv)

@@ -4,13 +4,14 @@ Floors, lowest first. A module may import its own floor and the floors below it;
 the module graph has no cycle. Nothing in the core imports a user interface.
 """
 
-import ast
 import pkgutil
 import subprocess
 import sys
 from pathlib import Path
 
 import docket.core
+
+from .import_graph import first_cycle, imports, modules
 
 FLOORS = [
     {"errors", "types"},  # plain data
@@ -28,14 +29,7 @@ UI = ("textual", "rich")
 CORE = Path(docket.core.__file__).parent
 
 
-def _module_name(path: Path) -> str:
-    parts = list(path.relative_to(CORE).with_suffix("").parts)
-    if parts[-1] == "__init__":
-        parts.pop()
-    return ".".join(["docket.core", *parts])
-
-
-MODULES = {_module_name(p): p for p in sorted(CORE.rglob("*.py"))}
+MODULES = modules("docket.core", CORE)
 
 
 def _floor(module: str) -> int:
@@ -48,22 +42,7 @@ def _floor(module: str) -> int:
 
 
 def _imports(module: str, path: Path) -> list[tuple[int, str]]:
-    """(line, imported module) for every import in the file, including those inside functions."""
-    package = module if path.name == "__init__.py" else module.rpartition(".")[0]
-    found = []
-    for node in ast.walk(ast.parse(path.read_text(), str(path))):
-        if isinstance(node, ast.Import):
-            found += [(node.lineno, a.name) for a in node.names]
-        elif isinstance(node, ast.ImportFrom):
-            base = node.module or ""
-            if node.level:
-                anchor = package.split(".")
-                anchor = anchor[:len(anchor) - node.level + 1]
-                base = ".".join(anchor + ([base] if base else []))
-            for alias in node.names:
-                sub = f"{base}.{alias.name}"
-                found.append((node.lineno, sub if sub in MODULES else base))
-    return found
+    return imports(module, path, MODULES)
 
 
 def test_every_core_module_is_seen() -> None:
@@ -89,22 +68,8 @@ def test_core_imports_point_down() -> None:
 
 
 def test_core_module_graph_has_no_cycle() -> None:
-    graph = {m: {t for _, t in _imports(m, p) if t in MODULES and t != m}
-             for m, p in MODULES.items()}
-    state: dict[str, int] = {}
-
-    def visit(m: str, trail: list[str]) -> None:
-        state[m] = 1
-        for t in sorted(graph[m]):
-            if state.get(t) == 1:
-                raise AssertionError("import cycle: " + " -> ".join([*trail, m, t]))
-            if t not in state:
-                visit(t, [*trail, m])
-        state[m] = 2
-
-    for m in sorted(graph):
-        if m not in state:
-            visit(m, [])
+    cycle = first_cycle(MODULES)
+    assert cycle is None, "import cycle: " + " -> ".join(cycle or [])
 
 
 def test_importing_every_core_module_loads_no_user_interface() -> None:

@@ -12,6 +12,7 @@ from pathlib import Path
 import pytest
 
 from docket.core import DocketError, Project
+from docket.core.reviewing.bulk import label_once
 from docket.core.reviewing.team import (
     add_reviewer,
     agreement_report,
@@ -19,7 +20,6 @@ from docket.core.reviewing.team import (
     labels_by_reviewer,
     list_reviewers,
 )
-from docket.tui.cli_team import apply_second_reviewer
 
 from .team_support import run, tiny_project
 
@@ -166,8 +166,8 @@ def test_second_reviewer_covers_overlap_pairs_and_meets_the_demo_user(
             "SELECT pair_id, left_id, right_id FROM pairs WHERE overlap = 1")}
     assert all((r["left_id"], r["right_id"]) in overlap for r in rows)
     with Project.open(sample_project) as p:
-        assert apply_second_reviewer(p, SECOND, adjudicator="demo") == len(rows)
-        assert apply_second_reviewer(p, SECOND, adjudicator="demo") == 0  # opened again
+        assert label_once(p, "ines", SECOND, "demo") == len(rows)
+        assert label_once(p, "ines", SECOND, "demo") == 0  # opened again
         roles = {r["name"]: r["role"] for r in list_reviewers(p)}
         queue = p.next_pairs("demo", 40)
     assert roles == {"demo": "adjudicator", "ines": "reviewer"}

@@ -1,4 +1,4 @@
-"""``docket evaluate`` and the gold-label exports of ``docket export``.
+"""``docket evaluate`` and ``docket export``.
 
 Argument parsing and printing only: the figures come from ``docket.core.quality.evaluate`` and the
 frames from ``docket.core.exports.gold_export``.
@@ -10,6 +10,8 @@ import argparse
 import sys
 from typing import Any
 
+from .cli_base import command, open_project
+from .cli_checks import share
 from .terminal import json_text
 
 EXPORTS = ("gold", "training", "clusters", "conflicts", "missed")
@@ -24,10 +26,8 @@ def _shares(text: str) -> list[float]:
 
 
 def register(sub: argparse._SubParsersAction) -> None:
-    """Add ``docket evaluate`` to the command's sub-parsers."""
-    from .cli import _command
-    from .cli_checks import share
-    p = _command(
+    """Add evaluate and export to the command's sub-parsers."""
+    p = command(
         sub, "evaluate", "Estimate precision, recall and F1 from the audit slice.",
         "Design-based (Horvitz-Thompson) estimates with 95% confidence intervals at a range of "
         "thresholds, from the gold labels of the audit slice only. The naive figure from all "
@@ -55,13 +55,40 @@ def register(sub: argparse._SubParsersAction) -> None:
     goal.add_argument("--target-recall", type=share, metavar="R",
                       help="suggest the highest threshold whose estimated recall reaches R")
 
+    p = command(sub, "export", "Write a project's pairs, gold labels or clusters out.",
+                 "scores: every candidate pair with per-field similarities, match weight, "
+                 "probability and the predicted label at the project's threshold.\n"
+                 "gold: the gold labels, how each was decided, reviewers, audit flag and "
+                 "inclusion probability.\ntraining: gold plus both records and the "
+                 "similarities, with a stable train/test split (--for-lm: text for a language "
+                 "model, JSON lines).\nclusters: record id -> cluster id from gold matches; "
+                 "conflicts: clusters that hold a gold non-match; missed: true matches that "
+                 "are not candidates (docket missed).",
+                 "docket export vets.docket --what training -o training.parquet", export)
+    p.add_argument("project")
+    p.add_argument("--what", choices=["scores", "gold", "training", "clusters", "conflicts",
+                                      "missed"], default="scores")
+    p.add_argument("-o", "--output", required=True, metavar="FILE|-",
+                   help="file (.csv, .parquet, .jsonl) or - for standard output")
+    p.add_argument("--format", choices=["csv", "parquet", "jsonl"])
+    p.add_argument("--test-share", type=share, default=0.2, metavar="SHARE",
+                   help="training: share in the test split (default 0.2)")
+    p.add_argument("--seed", type=int, default=0, help="training: seed of the split (default 0)")
+    p.add_argument("--for-lm", action="store_true",
+                   help="gold or training: pairs as text, JSON lines, for a language model")
+    p.add_argument("--all-records", action="store_true",
+                   help="clusters: every record, singletons too")
+    p.add_argument("--no-formula-guard", dest="formula_guard", action="store_false",
+                   help="CSV: write cells beginning with = + - @ tab or CR as they are (by "
+                        "default they get a leading ' so a spreadsheet cannot run them)")
+
 
 def evaluate(args: argparse.Namespace) -> int:
     from docket.core import Project
     if args.screen:
         from pathlib import Path
 
-        from .adjudicate_app import run_quality
+        from .team_app import run_quality
         Project.open(args.project, readonly=True).close()  # a bad path fails as one line
         run_quality(Path(args.project))
         return 0
@@ -84,6 +111,24 @@ def evaluate(args: argparse.Namespace) -> int:
         print(json_text(report))
         return 0
     print("\n".join(render(report, name)))
+    return 0
+
+
+def export(args: argparse.Namespace) -> int:
+    from docket.core.exports.exporting import output_format, scores_frame, write_frame
+    if not (args.for_lm and args.output == "-"):
+        output_format(args.output, args.format)  # a bad target fails before any work
+    if args.what != "scores":
+        with open_project(args.project, readonly=True) as project:
+            result = export_other(project, args.what, args)
+        write_export(result, args.output, args.format,
+                              guard=getattr(args, "formula_guard", True))
+        return 0
+    with open_project(args.project, readonly=True) as project:
+        frame = scores_frame(project)
+    write_frame(frame, args.output, args.format, guard=getattr(args, "formula_guard", True))
+    if args.output != "-":
+        print(f"wrote {len(frame):,} pairs to {args.output}", file=sys.stderr)
     return 0
 
 

@@ -10,13 +10,12 @@ from __future__ import annotations
 import argparse
 import shlex
 
-from .cli import _command
-from .commands import _open, default_reviewer
+from .cli_base import command, default_reviewer, open_project
 from .terminal import json_text
 
 
 def register(sub: argparse._SubParsersAction) -> None:
-    p = _command(sub, "missed", "Record true matches that blocking did not make candidates.",
+    p = command(sub, "missed", "Record true matches that blocking did not make candidates.",
                  "add LEFT RIGHT records that the two records (by id: left then right table; "
                  "in dedupe mode, any two ids of the table) are the same entity although no "
                  "candidate pair holds them. They are counted apart from the gold labels: "
@@ -46,7 +45,7 @@ def register(sub: argparse._SubParsersAction) -> None:
 def missed(args: argparse.Namespace) -> int:
     if args.action == "add":
         reviewer = default_reviewer(args.reviewer)
-        with _open(args.project) as project:
+        with open_project(args.project) as project:
             found = project.record_missed(args.left_id, args.right_id, reviewer, args.note)
             total = len(project.missed_matches())
         print(f"missed match {(found.left_id)} ↔ {(found.right_id)} "
@@ -54,11 +53,11 @@ def missed(args: argparse.Namespace) -> int:
               f"(see: docket status {shlex.quote(args.project)})")
         return 0
     if args.action == "remove":
-        with _open(args.project) as project:
+        with open_project(args.project) as project:
             gone = project.remove_missed(args.left_id, args.right_id)
         print("removed" if gone else "no such missed match; nothing changed")
         return 0
-    with _open(args.project, readonly=True) as project:
+    with open_project(args.project, readonly=True) as project:
         found_all = project.missed_matches()
     if args.json:
         print(json_text([m.to_dict() for m in found_all]))

@@ -1,19 +1,49 @@
-"""``docket adjudicate``: the adjudication screen (and, from it, agreement and quality).
+"""The commands that open a screen: ``review``, ``demo`` and ``adjudicate``.
 
-Argument parsing only. The role check runs before any screen opens, so a reviewer who is not
-an adjudicator gets the core's one-line message and exit code 2 from ``cli.main``.
+``adjudicate`` opens the adjudication screen (and, from it, agreement and quality). The role
+check runs before any screen opens, so a reviewer who is not an adjudicator gets the core's
+one-line message and exit code 2 from ``cli.main``.
 """
 
 from __future__ import annotations
 
 import argparse
+from importlib import resources
 from pathlib import Path
+from typing import Any
+
+from .cli_base import command, default_reviewer, open_project
+from .cli_project import print_built, status
+
+DEMO_SECOND_REVIEWER = "ines"
 
 
 def register(sub: argparse._SubParsersAction) -> None:
-    """Add ``docket adjudicate`` to the command's sub-parsers."""
-    from .cli import _command
-    p = _command(
+    """Add review, demo and adjudicate to the command's sub-parsers."""
+    p = command(sub, "review", "Open the review screen on a reviewer's queue.",
+                 "Keys: s match, d non-match, h hold, z undo, e note, [ ] history, / find, "
+                 "? help, q quit. Every decision is saved as it is made.",
+                 "docket review vets.docket --reviewer maya --mask email,phone", review)
+    p.add_argument("project")
+    p.add_argument("--reviewer", metavar="NAME",
+                   help="defaults to $DOCKET_REVIEWER, then your user name")
+    p.add_argument("--mask", metavar="COL,...", help="show these columns partly masked")
+
+    p = command(sub, "demo", "Build the demo project from the bundled invented sample.",
+                 "Two invented veterinary practices merging their client registers. The project "
+                 "is built once in DIR and opened in the review screen.",
+                 "docket demo --dir /tmp/docket-demo", demo)
+    p.add_argument("--dir", default="docket-demo",
+                   help="folder for the demo (default ./docket-demo)")
+    p.add_argument("--fresh", action="store_true",
+                   help="rebuild the demo project from scratch (refused while it holds "
+                        "decisions, unless --discard-decisions)")
+    p.add_argument("--discard-decisions", action="store_true",
+                   help="with --fresh: rebuild even though the decisions made in it are lost")
+    p.add_argument("--no-open", action="store_true", help="build only; do not open the screen")
+    p.add_argument("--reviewer", metavar="NAME", help="who reviews (default: your user name)")
+
+    p = command(
         sub, "adjudicate", "Open the adjudication screen: settle the pairs reviewers differ on.",
         "The queue holds pairs whose reviewers disagree, pairs with a hold, and gold\n"
         "non-matches that a chain of gold matches contradicts (cluster conflicts). Beside the\n"
@@ -34,12 +64,84 @@ def register(sub: argparse._SubParsersAction) -> None:
 def adjudicate(args: argparse.Namespace) -> int:
     from docket.core import DocketError
 
-    from .commands import default_reviewer
     from .masking import parse_mask
     try:
-        from .adjudicate_app import run_adjudicate
+        from .team_app import run_adjudicate
     except ImportError as exc:  # pragma: no cover - a broken install
         raise DocketError(f"the adjudication screen could not load ({exc})") from None
     run_adjudicate(Path(args.project), default_reviewer(args.reviewer), args.blind,
                    parse_mask(args.mask))
+    return 0
+
+
+def _run_review(path: Path, reviewer: str, mask: list[str]) -> int:
+    try:
+        from .app import run_review
+    except ImportError as exc:  # pragma: no cover - a broken install
+        from docket.core import DocketError
+        raise DocketError(f"the review screen could not load ({exc})") from None
+    run_review(path, reviewer, mask)
+    return 0
+
+
+def review(args: argparse.Namespace) -> int:
+    from .masking import expand_mask, parse_mask
+    mask = parse_mask(args.mask)
+    with open_project(args.project) as project:  # fails cleanly before the screen starts
+        expand_mask(project, mask)
+        project.ensure_reviewer(default_reviewer(args.reviewer))
+    return _run_review(Path(args.project), default_reviewer(args.reviewer), mask)
+
+
+def sample_dir() -> Path:
+    return Path(str(resources.files("docket.sample")))
+
+
+def demo_spec(folder: Path) -> Any:
+    from docket.core import NewProject
+    s = sample_dir()
+    return NewProject(path=folder / "vet-clients.docket", left=s / "practice_north.csv",
+                      right=s / "practice_south.csv", left_id="client_id", right_id="ref",
+                      column_map={"owner": "owner_name", "born": "date_of_birth"},
+                      name="vet-clients", force=True)
+
+
+def _refuse_to_discard(path: Path) -> None:
+    """--fresh over a demo that holds the user's own decisions needs saying so."""
+    from docket.core import DocketError
+    with open_project(str(path), readonly=True) as project:
+        n, people = project.decisions_by_others(DEMO_SECOND_REVIEWER)
+    if n:
+        raise DocketError(f"{path} holds {n:,} decision(s) by {people} reviewer(s) that "
+                          "--fresh would discard; copy the file to keep them, then pass "
+                          "--fresh --discard-decisions")
+
+
+def demo(args: argparse.Namespace) -> int:
+    from docket.core import Project
+    from docket.core.reviewing.bulk import label_once
+
+    from .progress import progress_bar
+    folder = Path(args.dir)
+    folder.mkdir(parents=True, exist_ok=True)
+    spec = demo_spec(folder)
+    if spec.path.exists() and not args.fresh:
+        print(f"using the existing demo project {spec.path} (pass --fresh to rebuild it)")
+    else:
+        if spec.path.exists() and not args.discard_decisions:
+            _refuse_to_discard(spec.path)
+        with progress_bar() as update:
+            built = Project.create(spec, progress=update)
+        print_built(built)
+        with Project.open(spec.path) as project:
+            n = label_once(project, DEMO_SECOND_REVIEWER, sample_dir() / "second_reviewer.csv",
+                           default_reviewer(args.reviewer))
+        print(f"second reviewer {DEMO_SECOND_REVIEWER}: {n:,} labels on overlap pairs; "
+              f"{default_reviewer(args.reviewer)} is an adjudicator")
+    if args.no_open:
+        return status(argparse.Namespace(project=str(spec.path), json=False))
+    _run_review(spec.path, default_reviewer(args.reviewer), [])
+    print(f"your decisions are saved in {spec.path}; next, try:\n"
+          f"  docket status {spec.path}\n  docket agreement {spec.path}\n"
+          f"  docket adjudicate {spec.path}\n  docket evaluate {spec.path}")
     return 0

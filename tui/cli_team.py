@@ -1,4 +1,4 @@
-"""The team commands: ``reviewers``, ``agreement`` and ``merge``; and the demo's second reviewer.
+"""The team commands: ``reviewers``, ``agreement`` and ``merge``.
 
 Argument parsing and printing only; the work is done by ``docket.core.reviewing.team``,
 ``docket.core.reviewing.merge`` and ``docket.core.reviewing.bulk``.
@@ -10,15 +10,12 @@ import argparse
 from pathlib import Path
 from typing import Any
 
-from .cli import _command
-from .commands import _open, default_reviewer
+from .cli_base import command, open_project
 from .terminal import json_text
-
-DEMO_SECOND_REVIEWER = "ines"
 
 
 def register(sub: argparse._SubParsersAction) -> None:
-    p = _command(sub, "reviewers", "Add reviewers and adjudicators to a project, or list them.",
+    p = command(sub, "reviewers", "Add reviewers and adjudicators to a project, or list them.",
                  "add NAME registers a reviewer (--role adjudicator: one who may also settle "
                  "pairs in adjudication); adding an existing name changes its role. A name used "
                  "with review, next or label is registered as a reviewer on first use; "
@@ -36,7 +33,7 @@ def register(sub: argparse._SubParsersAction) -> None:
                            description="List reviewers with their role and work so far.")
     b.add_argument("--json", action="store_true", help="machine-readable output")
 
-    p = _command(sub, "agreement", "Show how far the reviewers agree.",
+    p = command(sub, "agreement", "Show how far the reviewers agree.",
                  "For every two reviewers with pairs in common: Cohen's kappa with its standard "
                  "error (Fleiss, Cohen & Everitt 1969, non-null) and 95% CI, PABAK with the "
                  "prevalence and bias indices, the confusion matrix, the Landis & Koch band and "
@@ -52,7 +49,7 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--include-hold", action="store_true",
                    help="count hold as a third category")
 
-    p = _command(sub, "merge", "Bring in decisions made offline in copies of this project.",
+    p = command(sub, "merge", "Bring in decisions made offline in copies of this project.",
                  "Each OTHER must be a copy of the same project (same records and candidate "
                  "pairs); it is opened read-only. Merging twice changes nothing, and the order "
                  "of the files does not matter. All files are checked before anything is "
@@ -71,11 +68,11 @@ def _duration(seconds: float) -> str:
 def reviewers(args: argparse.Namespace) -> int:
     from docket.core.reviewing.team import add_reviewer, list_reviewers
     if args.action == "add":
-        with _open(args.project) as project:
+        with open_project(args.project) as project:
             change = add_reviewer(project, args.name, args.role)
         print(change.message)
         return 0
-    with _open(args.project, readonly=True) as project:
+    with open_project(args.project, readonly=True) as project:
         people = list_reviewers(project)
     if args.json:
         print(json_text(people))
@@ -160,12 +157,12 @@ def agreement(args: argparse.Namespace) -> int:
     if args.screen:
         from pathlib import Path
 
-        from .adjudicate_app import run_agreement
-        with _open(args.project, readonly=True):
+        from .team_app import run_agreement
+        with open_project(args.project, readonly=True):
             pass  # a bad path fails here, as one line, before any screen opens
         run_agreement(Path(args.project))
         return 0
-    with _open(args.project, readonly=True) as project:
+    with open_project(args.project, readonly=True) as project:
         report = agreement_report(project, include_hold=args.include_hold)
     if args.json:
         print(json_text(report))
@@ -177,7 +174,7 @@ def agreement(args: argparse.Namespace) -> int:
 # -- merge ---------------------------------------------------------------------------------
 def merge(args: argparse.Namespace) -> int:
     from docket.core.reviewing.merge import merge as merge_files
-    with _open(args.project) as project:
+    with open_project(args.project) as project:
         result = merge_files(project, [Path(p) for p in args.others])
         refit = project.refit() if result.added else None
     for f in result.files:
@@ -196,23 +193,3 @@ def merge(args: argparse.Namespace) -> int:
     if refit is not None:
         print(f"refit: ranker {refit.ranker}, {refit.labels:,} labelled pairs used")
     return 0
-
-
-# -- demo ----------------------------------------------------------------------------------
-def apply_second_reviewer(project: Any, csv_path: Path, name: str = DEMO_SECOND_REVIEWER,
-                          adjudicator: str | None = None) -> int:
-    """Record the demo's second reviewer's labels and make the demo user an adjudicator.
-
-    Returns the number of labels recorded; 0 when ``name`` already has decisions (a demo
-    project opened again). No refit: the demo user should meet these overlap pairs near the
-    top of their queue, where the generator picked them.
-    """
-    from docket.core.reviewing.bulk import apply_rows, read_rows
-    from docket.core.reviewing.team import add_reviewer
-    user = default_reviewer(adjudicator)
-    if user != name:
-        add_reviewer(project, user, "adjudicator")
-    if project.connection.execute("SELECT 1 FROM decisions WHERE reviewer = ? LIMIT 1",
-                                  (name,)).fetchone():
-        return 0
-    return apply_rows(project, name, read_rows(project, Path(csv_path)))

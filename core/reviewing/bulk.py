@@ -83,3 +83,18 @@ def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: s
             log.append(conn, r.pair_id, reviewer, r.label, r.note, 0.0,
                        None if prior is None else prior.decision_id, role)
     return len(rows)
+
+
+def label_once(project: ProjectFile, name: str, path: Path, adjudicator: str | None = None
+               ) -> int:
+    """``name``'s labels from ``path``, unless ``name`` has decisions already (a file applied
+    before); ``adjudicator``, when another person, gets the adjudicator role. Returns the number
+    of labels recorded. No refit: the caller decides when the queue is re-ranked."""
+    from .team import add_reviewer
+    if adjudicator and adjudicator != name:
+        add_reviewer(project, adjudicator, "adjudicator")
+    with project.reading() as conn:
+        if conn.execute("SELECT 1 FROM decisions WHERE reviewer = ? LIMIT 1",
+                        (name,)).fetchone():
+            return 0
+    return apply_rows(project, name, read_rows(project, path))

@@ -12,7 +12,7 @@ from __future__ import annotations
 import sqlite3
 from dataclasses import dataclass, field
 from functools import partial
-from typing import TYPE_CHECKING, ClassVar, Literal
+from typing import TYPE_CHECKING, ClassVar, Literal, cast
 
 from rich.text import Text
 from textual.app import ComposeResult
@@ -25,7 +25,6 @@ from docket.core.errors import DocketError
 from docket.core.exports.gold_export import adjudication_queue, conflicts
 from docket.core.project import Project
 from docket.core.reviewing import adjudication
-from docket.core.reviewing.gold import gold_labels
 from docket.core.types import PairCard
 
 from .. import bindings as shared
@@ -39,7 +38,7 @@ from .reason import ReasonScreen
 from .team_help import ADJUDICATION, TeamHelp
 
 if TYPE_CHECKING:
-    from ..adjudicate_app import TeamApp
+    from ..hosts import TeamHost
 
 Mode = Literal["queue", "history", "aside"]
 HELD = "held by adjudicator"
@@ -64,7 +63,7 @@ def load_queue(project: Project, adjudicator: str, generation: int) -> QueueStat
         info = ConflictInfo(c.cluster, len(c.members), c.match_pairs, c.non_match_pairs)
         for pid in (*c.match_pairs, *c.non_match_pairs):
             found[pid] = info
-    gold = {g.pair_id: (g.label, g.how) for g in gold_labels(project.connection)}
+    gold = {g.pair_id: (g.label, g.how) for g in project.gold_labels()}
     decided = len(project.history(adjudicator, role="adjudicator"))
     return QueueState(generation, entries, found, gold, decided)
 
@@ -117,8 +116,8 @@ class AdjudicateScreen(Screen[None]):
         self._footer_in_queue = True
 
     @property
-    def team_app(self) -> TeamApp:
-        return self.app  # type: ignore[return-value]
+    def team_app(self) -> TeamHost:
+        return cast("TeamHost", self.app)
 
     # -- building ----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:

@@ -7,7 +7,7 @@ contradicts. Enter on a pair opens it with everyone's labels.
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING, ClassVar
+from typing import TYPE_CHECKING, ClassVar, cast
 
 from rich.text import Text
 from textual.app import ComposeResult
@@ -27,7 +27,7 @@ from ..widgets.reviews import label_style
 from .pair_detail import PairDetailScreen
 
 if TYPE_CHECKING:
-    from ..adjudicate_app import TeamApp
+    from ..hosts import TeamHost
 
 MOST_PAIRS = 200  # pairs listed for one cluster; a larger one is cut with a note
 VALUE_WIDTH = 22
@@ -46,8 +46,8 @@ class ConflictScreen(Screen[None]):
         self.conflict = conflict
 
     @property
-    def team_app(self) -> TeamApp:
-        return self.app  # type: ignore[return-value]
+    def team_app(self) -> TeamHost:
+        return cast("TeamHost", self.app)
 
     def compose(self) -> ComposeResult:
         with VerticalScroll(id="conflict-body"):

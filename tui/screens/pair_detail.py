@@ -6,7 +6,7 @@ Read-only: nothing is decided here (adjudication happens on the adjudication scr
 from __future__ import annotations
 
 from collections.abc import Mapping
-from typing import TYPE_CHECKING, ClassVar
+from typing import TYPE_CHECKING, ClassVar, cast
 
 from rich.text import Text
 from textual.app import ComposeResult
@@ -25,7 +25,7 @@ from ..widgets.pair_card import card_title
 from ..widgets.reviews import PairStanding, ReviewsPanel
 
 if TYPE_CHECKING:
-    from ..adjudicate_app import TeamApp
+    from ..hosts import TeamHost
 
 
 class PairDetailScreen(Screen[None]):
@@ -49,8 +49,8 @@ class PairDetailScreen(Screen[None]):
         self.show_extra = False
 
     @property
-    def team_app(self) -> TeamApp:
-        return self.app  # type: ignore[return-value]
+    def team_app(self) -> TeamHost:
+        return cast("TeamHost", self.app)
 
     def compose(self) -> ComposeResult:
         yield Static(self.heading, id="detail-heading")

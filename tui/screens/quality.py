@@ -25,7 +25,6 @@ from docket.core.errors import DocketError
 from docket.core.exports.gold_export import ClusterConflict, clusters_frame, conflicts
 from docket.core.project import Project
 from docket.core.quality.evaluate import evaluate, model_scores
-from docket.core.reviewing.gold import gold_labels
 
 from .. import literal
 from ..diff import PLAIN, Palette
@@ -70,7 +69,7 @@ def load_quality(project: Project) -> QualityData:
         problem = f"the estimates could not be worked out ({exc})"
     scores: dict[str, list[float]] = {"match": [], "non-match": []}
     by_pair = model_scores(project)
-    for g in gold_labels(project.connection):
+    for g in project.gold_labels():
         scores.setdefault(g.label, []).append(float(by_pair.get(g.pair_id, 0.0)))
     found: tuple[ClusterConflict, ...] = ()
     clusters = largest = clustered = 0

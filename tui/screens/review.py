@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import sqlite3
 from functools import partial
-from typing import TYPE_CHECKING, ClassVar, Literal
+from typing import TYPE_CHECKING, ClassVar, Literal, cast
 
 from rich.text import Text
 from textual.app import ComposeResult
@@ -32,7 +32,7 @@ from .help import HelpScreen, key_rows
 from .note import NoteScreen
 
 if TYPE_CHECKING:
-    from ..app import Recount, ReviewApp
+    from ..hosts import Recount, ReviewHost
 
 Mode = Literal["queue", "history", "aside"]
 
@@ -90,8 +90,8 @@ class ReviewScreen(Screen[None]):
         self._scrolled_for = -1
 
     @property
-    def review_app(self) -> ReviewApp:
-        return self.app  # type: ignore[return-value]
+    def review_app(self) -> ReviewHost:
+        return cast("ReviewHost", self.app)
 
     # -- building ----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -406,3 +406,8 @@ class ReviewScreen(Screen[None]):
         moved = app.counted - count.counted_at  # decisions made while the worker counted
         self.decided, self.remaining = count.decided + moved, max(0, count.remaining - moved)
         self._status()
+
+
+def binding_ids() -> list[str]:
+    """Every binding id that a keymap file may remap."""
+    return [b.id for b in ReviewScreen.BINDINGS if isinstance(b, Binding) and b.id]

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING, ClassVar
+from typing import TYPE_CHECKING, ClassVar, cast
 
 from textual.screen import Screen
 
@@ -10,7 +10,7 @@ from .help import key_rows
 from .team_help import TeamHelp
 
 if TYPE_CHECKING:
-    from ..adjudicate_app import TeamApp
+    from ..hosts import TeamHost
 
 
 class TeamScreen(Screen[None]):
@@ -19,8 +19,8 @@ class TeamScreen(Screen[None]):
     HELP: ClassVar[str] = ""
 
     @property
-    def team_app(self) -> TeamApp:
-        return self.app  # type: ignore[return-value]
+    def team_app(self) -> TeamHost:
+        return cast("TeamHost", self.app)
 
     def action_help(self) -> None:
         app = self.team_app

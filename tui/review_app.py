@@ -11,7 +11,6 @@ import gc
 import threading
 import time
 from collections.abc import Callable, Sequence
-from dataclasses import dataclass
 from pathlib import Path
 
 from textual.app import App
@@ -19,26 +18,12 @@ from textual.binding import Binding
 
 from docket.core.project import Project
 
+from .hosts import Recount
 from .keymap import LoadedKeymap, load_keymap
 from .masking import Mask, expand_mask
-from .screens.review import ReviewScreen
+from .screens.review import ReviewScreen, binding_ids
 
 Clock = Callable[[], float]
-
-
-@dataclass(frozen=True)
-class Recount:
-    """A full count made by a worker on the second connection."""
-
-    decided: int
-    remaining: int
-    counted_at: int  # the app's ``counted`` when the worker started
-    note: str = ""  # what a refit did, for the evidence panel
-
-
-def binding_ids() -> list[str]:
-    """Every binding id that a keymap file may remap."""
-    return [b.id for b in ReviewScreen.BINDINGS if isinstance(b, Binding) and b.id]
 
 
 class ReviewApp(App[None]):

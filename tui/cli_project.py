@@ -1,41 +1,15 @@
-"""What each ``docket`` command does: call the core facade, print the result."""
+"""The project commands: ``new``, ``status``, ``next`` and ``label``."""
 
 from __future__ import annotations
 
 import argparse
-import getpass
-import os
 import shlex
-import sys
-from importlib import resources
 from pathlib import Path
 from typing import Any
 
+from .cli_base import command, default_reviewer, open_project
+from .cli_checks import at_least, share
 from .terminal import json_text
-
-
-def version() -> str:
-    from importlib.metadata import PackageNotFoundError
-    from importlib.metadata import version as v
-    try:
-        return v("docket")
-    except PackageNotFoundError:  # running from a source tree
-        return "0+unknown"
-
-
-def default_reviewer(given: str | None) -> str:
-    name = given or os.environ.get("DOCKET_REVIEWER") or getpass.getuser()
-    return name.strip()
-
-
-def warn_line(message: Warning | str, category: type, *rest: Any, **kw: Any) -> None:
-    """How the command line shows a warning: one line, no source excerpt."""
-    print(f"docket: warning: {message}", file=sys.stderr)
-
-
-def _open(path: str, readonly: bool = False) -> Any:
-    from docket.core import Project
-    return Project.open(path, readonly=readonly)
 
 
 def _ratio(value: float) -> str:
@@ -46,7 +20,7 @@ def _ratio(value: float) -> str:
     return f"{value:.{digits}f}"
 
 
-def _print_built(built: Any) -> None:
+def print_built(built: Any) -> None:
     r = built.blocking
     how = "chosen from the data" if r.auto else "given"
     print(f"created {built.path} ({built.mode} mode): {built.n_left:,} left and "
@@ -99,7 +73,7 @@ def new(args: argparse.Namespace) -> int:
         seed=args.seed, force=args.force)
     with progress_bar() as update:
         built = Project.create(spec, progress=update)
-    _print_built(built)
+    print_built(built)
     where = shlex.quote(str(built.path))
     print(f"next: docket review {where}   (or: docket next {where} --reviewer NAME; "
           f"docket status {where})")
@@ -108,7 +82,7 @@ def new(args: argparse.Namespace) -> int:
 
 def status(args: argparse.Namespace) -> int:
     from docket.core.report import status as get_status
-    with _open(args.project, readonly=True) as project:
+    with open_project(args.project, readonly=True) as project:
         info = get_status(project)
     if args.json:
         print(json_text(info))
@@ -146,7 +120,7 @@ def status(args: argparse.Namespace) -> int:
 
 def next_pairs(args: argparse.Namespace) -> int:
     reviewer = default_reviewer(args.reviewer)
-    with _open(args.project) as project:
+    with open_project(args.project) as project:
         project.ensure_reviewer(reviewer)
         items = project.next_pairs(reviewer, max(0, args.n))
     if args.json:
@@ -164,7 +138,7 @@ def next_pairs(args: argparse.Namespace) -> int:
 def label(args: argparse.Namespace) -> int:
     from docket.core.reviewing.bulk import apply_rows, read_rows
     reviewer = default_reviewer(args.reviewer)
-    with _open(args.project) as project:
+    with open_project(args.project) as project:
         project.ensure_reviewer(reviewer)
         rows = read_rows(project, Path(args.source))
         n = apply_rows(project, reviewer, rows)
@@ -174,96 +148,65 @@ def label(args: argparse.Namespace) -> int:
     return 0
 
 
-def export(args: argparse.Namespace) -> int:
-    from docket.core.exports.exporting import output_format, scores_frame, write_frame
-    if not (args.for_lm and args.output == "-"):
-        output_format(args.output, args.format)  # a bad target fails before any work
-    if args.what != "scores":
-        from . import cli_gold
-        with _open(args.project, readonly=True) as project:
-            result = cli_gold.export_other(project, args.what, args)
-        cli_gold.write_export(result, args.output, args.format,
-                              guard=getattr(args, "formula_guard", True))
-        return 0
-    with _open(args.project, readonly=True) as project:
-        frame = scores_frame(project)
-    write_frame(frame, args.output, args.format, guard=getattr(args, "formula_guard", True))
-    if args.output != "-":
-        print(f"wrote {len(frame):,} pairs to {args.output}", file=sys.stderr)
-    return 0
+def register(sub: argparse._SubParsersAction) -> None:
+    """Add new, status, next and label to the command's sub-parsers."""
+    p = command(sub, "new", "Create a project from one table (deduplicate) or two (link).",
+                 "Reads the records, makes candidate pairs (from --pairs, from --block rules, or "
+                 "rules docket chooses from the data), compares them, fits a Fellegi-Sunter model "
+                 "and draws the audit slice.\n\nBlocking keys: col, col[:N], tokens(col), "
+                 "digits(col), year(col); join keys with & inside a rule; several --block rules "
+                 "are OR-ed.\nField kinds: name, text, longtext, code, number, date (or skip).",
+                 "docket new vets.docket --left north.csv --right south.csv "
+                 "--left-id client_id --right-id ref --map owner=owner_name",
+                 new)
+    p.add_argument("project", help="project file to create")
+    p.add_argument("--left", required=True, metavar="FILE",
+                   help="records (CSV, TSV, Parquet, JSONL)")
+    p.add_argument("--right", metavar="FILE", help="second table: link mode")
+    p.add_argument("--id", dest="id_column", metavar="COL", help="id column of both tables")
+    p.add_argument("--left-id", metavar="COL", help="id column of the left table")
+    p.add_argument("--right-id", metavar="COL", help="id column of the right table")
+    p.add_argument("--map", action="append", metavar="L=R",
+                   help="compare left column L with right column R (repeatable)")
+    p.add_argument("--field", action="append", metavar="COL:KIND",
+                   help="set a field's kind instead of the detected one (repeatable)")
+    p.add_argument("--pairs", metavar="FILE",
+                   help="candidate pairs from elsewhere: left id, right id")
+    p.add_argument("--block", action="append", metavar="RULE", help="a blocking rule (repeatable)")
+    p.add_argument("--max-pairs", type=at_least(1), default=5_000_000, metavar="N",
+                   help="stop if blocking would make more pairs than this (default 5,000,000)")
+    p.add_argument("--audit", type=at_least(1), metavar="N",
+                   help="audit slice size (default 5%% of pairs, at most 1,000)")
+    p.add_argument("--overlap", type=share, default=0.2, metavar="SHARE",
+                   help="share of pairs that two reviewers decide (default 0.2)")
+    p.add_argument("--overlap-reviewers", type=at_least(2), default=2, metavar="K",
+                   help="how many different reviewers decide each overlap pair (default 2)")
+    p.add_argument("--one-to-one", action="store_true",
+                   help="link mode: each record matches at most one on the other side")
+    p.add_argument("--threshold", type=share, default=0.5, metavar="P",
+                   help="match probability at which a pair is predicted a match (default 0.5)")
+    p.add_argument("--seed", type=int, default=0, help="seed for the audit slice (default 0)")
+    p.add_argument("--force", action="store_true", help="replace an existing project file")
 
+    p = command(sub, "status", "Show a project's records, pairs, decisions and model.", "",
+                 "docket status vets.docket --json", status)
+    p.add_argument("project")
+    p.add_argument("--json", action="store_true", help="machine-readable output")
 
-def _run_review(path: Path, reviewer: str, mask: list[str]) -> int:
-    try:
-        from .app import run_review
-    except ImportError as exc:  # pragma: no cover - a broken install
-        from docket.core import DocketError
-        raise DocketError(f"the review screen could not load ({exc})") from None
-    run_review(path, reviewer, mask)
-    return 0
+    p = command(sub, "next", "List the next pairs a reviewer's queue would show.",
+                 "Each pair with its probability and why it is queued: uncertain (near the "
+                 "threshold), audit (from the audit slice) or overlap (a second reviewer needed).",
+                 "docket next vets.docket --reviewer maya -n 5", next_pairs)
+    p.add_argument("project")
+    p.add_argument("--reviewer", required=True, metavar="NAME")
+    p.add_argument("-n", type=at_least(0), default=10, metavar="N", help="how many (default 10)")
+    p.add_argument("--json", action="store_true", help="machine-readable output")
 
-
-def review(args: argparse.Namespace) -> int:
-    from .masking import expand_mask, parse_mask
-    mask = parse_mask(args.mask)
-    with _open(args.project) as project:  # fails cleanly before the screen starts
-        expand_mask(project, mask)
-        project.ensure_reviewer(default_reviewer(args.reviewer))
-    return _run_review(Path(args.project), default_reviewer(args.reviewer), mask)
-
-
-def sample_dir() -> Path:
-    return Path(str(resources.files("docket.sample")))
-
-
-def demo_spec(folder: Path) -> Any:
-    from docket.core import NewProject
-    s = sample_dir()
-    return NewProject(path=folder / "vet-clients.docket", left=s / "practice_north.csv",
-                      right=s / "practice_south.csv", left_id="client_id", right_id="ref",
-                      column_map={"owner": "owner_name", "born": "date_of_birth"},
-                      name="vet-clients", force=True)
-
-
-def _refuse_to_discard(path: Path) -> None:
-    """--fresh over a demo that holds the user's own decisions needs saying so."""
-    from docket.core import DocketError
-    from docket.tui.cli_team import DEMO_SECOND_REVIEWER
-    with _open(str(path), readonly=True) as project, project.reading() as conn:
-        n, people = conn.execute(
-            "SELECT count(*), count(DISTINCT reviewer) FROM decisions WHERE reviewer != ?",
-            (DEMO_SECOND_REVIEWER,)).fetchone()
-    if n:
-        raise DocketError(f"{path} holds {n:,} decision(s) by {people} reviewer(s) that "
-                          "--fresh would discard; copy the file to keep them, then pass "
-                          "--fresh --discard-decisions")
-
-
-def demo(args: argparse.Namespace) -> int:
-    from docket.core import Project
-
-    from .progress import progress_bar
-    folder = Path(args.dir)
-    folder.mkdir(parents=True, exist_ok=True)
-    spec = demo_spec(folder)
-    if spec.path.exists() and not args.fresh:
-        print(f"using the existing demo project {spec.path} (pass --fresh to rebuild it)")
-    else:
-        if spec.path.exists() and not args.discard_decisions:
-            _refuse_to_discard(spec.path)
-        with progress_bar() as update:
-            built = Project.create(spec, progress=update)
-        _print_built(built)
-        from .cli_team import DEMO_SECOND_REVIEWER, apply_second_reviewer
-        with Project.open(spec.path) as project:
-            n = apply_second_reviewer(project, sample_dir() / "second_reviewer.csv",
-                                      adjudicator=args.reviewer)
-        print(f"second reviewer {DEMO_SECOND_REVIEWER}: {n:,} labels on overlap pairs; "
-              f"{default_reviewer(args.reviewer)} is an adjudicator")
-    if args.no_open:
-        return status(argparse.Namespace(project=str(spec.path), json=False))
-    _run_review(spec.path, default_reviewer(args.reviewer), [])
-    print(f"your decisions are saved in {spec.path}; next, try:\n"
-          f"  docket status {spec.path}\n  docket agreement {spec.path}\n"
-          f"  docket adjudicate {spec.path}\n  docket evaluate {spec.path}")
-    return 0
+    p = command(sub, "label", "Record decisions in bulk from a file, then refit the model.",
+                 "The file (CSV or JSONL) has columns left_id,right_id,label[,note] or "
+                 "pair_id,label[,note]; label is match, non-match or hold. Every row is checked "
+                 "before anything is written.",
+                 "docket label vets.docket --reviewer maya --from decisions.csv", label)
+    p.add_argument("project")
+    p.add_argument("--reviewer", required=True, metavar="NAME")
+    p.add_argument("--from", dest="source", required=True, metavar="FILE")

@@ -35,11 +35,11 @@ Start = Literal["adjudicate", "agreement", "quality"]
 def binding_ids() -> list[str]:
     """Every binding id of these screens (and of the review screen: one keymap file serves
     both apps, so its review-only entries are not reported as unknown here)."""
-    from .app import binding_ids as review_ids
     from .screens.adjudicate import AdjudicateScreen
     from .screens.agreement import AgreementScreen, DisagreementsScreen
     from .screens.pair_detail import PairDetailScreen
     from .screens.quality import ConflictScreen, QualityScreen
+    from .screens.review import binding_ids as review_ids
     ids = list(review_ids())
     for screen in (AdjudicateScreen, AgreementScreen, DisagreementsScreen, PairDetailScreen,
                    QualityScreen, ConflictScreen):

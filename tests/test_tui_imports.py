@@ -1,0 +1,44 @@
+"""The front end's modules import one way: apps over screens over widgets, commands over one
+shared base; and the front end reaches the project only through the facade."""
+
+import re
+from pathlib import Path
+
+import docket.tui
+
+from .import_graph import first_cycle, imports, modules
+
+TUI = Path(docket.tui.__file__).parent
+MODULES = modules("docket.tui", TUI)
+APPS = ("docket.tui.review_app", "docket.tui.team_app")
+
+
+def test_every_tui_module_is_seen() -> None:
+    assert "docket.tui.screens.review" in MODULES and "docket.tui.cli_base" in MODULES
+
+
+def test_tui_has_no_import_cycle() -> None:
+    cycle = first_cycle(MODULES)
+    assert cycle is None, "import cycle: " + " -> ".join(cycle or [])
+
+
+def test_screens_and_widgets_never_import_an_app_or_a_command() -> None:
+    bad = [f"{m} imports {t}" for m, p in MODULES.items()
+           if m.startswith(("docket.tui.screens", "docket.tui.widgets"))
+           for _, t in imports(m, p, MODULES)
+           if t in APPS or t.startswith("docket.tui.cli")]
+    assert not bad, "\n".join(bad)
+
+
+def test_command_modules_share_only_the_base() -> None:
+    # cli.py gathers the command modules; they import the base, never cli.py itself
+    bad = [f"{m} imports {t}" for m, p in MODULES.items() if m != "docket.tui.cli"
+           for _, t in imports(m, p, MODULES) if t == "docket.tui.cli"]
+    assert not bad, "\n".join(bad)
+
+
+def test_no_connection_or_sql_in_the_front_end() -> None:
+    sql = re.compile(r"\.connection\b|\.execute\(|\bSELECT\b|\bINSERT\b|\bUPDATE\b")
+    bad = [f"{p.relative_to(TUI)}:{n}: {line.strip()}" for p in MODULES.values()
+           for n, line in enumerate(p.read_text().splitlines(), 1) if sql.search(line)]
+    assert not bad, "\n".join(bad)

@@ -1,0 +1,50 @@
+"""What every command module of the CLI shares: declaring a command, opening a project, the
+reviewer's name, the one-line warning. The ``cli_*`` modules import this; nothing here imports
+them.
+"""
+
+from __future__ import annotations
+
+import argparse
+import getpass
+import os
+import sys
+from collections.abc import Callable
+from typing import Any
+
+
+class Formatter(argparse.RawDescriptionHelpFormatter):
+    def __init__(self, prog: str) -> None:
+        super().__init__(prog, max_help_position=32, width=100)
+
+
+def command(sub: argparse._SubParsersAction, name: str, summary: str, description: str,
+             example: str, func: Callable[[argparse.Namespace], int]) -> argparse.ArgumentParser:
+    p = sub.add_parser(name, help=summary, description=f"{summary}\n\n{description}".strip(),
+                       epilog=f"example:\n  {example}", formatter_class=Formatter)
+    p.set_defaults(func=func)
+    return p
+
+
+def version() -> str:
+    from importlib.metadata import PackageNotFoundError
+    from importlib.metadata import version as v
+    try:
+        return v("docket")
+    except PackageNotFoundError:  # running from a source tree
+        return "0+unknown"
+
+
+def default_reviewer(given: str | None) -> str:
+    name = given or os.environ.get("DOCKET_REVIEWER") or getpass.getuser()
+    return name.strip()
+
+
+def warn_line(message: Warning | str, category: type, *rest: Any, **kw: Any) -> None:
+    """How the command line shows a warning: one line, no source excerpt."""
+    print(f"docket: warning: {message}", file=sys.stderr)
+
+
+def open_project(path: str, readonly: bool = False) -> Any:
+    from docket.core import Project
+    return Project.open(path, readonly=readonly)
