@@ -104,6 +104,14 @@ class Project(ProjectFile):
         names = [d[0] for d in cur.description]
         return {k: v for k, v in zip(names, row, strict=True) if k != column}
 
+    def record_columns(self) -> list[str]:
+        """Every column of the project's records, left table first (ids included)."""
+        tables = ["left_records", "right_records"] if self.link else ["left_records"]
+        with self._lock:
+            names = [r[1] for t in tables
+                     for r in self._conn.execute(f"PRAGMA table_info({t})")]
+        return list(dict.fromkeys(names))
+
     def record(self, side: str, record_id: str) -> dict[str, str | None]:
         with self._lock:
             return self._record(side, record_id)

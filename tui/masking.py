@@ -42,10 +42,7 @@ class Mask:
 
 def record_columns(project: Any) -> list[str]:
     """Every column of the project's records, left table first (ids included)."""
-    tables = ["left_records", "right_records"] if project.link else ["left_records"]
-    with project.reading() as conn:
-        names = [r[1] for t in tables for r in conn.execute(f"PRAGMA table_info({t})")]
-    return list(dict.fromkeys(names))
+    return list(project.record_columns())
 
 
 def expand_mask(project: Any, names: Sequence[str]) -> list[str]:
