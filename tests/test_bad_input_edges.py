@@ -19,7 +19,7 @@ from .test_bad_input import assert_one_line_error, run, write
 
 
 def _wide(d: Path) -> Path:
-    cols = ["id"] + [f"c{i}" for i in range(2000)]
+    cols = ["id"] + [f"c{i}" for i in range(2000)]  # a table too wide for one statement
     return write(d / "wide.csv", ",".join(cols) + "\n"
                  + "".join(",".join([str(r)] + ["v"] * 2000) + "\n" for r in range(3)))
 
@@ -31,7 +31,7 @@ def _utf16_no_bom(d: Path) -> Path:
 
 
 CASES = {
-    "2,001 columns": (_wide, ["wide.csv", "2,001 columns", "2,000"]),
+    "2,001 columns": (_wide, ["wide.csv", "2,001 columns", "999"]),
     "names collide after trimming": (lambda d: write(d / "trim.csv", "id,name, name \n1,a,b\n"),
                                      ["trim.csv", "columns 2 and 3", "'name'", "rename"]),
     "names repeated": (lambda d: write(d / "rep.csv", "id,name,name\n1,a,b\n"),
@@ -44,6 +44,9 @@ CASES = {
                  ["long.csv", "line 3", "4 of the header's 2"]),
     "JSON array of numbers": (lambda d: write(d / "nums.json", json.dumps(list(range(305)))),
                               ["nums.json", "item 1", "not an object"]),
+    "JSON object of records": (lambda d: write(d / "wrap.json", json.dumps(
+        {"records": [{"id": 1, "name": "a"}, {"id": 2, "name": "b"}]})),
+        ["wrap.json", "record 1, 'records' holds a list", "flat object"]),
     "UTF-16 without a mark": (_utf16_no_bom, ["nobom.csv", "byte-order mark", "UTF-8"]),
 }
 

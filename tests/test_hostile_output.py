@@ -17,7 +17,8 @@ from docket.tui.cli import main
 # An OSC 52 clipboard write, a CSI screen clear, a bare CR that overwrites the line, a bell,
 # a NUL, a C1 CSI (0x9b) and a BiDi override: each would act on a terminal if printed raw.
 OSC52 = "\x1b]52;c;cm0gLXJmIH4=\x07"
-HOSTILE = [OSC52, "\x1b[2J", "ok\rEVIL", "bell\x07", "nul\x00", "c1\x9b31m", "rtl\u202egnp"]
+HOSTILE = [OSC52, "\x1b[2J", "ok\rEVIL", "bell\x07", "nul\x00", "c1\x9b31m", "rtl\u202egnp",
+           "two\nlines"]
 RAW = re.compile("[\x00-\x09\x0b-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
 REVIEWER = "maya" + OSC52 + "\r"
 ADJUDICATOR = "ines\x1b[31m"
@@ -26,8 +27,9 @@ ADJUDICATOR = "ines\x1b[31m"
 def _records(path: Path, ids: list[str], column: str) -> Path:
     rows = [{"id": i, "name": n, column: t} for i, n, t in
             zip(ids, ["Anna Berg", "Jon Dahl", "Kari Lund", "Per Moe", "Ola Nor", "Eva Ask",
-                      "Liv Dam"], ["Oslo", "Bergen", "Oslo", "Tromsø", "Oslo", "Bergen", "Oslo"],
-                strict=False)]
+                      "Liv Dam", "Siv Holm"],
+                     ["Oslo", "Bergen", "Oslo", "Tromsø", "Oslo", "Bergen", "Oslo", "Moss"],
+                strict=True)]
     path.write_text("".join(json.dumps(r) + "\n" for r in rows), encoding="utf-8")
     return path
 
@@ -48,7 +50,7 @@ def hostile(tmp_path: Path) -> Path:
     # The command line refuses such names; a forged copy or an old project can still hold
     # them, so they are written here through the facade.
     with Project.open(project) as opened:
-        for k, item in enumerate(opened.next_pairs("x", 20)):
+        for k, item in enumerate(opened.next_pairs("x", 20)[:4]):  # some stay queued
             opened.decide(item.pair_id, REVIEWER, "match" if k % 2 else "non-match")
             opened.decide(item.pair_id, "nul\x00" + HOSTILE[5], "match")
     return project
@@ -116,3 +118,17 @@ def test_json_output_keeps_hostile_values_exact(hostile: Path,
     assert main(["export", str(hostile), "-o", "-", "--format", "jsonl"]) == 0
     lines = capsys.readouterr().out.splitlines()
     assert {json.loads(line)["left_id"] for line in lines} == {f"L{h}" for h in HOSTILE}
+
+
+def test_a_newline_in_a_name_or_id_forges_no_line(hostile: Path,
+                                                  capsys: pytest.CaptureFixture[str]) -> None:
+    with Project.open(hostile) as opened:
+        opened.decide(1, "two\nlines", "match")
+    capsys.readouterr()
+    for argv in (["status", str(hostile)], ["reviewers", str(hostile), "list"]):
+        assert main(argv) == 0
+        out = capsys.readouterr().out
+        assert "two\\nlines" in out and "\nlines" not in out, argv
+    assert main(["next", str(hostile), "--reviewer", "new", "-n", "50"]) == 0
+    out = capsys.readouterr().out
+    assert all(line.lstrip()[:1].isdigit() for line in out.splitlines()[1:]), out

@@ -33,7 +33,8 @@ def build_parser() -> argparse.ArgumentParser:
 
 def main(argv: list[str] | None = None) -> int:
     with safe_streams(), warnings.catch_warnings():  # every line printed reaches it inert
-        warnings.simplefilter("always")
+        warnings.simplefilter("default")  # each distinct message once
+        warnings.filterwarnings("ignore", message="DataFrame is highly fragmented")
         warnings.showwarning = warn_line  # one line each, on standard error
         return _main(argv)
 

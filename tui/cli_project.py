@@ -9,7 +9,7 @@ from typing import Any
 
 from .cli_base import command, default_reviewer, open_project
 from .cli_checks import at_least, share
-from .terminal import json_text
+from .terminal import json_text, shown
 
 
 def _ratio(value: float) -> str:
@@ -99,7 +99,7 @@ def status(args: argparse.Namespace) -> int:
           f"pairs ({dec['log_entries']:,} log entries, {dec['retractions']:,} retractions)")
     for name, c in dec["per_reviewer"].items():
         counts = ", ".join(f"{k} {v:,}" for k, v in c.items() if k != "role")
-        print(f"  {name:<16} {c['role']:<12} {counts}")
+        print(f"  {shown(name):<16} {c['role']:<12} {counts}")
     print(f"model        ranker {model['ranker']} ({model['ranker_note']}); prior "
           f"{model['prior']:.4g}; threshold {model['threshold']}"
           + ("; one-to-one" if model["one_to_one"] else ""))
@@ -128,7 +128,8 @@ def next_pairs(args: argparse.Namespace) -> int:
         return 0
     print(f"{'pair_id':>8}  {'left_id':<22} {'right_id':<22} {'probability':>11}  why")
     for i in items:
-        print(f"{i.pair_id:>8}  {i.left_id:<22} {i.right_id:<22} {i.probability:>11.4f}  "
+        print(f"{i.pair_id:>8}  {shown(i.left_id):<22} {shown(i.right_id):<22} "
+              f"{i.probability:>11.4f}  "
               f"{i.reason}")
     if not items:
         print("(the queue is empty for this reviewer)")

@@ -14,7 +14,7 @@ from .text_tables import check_names, read_delimited, read_json
 
 FORMATS = {".csv": "csv", ".tsv": "tsv", ".tab": "tsv", ".parquet": "parquet", ".pq": "parquet",
            ".jsonl": "jsonl", ".ndjson": "jsonl", ".json": "jsonl"}
-MAX_COLUMNS = 2000  # SQLite's default limit on the columns of one table
+MAX_COLUMNS = 999  # sqlite-utils writes a record as one statement of at most 999 values
 
 
 @dataclass

@@ -126,7 +126,7 @@ def read_json(path: Path) -> pd.DataFrame:
     encoding = bom_encoding(head) or "utf-8"
     first = head.decode(encoding, errors="ignore").lstrip("\ufeff \t\r\n")[:1]
     if first != "[":
-        return pd.read_json(path, lines=True, dtype=False, encoding=encoding)
+        return _flat(path, pd.read_json(path, lines=True, dtype=False, encoding=encoding))
     try:
         data = json.loads(path.read_text(encoding=encoding))
     except (json.JSONDecodeError, UnicodeDecodeError) as exc:
@@ -137,4 +137,17 @@ def read_json(path: Path) -> pd.DataFrame:
         raise DocketError(f"{path}: item {odd + 1} of the JSON array is a "
                           f"{type(data[odd]).__name__}, not an object; give one object per "
                           'record, e.g. [{"id": 1, "name": "..."}]')
-    return pd.DataFrame.from_records(data)
+    return _flat(path, pd.DataFrame.from_records(data))
+
+
+def _flat(path: Path, frame: pd.DataFrame) -> pd.DataFrame:
+    """Refuse nested values: a record is one flat object (``{"records": [...]}`` is not)."""
+    for col in frame.columns:
+        if frame[col].dtype == object:
+            nested = frame[col].map(lambda v: isinstance(v, (list, dict))).to_numpy()
+            if nested.any():
+                i = int(nested.nonzero()[0][0])
+                kind = "list" if isinstance(frame[col].iloc[i], list) else "object"
+                raise DocketError(f"{path}: record {i + 1}, '{col}' holds a {kind}; give one "
+                                  "flat object per record (values text, numbers or null)")
+    return frame
