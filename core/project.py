@@ -6,12 +6,12 @@ and no statistics.
 
 from __future__ import annotations
 
-import math
 import threading
 from collections.abc import Collection
 from typing import TYPE_CHECKING
 
 from .errors import DocketError
+from .matching.explain import explanation
 from .ordering import queue
 from .reviewing import missed
 from .reviewing.gold import Gold, gold_labels
@@ -75,8 +75,8 @@ class Project(ProjectFile):
             if not source:
                 break
             pid, a, b, p, is_audit, overlap, n_labels = source.pop(0)
-            reason = "audit" if is_audit else ("overlap" if overlap and n_labels else
-                                               "uncertain")
+            reason = queue.reason_for(float(p), self.threshold, bool(is_audit),
+                                      bool(overlap and n_labels))
             out.append(QueueItem(pid, a, b, float(p), reason))
         return out
 
@@ -122,13 +122,13 @@ class Project(ProjectFile):
             sims = ", ".join(store.similarity_column(f.name) for f in self.fields)
             row = self._conn.execute(
                 f"SELECT p.left_id, p.right_id, p.audit, p.overlap, p.n_labels, t.levels, "
-                f"t.weight, t.probability, {sims} FROM pairs p JOIN patterns t "
+                f"t.probability, {sims} FROM pairs p JOIN patterns t "
                 "ON t.pattern_id = p.pattern_id WHERE p.pair_id = ?", (pair_id,)).fetchone()
             if row is None:
                 raise DocketError(f"no pair {pair_id} in {self.path}")
-            left_id, right_id, audit, overlap, n_labels, levels, weight, prob = row[:8]
-            weights = {(f, lv): (name, w) for f, lv, name, w in self._conn.execute(
-                "SELECT field, level, level_name, weight FROM model")}
+            left_id, right_id, audit, overlap, n_labels, levels, prob = row[:7]
+            names = {(f, lv): name for f, lv, name in self._conn.execute(
+                "SELECT field, level, level_name FROM model")}
             left = self._record("left", left_id)
             right = self._record("right", right_id)
             if self.link:
@@ -140,22 +140,23 @@ class Project(ProjectFile):
                     "SELECT count(*) - 1 FROM pairs WHERE left_id = ? OR right_id = ?",
                     (rid, rid)).fetchone()[0] for rid in (left_id, right_id)]
         lvls = [int(x) for x in levels.split(",")]
+        table = explanation(self.meta)
         rows = []
-        for f, lv, sim in zip(self.fields, lvls, row[8:], strict=True):
-            name, w = weights[(f.name, lv)]
+        for j, (f, lv, sim) in enumerate(zip(self.fields, lvls, row[7:], strict=True)):
             rows.append(FieldComparison(f.name, f.kind, left.get(f.left_column),
-                                        right.get(f.right_column), sim, lv, name, float(w)))
+                                        right.get(f.right_column), sim, lv, names[(f.name, lv)],
+                                        float(table.parts[j][lv])))
         compared_l = {f.left_column for f in self.fields}
         compared_r = {f.right_column for f in self.fields}
         if reason is None:
-            reason = "audit" if audit else ("overlap" if overlap and n_labels else "uncertain")
-        prior = float(self.meta["fs_model"]["prior"])  # EM keeps it strictly inside (0, 1)
+            reason = queue.reason_for(float(prob), self.threshold, bool(audit),
+                                      bool(overlap and n_labels))
+        log_odds = table.base + sum(r.contribution for r in rows)
         return PairCard(
-            pair_id, left_id, right_id, float(prob), float(weight),
-            math.log2(prior / (1.0 - prior)), reason,
+            pair_id, left_id, right_id, float(prob), log_odds, table.base, reason,
             tuple(rows), {k: v for k, v in left.items() if k not in compared_l},
             {k: v for k, v in right.items() if k not in compared_r}, int(counts[0]),
-            int(counts[1]), self.link)
+            int(counts[1]), self.link, table.model)
 
     def candidates_of(self, side: str, record_id: str) -> list[QueueItem]:
         """Every candidate pair that names this record (the evidence panel's 'others')."""

@@ -2,8 +2,10 @@
 
 from __future__ import annotations
 
+import math
 from typing import Any
 
+from .matching.explain import explanation
 from .reviewing import gold, missed
 from .storage import store
 from .storage.project_file import ProjectFile
@@ -11,6 +13,26 @@ from .storage.project_file import ProjectFile
 CAUTION = ("Records may be personal data: keep the project file private (it is created readable "
            "by you alone), mask what reviewers need not see, and let people review before any "
            "merge. Follow your local data-protection law and your organisation's policy.")
+
+
+def how_fitted(fs: dict) -> list[str]:
+    """What the label-free start did, in a few plain sentences."""
+    out = []
+    if fs.get("u_source") == "random pairs":
+        out.append(f"chance agreement (u) measured on {fs.get('sampled_pairs', 0):,} random "
+                   "record pairs, exact agreement from value frequencies")
+    else:
+        out.append("chance agreement (u) estimated among the candidate pairs")
+    out.append(f"agreement among matches (m) by EM, {fs.get('iterations', 0)} rounds"
+               + (f", {fs['labels_used']:,} labels held fixed" if fs.get("labels_used") else ""))
+    pooled = [f"{f}: {g}" for f, groups in zip(fs["fields"], fs.get("pooled", []), strict=False)
+              for g in groups]
+    out.append("levels kept in order" + (f" by pooling {'; '.join(pooled)}" if pooled
+                                          else " (no pooling needed)"))
+    if fs.get("frequent"):
+        out.append("frequent values get their own exact level: " + ", ".join(
+            f"{f} ({len(v):,} values)" for f, v in fs["frequent"].items()))
+    return out
 
 
 def status(project: ProjectFile) -> dict[str, Any]:
@@ -28,11 +50,12 @@ def status(project: ProjectFile) -> dict[str, Any]:
             "GROUP BY reviewer, label ORDER BY reviewer, label"):
         per_reviewer.setdefault(reviewer, {})[label] = n
     roles = dict(conn.execute("SELECT name, role FROM reviewers"))
+    table = explanation(meta)
     model = []
-    for f in project.fields:
-        levels = [{"level": name, "m": m, "u": u, "weight": round(w, 3)}
-                  for name, m, u, w in conn.execute(
-                      "SELECT level_name, m, u, weight FROM model WHERE field = ? ORDER BY level",
+    for j, f in enumerate(project.fields):
+        levels = [{"level": name, "m": m, "u": u, "odds_factor": math.exp(table.parts[j][lv])}
+                  for lv, name, m, u in conn.execute(
+                      "SELECT level, level_name, m, u FROM model WHERE field = ? ORDER BY level",
                       (f.name,))]
         model.append({"field": f.name, "kind": f.kind, "levels": levels})
     fs = meta["fs_model"]
@@ -67,6 +90,8 @@ def status(project: ProjectFile) -> dict[str, Any]:
                             not one("SELECT count(*) FROM current") else
                             "labels recorded, not refit yet"),
             "prior": fs["prior"],
+            "odds_before_fields": math.exp(table.base),
+            "how_fitted": how_fitted(fs),
             "threshold": meta["threshold"],
             "one_to_one": meta.get("one_to_one", False),
             "refits": meta.get("refits", 0),

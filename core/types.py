@@ -27,7 +27,7 @@ class FieldComparison:
     similarity: float | None  # None when either side is missing
     level: int  # index into the field's levels
     level_name: str  # "exact", "close", ..., "missing"
-    weight: float  # Fellegi–Sunter match weight of that level, log2(m/u)
+    contribution: float  # what this level adds to the log-odds shown (natural log; 0 missing)
 
 
 @dataclass(frozen=True)
@@ -38,15 +38,16 @@ class PairCard:
     left_id: str
     right_id: str
     probability: float
-    weight: float  # total match weight: sum of field weights
-    prior_weight: float  # log2(prior / (1 - prior))
-    reason: str  # why it is in the queue: uncertain, audit or overlap
+    log_odds: float  # ln(probability / (1 - probability)) = base_log_odds + contributions
+    base_log_odds: float  # the ranking model's log-odds before any field is looked at
+    reason: str  # why it is in the queue: uncertain, audit, overlap, ...
     fields: tuple[FieldComparison, ...]
     left_extra: dict[str, str | None] = field(default_factory=dict)  # columns not compared
     right_extra: dict[str, str | None] = field(default_factory=dict)
     left_candidates: int = 0  # other candidate pairs that name the left record
     right_candidates: int = 0
     link: bool = True  # two tables; False: one table deduplicated, no left or right side
+    model: str = "fellegi-sunter"  # the model that ranks the queue and gives these numbers
 
     @property
     def sides(self) -> tuple[str, str]:

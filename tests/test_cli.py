@@ -57,10 +57,11 @@ def test_link_project_from_start_to_export(tiny_tables, tmp_path: Path, capsys) 
         frames[ext] = (pd.read_csv(target, dtype={"left_id": str, "right_id": str}) if ext == "csv"
                        else pq.read_table(target).to_pandas() if ext == "parquet"
                        else pd.read_json(target, lines=True, dtype={"left_id": str}))
-    cols = {"pair_id", "left_id", "right_id", "sim_name", "sim_town", "sim_born", "match_weight",
+    cols = {"pair_id", "left_id", "right_id", "sim_name", "sim_town", "sim_born", "log_odds",
             "probability", "predicted"}
     for frame in frames.values():
         assert cols <= set(frame.columns) and len(frame) == info["pairs"]["candidates"]
+        assert "match_weight" not in frame.columns
     assert main(["export", str(project), "--what", "scores", "-o", "-"]) == 0
     assert capsys.readouterr().out.startswith("pair_id,left_id,right_id")
 

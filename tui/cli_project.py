@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import argparse
+import math
 import shlex
 from pathlib import Path
 from typing import Any
@@ -100,13 +101,19 @@ def status(args: argparse.Namespace) -> int:
     for name, c in dec["per_reviewer"].items():
         counts = ", ".join(f"{k} {v:,}" for k, v in c.items() if k != "role")
         print(f"  {shown(name):<16} {c['role']:<12} {counts}")
-    print(f"model        ranker {model['ranker']} ({model['ranker_note']}); prior "
-          f"{model['prior']:.4g}; threshold {model['threshold']}"
+    from docket.core.matching.explain import MODEL_NAMES, factor_text, odds_text
+
+    print(f"model        {MODEL_NAMES.get(model['ranker'], model['ranker'])} ranks the queue "
+          f"({model['ranker_note']}); threshold {model['threshold']}"
           + ("; one-to-one" if model["one_to_one"] else ""))
-    print("match weights (log2 m/u) per field and level:")
+    for line in model["how_fitted"]:
+        print(f"  {line}")
+    print(f"odds before the fields {odds_text(math.log(model['odds_before_fields']))}; "
+          "each field's level multiplies them:")
     for f in model["fields"]:
-        levels = "  ".join(f"{lv['level']} {lv['weight']:+.2f}" for lv in f["levels"])
-        print(f"  {f['field']:<14} {f['kind']:<9} {levels}")
+        levels = " · ".join(f"{lv['level']} {factor_text(math.log(lv['odds_factor']))}"
+                            for lv in f["levels"])
+        print(f"  {f['field']:<14} {levels}")
     pol = info["gold_policy"]
     print(f"gold labels  {info['gold_labels']:,} (policy: at least {pol['min_reviews']} "
           f"review(s); {pol['rules']})")

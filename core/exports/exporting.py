@@ -38,8 +38,9 @@ def output_format(target: str, fmt: str | None) -> str:
 def scores_frame(project: ProjectFile) -> pd.DataFrame:
     sims = ", ".join(f"p.{store.similarity_column(f.name)}" for f in project.fields)
     frame = pd.read_sql_query(
-        f"SELECT p.pair_id, p.left_id, p.right_id, {sims}, t.weight AS match_weight, "
-        "t.fs_probability, t.probability FROM pairs p JOIN patterns t "
+        f"SELECT p.pair_id, p.left_id, p.right_id, {sims}, t.probability, "
+        "t.weight AS log_odds, t.fs_probability AS fellegi_sunter_probability "
+        "FROM pairs p JOIN patterns t "
         "ON t.pattern_id = p.pattern_id ORDER BY p.pair_id", project.connection)
     flags = predicted(frame, project.threshold, bool(project.meta.get("one_to_one")))
     frame["predicted"] = np.where(flags, "match", "non-match")

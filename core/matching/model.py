@@ -8,7 +8,7 @@ back as one row per pattern, never one per pair.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -26,6 +26,16 @@ class FSModel:
     prior: float
     iterations: int = 0
     labels_used: int = 0
+    u_source: str = "candidates"  # "random pairs" when u came from a sample of all pairs
+    pooled: list[list[str]] = field(default_factory=list)  # per field: levels merged to keep order
+    sampled_pairs: int = 0  # size of the random sample u was measured on
+    frequent: dict[str, list] = field(default_factory=dict)  # field -> values "exact, common"
+    population: int = 0  # all possible record pairs (the prior is a share of these)
+
+    def log_odds_table(self) -> tuple[float, list[np.ndarray]]:
+        """Natural log-odds before the fields, and each field's contribution per level."""
+        base = math.log(self.prior / (1.0 - self.prior))
+        return base, [w * math.log(2.0) for w in self.weights()]
 
     def weights(self) -> list[np.ndarray]:
         """log2(m/u) per field and level; the missing level weighs 0."""
@@ -52,12 +62,16 @@ class FSModel:
     def to_dict(self) -> dict:
         return {"fields": self.fields, "level_names": self.level_names, "m": self.m,
                 "u": self.u, "prior": self.prior, "iterations": self.iterations,
-                "labels_used": self.labels_used}
+                "labels_used": self.labels_used, "u_source": self.u_source,
+                "pooled": self.pooled, "sampled_pairs": self.sampled_pairs,
+                "frequent": self.frequent, "population": self.population}
 
     @classmethod
     def from_dict(cls, d: dict) -> FSModel:
         return cls(d["fields"], d["level_names"], d["m"], d["u"], d["prior"],
-                   d.get("iterations", 0), d.get("labels_used", 0))
+                   d.get("iterations", 0), d.get("labels_used", 0),
+                   d.get("u_source", "candidates"), d.get("pooled", []),
+                   d.get("sampled_pairs", 0), d.get("frequent", {}), d.get("population", 0))
 
 
 def posterior(weight: np.ndarray | float, prior: float) -> np.ndarray:
@@ -73,11 +87,18 @@ def _level_counts(patterns: np.ndarray, weights: np.ndarray, n_levels: int, f: i
 def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]],
            fields: list[str], matches: np.ndarray | None = None,
            non_matches: np.ndarray | None = None, max_iter: int = 500, tol: float = 1e-7,
-           start: FSModel | None = None) -> FSModel:
+           start: FSModel | None = None, u_random: list[np.ndarray] | None = None,
+           population: float | None = None) -> FSModel:
     """EM over patterns; ``matches``/``non_matches`` count labelled pairs per pattern.
 
-    Labelled pairs keep their class in every E-step (semi-supervised EM). The fit is a pure
-    function of its inputs, so a refit on the same data gives the same parameters.
+    Labelled pairs keep their class in every E-step (semi-supervised EM). EM over candidates
+    finds m well, but its u describes candidates, which were chosen because they agree. With
+    ``u_random`` (u measured on a random sample of all record pairs) and ``population`` (the
+    number of all possible pairs), the result uses that u instead, and the prior becomes the
+    share of matches among all pairs (EM's matches among candidates over ``population``), so
+    that agreement on a blocked field counts as the evidence it is. Levels are kept in order
+    (a better level never weighs less than a worse one: pool adjacent violators). The fit is a
+    pure function of its inputs, so a refit on the same data gives the same parameters.
     """
     patterns = np.asarray(patterns, dtype=np.int64)
     counts = np.asarray(counts, dtype=float)
@@ -115,13 +136,53 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
         m, u, prior = new_m, new_u, new_prior
         if delta < tol:
             break
-    for f, k in enumerate(n_lv):
-        # A level no pair reaches carries no evidence: give it weight 0, not a smoothing artefact.
-        unseen = _level_counts(patterns, counts, k, f) == 0
-        m[f][unseen] = u[f][unseen] = np.minimum(m[f][unseen], u[f][unseen])
-    model = FSModel(fields, level_names, [list(map(float, x)) for x in m],
-                    [list(map(float, x)) for x in u], prior, it, int(lab_m.sum() + lab_n.sum()))
-    return _oriented(model)
+    model = _oriented(FSModel(fields, level_names, [list(x) for x in m], [list(x) for x in u],
+                              prior, it, int(lab_m.sum() + lab_n.sum())))
+    m = [np.asarray(x) for x in model.m]
+    u = [np.asarray(x) for x in model.u]
+    prior = model.prior
+    source = "candidates"
+    if u_random is not None and population:
+        u = [np.asarray(x, dtype=float) for x in u_random]
+        prior = float(np.clip(prior * counts.sum() / population, 1e-12, 1 - 1e-6))
+        source = "random pairs"
+    m = [monotone_m(mf, uf) for mf, uf in zip(m, u, strict=True)]
+    pooled = [_pooled_names(m[f], u[f], level_names[f]) for f in range(len(n_lv))]
+    return FSModel(fields, level_names, [list(map(float, x)) for x in m],
+                   [list(map(float, x)) for x in u], prior, it, model.labels_used, source,
+                   pooled)
+
+
+def monotone_m(m: np.ndarray, u: np.ndarray) -> np.ndarray:
+    """m adjusted so that m/u never rises from a level to the next worse one.
+
+    Weighted isotonic regression of the ratio m/u (weights u, decreasing over levels) is pool
+    adjacent violators on likelihood ratios: a pooled run gets sum(m)/sum(u), and the total of
+    m is unchanged, so it stays a distribution.
+    """
+    ratio = m / u
+    if np.all(np.diff(ratio) <= 0):
+        return m
+    from sklearn.isotonic import IsotonicRegression  # only fitting needs it
+
+    fitted = IsotonicRegression(increasing=False).fit_transform(
+        np.arange(len(m), dtype=float), ratio, sample_weight=u)
+    out = fitted * u
+    return out / out.sum()
+
+
+def _pooled_names(m: np.ndarray, u: np.ndarray, names: list[str]) -> list[str]:
+    """Groups of adjacent levels that ended up with one weight (for status to report)."""
+    w = np.log(np.asarray(m) / np.asarray(u))
+    groups, run = [], [names[0]]
+    for i in range(1, len(w)):
+        if abs(w[i] - w[i - 1]) < 1e-9:
+            run.append(names[i])
+        else:
+            groups.append(run)
+            run = [names[i]]
+    groups.append(run)
+    return [" + ".join(g) for g in groups if len(g) > 1]
 
 
 def _initial_m(k: int) -> np.ndarray:
@@ -136,4 +197,5 @@ def _oriented(model: FSModel) -> FSModel:
     if agree >= 0:
         return model
     return FSModel(model.fields, model.level_names, model.u, model.m, 1.0 - model.prior,
-                   model.iterations, model.labels_used)
+                   model.iterations, model.labels_used, model.u_source, model.pooled,
+                   model.sampled_pairs, model.frequent, model.population)

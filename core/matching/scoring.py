@@ -14,7 +14,6 @@ import pandas as pd
 from ..records import normalise
 from ..types import FieldSpec
 from . import compare
-from .model import FSModel
 
 CHUNK = 250_000
 
@@ -30,10 +29,17 @@ def normalised(fields: list[FieldSpec], frame: pd.DataFrame, side: str) -> dict[
 
 def compare_pairs(fields: list[FieldSpec], left_norm: dict[str, np.ndarray],
                   right_norm: dict[str, np.ndarray], li: np.ndarray, ri: np.ndarray,
-                  progress: Callable[[int, int], None] | None = None
-                  ) -> tuple[np.ndarray, np.ndarray]:
-    """Similarities (float32, NaN = missing) and levels (int8), shape (pairs, fields)."""
+                  progress: Callable[[int, int], None] | None = None,
+                  frequent: dict[str, list] | None = None) -> tuple[np.ndarray, np.ndarray]:
+    """Similarities (float32, NaN = missing) and levels (int8), shape (pairs, fields).
+
+    ``frequent`` names, per field, the values whose exact agreement is the level "exact,
+    common" (see :mod:`random_pairs`); every other level of that field moves down by one.
+    """
     n = len(li)
+    frequent = frequent or {}
+    is_common = {name: pd.Series(left_norm[name], dtype=object).isin(values).to_numpy()
+                 for name, values in frequent.items()}
     sims = np.empty((n, len(fields)), dtype=np.float32)
     levels = np.empty((n, len(fields)), dtype=np.int8)
     steps = max(1, -(-n // CHUNK)) * len(fields)
@@ -43,6 +49,9 @@ def compare_pairs(fields: list[FieldSpec], left_norm: dict[str, np.ndarray],
         for j, f in enumerate(fields):
             s, lv = compare.compare_field(f.kind, left_norm[f.name], right_norm[f.name],
                                           li[sl], ri[sl])
+            if f.name in is_common:
+                lv = np.where(lv == 0, is_common[f.name][li[sl]].astype(np.int8),
+                              lv + 1).astype(np.int8)
             sims[sl, j] = s
             levels[sl, j] = lv
             done += 1
@@ -51,7 +60,7 @@ def compare_pairs(fields: list[FieldSpec], left_norm: dict[str, np.ndarray],
     return sims, levels
 
 
-def pattern_codes(levels: np.ndarray, radix: int = 8) -> np.ndarray:
+def pattern_codes(levels: np.ndarray, radix: int = 16) -> np.ndarray:
     """One int64 per pair for its level vector (mixed radix), for fast grouping."""
     code = np.zeros(len(levels), dtype=np.int64)
     for j in range(levels.shape[1]):
@@ -61,13 +70,11 @@ def pattern_codes(levels: np.ndarray, radix: int = 8) -> np.ndarray:
 
 def group_patterns(levels: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Distinct level vectors, the pattern index of each pair, and each pattern's count."""
-    codes = pattern_codes(levels)
-    _, first, inverse, counts = np.unique(codes, return_index=True, return_inverse=True,
-                                          return_counts=True)
+    if levels.shape[1] * 4 < 63:  # one int64 per pair: much faster than unique rows
+        _, first, inverse, counts = np.unique(pattern_codes(levels), return_index=True,
+                                              return_inverse=True, return_counts=True)
+    else:
+        _, first, inverse, counts = np.unique(levels, axis=0, return_index=True,
+                                              return_inverse=True, return_counts=True)
+        inverse = inverse.reshape(-1)
     return levels[first].astype(np.int64), inverse, counts
-
-
-def score_levels(model: FSModel, levels: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Total match weight and match probability for rows of levels."""
-    levels = np.asarray(levels, dtype=np.int64)
-    return model.pattern_weight(levels), model.probability(levels)

@@ -16,6 +16,20 @@ AUDIT_EVERY = 5  # every fifth pair a reviewer is shown comes from the audit sli
 MIN_PER_STRATUM = 5
 
 
+UNCERTAIN_BAND = 0.35  # |p - threshold| below this is called "uncertain"
+
+
+def reason_for(probability: float, threshold: float, audit: bool, second_look: bool) -> str:
+    """Why a pair is offered: named for what it is, "uncertain" only near the boundary."""
+    if audit:
+        return "audit"
+    if second_look:
+        return "overlap"
+    if abs(probability - threshold) < UNCERTAIN_BAND:
+        return "uncertain"
+    return "likely match" if probability >= threshold else "likely non-match"
+
+
 def priority(probability: np.ndarray, threshold: float) -> np.ndarray:
     """Distance from the decision boundary: the smallest is the most uncertain, shown first."""
     return np.abs(np.asarray(probability, dtype=float) - threshold)

@@ -25,6 +25,7 @@ from ..reviewing.agreement import cohen_kappa, json_ready
 from ..reviewing.gold import gold_labels
 from ..storage import store
 from ..storage.project_file import ProjectFile
+from ..storage.refit import audit_scores
 from . import estimates
 from .intervals import clopper_pearson
 
@@ -90,6 +91,10 @@ def model_scores(project: ProjectFile) -> pd.Series:
     frame = pd.read_sql_query(
         "SELECT p.pair_id, p.left_id, p.right_id, t.probability FROM pairs p "
         "JOIN patterns t ON t.pattern_id = p.pattern_id", project.connection)
+    # Labelled audit pairs are judged by a model fitted without them (see core.refit).
+    crossed = audit_scores(project.meta)
+    if crossed:
+        frame["probability"] = frame["pair_id"].map(crossed).fillna(frame["probability"])
     score = frame["probability"].to_numpy(dtype=float)
     if project.meta.get("one_to_one"):
         score = np.where(predicted(frame, 0.0, True), score, 0.0)
@@ -244,6 +249,8 @@ def evaluate(project: ProjectFile, thresholds: Sequence[float] | None = None,
                   target_recall, confidence, n_boot, seed)
     one = bool(project.meta.get("one_to_one"))
     out["model"] = {"ranker": project.meta.get("ranker"), "one_to_one": one,
+                    "audit_labels": "cross-fitted: each labelled audit pair is scored by a "
+                                    "model fitted without its half of the audit slice",
                     "score": "match probability, kept only on each record's mutual best pair"
                     if one else "match probability"}
     return json_ready(out)

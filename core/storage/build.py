@@ -18,8 +18,8 @@ import numpy as np
 import pandas as pd
 
 from ..errors import Cancelled, DocketError
-from ..matching import scoring
-from ..matching.compare import level_names
+from ..matching import random_pairs, scoring
+from ..matching.explain import LogOddsTable
 from ..matching.model import FSModel, fit_em
 from ..ordering import queue
 from ..pairs import autoblock, blocking
@@ -209,13 +209,21 @@ def build(spec: NewProject, progress: Progress | None = None,
     step("comparing", 0, 1)
     lnorm = scoring.normalised(fields, left.frame, "left")
     rnorm = lnorm if right is None else scoring.normalised(fields, right.frame, "right")
+    step("measuring chance agreement")
+    n_l, n_r = len(left), len(left) if right is None else len(right)
+    base = random_pairs.baseline(fields, lnorm, rnorm, n_l, n_r, right is None, spec.seed + 7)
     sims, levels = scoring.compare_pairs(fields, lnorm, rnorm, li, ri,
-                                         lambda d, t: step("comparing", d, t))
+                                         lambda d, t: step("comparing", d, t), base.frequent)
     step("fitting the model")
     patterns, pattern_ix, counts = scoring.group_patterns(levels)
-    names = [list(level_names(f.kind)) for f in fields]
-    model = fit_em(patterns, counts, names, [f.name for f in fields])
-    weight, prob = scoring.score_levels(model, patterns)
+    possible = n_l * (n_l - 1) // 2 if right is None else n_l * n_r
+    model = fit_em(patterns, counts, base.level_names, [f.name for f in fields],
+                   u_random=base.u, population=possible)
+    model.population = possible
+    model.sampled_pairs = base.sampled
+    model.frequent = base.frequent
+    table = LogOddsTable.from_fs(model)
+    weight, prob = table.log_odds(patterns), table.probability(patterns)
 
     step("drawing the audit slice")
     seed = spec.seed

@@ -2,6 +2,12 @@
 
 Labels are taken per pair: an adjudicator's label wins; otherwise the reviewers' majority of
 match / non-match (a tie or a hold leaves the pair unlabelled for fitting).
+
+Honest by cross-fitting: the audit slice's labels help fit the model that ranks the queue, but
+``evaluate`` judges each labelled audit pair by the score of a model fitted without its half of
+the slice (two halves by pair id), so no audit label is judged by a score it trained.
+Blind: labels on pairs still open for another reviewer (overlap pairs) never reach a fit, so
+one reviewer's label cannot move the probability the next reviewer is shown for that pair.
 """
 
 from __future__ import annotations
@@ -11,6 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..matching.explain import LogOddsTable
 from ..matching.logistic import fit_logistic, one_hot
 from ..matching.model import FSModel, fit_em
 from ..ordering import queue
@@ -19,8 +26,6 @@ from .writer import write_model
 
 FOLDS = 5
 MIN_PER_CLASS = 5
-MIN_AUDIT = 3  # audit labels of each class before the logistic ranker can be judged
-PATTERN_PRIOR = 2.0  # how many labels the model's own estimate is worth within one pattern
 
 
 @dataclass
@@ -31,6 +36,7 @@ class RefitResult:
     fs_loss: float | None
     logistic_loss: float | None
     iterations: int
+    set_aside: int = 0  # labels not used: audit slice, or pairs still open for others
 
     def to_dict(self) -> dict:
         return self.__dict__.copy()
@@ -68,28 +74,21 @@ def _log_loss(p: np.ndarray, y: np.ndarray, w: np.ndarray) -> float:
     return float(-np.average(y * np.log(p) + (1 - y) * np.log(1 - p), weights=w))
 
 
-def _training_weights(design: np.ndarray) -> np.ndarray:
-    """Uncertainty labels weigh 1 each; audit labels together weigh as much as all of them,
-    shared in proportion to 1/π, so the fit sees the whole score range in its true mix."""
-    audit = design > 0
-    w = np.ones(len(design))
-    if audit.any():
-        w[audit] = design[audit] / design[audit].sum() * max(1, (~audit).sum())
-    return w
-
-
-def pattern_calibrated(prob: np.ndarray, lab_pat: np.ndarray, lab_y: np.ndarray,
-                       n_patterns: int) -> np.ndarray:
-    """Blend each pattern's model probability with the labels of its own pairs.
-
-    All pairs of a pattern look the same to the model, and the queue draws them in random
-    order, so their labels estimate the pattern's match rate directly. Without this, a
-    pattern the model cannot separate would stay at the top of the queue however many of its
-    pairs were labelled.
-    """
-    k = np.bincount(lab_pat, minlength=n_patterns).astype(float)
-    km = np.bincount(lab_pat, weights=lab_y, minlength=n_patterns)
-    return (km + PATTERN_PRIOR * prob) / (k + PATTERN_PRIOR)
+def _fold_losses(x: np.ndarray, fs_fit, lab_pat: np.ndarray, lab_y: np.ndarray,
+                 lab_pairs: np.ndarray, patterns: np.ndarray) -> tuple[float, float]:
+    """Held-out log loss of each model, five folds by pair id, on the fitting labels."""
+    fold = lab_pairs % FOLDS
+    fs_pred = np.zeros(len(lab_y))
+    lr_pred = np.zeros(len(lab_y))
+    ones = np.ones(len(lab_y))
+    for k in range(FOLDS):
+        test = fold == k
+        if not test.any():
+            continue
+        fs_pred[test] = fs_fit(~test).probability(patterns[lab_pat[test]])
+        lr_pred[test] = fit_logistic(x[lab_pat[~test]], lab_y[~test]).probability(
+            x[lab_pat[test]])
+    return _log_loss(fs_pred, lab_y, ones), _log_loss(lr_pred, lab_y, ones)
 
 
 def refit(conn: sqlite3.Connection) -> RefitResult:
@@ -98,73 +97,86 @@ def refit(conn: sqlite3.Connection) -> RefitResult:
     base = FSModel.from_dict(meta["fs_model"])
     patterns, counts = _load(conn)
     labels = fitting_labels(conn)
-    lab_pairs = np.array(sorted(labels), dtype=np.int64)
+    info: dict[int, tuple[int, int, int]] = {}
+    if labels:
+        ids = ",".join(map(str, sorted(labels)))
+        info = {r[0]: r[1:] for r in conn.execute(
+            f"SELECT pair_id, pattern_id, audit, open FROM pairs WHERE pair_id IN ({ids})")}
+    held = {p for p, (_, _, is_open) in info.items() if is_open}
+    lab_pairs = np.array(sorted(set(labels) - held), dtype=np.int64)
     lab_y = np.array([labels[p] for p in lab_pairs], dtype=float)
-    lab_pat = np.zeros(0, dtype=np.int64)
-    lab_w = np.ones(len(lab_pairs))  # design weight: 1/π for audit pairs, 0 for the rest
-    if len(lab_pairs):
-        found = {r[0]: r[1:] for r in conn.execute(
-            f"SELECT pair_id, pattern_id, audit, inclusion FROM pairs WHERE pair_id IN "
-            f"({','.join(map(str, lab_pairs.tolist()))})")}
-        lab_pat = np.array([found[int(p)][0] for p in lab_pairs], dtype=np.int64)
-        lab_w = np.array([1.0 / found[int(p)][2] if found[int(p)][1] else 0.0
-                          for p in lab_pairs])
-    is_audit = lab_w > 0
+    lab_pat = np.array([info[int(p)][0] for p in lab_pairs], dtype=np.int64)
+    is_audit = np.array([bool(info[int(p)][1]) for p in lab_pairs], dtype=bool)
+    half = lab_pairs % 2
+    u_random = base.u if base.u_source == "random pairs" else None
+    n_levels = [len(x) for x in base.level_names]
 
     def fs_fit(mask: np.ndarray) -> FSModel:
         m = np.bincount(lab_pat[mask], weights=lab_y[mask], minlength=len(counts))
         n = np.bincount(lab_pat[mask], weights=1 - lab_y[mask], minlength=len(counts))
-        return fit_em(patterns, counts, base.level_names, base.fields, m, n)
+        fitted = fit_em(patterns, counts, base.level_names, base.fields, m, n,
+                        u_random=u_random, population=base.population)
+        fitted.sampled_pairs, fitted.frequent = base.sampled_pairs, base.frequent
+        fitted.population = base.population
+        return fitted
+
+    def table_fit(mask: np.ndarray, ranker: str) -> tuple[FSModel, LogOddsTable]:
+        fs = fs_fit(mask)
+        fs_table = LogOddsTable.from_fs(fs)
+        if ranker == "fellegi-sunter":
+            return fs, fs_table
+        x = one_hot(patterns, n_levels, fs_table.log_odds(patterns))
+        coef = fit_logistic(x[lab_pat[mask]], lab_y[mask]).coef
+        return fs, LogOddsTable.from_logistic(fs_table, coef, n_levels)
 
     everything = np.ones(len(lab_pairs), dtype=bool)
-    fs = fs_fit(everything)
-    fs_prob = fs.probability(patterns)
-    prob, ranker = fs_prob, "fellegi-sunter"
+    ranker = "fellegi-sunter"
     fs_loss = lr_loss = None
     n_match = int(lab_y.sum())
-    n_levels = [len(x) for x in base.level_names]
-    audit_m = int(lab_y[is_audit].sum())
-    if (n_match >= MIN_PER_CLASS and len(lab_y) - n_match >= MIN_PER_CLASS
-            and audit_m >= MIN_AUDIT and is_audit.sum() - audit_m >= MIN_AUDIT):
-        q = np.clip(fs_prob, 1e-13, 1 - 1e-13)
-        logit = np.log(q) - np.log1p(-q)
-        x_all = one_hot(patterns, n_levels, logit)
-        train_w = _training_weights(lab_w)
-        fold = lab_pairs % FOLDS
-        fs_pred = np.zeros(len(lab_y))
-        lr_pred = np.zeros(len(lab_y))
-        for k in range(FOLDS):
-            test = fold == k
-            if not test.any():
-                continue
-            fs_pred[test] = fs_fit(~test).probability(patterns[lab_pat[test]])
-            lr = fit_logistic(x_all[lab_pat[~test]], lab_y[~test], train_w[~test])
-            lr_pred[test] = lr.probability(x_all[lab_pat[test]])
-        # Judged on the audit labels with their design weights: the uncertainty-chosen labels
-        # are a biased sample, on which a model can look good and rank the population badly.
-        fs_loss = _log_loss(fs_pred[is_audit], lab_y[is_audit], lab_w[is_audit])
-        lr_loss = _log_loss(lr_pred[is_audit], lab_y[is_audit], lab_w[is_audit])
+    if n_match >= MIN_PER_CLASS and len(lab_y) - n_match >= MIN_PER_CLASS:
+        fs0 = LogOddsTable.from_fs(fs_fit(everything))
+        x_all = one_hot(patterns, n_levels, fs0.log_odds(patterns))
+        fs_loss, lr_loss = _fold_losses(x_all, fs_fit, lab_pat, lab_y, lab_pairs, patterns)
         if lr_loss < fs_loss:
-            prob = fit_logistic(x_all[lab_pat], lab_y, train_w).probability(x_all)
             ranker = "logistic"
-    prob = pattern_calibrated(prob, lab_pat, lab_y, len(counts))
-    weight = fs.pattern_weight(patterns)
+    fs, table = table_fit(everything, ranker)
+    crossed: dict[str, float] = {}
+    for k in (0, 1):
+        judged = is_audit & (half == k)
+        if judged.any():
+            _, other = table_fit(~judged, ranker)
+            p_k = other.probability(patterns[lab_pat[judged]])
+            crossed.update({str(int(p)): float(q) for p, q in zip(lab_pairs[judged], p_k,
+                                                                   strict=True)})
+    log_odds = table.log_odds(patterns)
+    prob = table.probability(patterns)
+    fs_prob = LogOddsTable.from_fs(fs).probability(patterns)
     prio = queue.priority(prob, float(meta["threshold"]))
     conn.execute("BEGIN IMMEDIATE")
     try:
         conn.executemany(
             "UPDATE patterns SET weight = ?, fs_probability = ?, probability = ?, priority = ? "
             "WHERE pattern_id = ?",
-            [(float(weight[i]), float(fs_prob[i]), float(prob[i]), float(prio[i]), i)
+            [(float(log_odds[i]), float(fs_prob[i]), float(prob[i]), float(prio[i]), i)
              for i in range(len(patterns))])
         write_model(conn, fs)
-        note = (f"{len(lab_y)} labels; held-out log loss FS {fs_loss:.3f}, logistic "
-                f"{lr_loss:.3f}" if fs_loss is not None and lr_loss is not None
-                else f"{len(lab_y)} labels; too few of each class for the logistic ranker")
-        store.set_meta(conn, fs_model=fs.to_dict(), ranker=ranker, ranker_note=note,
+        aside = f"; {len(held)} set aside while open for another reviewer" if held else ""
+        note = (f"{len(lab_y)} labels{aside}; held-out log loss Fellegi–Sunter "
+                f"{fs_loss:.3f}, logistic {lr_loss:.3f}"
+                if fs_loss is not None and lr_loss is not None
+                else f"{len(lab_y)} labels{aside}; too few of each class for the logistic "
+                     "ranker")
+        store.set_meta(conn, fs_model=fs.to_dict(), ranker=table.model, ranker_note=note,
+                       explain=table.to_dict(), audit_scores=crossed,
                        refits=int(meta.get("refits", 0)) + 1)
         conn.execute("COMMIT")
     except BaseException:
         conn.execute("ROLLBACK")
         raise
-    return RefitResult(ranker, len(lab_y), n_match, fs_loss, lr_loss, fs.iterations)
+    return RefitResult(table.model, len(lab_y), n_match, fs_loss, lr_loss, fs.iterations,
+                       len(held))
+
+
+def audit_scores(meta: dict) -> dict[int, float]:
+    """Cross-fitted probability of each labelled audit pair (fitted without its half)."""
+    return {int(k): float(v) for k, v in meta.get("audit_scores", {}).items()}

@@ -9,6 +9,7 @@ from typing import Any
 
 import numpy as np
 
+from ..matching.explain import LogOddsTable
 from ..matching.model import FSModel
 from ..ordering import queue
 from ..types import FieldSpec
@@ -109,6 +110,7 @@ def write_project(conn: sqlite3.Connection, *, spec: Any, left: Any, right: Any,
         seed=spec.seed,
         fingerprint=fingerprint,
         fs_model=model.to_dict(),
+        explain=LogOddsTable.from_fs(model).to_dict(),
         ranker="fellegi-sunter",
         ranker_note="no labels yet",
         refits=0,

@@ -8,6 +8,7 @@ from dataclasses import dataclass
 from rich.text import Text
 from textual.widgets import Static
 
+from docket.core.matching.explain import factor_text, odds_text
 from docket.core.types import PairCard
 
 from .. import literal
@@ -15,11 +16,14 @@ from ..diff import PLAIN, Palette
 
 REASONS = {
     "uncertain": "uncertain (hardest first)",
+    "likely match": "likely match (to confirm)",
+    "likely non-match": "likely non-match (to confirm)",
     "audit": "audit sample (keeps estimates honest)",
     "overlap": "overlap (a second reviewer sees it too)",
     "candidate": "opened from another record's candidates",
 }
-TOP = 2  # fields listed as pushing up and down
+SHOWN = 3  # fields listed one by one in the odds steps; the rest share one line
+SHORT_MODEL = {"fellegi-sunter": "Fellegi–Sunter", "logistic": "logistic, from labels"}
 
 
 @dataclass(frozen=True)
@@ -54,13 +58,19 @@ def _row(text: Text, name: str, value: Text, width: int = 13) -> None:
     text.append("\n")
 
 
-def pushing(card: PairCard) -> tuple[list[tuple[str, float]], list[tuple[str, float]]]:
-    """The fields whose weights push the pair most towards match and towards non-match."""
-    weights = [(f.field, f.weight) for f in card.fields if f.left is not None and
-               f.right is not None]
-    ups = sorted((w for w in weights if w[1] > 0), key=lambda w: -w[1])[:TOP]
-    downs = sorted((w for w in weights if w[1] < 0), key=lambda w: w[1])[:TOP]
-    return ups, downs
+def odds_steps(card: PairCard) -> list[tuple[str, float]]:
+    """The fields that changed the odds most, strongest first, the rest folded into one step.
+
+    Each step multiplies the odds; together with the starting odds they give, exactly, the odds
+    of the probability shown (the contributions are the ranking model's own).
+    """
+    parts = sorted(((f.field, f.contribution) for f in card.fields),
+                   key=lambda fc: -abs(fc[1]))
+    shown = [fc for fc in parts[:SHOWN] if abs(fc[1]) >= 0.05]
+    rest = parts[len(shown):]
+    if rest:
+        shown.append((f"{len(rest)} more", sum(c for _, c in rest)))
+    return shown
 
 
 def evidence_text(card: PairCard, palette: Palette, you: YourSide = YourSide(),
@@ -68,20 +78,18 @@ def evidence_text(card: PairCard, palette: Palette, you: YourSide = YourSide(),
     p = palette
     text = Text()
     _row(text, "probability", Text(probability_text(card.probability), p.heading))
-    total = card.weight
-    _row(text, "match weight", Text(f"{total:+.1f}", p.positive if total > 0 else p.negative))
-    _row(text, "  prior", Text(f"{card.prior_weight:+.1f}", p.muted))
-    ups, downs = pushing(card)
-    for title, rows, style in (("pushing up", ups, p.positive), ("pushing down", downs,
-                                                                   p.negative)):
-        text.append(title + "\n", p.muted)
-        if not rows:
-            text.append("  (none)\n", p.muted)
-        for name, weight in rows:
-            text.append("  ")
-            text.append_text(literal.one_line(name, 10, p.escape))
-            text.append(" " * max(1, 11 - min(len(name), 10)))
-            text.append(f"{weight:+.1f}\n", style)
+    _row(text, "odds", Text(odds_text(card.log_odds),
+                            p.positive if card.log_odds > 0 else p.negative))
+    text.append("from the start\n", p.muted)
+    _row(text, "  ", Text(odds_text(card.base_log_odds), p.muted), 2)
+    for name, part in odds_steps(card):
+        text.append("  ")
+        text.append_text(literal.one_line(name, 10, p.escape))
+        text.append(" " * max(1, 11 - min(len(name), 10)))
+        text.append(factor_text(part) + "\n", p.positive if part > 0 else
+                    p.negative if part < 0 else p.muted)
+    text.append("model   ", p.muted)
+    text.append(SHORT_MODEL.get(card.model, card.model) + "\n")
     text.append("queued  ", p.muted)
     text.append(REASONS.get(card.reason, card.reason) + "\n")
     text.append("other candidates\n", p.muted)

@@ -8,6 +8,7 @@ from rich.text import Text
 from textual.widget import Widget
 from textual.widgets import Static
 
+from docket.core.matching.explain import factor_text
 from docket.core.types import FieldComparison, PairCard
 
 from .. import literal
@@ -17,7 +18,8 @@ from .card_lines import BAR_CELLS, SHORTENED, Columns, Lines
 
 STACK_BELOW = 84  # card widths below this put the right value under the left one
 EIGHTHS = " ▏▎▍▌▋▊▉"
-SHORT_LEVELS = {"day/month swapped": "d/m swap", "within a month": "≤ month"}
+SHORT_LEVELS = {"day/month swapped": "d/m swap", "within a month": "≤ month",
+                "exact, rare": "rare", "exact, common": "common"}
 
 
 @dataclass(frozen=True)
@@ -41,15 +43,19 @@ def similarity_bar(sim: float | None, cells: int = BAR_CELLS) -> str:
     return f"{sim:4.2f} {bar:<{cells}}"
 
 
-def weight_text(weight: float, palette: Palette, missing: bool = False) -> Text:
-    if missing or abs(weight) < 0.005:
-        return Text("  0.0" if not missing else "    0", palette.muted)
-    style = palette.positive if weight > 0 else palette.negative
-    return Text(f"{weight:+5.1f}", style)
+def factor_cell(part: float, palette: Palette, missing: bool = False) -> Text:
+    """How much this field multiplies the odds ("×12", "÷3.5"); missing changes nothing."""
+    if missing:
+        return Text("—", palette.muted)
+    text = factor_text(part)
+    if text == "×1":
+        return Text(text, palette.muted)
+    return Text(text, palette.positive if part > 0 else palette.negative)
 
 
 def _is_quiet(row: FieldComparison) -> bool:
-    return row.level == 0 and row.left is not None and row.right is not None
+    return (row.level_name.startswith("exact") and row.left is not None
+            and row.right is not None)
 
 
 def _masked(row: FieldComparison, mask: Mask) -> bool:
@@ -79,7 +85,7 @@ def card_text(card: PairCard, opts: CardOptions, width: int,
     head = [Text(f"{first} / {second}", p.muted)] if cols.stacked else [
         Text(first, p.muted), Text(second, p.muted)]
     out.add(Text("field", p.muted), Text(" "), head, [Text("sim", p.muted)],
-            Text("wt", p.muted))
+            Text("odds", p.muted))
     cells = 3 if cols.stacked else BAR_CELLS
     for row in card.fields:
         quiet = _is_quiet(row)
@@ -88,7 +94,7 @@ def card_text(card: PairCard, opts: CardOptions, width: int,
                              mask=_masked(row, opts.mask), quiet=quiet)
         name = _name(row.field, quiet, p)
         sim = Text(similarity_bar(row.similarity, cells), p.quiet if quiet else p.muted)
-        weight = weight_text(row.weight, p, missing)
+        weight = factor_cell(row.contribution, p, missing)
         level_name = "" if quiet else SHORT_LEVELS.get(row.level_name, row.level_name)
         level = Text(level_name, p.muted)
         if cols.stacked:

@@ -17,6 +17,7 @@ from rich.style import Style
 from rich.text import Text
 from textual.widgets import Static
 
+from docket.core.matching.explain import odds_text
 from docket.core.reviewing.adjudication import Review
 from docket.core.types import PairCard
 
@@ -150,7 +151,7 @@ def reviews_text(card: PairCard, standing: PairStanding, adjudicator: str, blind
                     f"{_ids(c.match_pairs)}; gold non-match {_ids(c.non_match_pairs)}\n",
                     p.muted)
     text.append("model  ", p.muted)
-    text.append(f"p {probability_text(card.probability)} · wt {card.weight:+.1f}\n")
+    text.append(f"p {probability_text(card.probability)} · odds {odds_text(card.log_odds)}\n")
     names = shown_names(standing.reviews, blind, aliases)
     people = [(r, n) for r, n in zip(standing.reviews, names, strict=True)
               if r.role != "adjudicator"]

@@ -1,0 +1,150 @@
+"""The model reads the way its levels are named, explains exactly what it shows, stays blind
+and never judges an audit label by a score it trained."""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from docket.core import NewProject, Project
+from docket.core.matching.explain import LogOddsTable, factor_text, odds_text, probability_of
+from docket.core.matching.model import monotone_m
+from docket.core.storage.refit import audit_scores
+from tests.conftest import SAMPLE
+from tests.quality import load_truth
+
+TRUTH = load_truth(SAMPLE / "truth.csv", "left_id", "right_id")
+
+
+def assert_ordered(project: Project) -> None:
+    for f, names, m, u in zip(*(project.meta["fs_model"][k] for k in ("fields", "level_names",
+                                                                      "m", "u")), strict=True):
+        w = np.log(np.asarray(m) / np.asarray(u))
+        # Common practice (Fellegi–Sunter with ordered levels): a better level never weighs
+        # less than a worse one, and exact agreement is never evidence against a match.
+        assert np.all(np.diff(w) <= 1e-9), (f, names, w)
+        assert w[0] >= 0, (f, w)
+
+
+def test_levels_in_order_on_the_sample(sample_project_file: Path) -> None:
+    with Project.open(sample_project_file, readonly=True) as project:
+        assert_ordered(project)
+        assert project.meta["fs_model"]["u_source"] == "random pairs"
+
+
+@pytest.mark.outside
+def test_levels_in_order_on_dblp_acm(dblp_acm: Path, tmp_path: Path) -> None:
+    # DBLP-ACM (Köpcke, Thor & Rahm, PVLDB 3(1), 2010): title, authors, venue, year.
+    path = tmp_path / "d.docket"
+    Project.create(NewProject(path=path, left=dblp_acm / "dblp.csv",
+                              right=dblp_acm / "acm.csv", id_column="id"))
+    with Project.open(path) as project:
+        assert_ordered(project)
+
+
+def test_pool_adjacent_violators_against_reference() -> None:
+    # Reference: scikit-learn's IsotonicRegression is a published PAV implementation; here a
+    # hand-worked pooling: ratios m/u = (4, 6, 1) with u = (0.1, 0.1, 0.8) pool the first two
+    # to (0.4 + 0.6) / 0.2 = 5 (Barlow et al., Statistical Inference under Order Restrictions,
+    # 1972, the pool-adjacent-violators rule).
+    u = np.array([0.1, 0.1, 0.8])
+    m = np.array([0.4, 0.6, 0.8]) / 1.8
+    out = monotone_m(m, u)
+    assert out[:2] / u[:2] == pytest.approx([5 / 1.8, 5 / 1.8])
+    assert out.sum() == pytest.approx(1.0)
+
+
+def test_odds_wording() -> None:
+    # Arithmetic facts (common practice): probability 0.75 is odds 3 to 1, 0.04 is 1 to 24.
+    assert odds_text(math.log(0.75 / 0.25)) == "3 to 1"
+    assert odds_text(math.log(0.04 / 0.96)) == "1 to 24"
+    assert factor_text(math.log(12)) == "×12"
+    assert factor_text(-math.log(3.5)) == "÷3.5"
+    assert factor_text(math.log(3084)) == "×3.1k"
+    assert odds_text(math.log(3662)) == "3.7k to 1"
+
+
+def _check_cards(project: Project, pair_ids: list[int]) -> None:
+    for pid in pair_ids:
+        card = project.card(pid)
+        total = card.base_log_odds + sum(f.contribution for f in card.fields)
+        assert total == pytest.approx(card.log_odds, abs=1e-9)
+        assert float(probability_of(total)) == pytest.approx(card.probability, rel=1e-12,
+                                                             abs=1e-15)
+        if 1e-6 < card.probability < 1 - 1e-6:  # where the log-odds of a float are exact enough
+            logit = math.log(card.probability / (1 - card.probability))
+            assert total == pytest.approx(logit, abs=1e-6)
+        assert card.model == project.meta["ranker"]
+
+
+@settings(max_examples=15, deadline=None)
+@given(st.lists(st.integers(1, 24_000), min_size=3, max_size=6, unique=True))
+def test_explanation_adds_up_before_refit(sample_project_file: Path, ids: list[int]) -> None:
+    with Project.open(sample_project_file, readonly=True) as project:
+        _check_cards(project, ids)
+
+
+def _answer(project: Project, where: str, n: int, reviewer: str = "oracle") -> list[tuple]:
+    """Label ``n`` pairs chosen by ``where`` from the truth file, then refit."""
+    rows = project.connection.execute(
+        f"SELECT pair_id, left_id, right_id, audit FROM pairs WHERE {where} LIMIT ?",
+        (n,)).fetchall()
+    for pid, a, b, _ in rows:
+        project.decide(pid, reviewer, "match" if (a, b) in TRUTH else "non-match")
+    project.refit()
+    return rows
+
+
+def test_explanation_adds_up_after_refit(sample_project: Path) -> None:
+    with Project.open(sample_project) as project:
+        rows = _answer(project, "overlap = 0 ORDER BY pair_id", 400)
+        assert project.meta["ranker"] == "logistic"
+        _check_cards(project, [r[0] for r in rows[:20]] + [5, 777, 12_345])
+
+
+def test_first_label_does_not_move_what_the_second_reviewer_sees(sample_project: Path) -> None:
+    with Project.open(sample_project) as project:
+        overlap = [r[0] for r in project.connection.execute(
+            "SELECT pair_id FROM pairs WHERE overlap = 1 AND audit = 0 ORDER BY pair_id LIMIT 40")]
+        _answer(project, "overlap = 0 AND audit = 0 ORDER BY pair_id", 200, "ana")
+        before = {p: project.card(p).probability for p in overlap}
+        for p in overlap:
+            card = project.card(p)
+            project.decide(p, "ana", "match" if (card.left_id, card.right_id) in TRUTH
+                           else "non-match")
+        project.refit()
+        after = {p: project.card(p).probability for p in overlap}
+    assert after == before
+
+
+def test_audit_labels_are_cross_fitted(sample_project: Path) -> None:
+    with Project.open(sample_project) as project:
+        rows = _answer(project, "overlap = 0 ORDER BY audit DESC, pair_id", 300)
+        crossed = audit_scores(project.meta)
+        audit_ids = {r[0] for r in rows if r[3]}
+        assert set(crossed) == audit_ids
+        # Each labelled audit pair's score comes from a fit without its half of the slice:
+        # refitting with that half's labels flipped must leave its own score unchanged.
+        half0 = sorted(p for p in audit_ids if p % 2 == 0)
+        for p in half0:
+            card = project.card(p)
+            flipped = "non-match" if (card.left_id, card.right_id) in TRUTH else "match"
+            project.decide(p, "oracle", flipped)
+        project.refit()
+        again = audit_scores(project.meta)
+    assert all(again[p] == pytest.approx(crossed[p]) for p in half0)
+
+
+def test_table_from_logistic_matches_its_coefficients() -> None:
+    fs = LogOddsTable("fellegi-sunter", -3.0, [[2.0, -1.0, 0.0], [1.5, 0.0]])
+    coef = np.array([0.5, 0.8, 0.1, -0.2, 0.0, 0.3, 0.0])
+    table = LogOddsTable.from_logistic(fs, coef, [3, 2])
+    pats = np.array([[0, 0], [1, 1], [2, 0]])
+    x = np.column_stack([np.ones(3), fs.log_odds(pats), np.eye(3)[pats[:, 0]],
+                         np.eye(2)[pats[:, 1]]])
+    assert table.log_odds(pats) == pytest.approx(x @ coef)
