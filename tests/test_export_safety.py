@@ -95,7 +95,7 @@ def test_formula_guard_and_its_off_switch(project: Path, tmp_path: Path) -> None
     # Numbers are not formulas: a negative weight in the scores export stays a number.
     scores = tmp_path / "scores.csv"
     assert main(["export", str(project), "-o", str(scores)]) == 0
-    assert pd.read_csv(scores)["match_weight"].dtype.kind == "f"
+    assert pd.read_csv(scores)["log_odds"].dtype.kind == "f"
     # Parquet keeps values exact: no spreadsheet opens it as text.
     parquet = tmp_path / "t.parquet"
     assert main(["export", str(project), "--what", "training", "-o", str(parquet)]) == 0
