@@ -18,8 +18,8 @@ def test_file_is_private_wal_and_versioned(sample_project_file: Path) -> None:
     assert stat.S_IMODE(os.stat(sample_project_file).st_mode) == 0o600
     conn = sqlite3.connect(sample_project_file)
     assert conn.execute("PRAGMA journal_mode").fetchone()[0] == "wal"
-    assert conn.execute("PRAGMA user_version").fetchone()[0] == 2
-    assert conn.execute("SELECT version, name FROM migrations").fetchall() == [(2, "initial")]
+    assert conn.execute("PRAGMA user_version").fetchone()[0] == 3
+    assert conn.execute("SELECT version, name FROM migrations").fetchall() == [(3, "initial")]
     assert conn.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
 
 
@@ -120,15 +120,13 @@ def test_registered_migrations_upgrade_an_older_file(sample_project: Path, monke
 
 
 def test_a_version_1_file_gains_drafts_and_missed_matches(sample_project: Path) -> None:
-    with sqlite3.connect(sample_project) as conn:  # make it a file written by version 1
-        conn.execute("DROP TABLE drafts")
-        conn.execute("DROP TABLE missed_matches")
-        conn.execute("UPDATE migrations SET version = 1")
-        conn.execute("PRAGMA user_version = 1")
+    from tests.store_support import downgrade
+
+    downgrade(sample_project, 1)  # make it a file written by version 1
     with Project.open(sample_project, readonly=True) as p:  # read-only: left as it is
         assert p.draft(1, "maya") == "" and p.missed_matches() == []
     with Project.open(sample_project) as p:
-        assert p.connection.execute("PRAGMA user_version").fetchone()[0] == 2
+        assert p.connection.execute("PRAGMA user_version").fetchone()[0] == 3
         pid = p.next_pairs("maya", 1)[0].pair_id
         p.save_draft(pid, "maya", "kept")
         assert p.draft(pid, "maya") == "kept"

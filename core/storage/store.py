@@ -18,7 +18,7 @@ from typing import Any
 from ..errors import DocketError, NotAProject
 
 APPLICATION_ID = 0x646F636B  # "dock": marks the file as a docket project
-SCHEMA_VERSION = 2
+SCHEMA_VERSION = 3
 BUSY_TIMEOUT_MS = 5000
 
 SCHEMA_V1 = """
@@ -84,14 +84,54 @@ CREATE INDEX pairs_right ON pairs(right_id);
 CREATE UNIQUE INDEX pairs_ids ON pairs(left_id, right_id);
 """
 
+# Version 3. Lookups by (pair, reviewer, role) and (reviewer, role) are indexed in the order
+# they are sorted, so a decision costs the same after 100,000 earlier ones as after none. Role
+# grants are kept as a log, so a decision is judged by the role its maker held at the time.
+# Claims are leases on served pairs, so two reviewers at work together never get one pair.
+SCHEMA_V3 = """
+DROP INDEX decisions_pair;
+DROP INDEX decisions_reviewer;
+CREATE INDEX decisions_pair ON decisions(pair_id, reviewer, role, decided_at);
+CREATE INDEX decisions_reviewer ON decisions(reviewer, role, decided_at);
+CREATE INDEX decisions_time ON decisions(decided_at);
+CREATE TABLE role_grants (
+    grant_id TEXT PRIMARY KEY, name TEXT NOT NULL, role TEXT NOT NULL, granted_by TEXT NOT NULL,
+    granted_at TEXT NOT NULL, CHECK (role IN ('reviewer', 'adjudicator')));
+CREATE INDEX role_grants_name ON role_grants(name, granted_at);
+CREATE TABLE claims (
+    pair_id INTEGER NOT NULL, reviewer TEXT NOT NULL, expires_at TEXT NOT NULL,
+    PRIMARY KEY (pair_id, reviewer));
+CREATE INDEX claims_reviewer ON claims(reviewer);
+"""
+MIGRATED_GRANTOR = "(granted before role history was kept)"
+
 Migration = Callable[[sqlite3.Connection], None]
-# version -> (name, function taking a file at version-1 to version)
+
+
+def _to_v3(conn: sqlite3.Connection) -> None:
+    # Statement by statement: executescript would commit the migration's open transaction.
+    for statement in SCHEMA_V3.split(";"):
+        if statement.strip():
+            conn.execute(statement)
+    # An older file kept only each person's present role: an adjudicator is taken to have
+    # held it since they were added, which is all the file can tell.
+    conn.execute("INSERT INTO role_grants SELECT lower(hex(randomblob(16))), name, role, ?, "
+                 "added_at FROM reviewers WHERE role <> 'reviewer'", (MIGRATED_GRANTOR,))
+    if conn.execute("SELECT 1 FROM meta WHERE key = 'fields'").fetchone():
+        from .fingerprint import records_fingerprint
+        set_meta(conn, records_fingerprint=records_fingerprint(conn))
+
+
 def _to_v2(conn: sqlite3.Connection) -> None:
     for statement in SCHEMA_V2:
         conn.execute(statement)
 
 
-MIGRATIONS: dict[int, tuple[str, Migration]] = {2: ("drafts and missed matches", _to_v2)}
+# version -> (name, function taking a file at version-1 to version)
+MIGRATIONS: dict[int, tuple[str, Migration]] = {
+    2: ("drafts and missed matches", _to_v2),
+    3: ("indexed history, role grants, claims", _to_v3),
+}
 
 
 def has_table(conn: sqlite3.Connection, name: str) -> bool:
@@ -131,7 +171,8 @@ def create_file(path: Path, field_names: list[str]) -> sqlite3.Connection:
     conn.execute(f"PRAGMA user_version = {SCHEMA_VERSION}")
     columns = "".join(f", {similarity_column(f)} REAL" for f in field_names)
     conn.executescript(SCHEMA_V1.replace("{similarity_columns}", columns))
-    _to_v2(conn)
+    for version in range(2, SCHEMA_VERSION + 1):  # a new file is built as an old one migrated
+        MIGRATIONS[version][1](conn)
     conn.execute("INSERT INTO migrations VALUES (?, ?, ?)", (SCHEMA_VERSION, "initial", now()))
     return conn
 
@@ -143,8 +184,16 @@ def finish_file(conn: sqlite3.Connection) -> None:
     conn.close()
 
 
+def schema_version(conn: sqlite3.Connection) -> int:
+    return int(conn.execute("PRAGMA user_version").fetchone()[0])
+
+
 def open_file(path: Path, readonly: bool = False) -> sqlite3.Connection:
-    """Open an existing project, checking it is one and migrating it if it is older."""
+    """Open an existing project, checking it is one and migrating it if it is older.
+
+    Read-only, an older file is left as it is: readers check for a later table with
+    ``has_table`` (merge reads copies so, and must never write to them).
+    """
     if not path.exists():
         raise DocketError(f"{path}: no such project; create it with 'docket new {path} ...'")
     if path.is_dir():

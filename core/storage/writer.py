@@ -115,4 +115,6 @@ def write_project(conn: sqlite3.Connection, *, spec: Any, left: Any, right: Any,
         ranker_note="no labels yet",
         refits=0,
     )
+    from .fingerprint import records_fingerprint
+    store.set_meta(conn, records_fingerprint=records_fingerprint(conn))
     conn.execute("COMMIT")
