@@ -17,7 +17,7 @@ from .reviewing import missed
 from .reviewing.gold import Gold, gold_labels
 from .reviewing.missed import MissedMatch
 from .storage import decisions as log
-from .storage import store
+from .storage import roles, store
 from .storage.project_file import ProjectFile
 from .storage.refit import RefitResult, refit
 from .types import ROLES, Decision, FieldComparison, PairCard, QueueItem
@@ -44,9 +44,8 @@ class Project(ProjectFile):
             raise DocketError("a reviewer needs a name; pass --reviewer NAME")
         if role not in ROLES:
             raise DocketError(f"unknown role '{role}'; use reviewer or adjudicator")
-        with self._lock:
-            self._conn.execute("INSERT OR IGNORE INTO reviewers VALUES (?, ?, ?)",
-                               (name, role, store.now()))
+        with self._lock:  # a role beyond reviewer is only ever granted (team.add_reviewer)
+            roles.register(self._conn, name)
 
     # -- queue -------------------------------------------------------------------------------
     def _stream(self, reviewer: str, audit: bool, n: int, exclude: tuple[int, ...]) -> list:

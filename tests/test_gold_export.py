@@ -22,6 +22,7 @@ from hypothesis import strategies as st
 from docket.core import DocketError, NewProject, Project
 from docket.core.exports import gold_export as ge
 from docket.core.exports.exporting import write_frame
+from docket.core.reviewing.team import add_reviewer
 
 GOLDEN = Path(__file__).resolve().parent / "golden"
 UPDATE = os.environ.get("DOCKET_UPDATE_GOLDEN") == "1"
@@ -59,6 +60,7 @@ def tiny_file(tmp_path_factory: pytest.TempPathFactory) -> Path:
             (("5", "5"), "maya", "non-match"),
         ]:
             project.decide(pid[(a, b)], reviewer, label)
+        add_reviewer(project, "ada", "adjudicator", granted_by="lead")
         project.decide(pid[("3", "3")], "ada", "match", role="adjudicator")
     return path
 

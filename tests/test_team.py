@@ -79,14 +79,15 @@ def test_list_counts_labels_holds_adjudications_and_time(tiny: Path) -> None:
 
 
 def test_reviewers_cli_add_list_and_bad_role(tiny: Path, capsys) -> None:
-    assert run(["reviewers", str(tiny), "add", "ines", "--role", "adjudicator"]) == 0
-    assert capsys.readouterr().out.strip() == "added ines as adjudicator"
+    assert run(["reviewers", str(tiny), "add", "ines", "--role", "adjudicator", "--by",
+                "lead"]) == 0
+    assert capsys.readouterr().out.strip() == "added ines as adjudicator (granted by lead)"
     assert run(["reviewers", str(tiny), "add", "maya"]) == 0
     capsys.readouterr()
     assert run(["reviewers", str(tiny), "list", "--json"]) == 0
     listed = json.loads(capsys.readouterr().out)
-    assert [(r["name"], r["role"]) for r in listed] == [("ines", "adjudicator"),
-                                                         ("maya", "reviewer")]
+    assert [(r["name"], r["role"], r["granted_by"]) for r in listed] == [
+        ("ines", "adjudicator", "lead"), ("maya", "reviewer", None)]
     assert run(["reviewers", str(tiny), "list"]) == 0
     out = capsys.readouterr().out
     assert "ines" in out and "adjudicator" in out

@@ -10,7 +10,7 @@ import argparse
 from pathlib import Path
 from typing import Any
 
-from .cli_base import command, open_project
+from .cli_base import command, default_reviewer, open_project
 from .terminal import json_text, shown
 
 
@@ -29,6 +29,9 @@ def register(sub: argparse._SubParsersAction) -> None:
     a.add_argument("name")
     a.add_argument("--role", choices=["reviewer", "adjudicator"], default="reviewer",
                    help="default reviewer")
+    a.add_argument("--by", metavar="NAME",
+                   help="who grants the role, kept with it in the project (default "
+                        "$DOCKET_REVIEWER or your login name)")
     b = actions.add_parser("list", help="list reviewers with their work so far",
                            description="List reviewers with their role and work so far.")
     b.add_argument("--json", action="store_true", help="machine-readable output")
@@ -53,10 +56,15 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "Each OTHER must be a copy of the same project (same records and candidate "
                  "pairs); it is opened read-only. Merging twice changes nothing, and the order "
                  "of the files does not matter. All files are checked before anything is "
-                 "written; then the model is refit.",
+                 "written; then the model is refit.\nRoles stay this project's: a copy's role "
+                 "changes are listed and left out unless --accept-roles is given. A copy with "
+                 "an unknown role, or a time more than 1 hour ahead of this machine's clock, is "
+                 "refused.",
                  "docket merge vets.docket laptop-ines.docket laptop-maya.docket", merge)
     p.add_argument("project")
     p.add_argument("others", nargs="+", metavar="OTHER", help="a copy of the project")
+    p.add_argument("--accept-roles", action="store_true",
+                   help="also take the copies' role changes (default: list and leave them out)")
 
 
 # -- reviewers -----------------------------------------------------------------------------
@@ -69,7 +77,8 @@ def reviewers(args: argparse.Namespace) -> int:
     from docket.core.reviewing.team import add_reviewer, list_reviewers
     if args.action == "add":
         with open_project(args.project) as project:
-            change = add_reviewer(project, args.name, args.role)
+            change = add_reviewer(project, args.name, args.role,
+                                  granted_by=default_reviewer(args.by))
         print(change.message)
         return 0
     with open_project(args.project, readonly=True) as project:
@@ -175,10 +184,17 @@ def agreement(args: argparse.Namespace) -> int:
 def merge(args: argparse.Namespace) -> int:
     from docket.core.reviewing.merge import merge as merge_files
     with open_project(args.project) as project:
-        result = merge_files(project, [Path(p) for p in args.others])
+        result = merge_files(project, [Path(p) for p in args.others],
+                             accept_roles=args.accept_roles)
         refit = project.refit() if result.added else None
     for f in result.files:
         print(f"  {f.path}: {f.decisions:,} decisions, {f.new:,} new")
+    for change in result.role_changes:
+        print(("role accepted: " if result.roles_accepted else "role left out: ")
+              + change.message)
+    if result.role_changes and not result.roles_accepted:
+        print("roles stay as this project records them; to take the copies' role changes, "
+              "merge again with --accept-roles")
     if not result.added:
         print(f"nothing new: every decision in these files is already in {args.project}")
         return 0

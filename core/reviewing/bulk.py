@@ -10,7 +10,7 @@ import pandas as pd
 from ..errors import DocketError
 from ..records.sources import read_frame
 from ..storage import decisions as log
-from ..storage import store
+from ..storage import roles
 from ..storage.project_file import ProjectFile
 from ..types import LABELS
 
@@ -76,8 +76,7 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
 def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: str = "reviewer"
                ) -> int:
     with project.transaction() as conn:
-        conn.execute("INSERT OR IGNORE INTO reviewers VALUES (?, ?, ?)",
-                     (reviewer, role, store.now()))
+        roles.register(conn, reviewer)
         for r in rows:
             prior = log.current_of(conn, r.pair_id, reviewer, role)
             log.append(conn, r.pair_id, reviewer, r.label, r.note, 0.0,
@@ -92,7 +91,7 @@ def label_once(project: ProjectFile, name: str, path: Path, adjudicator: str | N
     of labels recorded. No refit: the caller decides when the queue is re-ranked."""
     from .team import add_reviewer
     if adjudicator and adjudicator != name:
-        add_reviewer(project, adjudicator, "adjudicator")
+        add_reviewer(project, adjudicator, "adjudicator", granted_by="docket demo")
     with project.reading() as conn:
         if conn.execute("SELECT 1 FROM decisions WHERE reviewer = ? LIMIT 1",
                         (name,)).fetchone():

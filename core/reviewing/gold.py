@@ -3,7 +3,9 @@
 Policy (stored in the project, shown by ``status``):
 - a pair needs at least ``min_reviews`` reviewer decisions (default 1);
 - unanimous reviewer decisions become gold ("unanimous" with two or more, "single" with one);
-- disagreements become gold only when an adjudicator decides them ("adjudicated");
+- disagreements become gold only when an adjudicator decides them ("adjudicated"), and only
+  a decision by someone who held the adjudicator role at the time they made it counts (the
+  role grants log, ``storage.roles``), whatever role the decision row claims;
 - holds never become gold: a hold from any reviewer sends the pair to adjudication, and an
   adjudicator's hold leaves it there.
 """
@@ -14,7 +16,7 @@ import sqlite3
 from dataclasses import asdict, dataclass, field
 from typing import Any
 
-from ..storage import store
+from ..storage import roles, store
 
 DEFAULT_POLICY = {"min_reviews": 1}
 
@@ -48,19 +50,38 @@ def policy(conn: sqlite3.Connection) -> dict[str, Any]:
 
 
 def standing(conn: sqlite3.Connection) -> dict[int, PairLabels]:
+    """Standing labels per pair; adjudications only from people who held the role then."""
+    past = roles.history(conn)
     out: dict[int, PairLabels] = {}
     rows = conn.execute("SELECT pair_id, reviewer, role, label, decided_at FROM current "
                         "ORDER BY pair_id, decided_at")
-    for pair_id, reviewer, role, label, _ in rows:
+    for pair_id, reviewer, role, label, decided_at in rows:
         entry = out.setdefault(pair_id, PairLabels(pair_id))
-        (entry.adjudicators if role == "adjudicator" else entry.reviewers)[reviewer] = label
+        if role != "adjudicator":
+            entry.reviewers[reviewer] = label
+        elif roles.role_at(past, reviewer, decided_at) == "adjudicator":
+            entry.adjudicators[reviewer] = label
     return out
 
 
 def _latest_adjudication(conn: sqlite3.Connection) -> dict[int, str]:
-    """The most recent standing adjudicator label per pair (several adjudicators: latest wins)."""
-    return {pid: label for pid, label in conn.execute(
-        "SELECT pair_id, label FROM current WHERE role = 'adjudicator' ORDER BY decided_at")}
+    """The most recent standing adjudication per pair that settles (several: latest wins).
+
+    An adjudication settles only if its maker held the adjudicator role when making it.
+    """
+    past = roles.history(conn)
+    return {pid: label for pid, reviewer, label, decided_at in conn.execute(
+        "SELECT pair_id, reviewer, label, decided_at FROM current WHERE role = 'adjudicator' "
+        "ORDER BY decided_at, decision_id")
+        if roles.role_at(past, reviewer, decided_at) == "adjudicator"}
+
+
+def unsettling_adjudications(conn: sqlite3.Connection) -> list[tuple[int, str, str]]:
+    """(pair_id, name, decided_at) of standing adjudications made without the role then."""
+    past = roles.history(conn)
+    return [(int(pid), name, at) for pid, name, at in conn.execute(
+        "SELECT pair_id, reviewer, decided_at FROM current WHERE role = 'adjudicator' "
+        "ORDER BY pair_id, decided_at") if roles.role_at(past, name, at) != "adjudicator"]
 
 
 def gold_labels(conn: sqlite3.Connection) -> list[Gold]:

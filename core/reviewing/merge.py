@@ -6,10 +6,13 @@ is then rebuilt from the whole log for every (pair, reviewer, role) a new decisi
 since the log's order is (decided_at, decision_id), the result is the same whatever order the
 files come in.
 
-Roles are granted in this project, never imported: a merge leaves existing reviewers' roles
-alone and registers a new name as a reviewer. Names whose files hold adjudications but who are
-not adjudicators here are reported, so that someone can confirm them with
-``docket reviewers PROJECT add NAME --role adjudicator``.
+Roles are the receiving project's: a merge registers a new name as a reviewer, and a copy's
+role changes (its grants unknown here, or roles differing from ours) are reported and left out
+unless ``accept_roles`` is given. Names whose files hold adjudications but who are not
+adjudicators here are reported too; their adjudications are kept in the log but settle nothing
+(``core.gold`` judges each by the role held when it was made). A copy is refused whole if its
+records differ (the records fingerprint is recomputed from the copy, never read from it), or
+if it holds an unknown role or a time too far ahead of the clock (``merge_checks``).
 """
 
 from __future__ import annotations
@@ -22,8 +25,10 @@ from typing import Any
 
 from ..errors import DocketError
 from ..storage import decisions as log
-from ..storage import store
+from ..storage import roles, store
+from ..storage.fingerprint import records_fingerprint
 from ..storage.project_file import ProjectFile
+from .merge_checks import RoleChange, accepted_grants, check_copy, read_grants, role_changes
 
 COLUMNS = ("decision_id", "pair_id", "reviewer", "role", "label", "note", "decided_at",
            "seconds", "supersedes")
@@ -49,6 +54,8 @@ class MergeResult:
     pairs_touched: int
     new_reviewers: tuple[str, ...]
     unconfirmed_adjudicators: tuple[str, ...] = field(default=())
+    role_changes: tuple[RoleChange, ...] = field(default=())
+    roles_accepted: bool = False
 
     def to_dict(self) -> dict[str, Any]:
         return asdict(self)
@@ -60,6 +67,7 @@ class _Other:
     decisions: list[Row]
     reviewers: list[Row]
     pairs: dict[int, tuple[str, str]]
+    grants: list[roles.Grant] = field(default_factory=list)
 
 
 def _chunks(values: list[Any]) -> list[list[Any]]:
@@ -89,22 +97,27 @@ def _read(path: Path, project: ProjectFile) -> _Other:
                           "worked in")
     if not path.is_file():
         raise DocketError(f"{path}: no such file; give the path of a copy of this project")
-    conn = store.open_file(path, readonly=True)
+    conn = store.open_file(path, readonly=True)  # never written to, nor upgraded
     try:
         meta = store.get_meta(conn)
-        if meta.get("fingerprint") != project.meta.get("fingerprint"):
-            raise DocketError(f"{path}: a different project (its records and candidate pairs "
+        ours = project.meta.get("records_fingerprint") or records_fingerprint(
+            project.connection)
+        if (meta.get("fingerprint") != project.meta.get("fingerprint")
+                or records_fingerprint(conn) != ours):
+            raise DocketError(f"{path}: a different project (its records or candidate pairs "
                               f"differ from those of {project.path}); merge only copies of "
                               "this project; nothing was merged")
         rows = conn.execute(_SELECT).fetchall()
         reviewers = conn.execute("SELECT name, role, added_at FROM reviewers").fetchall()
+        grants = read_grants(conn)
         pairs = _pairs_of(conn, sorted({int(r[1]) for r in rows}))
-    except sqlite3.DatabaseError as exc:
+    except (sqlite3.DatabaseError, KeyError, TypeError) as exc:
         raise DocketError(f"{path}: cannot be read as a project ({exc}); nothing was "
                           "merged") from None
     finally:
         conn.close()
-    return _Other(path, rows, reviewers, pairs)
+    check_copy(path, rows, reviewers, grants)
+    return _Other(path, rows, reviewers, pairs, grants)
 
 
 def _check_pairs(project: ProjectFile, other: _Other) -> None:
@@ -126,8 +139,11 @@ def _existing(conn: sqlite3.Connection, ids: list[str]) -> dict[str, Row]:
     return out
 
 
-def merge(project: ProjectFile, others: list[Path]) -> MergeResult:
-    """Bring in the decisions (and reviewers) of ``others``; all of them or, on error, none."""
+def merge(project: ProjectFile, others: list[Path], accept_roles: bool = False) -> MergeResult:
+    """Bring in the decisions (and reviewers) of ``others``; all of them or, on error, none.
+
+    ``accept_roles`` also brings in the copies' role changes (see the module docstring).
+    """
     if not others:
         raise DocketError("give at least one project copy to merge")
     read = [_read(Path(p), project) for p in others]  # every file checked before any write
@@ -135,6 +151,12 @@ def merge(project: ProjectFile, others: list[Path]) -> MergeResult:
         for other in read:
             _check_pairs(project, other)
         known = _existing(project.connection, sorted({r[0] for o in read for r in o.decisions}))
+        changes: list[RoleChange] = []
+        for other in read:
+            seen = {c.grant_id for c in changes}
+            changes += [c for c in role_changes(other.path, other.reviewers, other.grants,
+                                                project.connection)
+                        if c.grant_id is None or c.grant_id not in seen]
     fresh: list[Row] = []
     files = []
     for other in read:
@@ -161,17 +183,22 @@ def merge(project: ProjectFile, others: list[Path]) -> MergeResult:
         first_seen.setdefault(row[2], row[6])
     touched = sorted({(int(r[1]), r[2], r[3]) for r in fresh})
     with project.transaction() as conn:
-        roles = dict(conn.execute("SELECT name, role FROM reviewers").fetchall())
+        present = dict(conn.execute("SELECT name, role FROM reviewers").fetchall())
         added_at = dict(conn.execute("SELECT name, added_at FROM reviewers").fetchall())
-        new_names = sorted(n for n in first_seen if n not in roles)
+        new_names = sorted(n for n in first_seen if n not in present)
         for name in sorted(first_seen):
-            if name in roles:  # keep the earliest sighting, so the order of merges is moot
+            if name in present:  # keep the earliest sighting, so the order of merges is moot
                 if first_seen[name] < added_at[name]:
                     conn.execute("UPDATE reviewers SET added_at = ? WHERE name = ?",
                                  (first_seen[name], name))
             else:
                 conn.execute("INSERT INTO reviewers VALUES (?, 'reviewer', ?)",
                              (name, first_seen[name]))
+        if accept_roles and changes:
+            roles.insert(conn, accepted_grants(changes, log.stamp()))
+            roles_now = dict(conn.execute("SELECT name, role FROM reviewers").fetchall())
+        else:
+            roles_now = present
         conn.executemany(f"INSERT INTO decisions ({', '.join(COLUMNS)}) "
                          f"VALUES ({','.join('?' * len(COLUMNS))})", sorted(fresh))
         for pair_id, reviewer, role in touched:
@@ -181,4 +208,5 @@ def merge(project: ProjectFile, others: list[Path]) -> MergeResult:
         by_reviewer=dict(sorted(Counter(r[2] for r in fresh).items())),
         pairs_touched=len({t[0] for t in touched}), new_reviewers=tuple(new_names),
         unconfirmed_adjudicators=tuple(sorted(n for n in adjudicating
-                                              if roles.get(n) != "adjudicator")))
+                                              if roles_now.get(n) != "adjudicator")),
+        role_changes=tuple(changes), roles_accepted=bool(accept_roles and changes))

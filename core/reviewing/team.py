@@ -13,7 +13,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from ..errors import DocketError
-from ..storage import store
+from ..storage import roles
 from ..storage.project_file import ProjectFile
 from ..types import ROLES
 
@@ -39,6 +39,7 @@ class ReviewerChange:
     name: str
     role: str
     before: str | None
+    granted_by: str = ""
 
     @property
     def changed(self) -> bool:
@@ -46,11 +47,12 @@ class ReviewerChange:
 
     @property
     def message(self) -> str:
+        by = f" (granted by {self.granted_by})" if self.granted_by else ""
         if self.before is None:
-            return f"added {self.name} as {self.role}"
+            return f"added {self.name} as {self.role}{by}"
         if self.before == self.role:
             return f"{self.name} is already {self.role}; nothing changed"
-        return f"{self.name}: role changed from {self.before} to {self.role}"
+        return f"{self.name}: role changed from {self.before} to {self.role}{by}"
 
 
 def clean_name(name: str) -> str:
@@ -62,26 +64,33 @@ def clean_name(name: str) -> str:
     return name
 
 
-def add_reviewer(project: ProjectFile, name: str, role: str = "reviewer") -> ReviewerChange:
-    """Register ``name`` in ``role``; an existing reviewer's role is changed (and said so)."""
+def add_reviewer(project: ProjectFile, name: str, role: str = "reviewer",
+                 granted_by: str = "") -> ReviewerChange:
+    """Register ``name`` in ``role``; an existing reviewer's role is changed (and said so).
+
+    Every change of role is logged with ``granted_by`` and the time, so that decisions are
+    judged by the role held when they were made (see ``storage.roles``).
+    """
     name = clean_name(name)
     if role not in ROLES:
         raise DocketError(f"unknown role '{role}'; use reviewer or adjudicator")
+    by = clean_name(granted_by) if granted_by.strip() else ""
     with project.transaction() as conn:
         row = conn.execute("SELECT role FROM reviewers WHERE name = ?", (name,)).fetchone()
-        if row is None:
-            conn.execute("INSERT INTO reviewers VALUES (?, ?, ?)", (name, role, store.now()))
-        elif row[0] != role:
-            conn.execute("UPDATE reviewers SET role = ? WHERE name = ?", (role, name))
-    return ReviewerChange(name, role, None if row is None else row[0])
+        before = None if row is None else row[0]
+        roles.register(conn, name)
+        if (before or roles.DEFAULT_ROLE) != role:
+            roles.grant(conn, name, role, by or "(not given)")
+    return ReviewerChange(name, role, before, by if (before or roles.DEFAULT_ROLE) != role else "")
 
 
 def list_reviewers(project: ProjectFile) -> list[dict[str, Any]]:
     """Everyone registered (or with decisions), by name: role, added_at and their work so far.
 
-    ``labels`` and ``holds`` count standing reviewer labels, ``adjudications`` standing
-    adjudicator labels; ``seconds`` is the time spent over every label decision they made,
-    retracted ones included (the time was spent all the same).
+    ``granted_by`` and ``granted_at`` tell who gave the present role and when (None for a
+    reviewer never granted another role). ``labels`` and ``holds`` count standing reviewer
+    labels, ``adjudications`` standing adjudicator labels; ``seconds`` is the time spent over
+    every label decision they made, retracted ones included (the time was spent all the same).
     """
     conn = project.connection
     with project.reading():
@@ -94,6 +103,7 @@ def list_reviewers(project: ProjectFile) -> list[dict[str, Any]]:
             "SELECT reviewer, role, label, count(*) FROM current GROUP BY reviewer, role, label")}
         seconds = dict(conn.execute("SELECT reviewer, sum(seconds) FROM decisions "
                                     "WHERE label IS NOT NULL GROUP BY reviewer"))
+        granted = {g.name: g for g in roles.grants(conn)}  # oldest first: the last one stays
     out = []
     for name in sorted(people):
         mine = {k: n for k, n in counts.items() if k[0] == name}
@@ -102,7 +112,9 @@ def list_reviewers(project: ProjectFile) -> list[dict[str, Any]]:
                     "holds": mine.get((name, "reviewer", "hold"), 0),
                     "adjudications": sum(n for (_, role, _), n in mine.items()
                                          if role == "adjudicator"),
-                    "seconds": round(float(seconds.get(name) or 0.0), 3)})
+                    "seconds": round(float(seconds.get(name) or 0.0), 3),
+                    "granted_by": granted[name].granted_by if name in granted else None,
+                    "granted_at": granted[name].granted_at if name in granted else None})
     return out
 
 

@@ -16,7 +16,7 @@ from typing import Any, Self
 from ..errors import DocketError
 from ..types import LABELS, Decision, FieldSpec
 from . import decisions as log
-from . import drafts, store
+from . import drafts, roles, store
 
 
 class ProjectFile:
@@ -85,8 +85,7 @@ class ProjectFile:
             raise DocketError(f"unknown label '{label}'; use one of {', '.join(LABELS)}")
         with self.transaction() as conn:
             prior = log.current_of(conn, pair_id, reviewer, role)
-            conn.execute("INSERT OR IGNORE INTO reviewers VALUES (?, ?, ?)",
-                         (reviewer, role, store.now()))
+            roles.register(conn, reviewer)  # a role beyond reviewer is only ever granted
             note = note or drafts.of(conn, pair_id, reviewer, role)
             drafts.clear(conn, pair_id, reviewer, role)  # the note is in the log now
             return log.append(conn, pair_id, reviewer, label, note, seconds,

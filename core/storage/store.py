@@ -115,7 +115,8 @@ def _to_v3(conn: sqlite3.Connection) -> None:
             conn.execute(statement)
     # An older file kept only each person's present role: an adjudicator is taken to have
     # held it since they were added, which is all the file can tell.
-    conn.execute("INSERT INTO role_grants SELECT lower(hex(randomblob(16))), name, role, ?, "
+    # Its id is made from the name, so copies upgraded apart hold the same grant.
+    conn.execute("INSERT INTO role_grants SELECT 'present:' || name, name, role, ?, "
                  "added_at FROM reviewers WHERE role <> 'reviewer'", (MIGRATED_GRANTOR,))
     if conn.execute("SELECT 1 FROM meta WHERE key = 'fields'").fetchone():
         from .fingerprint import records_fingerprint

@@ -1,0 +1,101 @@
+"""Who held which role, and since when: the role grants log.
+
+``reviewers.role`` is a person's present role; ``role_grants`` is every change of it, with who
+made the change and when. A decision is judged by the role its maker held at the moment it was
+made: an adjudication by someone who was not (or no longer) an adjudicator then settles nothing,
+whatever role the decision row itself claims. A name without any grant is a reviewer.
+
+These are records kept in the project file, not security: anyone who can write the file can
+edit them, and a name is not proof of who typed it.
+"""
+
+from __future__ import annotations
+
+import bisect
+import sqlite3
+import uuid
+from dataclasses import asdict, dataclass
+from typing import Any
+
+from ..types import ROLES
+from . import store
+from .decisions import stamp
+
+__all__ = ["MIGRATED_GRANTOR", "ROLES", "Grant", "grant", "history", "register", "role_at"]
+DEFAULT_ROLE = "reviewer"
+MIGRATED_GRANTOR = store.MIGRATED_GRANTOR
+
+History = dict[str, list[tuple[str, str]]]  # name -> [(granted_at, role)], oldest first
+
+
+@dataclass(frozen=True)
+class Grant:
+    grant_id: str
+    name: str
+    role: str
+    granted_by: str
+    granted_at: str
+
+    def to_dict(self) -> dict[str, Any]:
+        return asdict(self)
+
+
+GRANT_COLUMNS = "grant_id, name, role, granted_by, granted_at"
+
+
+def register(conn: sqlite3.Connection, name: str) -> None:
+    """Make ``name`` known as a reviewer if it is new; roles are only ever granted."""
+    conn.execute("INSERT OR IGNORE INTO reviewers VALUES (?, ?, ?)",
+                 (name, DEFAULT_ROLE, store.now()))
+
+
+def grant(conn: sqlite3.Connection, name: str, role: str, granted_by: str) -> Grant:
+    """Give ``name`` the role ``role`` from now on; no commit (call inside a transaction)."""
+    if role not in ROLES:
+        raise ValueError(f"unknown role {role!r}")
+    g = Grant(str(uuid.uuid4()), name, role, granted_by, stamp())
+    insert(conn, [g])
+    return g
+
+
+def insert(conn: sqlite3.Connection, grants: list[Grant]) -> None:
+    """Record grants (from here or accepted from a copy) and bring present roles up to date."""
+    conn.executemany(f"INSERT OR IGNORE INTO role_grants ({GRANT_COLUMNS}) VALUES (?, ?, ?, ?, ?)",
+                     [(g.grant_id, g.name, g.role, g.granted_by, g.granted_at) for g in grants])
+    for name in sorted({g.name for g in grants}):
+        register(conn, name)
+        conn.execute("UPDATE reviewers SET role = (SELECT role FROM role_grants WHERE name = ? "
+                     "ORDER BY granted_at DESC, grant_id DESC LIMIT 1) WHERE name = ?",
+                     (name, name))
+
+
+def grants(conn: sqlite3.Connection) -> list[Grant]:
+    """Every grant, oldest first. An older file, read as it is, has kept only present roles:
+    they are read as the upgrade would record them, held since the person was added."""
+    if not store.has_table(conn, "role_grants"):
+        return [Grant(f"present:{name}", name, role, MIGRATED_GRANTOR, added_at)
+                for name, role, added_at in conn.execute(
+                    "SELECT name, role, added_at FROM reviewers WHERE role <> ? "
+                    "ORDER BY added_at, name", (DEFAULT_ROLE,))]
+    return [Grant(*row) for row in conn.execute(
+        f"SELECT {GRANT_COLUMNS} FROM role_grants ORDER BY granted_at, grant_id")]
+
+
+def history(conn: sqlite3.Connection) -> History:
+    out: History = {}
+    for g in grants(conn):
+        out.setdefault(g.name, []).append((g.granted_at, g.role))
+    return out
+
+
+def role_at(past: History, name: str, when: str) -> str:
+    """The role ``name`` held at ``when`` (ISO time): the latest grant made at or before it."""
+    steps = past.get(name, [])
+    i = bisect.bisect_right(steps, (when, "\uffff"))
+    return steps[i - 1][1] if i else DEFAULT_ROLE
+
+
+def latest_grant(conn: sqlite3.Connection, name: str) -> Grant | None:
+    row = conn.execute(f"SELECT {GRANT_COLUMNS} FROM role_grants WHERE name = ? "
+                       "ORDER BY granted_at DESC, grant_id DESC LIMIT 1", (name,)).fetchone()
+    return None if row is None else Grant(*row)
