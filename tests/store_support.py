@@ -13,6 +13,7 @@ DROP TABLE role_grants;
 DROP TABLE claims;
 CREATE INDEX decisions_pair ON decisions(pair_id, reviewer);
 CREATE INDEX decisions_reviewer ON decisions(reviewer, decided_at);
+ALTER TABLE reviewers DROP COLUMN standing;
 DELETE FROM meta WHERE key = 'records_fingerprint';
 """
 TO_V1 = """

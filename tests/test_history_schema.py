@@ -44,6 +44,7 @@ def test_a_version_2_file_is_upgraded_in_place(sample_project: Path, tmp_path: P
         grants = conn.execute("SELECT name, role, granted_by FROM role_grants").fetchall()
         assert grants == [("ines", "adjudicator", store.MIGRATED_GRANTOR)]
         assert len(p.decisions()) == 1
+        assert conn.execute("SELECT standing FROM reviewers WHERE name = 'maya'").fetchone() == (1,)
         assert conn.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
     # Read-only, an older file is left as it is, and its present roles read as the upgrade
     # would record them.
@@ -64,3 +65,28 @@ def test_fingerprint_covers_record_values(sample_project: Path, tmp_path: Path) 
                          f"{store.quote(column)} = (SELECT min({store.quote(column)}) "
                          "FROM left_records)")
         assert records_fingerprint(a.connection) != records_fingerprint(b.connection)
+
+
+def test_standing_counts_follow_decide_undo_and_merge(sample_project: Path, tmp_path: Path) -> None:
+    from docket.core.reviewing.merge import merge
+
+    other = tmp_path / "copy.docket"
+    shutil.copy(sample_project, other)
+    with Project.open(other) as p:
+        for item in p.next_pairs("ravi", 3):
+            p.decide(item.pair_id, "ravi", "match")
+    with Project.open(sample_project) as p:
+        a, b, c = p.next_pairs("maya", 3)
+        p.decide(a.pair_id, "maya", "match")
+        p.decide(b.pair_id, "maya", "hold")
+        p.decide(b.pair_id, "maya", "non-match")  # a change, not another label
+        p.undo("maya")
+        p.undo("maya")
+        add_reviewer(p, "maya", "adjudicator", granted_by="lead")
+        p.decide(c.pair_id, "maya", "match", role="adjudicator")  # not a reviewer label
+        merge(p, [other])
+        conn = p.connection
+        counted = dict(conn.execute("SELECT reviewer, count(*) FROM current "
+                                    "WHERE role = 'reviewer' GROUP BY reviewer"))
+        kept = dict(conn.execute("SELECT name, standing FROM reviewers"))
+    assert counted == {"maya": 1, "ravi": 3} and kept == counted

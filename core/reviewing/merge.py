@@ -192,7 +192,8 @@ def merge(project: ProjectFile, others: list[Path], accept_roles: bool = False) 
                     conn.execute("UPDATE reviewers SET added_at = ? WHERE name = ?",
                                  (first_seen[name], name))
             else:
-                conn.execute("INSERT INTO reviewers VALUES (?, 'reviewer', ?)",
+                conn.execute("INSERT INTO reviewers (name, role, added_at) "
+                             "VALUES (?, 'reviewer', ?)",
                              (name, first_seen[name]))
         if accept_roles and changes:
             roles.insert(conn, accepted_grants(changes, log.stamp()))

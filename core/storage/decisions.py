@@ -44,12 +44,18 @@ def refresh(conn: sqlite3.Connection, pair_id: int, reviewer: str,
         "  SELECT 1 FROM decisions r WHERE r.supersedes = d.decision_id AND r.label IS NULL) "
         "ORDER BY decided_at DESC, decision_id DESC LIMIT 1",
         (pair_id, reviewer, role)).fetchone()
+    had = conn.execute("SELECT 1 FROM current WHERE pair_id = ? AND reviewer = ? AND role = ?",
+                       (pair_id, reviewer, role)).fetchone() is not None
     if row is None:
         conn.execute("DELETE FROM current WHERE pair_id = ? AND reviewer = ? AND role = ?",
                      (pair_id, reviewer, role))
     else:
         conn.execute("INSERT OR REPLACE INTO current VALUES (?, ?, ?, ?, ?, ?)",
                      (pair_id, reviewer, row[2], row[0], row[1], row[3]))
+    if role == "reviewer" and had != (row is not None):
+        # Kept as a count, so that the queue need not count a long history on every pair.
+        conn.execute("UPDATE reviewers SET standing = standing + ? WHERE name = ?",
+                     (1 if row is not None else -1, reviewer))
     conn.execute(
         "UPDATE pairs SET n_labels = (SELECT count(*) FROM current c WHERE c.pair_id = ? "
         "AND c.role = 'reviewer') WHERE pair_id = ?", (pair_id, pair_id))

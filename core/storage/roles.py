@@ -45,7 +45,7 @@ GRANT_COLUMNS = "grant_id, name, role, granted_by, granted_at"
 
 def register(conn: sqlite3.Connection, name: str) -> None:
     """Make ``name`` known as a reviewer if it is new; roles are only ever granted."""
-    conn.execute("INSERT OR IGNORE INTO reviewers VALUES (?, ?, ?)",
+    conn.execute("INSERT OR IGNORE INTO reviewers (name, role, added_at) VALUES (?, ?, ?)",
                  (name, DEFAULT_ROLE, store.now()))
 
 

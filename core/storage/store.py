@@ -88,6 +88,8 @@ CREATE UNIQUE INDEX pairs_ids ON pairs(left_id, right_id);
 # they are sorted, so a decision costs the same after 100,000 earlier ones as after none. Role
 # grants are kept as a log, so a decision is judged by the role its maker held at the time.
 # Claims are leases on served pairs, so two reviewers at work together never get one pair.
+# ``reviewers.standing`` counts each reviewer's standing reviewer labels (the queue's audit
+# rhythm needs it for every pair served; counting ``current`` would grow with history).
 SCHEMA_V3 = """
 DROP INDEX decisions_pair;
 DROP INDEX decisions_reviewer;
@@ -102,6 +104,9 @@ CREATE TABLE claims (
     pair_id INTEGER NOT NULL, reviewer TEXT NOT NULL, expires_at TEXT NOT NULL,
     PRIMARY KEY (pair_id, reviewer));
 CREATE INDEX claims_reviewer ON claims(reviewer);
+ALTER TABLE reviewers ADD COLUMN standing INTEGER NOT NULL DEFAULT 0;
+UPDATE reviewers SET standing = (SELECT count(*) FROM current c WHERE c.reviewer = reviewers.name
+    AND c.role = 'reviewer');
 """
 MIGRATED_GRANTOR = "(granted before role history was kept)"
 
