@@ -258,7 +258,7 @@ def test_export_other_and_write_export(answered: Project, tmp_path: Path, capsys
     assert isinstance(lm, list) and len(lm) == len(gold)
     with pytest.raises(DocketError, match="JSON lines"):
         cli_gold.write_export(lm, str(tmp_path / "lm.csv"), None)
-    with pytest.raises(DocketError, match="--for-lm goes with"):
+    with pytest.raises(DocketError, match="--for-lm writes pairs"):
         cli_gold.export_other(answered, "clusters", argparse.Namespace(for_lm=True))
     cli_gold.write_export(lm, "-", None)
     assert json.loads(capsys.readouterr().out.splitlines()[0])["pair_id"] == lm[0]["pair_id"]

@@ -58,10 +58,13 @@ def register(sub: argparse._SubParsersAction) -> None:
     p = command(sub, "export", "Write a project's pairs, gold labels or clusters out.",
                  "scores: every candidate pair with per-field similarities, match weight, "
                  "probability and the predicted label at the project's threshold.\n"
-                 "gold: the gold labels, how each was decided, reviewers, audit flag and "
-                 "inclusion probability.\ntraining: gold plus both records and the "
-                 "similarities, with a stable train/test split (--for-lm: text for a language "
-                 "model, JSON lines).\nclusters: record id -> cluster id from gold matches; "
+                 "gold: the gold labels and how each was reached (every reviewer's label and "
+                 "note; the adjudicator, reason and time), audit flag and inclusion "
+                 "probability.\ntraining: gold plus both records and the "
+                 "similarities, with a train/test split that keeps each record on one side.\n"
+                 "--for-lm (scores, gold, training): each pair as a prompt for a language "
+                 "model, JSON lines, from docket's template or yours (--lm-template).\n"
+                 "clusters: record id -> cluster id from gold matches; "
                  "conflicts: clusters that hold a gold non-match; missed: true matches that "
                  "are not candidates (docket missed).",
                  "docket export vets.docket --what training -o training.parquet", export)
@@ -74,8 +77,15 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--test-share", type=share, default=0.2, metavar="SHARE",
                    help="training: share in the test split (default 0.2)")
     p.add_argument("--seed", type=int, default=0, help="training: seed of the split (default 0)")
+    p.add_argument("--split-by", choices=["record", "pair"], default="record",
+                   help="training: keep each record on one side (record, default) or split "
+                        "pairs independently, each keeping its side as labels arrive (pair)")
     p.add_argument("--for-lm", action="store_true",
-                   help="gold or training: pairs as text, JSON lines, for a language model")
+                   help="scores, gold or training: each pair as a prompt for a language "
+                        "model, JSON lines")
+    p.add_argument("--lm-template", metavar="FILE",
+                   help="with --for-lm: the prompt's text, with $first, $second (the two "
+                        "records) and $fields (their field names); $$ is a dollar sign")
     p.add_argument("--all-records", action="store_true",
                    help="clusters: every record, singletons too")
     p.add_argument("--no-formula-guard", dest="formula_guard", action="store_false",
@@ -118,7 +128,7 @@ def export(args: argparse.Namespace) -> int:
     from docket.core.exports.exporting import output_format, scores_frame, write_frame
     if not (args.for_lm and args.output == "-"):
         output_format(args.output, args.format)  # a bad target fails before any work
-    if args.what != "scores":
+    if args.what != "scores" or args.for_lm or args.lm_template:
         with open_project(args.project, readonly=True) as project:
             result = export_other(project, args.what, args)
         write_export(result, args.output, args.format,
@@ -229,14 +239,19 @@ def export_other(project: Any, what: str, args: argparse.Namespace) -> Any:
     share = getattr(args, "test_share", None)
     share = 0.2 if share is None else float(share)
     seed = int(getattr(args, "seed", 0) or 0)
+    split_by = getattr(args, "split_by", None) or "record"
+    template_file = getattr(args, "lm_template", None)
+    if template_file and not getattr(args, "for_lm", False):
+        raise DocketError("--lm-template shapes the --for-lm text: add --for-lm")
     if getattr(args, "for_lm", False):
-        if what not in ("gold", "training"):
-            raise DocketError(f"--for-lm goes with --what gold or training, not {what}")
-        return ge.lm_records(project, share, seed)
+        from docket.core.exports.lm_export import lm_records
+        from docket.core.exports.lm_text import LmTemplate
+        return lm_records(project, what, LmTemplate.load(template_file), share, seed,
+                          split_by)
     if what == "gold":
         return ge.gold_frame(project)
     if what == "training":
-        return ge.training_frame(project, share, seed)
+        return ge.training_frame(project, share, seed, split_by)
     if what == "clusters":
         return ge.clusters_frame(project, bool(getattr(args, "all_records", False)))
     if what == "conflicts":

@@ -3,17 +3,13 @@
 Every frame here is built from the gold labels under the project's policy (``reviewing.gold``), so
 pairs on hold or in disagreement never leave the project as if they were settled.
 
-The train/test split is a seeded hash of the pair id alone (``split_of``): a pair keeps its side
-however many labels arrive later, however files are merged, and whatever other pairs are
-relabelled. Each label gets the test share in expectation, independently of the other label;
-an exact per-label count would have to move pairs between sides as labels arrive, which would
-leak earlier test pairs into later training runs.
+The gold table carries how each label was reached (``gold_detail``); the train/test split
+keeps each record on one side by default (``split``).
 """
 
 from __future__ import annotations
 
 import json
-import re
 from collections.abc import Iterable
 from dataclasses import asdict, dataclass
 from pathlib import Path
@@ -22,57 +18,57 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from ..errors import DocketError
-from ..ordering import queue
 from ..reviewing.gold import gold_labels, needs_adjudication
 from ..storage import store
 from ..storage.project_file import ProjectFile
 from . import clusters as clustering
 from .exporting import atomic_write, to_stdout
+from .gold_detail import DETAIL_COLUMNS, details
+from .split import split, split_of
+
+__all__ = ["split_of"]  # kept here for callers of the pair split
 
 GOLD_COLUMNS = ("pair_id", "left_id", "right_id", "label", "how", "reviewers", "n_reviews",
-                "audit", "audit_stratum", "inclusion_probability")
-SPLIT_SALT = 0x7E57_5917  # keeps the split's hash stream apart from the overlap and the audit
-MISSING = "(missing)"
-LM_INSTRUCTION = ("Do Record A and Record B describe the same real-world entity? "
-                  "Answer match or non-match.")
+                "audit", "audit_stratum", "inclusion_probability", *DETAIL_COLUMNS)
 LEFT, RIGHT = "L:", "R:"  # link mode: the two sides share no id space once clustered
 
 
 # -- gold ---------------------------------------------------------------------------------------
 def gold_frame(project: ProjectFile) -> pd.DataFrame:
-    """One row per gold-labelled pair, by pair id.
+    """One row per gold-labelled pair, by pair id, with how its label was reached.
 
-    ``how`` is unanimous, adjudicated or single; ``reviewers`` is ';'-joined. ``audit_stratum``
-    and ``inclusion_probability`` are set only for pairs of the audit slice: a pair the queue
-    chose by uncertainty has no known probability of having been chosen.
+    ``how`` is unanimous, adjudicated or single; ``reviewers`` is ';'-joined; ``reviews`` is
+    every reviewer's standing label, note and time as JSON; adjudicated pairs add
+    ``why_adjudicated``, ``adjudicator``, ``reason`` and ``adjudicated_at`` (see
+    ``gold_detail``). ``audit_stratum`` and ``inclusion_probability`` are set only for pairs
+    of the audit slice: a pair the queue chose by uncertainty has no known probability of
+    having been chosen.
     """
     golds = gold_labels(project.connection)
     rows = {pid: (a, b, audit, stratum, inc) for pid, a, b, audit, stratum, inc in
             project.connection.execute(
                 "SELECT pair_id, left_id, right_id, audit, stratum, inclusion FROM pairs "
                 "WHERE pair_id IN (SELECT pair_id FROM current)")}
+    how = details(project.connection, {g.pair_id for g in golds})
     records = []
     for g in golds:
         a, b, audit, stratum, inc = rows[g.pair_id]
         records.append((g.pair_id, a, b, g.label, g.how, ";".join(g.reviewers), g.n_reviews,
-                        bool(audit), stratum if audit else None, inc if audit else None))
+                        bool(audit), stratum if audit else None, inc if audit else None,
+                        *how[g.pair_id].row()))
     frame = pd.DataFrame.from_records(records, columns=list(GOLD_COLUMNS))
     return frame.astype({"pair_id": "int64", "n_reviews": "int64", "audit": "bool",
                          "audit_stratum": "Int64", "inclusion_probability": "float64",
                          **{c: "object" for c in ("left_id", "right_id", "label", "how",
-                                                  "reviewers")}})
+                                                  "reviewers", *DETAIL_COLUMNS)}})
 
 
-def split_of(pair_ids: Iterable[int] | np.ndarray, test_share: float = 0.2,
-             seed: int = 0) -> np.ndarray:
-    """'train' or 'test' per pair: a pure function of pair id and seed (see the module notes)."""
-    if not 0.0 <= test_share < 1.0:
-        raise DocketError(f"--test-share {test_share}: give a share from 0 up to (not) 1")
-    ids = np.asarray(list(pair_ids) if not isinstance(pair_ids, np.ndarray) else pair_ids,
-                     dtype=np.int64)
-    u = queue.unit_hash(ids, (int(seed) * 0x9E3779B1) ^ SPLIT_SALT)
-    return np.where(u < test_share, "test", "train").astype(object)
+def gold_split(project: ProjectFile, gold: pd.DataFrame, test_share: float = 0.2,
+               seed: int = 0, by: str = "record") -> np.ndarray:
+    """'train' or 'test' per row of ``gold`` (see ``split``: by record cluster or by pair)."""
+    ends = [(_node(project, "left", a), _node(project, "right", b))
+            for a, b in gold[["left_id", "right_id"]].itertuples(index=False)]
+    return split(gold["pair_id"].tolist(), ends, test_share, seed, by)
 
 
 # -- training -----------------------------------------------------------------------------------
@@ -105,14 +101,15 @@ def _prefixed(frame: pd.DataFrame, prefix: str, taken: set[str]) -> pd.DataFrame
     return frame.rename(columns=names)
 
 
-def training_frame(project: ProjectFile, test_share: float = 0.2, seed: int = 0) -> pd.DataFrame:
+def training_frame(project: ProjectFile, test_share: float = 0.2, seed: int = 0,
+                   split_by: str = "record") -> pd.DataFrame:
     """Gold rows plus ``split``, the per-field similarities and both records' columns.
 
     Similarity columns are ``sim_<field>`` (None where a side is missing); record columns are
     ``left_<column>`` and ``right_<column>``, every column of the record but its id.
     """
     gold = gold_frame(project)
-    gold.insert(4, "split", split_of(gold["pair_id"].to_numpy(), test_share, seed))
+    gold.insert(4, "split", gold_split(project, gold, test_share, seed, split_by))
     sim_names = [f"sim_{f.name}" for f in project.fields]
     sims = pd.read_sql_query(
         f"SELECT pair_id, {', '.join(store.similarity_column(f.name) for f in project.fields)} "
@@ -127,45 +124,7 @@ def training_frame(project: ProjectFile, test_share: float = 0.2, seed: int = 0)
     return out.reset_index(drop=True)
 
 
-# -- language-model records ---------------------------------------------------------------------
-def _clean(value: object) -> str:
-    if value is None or (isinstance(value, float) and np.isnan(value)):
-        return MISSING
-    text = re.sub(r"\s+", " ", str(value)).strip()
-    return text or MISSING
-
-
-def serialise_pair(names: list[str], left: list[object], right: list[object]) -> str:
-    """The pair as text: 'Record A: owner: …; pet: …' then 'Record B: …' on a second line.
-
-    Both records use the same field names, in the same order, so a model compares like with
-    like; whitespace inside a value is collapsed so that a value never breaks the layout.
-    """
-    a = "; ".join(f"{n}: {_clean(v)}" for n, v in zip(names, left, strict=True))
-    b = "; ".join(f"{n}: {_clean(v)}" for n, v in zip(names, right, strict=True))
-    return f"Record A: {a}\nRecord B: {b}"
-
-
-def lm_records(project: ProjectFile, test_share: float = 0.2, seed: int = 0,
-               instruction: str = LM_INSTRUCTION) -> list[dict[str, Any]]:
-    """One dict per gold pair: pair_id, instruction, input (the serialised pair), label, split.
-
-    The compared fields are serialised under docket's field names, left record as A.
-    """
-    gold = gold_frame(project)
-    left = _records(project, "left", gold["left_id"])
-    right = _records(project, "right", gold["right_id"])
-    names = [f.name for f in project.fields]
-    splits = split_of(gold["pair_id"].to_numpy(), test_share, seed)
-    out = []
-    for row, split in zip(gold.itertuples(index=False), splits, strict=True):
-        a = [left.at[row.left_id, f.left_column] for f in project.fields]
-        b = [right.at[row.right_id, f.right_column] for f in project.fields]
-        out.append({"pair_id": int(row.pair_id), "instruction": instruction,
-                    "input": serialise_pair(names, a, b), "label": row.label, "split": split})
-    return out
-
-
+# -- JSON lines ---------------------------------------------------------------------------------
 def write_jsonl(records: list[dict[str, Any]], target: str) -> None:
     """JSON lines to a file (atomically, via a temporary beside it) or '-' for stdout."""
     lines = "".join(json.dumps(r, ensure_ascii=False) + "\n" for r in records)

@@ -1,0 +1,152 @@
+"""Pairs for a language model (--for-lm, --lm-template) and the train/test split."""
+# ruff: noqa: F811 - pytest fixtures imported from gold_fixtures arrive as arguments
+
+from __future__ import annotations
+
+import json
+import re
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from docket.core import DocketError, Project
+from docket.core.exports import gold_export as ge
+from docket.core.exports.lm_export import lm_records
+from docket.core.exports.lm_text import DEFAULT_TEMPLATE, LmTemplate
+from docket.core.exports.split import record_split
+from tests.gold_fixtures import (  # noqa: F401 - fixtures are used by name
+    check_golden,
+    pair_ids,
+    tiny,
+    tiny_file,
+)
+
+
+def test_for_lm_golden_and_serialisation(tiny: Project, tmp_path: Path) -> None:
+    records = lm_records(tiny, "training", test_share=0.5, seed=3)
+    target = tmp_path / "lm.jsonl"
+    ge.write_jsonl(records, str(target))
+    text = target.read_text(encoding="utf-8")
+    check_golden("for_lm.jsonl", text)
+    back = [json.loads(line) for line in text.splitlines()]
+    assert back == records
+    assert set(back[0]) == {"pair_id", "left_id", "right_id", "prompt", "label", "split"}
+    five = next(r for r in back if r["pair_id"] == pair_ids(tiny)[("5", "5")])
+    assert "First entry: name: Per Moe; town: Bodø\n" in five["prompt"]
+    assert "Second entry: name: Pål Moe; town: (missing)\n" in five["prompt"]
+    assert "real-world entity" not in five["prompt"]
+    assert five["label"] == "non-match"
+    assert pd.read_json(target, lines=True)["pair_id"].tolist() == [r["pair_id"] for r in back]
+
+
+def test_for_lm_follows_what_is_exported(tiny: Project) -> None:
+    scores, gold, training = (lm_records(tiny, w) for w in ("scores", "gold", "training"))
+    n_pairs = tiny.connection.execute("SELECT count(*) FROM pairs").fetchone()[0]
+    assert len(scores) == n_pairs and {"probability"} <= set(scores[0]) - set(gold[0])
+    assert "label" not in scores[0]
+    assert len(gold) == len(training) == len(ge.gold_frame(tiny))
+    assert {"how"} == set(gold[0]) - set(training[0])
+    assert {"split"} == set(training[0]) - set(gold[0])
+    for what in ("clusters", "conflicts"):
+        with pytest.raises(DocketError, match="--for-lm writes pairs"):
+            lm_records(tiny, what)
+
+
+def test_a_template_of_ones_own_is_filled_and_checked(tiny: Project, tmp_path: Path) -> None:
+    mine = tmp_path / "prompt.txt"
+    mine.write_text("Same? [$fields] $$5 A=${first} B=$second", encoding="utf-8")
+    record = lm_records(tiny, "gold", LmTemplate.load(mine))[0]
+    assert record["prompt"].startswith("Same? [name, town] $5 A=name: ")
+    for text, complaint in (("$first only", "lacks $second"), ("$first $second $secnd",
+                                                                  "unknown placeholder $secnd"),
+                            ("$first $second costs 5$", "a '$' that starts no placeholder")):
+        mine.write_text(text, encoding="utf-8")
+        with pytest.raises(DocketError, match=re.escape(complaint)):
+            LmTemplate.load(mine)
+    with pytest.raises(DocketError, match="no such template file"):
+        LmTemplate.load(tmp_path / "absent.txt")
+    assert "$first" in DEFAULT_TEMPLATE and "$second" in DEFAULT_TEMPLATE
+
+
+# -- the split --------------------------------------------------------------------------------
+def test_split_is_deterministic_and_near_its_share() -> None:
+    ids = np.arange(1, 20_001)
+    a = ge.split_of(ids, 0.2, seed=7)
+    assert (a == ge.split_of(ids, 0.2, seed=7)).all()
+    assert (a != ge.split_of(ids, 0.2, seed=8)).any()
+    assert abs((a == "test").mean() - 0.2) < 0.01
+    assert (ge.split_of(ids, 0.0) == "train").all()
+    with pytest.raises(DocketError, match="test-share"):
+        ge.split_of(ids, 1.0)
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.sets(st.integers(1, 10**9), min_size=1, max_size=60),
+       st.sets(st.integers(1, 10**9), max_size=60), st.integers(0, 2**31))
+def test_split_of_a_pair_never_changes_when_more_labels_arrive(old: set[int], new: set[int],
+                                                               seed: int) -> None:
+    before = dict(zip(sorted(old), ge.split_of(sorted(old), 0.3, seed), strict=True))
+    grown = sorted(old | new)
+    after = dict(zip(grown, ge.split_of(grown, 0.3, seed), strict=True))
+    assert all(after[p] == side for p, side in before.items())
+
+
+def test_training_split_matches_split_of_and_is_stable(tiny: Project) -> None:
+    first = ge.training_frame(tiny, 0.5, 3, split_by="pair")[["pair_id", "split"]]
+    assert first["split"].tolist() == ge.split_of(first["pair_id"], 0.5, 3).tolist()
+    tiny.decide(pair_ids(tiny)[("3", "4")], "maya", "non-match")  # one more label arrives
+    later = ge.training_frame(tiny, 0.5, 3, split_by="pair").set_index("pair_id")["split"]
+    assert len(later) == len(first) + 1
+    assert all(later[p] == s for p, s in first.itertuples(index=False))
+
+
+@settings(max_examples=40, deadline=None)
+@given(st.lists(st.tuples(st.integers(0, 30), st.integers(0, 30)), min_size=1, max_size=80),
+       st.floats(0.0, 0.9), st.integers(0, 2**31))
+def test_record_split_keeps_every_record_on_one_side(ends: list[tuple[int, int]], share: float,
+                                                     seed: int) -> None:
+    pairs = [(f"L:{a}", f"R:{b}") for a, b in ends]
+    sides = record_split(pairs, share, seed)
+    seen: dict[str, str] = {}
+    for (a, b), side in zip(pairs, sides, strict=True):
+        for node in (a, b):
+            assert seen.setdefault(node, side) == side
+
+
+def test_record_split_is_near_its_share_on_many_small_clusters() -> None:
+    pairs = [(f"L:{i}", f"R:{i}") for i in range(20_000)]  # 20,000 clusters of two
+    sides = record_split(pairs, 0.2, seed=5)
+    assert abs((sides == "test").mean() - 0.2) < 0.01
+    assert (record_split(pairs, 0.2, seed=5) == sides).all()
+
+
+def test_for_lm_on_the_command_line(tiny_file: Path, tmp_path: Path,
+                                    capsys: pytest.CaptureFixture[str]) -> None:
+    from docket.tui.cli import main
+    copy = tmp_path / "tiny.docket"
+    copy.write_bytes(tiny_file.read_bytes())
+    out = tmp_path / "scores.jsonl"
+    assert main(["export", str(copy), "--what", "scores", "--for-lm", "-o", str(out)]) == 0
+    rows = [json.loads(line) for line in out.read_text(encoding="utf-8").splitlines()]
+    assert len(rows) == len(pair_ids(Project.open(copy, readonly=True)))
+    assert all("probability" in r and "First entry: " in r["prompt"] for r in rows)
+    mine = tmp_path / "mine.txt"
+    mine.write_text("$first | $second", encoding="utf-8")
+    for argv, needle in (
+            (["--what", "gold", "--lm-template", str(mine), "-o", "g.jsonl"], "add --for-lm"),
+            (["--what", "clusters", "--for-lm", "-o", "c.jsonl"], "--for-lm writes pairs"),
+            (["--what", "gold", "--for-lm", "-o", str(tmp_path / "g.csv")], "JSON lines"),
+            (["--what", "gold", "--for-lm", "--lm-template", str(tmp_path / "none.txt"),
+              "-o", "g.jsonl"], "no such template file")):
+        capsys.readouterr()
+        assert main(["export", str(copy), *argv]) == 2
+        err = capsys.readouterr().err.strip().splitlines()
+        assert len(err) == 1 and needle in err[0], err
+    assert main(["export", str(copy), "--what", "training", "--for-lm", "--lm-template",
+                 str(mine), "--split-by", "pair", "-o", "-"]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    assert json.loads(lines[0])["prompt"].startswith("name: ") and " | name: " in lines[0]
