@@ -1,5 +1,8 @@
 """One decision's cost at 0, 25,000 and 100,000 earlier decisions by the same reviewer.
 
+Beside it, the next-pair query with a claim (what the review screen runs for every pair it
+serves) at the same history sizes.
+
 A synthetic 120,000-pair project is built in a temporary folder; the reviewer's history is
 written straight into the log (as a long session would have left it), then the same
 ``Project.decide`` call is timed on fresh pairs at each history size. Target: p50 ≤ 2 ms at
@@ -58,6 +61,9 @@ def make_project(folder: Path, n_records: int = N_RECORDS, n_pairs: int = N_PAIR
 def add_history(project: object, pair_ids: list[int], reviewer: str = REVIEWER) -> None:
     """Write standing labels for ``pair_ids`` straight into the log, dated in the past."""
     start = datetime.now(UTC) - timedelta(days=30)
+    taken = {pid for (pid,) in project.connection.execute(  # type: ignore[attr-defined]
+        "SELECT pair_id FROM current WHERE reviewer = ?", (reviewer,))}
+    pair_ids = [pid for pid in pair_ids if pid not in taken]  # served during an earlier round
     rows = [(str(uuid.uuid4()), pid, reviewer, "reviewer", "non-match", "",
              (start + timedelta(microseconds=i)).isoformat(timespec="microseconds"))
             for i, pid in enumerate(pair_ids)]
@@ -66,6 +72,10 @@ def add_history(project: object, pair_ids: list[int], reviewer: str = REVIEWER) 
                          "note, decided_at) VALUES (?, ?, ?, ?, ?, ?, ?)", rows)
         conn.executemany("INSERT INTO current VALUES (?, ?, ?, ?, ?, ?)",
                          [(r[1], r[2], r[3], r[0], r[4], r[6]) for r in rows])
+        conn.execute("INSERT OR IGNORE INTO reviewers (name, role, added_at) VALUES (?, ?, ?)",
+                     (reviewer, "reviewer", rows[0][6] if rows else ""))
+        conn.execute("UPDATE reviewers SET standing = standing + ? WHERE name = ?",
+                     (len(rows), reviewer))
         conn.executemany("UPDATE pairs SET n_labels = n_labels + 1, open = (n_labels + 1 < need) "
                          "WHERE pair_id = ?", [(p,) for p in pair_ids])
 
@@ -76,6 +86,17 @@ def time_decisions(project: object, pair_ids: list[int]) -> list[float]:
         t = time.perf_counter()
         project.decide(pid, REVIEWER, "match", seconds=1.0)  # type: ignore[attr-defined]
         out.append(time.perf_counter() - t)
+    return out
+
+
+def time_serving(project: object, n: int = TIMED // 3) -> list[float]:
+    """Serve with a claim, then decide (untimed), as the review screen does."""
+    out = []
+    for _ in range(n):
+        t = time.perf_counter()
+        item = project.next_pairs(REVIEWER, 1, claim=True)[0]  # type: ignore[attr-defined]
+        out.append(time.perf_counter() - t)
+        project.decide(item.pair_id, REVIEWER, "non-match")  # type: ignore[attr-defined]
     return out
 
 
@@ -96,12 +117,17 @@ def main() -> None:
                 have = size
                 timed = spare[k * TIMED:(k + 1) * TIMED]
                 q = sorted(time_decisions(project, timed))
-                results[size] = (statistics.median(q), q[int(0.99 * len(q))])
+                served = sorted(time_serving(project))
+                results[size] = (statistics.median(q), q[int(0.99 * len(q))],
+                                 statistics.median(served))
         base = results[SIZES[0]][0]
-        for size, (p50, p99) in results.items():
+        serve_base = results[SIZES[0]][2]
+        for size, (p50, p99, serve) in results.items():
             print(f"one decision after {size:>7,} earlier decisions: p50 {p50 * 1e3:6.3f} ms, "
                   f"p99 {p99 * 1e3:6.3f} ms; p50 / target 2 ms = {p50 / 2e-3:.2f}; "
                   f"p50 / p50 at 0 = {p50 / base:.2f}")
+            print(f"  next pair with a claim: p50 {serve * 1e3:6.3f} ms; "
+                  f"/ p50 at 0 = {serve / serve_base:.2f}")
 
 
 if __name__ == "__main__":

@@ -16,8 +16,8 @@ from .ordering import queue
 from .reviewing import missed
 from .reviewing.gold import Gold, gold_labels
 from .reviewing.missed import MissedMatch
+from .storage import claims, roles, store
 from .storage import decisions as log
-from .storage import roles, store
 from .storage.project_file import ProjectFile
 from .storage.refit import RefitResult, refit
 from .types import ROLES, Decision, FieldComparison, PairCard, QueueItem
@@ -51,21 +51,58 @@ class Project(ProjectFile):
     def _stream(self, reviewer: str, audit: bool, n: int, exclude: tuple[int, ...]) -> list:
         skip = f"AND p.pair_id NOT IN ({','.join(map(str, exclude))})" if exclude else ""
         order = "p.audit_order" if audit else "t.priority, t.pattern_id, p.pair_id"
+        args: tuple = (int(audit), reviewer)
+        free = ""
+        if self._claims_kept():
+            free = f"AND {claims.free_for('p')}"
+            args += (reviewer, claims.now())
         return self._conn.execute(
             "SELECT p.pair_id, p.left_id, p.right_id, t.probability, p.audit, p.overlap, "
             "p.n_labels FROM pairs p JOIN patterns t ON t.pattern_id = p.pattern_id "
             f"WHERE p.open = 1 AND p.audit = ? {skip} AND NOT EXISTS (SELECT 1 FROM current c "
             "WHERE c.pair_id = p.pair_id AND c.reviewer = ? AND c.role = 'reviewer') "
-            f"ORDER BY {order} LIMIT ?", (int(audit), reviewer, n)).fetchall()
+            f"{free} ORDER BY {order} LIMIT ?", (*args, n)).fetchall()
 
-    def next_pairs(self, reviewer: str, n: int = 1,
-                   exclude: tuple[int, ...] = ()) -> list[QueueItem]:
-        """The next ``n`` pairs of this reviewer's queue, audit pairs mixed in at a fixed rate."""
-        with self._lock:
+    _has_claims: bool | None = None
+
+    def _claims_kept(self) -> bool:
+        # An older file opened read-only has no claims table (nor standing counts) yet.
+        if self._has_claims is None:
+            self._has_claims = store.has_table(self._conn, "claims")
+        return self._has_claims
+
+    def next_pairs(self, reviewer: str, n: int = 1, exclude: tuple[int, ...] = (),
+                   claim: bool = False) -> list[QueueItem]:
+        """The next ``n`` pairs of this reviewer's queue, audit pairs mixed in at a fixed rate.
+
+        Pairs that others' live claims fill are left out. With ``claim`` the pairs served are
+        claimed for this reviewer in the same write transaction (``storage.claims``); without
+        it nothing is written.
+        """
+        if not claim:
+            with self._lock:
+                return self._next(reviewer, n, exclude)
+        with self.transaction() as conn:
+            items = self._next(reviewer, n, exclude)
+            roles.register(conn, reviewer)
+            claims.claim(conn, reviewer, [i.pair_id for i in items])
+        return items
+
+    def release(self, reviewer: str, pair_id: int | None = None) -> None:
+        """End the reviewer's claim on ``pair_id`` (None: on every pair they hold)."""
+        with self.transaction() as conn:
+            claims.release(conn, reviewer, pair_id)
+
+    def _next(self, reviewer: str, n: int, exclude: tuple[int, ...]) -> list[QueueItem]:
+        if self._claims_kept():
+            row = self._conn.execute("SELECT standing FROM reviewers WHERE name = ?",
+                                     (reviewer,)).fetchone()
+            done = 0 if row is None else int(row[0])
+        else:
             done = self._conn.execute("SELECT count(*) FROM current WHERE reviewer = ? "
                                       "AND role = 'reviewer'", (reviewer,)).fetchone()[0]
-            audit = self._stream(reviewer, True, n, exclude)
-            other = self._stream(reviewer, False, n, exclude)
+        audit = self._stream(reviewer, True, n, exclude)
+        other = self._stream(reviewer, False, n, exclude)
         every = int(self.meta.get("audit_every", queue.AUDIT_EVERY))
         out: list[QueueItem] = []
         for i in range(n):

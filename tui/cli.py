@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import argparse
 import os
+import sqlite3
 import sys
 import warnings
 
@@ -51,6 +52,11 @@ def _main(argv: list[str] | None) -> int:
     except DocketError as exc:
         print(f"docket: {shown(exc)}", file=sys.stderr)
         return exc.exit_code
+    except sqlite3.Error as exc:  # the file met trouble mid-command (full disk, busy, damage)
+        from docket.core.storage.file_health import explain
+        print(f"docket: {shown(explain(exc, getattr(args, 'project', None) or 'project'))}",
+              file=sys.stderr)
+        return 2
     except KeyboardInterrupt:
         print("docket: interrupted; nothing was half-written", file=sys.stderr)
         return 130

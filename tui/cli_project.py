@@ -127,9 +127,13 @@ def status(args: argparse.Namespace) -> int:
 
 def next_pairs(args: argparse.Namespace) -> int:
     reviewer = default_reviewer(args.reviewer)
-    with open_project(args.project) as project:
-        project.ensure_reviewer(reviewer)
-        items = project.next_pairs(reviewer, max(0, args.n))
+    if not args.claim:  # only looking: works on a read-only project and writes nothing
+        with open_project(args.project, readonly=True) as project:
+            items = project.next_pairs(reviewer, max(0, args.n))
+    else:
+        with open_project(args.project) as project:
+            project.ensure_reviewer(reviewer)
+            items = project.next_pairs(reviewer, max(0, args.n), claim=True)
     if args.json:
         print(json_text([i.to_dict() for i in items]))
         return 0
@@ -203,11 +207,17 @@ def register(sub: argparse._SubParsersAction) -> None:
 
     p = command(sub, "next", "List the next pairs a reviewer's queue would show.",
                  "Each pair with its probability and why it is queued: uncertain (near the "
-                 "threshold), audit (from the audit slice) or overlap (a second reviewer needed).",
-                 "docket next vets.docket --reviewer maya -n 5", next_pairs)
+                 "threshold), audit (from the audit slice) or overlap (a second reviewer needed)."
+                 "\nPairs that other reviewers hold claims on are left out. Without --claim this "
+                 "only looks: nothing is written and no one is registered. With --claim the "
+                 "pairs are held for this reviewer for 15 minutes, or until decided or others "
+                 "are claimed, so that no one else is given them meanwhile.",
+                 "docket next vets.docket --reviewer maya -n 5 --claim", next_pairs)
     p.add_argument("project")
     p.add_argument("--reviewer", required=True, metavar="NAME")
     p.add_argument("-n", type=at_least(0), default=10, metavar="N", help="how many (default 10)")
+    p.add_argument("--claim", action="store_true",
+                   help="hold the pairs listed for this reviewer (registers the reviewer)")
     p.add_argument("--json", action="store_true", help="machine-readable output")
 
     p = command(sub, "label", "Record decisions in bulk from a file, then refit the model.",

@@ -12,6 +12,7 @@ from dataclasses import dataclass
 from typing import Any, Protocol
 
 from docket.core.project import Project
+from docket.core.types import QueueItem
 
 from .keymap import LoadedKeymap
 from .masking import Mask
@@ -49,6 +50,8 @@ class ReviewHost(Host, Protocol):
     counted: int
     refit_every: int
     on_painted: Callable[[], None] | None
+
+    def serve_next(self) -> QueueItem | None: ...
 
     def recount(self, counted_at: int) -> Recount: ...
 

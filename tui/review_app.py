@@ -7,6 +7,7 @@ WAL mode lets the UI keep reading and committing decisions while a refit reads.
 
 from __future__ import annotations
 
+import contextlib
 import gc
 import threading
 import time
@@ -16,7 +17,9 @@ from pathlib import Path
 from textual.app import App
 from textual.binding import Binding
 
+from docket.core.errors import DocketError
 from docket.core.project import Project
+from docket.core.types import QueueItem
 
 from .hosts import Recount
 from .keymap import LoadedKeymap, load_keymap
@@ -58,8 +61,17 @@ class ReviewApp(App[None]):
         """The second connection, opened on first use (from a worker thread)."""
         with self._background_lock:
             if self._background is None:
-                self._background = Project.open(self.project.path)
+                self._background = Project.open(self.project.path, check=False)
             return self._background
+
+    def serve_next(self) -> QueueItem | None:
+        """The next pair of this reviewer's queue, claimed so that no one else is given it."""
+        try:
+            items = self.project.next_pairs(self.reviewer, 1, claim=True)
+        except DocketError as exc:  # a busy or read-only file: show the pair all the same
+            self.notify(f"Pair not claimed: {exc}", severity="warning", markup=False)
+            items = self.project.next_pairs(self.reviewer, 1)
+        return items[0] if items else None
 
     def recount(self, counted_at: int) -> Recount:
         """Worker thread: this reviewer's decided and remaining pairs, counted in full."""
@@ -92,6 +104,10 @@ class ReviewApp(App[None]):
                         title="keymap", severity="warning", markup=False, timeout=8)
 
     def on_unmount(self) -> None:
+        # Quitting gives this reviewer's claimed pair back at once; if the file cannot be
+        # written now, the claim lapses at its expiry all the same.
+        with contextlib.suppress(DocketError):
+            self.project.release(self.reviewer)
         with self._background_lock:
             if self._background is not None:
                 self._background.close()

@@ -9,8 +9,8 @@ import pandas as pd
 
 from ..errors import DocketError
 from ..records.sources import read_frame
+from ..storage import claims, roles
 from ..storage import decisions as log
-from ..storage import roles
 from ..storage.project_file import ProjectFile
 from ..types import LABELS
 
@@ -81,6 +81,7 @@ def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: s
             prior = log.current_of(conn, r.pair_id, reviewer, role)
             log.append(conn, r.pair_id, reviewer, r.label, r.note, 0.0,
                        None if prior is None else prior.decision_id, role)
+            claims.release(conn, reviewer, r.pair_id)
     return len(rows)
 
 

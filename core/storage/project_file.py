@@ -6,6 +6,7 @@ evaluation) take a ``ProjectFile`` so that nothing below the facade imports it.
 
 from __future__ import annotations
 
+import contextlib
 import sqlite3
 import threading
 from collections.abc import Iterator
@@ -15,8 +16,9 @@ from typing import Any, Self
 
 from ..errors import DocketError
 from ..types import LABELS, Decision, FieldSpec
+from . import claims, drafts, roles, store
 from . import decisions as log
-from . import drafts, roles, store
+from .file_health import ProjectFileError, explain
 
 
 class ProjectFile:
@@ -32,9 +34,10 @@ class ProjectFile:
 
     # -- opening -----------------------------------------------------------------------------
     @classmethod
-    def open(cls, path: str | Path, readonly: bool = False) -> Self:
+    def open(cls, path: str | Path, readonly: bool = False, check: bool = True) -> Self:
+        """``check=False``: skip the damage check (a second connection to a checked file)."""
         path = Path(path)
-        return cls(path, store.open_file(path, readonly=readonly))
+        return cls(path, store.open_file(path, readonly=readonly, check=check))
 
     def close(self) -> None:
         with self._lock:
@@ -67,14 +70,27 @@ class ProjectFile:
 
     @contextmanager
     def transaction(self) -> Iterator[sqlite3.Connection]:
-        """One write transaction: committed when the block ends, rolled back on any error."""
+        """One write transaction: committed when the block ends, rolled back on any error.
+
+        An SQLite error (full disk, read-only or busy file, damage met on the way) leaves as
+        a ``ProjectFileError`` whose message says what happened to the file and what to do.
+        """
         with self._lock:
-            self._conn.execute("BEGIN IMMEDIATE")
+            try:
+                self._conn.execute("BEGIN IMMEDIATE")
+            except sqlite3.Error as exc:
+                raise ProjectFileError(explain(exc, self.path)) from exc
             try:
                 yield self._conn
                 self._conn.execute("COMMIT")
-            except BaseException:
-                self._conn.execute("ROLLBACK")
+            except BaseException as exc:
+                # SQLite may already have rolled back (a full disk, for one): a second rollback
+                # would fail with "no transaction is active" and hide the real error.
+                if self._conn.in_transaction:
+                    with contextlib.suppress(sqlite3.Error):
+                        self._conn.execute("ROLLBACK")
+                if isinstance(exc, sqlite3.Error):
+                    raise ProjectFileError(explain(exc, self.path)) from exc
                 raise
 
     # -- decisions ---------------------------------------------------------------------------
@@ -86,6 +102,7 @@ class ProjectFile:
         with self.transaction() as conn:
             prior = log.current_of(conn, pair_id, reviewer, role)
             roles.register(conn, reviewer)  # a role beyond reviewer is only ever granted
+            claims.release(conn, reviewer, pair_id)
             note = note or drafts.of(conn, pair_id, reviewer, role)
             drafts.clear(conn, pair_id, reviewer, role)  # the note is in the log now
             return log.append(conn, pair_id, reviewer, label, note, seconds,

@@ -16,6 +16,7 @@ from pathlib import Path
 from typing import Any
 
 from ..errors import DocketError, NotAProject
+from . import file_health
 
 APPLICATION_ID = 0x646F636B  # "dock": marks the file as a docket project
 SCHEMA_VERSION = 3
@@ -194,12 +195,14 @@ def schema_version(conn: sqlite3.Connection) -> int:
     return int(conn.execute("PRAGMA user_version").fetchone()[0])
 
 
-def open_file(path: Path, readonly: bool = False) -> sqlite3.Connection:
-    """Open an existing project, checking it is one and migrating it if it is older.
+def open_file(path: Path, readonly: bool = False, check: bool = True) -> sqlite3.Connection:
+    """Open an existing project, checking it is one, is whole, and migrating it if older.
 
     Read-only, an older file is left as it is: readers check for a later table with
-    ``has_table`` (merge reads copies so, and must never write to them).
+    ``has_table`` (merge reads copies so, and must never write to them). ``check=False`` skips
+    the damage check, for a second connection of a process that has just checked the file.
     """
+    file_health.check_place(path, write=not readonly)
     if not path.exists():
         raise DocketError(f"{path}: no such project; create it with 'docket new {path} ...'")
     if path.is_dir():
@@ -210,9 +213,10 @@ def open_file(path: Path, readonly: bool = False) -> sqlite3.Connection:
     try:
         app_id = probe.execute("PRAGMA application_id").fetchone()[0]
         version = probe.execute("PRAGMA user_version").fetchone()[0]
-    except sqlite3.DatabaseError:
-        raise NotAProject(f"{path}: not a docket project (not an SQLite file); "
-                          "check the path, or create one with 'docket new'") from None
+        if app_id == APPLICATION_ID and check:
+            file_health.check_integrity(probe, path)  # before any command writes
+    except sqlite3.DatabaseError as exc:
+        raise NotAProject(file_health.explain(exc, path)) from None
     finally:
         probe.close()
     if app_id != APPLICATION_ID:

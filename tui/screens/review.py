@@ -144,8 +144,7 @@ class ReviewScreen(Screen[None]):
                                                             app.reviewer) is None:
             self._show(parked, "queue")
             return
-        nxt = app.project.next_pairs(app.reviewer, 1)
-        self._show(nxt[0] if nxt else None, "queue")
+        self._show(app.serve_next(), "queue")
 
     def _show_pair(self, pair_id: int, mode: Mode, where: str) -> None:
         card = self.review_app.project.card(pair_id)
@@ -375,7 +374,7 @@ class ReviewScreen(Screen[None]):
     def _count(self) -> None:
         app = self.review_app
         self.run_worker(partial(app.recount, app.counted), thread=True, group="count",
-                        name="count")
+                        name="count", exit_on_error=False)
 
     def _after_decision(self) -> None:
         app = self.review_app
@@ -384,8 +383,9 @@ class ReviewScreen(Screen[None]):
             self.since_refit = 0
             self.refitting = True
             self.query_one(StatusLine).set_who(app.project_name, app.reviewer, "refitting")
+            # A refit that fails (the file busy, say) is reported; the review goes on.
             self.run_worker(partial(app.refit, app.counted), thread=True, group="refit",
-                            name="refit")
+                            name="refit", exit_on_error=False)
 
     def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
         worker, app = event.worker, self.review_app

@@ -1,0 +1,66 @@
+"""Claims: a lease on each pair served to a reviewer, so that two at work together never get one.
+
+Serving a pair with a claim writes (pair, reviewer, expiry) in ``claims`` in the same write
+transaction as the queue query, so two processes asking at once are served one after the other
+and the second sees the first one's claim. A pair is held back from a reviewer while the live
+claims of others fill the reviews it still needs (``need - n_labels``): a non-overlap pair goes
+to one reviewer at a time, an overlap pair to as many as it still needs. A claim ends when its
+holder decides the pair, is served another (a reviewer holds the pairs they were served last),
+or quits; otherwise it lapses at its expiry, so a crashed session holds nothing for long.
+
+This module knows nothing of queue order: it gives the queue a condition to add to its query,
+and writes and releases claims.
+"""
+
+from __future__ import annotations
+
+import sqlite3
+from collections.abc import Iterable
+from datetime import UTC, datetime, timedelta
+
+LEASE = timedelta(minutes=15)
+
+
+def _iso(t: datetime) -> str:
+    return t.isoformat(timespec="microseconds")
+
+
+def now() -> str:
+    return _iso(datetime.now(UTC))
+
+
+def free_for(alias: str = "p") -> str:
+    """SQL condition: the pair still has room for this reviewer beside others' live claims.
+
+    Takes two parameters, in order: the reviewer's name and the present time (``now()``).
+    """
+    return (f"(SELECT count(*) FROM claims k WHERE k.pair_id = {alias}.pair_id "
+            f"AND k.reviewer <> ? AND k.expires_at > ?) < {alias}.need - {alias}.n_labels")
+
+
+def claim(conn: sqlite3.Connection, reviewer: str, pair_ids: Iterable[int],
+          lease: timedelta = LEASE) -> None:
+    """Hold ``pair_ids`` for ``reviewer`` until the lease ends; their earlier claims end.
+
+    Call inside the write transaction that chose the pairs.
+    """
+    at = datetime.now(UTC)
+    conn.execute("DELETE FROM claims WHERE reviewer = ? OR expires_at <= ?", (reviewer, _iso(at)))
+    conn.executemany("INSERT OR REPLACE INTO claims VALUES (?, ?, ?)",
+                     [(int(p), reviewer, _iso(at + lease)) for p in pair_ids])
+
+
+def release(conn: sqlite3.Connection, reviewer: str, pair_id: int | None = None) -> None:
+    """End the reviewer's claim on one pair, or on every pair when ``pair_id`` is None."""
+    if pair_id is None:
+        conn.execute("DELETE FROM claims WHERE reviewer = ?", (reviewer,))
+    else:
+        conn.execute("DELETE FROM claims WHERE pair_id = ? AND reviewer = ?",
+                     (int(pair_id), reviewer))
+
+
+def held(conn: sqlite3.Connection) -> list[tuple[int, str, str]]:
+    """Live claims: (pair_id, reviewer, expires_at), by pair."""
+    return [(int(p), r, e) for p, r, e in conn.execute(
+        "SELECT pair_id, reviewer, expires_at FROM claims WHERE expires_at > ? "
+        "ORDER BY pair_id, reviewer", (now(),))]

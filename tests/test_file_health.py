@@ -1,0 +1,109 @@
+"""A project file damaged, read-only, in a missing folder or on a full disk: one line, exit 2,
+nothing changed, and the damage found before any command writes."""
+
+from __future__ import annotations
+
+import os
+import sqlite3
+import stat
+from pathlib import Path
+
+import pytest
+
+from docket.core import DocketError, Project
+from docket.tui.cli import main
+
+PAGE = 4096
+
+
+def _settled(path: Path) -> bytes:
+    """The file's bytes with its write-ahead log folded in, so that a byte compare is fair."""
+    with sqlite3.connect(path) as conn:
+        conn.execute("PRAGMA wal_checkpoint(TRUNCATE)")
+    return path.read_bytes()
+
+
+def _damage(path: Path) -> None:
+    # Garbage over the cell pointers of a page in the middle of the pairs table: the kind of
+    # damage a torn copy or a failing disk leaves (common practice for corruption tests).
+    _settled(path)
+    pages = path.stat().st_size // PAGE
+    with open(path, "r+b") as f:
+        f.seek(PAGE * (pages // 2) + 8)
+        f.write(b"\xff" * 1000)
+
+
+def _one_line(capsys: pytest.CaptureFixture[str]) -> str:
+    err = capsys.readouterr().err.strip()
+    assert "Traceback" not in err and len(err.splitlines()) == 1, err
+    return err
+
+
+DAMAGED_COMMANDS = [
+    ["status"], ["next", "--reviewer", "ana"], ["next", "--reviewer", "ana", "--claim"],
+    ["reviewers", "{p}", "add", "zed"], ["reviewers", "{p}", "list"], ["agreement"],
+    ["evaluate"], ["export", "--what", "gold", "-o", "{d}/gold.csv"],
+    ["label", "--reviewer", "ana", "--from", "{d}/labels.csv"],
+]
+
+
+def test_a_damaged_project_is_refused_before_any_write(sample_project: Path, capsys) -> None:
+    folder = sample_project.parent
+    (folder / "labels.csv").write_text("pair_id,label\n1,match\n", encoding="utf-8")
+    _damage(sample_project)
+    before = sample_project.read_bytes()
+    for command in DAMAGED_COMMANDS:
+        args = [a.format(p=sample_project, d=folder) for a in command]
+        if "{p}" not in command:
+            args.insert(1, str(sample_project))
+        assert main(args) == 2, args
+        assert "damaged" in _one_line(capsys), args
+        assert sample_project.read_bytes() == before, args
+    assert not (folder / "gold.csv").exists()
+
+
+def test_a_read_only_project_reads_but_refuses_writes(sample_project: Path, capsys) -> None:
+    _settled(sample_project)
+    os.chmod(sample_project, stat.S_IRUSR)
+    try:
+        assert main(["status", str(sample_project)]) == 0
+        capsys.readouterr()
+        for args in (["reviewers", str(sample_project), "add", "zed"],
+                     ["next", str(sample_project), "--reviewer", "ana", "--claim"]):
+            assert main(args) == 2
+            assert "read-only" in _one_line(capsys)
+    finally:
+        os.chmod(sample_project, stat.S_IRUSR | stat.S_IWUSR)
+
+
+def test_a_read_only_folder_is_named_as_such(sample_project: Path, capsys) -> None:
+    folder = sample_project.parent
+    os.chmod(folder, stat.S_IRUSR | stat.S_IXUSR)
+    try:
+        assert main(["reviewers", str(sample_project), "add", "zed"]) == 2
+        err = _one_line(capsys)
+    finally:
+        os.chmod(folder, stat.S_IRWXU)
+    assert "folder" in err and "read-only" in err and "SQLite" not in err
+
+
+def test_a_project_in_a_missing_folder(tmp_path: Path, capsys) -> None:
+    path = tmp_path / "nowhere" / "p.docket"
+    assert main(["status", str(path)]) == 2
+    assert "does not exist" in _one_line(capsys)
+    assert not path.parent.exists()
+
+
+def test_a_full_disk_is_called_so_and_nothing_is_saved(sample_project: Path) -> None:
+    with Project.open(sample_project) as p:
+        (item,) = p.next_pairs("ana", 1)
+        pages = p.connection.execute("PRAGMA page_count").fetchone()[0]
+        # A ceiling on the file's pages is how SQLite lets a test fill the disk.
+        p.connection.execute(f"PRAGMA max_page_count = {pages}")
+        with pytest.raises(DocketError, match="disk full; nothing was saved"):
+            p.decide(item.pair_id, "ana", "match", "n" * 200_000)
+        assert not p.connection.in_transaction
+        assert p.current_label(item.pair_id, "ana") is None
+        p.connection.execute(f"PRAGMA max_page_count = {pages * 10}")
+        p.decide(item.pair_id, "ana", "match", "checked")
+        assert p.current_label(item.pair_id, "ana") is not None
