@@ -116,8 +116,11 @@ def test_a_new_name_is_registered_as_reviewer_on_first_use(tiny: Path, tmp_path:
     assert roles == {"maya": "reviewer", "zoe": "reviewer"}
 
 
-def test_next_registers_a_new_name(tiny: Path, capsys) -> None:
+def test_next_registers_a_new_name_only_when_it_claims(tiny: Path, capsys) -> None:
     assert run(["next", str(tiny), "--reviewer", "otto", "-n", "1"]) == 0
+    with Project.open(tiny) as p:
+        assert list_reviewers(p) == []
+    assert run(["next", str(tiny), "--reviewer", "otto", "-n", "1", "--claim"]) == 0
     with Project.open(tiny) as p:
         assert [r["name"] for r in list_reviewers(p)] == ["otto"]
 
