@@ -8,12 +8,12 @@ from __future__ import annotations
 
 import threading
 from collections.abc import Collection
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from .errors import DocketError
 from .matching.explain import explanation
 from .ordering import queue
-from .reviewing import missed
+from .reviewing import gold, missed
 from .reviewing.gold import Gold, gold_labels
 from .reviewing.missed import MissedMatch
 from .storage import claims, roles, store
@@ -304,3 +304,16 @@ class Project(ProjectFile):
         """The gold labels under the project's policy, read under the lock."""
         with self._lock:
             return gold_labels(self._conn)
+
+    def gold_policy(self) -> dict[str, Any]:
+        with self._lock:
+            return gold.policy(self._conn)
+
+    def set_gold_policy(self, **changes: Any) -> dict[str, Any]:
+        """Change rules of the gold-label policy (see reviewing.gold); the policy now."""
+        if "min_reviews" in changes and int(changes["min_reviews"]) < 1:
+            raise DocketError("--min-reviews: give 1 or more")
+        with self.transaction() as conn:
+            changed = gold.set_policy(conn, **changes)
+        self.meta = store.get_meta(self._conn)
+        return changed

@@ -104,7 +104,10 @@ def status(project: ProjectFile) -> dict[str, Any]:
                      "refit_every": meta["refit_every"]},
         "gold_policy": {**gold.policy(conn),
                         "rules": "unanimous decisions become gold; disagreements only when "
-                                 "adjudicated; holds never"},
+                                 "adjudicated" + (", by an adjudicator who did not review the "
+                                                  "pair" if gold.policy(conn)[
+                                                      "independent_adjudication"] else "")
+                                 + "; holds never"},
         "gold_labels": len(golds),
         "missed_matches": {"count": len(found),
                            "gold_matches": gold_matches,

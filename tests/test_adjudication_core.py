@@ -134,3 +134,54 @@ def test_undo_takes_back_the_latest_adjudication(project: Project) -> None:
                             "ORDER BY decided_at").fetchall()
     assert [r[0] for r in rows] == ["match", "non-match", None]
     assert rows[2][1] == second.decision_id
+
+
+def test_independent_adjudication_leaves_own_pairs_to_another(project: Project) -> None:
+    a, b, c = ids(project)[:3]
+    for pid in (a, b, c):
+        project.decide(pid, "maya", "match")
+        project.decide(pid, "otto", "non-match")
+    project.decide(c, "ines", "match")
+    project.undo("ines")  # a label taken back still means ines saw c as a reviewer
+    adj.adjudicate(project, a, "ines", "match", "flagged, but allowed by default")
+    assert gold(project)[a] == ("match", "adjudicated")
+    assert project.gold_policy()["independent_adjudication"] is False
+    project.decide(b, "ines", "non-match")  # ines reviews b too, now as a reviewer
+    project.set_gold_policy(independent_adjudication=True)
+    assert adj.set_aside_for(project, "ines") == {b, c}
+    before = project.connection.execute("SELECT count(*) FROM decisions").fetchone()[0]
+    for pid in (b, c):
+        with pytest.raises(DocketError, match="independent adjudicator") as err:
+            adj.adjudicate(project, pid, "ines", "match", "mine")
+        assert "\n" not in str(err.value)
+    assert project.connection.execute("SELECT count(*) FROM decisions").fetchone()[0] == before
+    assert gold(project)[a] == ("match", "adjudicated")  # ines never reviewed a
+    add_reviewer(project, "lee", "adjudicator")
+    adj.adjudicate(project, b, "lee", "non-match", "different birth years")
+    assert gold(project)[b] == ("non-match", "adjudicated")
+    # an own adjudication made under the old policy (or merged in) stops counting
+    project.set_gold_policy(independent_adjudication=False)
+    adj.adjudicate(project, c, "ines", "match", "allowed again")
+    assert gold(project)[c] == ("match", "adjudicated")
+    project.set_gold_policy(independent_adjudication=True)
+    assert c not in gold(project) and (c, "disagreement") in adj.queue(project)
+    with pytest.raises(ValueError):
+        project.set_gold_policy(no_such_rule=1)
+    with pytest.raises(DocketError):
+        project.set_gold_policy(min_reviews=0)
+
+
+def test_policy_command_shows_and_sets_the_rules(project: Project, capsys) -> None:
+    from docket.tui.cli import main
+    path = str(project.path)
+    assert main(["policy", path]) == 0
+    assert "may settle a pair they reviewed" in capsys.readouterr().out
+    assert main(["policy", path, "--independent-adjudication", "--min-reviews", "2"]) == 0
+    assert "may not settle a pair they decided as a reviewer" in capsys.readouterr().out
+    assert main(["policy", path, "--json"]) == 0
+    assert '"independent_adjudication": true' in capsys.readouterr().out
+    assert main(["status", path]) == 0
+    assert "by an adjudicator who did not review the pair" in capsys.readouterr().out
+    with pytest.raises(SystemExit) as done:
+        main(["policy", path, "--independent-adjudication", "--adjudicator-may-settle-own"])
+    assert done.value.code == 2

@@ -11,6 +11,8 @@ import json
 import sqlite3
 from dataclasses import dataclass
 
+from ..reviewing import gold
+
 DETAIL_COLUMNS = ("reviews", "why_adjudicated", "adjudicator", "reason", "adjudicated_at")
 
 
@@ -38,21 +40,19 @@ def details(conn: sqlite3.Connection, pair_ids: set[int]) -> dict[int, Detail]:
 
     ``why_adjudicated`` is what the reviewers' standing labels show: a hold among them, a
     disagreement, or (reviewers agreed, an adjudicator settled it all the same, such as for a
-    cluster conflict) ``confirmed``. The adjudication is the latest standing one, the one
-    gold follows.
+    cluster conflict) ``confirmed``. The adjudication is the one gold follows (the latest
+    standing one that counts under the policy).
     """
     reviews: dict[int, list[dict[str, str]]] = {}
-    final: dict[int, tuple[str, str, str]] = {}
-    for pid, reviewer, role, label, note, at in conn.execute(
-            "SELECT pair_id, reviewer, role, label, note, decided_at FROM current_labels "
-            "ORDER BY decided_at, reviewer"):
-        if pid not in pair_ids:
-            continue
-        if role == "adjudicator":
-            final[pid] = (reviewer, note or "", at)  # ordered by time: the latest wins
-        else:
+    for pid, reviewer, label, note, at in conn.execute(
+            "SELECT pair_id, reviewer, label, note, decided_at FROM current_labels "
+            "WHERE role = 'reviewer' ORDER BY decided_at, reviewer"):
+        if pid in pair_ids:
             reviews.setdefault(pid, []).append(
                 {"reviewer": reviewer, "label": label, "note": note or "", "decided_at": at})
+    # the adjudication gold follows: ordered by time, the latest that counts wins
+    final = {pid: (who, reason, at) for pid, who, _, reason, at in gold.adjudications(conn)
+             if pid in pair_ids}
     out = {}
     for pid in pair_ids:
         mine = reviews.get(pid, [])

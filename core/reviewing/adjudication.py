@@ -56,6 +56,15 @@ def queue(project: ProjectFile, extra: set[int] | None = None) -> list[tuple[int
         return gold.needs_adjudication(project.connection, extra)
 
 
+def set_aside_for(project: ProjectFile, adjudicator: str) -> set[int]:
+    """Pairs this adjudicator may not settle: under ``independent_adjudication``, those they
+    decided as a reviewer; otherwise none (their own label is flagged instead)."""
+    with project.reading():
+        if not gold.policy(project.connection)["independent_adjudication"]:
+            return set()
+        return gold.reviewed_by(project.connection, adjudicator.strip())
+
+
 def reviews_of(project: ProjectFile, pair_id: int, adjudicator: str) -> list[Review]:
     """Every standing label on the pair: reviewers' first, then adjudications; each by time."""
     with project.reading():
@@ -85,6 +94,11 @@ def adjudicate(project: ProjectFile, pair_id: int, adjudicator: str, label: str,
                                             (pair_id,)).fetchone()
     if exists is None:
         raise DocketError(f"no pair {pair_id} in {project.path}")
+    if pair_id in set_aside_for(project, adjudicator):
+        raise DocketError(f"{adjudicator.strip()} decided pair {pair_id} as a reviewer, and the "
+                          "project's policy asks for an independent adjudicator: another "
+                          "adjudicator must settle it (docket policy "
+                          f"{project.path} --adjudicator-may-settle-own allows it)")
     return project.decide(pair_id, adjudicator.strip(), label, reason, seconds,
                           role="adjudicator")
 

@@ -7,7 +7,11 @@ Policy (stored in the project, shown by ``status``):
   a decision by someone who held the adjudicator role at the time they made it counts (the
   role grants log, ``storage.roles``), whatever role the decision row claims;
 - holds never become gold: a hold from any reviewer sends the pair to adjudication, and an
-  adjudicator's hold leaves it there.
+  adjudicator's hold leaves it there;
+- with ``independent_adjudication`` (off by default) an adjudicator may not settle a pair they
+  decided as a reviewer (a decision later taken back counts too: they saw the pair as a
+  reviewer); such an adjudication, say from a merged copy or made before the policy was set,
+  does not count, and the pair waits for another adjudicator.
 """
 
 from __future__ import annotations
@@ -18,7 +22,7 @@ from typing import Any
 
 from ..storage import roles, store
 
-DEFAULT_POLICY = {"min_reviews": 1}
+DEFAULT_POLICY: dict[str, Any] = {"min_reviews": 1, "independent_adjudication": False}
 
 
 @dataclass(frozen=True)
@@ -64,16 +68,39 @@ def standing(conn: sqlite3.Connection) -> dict[int, PairLabels]:
     return out
 
 
-def _latest_adjudication(conn: sqlite3.Connection) -> dict[int, str]:
-    """The most recent standing adjudication per pair that settles (several: latest wins).
+def set_policy(conn: sqlite3.Connection, **changes: Any) -> dict[str, Any]:
+    """Store the changed rules (``min_reviews``, ``independent_adjudication``); the new policy."""
+    unknown = set(changes) - set(DEFAULT_POLICY)
+    if unknown:
+        raise ValueError(f"no gold-policy rule {sorted(unknown)[0]}")
+    stored = {**store.get_meta(conn).get("gold_policy", {}), **changes}
+    store.set_meta(conn, gold_policy=stored)
+    return {**DEFAULT_POLICY, **stored}
 
-    An adjudication settles only if its maker held the adjudicator role when making it.
+
+# An adjudication by someone who also decided the pair as a reviewer.
+_OWN = ("EXISTS (SELECT 1 FROM decisions d WHERE d.pair_id = c.pair_id "
+        "AND d.reviewer = c.reviewer AND d.role = 'reviewer')")
+
+
+def adjudications(conn: sqlite3.Connection) -> list[tuple[int, str, str, str, str]]:
+    """Standing adjudications that settle, oldest first: (pair_id, adjudicator, label, reason,
+    decided_at).
+
+    An adjudication settles only if its maker held the adjudicator role when making it; under
+    ``independent_adjudication`` also only if they never decided the pair as a reviewer.
     """
     past = roles.history(conn)
-    return {pid: label for pid, reviewer, label, decided_at in conn.execute(
-        "SELECT pair_id, reviewer, label, decided_at FROM current WHERE role = 'adjudicator' "
-        "ORDER BY decided_at, decision_id")
-        if roles.role_at(past, reviewer, decided_at) == "adjudicator"}
+    own = f" AND NOT {_OWN}" if policy(conn)["independent_adjudication"] else ""
+    return [(pid, who, label, note or "", at) for pid, who, label, note, at in conn.execute(
+        "SELECT c.pair_id, c.reviewer, c.label, c.note, c.decided_at FROM current_labels c "
+        f"WHERE c.role = 'adjudicator'{own} ORDER BY c.decided_at, c.decision_id")
+        if roles.role_at(past, who, at) == "adjudicator"]
+
+
+def _latest_adjudication(conn: sqlite3.Connection) -> dict[int, str]:
+    """The most recent standing adjudication per pair that settles (several: latest wins)."""
+    return {pid: label for pid, _, label, _, _ in adjudications(conn)}
 
 
 def unsettling_adjudications(conn: sqlite3.Connection) -> list[tuple[int, str, str]]:
@@ -82,6 +109,13 @@ def unsettling_adjudications(conn: sqlite3.Connection) -> list[tuple[int, str, s
     return [(int(pid), name, at) for pid, name, at in conn.execute(
         "SELECT pair_id, reviewer, decided_at FROM current WHERE role = 'adjudicator' "
         "ORDER BY pair_id, decided_at") if roles.role_at(past, name, at) != "adjudicator"]
+
+
+def reviewed_by(conn: sqlite3.Connection, name: str) -> set[int]:
+    """Pairs ``name`` has decided as a reviewer, a decision taken back included."""
+    return {pid for (pid,) in conn.execute(
+        "SELECT DISTINCT pair_id FROM decisions WHERE reviewer = ? AND role = 'reviewer'",
+        (name,))}
 
 
 def gold_labels(conn: sqlite3.Connection) -> list[Gold]:

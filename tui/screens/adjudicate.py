@@ -53,11 +53,14 @@ class QueueState:
     conflicts: dict[int, ConflictInfo] = field(default_factory=dict)
     gold: dict[int, tuple[str, str]] = field(default_factory=dict)  # pair -> (label, how)
     decided: int = 0  # this adjudicator's standing adjudications
+    for_others: int = 0  # waiting pairs the policy leaves to another adjudicator
 
 
 def load_queue(project: Project, adjudicator: str, generation: int) -> QueueState:
     """Worker thread: the adjudication queue with conflicts and gold labels, on ``project``."""
-    entries = tuple(adjudication_queue(project))
+    aside = adjudication.set_aside_for(project, adjudicator)
+    waiting = adjudication_queue(project)
+    entries = tuple(e for e in waiting if e[0] not in aside)
     found: dict[int, ConflictInfo] = {}
     for c in conflicts(project):
         info = ConflictInfo(c.cluster, len(c.members), c.match_pairs, c.non_match_pairs)
@@ -65,7 +68,7 @@ def load_queue(project: Project, adjudicator: str, generation: int) -> QueueStat
             found[pid] = info
     gold = {g.pair_id: (g.label, g.how) for g in project.gold_labels()}
     decided = len(project.history(adjudicator, role="adjudicator"))
-    return QueueState(generation, entries, found, gold, decided)
+    return QueueState(generation, entries, found, gold, decided, len(waiting) - len(entries))
 
 
 class AdjudicateScreen(Screen[None]):
@@ -112,6 +115,7 @@ class AdjudicateScreen(Screen[None]):
         self.shown_at = 0.0
         self.show_extra = False
         self.decided = 0
+        self.for_others = 0
         self.palette: Palette = PLAIN
         self._footer_in_queue = True
 
@@ -181,6 +185,7 @@ class AdjudicateScreen(Screen[None]):
             return  # a later change started a newer count; wait for that one
         self.queue = self._ordered(state.entries)
         self.conflicts, self.gold, self.decided = state.conflicts, state.gold, state.decided
+        self.for_others = state.for_others
         if self.pair_id is None and self.mode == "queue":
             self._show_queue()
         elif self.pair_id is not None:
@@ -220,9 +225,13 @@ class AdjudicateScreen(Screen[None]):
         if self.queue is None:
             return Text("Reading the adjudication queue…", self.palette.muted)
         path = self.team_app.project.path
+        settled = ("Nothing waits for adjudication: every disagreement, hold and cluster "
+                   "conflict is settled.")
+        if self.for_others:
+            settled = (f"Nothing more for you: {self.for_others:,} waiting pair(s) you decided "
+                       "as a reviewer are left to another adjudicator (the project's policy).")
         return Text(
-            "Nothing waits for adjudication: every disagreement, hold and cluster conflict is "
-            "settled.\n\nWhat next: [ looks back at your adjudications; a shows how far the "
+            f"{settled}\n\nWhat next: [ looks back at your adjudications; a shows how far the "
             "reviewers agree; g shows the model's quality; q quits. New pairs arrive here as "
             f"reviewers label overlap pairs (docket review {path}). Export the gold labels "
             f"with: docket export {path} --what gold -o gold.csv", self.palette.muted)
