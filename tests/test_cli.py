@@ -106,3 +106,20 @@ def test_demo_fresh_refuses_to_discard_decisions_unless_told(tmp_path: Path, cap
                  "--discard-decisions"]) == 0
     with Project.open(path, readonly=True) as p:
         assert p.history("kim") == []
+
+
+def test_review_and_adjudicate_reach_their_screens(tiny_tables, tmp_path: Path,
+                                                   monkeypatch: pytest.MonkeyPatch) -> None:
+    # The screens load lazily, so a renamed module would only show when someone runs them.
+    from docket.tui import review_app, team_app
+    opened: list[str] = []
+    monkeypatch.setattr(review_app, "run_review", lambda *a: opened.append("review"))
+    monkeypatch.setattr(team_app, "run_adjudicate", lambda *a: opened.append("adjudicate"))
+    left, right = tiny_tables
+    project = tmp_path / "t.docket"
+    assert main(["new", str(project), "--left", str(left), "--right", str(right), "--id", "id",
+                 "--block", "town"]) == 0
+    assert main(["review", str(project), "--reviewer", "maya"]) == 0
+    assert main(["reviewers", str(project), "add", "lee", "--role", "adjudicator"]) == 0
+    assert main(["adjudicate", str(project), "--reviewer", "lee"]) == 0
+    assert opened == ["review", "adjudicate"]

@@ -155,8 +155,10 @@ def label(args: argparse.Namespace) -> int:
         rows = read_rows(project, Path(args.source))
         n = apply_rows(project, reviewer, rows)
         result = project.refit()
+    aside = (f"; {result.set_aside:,} set aside (audit pairs, judged apart, and pairs still "
+             "waiting for another reviewer)" if result.set_aside else "")
     print(f"recorded {n:,} decisions for {reviewer}; refit: ranker {result.ranker}, "
-          f"{result.labels:,} labelled pairs used")
+          f"{result.labels:,} labelled pairs used{aside}")
     return 0
 
 

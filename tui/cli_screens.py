@@ -76,7 +76,7 @@ def adjudicate(args: argparse.Namespace) -> int:
 
 def _run_review(path: Path, reviewer: str, mask: list[str]) -> int:
     try:
-        from .app import run_review
+        from .review_app import run_review
     except ImportError as exc:  # pragma: no cover - a broken install
         from docket.core import DocketError
         raise DocketError(f"the review screen could not load ({exc})") from None
