@@ -31,7 +31,8 @@ def how_fitted(fs: dict) -> list[str]:
                                           else " (no pooling needed)"))
     if fs.get("frequent"):
         out.append("frequent values get their own exact level: " + ", ".join(
-            f"{f} ({len(v):,} value{'' if len(v) == 1 else 's'})" for f, v in fs["frequent"].items()))
+            f"{f} ({len(v):,} value{'' if len(v) == 1 else 's'})"
+            for f, v in fs["frequent"].items()))
     return out
 
 

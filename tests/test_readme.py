@@ -3,6 +3,7 @@ it reads ships with the repository (or is made by a command before it)."""
 
 from __future__ import annotations
 
+import itertools
 import re
 import shlex
 from pathlib import Path
@@ -39,6 +40,6 @@ def test_the_quickstart_is_there() -> None:
 def test_each_readme_command_parses_and_its_inputs_exist(line: str) -> None:
     words = shlex.split(line)[1:]
     parse(build_parser(), words)  # a renamed option or command fails here (exit 2)
-    for option, value in zip(words, words[1:], strict=False):
+    for option, value in itertools.pairwise(words):
         if option in READS:
             assert (ROOT / value).is_file(), f"{line}: {value} is not in the repository"
