@@ -5,6 +5,7 @@ from __future__ import annotations
 import math
 from typing import Any
 
+from .matchers import catalogue
 from .matching.explain import explanation
 from .reviewing import gold, missed
 from .storage import store
@@ -110,6 +111,7 @@ def status(project: ProjectFile) -> dict[str, Any]:
                                                       "independent_adjudication"] else "")
                                  + "; holds never"},
         "gold_labels": len(golds),
+        "matchers": catalogue.summary(conn),
         "missed_matches": {"count": len(found),
                            "gold_matches": gold_matches,
                            "reach": missed.reach(gold_matches, len(found)),

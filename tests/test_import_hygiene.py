@@ -22,6 +22,7 @@ FLOORS = [
     {"storage"},
     {"reviewing"},
     {"quality"},
+    {"matchers"},
     {"exports"},
     {"project", "report", ""},  # the facade ("" is docket.core itself)
 ]

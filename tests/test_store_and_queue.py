@@ -11,6 +11,7 @@ import numpy as np
 
 from docket.core import Project
 from docket.core.ordering import queue
+from docket.core.storage import store
 from tests.conftest import sample_spec
 
 
@@ -18,8 +19,9 @@ def test_file_is_private_wal_and_versioned(sample_project_file: Path) -> None:
     assert stat.S_IMODE(os.stat(sample_project_file).st_mode) == 0o600
     conn = sqlite3.connect(sample_project_file)
     assert conn.execute("PRAGMA journal_mode").fetchone()[0] == "wal"
-    assert conn.execute("PRAGMA user_version").fetchone()[0] == 3
-    assert conn.execute("SELECT version, name FROM migrations").fetchall() == [(3, "initial")]
+    assert conn.execute("PRAGMA user_version").fetchone()[0] == store.SCHEMA_VERSION
+    assert conn.execute("SELECT version, name FROM migrations").fetchall() == [
+        (store.SCHEMA_VERSION, "initial")]
     assert conn.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
 
 

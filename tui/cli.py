@@ -13,7 +13,7 @@ import sqlite3
 import sys
 import warnings
 
-from . import cli_gold, cli_missed, cli_policy, cli_project, cli_screens, cli_team
+from . import cli_gold, cli_matchers, cli_missed, cli_policy, cli_project, cli_screens, cli_team
 from .cli_base import Formatter, version, warn_line
 from .cli_checks import Parser, parse
 from .terminal import safe_streams, shown
@@ -27,7 +27,8 @@ def build_parser() -> argparse.ArgumentParser:
     parser.add_argument("--version", action="version", version=f"docket {version()}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
 
-    for module in (cli_project, cli_screens, cli_team, cli_gold, cli_missed, cli_policy):
+    for module in (cli_project, cli_screens, cli_team, cli_gold, cli_missed, cli_policy,
+                   cli_matchers):
         module.register(sub)
     return parser
 

@@ -122,6 +122,10 @@ def status(args: argparse.Namespace) -> int:
         print(f"missed       {m['count']:,} true matches that are not candidates (docket missed); "
               f"the candidates hold {m['reach']:.1%} of the {m['gold_matches'] + m['count']:,} "
               "matches known")
+    if info["matchers"]:
+        from .cli_matchers import table_lines
+        print(f"matchers     {len(info['matchers'])} stored (docket evaluate --matchers)")
+        print("\n".join(table_lines(info["matchers"])))
     return 0
 
 

@@ -19,7 +19,7 @@ from ..errors import DocketError, NotAProject
 from . import file_health
 
 APPLICATION_ID = 0x646F636B  # "dock": marks the file as a docket project
-SCHEMA_VERSION = 3
+SCHEMA_VERSION = 4
 BUSY_TIMEOUT_MS = 5000
 
 SCHEMA_V1 = """
@@ -111,6 +111,24 @@ UPDATE reviewers SET standing = (SELECT count(*) FROM current c WHERE c.reviewer
 """
 MIGRATED_GRANTOR = "(granted before role history was kept)"
 
+# Version 4. Machine raters: each matcher's output as one array of float64 scores (little-endian), one
+# entry per candidate pair in pair-id order, NaN where the matcher said nothing. Ten matchers
+# over a million pairs are then ten rows read in milliseconds, where one row per pair and
+# matcher took seconds to write and to read back.
+MACHINE_RATERS = """
+CREATE TABLE machine_raters (
+    name TEXT PRIMARY KEY, kind TEXT NOT NULL, threshold REAL NOT NULL, variant_group TEXT,
+    role TEXT, source TEXT NOT NULL, rows INTEGER NOT NULL, given INTEGER NOT NULL,
+    outside INTEGER NOT NULL, absent INTEGER NOT NULL, imported_at TEXT NOT NULL,
+    n_pairs INTEGER NOT NULL, scores BLOB NOT NULL,
+    CHECK (kind IN ('score', 'label', 'ensemble')),
+    CHECK (role IS NULL OR role IN ('teacher', 'student')));
+"""
+
+
+def _add_machine_raters(conn: sqlite3.Connection) -> None:
+    conn.execute(MACHINE_RATERS)  # not executescript: it would commit the open transaction
+
 Migration = Callable[[sqlite3.Connection], None]
 
 
@@ -138,6 +156,7 @@ def _to_v2(conn: sqlite3.Connection) -> None:
 MIGRATIONS: dict[int, tuple[str, Migration]] = {
     2: ("drafts and missed matches", _to_v2),
     3: ("indexed history, role grants, claims", _to_v3),
+    4: ("machine raters", _add_machine_raters),
 }
 
 

@@ -1,0 +1,144 @@
+"""Machine raters in: long files and one file per matcher, checks, replacing, status."""
+
+from __future__ import annotations
+
+import hashlib
+import sqlite3
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from docket.core import DocketError, Project
+from docket.core.matchers import catalogue
+from docket.core.matchers.importing import import_matchers
+from docket.core.report import status
+from docket.core.storage import store
+from docket.tui.cli import main
+from tests.matchers_support import SAMPLE_TRUTH, candidates, is_match, label_file
+
+
+@pytest.fixture
+def project(sample_project: Path) -> Project:
+    with Project.open(sample_project) as p:
+        yield p
+
+
+def test_long_file_and_file_per_matcher_are_stored_and_listed(project: Project,
+                                                              tmp_path: Path) -> None:
+    frame = candidates(project)
+    y = is_match(frame, SAMPLE_TRUTH)
+    long = label_file(tmp_path / "long.csv", frame, {"a": y, "b": ~y})
+    single = tmp_path / "rules.csv"
+    pd.DataFrame({"left_id": frame.left_id[:100], "right_id": frame.right_id[:100],
+                  "score": np.linspace(0, 1, 100)}).to_csv(single, index=False)
+    read = import_matchers(project, [long, single], group="g")
+    assert [m.name for m in read] == ["a", "b", "rules"]
+    listed = {m["name"]: m for m in status(project)["matchers"]}
+    assert listed["rules"]["kind"] == "score" and listed["rules"]["given"] == 100
+    assert listed["rules"]["absent"] == len(frame) - 100
+    assert listed["a"]["variant_group"] == "g"
+    scores = catalogue.load_scores(project.connection, ["a", "rules"])
+    assert np.array_equal(scores["a"] == 1.0, y)
+    assert np.isnan(scores["rules"][100:]).all()
+
+
+def test_a_stored_matcher_is_replaced_only_when_asked(project: Project, tmp_path: Path) -> None:
+    frame = candidates(project)
+    y = is_match(frame, SAMPLE_TRUTH)
+    path = label_file(tmp_path / "m.csv", frame, {"lm": y})
+    import_matchers(project, [path])
+    with pytest.raises(DocketError, match="already stored; pass --replace"):
+        import_matchers(project, [path])
+    label_file(path, frame, {"lm": ~y})
+    import_matchers(project, [path], replace=True)
+    assert (catalogue.load_scores(project.connection, ["lm"])["lm"] == 1.0).sum() == (~y).sum()
+
+
+def test_pairs_outside_the_candidates_are_counted_and_reported(project: Project,
+                                                               tmp_path: Path, capsys) -> None:
+    frame = candidates(project)
+    lefts = sorted(set(frame.left_id))
+    rights = sorted(set(frame.right_id))
+    known = set(zip(frame.left_id, frame.right_id, strict=True))
+    outside = [(a, b) for a in lefts[:40] for b in rights[:40] if (a, b) not in known][:3]
+    rows = pd.DataFrame({"left_id": [*frame.left_id[:5], *(a for a, _ in outside)],
+                         "right_id": [*frame.right_id[:5], *(b for _, b in outside)],
+                         "label": ["match"] * (5 + len(outside))})
+    path = tmp_path / "some.csv"
+    rows.to_csv(path, index=False)
+    project.close()
+    assert main(["matchers", str(project.path), "import", str(path)]) == 0
+    out = capsys.readouterr().out
+    assert "5 candidate pairs given" in out
+    assert f"{len(outside)} rows name pairs outside the candidate pairs" in out
+    with Project.open(project.path, readonly=True) as p:
+        assert catalogue.matchers(p.connection)[0].outside == len(outside) == 3
+
+
+def _digest(path: Path) -> str:
+    con = sqlite3.connect(path)
+    rows = con.execute("SELECT name FROM machine_raters").fetchall()
+    con.close()
+    return hashlib.sha256(repr(rows).encode()).hexdigest()
+
+
+@pytest.mark.parametrize(("edit", "expected"), [
+    (lambda f: f.assign(left_id=f.left_id.where(f.index != 3, "NOPE-1")),
+     "row 5: left_id 'NOPE-1' names no record"),
+    (lambda f: f.assign(label=f.label.where(f.index != 2, "maybe")),
+     "row 4: label 'maybe' is not match or non-match"),
+    (lambda f: f.drop(columns="label").assign(score=[0.5] * 6 + [1.5] + [0.1] * (len(f) - 7)),
+     "row 8: score 1.5 lies outside 0 to 1"),
+    (lambda f: f.drop(columns="label").assign(score=["x"] + [0.1] * (len(f) - 1)),
+     "row 2: score 'x' is not a number"),
+    (lambda f: pd.concat([f, f.iloc[[4]]], ignore_index=True),
+     "already gave this pair on row 6"),
+])
+def test_bad_rows_fail_with_one_line_and_store_nothing(sample_project: Path, tmp_path: Path,
+                                                       capsys, edit, expected) -> None:
+    with Project.open(sample_project) as p:
+        frame = candidates(p).head(50)
+    good = label_file(tmp_path / "good.csv", frame, {"ok": np.ones(50, dtype=bool)})
+    bad = tmp_path / "bad.csv"
+    edit(pd.read_csv(good, dtype=str)).to_csv(bad, index=False)
+    before = _digest(sample_project)
+    assert main(["matchers", str(sample_project), "import", str(good), str(bad)]) == 2
+    err = capsys.readouterr().err.strip()
+    assert len(err.splitlines()) == 1 and str(bad) in err and expected in err, err
+    assert _digest(sample_project) == before  # the good file was not stored either
+
+
+def test_a_version_1_project_upgrades_through_every_step(sample_project: Path) -> None:
+    con = sqlite3.connect(sample_project)  # make it a file written by version 1
+    for table in ("machine_raters", "drafts", "missed_matches"):
+        con.execute(f"DROP TABLE {table}")
+    con.execute("UPDATE migrations SET version = 1")
+    con.execute("PRAGMA user_version = 1")
+    con.commit()
+    con.close()
+    with Project.open(sample_project, readonly=True) as p:  # read-only: not migrated
+        assert status(p)["matchers"] == []
+    with Project.open(sample_project) as p:
+        conn = p.connection
+        assert store.has_table(conn, "machine_raters") and store.has_table(conn, "drafts")
+        assert conn.execute("PRAGMA user_version").fetchone()[0] == store.SCHEMA_VERSION
+        assert [r[0] for r in conn.execute("SELECT version FROM migrations ORDER BY 1")] == \
+            list(range(1, store.SCHEMA_VERSION + 1))
+
+
+def test_mark_and_remove(project: Project, tmp_path: Path) -> None:
+    frame = candidates(project)
+    y = is_match(frame, SAMPLE_TRUTH)
+    import_matchers(project, [label_file(tmp_path / "m.csv", frame, {"t": y, "s": y, "u": y})])
+    with project.transaction() as conn:
+        catalogue.mark(conn, "t", role="teacher")
+        catalogue.mark(conn, "u", role="teacher")  # one teacher at a time
+        catalogue.mark(conn, "s", role="student", threshold=0.7)
+    roles = {m.name: (m.role, m.threshold) for m in catalogue.matchers(project.connection)}
+    assert roles == {"s": ("student", 0.7), "t": (None, 0.5), "u": ("teacher", 0.5)}
+    with project.transaction() as conn:
+        catalogue.remove(conn, ["t"])
+    with pytest.raises(DocketError, match="no matcher named 'nope'"):
+        catalogue.load_scores(project.connection, ["nope"])

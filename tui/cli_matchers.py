@@ -1,0 +1,152 @@
+"""``docket matchers``: import machine raters' outputs, list, mark and remove them.
+
+Argument parsing and printing only: reading, checking and storing live in
+``docket.core.matchers``.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+from typing import Any
+
+ACTIONS = ("import", "list", "mark", "remove", "ensemble")
+
+
+def register(sub: argparse._SubParsersAction) -> None:
+    """Add ``docket matchers`` to the command's sub-parsers."""
+    from .cli_base import command
+    p = command(
+        sub, "matchers", "Store machine raters' outputs in the project and manage them.",
+        "import FILE...: one long file (left_id,right_id,matcher,score or label) or one file "
+        "per matcher (named after the file, or --name); score from 0 to 1, or label match / "
+        "non-match. Every row is checked first; a bad one stops the import with nothing "
+        "stored. Rows naming pairs outside the candidate pairs are counted and reported.\n"
+        "list: the stored matchers.  mark NAME: set --group (prompt variants of one matcher), "
+        "--role teacher|student, --threshold.  remove NAME...: forget them.\n"
+        "ensemble NAME --of A,B,C --method vote|dawid-skene: a combined matcher, stored and "
+        "evaluated like the others.\n\nThen: docket evaluate PROJECT --matchers",
+        "docket matchers vets.docket import outputs.csv --group prompts", run)
+    p.add_argument("project")
+    p.add_argument("action", choices=ACTIONS)
+    p.add_argument("names", nargs="*", metavar="FILE|NAME",
+                   help="files to import, or matcher names to mark / remove / create")
+    p.add_argument("--name", metavar="NAME", help="import: the matcher of a single file")
+    p.add_argument("--replace", action="store_true",
+                   help="import, ensemble: replace matchers already stored under these names")
+    p.add_argument("--threshold", type=float, metavar="T",
+                   help="score at or above which a pair is a predicted match (default 0.5)")
+    p.add_argument("--group", metavar="GROUP",
+                   help="mark these matchers as variants of one another (e.g. prompt wordings)")
+    p.add_argument("--role", choices=("teacher", "student"),
+                   help="a matcher distilled (student) from another (teacher)")
+    p.add_argument("--clear", action="store_true",
+                   help="mark: take away the matcher's group and role")
+    p.add_argument("--of", metavar="A,B,...", help="ensemble: the matchers it combines")
+    p.add_argument("--method", choices=("vote", "dawid-skene"), default="vote",
+                   help="ensemble: majority vote (ties: non-match) or Dawid-Skene")
+    p.add_argument("--with-reviewers", action="store_true",
+                   help="ensemble, dawid-skene: reviewers' labels join the raters")
+    p.add_argument("--json", action="store_true", help="machine-readable output")
+
+
+def run(args: argparse.Namespace) -> int:
+    from docket.core import DocketError, Project
+    from docket.core.matchers import catalogue
+    if args.action != "import" and args.name:
+        raise DocketError("--name goes with import")
+    readonly = args.action == "list"
+    with Project.open(args.project, readonly=readonly) as project:
+        if args.action == "import":
+            out: Any = _import(project, args)
+        elif args.action == "mark":
+            out = _mark(project, args)
+        elif args.action == "remove":
+            if not args.names:
+                raise DocketError("remove needs the names of the matchers to forget")
+            with project.transaction() as conn:
+                catalogue.remove(conn, args.names)
+            out = {"removed": args.names}
+        elif args.action == "ensemble":
+            out = _ensemble(project, args)
+        else:
+            out = catalogue.summary(project.connection)
+    if args.json:
+        print(json.dumps(out, indent=2, ensure_ascii=False))
+        return 0
+    print("\n".join(render(args.action, out)))
+    return 0
+
+
+def _import(project: Any, args: argparse.Namespace) -> list[dict[str, Any]]:
+    from docket.core import DocketError
+    from docket.core.matchers.importing import import_matchers
+    if not args.names:
+        raise DocketError("import needs at least one file of matcher output")
+    read = import_matchers(project, args.names, name=args.name, replace=args.replace,
+                           threshold=0.5 if args.threshold is None else args.threshold,
+                           group=args.group, role=args.role)
+    return [{"name": m.name, "kind": m.kind, "source": m.source, "rows": m.rows,
+             "given": m.given, "outside": m.outside, "absent": m.absent,
+             "outside_examples": m.outside_examples} for m in read]
+
+
+def _mark(project: Any, args: argparse.Namespace) -> list[dict[str, Any]]:
+    from docket.core import DocketError
+    from docket.core.matchers import catalogue
+    if not args.names:
+        raise DocketError("mark needs the names of the matchers to mark")
+    if args.role is not None and len(args.names) != 1:
+        raise DocketError("--role marks one matcher")
+    if not (args.group or args.role or args.clear or args.threshold is not None):
+        raise DocketError("mark needs --group, --role, --threshold or --clear")
+    with project.transaction() as conn:
+        for name in args.names:
+            catalogue.mark(conn, name, group=args.group, role=args.role,
+                           threshold=args.threshold, clear_group=args.clear,
+                           clear_role=args.clear)
+    return catalogue.summary(project.connection)
+
+
+def _ensemble(project: Any, args: argparse.Namespace) -> list[dict[str, Any]]:
+    from docket.core import DocketError
+    from docket.core.matchers.ensembles import store_ensemble
+    if len(args.names) != 1 or not args.of:
+        raise DocketError("ensemble needs one new name and --of A,B,... (at least two)")
+    members = [m.strip() for m in args.of.split(",") if m.strip()]
+    store_ensemble(project, args.names[0], members, args.method, args.with_reviewers,
+                   args.replace)
+    from docket.core.matchers import catalogue
+    return catalogue.summary(project.connection)
+
+
+def render(action: str, out: Any) -> list[str]:
+    from .literal import visible as plain
+    if action == "import":
+        lines = []
+        for m in out:
+            lines.append(f"stored matcher {plain(m['name'])} ({m['kind']}s) from "
+                         f"{plain(m['source'])}: {m['given']:,} candidate pairs given, "
+                         f"{m['absent']:,} absent (count as predicted non-matches)")
+            if m["outside"]:
+                shown = ", ".join(f"{plain(a)}|{plain(b)}" for a, b in m["outside_examples"])
+                lines.append(f"  {m['outside']:,} rows name pairs outside the candidate pairs "
+                             f"(not stored, no audit stratum holds them), e.g. {shown}")
+        return lines
+    if action == "remove":
+        return [f"removed {', '.join(plain(n) for n in out['removed'])}"]
+    return table_lines(out)
+
+
+def table_lines(rows: list[dict[str, Any]]) -> list[str]:
+    """The stored matchers, one line each (also used by ``docket status``)."""
+    from .literal import visible as plain
+    if not rows:
+        return ["no matchers stored; add some with 'docket matchers PROJECT import FILE'"]
+    out = [f"  {'matcher':<22}{'kind':<10}{'threshold':>9}  {'group':<14}{'role':<9}"
+           f"{'given':>10}{'outside':>9}{'absent':>10}"]
+    for m in rows:
+        out.append(f"  {plain(m['name']):<22}{m['kind']:<10}{m['threshold']:>9g}  "
+                   f"{plain(m['variant_group'] or '—'):<14}{m['role'] or '—':<9}"
+                   f"{m['given']:>10,}{m['outside']:>9,}{m['absent']:>10,}")
+    return out
