@@ -41,6 +41,9 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--json", action="store_true", help="machine-readable output")
     p.add_argument("--screen", action="store_true",
                    help="open the quality screen (plots, threshold table, clusters) instead")
+    p.add_argument("--matchers", action="store_true",
+                   help="every matcher stored with 'docket matchers' side by side: figures, "
+                        "kappa, paired differences, variants, teacher and student")
     p.add_argument("--predictions", metavar="FILE",
                    help="a matcher's output to evaluate (CSV, Parquet, JSONL)")
     p.add_argument("--threshold", type=float, metavar="T",
@@ -102,6 +105,9 @@ def evaluate(args: argparse.Namespace) -> int:
         Project.open(args.project, readonly=True).close()  # a bad path fails as one line
         run_quality(Path(args.project))
         return 0
+    if args.matchers:
+        from .matchers_report import evaluate_matchers
+        return evaluate_matchers(args)
     from docket.core.quality.evaluate import evaluate as model_report
     from docket.core.quality.evaluate import evaluate_predictions
     with Project.open(args.project, readonly=True) as project:

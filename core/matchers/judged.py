@@ -1,0 +1,76 @@
+"""The predictions of every matcher over the candidate pairs, with the labelled audit slice
+beside them: what every figure of the side-by-side report is computed from."""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..errors import DocketError
+from ..quality.audit_sample import AuditSample
+from ..quality.evaluate import model_scores, sample_from
+from ..reviewing.gold import gold_labels
+from ..storage.project_file import ProjectFile
+from . import catalogue
+
+MODEL = "(model)"  # the project's own model, shown beside the matchers for reference
+
+
+@dataclass
+class Judged:
+    """The predictions of every matcher, in pair-id order, with the audit slice beside them."""
+
+    names: list[str]
+    infos: dict[str, catalogue.MatcherInfo | None]
+    predicted: dict[str, np.ndarray]  # bool per candidate pair
+    given: dict[str, np.ndarray]  # bool per candidate pair: the matcher said something
+    pair_ids: np.ndarray
+    audit_at: np.ndarray  # positions of labelled audit pairs in pair-id order
+    sample: AuditSample  # score unused (0): each matcher's predictions are set per figure
+    gold_at: np.ndarray  # positions of every gold-labelled pair
+    gold_y: np.ndarray  # 1 match, 0 non-match, per gold_at
+
+
+def predictions(scores: np.ndarray, threshold: float) -> np.ndarray:
+    """score >= threshold; a pair the matcher said nothing about is a predicted non-match."""
+    return np.nan_to_num(scores, nan=-1.0) >= threshold
+
+
+def gather(project: ProjectFile, names: Sequence[str] | None = None,
+           with_model: bool = True) -> Judged:
+    conn = project.connection
+    infos: dict[str, catalogue.MatcherInfo | None] = {
+        m.name: m for m in catalogue.matchers(conn) if names is None or m.name in names}
+    scores = catalogue.load_scores(conn, list(infos) if names is None else list(names))
+    ids = catalogue.pair_ids(conn)
+    predicted = {n: predictions(s, infos[n].threshold) for n, s in scores.items()}
+    given = {n: ~np.isnan(s) for n, s in scores.items()}
+    if with_model:
+        model = model_scores(project).reindex(ids).to_numpy(dtype=float)
+        predicted[MODEL] = model >= project.threshold
+        given[MODEL] = np.ones(ids.size, dtype=bool)
+        infos[MODEL] = None
+    gold = {g.pair_id: int(g.label == "match") for g in gold_labels(conn)}
+    audit = conn.execute("SELECT pair_id, stratum, inclusion FROM pairs WHERE audit = 1 "
+                         "ORDER BY pair_id").fetchall()
+    kept = [(p, h, pi) for p, h, pi in audit if p in gold]
+    if not kept:
+        drawn = len(audit)
+        raise DocketError(f"the audit slice has no gold labels yet (0 of {drawn:,} drawn "
+                          "pairs); review some: every fifth pair of a reviewer's queue is an "
+                          "audit pair")
+    strata = {int(h): v for h, v in project.meta.get("audit_strata", {}).items()}
+    sample = sample_from(np.zeros(len(kept)), [gold[p] for p, _, _ in kept],
+                         [h for _, h, _ in kept], [pi for _, _, pi in kept], strata)
+    g_ids = np.fromiter(gold, dtype=np.int64, count=len(gold))
+    return Judged(list(predicted), infos, predicted, given, ids,
+                  np.searchsorted(ids, [p for p, _, _ in kept]), sample,
+                  np.searchsorted(ids, g_ids), np.fromiter(gold.values(), dtype=np.int64,
+                                                           count=len(gold)))
+
+
+def with_score(sample: AuditSample, score: np.ndarray) -> AuditSample:
+    return AuditSample(score, sample.label, sample.stratum, sample.inclusion_probability,
+                       sample.stratum_sizes, sample.drawn)

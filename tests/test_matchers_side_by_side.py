@@ -1,0 +1,149 @@
+"""evaluate --matchers: figures per matcher, kappa, paired differences, coverage on DBLP-ACM."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from docket.core import NewProject, Project
+from docket.core.matchers.importing import import_matchers
+from docket.core.matchers.paired import paired_difference
+from docket.core.matchers.judged import Judged
+from docket.core.matchers.side_by_side import figures, side_by_side
+from docket.core.ordering import queue
+from docket.core.quality.evaluate import sample_from
+from docket.tui.cli import main
+from tests.matchers_support import (
+    SAMPLE_TRUTH,
+    answer_audit,
+    candidates,
+    flipped,
+    is_match,
+    label_file,
+)
+from tests.quality import load_truth
+
+RUNS = 30  # the long version (bench/matchers_coverage.py) runs 300
+
+
+@pytest.fixture
+def judged_sample(sample_project: Path, tmp_path: Path) -> Project:
+    with Project.open(sample_project) as p:
+        answer_audit(p, SAMPLE_TRUTH)
+        frame = candidates(p)
+        y = is_match(frame, SAMPLE_TRUTH)
+        path = label_file(tmp_path / "m.csv", frame, {"truth": y, "noisy": flipped(y, 0.1, 1)})
+        import_matchers(p, [path])
+        yield p
+
+
+def _row(report: dict, name: str) -> dict:
+    return next(m for m in report["matchers"] if m["name"] == name)
+
+
+def test_a_matcher_equal_to_the_truth_scores_kappa_one_and_precision_recall_one(
+        judged_sample: Project) -> None:
+    # Definition (common practice): a rater identical to the reference agrees on every pair,
+    # so Cohen's kappa is 1 and there is neither a false positive nor a missed match.
+    report = side_by_side(judged_sample, n_boot=200)
+    row = _row(report, "truth")
+    assert row["kappa_gold"]["kappa"] == 1.0
+    assert row["precision"]["value"] == 1.0 and row["recall"]["value"] == 1.0
+    assert row["f1"]["value"] == 1.0
+    assert row["audit_pairs"] == report["audit"]["labelled"] == 1000
+    noisy = _row(report, "noisy")
+    assert noisy["kappa_gold"]["kappa"] < 1.0 and noisy["precision"]["value"] < 1.0
+    f1 = next(d for d in report["differences"] if d["measure"] == "f1"
+              and {d["first"], d["second"]} == {"truth", "noisy"})
+    assert f1["low"] > 0 if f1["first"] == "truth" else f1["high"] < 0
+    assert f1["verdict"] == "truth has the higher f1"
+
+
+def test_evaluate_matchers_command_human_and_json(judged_sample: Project, capsys) -> None:
+    judged_sample.close()
+    path = str(judged_sample.path)
+    assert main(["evaluate", path, "--matchers"]) == 0
+    out = capsys.readouterr().out
+    assert "matchers side by side" in out and "truth has the higher f1" in out
+    assert main(["evaluate", path, "--matchers", "--json"]) == 0
+    report = json.loads(capsys.readouterr().out)
+    assert {m["name"] for m in report["matchers"]} == {"truth", "noisy", "(model)"}
+    assert main(["evaluate", path, "--matchers", "--threshold", "0.3"]) == 2
+    assert "does not go with --matchers" in capsys.readouterr().err
+
+
+# -- outside check: DBLP-ACM ------------------------------------------------------------------
+@pytest.fixture(scope="module")
+def dblp(dblp_acm: Path, tmp_path_factory: pytest.TempPathFactory) -> tuple:
+    """(model probability, is a true match) per DBLP-ACM candidate pair, in pair-id order."""
+    path = tmp_path_factory.mktemp("dblp") / "dblp.docket"
+    Project.create(NewProject(path=path, left=dblp_acm / "dblp.csv", right=dblp_acm / "acm.csv",
+                              id_column="id"))
+    truth = load_truth(dblp_acm / "matches.csv", "dblp_id", "acm_id")
+    with Project.open(path, readonly=True) as p:
+        frame = candidates(p)
+        prob = pd.read_sql_query("SELECT t.probability FROM pairs p JOIN patterns t "
+                                 "USING (pattern_id) ORDER BY p.pair_id", p.connection)
+    return prob["probability"].to_numpy(), is_match(frame, truth)
+
+
+def _true(pred: np.ndarray, y: np.ndarray) -> dict[str, float]:
+    tp = float((pred & y).sum())
+    return {"precision": tp / pred.sum(), "recall": tp / y.sum(),
+            "f1": 2 * tp / (pred.sum() + y.sum())}
+
+
+def redrawn(prob: np.ndarray, y: np.ndarray, seed: int, matchers: dict[str, np.ndarray]
+            ) -> Judged:
+    """A fresh audit slice (what another --seed at 'docket new' draws), answered by the truth."""
+    a = queue.draw_audit(prob, queue.default_audit_size(prob.size), seed)
+    at = np.flatnonzero(a.selected)
+    sample = sample_from(np.zeros(at.size), y[at].astype(int).tolist(), a.stratum[at],
+                         a.inclusion[at], a.sizes)
+    everything = np.ones(prob.size, dtype=bool)
+    return Judged(list(matchers), dict.fromkeys(matchers), matchers,
+                  dict.fromkeys(matchers, everything), np.arange(1, prob.size + 1), at, sample,
+                  at, y[at].astype(np.int64))
+
+
+@pytest.mark.outside
+def test_a_flipped_truth_is_recovered_within_its_intervals(dblp: tuple, capsys) -> None:
+    # Outside check: DBLP-ACM benchmark (Köpcke, Thor & Rahm, PVLDB 2010), truth from its
+    # matches.csv; the matcher is that truth with 5 % of answers flipped at random, so its
+    # true precision and recall over the candidate pairs are known. Nominal 95 %, asked 93 %.
+    prob, y = dblp
+    hits = {"precision": 0, "recall": 0}
+    for seed in range(1, RUNS + 1):
+        pred = flipped(y, 0.05, 1000 + seed)
+        truth = _true(pred, y)
+        row = figures(redrawn(prob, y, seed, {"lm": pred}), "lm", n_boot=2)
+        for m in hits:
+            hits[m] += row[m]["low"] <= truth[m] <= row[m]["high"]
+    with capsys.disabled():
+        print(f"\nflipped truth on DBLP-ACM, {RUNS} runs: precision {hits['precision']}/{RUNS},"
+              f" recall {hits['recall']}/{RUNS} within their 95% intervals")
+    assert min(hits.values()) >= 0.93 * RUNS
+
+
+@pytest.mark.outside
+def test_the_paired_difference_covers_the_true_difference(dblp: tuple, capsys) -> None:
+    # Outside check: DBLP-ACM as above; two matchers, the truth with 3 % and with 8 % of
+    # answers flipped, so their true difference in F1, precision and recall is known.
+    prob, y = dblp
+    hits = dict.fromkeys(("precision", "recall", "f1"), 0)
+    for seed in range(1, RUNS + 1):
+        a, b = flipped(y, 0.03, 2000 + seed), flipped(y, 0.08, 3000 + seed)
+        ta, tb = _true(a, y), _true(b, y)
+        judged = redrawn(prob, y, seed, {"a": a, "b": b})
+        at = judged.audit_at
+        for m in hits:
+            d = paired_difference(judged.sample, "a", a[at], "b", b[at], m)
+            hits[m] += d.low <= ta[m] - tb[m] <= d.high
+    with capsys.disabled():
+        print(f"\npaired differences on DBLP-ACM, {RUNS} runs: "
+              + ", ".join(f"{m} {k}/{RUNS}" for m, k in hits.items()))
+    assert min(hits.values()) >= 0.9 * RUNS
