@@ -12,7 +12,7 @@ Pure numpy; ratings come in as plain (unit, reviewer, label) triples.
 from __future__ import annotations
 
 import math
-from collections.abc import Hashable, Iterable, Sequence
+from collections.abc import Hashable, Iterable, Mapping, Sequence
 from dataclasses import dataclass, fields
 from typing import Any
 
@@ -50,16 +50,17 @@ class DawidSkeneResult:
 
 
 def _m_step(
-    post: np.ndarray, obs: tuple[np.ndarray, np.ndarray, np.ndarray], n_raters: int, s: float
+    post: np.ndarray, obs: tuple[np.ndarray, np.ndarray, np.ndarray], n_raters: int, s: float,
+    unit_weight: np.ndarray,
 ) -> tuple[np.ndarray, np.ndarray]:
     unit, rater, label = obs
-    n_units, k = post.shape
-    priors = (post.sum(axis=0) + s) / (n_units + k * s)
+    k = post.shape[1]
+    priors = (unit_weight @ post + s) / (unit_weight.sum() + k * s)
     counts = np.full((n_raters, k, k), s)
     cell = rater * k + label
     for true in range(k):
         counts[:, true, :] += np.bincount(
-            cell, weights=post[unit, true], minlength=n_raters * k
+            cell, weights=post[unit, true] * unit_weight[unit], minlength=n_raters * k
         ).reshape(n_raters, k)
     return priors, counts / counts.sum(axis=2, keepdims=True)
 
@@ -69,6 +70,7 @@ def _e_step(
     theta: np.ndarray,
     obs: tuple[np.ndarray, np.ndarray, np.ndarray],
     n_units: int,
+    unit_weight: np.ndarray,
 ) -> tuple[np.ndarray, float]:
     unit, rater, label = obs
     log_theta = np.log(theta)
@@ -80,7 +82,7 @@ def _e_step(
     top = log_joint.max(axis=1, keepdims=True)
     weights = np.exp(log_joint - top)
     total = weights.sum(axis=1, keepdims=True)
-    return weights / total, float(np.sum(top + np.log(total)))
+    return weights / total, float(unit_weight @ (top + np.log(total)).ravel())
 
 
 def dawid_skene(
@@ -91,6 +93,7 @@ def dawid_skene(
     *,
     positive: str = "match",
     smoothing: float = 0.01,
+    unit_weights: Mapping[Hashable, float] | None = None,
 ) -> DawidSkeneResult:
     """Fit the Dawid-Skene model to (unit, reviewer, label) triples.
 
@@ -101,6 +104,8 @@ def dawid_skene(
     reviewer who never used some label from getting probability 0 (and a log of -inf).
     Deterministic: the same ratings in the same order give the same result. ``positive`` names
     the class for sensitivity and specificity when there are exactly two categories.
+    ``unit_weights`` counts a unit as that many identical units (default 1 each): a million
+    pairs rated by a few raters hold only a few distinct label patterns, fitted once each.
     """
     cats = tuple(categories)
     k = len(cats)
@@ -128,6 +133,11 @@ def dawid_skene(
         np.asarray(columns[2], dtype=np.intp),
     )
     n_units, n_raters = len(unit_index), len(rater_index)
+    unit_weight = np.ones(n_units)
+    if unit_weights is not None:
+        unit_weight = np.array([float(unit_weights.get(u, 1.0)) for u in unit_index])
+        if np.any(~(unit_weight > 0)):
+            raise ValueError("unit weights must be positive")
 
     votes = np.zeros((n_units, k))
     np.add.at(votes, (obs[0], obs[2]), 1.0)
@@ -135,8 +145,8 @@ def dawid_skene(
     previous, log_lik, converged, rounds = -math.inf, -math.inf, False, 0
     while rounds < max_iter:
         rounds += 1
-        priors, theta = _m_step(post, obs, n_raters, smoothing)
-        post, log_lik = _e_step(priors, theta, obs, n_units)
+        priors, theta = _m_step(post, obs, n_raters, smoothing, unit_weight)
+        post, log_lik = _e_step(priors, theta, obs, n_units, unit_weight)
         if abs(log_lik - previous) <= tol * max(1.0, abs(log_lik)):
             converged = True
             break
