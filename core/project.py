@@ -11,6 +11,7 @@ from collections.abc import Collection
 from typing import TYPE_CHECKING, Any
 
 from .errors import DocketError
+from .matchers.split_queue import SplitFirst
 from .matching.explain import explanation
 from .ordering import queue
 from .reviewing import gold, missed
@@ -25,7 +26,7 @@ from .types import ROLES, Decision, FieldComparison, PairCard, QueueItem
 if TYPE_CHECKING:  # building needs pandas; opening a project does not
     from .storage.build import Built, NewProject, Progress
 
-class Project(ProjectFile):
+class Project(SplitFirst, ProjectFile):
     """The facade: an open project file plus the verbs the front ends need.
 
     Thread-safe for one writer: calls are serialised by the file's lock.
@@ -102,7 +103,7 @@ class Project(ProjectFile):
             done = self._conn.execute("SELECT count(*) FROM current WHERE reviewer = ? "
                                       "AND role = 'reviewer'", (reviewer,)).fetchone()[0]
         audit = self._stream(reviewer, True, n, exclude)
-        other = self._stream(reviewer, False, n, exclude)
+        other, split = self._others(reviewer, n, exclude)  # the model's order, or split first
         every = int(self.meta.get("audit_every", queue.AUDIT_EVERY))
         out: list[QueueItem] = []
         for i in range(n):
@@ -112,7 +113,7 @@ class Project(ProjectFile):
                 break
             pid, a, b, p, is_audit, overlap, n_labels = source.pop(0)
             reason = queue.reason_for(float(p), self.threshold, bool(is_audit),
-                                      bool(overlap and n_labels))
+                                      bool(overlap and n_labels), pid in split)
             out.append(QueueItem(pid, a, b, float(p), reason))
         return out
 

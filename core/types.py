@@ -13,7 +13,7 @@ Label = Literal["match", "non-match", "hold"]
 LABELS: tuple[str, ...] = ("match", "non-match", "hold")
 ROLES: tuple[str, ...] = ("reviewer", "adjudicator")
 KINDS: tuple[str, ...] = ("name", "text", "longtext", "code", "number", "date")
-Reason = Literal["uncertain", "audit", "overlap"]
+Reason = Literal["uncertain", "audit", "overlap", "disagreement"]
 
 
 @dataclass(frozen=True)
@@ -40,7 +40,7 @@ class PairCard:
     probability: float
     log_odds: float  # ln(probability / (1 - probability)) = base_log_odds + contributions
     base_log_odds: float  # the ranking model's log-odds before any field is looked at
-    reason: str  # why it is in the queue: uncertain, audit, overlap, ...
+    reason: str  # why it is in the queue: uncertain, audit, overlap, disagreement, ...
     fields: tuple[FieldComparison, ...]
     left_extra: dict[str, str | None] = field(default_factory=dict)  # columns not compared
     right_extra: dict[str, str | None] = field(default_factory=dict)

@@ -11,8 +11,8 @@ import pytest
 
 from docket.core import NewProject, Project
 from docket.core.matchers.importing import import_matchers
-from docket.core.matchers.paired import paired_difference
 from docket.core.matchers.judged import Judged
+from docket.core.matchers.paired import paired_difference
 from docket.core.matchers.side_by_side import figures, side_by_side
 from docket.core.ordering import queue
 from docket.core.quality.evaluate import sample_from

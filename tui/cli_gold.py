@@ -207,6 +207,8 @@ def render(report: dict[str, Any], name: str) -> list[str]:
                    f"{b['reduction_ratio']:.4f})")
     for rule, k in b.get("pairs_per_rule", {}).items():
         out.append(f"  {rule:<40} {k:>12,} pairs")
+    if "queue_order" in report:
+        out.append(f"queue order: {report['queue_order']['text']}")
     if "machine_rater" in report:
         out += ["", *_machine_lines(report)]
     return out

@@ -95,9 +95,8 @@ def render(report: dict[str, Any], name: str) -> list[str]:
     d = report["distillation"]
     if d is not None:
         out += ["", *distillation_lines(d)]
-    mode = report.get("queue_mode")
-    if mode:
-        out += ["", f"queue order: {mode}"]
+    out += ["", f"queue order: {report['queue_order']['text']}; the audit slice is untouched "
+            "by it"]
     return out
 
 

@@ -19,12 +19,12 @@ from collections.abc import Sequence
 
 import numpy as np
 
-from .. import store
-from ..dawid_skene import dawid_skene
 from ..errors import DocketError
-from ..project import Project
+from ..reviewing.dawid_skene import dawid_skene
+from ..storage import store
+from ..storage.project_file import ProjectFile
 from . import catalogue
-from .side_by_side import predictions
+from .judged import predictions
 
 METHODS = ("vote", "dawid-skene")
 MISSING, NON_MATCH, MATCH = -1, 0, 1
@@ -54,7 +54,7 @@ def pattern_dawid_skene(codes: np.ndarray, names: Sequence[str]) -> tuple[np.nda
     return post[inverse.ravel()], fit.to_dict()
 
 
-def _reviewer_codes(project: Project, ids: np.ndarray) -> tuple[list[str], list[np.ndarray]]:
+def _reviewer_codes(project: ProjectFile, ids: np.ndarray) -> tuple[list[str], list[np.ndarray]]:
     rows = project.connection.execute(
         "SELECT pair_id, reviewer, label FROM current WHERE role = 'reviewer' "
         "AND label IN ('match', 'non-match')").fetchall()
@@ -65,7 +65,7 @@ def _reviewer_codes(project: Project, ids: np.ndarray) -> tuple[list[str], list[
     return [f"reviewer {n}" for n in names], [cols[n] for n in names]
 
 
-def ensemble_scores(project: Project, members: Sequence[str], method: str,
+def ensemble_scores(project: ProjectFile, members: Sequence[str], method: str,
                     with_reviewers: bool = False) -> tuple[np.ndarray, float, str]:
     """(score per candidate pair, threshold, description) of an ensemble of ``members``."""
     if method not in METHODS:
@@ -93,7 +93,7 @@ def ensemble_scores(project: Project, members: Sequence[str], method: str,
     return post, 0.5, f"Dawid-Skene over {who}"
 
 
-def store_ensemble(project: Project, name: str, members: Sequence[str], method: str,
+def store_ensemble(project: ProjectFile, name: str, members: Sequence[str], method: str,
                    with_reviewers: bool = False, replace: bool = False) -> None:
     name = name.strip()
     if name in members:

@@ -16,6 +16,7 @@ from typing import Any
 import numpy as np
 
 from ..errors import DocketError
+from ..ordering.queue_order import describe
 from ..quality import estimates
 from ..reviewing.agreement import cohen_kappa, json_ready
 from ..storage.project_file import ProjectFile
@@ -101,6 +102,7 @@ def side_by_side(project: ProjectFile, names: Sequence[str] | None = None,
         "differences": differences(judged, confidence),
         "variants": variants(project, judged),
         "distillation": distillation(project, judged, confidence),
+        "queue_order": describe(project.meta),
         "notes": {"kappa_gold": KAPPA_GOLD_NOTE, "kappa_between": KAPPA_PAIR_NOTE,
                   "differences": "each difference is first minus second on the same labelled "
                                  "audit pairs; intervals are not adjusted for the number of "

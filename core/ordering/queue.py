@@ -19,12 +19,15 @@ MIN_PER_STRATUM = 5
 UNCERTAIN_BAND = 0.35  # |p - threshold| below this is called "uncertain"
 
 
-def reason_for(probability: float, threshold: float, audit: bool, second_look: bool) -> str:
+def reason_for(probability: float, threshold: float, audit: bool, second_look: bool,
+               split: bool = False) -> str:
     """Why a pair is offered: named for what it is, "uncertain" only near the boundary."""
     if audit:
         return "audit"
     if second_look:
         return "overlap"
+    if split:  # machine raters disagree on it (the disagreement-first order)
+        return "disagreement"
     if abs(probability - threshold) < UNCERTAIN_BAND:
         return "uncertain"
     return "likely match" if probability >= threshold else "likely non-match"

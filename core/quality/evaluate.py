@@ -20,6 +20,7 @@ import pandas as pd
 
 from ..errors import DocketError
 from ..matching.decision_rule import predicted
+from ..ordering.queue_order import describe
 from ..records.sources import read_frame
 from ..reviewing.agreement import cohen_kappa, json_ready
 from ..reviewing.gold import gold_labels
@@ -248,6 +249,7 @@ def evaluate(project: ProjectFile, thresholds: Sequence[float] | None = None,
     out = _report(project, scores, project.threshold, thresholds, target_precision,
                   target_recall, confidence, n_boot, seed)
     one = bool(project.meta.get("one_to_one"))
+    out["queue_order"] = describe(project.meta)
     out["model"] = {"ranker": project.meta.get("ranker"), "one_to_one": one,
                     "audit_labels": "cross-fitted: each labelled audit pair is scored by a "
                                     "model fitted without its half of the audit slice",

@@ -114,20 +114,23 @@ MIGRATED_GRANTOR = "(granted before role history was kept)"
 # Version 4. Machine raters: each matcher's output as one array of float64 scores (little-endian), one
 # entry per candidate pair in pair-id order, NaN where the matcher said nothing. Ten matchers
 # over a million pairs are then ten rows read in milliseconds, where one row per pair and
-# matcher took seconds to write and to read back.
-MACHINE_RATERS = """
+# matcher took seconds to write and to read back. ``queue_disagreement`` holds the pairs the
+# raters split on, for the disagreement-first queue order.
+MACHINE_RATERS = ("""
 CREATE TABLE machine_raters (
     name TEXT PRIMARY KEY, kind TEXT NOT NULL, threshold REAL NOT NULL, variant_group TEXT,
     role TEXT, source TEXT NOT NULL, rows INTEGER NOT NULL, given INTEGER NOT NULL,
     outside INTEGER NOT NULL, absent INTEGER NOT NULL, imported_at TEXT NOT NULL,
     n_pairs INTEGER NOT NULL, scores BLOB NOT NULL,
     CHECK (kind IN ('score', 'label', 'ensemble')),
-    CHECK (role IS NULL OR role IN ('teacher', 'student')));
-"""
+    CHECK (role IS NULL OR role IN ('teacher', 'student')))""", """
+CREATE TABLE queue_disagreement (
+    pair_id INTEGER PRIMARY KEY REFERENCES pairs(pair_id), split REAL NOT NULL)""")
 
 
 def _add_machine_raters(conn: sqlite3.Connection) -> None:
-    conn.execute(MACHINE_RATERS)  # not executescript: it would commit the open transaction
+    for statement in MACHINE_RATERS:  # not executescript: it would commit the open transaction
+        conn.execute(statement)
 
 Migration = Callable[[sqlite3.Connection], None]
 

@@ -20,6 +20,7 @@ REASONS = {
     "likely non-match": "likely non-match (to confirm)",
     "audit": "audit sample (keeps estimates honest)",
     "overlap": "overlap (a second reviewer sees it too)",
+    "disagreement": "machine raters disagree (shown first)",
     "candidate": "opened from another record's candidates",
 }
 SHOWN = 3  # fields listed one by one in the odds steps; the rest share one line
