@@ -7,7 +7,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from docket.core import Project
+from docket.core import NewProject, Project
 from tests.conftest import SAMPLE
 from tests.quality import load_truth
 
@@ -42,3 +42,16 @@ def label_file(path: Path, frame: pd.DataFrame, labels: dict[str, np.ndarray]) -
              for name, y in labels.items()]
     pd.concat(parts).to_csv(path, index=False)
     return path
+
+
+def dblp_arrays(source: Path, path: Path) -> tuple[np.ndarray, np.ndarray]:
+    """Build the DBLP-ACM project at ``path``: (model probability, is a true match) per
+    candidate pair, in pair-id order."""
+    Project.create(NewProject(path=path, left=source / "dblp.csv", right=source / "acm.csv",
+                              id_column="id"))
+    truth = load_truth(source / "matches.csv", "dblp_id", "acm_id")
+    with Project.open(path, readonly=True) as p:
+        frame = candidates(p)
+        prob = pd.read_sql_query("SELECT t.probability FROM pairs p JOIN patterns t "
+                                 "USING (pattern_id) ORDER BY p.pair_id", p.connection)
+    return prob["probability"].to_numpy(), is_match(frame, truth)

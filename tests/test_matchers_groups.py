@@ -135,3 +135,20 @@ def test_ensembles_are_stored_and_judged_like_any_matcher(grouped: Project) -> N
     assert 0 < group["flip_share"] < 0.2
     d = report["distillation"]
     assert d["teacher"] == "lm-0" and d["student"] == "small" and d["census"]
+
+
+def test_demo_matcher_files_are_what_their_generator_writes(sample_project_file: Path,
+                                                           tmp_path: Path) -> None:
+    from docket.sample import make_matchers
+    counts = make_matchers.make(sample_project_file, tmp_path)  # the demo's pairs
+    for name in counts:
+        assert (tmp_path / name).read_bytes() == (make_matchers.HERE / name).read_bytes(), name
+    copy = tmp_path / "demo.docket"
+    copy.write_bytes(sample_project_file.read_bytes())
+    from docket.tui.cli_matchers import apply_demo_matchers
+    with Project.open(copy) as p:
+        names = apply_demo_matchers(p, make_matchers.HERE)
+        infos = {m.name: m for m in catalogue.matchers(p.connection)}
+    assert names == ["lm-fields", "lm-json", "lm-plain", "rules", "student"]
+    assert infos["lm-plain"].role == "teacher" and infos["student"].role == "student"
+    assert infos["rules"].outside > 0  # pairs blocking never proposed, counted

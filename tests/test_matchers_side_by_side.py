@@ -6,10 +6,9 @@ import json
 from pathlib import Path
 
 import numpy as np
-import pandas as pd
 import pytest
 
-from docket.core import NewProject, Project
+from docket.core import Project
 from docket.core.matchers.importing import import_matchers
 from docket.core.matchers.judged import Judged
 from docket.core.matchers.paired import paired_difference
@@ -21,11 +20,11 @@ from tests.matchers_support import (
     SAMPLE_TRUTH,
     answer_audit,
     candidates,
+    dblp_arrays,
     flipped,
     is_match,
     label_file,
 )
-from tests.quality import load_truth
 
 RUNS = 30  # the long version (bench/matchers_coverage.py) runs 300
 
@@ -80,15 +79,7 @@ def test_evaluate_matchers_command_human_and_json(judged_sample: Project, capsys
 @pytest.fixture(scope="module")
 def dblp(dblp_acm: Path, tmp_path_factory: pytest.TempPathFactory) -> tuple:
     """(model probability, is a true match) per DBLP-ACM candidate pair, in pair-id order."""
-    path = tmp_path_factory.mktemp("dblp") / "dblp.docket"
-    Project.create(NewProject(path=path, left=dblp_acm / "dblp.csv", right=dblp_acm / "acm.csv",
-                              id_column="id"))
-    truth = load_truth(dblp_acm / "matches.csv", "dblp_id", "acm_id")
-    with Project.open(path, readonly=True) as p:
-        frame = candidates(p)
-        prob = pd.read_sql_query("SELECT t.probability FROM pairs p JOIN patterns t "
-                                 "USING (pattern_id) ORDER BY p.pair_id", p.connection)
-    return prob["probability"].to_numpy(), is_match(frame, truth)
+    return dblp_arrays(dblp_acm, tmp_path_factory.mktemp("dblp") / "dblp.docket")
 
 
 def _true(pred: np.ndarray, y: np.ndarray) -> dict[str, float]:

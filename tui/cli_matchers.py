@@ -10,7 +10,7 @@ import argparse
 import json
 from typing import Any
 
-ACTIONS = ("import", "list", "mark", "remove", "ensemble")
+ACTIONS = ("import", "list", "mark", "remove", "ensemble", "queue")
 
 
 def register(sub: argparse._SubParsersAction) -> None:
@@ -25,7 +25,10 @@ def register(sub: argparse._SubParsersAction) -> None:
         "list: the stored matchers.  mark NAME: set --group (prompt variants of one matcher), "
         "--role teacher|student, --threshold.  remove NAME...: forget them.\n"
         "ensemble NAME --of A,B,C --method vote|dawid-skene: a combined matcher, stored and "
-        "evaluated like the others.\n\nThen: docket evaluate PROJECT --matchers",
+        "evaluated like the others.\nqueue disagreement [--of A,B,...]: reviewers see the "
+        "pairs these raters split on first, then the model's uncertain pairs (the audit "
+        "slice is untouched); queue uncertain: back to the model's order.\n\n"
+        "Then: docket evaluate PROJECT --matchers",
         "docket matchers vets.docket import outputs.csv --group prompts", run)
     p.add_argument("project")
     p.add_argument("action", choices=ACTIONS)
@@ -42,7 +45,9 @@ def register(sub: argparse._SubParsersAction) -> None:
                    help="a matcher distilled (student) from another (teacher)")
     p.add_argument("--clear", action="store_true",
                    help="mark: take away the matcher's group and role")
-    p.add_argument("--of", metavar="A,B,...", help="ensemble: the matchers it combines")
+    p.add_argument("--of", metavar="A,B,...",
+                   help="ensemble: the matchers it combines; queue: the raters that count "
+                        "(default: every stored matcher but ensembles)")
     p.add_argument("--method", choices=("vote", "dawid-skene"), default="vote",
                    help="ensemble: majority vote (ties: non-match) or Dawid-Skene")
     p.add_argument("--with-reviewers", action="store_true",
@@ -69,6 +74,8 @@ def run(args: argparse.Namespace) -> int:
             out = {"removed": args.names}
         elif args.action == "ensemble":
             out = _ensemble(project, args)
+        elif args.action == "queue":
+            out = _queue(project, args)
         else:
             out = catalogue.summary(project.connection)
     if args.json:
@@ -120,6 +127,33 @@ def _ensemble(project: Any, args: argparse.Namespace) -> list[dict[str, Any]]:
     return catalogue.summary(project.connection)
 
 
+def apply_demo_matchers(project: Any, folder: Any) -> list[str]:
+    """Store the demo's invented matcher outputs (``sample/make_matchers.py``), marked as the
+    scenario has them: three prompt variants of one model, its distilled student, a rule."""
+    from docket.core.matchers import catalogue
+    from docket.core.matchers.importing import import_matchers
+    import_matchers(project, [folder / "matchers_lm.csv"], group="lm-prompts", replace=True)
+    import_matchers(project, [folder / "matcher_rules.csv"], name="rules", threshold=0.6,
+                    replace=True)
+    import_matchers(project, [folder / "matcher_student.csv"], name="student", role="student",
+                    replace=True)
+    with project.transaction() as conn:
+        catalogue.mark(conn, "lm-plain", role="teacher")
+    return [m.name for m in catalogue.matchers(project.connection)]
+
+
+def _queue(project: Any, args: argparse.Namespace) -> dict[str, Any]:
+    from docket.core import DocketError
+    from docket.core.matchers.queue_mode import MODES, describe, set_mode
+    if len(args.names) != 1 or args.names[0] not in MODES:
+        raise DocketError("queue needs one order: disagreement or uncertain")
+    members = [m.strip() for m in args.of.split(",") if m.strip()] if args.of else None
+    with project.transaction() as conn:
+        set_mode(conn, args.names[0], members)
+    project.reload()
+    return describe(project.meta)
+
+
 def render(action: str, out: Any) -> list[str]:
     from .literal import visible as plain
     if action == "import":
@@ -133,6 +167,10 @@ def render(action: str, out: Any) -> list[str]:
                 lines.append(f"  {m['outside']:,} rows name pairs outside the candidate pairs "
                              f"(not stored, no audit stratum holds them), e.g. {shown}")
         return lines
+    if action == "queue":
+        extra = (f"; {out['split_pairs']:,} pairs split {', '.join(map(plain, out['raters']))}"
+                 if out["mode"] == "disagreement" else "")
+        return [f"queue order: {out['text']}{extra}"]
     if action == "remove":
         return [f"removed {', '.join(plain(n) for n in out['removed'])}"]
     return table_lines(out)

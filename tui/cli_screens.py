@@ -136,12 +136,17 @@ def demo(args: argparse.Namespace) -> int:
         with Project.open(spec.path) as project:
             n = label_once(project, DEMO_SECOND_REVIEWER, sample_dir() / "second_reviewer.csv",
                            default_reviewer(args.reviewer))
+            from .cli_matchers import apply_demo_matchers
+            names = apply_demo_matchers(project, sample_dir())
         print(f"second reviewer {DEMO_SECOND_REVIEWER}: {n:,} labels on overlap pairs; "
               f"{default_reviewer(args.reviewer)} is an adjudicator")
+        print(f"invented matcher outputs stored: {', '.join(names)} "
+              f"(docket evaluate {spec.path} --matchers, once the audit pairs have labels)")
     if args.no_open:
         return status(argparse.Namespace(project=str(spec.path), json=False))
     _run_review(spec.path, default_reviewer(args.reviewer), [])
     print(f"your decisions are saved in {spec.path}; next, try:\n"
           f"  docket status {spec.path}\n  docket agreement {spec.path}\n"
-          f"  docket adjudicate {spec.path}\n  docket evaluate {spec.path}")
+          f"  docket adjudicate {spec.path}\n  docket evaluate {spec.path}\n"
+          f"  docket evaluate {spec.path} --matchers")
     return 0
