@@ -112,7 +112,7 @@ def test_bad_rows_fail_with_one_line_and_store_nothing(sample_project: Path, tmp
 
 def test_a_version_1_project_upgrades_through_every_step(sample_project: Path) -> None:
     con = sqlite3.connect(sample_project)  # make it a file written by version 1
-    for table in ("machine_raters", "drafts", "missed_matches"):
+    for table in ("machine_raters", "queue_disagreement", "drafts", "missed_matches"):
         con.execute(f"DROP TABLE {table}")
     con.execute("UPDATE migrations SET version = 1")
     con.execute("PRAGMA user_version = 1")

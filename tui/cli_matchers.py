@@ -144,7 +144,8 @@ def apply_demo_matchers(project: Any, folder: Any) -> list[str]:
 
 def _queue(project: Any, args: argparse.Namespace) -> dict[str, Any]:
     from docket.core import DocketError
-    from docket.core.matchers.queue_mode import MODES, describe, set_mode
+    from docket.core.matchers.queue_mode import set_mode
+    from docket.core.ordering.queue_order import MODES, describe
     if len(args.names) != 1 or args.names[0] not in MODES:
         raise DocketError("queue needs one order: disagreement or uncertain")
     members = [m.strip() for m in args.of.split(",") if m.strip()] if args.of else None
