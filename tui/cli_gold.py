@@ -40,7 +40,8 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("project")
     p.add_argument("--json", action="store_true", help="machine-readable output")
     p.add_argument("--screen", action="store_true",
-                   help="open the quality screen (plots, threshold table, clusters) instead")
+                   help="open the quality screen (plots, threshold table, clusters) instead; with "
+                        "--matchers, the matchers screen")
     p.add_argument("--matchers", action="store_true",
                    help="every matcher stored with 'docket matchers' side by side: figures, "
                         "kappa, paired differences, variants, teacher and student")
@@ -98,6 +99,13 @@ def register(sub: argparse._SubParsersAction) -> None:
 
 def evaluate(args: argparse.Namespace) -> int:
     from docket.core import Project
+    if args.screen and args.matchers:
+        from pathlib import Path
+
+        from .adjudicate_app import run_matchers
+        Project.open(args.project, readonly=True).close()  # a bad path fails as one line
+        run_matchers(Path(args.project))
+        return 0
     if args.screen:
         from pathlib import Path
 

@@ -29,7 +29,7 @@ from .keymap import LoadedKeymap, load_keymap
 from .masking import Mask, expand_mask
 
 Clock = Callable[[], float]
-Start = Literal["adjudicate", "agreement", "quality"]
+Start = Literal["adjudicate", "agreement", "quality", "matchers"]
 
 
 def binding_ids() -> list[str]:
@@ -37,12 +37,14 @@ def binding_ids() -> list[str]:
     both apps, so its review-only entries are not reported as unknown here)."""
     from .screens.adjudicate import AdjudicateScreen
     from .screens.agreement import AgreementScreen, DisagreementsScreen
+    from .screens.matcher_failures import MatcherFailuresScreen
+    from .screens.matchers import MatchersScreen
     from .screens.pair_detail import PairDetailScreen
     from .screens.quality import ConflictScreen, QualityScreen
     from .screens.review import binding_ids as review_ids
     ids = list(review_ids())
     for screen in (AdjudicateScreen, AgreementScreen, DisagreementsScreen, PairDetailScreen,
-                   QualityScreen, ConflictScreen):
+                   QualityScreen, ConflictScreen, MatchersScreen, MatcherFailuresScreen):
         ids += [b.id for b in screen.BINDINGS if isinstance(b, Binding) and b.id]
     return list(dict.fromkeys(ids))
 
@@ -88,6 +90,9 @@ class TeamApp(App[None]):
         if self.start == "agreement":
             from .screens.agreement import AgreementScreen
             return AgreementScreen(standalone=True)
+        if self.start == "matchers":
+            from .screens.matchers import MatchersScreen
+            return MatchersScreen(standalone=True)
         if self.start == "quality":
             from .screens.quality import QualityScreen
             return QualityScreen(standalone=True)
@@ -151,3 +156,8 @@ def run_agreement(path: Path, mask: Sequence[str] = ()) -> None:
 def run_quality(path: Path, mask: Sequence[str] = ()) -> None:
     """Open the quality screen on its own until the user quits; it writes nothing."""
     _run(make_team_app(path, start="quality", mask=mask))
+
+
+def run_matchers(path: Path, mask: Sequence[str] = ()) -> None:
+    """Open the matchers screen on its own until the user quits; it writes nothing."""
+    _run(make_team_app(path, start="matchers", mask=mask))

@@ -1,0 +1,85 @@
+"""Pilot tests of the matchers screen and of the pairs where a matcher fails."""
+
+# ruff: noqa: F811 - pytest fixtures imported from screens_support arrive as arguments
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from docket.core import Project
+from docket.core.matchers.failures import failures
+from docket.core.matchers.importing import import_matchers
+from docket.tui.screens.matcher_failures import MatcherFailuresScreen
+from docket.tui.screens.matchers import MatchersScreen
+from docket.tui.screens.pair_detail import PairDetailScreen
+from tests.fixtures_review import pilot_test, screen_text
+from tests.matchers_support import (
+    SAMPLE_TRUTH,
+    answer_audit,
+    candidates,
+    flipped,
+    is_match,
+    label_file,
+)
+from tests.screens_support import press, settle, team_app  # noqa: F401 - fixtures by name
+
+SIZE = (120, 40)
+
+
+@pytest.fixture
+def rated(sample_project: Path, tmp_path: Path) -> Path:
+    with Project.open(sample_project) as p:
+        answer_audit(p, SAMPLE_TRUTH)
+        frame = candidates(p)
+        y = is_match(frame, SAMPLE_TRUTH)
+        import_matchers(p, [label_file(tmp_path / "m.csv", frame,
+                                       {"exact": y, "noisy": flipped(y, 0.05, 4)})])
+    return sample_project
+
+
+def test_failures_are_the_gold_disagreements_grouped_by_differing_fields(rated: Path) -> None:
+    with Project.open(rated, readonly=True) as p:
+        assert failures(p, "exact") == []
+        groups = failures(p, "noisy")
+        fields = {f.name for f in p.fields}
+    sizes = [len(g.failures) for g in groups]
+    assert sizes == sorted(sizes, reverse=True) and sum(sizes) > 0
+    for g in groups:
+        assert set(g.differing) <= fields
+        assert all(f.differing == g.differing for f in g.failures)
+        assert all(f.kind in ("false match", "missed match") for f in g.failures)
+
+
+@pilot_test
+async def test_the_table_then_where_a_matcher_fails_masked(rated, team_app):
+    with Project.open(rated, readonly=True) as p:
+        groups = failures(p, "noisy")
+    app = team_app(rated, start="matchers", mask=("email", "phone"))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        screen = app.screen
+        assert isinstance(screen, MatchersScreen)
+        table = screen.query_one("#matchers-table")
+        assert table.row_count == 3  # exact, noisy and the model
+        row = [c.plain for c in table.get_row("exact")]
+        assert row[3].startswith("1.000") and row[6] == "1.000"
+        assert "paired F1 differences" in screen_text(app)
+        table.move_cursor(row=table.get_row_index("noisy"))
+        await press(pilot, "enter")
+        fails = app.screen
+        assert isinstance(fails, MatcherFailuresScreen)
+        listed = fails.query_one("#failures-table")
+        assert listed.row_count == len(groups) + sum(len(g.failures) for g in groups)
+        text = screen_text(app)
+        assert groups[0].label in text and "gets wrong" in text
+        with Project.open(rated, readonly=True) as p:
+            emails = {v for (v,) in p.connection.execute("SELECT email FROM left_records")
+                      if v and len(v) > 8}
+        assert not any(e in text for e in emails)  # masked as set
+        listed.move_cursor(row=1)  # the first pair of the largest group
+        await press(pilot, "enter")
+        assert isinstance(app.screen, PairDetailScreen)
+        await press(pilot, "escape", "escape")
+        assert isinstance(app.screen, MatchersScreen)

@@ -1,0 +1,137 @@
+"""Where one matcher fails: the gold-labelled pairs it gets wrong, grouped by the fields that
+differ between the two records (``core.matchers.failures``), largest group first.
+
+Each pair shows what kind of error it is (false match, missed match) and the differing values,
+masked where ``--mask`` says. Enter opens the pair with its reviews.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import ClassVar
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.widgets import DataTable, Footer, Static
+from textual.worker import Worker, WorkerState
+
+from docket.core.matchers.failures import FailureGroup, failures
+from docket.core.project import Project
+
+from ..diff import PLAIN, Palette
+from ..literal import visible
+from ..masking import Mask, masked
+from .pair_detail import PairDetailScreen
+from .team_base import TeamScreen
+
+SHOWN = 300  # pairs listed at most; the counts still cover all
+HELP = (
+    "The gold-labelled pairs on which this matcher disagrees with the gold label, grouped by "
+    "the compared fields whose values differ between the two records (missing values do not "
+    "count as differing), the largest group first. A false match is a pair it calls a match "
+    "that the gold calls a non-match; a missed match the other way. Enter shows the pair."
+)
+
+
+@dataclass(frozen=True)
+class Listed:
+    groups: list[FailureGroup]
+    values: dict[int, list[tuple[str, str | None, str | None]]]  # pair -> differing values
+
+
+def differing_values(project: Project, groups: list[FailureGroup]) -> dict[int, list]:
+    """Worker thread: the differing fields' values of the first ``SHOWN`` pairs."""
+    out: dict[int, list] = {}
+    for group in groups:
+        for f in group.failures:
+            if len(out) >= SHOWN:
+                return out
+            card = project.card(f.pair_id, "")
+            out[f.pair_id] = [(r.field, r.left, r.right) for r in card.fields
+                              if r.field in group.differing]
+    return out
+
+
+def shown(value: str | None, field: str, mask: Mask) -> str:
+    if value is None:
+        return "— missing —"
+    return visible(masked(value) if mask and mask.applies(field) else value)
+
+
+class MatcherFailuresScreen(TeamScreen):
+    HELP = HELP
+    CSS_PATH = "matchers.tcss"
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("enter", "open", "pair", id="failures-open", priority=True,
+                tooltip="the pair under the cursor, with its reviews"),
+        Binding("question_mark", "help", "help", key_display="?", id="failures-help",
+                tooltip="this help"),
+        Binding("escape", "back", "back", id="failures-back", tooltip="back to the matchers"),
+        Binding("q", "quit", "quit", id="failures-quit", tooltip="quit docket"),
+    ]
+
+    def __init__(self, name: str) -> None:
+        super().__init__()
+        self.matcher = name
+        self.palette: Palette = PLAIN
+
+    def compose(self) -> ComposeResult:
+        yield Static(id="failures-head")
+        yield DataTable(id="failures-table", cursor_type="row", zebra_stripes=True)
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        self.palette = Palette.from_variables(self.app.get_css_variables(), self.app.no_color)
+        self.query_one("#failures-head", Static).update(
+            Text(f"Finding where {visible(self.matcher)} disagrees with the gold…"))
+        app = self.team_app
+
+        def work() -> Listed:
+            with app.reader() as project:
+                groups = failures(project, self.matcher)
+                return Listed(groups, differing_values(project, groups))
+
+        self.run_worker(work, thread=True, exit_on_error=False, group="failures",
+                        name="failures", exclusive=True)
+
+    def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
+        if event.worker.group != "failures":
+            return
+        if event.state == WorkerState.ERROR:
+            self.query_one("#failures-head", Static).update(
+                Text(f"The pairs could not be listed: {event.worker.error}"))
+        elif event.state == WorkerState.SUCCESS:
+            self._paint(event.worker.result)
+
+    def _paint(self, listed: Listed) -> None:
+        p, mask = self.palette, self.team_app.mask
+        total = sum(len(g.failures) for g in listed.groups)
+        head = Text(f"where {visible(self.matcher)} fails · ", "bold")
+        head.append(f"{total:,} gold-labelled pairs it gets wrong, in {len(listed.groups)} "
+                    "groups by the fields that differ" if total else
+                    "no gold-labelled pair disagrees with it")
+        self.query_one("#failures-head", Static).update(head)
+        table = self.query_one("#failures-table", DataTable)
+        table.clear(columns=True)
+        for label in ("pair", "error", "left", "right", "differing values"):
+            table.add_column(Text(label, p.muted))
+        for group in listed.groups:
+            table.add_row(Text(f"{len(group.failures):,}", p.heading), Text(""),
+                          Text(group.label, p.heading), Text(""), Text(""),
+                          key=f"group:{group.label}")
+            for f in group.failures:
+                if f.pair_id not in listed.values:
+                    continue
+                diff = "; ".join(f"{fld}: {shown(a, fld, mask)} ≠ {shown(b, fld, mask)}"
+                                 for fld, a, b in listed.values[f.pair_id])
+                table.add_row(Text(str(f.pair_id)), Text(f.kind), Text(visible(f.left_id)),
+                              Text(visible(f.right_id)), Text(diff), key=str(f.pair_id))
+
+    def action_open(self) -> None:
+        table = self.query_one("#failures-table", DataTable)
+        if not table.row_count:
+            return
+        key = str(table.coordinate_to_cell_key(table.cursor_coordinate).row_key.value)
+        if key.isdigit():
+            self.app.push_screen(PairDetailScreen(int(key)))
