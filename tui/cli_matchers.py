@@ -7,8 +7,9 @@ Argument parsing and printing only: reading, checking and storing live in
 from __future__ import annotations
 
 import argparse
-import json
 from typing import Any
+
+from .terminal import json_text
 
 ACTIONS = ("import", "list", "mark", "remove", "ensemble", "queue")
 
@@ -79,7 +80,7 @@ def run(args: argparse.Namespace) -> int:
         else:
             out = catalogue.summary(project.connection)
     if args.json:
-        print(json.dumps(out, indent=2, ensure_ascii=False))
+        print(json_text(out))
         return 0
     print("\n".join(render(args.action, out)))
     return 0
@@ -156,7 +157,7 @@ def _queue(project: Any, args: argparse.Namespace) -> dict[str, Any]:
 
 
 def render(action: str, out: Any) -> list[str]:
-    from .literal import visible as plain
+    from .characters import visible as plain
     if action == "import":
         lines = []
         for m in out:
@@ -179,7 +180,7 @@ def render(action: str, out: Any) -> list[str]:
 
 def table_lines(rows: list[dict[str, Any]]) -> list[str]:
     """The stored matchers, one line each (also used by ``docket status``)."""
-    from .literal import visible as plain
+    from .characters import visible as plain
     if not rows:
         return ["no matchers stored; add some with 'docket matchers PROJECT import FILE'"]
     out = [f"  {'matcher':<22}{'kind':<10}{'threshold':>9}  {'group':<14}{'role':<9}"

@@ -3,10 +3,10 @@
 from __future__ import annotations
 
 import argparse
-import json
 from typing import Any
 
-from .literal import visible
+from .characters import visible
+from .terminal import json_text
 
 
 def evaluate_matchers(args: argparse.Namespace) -> int:
@@ -22,7 +22,7 @@ def evaluate_matchers(args: argparse.Namespace) -> int:
         report = side_by_side(project)
         name = project.meta.get("name") or project.path.stem
     if args.json:
-        print(json.dumps(report, indent=2, ensure_ascii=False))
+        print(json_text(report))
     else:
         print("\n".join(render(report, name)))
     return 0

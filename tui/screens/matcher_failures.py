@@ -19,8 +19,8 @@ from textual.worker import Worker, WorkerState
 from docket.core.matchers.failures import FailureGroup, failures
 from docket.core.project import Project
 
+from ..characters import visible
 from ..diff import PLAIN, Palette
-from ..literal import visible
 from ..masking import Mask, masked
 from .pair_detail import PairDetailScreen
 from .team_base import TeamScreen

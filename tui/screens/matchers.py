@@ -20,8 +20,8 @@ from textual.worker import Worker, WorkerState
 from docket.core.errors import DocketError
 from docket.core.matchers.side_by_side import side_by_side
 
+from ..characters import visible
 from ..diff import PLAIN, Palette
-from ..literal import visible
 from ..matchers_report import HEADERS, distillation_lines, matcher_rows
 from .team_base import TeamScreen
 
