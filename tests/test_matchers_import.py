@@ -14,7 +14,6 @@ from docket.core import DocketError, Project
 from docket.core.matchers import catalogue
 from docket.core.matchers.importing import import_matchers
 from docket.core.report import status
-from docket.core.storage import store
 from docket.tui.cli import main
 from tests.matchers_support import SAMPLE_TRUTH, candidates, is_match, label_file
 
@@ -108,24 +107,6 @@ def test_bad_rows_fail_with_one_line_and_store_nothing(sample_project: Path, tmp
     err = capsys.readouterr().err.strip()
     assert len(err.splitlines()) == 1 and str(bad) in err and expected in err, err
     assert _digest(sample_project) == before  # the good file was not stored either
-
-
-def test_a_version_1_project_upgrades_through_every_step(sample_project: Path) -> None:
-    con = sqlite3.connect(sample_project)  # make it a file written by version 1
-    for table in ("machine_raters", "queue_disagreement", "drafts", "missed_matches"):
-        con.execute(f"DROP TABLE {table}")
-    con.execute("UPDATE migrations SET version = 1")
-    con.execute("PRAGMA user_version = 1")
-    con.commit()
-    con.close()
-    with Project.open(sample_project, readonly=True) as p:  # read-only: not migrated
-        assert status(p)["matchers"] == []
-    with Project.open(sample_project) as p:
-        conn = p.connection
-        assert store.has_table(conn, "machine_raters") and store.has_table(conn, "drafts")
-        assert conn.execute("PRAGMA user_version").fetchone()[0] == store.SCHEMA_VERSION
-        assert [r[0] for r in conn.execute("SELECT version FROM migrations ORDER BY 1")] == \
-            list(range(1, store.SCHEMA_VERSION + 1))
 
 
 def test_mark_and_remove(project: Project, tmp_path: Path) -> None:

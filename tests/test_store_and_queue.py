@@ -11,6 +11,7 @@ import numpy as np
 
 from docket.core import Project
 from docket.core.ordering import queue
+from docket.core.report import status
 from docket.core.storage import store
 from tests.conftest import sample_spec
 
@@ -121,14 +122,19 @@ def test_registered_migrations_upgrade_an_older_file(sample_project: Path, monke
         assert "email" in [r[1] for r in conn.execute("PRAGMA table_info(reviewers)")]
 
 
-def test_a_version_1_file_gains_drafts_and_missed_matches(sample_project: Path) -> None:
+def test_a_version_1_file_gains_every_later_table(sample_project: Path) -> None:
     from tests.store_support import downgrade
 
     downgrade(sample_project, 1)  # make it a file written by version 1
     with Project.open(sample_project, readonly=True) as p:  # read-only: left as it is
         assert p.draft(1, "maya") == "" and p.missed_matches() == []
-    with Project.open(sample_project) as p:
-        assert p.connection.execute("PRAGMA user_version").fetchone()[0] == 3
+        assert status(p)["matchers"] == []
+    with Project.open(sample_project) as p:  # upgraded through every step
+        conn = p.connection
+        assert conn.execute("PRAGMA user_version").fetchone()[0] == store.SCHEMA_VERSION
+        assert [r[0] for r in conn.execute("SELECT version FROM migrations ORDER BY 1")] == \
+            list(range(1, store.SCHEMA_VERSION + 1))
+        assert store.has_table(conn, "machine_raters")
         pid = p.next_pairs("maya", 1)[0].pair_id
         p.save_draft(pid, "maya", "kept")
         assert p.draft(pid, "maya") == "kept"

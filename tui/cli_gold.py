@@ -102,7 +102,7 @@ def evaluate(args: argparse.Namespace) -> int:
     if args.screen and args.matchers:
         from pathlib import Path
 
-        from .adjudicate_app import run_matchers
+        from .team_app import run_matchers
         Project.open(args.project, readonly=True).close()  # a bad path fails as one line
         run_matchers(Path(args.project))
         return 0

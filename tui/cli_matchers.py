@@ -68,17 +68,14 @@ def run(args: argparse.Namespace) -> int:
         elif args.action == "mark":
             out = _mark(project, args)
         elif args.action == "remove":
-            if not args.names:
-                raise DocketError("remove needs the names of the matchers to forget")
-            with project.transaction() as conn:
-                catalogue.remove(conn, args.names)
+            catalogue.forget(project, args.names)
             out = {"removed": args.names}
         elif args.action == "ensemble":
             out = _ensemble(project, args)
         elif args.action == "queue":
             out = _queue(project, args)
         else:
-            out = catalogue.summary(project.connection)
+            out = catalogue.listing(project)
     if args.json:
         print(json_text(out))
         return 0
@@ -100,20 +97,9 @@ def _import(project: Any, args: argparse.Namespace) -> list[dict[str, Any]]:
 
 
 def _mark(project: Any, args: argparse.Namespace) -> list[dict[str, Any]]:
-    from docket.core import DocketError
     from docket.core.matchers import catalogue
-    if not args.names:
-        raise DocketError("mark needs the names of the matchers to mark")
-    if args.role is not None and len(args.names) != 1:
-        raise DocketError("--role marks one matcher")
-    if not (args.group or args.role or args.clear or args.threshold is not None):
-        raise DocketError("mark needs --group, --role, --threshold or --clear")
-    with project.transaction() as conn:
-        for name in args.names:
-            catalogue.mark(conn, name, group=args.group, role=args.role,
-                           threshold=args.threshold, clear_group=args.clear,
-                           clear_role=args.clear)
-    return catalogue.summary(project.connection)
+    return catalogue.mark_all(project, args.names, group=args.group, role=args.role,
+                              threshold=args.threshold, clear=args.clear)
 
 
 def _ensemble(project: Any, args: argparse.Namespace) -> list[dict[str, Any]]:
@@ -125,7 +111,7 @@ def _ensemble(project: Any, args: argparse.Namespace) -> list[dict[str, Any]]:
     store_ensemble(project, args.names[0], members, args.method, args.with_reviewers,
                    args.replace)
     from docket.core.matchers import catalogue
-    return catalogue.summary(project.connection)
+    return catalogue.listing(project)
 
 
 def apply_demo_matchers(project: Any, folder: Any) -> list[str]:
@@ -138,22 +124,18 @@ def apply_demo_matchers(project: Any, folder: Any) -> list[str]:
                     replace=True)
     import_matchers(project, [folder / "matcher_student.csv"], name="student", role="student",
                     replace=True)
-    with project.transaction() as conn:
-        catalogue.mark(conn, "lm-plain", role="teacher")
-    return [m.name for m in catalogue.matchers(project.connection)]
+    catalogue.mark_all(project, ["lm-plain"], role="teacher")
+    return [m["name"] for m in catalogue.listing(project)]
 
 
 def _queue(project: Any, args: argparse.Namespace) -> dict[str, Any]:
     from docket.core import DocketError
-    from docket.core.matchers.queue_mode import set_mode
-    from docket.core.ordering.queue_order import MODES, describe
+    from docket.core.matchers.queue_mode import choose_order
+    from docket.core.ordering.queue_order import MODES
     if len(args.names) != 1 or args.names[0] not in MODES:
         raise DocketError("queue needs one order: disagreement or uncertain")
     members = [m.strip() for m in args.of.split(",") if m.strip()] if args.of else None
-    with project.transaction() as conn:
-        set_mode(conn, args.names[0], members)
-    project.reload()
-    return describe(project.meta)
+    return choose_order(project, args.names[0], members)
 
 
 def render(action: str, out: Any) -> list[str]:

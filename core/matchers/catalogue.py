@@ -15,6 +15,7 @@ import numpy as np
 
 from ..errors import DocketError
 from ..storage import store
+from ..storage.project_file import ProjectFile
 
 ROLES = ("teacher", "student")
 KINDS = ("score", "label", "ensemble")
@@ -131,3 +132,33 @@ def remove(conn: sqlite3.Connection, names: Sequence[str]) -> None:
 def summary(conn: sqlite3.Connection) -> list[dict[str, Any]]:
     """What ``status`` lists per matcher."""
     return [m.to_dict() for m in matchers(conn)]
+
+
+# -- the verbs the front ends call, on an open project -------------------------------------------
+def listing(project: ProjectFile) -> list[dict[str, Any]]:
+    with project.reading() as conn:
+        return summary(conn)
+
+
+def mark_all(project: ProjectFile, names: Sequence[str], *, group: str | None = None,
+             role: str | None = None, threshold: float | None = None,
+             clear: bool = False) -> list[dict[str, Any]]:
+    """Mark every named matcher in one transaction; the listing afterwards."""
+    if not names:
+        raise DocketError("mark needs the names of the matchers to mark")
+    if role is not None and len(names) != 1:
+        raise DocketError("--role marks one matcher")
+    if not (group or role or clear or threshold is not None):
+        raise DocketError("mark needs --group, --role, --threshold or --clear")
+    with project.transaction() as conn:
+        for name in names:
+            mark(conn, name, group=group, role=role, threshold=threshold, clear_group=clear,
+                 clear_role=clear)
+    return listing(project)
+
+
+def forget(project: ProjectFile, names: Sequence[str]) -> None:
+    if not names:
+        raise DocketError("remove needs the names of the matchers to forget")
+    with project.transaction() as conn:
+        remove(conn, names)

@@ -17,6 +17,7 @@ import numpy as np
 from ..errors import DocketError
 from ..ordering.queue_order import MODES, split_shares
 from ..storage import store
+from ..storage.project_file import ProjectFile
 from . import catalogue
 from .judged import predictions
 
@@ -47,3 +48,14 @@ def set_mode(conn: sqlite3.Connection, mode: str, members: Sequence[str] | None 
     setting = {"mode": mode, "since": store.now(), "raters": raters, "split_pairs": split_pairs}
     store.set_meta(conn, queue_order=setting, queue_order_history=[*history, setting])
     return setting
+
+
+def choose_order(project: ProjectFile, mode: str, members: Sequence[str] | None = None
+                 ) -> dict[str, Any]:
+    """Switch an open project's queue order; what ``describe`` says of it afterwards."""
+    from ..ordering.queue_order import describe
+    with project.transaction() as conn:
+        set_mode(conn, mode, members)
+    project.reload()
+    return describe(project.meta)
+
