@@ -111,11 +111,11 @@ UPDATE reviewers SET standing = (SELECT count(*) FROM current c WHERE c.reviewer
 """
 MIGRATED_GRANTOR = "(granted before role history was kept)"
 
-# Version 4. Machine raters: each matcher's output as one array of float64 scores (little-endian), one
-# entry per candidate pair in pair-id order, NaN where the matcher said nothing. Ten matchers
-# over a million pairs are then ten rows read in milliseconds, where one row per pair and
-# matcher took seconds to write and to read back. ``queue_disagreement`` holds the pairs the
-# raters split on, for the disagreement-first queue order.
+# Version 4. Machine raters: each matcher's output as one array of float64 scores
+# (little-endian), one entry per candidate pair in pair-id order, NaN where the matcher said
+# nothing. Ten matchers over a million pairs are then ten rows read in milliseconds, where one
+# row per pair and matcher took seconds to write and to read back. ``queue_disagreement``
+# holds the pairs the raters split on, for the disagreement-first queue order.
 MACHINE_RATERS = ("""
 CREATE TABLE machine_raters (
     name TEXT PRIMARY KEY, kind TEXT NOT NULL, threshold REAL NOT NULL, variant_group TEXT,
@@ -131,6 +131,7 @@ CREATE TABLE queue_disagreement (
 def _add_machine_raters(conn: sqlite3.Connection) -> None:
     for statement in MACHINE_RATERS:  # not executescript: it would commit the open transaction
         conn.execute(statement)
+
 
 Migration = Callable[[sqlite3.Connection], None]
 
