@@ -16,6 +16,7 @@ from pathlib import Path
 
 from textual.app import App
 from textual.binding import Binding
+from textual.driver import Driver
 
 from docket.core.errors import DocketError
 from docket.core.project import Project
@@ -24,6 +25,7 @@ from docket.core.types import QueueItem
 from .hosts import Recount
 from .keymap import LoadedKeymap, load_keymap
 from .masking import Mask, expand_mask
+from .screen_exit import clearing
 from .screens.review import ReviewScreen, binding_ids
 
 Clock = Callable[[], float]
@@ -35,6 +37,9 @@ class ReviewApp(App[None]):
     CSS_PATH = "review.tcss"
     TITLE = "docket"
     ENABLE_COMMAND_PALETTE = False
+
+    def get_driver_class(self) -> type[Driver]:
+        return clearing(super().get_driver_class())  # no stale frame after quitting
 
     def __init__(self, project: Project, reviewer: str, mask: Sequence[str] = (), *,
                  clock: Clock = time.monotonic, refit_every: int | None = None,

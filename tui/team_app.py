@@ -20,6 +20,7 @@ from typing import ClassVar, Literal
 
 from textual.app import App
 from textual.binding import Binding
+from textual.driver import Driver
 from textual.screen import Screen
 
 from docket.core.project import Project
@@ -27,6 +28,7 @@ from docket.core.reviewing.adjudication import require_adjudicator
 
 from .keymap import LoadedKeymap, load_keymap
 from .masking import Mask, expand_mask
+from .screen_exit import clearing
 
 Clock = Callable[[], float]
 Start = Literal["adjudicate", "agreement", "quality", "matchers"]
@@ -55,6 +57,9 @@ class TeamApp(App[None]):
     CSS_PATH: ClassVar[list[str | PurePath]] = ["review.tcss", "screens.tcss"]
     TITLE = "docket"
     ENABLE_COMMAND_PALETTE = False
+
+    def get_driver_class(self) -> type[Driver]:
+        return clearing(super().get_driver_class())  # no stale frame after quitting
 
     def __init__(self, project: Project, adjudicator: str = "", *, start: Start = "adjudicate",
                  blind: bool = False, mask: Sequence[str] = (), clock: Clock = time.monotonic,

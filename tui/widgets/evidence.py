@@ -78,9 +78,10 @@ def evidence_text(card: PairCard, palette: Palette, you: YourSide = YourSide(),
                   model_note: str = "") -> Text:
     p = palette
     text = Text()
-    _row(text, "probability", Text(probability_text(card.probability), p.heading))
+    # labels as narrow as they go: "1 to 3.7k" must fit beside "odds" in a 20-column panel
+    _row(text, "probability", Text(probability_text(card.probability), p.heading), 12)
     _row(text, "odds", Text(odds_text(card.log_odds),
-                            p.positive if card.log_odds > 0 else p.negative))
+                            p.positive if card.log_odds > 0 else p.negative), 8)
     text.append("from the start\n", p.muted)
     _row(text, "  ", Text(odds_text(card.base_log_odds), p.muted), 2)
     for name, part in odds_steps(card):

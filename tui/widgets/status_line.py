@@ -98,7 +98,7 @@ class StatusLine(Horizontal):
             bar.update(total=1, progress=0)
             return
         if self.compact:
-            self._put("counts", Text(f"{decided:,} done · {remaining:,} left"), sized=True)
+            self._put("counts", Text(f"{decided:,} done · {remaining:,} to go"), sized=True)
         else:
             self._put("counts", Text(f"{decided:,} decided · {remaining:,} in queue"),
                       sized=True)
