@@ -17,7 +17,7 @@ from .ordering import queue
 from .reviewing import gold, missed
 from .reviewing.gold import Gold, gold_labels
 from .reviewing.missed import MissedMatch
-from .storage import claims, roles, store
+from .storage import claims, roles, search, store
 from .storage import decisions as log
 from .storage.project_file import ProjectFile
 from .storage.refit import RefitResult, refit
@@ -208,49 +208,13 @@ class Project(SplitFirst, ProjectFile):
         return [QueueItem(int(a), b, c, float(d), "candidate") for a, b, c, d in rows]
 
     def find(self, text: str, limit: int = 50, skip: Collection[str] = ()) -> list[int]:
-        """Pairs by pair id, or by a record id or text on either side (case-insensitive).
+        """Pairs by pair id and by record id, else by the words of a record on either side.
 
         ``skip``: columns (compared case-insensitively) whose text is never searched, so a
         masked value cannot be confirmed by guessing it.
         """
-        text = text.strip()
-        if not text:
-            return []
         with self._lock:
-            if text.isdigit():
-                hit = self._conn.execute("SELECT pair_id FROM pairs WHERE pair_id = ?",
-                                         (int(text),)).fetchall()
-                if hit:
-                    return [hit[0][0]]
-            ids = self._conn.execute(
-                "SELECT pair_id FROM pairs WHERE left_id = ? OR right_id = ? ORDER BY pair_id "
-                "LIMIT ?", (text, text, limit)).fetchall()
-            if ids:
-                return [r[0] for r in ids]
-            like = f"%{text}%"
-            hidden = {c.casefold() for c in skip}
-            found: list[int] = []
-            sources = [("left_records", self.meta["left_id_column"], ("left_id",))]
-            if self.link:
-                sources.append(("right_records", self.meta["right_id_column"], ("right_id",)))
-            else:  # one table: a record may sit on either side of a pair
-                sources[0] = ("left_records", self.meta["left_id_column"], ("left_id", "right_id"))
-            for table, key, sides in sources:
-                cols = [r[1] for r in self._conn.execute(f"PRAGMA table_info({table})")
-                        if r[1].casefold() not in hidden]
-                if not cols:
-                    continue
-                cond = " OR ".join(f"{store.quote(c)} LIKE ?" for c in cols)
-                where = " OR ".join(f"{side} = ?" for side in sides)
-                for (rid,) in self._conn.execute(
-                        f"SELECT {store.quote(key)} FROM {table} WHERE {cond} LIMIT ?",
-                        (*([like] * len(cols)), limit)):
-                    found += [r[0] for r in self._conn.execute(
-                        f"SELECT pair_id FROM pairs WHERE {where} LIMIT ?",
-                        (*([rid] * len(sides)), limit))]
-                if len(found) >= limit:
-                    break
-        return sorted(set(found))[:limit]
+            return search.find_pairs(self._conn, self.meta, self.link, text, limit, skip)
 
     # -- decisions ---------------------------------------------------------------------------
     def current_label(self, pair_id: int, reviewer: str,

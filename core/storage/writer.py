@@ -13,7 +13,7 @@ from ..matching.explain import LogOddsTable
 from ..matching.model import FSModel
 from ..ordering import queue
 from ..types import FieldSpec
-from . import store
+from . import search, store
 
 BATCH = 50_000
 
@@ -26,8 +26,9 @@ def write_records(conn: sqlite3.Connection, table: str, frame: Any, id_column: s
     rows.columns = [id_column, *frame.columns]
     records = (dict(zip(rows.columns, r, strict=True))
                for r in rows.itertuples(index=False, name=None))
-    db[table].insert_all(records, pk=id_column, batch_size=5000,
-                         columns={c: str for c in rows.columns})
+    db.table(table).insert_all(records, pk=id_column, batch_size=5000,
+                               columns={c: str for c in rows.columns})
+    search.index_records(conn, table, [str(c) for c in frame.columns])
 
 
 def write_model(conn: sqlite3.Connection, model: FSModel) -> None:

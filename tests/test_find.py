@@ -1,0 +1,79 @@
+"""Find: a number is both a pair id and a record id; words match from their start through the
+full-text index; LIKE wildcards are literal; masked columns are never searched."""
+
+from __future__ import annotations
+
+import sqlite3
+from pathlib import Path
+
+from docket.core import NewProject, Project
+from docket.core.storage.search import like_pattern
+
+
+def _numeric_project(tmp_path: Path) -> Path:
+    left = tmp_path / "left.csv"
+    right = tmp_path / "right.csv"
+    # record ids 1..40 on both sides, so "4" is a pair id and a record id at once
+    left.write_text("id,name,note\n" + "".join(
+        f"{i},Anna Berg{i},{'50% off' if i == 7 else 'plain_note'}\n"
+        for i in range(1, 41)), encoding="utf-8")
+    right.write_text("id,name,note\n" + "".join(
+        f"{i},Anna Berg{i},x\n" for i in range(1, 41)), encoding="utf-8")
+    path = tmp_path / "n.docket"
+    Project.create(NewProject(path=path, left=left, right=right, left_id="id", right_id="id",
+                              rules=["name"]))
+    return path
+
+
+def test_a_number_finds_the_pair_and_the_records_pairs(tmp_path: Path) -> None:
+    path = _numeric_project(tmp_path)
+    with Project.open(path) as p:
+        rows = p.connection.execute("SELECT pair_id, left_id, right_id FROM pairs").fetchall()
+        of_record_4 = {pid for pid, a, b in rows if "4" in (a, b)}
+        assert of_record_4, "the fixture must give record 4 a pair"
+        found = p.find("4", limit=500)
+        assert found[0] == 4  # the pair id first...
+        assert of_record_4 <= set(found)  # ...and every pair of record 4 too
+
+
+def test_words_match_from_their_start_in_any_order(tmp_path: Path) -> None:
+    path = _numeric_project(tmp_path)
+    with Project.open(path) as p:
+        rows = dict(((a, b), pid) for pid, a, b in p.connection.execute(
+            "SELECT pair_id, left_id, right_id FROM pairs"))
+        want = {pid for (a, b), pid in rows.items() if a == "12" or b == "12"}
+        assert want, "the fixture must give record 12 a pair"
+        assert want <= set(p.find("berg12 ann", limit=500))
+        assert p.find("zzzz") == []
+
+
+def test_like_wildcards_are_literal(tmp_path: Path) -> None:
+    assert like_pattern("50%_\\") == "%50\\%\\_\\\\%"
+    path = _numeric_project(tmp_path)
+    with Project.open(path) as p:
+        pairs_of_7 = {pid for pid, a in p.connection.execute(
+            "SELECT pair_id, left_id FROM pairs") if a == "7"}
+        # "0%" is a substring of "50% off" only when % is taken literally; unescaped it would
+        # match every note holding a 0 or nothing at all
+        assert pairs_of_7
+        assert set(p.find("0% o", limit=500)) == pairs_of_7
+        assert p.find("n_t") == []  # "_" is not "any character": plain_note has no "n_t"
+
+
+def test_masked_columns_are_not_searched_by_the_index(tmp_path: Path) -> None:
+    path = _numeric_project(tmp_path)
+    with Project.open(path) as p:
+        assert p.find("50% off")
+        assert p.find("50% off", skip={"NOTE"}) == []
+
+
+def test_a_project_without_the_index_still_finds_text(tmp_path: Path) -> None:
+    path = _numeric_project(tmp_path)
+    conn = sqlite3.connect(path)
+    for (name,) in conn.execute("SELECT name FROM sqlite_master WHERE type = 'table' AND "
+                                "name LIKE '%records_fts'").fetchall():
+        conn.execute(f"DROP TABLE {name}")
+    conn.commit()
+    conn.close()
+    with Project.open(path) as p:
+        assert p.find("erg12")  # substring match when there is no index
