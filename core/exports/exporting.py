@@ -110,7 +110,7 @@ def write_frame(frame: pd.DataFrame, target: str, fmt: str | None = None,
     atomic_write(Path(target), write)
 
 
-def atomic_write(path: Path, write: Callable[[Path], None]) -> None:
+def atomic_write(path: Path, write: Callable[[Path], object]) -> None:
     """Let ``write`` fill a temporary file beside ``path``, then rename it into place.
 
     The temporary has a name of its own (two exports to one path at once do not share it)

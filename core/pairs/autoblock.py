@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from typing import Any
+
 import pandas as pd
 
 from ..types import FieldSpec
@@ -26,7 +28,8 @@ def choose_rules(left: pd.DataFrame, right: pd.DataFrame | None, fields: list[Fi
     """
     n_right = len(left) if right is None else len(right)
     budget = _budget(len(left), n_right, max_pairs)
-    exact, tokens = [], []
+    exact: list[Any] = []
+    tokens: list[Any] = []
     for f in fields:
         lvals = left[f.left_column]
         rvals = lvals if right is None else right[f.right_column]

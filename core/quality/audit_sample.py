@@ -32,8 +32,8 @@ class AuditSample:
     label: np.ndarray
     stratum: np.ndarray
     inclusion_probability: np.ndarray
-    stratum_sizes: Mapping[Hashable, int]
-    drawn: Mapping[Hashable, int]
+    stratum_sizes: Mapping[Any, int]
+    drawn: Mapping[Any, int]
 
     def __post_init__(self) -> None:
         set_ = object.__setattr__  # frozen: coerce once here, never again

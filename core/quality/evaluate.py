@@ -53,7 +53,7 @@ FALSE_WORDS = {"non-match", "nonmatch", "non_match", "0", "false", "no", "n", "f
 def sample_from(score: Sequence[float] | np.ndarray, label: Sequence[int | None],
                 stratum: Sequence[Hashable] | np.ndarray,
                 inclusion: Sequence[float] | np.ndarray,
-                strata: Mapping[Hashable, Sequence[int]]) -> estimates.AuditSample:
+                strata: Mapping[Any, Sequence[int]]) -> estimates.AuditSample:
     """An ``AuditSample`` from every drawn audit pair (label 1, 0 or None when not settled).
 
     ``strata`` maps each stratum to (N_h pairs in it, n_h drawn), as stored at creation.

@@ -9,6 +9,7 @@ from collections import Counter
 from collections.abc import Hashable, Mapping
 from dataclasses import dataclass
 from itertools import combinations
+from typing import Any
 
 from .agreement import (
     _NAN,
@@ -74,7 +75,7 @@ class OverallResult(_ToDict):
     alpha_units: int
 
 
-def _check_labels(labels: Mapping[Hashable, Mapping[Hashable, str]]) -> None:
+def _check_labels(labels: Mapping[Any, Mapping[Any, str]]) -> None:
     for reviewer, given in labels.items():
         for unit, label in given.items():
             if label not in WITH_HOLD:
@@ -85,7 +86,7 @@ def _check_labels(labels: Mapping[Hashable, Mapping[Hashable, str]]) -> None:
 
 
 def pairwise_agreement(
-    labels: Mapping[Hashable, Mapping[Hashable, str]], include_hold: bool = False
+    labels: Mapping[Any, Mapping[Any, str]], include_hold: bool = False
 ) -> list[PairwiseResult]:
     """Cohen's kappa, PABAK and the table for every two reviewers with units in common.
 
@@ -127,7 +128,7 @@ def pairwise_agreement(
 
 
 def overall_agreement(
-    labels: Mapping[Hashable, Mapping[Hashable, str]], include_hold: bool = False
+    labels: Mapping[Any, Mapping[Any, str]], include_hold: bool = False
 ) -> OverallResult:
     """Fleiss' kappa and Krippendorff's alpha (nominal) over all reviewers; see OverallResult."""
     _check_labels(labels)

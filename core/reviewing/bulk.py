@@ -48,17 +48,19 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
     elif {"left_id", "right_id"} <= cols:
         lookup = {(a, b): p for p, a, b in project.connection.execute(
             "SELECT pair_id, left_id, right_id FROM pairs")}
-        pair_ids, unknown = [], []
+        pair_ids = []
+        missing: list[str] = []
         for i, (a, b) in enumerate(zip(frame["left_id"], frame["right_id"], strict=True)):
             p = lookup.get((a, b))
             if p is None and not project.link:
                 p = lookup.get((b, a))
             if p is None:
-                unknown.append(f"row {i + 2} ({a}, {b})")
-            pair_ids.append(p)
-        if unknown:
-            raise DocketError(f"{path}: {len(unknown)} pair(s) are not candidate pairs of this "
-                              f"project: {', '.join(unknown[:3])}; nothing was written")
+                missing.append(f"row {i + 2} ({a}, {b})")
+            else:
+                pair_ids.append(p)
+        if missing:
+            raise DocketError(f"{path}: {len(missing)} pair(s) are not candidate pairs of this "
+                              f"project: {', '.join(missing[:3])}; nothing was written")
     else:
         raise DocketError(f"{path}: needs pair_id, or left_id and right_id, beside 'label'")
     rows = []

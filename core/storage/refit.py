@@ -108,7 +108,7 @@ def refit(conn: sqlite3.Connection) -> RefitResult:
     lab_pat = np.array([info[int(p)][0] for p in lab_pairs], dtype=np.int64)
     is_audit = np.array([bool(info[int(p)][1]) for p in lab_pairs], dtype=bool)
     half = lab_pairs % 2
-    u_random = base.u if base.u_source == "random pairs" else None
+    u_random = [np.asarray(u) for u in base.u] if base.u_source == "random pairs" else None
     n_levels = [len(x) for x in base.level_names]
 
     def fs_fit(mask: np.ndarray) -> FSModel:
