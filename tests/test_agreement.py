@@ -1,4 +1,6 @@
-"""Agreement statistics against published worked examples (values as in checks.md §1-4, §8)."""
+"""Agreement statistics against published worked examples (Cohen 1960; Fleiss 1971;
+Krippendorff 2011; Landis & Koch 1977; Byrt, Bishop & Carlin 1993; each value's source beside
+it)."""
 
 from __future__ import annotations
 

@@ -14,7 +14,7 @@ from .team_support import run
 
 # Wikipedia "Cohen's kappa", 50 grant proposals: rows reviewer A, columns reviewer B, categories
 # (match, non-match) for (Yes, No). The table and p_o = 0.70 [S via the howcodex mirror]; the
-# Wikipedia text itself is from memory (checks.md §1a).
+# Wikipedia text itself is from memory.
 TABLE = [[20, 5], [10, 15]]
 CELLS = (("match", "match"), ("match", "non-match"), ("non-match", "match"),
          ("non-match", "non-match"))
@@ -50,17 +50,18 @@ def test_label_then_agreement_reproduces_the_worked_example(
     (pair,) = report["reviewer_pairs"]
     assert (pair["reviewer_a"], pair["reviewer_b"], pair["n"]) == ("ana", "ben", 50)
     assert pair["confusion"]["table"] == TABLE
-    assert pair["observed"] == pytest.approx(0.70)  # [S via howcodex mirror], checks.md §1a
-    assert pair["expected"] == pytest.approx(0.50)  # checks.md §1a
-    assert pair["kappa"] == pytest.approx(0.4000, abs=5e-5)  # checks.md §1a [S]
-    # FCE (1969) non-null ASE 0.1270, CI 0.1511-0.6489 [C] (statsmodels), checks.md §1c
+    assert pair["observed"] == pytest.approx(0.70)  # Wikipedia "Cohen's kappa" [S via mirror]
+    assert pair["expected"] == pytest.approx(0.50)  # Wikipedia "Cohen's kappa"
+    assert pair["kappa"] == pytest.approx(0.4000, abs=5e-5)  # Wikipedia "Cohen's kappa" [S]
+    # FCE (1969) non-null ASE 0.1270, CI 0.1511-0.6489 [C] (statsmodels cohens_kappa)
     assert pair["se"] == pytest.approx(0.1270, abs=5e-5)
     assert (pair["ci_low"], pair["ci_high"]) == (pytest.approx(0.1511, abs=5e-5),
                                                  pytest.approx(0.6489, abs=5e-5))
-    assert pair["se0"] == pytest.approx(0.1386, abs=5e-5)  # null SE [C], checks.md §1c
-    reference = cohens_kappa(TABLE)  # statsmodels, the reference library checks.md names
+    assert pair["se0"] == pytest.approx(0.1386, abs=5e-5)  # null SE [C], FCE 1969
+    reference = cohens_kappa(TABLE)  # statsmodels, the reference library
     assert pair["se"] == pytest.approx(reference.std_kappa, rel=1e-9)
-    # PABAK 0.4000, prevalence index 0.10, bias index -0.10: checks.md §8, formulas [S]
+    # PABAK 0.4000, prevalence index 0.10, bias index -0.10: formulas of Byrt, Bishop & Carlin
+    # (1993) [S]
     # (Statalist 2013-07 msg01157)
     assert pair["pabak"] == pytest.approx(0.4000)
     assert pair["prevalence_index"] == pytest.approx(0.10)
@@ -86,7 +87,7 @@ def test_holds_are_left_out_by_default_and_counted_on_request(
     assert run(["agreement", str(sample_project), "--json"]) == 0
     (pair,) = json.loads(capsys.readouterr().out)["reviewer_pairs"]
     assert (pair["n_common"], pair["n"]) == (51, 50)
-    assert pair["kappa"] == pytest.approx(0.4000, abs=5e-5)  # checks.md §1a [S]
+    assert pair["kappa"] == pytest.approx(0.4000, abs=5e-5)  # Wikipedia "Cohen's kappa" [S]
     assert pair["hold_rate_a"] == pytest.approx(1 / 51) and pair["hold_rate_b"] == 0
     assert run(["agreement", str(sample_project), "--json", "--include-hold"]) == 0
     (pair,) = json.loads(capsys.readouterr().out)["reviewer_pairs"]

@@ -1,6 +1,6 @@
 """Agreement statistics: invariants, and cross-checks against the reference libraries.
 
-The cross-checks are [C] in checks.md's terms: computed values checked against the library
+The cross-checks are computed values checked against the library
 named (scikit-learn, statsmodels, krippendorff), on random label vectors.
 """
 
@@ -102,7 +102,7 @@ def test_fleiss_matches_statsmodels(draw: tuple[int, list[list[int]]]) -> None:
 @SETTINGS
 @given(two_reviewers())
 def test_pabak_matches_uniform_fleiss(draw: tuple[int, list[int], list[int]]) -> None:
-    # checks.md §8: fleiss_kappa(aggregate_raters(pairs, n_cat=k)[0], method='uniform')
+    # statsmodels: fleiss_kappa(aggregate_raters(pairs, n_cat=k)[0], method='uniform')
     k, a, b = draw
     pairs = np.column_stack([a, b])
     expected = sm_fleiss_kappa(aggregate_raters(pairs, n_cat=k)[0], method="uniform")

@@ -1,7 +1,8 @@
 """docket's comparators against published string-similarity values.
 
-Values from ../shared/reference/checks.md §5 (Jaro–Winkler) and §6 (Levenshtein / OSA), each
-tagged with its source as there.
+Jaro–Winkler values from Winkler's published examples as reproduced on Wikipedia and in
+jellyfish's test data; Levenshtein / OSA values from their textbook definitions; each tagged
+with its source beside it.
 """
 
 from __future__ import annotations
@@ -18,7 +19,7 @@ from docket.core.records import normalise
 JW = compare.SCORERS["name"]
 LEV = compare.SCORERS["text"]
 
-# (s1, s2, Jaro–Winkler p=0.1, source as tagged in checks.md §5)
+# (s1, s2, Jaro–Winkler p=0.1, source)
 JW_CASES = [
     ("MARTHA", "MARHTA", 0.9611, "Wikipedia [S via jellyfish testdata]"),
     ("DWAYNE", "DUANE", 0.8400, "Wikipedia [S]"),
@@ -44,7 +45,7 @@ def test_jaro_winkler_published(a: str, b: str, expected: float, source: str) ->
 
 
 def test_jaro_winkler_boost_threshold() -> None:
-    # checks.md §5 notes: the prefix bonus applies only above Jaro 0.7 (Winkler's program,
+    # Winkler (1990): the prefix bonus applies only above Jaro 0.7 (Winkler's program,
     # rapidfuzz and jellyfish); ABCDEF/ABXYZW stays at Jaro 0.5556 [C].
     assert JW(["ABCDEF"], ["ABXYZW"])[0] == pytest.approx(0.5556, abs=1e-4)
 

@@ -1,6 +1,7 @@
 """Dawid–Skene EM: recovery of known reviewer error rates from seeded simulations.
 
-No library fits this model, so the checks are against the simulation's own known truth.
+General crowd-labelling libraries fit this model too, but none is a dependency here; the checks
+are against the known truth of seeded simulations (the error rates the labels were drawn with).
 """
 
 from __future__ import annotations

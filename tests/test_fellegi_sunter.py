@@ -1,4 +1,5 @@
-"""Fellegi–Sunter weights and posterior (../shared/reference/checks.md §7); EM recovery."""
+"""Fellegi–Sunter weights and posterior (Fellegi & Sunter 1969: log2(m/u), log2((1-m)/(1-u)));
+EM recovery."""
 
 from __future__ import annotations
 
@@ -16,7 +17,7 @@ def two_level(fields: list[tuple[float, float]], prior: float) -> FSModel:
 
 
 @pytest.mark.parametrize(("m", "u", "agree", "disagree"), [
-    (0.90, 0.01, 6.4919, -3.3074),  # checks.md §7 single-field weights [C]
+    (0.90, 0.01, 6.4919, -3.3074),  # log2(m/u), log2((1-m)/(1-u)) by hand [C]
     (0.95, 0.01, 6.5699, -4.3074),
     (0.90, 0.05, 4.1699, -3.2479),
     (0.98, 0.03, 5.0297, -5.5999),
@@ -39,7 +40,8 @@ def test_despain_bayes_example() -> None:
 
 
 def test_three_field_example() -> None:
-    # checks.md §7 constructed example [C, not from a publication]: W = 8.0320, R = 261.73.
+    # constructed example, worked by hand from the Fellegi–Sunter formulas [C, not from a
+    # publication]: W = 8.0320, R = 261.73.
     model = two_level([(0.95, 0.01), (0.90, 0.05), (0.85, 0.02)], 0.5)
     pattern = np.array([[0, 0, 1]])
     w = model.pattern_weight(pattern)[0]
@@ -76,7 +78,7 @@ def test_em_recovers_known_parameters() -> None:
         assert np.allclose(got, want, atol=0.03)
 
 
-def test_labels_are_clamped_and_refit_is_deterministic() -> None:
+def test_refit_is_deterministic_and_counts_the_labels_it_used() -> None:
     levels, _ = simulate(seed=3, n=5000)
     pats, counts = np.unique(levels, axis=0, return_counts=True)
     names = [["a", "b", "c", "missing"]] * 3

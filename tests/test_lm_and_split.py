@@ -84,20 +84,18 @@ def test_split_is_deterministic_and_near_its_share() -> None:
         ge.split_of(ids, 1.0)
 
 
-@settings(max_examples=60, deadline=None)
-@given(st.sets(st.integers(1, 10**9), min_size=1, max_size=60),
-       st.sets(st.integers(1, 10**9), max_size=60), st.integers(0, 2**31))
-def test_split_of_a_pair_never_changes_when_more_labels_arrive(old: set[int], new: set[int],
-                                                               seed: int) -> None:
-    before = dict(zip(sorted(old), ge.split_of(sorted(old), 0.3, seed), strict=True))
-    grown = sorted(old | new)
-    after = dict(zip(grown, ge.split_of(grown, 0.3, seed), strict=True))
-    assert all(after[p] == side for p, side in before.items())
+PINNED_SIDES = "....T.T..T..T.T.T....TT....T...T.....TTT"  # pair ids 1..40, share 0.3, seed 0
 
 
-def test_training_split_matches_split_of_and_is_stable(tiny: Project) -> None:
+def test_split_is_the_same_in_every_release() -> None:
+    # A pair's side is part of an exported training set's meaning: a change of hash would move
+    # pairs between train and test for everyone who exports again. These sides are pinned.
+    sides = "".join("T" if s == "test" else "." for s in ge.split_of(range(1, 41), 0.3, seed=0))
+    assert sides == PINNED_SIDES
+
+
+def test_training_split_of_a_pair_stays_when_more_labels_arrive(tiny: Project) -> None:
     first = ge.training_frame(tiny, 0.5, 3, split_by="pair")[["pair_id", "split"]]
-    assert first["split"].tolist() == ge.split_of(first["pair_id"], 0.5, 3).tolist()
     tiny.decide(pair_ids(tiny)[("3", "4")], "maya", "non-match")  # one more label arrives
     later = ge.training_frame(tiny, 0.5, 3, split_by="pair").set_index("pair_id")["split"]
     assert len(later) == len(first) + 1
