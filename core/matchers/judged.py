@@ -38,6 +38,12 @@ def predictions(scores: np.ndarray, threshold: float) -> np.ndarray:
     return np.nan_to_num(scores, nan=-1.0) >= threshold
 
 
+def _info(infos: dict[str, catalogue.MatcherInfo | None], name: str) -> catalogue.MatcherInfo:
+    info = infos[name]
+    assert info is not None  # only the model has no stored info, and it has no stored scores
+    return info
+
+
 def gather(project: ProjectFile, names: Sequence[str] | None = None,
            with_model: bool = True) -> Judged:
     conn = project.connection
@@ -45,7 +51,7 @@ def gather(project: ProjectFile, names: Sequence[str] | None = None,
         m.name: m for m in catalogue.matchers(conn) if names is None or m.name in names}
     scores = catalogue.load_scores(conn, list(infos) if names is None else list(names))
     ids = catalogue.pair_ids(conn)
-    predicted = {n: predictions(s, infos[n].threshold) for n, s in scores.items()}
+    predicted = {n: predictions(s, _info(infos, n).threshold) for n, s in scores.items()}
     given = {n: ~np.isnan(s) for n, s in scores.items()}
     if with_model:
         model = model_scores(project).reindex(ids).to_numpy(dtype=float)
