@@ -154,8 +154,7 @@ def next_pairs(args: argparse.Namespace) -> int:
 def label(args: argparse.Namespace) -> int:
     from docket.core.reviewing.bulk import apply_rows, read_rows
     reviewer = default_reviewer(args.reviewer)
-    with open_project(args.project) as project:
-        project.ensure_reviewer(reviewer)
+    with open_project(args.project) as project:  # registers the reviewer only if it records
         rows = read_rows(project, Path(args.source))
         n = apply_rows(project, reviewer, rows)
         result = project.refit()

@@ -1,7 +1,16 @@
-"""Bulk decisions from a file: all of them checked first, then written in one transaction."""
+"""Bulk decisions from a file: all of them checked first, then written in short batches.
+
+A file of 25,000 rows written in one transaction held the write lock for minutes, and a
+reviewer's decision meanwhile failed as "database is locked". Each batch is its own short
+transaction, and a pause between batches lets another process's write in (SQLite's busy
+handler retries every few milliseconds). The command still changes all or nothing: should a
+batch fail (a full disk, say), the batches already written are retracted, so every standing
+label is as it was; the log keeps both, as it keeps every undo.
+"""
 
 from __future__ import annotations
 
+import time
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -13,6 +22,10 @@ from ..storage import claims, roles
 from ..storage import decisions as log
 from ..storage.project_file import ProjectFile
 from ..types import LABELS
+
+BATCH_ROWS = 500  # at most, per transaction
+BATCH_S = 0.02  # and a batch ends once it has written for this long
+PAUSE_S = 0.005  # between batches: a waiting writer asks every millisecond (ProjectFile)
 
 ALIASES = {"non_match": "non-match", "nonmatch": "non-match", "no-match": "non-match"}
 
@@ -75,16 +88,44 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
     return rows
 
 
-def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: str = "reviewer"
-               ) -> int:
-    with project.transaction() as conn:
-        roles.register(conn, reviewer)
-        for r in rows:
-            prior = log.current_of(conn, r.pair_id, reviewer, role)
-            log.append(conn, r.pair_id, reviewer, r.label, r.note, 0.0,
-                       None if prior is None else prior.decision_id, role)
-            claims.release(conn, reviewer, r.pair_id)
+def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: str = "reviewer",
+               batch: int = BATCH_ROWS, seconds: float = BATCH_S, pause: float = PAUSE_S) -> int:
+    """Record ``rows`` for ``reviewer`` in batches of at most ``batch`` rows and about
+    ``seconds`` of writing each, ``pause`` apart; on any failure, none of them stands."""
+    if not reviewer.strip():
+        raise DocketError("a reviewer needs a name; pass --reviewer NAME")
+    written: list[tuple[int, str]] = []
+    try:
+        while len(written) < len(rows):
+            if written and pause:
+                time.sleep(pause)
+            done: list[tuple[int, str]] = []
+            with project.transaction() as conn:
+                roles.register(conn, reviewer)
+                began = time.monotonic()
+                for r in rows[len(written):len(written) + max(1, batch)]:
+                    if done and time.monotonic() - began > seconds:
+                        break
+                    prior = log.current_of(conn, r.pair_id, reviewer, role)
+                    d = log.append(conn, r.pair_id, reviewer, r.label, r.note, 0.0,
+                                   None if prior is None else prior.decision_id, role)
+                    claims.release(conn, reviewer, r.pair_id)
+                    done.append((d.pair_id, d.decision_id))
+            written += done  # committed: a failed batch was rolled back whole
+    except BaseException:
+        _retract(project, reviewer, role, written)
+        raise
     return len(rows)
+
+
+def _retract(project: ProjectFile, reviewer: str, role: str, written: list[tuple[int, str]]
+             ) -> None:
+    """Take back the committed decisions of a bulk run that did not finish, latest first."""
+    if not written:
+        return
+    with project.transaction() as conn:
+        for pair_id, decision_id in reversed(written):
+            log.append(conn, pair_id, reviewer, None, "", 0.0, decision_id, role)
 
 
 def label_once(project: ProjectFile, name: str, path: Path, adjudicator: str | None = None

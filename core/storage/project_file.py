@@ -9,6 +9,7 @@ from __future__ import annotations
 import contextlib
 import sqlite3
 import threading
+import time
 from collections.abc import Iterator
 from contextlib import contextmanager
 from pathlib import Path
@@ -77,7 +78,7 @@ class ProjectFile:
         """
         with self._lock:
             try:
-                self._conn.execute("BEGIN IMMEDIATE")
+                self._begin()
             except sqlite3.Error as exc:
                 raise ProjectFileError(explain(exc, self.path)) from exc
             try:
@@ -92,6 +93,25 @@ class ProjectFile:
                 if isinstance(exc, sqlite3.Error):
                     raise ProjectFileError(explain(exc, self.path)) from exc
                 raise
+
+    def _begin(self) -> None:
+        # SQLite's own busy handler backs off to sleeps of 100 ms, so a writer working in
+        # short batches with pauses between them (a bulk label) would win the lock again and
+        # again; asking every millisecond takes it in one of the pauses.
+        deadline = time.monotonic() + store.BUSY_TIMEOUT_MS / 1000
+        self._conn.execute("PRAGMA busy_timeout = 0")
+        try:
+            while True:
+                try:
+                    self._conn.execute("BEGIN IMMEDIATE")
+                    return
+                except sqlite3.OperationalError as exc:
+                    busy = getattr(exc, "sqlite_errorname", "").startswith("SQLITE_BUSY")
+                    if not busy or time.monotonic() >= deadline:
+                        raise
+                    time.sleep(0.001)
+        finally:
+            self._conn.execute(f"PRAGMA busy_timeout = {store.BUSY_TIMEOUT_MS}")
 
     # -- decisions ---------------------------------------------------------------------------
     def decide(self, pair_id: int, reviewer: str, label: str, note: str = "",

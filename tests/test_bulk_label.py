@@ -1,0 +1,69 @@
+"""Bulk labels: written in short batches, and all or nothing all the same."""
+
+from __future__ import annotations
+
+import sqlite3
+from pathlib import Path
+
+import pytest
+
+from docket.core import DocketError, Project
+from docket.core.reviewing import bulk
+from docket.core.reviewing.bulk import BulkRow, apply_rows
+from docket.core.reviewing.team import list_reviewers
+from docket.tui.cli import main
+
+
+def _standing(p: Project) -> dict[tuple[int, str], str]:
+    return {(pid, who): lab for pid, who, lab in p.connection.execute(
+        "SELECT pair_id, reviewer, label FROM current")}
+
+
+def test_a_failed_label_registers_no_one(sample_project: Path, tmp_path: Path, capsys) -> None:
+    rows = tmp_path / "labels.csv"
+    rows.write_text("pair_id,label\n1,match\n2,banana\n", encoding="utf-8")
+    assert main(["label", str(sample_project), "--reviewer", "newbie", "--from", str(rows)]) == 2
+    assert "banana" in capsys.readouterr().err
+    with Project.open(sample_project) as p:
+        assert list_reviewers(p) == [] and p.decisions() == []
+
+
+def test_rows_go_in_batches_each_its_own_transaction(sample_project: Path) -> None:
+    with Project.open(sample_project) as p:
+        ids = [i.pair_id for i in p.next_pairs("ana", 7)]
+        rows = [BulkRow(pid, "match" if k % 2 else "non-match", "") for k, pid in enumerate(ids)]
+        statements: list[str] = []
+        p.connection.set_trace_callback(statements.append)
+        assert apply_rows(p, "ana", rows, batch=3, seconds=float('inf'), pause=0) == 7
+        p.connection.set_trace_callback(None)
+        assert statements.count("COMMIT") == 3  # 3 + 3 + 1 rows
+        assert {pid for (pid, who) in _standing(p) if who == "ana"} == set(ids)
+
+
+def test_a_batch_that_fails_takes_back_the_ones_before(sample_project: Path, monkeypatch) -> None:
+    with Project.open(sample_project) as p:
+        ids = [i.pair_id for i in p.next_pairs("ana", 6)]
+        p.decide(ids[0], "ben", "match")  # someone else's label stays whatever happens
+        p.decide(ids[1], "ana", "hold")  # ana's own earlier label comes back
+        want = _standing(p)
+        calls = {"n": 0}
+        real = bulk.claims.release
+
+        def full_disk(conn: sqlite3.Connection, reviewer: str, pair_id: int) -> None:
+            calls["n"] += 1
+            if calls["n"] == 5:  # in the third batch of two
+                raise sqlite3.OperationalError("database or disk is full")
+            real(conn, reviewer, pair_id)
+
+        monkeypatch.setattr(bulk.claims, "release", full_disk)
+        rows = [BulkRow(pid, "non-match", "bulk") for pid in ids]
+        with pytest.raises(DocketError, match="disk full"):
+            apply_rows(p, "ana", rows, batch=2, seconds=float('inf'), pause=0)
+        assert _standing(p) == want
+        assert p.connection.execute("SELECT standing FROM reviewers WHERE name = 'ana'"
+                                    ).fetchone() == (1,)
+        with pytest.raises(DocketError, match="disk full"):
+            calls["n"] = 0
+            apply_rows(p, "cleo", rows, batch=2, seconds=float('inf'), pause=0)
+        # The log shows cleo's run and its retraction; no label of hers stands.
+        assert {r["name"]: r["labels"] for r in list_reviewers(p)}["cleo"] == 0
