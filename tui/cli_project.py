@@ -35,8 +35,12 @@ def print_built(built: Any) -> None:
     print(f"candidate pairs: {r.pairs:,} of {r.possible:,} possible "
           f"(reduction ratio {_ratio(r.reduction_ratio)}; "
           f"{100 * r.pairs / max(1, r.possible):.3g} % of all pairs)")
-    print(f"model: prior {built.model.prior:.4g} after {built.model.iterations} EM iterations; "
-          f"audit slice {built.audit_size:,} pairs; overlap {built.overlap_pairs:,} pairs")
+    from docket.core.matching.explain import odds_text
+    prior = min(max(built.model.prior, 1e-300), 1 - 1e-16)
+    print(f"model: odds of a match before the fields "
+          f"{odds_text(math.log(prior / (1 - prior)))} (fitted in {built.model.iterations} "
+          f"rounds); audit slice {built.audit_size:,} pairs; overlap {built.overlap_pairs:,} "
+          "pairs")
     from docket.core.report import CAUTION
     print(f"note: {CAUTION}")
 

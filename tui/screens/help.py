@@ -7,6 +7,7 @@ from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import ClassVar
 
+from rich.table import Table
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
@@ -94,14 +95,15 @@ class HelpScreen(ModalScreen[None]):
             yield Static(Text(HOW), id="help-how")
             yield Static(self._keymap(), id="help-keymap")
 
-    def _keys(self) -> Text:
-        text = Text()
-        width = max((len(r.keys) for r in self.rows), default=4) + 2
+    def _keys(self) -> Table:
+        # a grid, so that a long explanation wraps under itself, not under the keys
+        grid = Table.grid(padding=(0, 1))
+        grid.add_column(no_wrap=True, style="bold", min_width=4)
+        grid.add_column(no_wrap=True, min_width=11)
+        grid.add_column()
         for row in self.rows:
-            text.append(f"{row.keys:<{width}}", "bold")
-            text.append(f"{row.description:<12}")
-            text.append(f" {row.tooltip}\n" if row.tooltip else "\n")
-        return text
+            grid.add_row(Text(row.keys), Text(row.description), Text(row.tooltip or ""))
+        return grid
 
     def _keymap(self) -> Text:
         text = Text("Remap keys in ")
