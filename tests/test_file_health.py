@@ -107,3 +107,21 @@ def test_a_full_disk_is_called_so_and_nothing_is_saved(sample_project: Path) -> 
         p.connection.execute(f"PRAGMA max_page_count = {pages * 10}")
         p.decide(item.pair_id, "ana", "match", "checked")
         assert p.current_label(item.pair_id, "ana") is not None
+
+
+def test_new_into_a_missing_or_read_only_folder(tmp_path: Path, capsys) -> None:
+    from tests.conftest import SAMPLE
+
+    tables = ["--left", str(SAMPLE / "practice_north.csv"), "--right",
+              str(SAMPLE / "practice_south.csv"), "--left-id", "client_id", "--right-id", "ref"]
+    assert main(["new", str(tmp_path / "nowhere" / "p.docket"), *tables]) == 2
+    assert "does not exist" in _one_line(capsys)
+    folder = tmp_path / "locked"
+    folder.mkdir()
+    os.chmod(folder, stat.S_IRUSR | stat.S_IXUSR)
+    try:
+        assert main(["new", str(folder / "p.docket"), *tables]) == 2
+        assert "read-only" in _one_line(capsys)
+    finally:
+        os.chmod(folder, stat.S_IRWXU)
+    assert list(folder.iterdir()) == [] and not (tmp_path / "nowhere").exists()

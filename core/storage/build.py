@@ -26,7 +26,7 @@ from ..pairs import autoblock, blocking
 from ..records import fields as fieldmod
 from ..records.sources import Table, load_table, read_frame
 from ..types import FieldSpec
-from . import store
+from . import file_health, store
 
 Progress = Callable[[str, int, int], None]
 
@@ -78,6 +78,7 @@ class Built:
 
 
 def _check(spec: NewProject) -> None:
+    file_health.check_new(spec.path)
     if spec.path.exists() and not spec.force:
         raise DocketError(f"{spec.path}: already exists; pass --force to replace it")
     if spec.path.exists() and spec.path.is_dir():

@@ -36,11 +36,24 @@ def _marked_writable(path: Path) -> bool:
     return bool(mode & (stat.S_IWUSR | stat.S_IWGRP | stat.S_IWOTH)) and os.access(path, os.W_OK)
 
 
-def check_place(path: Path, write: bool) -> None:
-    """The folder exists; for a command that writes, file and folder are writable."""
+def _folder(path: Path) -> Path:
     folder = path.parent if str(path.parent) else Path(".")
     if not folder.is_dir():
         raise ProjectFileError(f"{path}: the folder {folder} does not exist; check the path")
+    return folder
+
+
+def check_new(path: Path) -> None:
+    """A project about to be built: its folder exists and can be written."""
+    folder = _folder(path)
+    if not _marked_writable(folder):
+        raise ProjectFileError(f"{path}: the folder {folder} is read-only; build the project "
+                               "in a folder you can write to")
+
+
+def check_place(path: Path, write: bool) -> None:
+    """The folder exists; for a command that writes, file and folder are writable."""
+    folder = _folder(path)
     if not write or not path.exists():
         return
     if not _marked_writable(path):
