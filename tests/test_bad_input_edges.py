@@ -43,7 +43,7 @@ CASES = {
     "long row": (lambda d: write(d / "long.csv", "id,a\n1,2\n2,3,4,5\n"),
                  ["long.csv", "line 3", "4 of the header's 2"]),
     "JSON array of numbers": (lambda d: write(d / "nums.json", json.dumps(list(range(305)))),
-                              ["nums.json", "item 1", "not an object"]),
+                              ["nums.json", "item 1", "is a number, not an object"]),
     "JSON object of records": (lambda d: write(d / "wrap.json", json.dumps(
         {"records": [{"id": 1, "name": "a"}, {"id": 2, "name": "b"}]})),
         ["wrap.json", "record 1, 'records' holds a list", "flat object"]),

@@ -25,6 +25,8 @@ BOMS = ((codecs.BOM_UTF32_LE, "utf-32"), (codecs.BOM_UTF32_BE, "utf-32"),
         (codecs.BOM_UTF8, "utf-8-sig"), (codecs.BOM_UTF16_LE, "utf-16"),
         (codecs.BOM_UTF16_BE, "utf-16"))
 SEPARATORS = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "bars"}
+JSON_KINDS = {int: "a number", float: "a number", str: "a string", bool: "true or false",
+              list: "an array", type(None): "null"}
 
 
 class EncodingWarning_(UserWarning):
@@ -134,8 +136,9 @@ def read_json(path: Path) -> pd.DataFrame:
                           "JSON lines") from None
     odd = next((i for i, v in enumerate(data) if not isinstance(v, dict)), None)
     if odd is not None:
-        raise DocketError(f"{path}: item {odd + 1} of the JSON array is a "
-                          f"{type(data[odd]).__name__}, not an object; give one object per "
+        kind = JSON_KINDS.get(type(data[odd]), type(data[odd]).__name__)
+        raise DocketError(f"{path}: item {odd + 1} of the JSON array is {kind}, not an "
+                          "object; give one object per "
                           'record, e.g. [{"id": 1, "name": "..."}]')
     return _flat(path, pd.DataFrame.from_records(data))
 

@@ -236,8 +236,9 @@ def build(spec: NewProject, progress: Progress | None = None,
     audit = queue.draw_audit(prob[pattern_ix], audit_n, seed + 1)
     drawn = int(audit.selected.sum())
     if spec.audit is not None and drawn < spec.audit:
-        warnings.warn(f"--audit {spec.audit:,}: capped at {drawn:,} pairs (the audit slice takes "
-                      f"at most half of each stratum of the {n:,} candidate pairs)",
+        unit = "pair" if drawn == 1 else "pairs"
+        warnings.warn(f"--audit {spec.audit:,}: capped at {drawn:,} {unit} (the audit slice "
+                      f"takes at most half of each stratum of the {n:,} candidate pairs)",
                       UserWarning, stacklevel=2)
     overlap = queue.overlap_flags(pair_ids, spec.overlap, int(fp[:8], 16))
 
