@@ -10,6 +10,7 @@ labelled themselves.
 from __future__ import annotations
 
 import hashlib
+import textwrap
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
 
@@ -142,7 +143,10 @@ def reviews_text(card: PairCard, standing: PairStanding, adjudicator: str, blind
         text.append("queued ", p.muted)
         if standing.why:
             text.append(standing.why + "\n", p.heading)
-            text.append("  " + WHY.get(standing.why, standing.why) + "\n", p.muted)
+            why = WHY.get(standing.why, standing.why)
+            text.append("\n".join(textwrap.wrap(why, max(12, name_width + ROW_REST),
+                                                initial_indent="  ", subsequent_indent="  "))
+                        + "\n", p.muted)
         else:
             text.append("not waiting for adjudication\n")
     if standing.conflict is not None:
@@ -151,7 +155,8 @@ def reviews_text(card: PairCard, standing: PairStanding, adjudicator: str, blind
                     f"{_ids(c.match_pairs)}; gold non-match {_ids(c.non_match_pairs)}\n",
                     p.muted)
     text.append("model  ", p.muted)
-    text.append(f"p {probability_text(card.probability)} · odds {odds_text(card.log_odds)}\n")
+    # two short lines rather than one that wraps in a narrow panel
+    text.append(f"p {probability_text(card.probability)}\n       odds {odds_text(card.log_odds)}\n")
     names = shown_names(standing.reviews, blind, aliases)
     people = [(r, n) for r, n in zip(standing.reviews, names, strict=True)
               if r.role != "adjudicator"]
