@@ -106,7 +106,8 @@ class ProjectFile:
                     self._conn.execute("BEGIN IMMEDIATE")
                     return
                 except sqlite3.OperationalError as exc:
-                    busy = getattr(exc, "sqlite_errorname", "").startswith("SQLITE_BUSY")
+                    busy = (getattr(exc, "sqlite_errorname", "").startswith("SQLITE_BUSY")
+                            or "locked" in str(exc))
                     if not busy or time.monotonic() >= deadline:
                         raise
                     time.sleep(0.001)
