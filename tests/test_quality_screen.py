@@ -86,3 +86,13 @@ async def test_without_audit_labels_the_screen_says_what_is_missing(sample_proje
         assert "no estimates yet" in text and "audit slice has no gold labels" in text
         await press(pilot, "3")
         assert "No conflicts" in screen_text(app)
+
+
+def test_narrow_intervals_leave_out_what_only_takes_room() -> None:
+    from docket.tui.screens.quality_table import interval
+    # the widest an interval gets at 80 columns is 14 cells, "0.97 [.82–.99]": six columns
+    # of figures and their padding then fit beside the scroll bar
+    assert interval({"value": 1.0, "low": 1.0, "high": 1.0}, True).plain == "1.00 [1–1]"
+    assert interval({"value": 0.97, "low": 0.82, "high": 1.0}, True).plain == "0.97 [.82–1]"
+    assert interval({"value": 0.97, "low": 0.82, "high": 0.99}, True).plain == "0.97 [.82–.99]"
+    assert interval({"value": 0.97, "low": 0.82, "high": 1.0}).plain == "0.970 [0.820, 1.000]"

@@ -48,8 +48,10 @@ def fill_threshold_table(table: DataTable, report: dict[str, Any], palette: Pale
 
 
 def _short(x: float) -> str:
-    """0.88 as .88 (inside an interval, where the leading zero only takes room); 1 as 1.00."""
-    return f"{x:.2f}".removeprefix("0")
+    """0.88 as .88 and 1.00 as 1 (inside an interval, where the leading zero and the trailing
+    zeros only take room: 80 columns must hold every column)."""
+    text = f"{x:.2f}"
+    return "1" if text == "1.00" else text.removeprefix("0")
 
 
 def interval(d: dict[str, Any], narrow: bool = False) -> Text:
