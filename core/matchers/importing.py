@@ -15,12 +15,16 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
+import pyarrow as pa
+import pyarrow.compute as pc
+import pyarrow.parquet as pq
 
 from ..errors import DocketError
 from ..records.sources import detect_format, read_frame
 from ..storage import store
 from ..storage.project_file import ProjectFile
 from . import catalogue
+from .pair_keys import PairKeys, lookup, pair_keys
 
 SCORE = "score"
 LABEL = "label"
@@ -46,62 +50,39 @@ class ReadMatcher:
         return int(self.scores.size - self.given)
 
 
-@dataclass
-class PairIndex:
-    """Candidate pairs keyed for a fast lookup of many (left id, right id) rows."""
-
-    left: pd.Index
-    right: pd.Index
-    keys: np.ndarray  # sorted pair keys
-    position: np.ndarray  # position in pair-id order of each sorted key
-    n_pairs: int
-    link: bool
+def _strings(column: pa.ChunkedArray) -> pa.Array:
+    """A column as text, missing values as empty strings."""
+    if not (pa.types.is_string(column.type) or pa.types.is_large_string(column.type)):
+        column = pc.cast(column, pa.large_string())
+    return pc.fill_null(column, "").combine_chunks()
 
 
-def pair_index(project: ProjectFile) -> PairIndex:
-    frame = pd.read_sql_query("SELECT left_id, right_id FROM pairs ORDER BY pair_id",
-                              project.connection)
-    if project.link:
-        left, right = pd.Index(frame.left_id.unique()), pd.Index(frame.right_id.unique())
-    else:  # one table: both sides share one set of ids
-        left = right = pd.Index(pd.unique(np.concatenate([frame.left_id, frame.right_id])))
-    key = left.get_indexer(frame.left_id).astype(np.int64) * len(right) + \
-        right.get_indexer(frame.right_id)
-    order = np.argsort(key, kind="stable")
-    return PairIndex(left, right, key[order], order, len(frame), project.link)
-
-
-def _lookup(index: PairIndex, a: np.ndarray, b: np.ndarray) -> np.ndarray:
-    """Position in pair-id order of each (a, b), -1 where it is no candidate pair."""
-    la, rb = index.left.get_indexer(a), index.right.get_indexer(b)
-    key = la.astype(np.int64) * len(index.right) + rb
-    at = np.searchsorted(index.keys, key).clip(0, max(len(index.keys) - 1, 0))
-    hit = (la >= 0) & (rb >= 0) & (index.keys[at] == key) if len(index.keys) else la < -1
-    return np.where(hit, index.position[at] if len(index.keys) else -1, -1)
-
-
-def _read(path: Path) -> pd.DataFrame:
-    """The file with text columns (a score column may stay numeric). CSV/TSV through pyarrow
-    and Parquet column-wise: millions of rows in seconds, where the general reader converts
-    value by value."""
+def _read(path: Path) -> pa.Table:
+    """The file as columns of text (a numeric score column stays numeric). CSV/TSV through
+    pyarrow and Parquet column-wise: millions of rows in seconds, where the general reader
+    converts value by value."""
     if not path.is_file():
-        return read_frame(path)  # its one-line message for a missing file or a folder
+        read_frame(path)  # its one-line message for a missing file or a folder
     fmt = detect_format(path)
-    if fmt not in ("csv", "tsv", "parquet"):
-        return read_frame(path)
+    table = None
     try:
         if fmt == "parquet":
-            frame = pd.read_parquet(path)
-            for col in frame.columns:
-                if col != SCORE or not pd.api.types.is_numeric_dtype(frame[col]):
-                    frame[col] = frame[col].astype(str).where(frame[col].notna(), "")
-        else:
-            frame = pd.read_csv(path, dtype=str, sep="\t" if fmt == "tsv" else ",",
-                                engine="pyarrow", keep_default_na=False)
-    except (ValueError, OSError, pd.errors.ParserError):
-        return read_frame(path)  # other encodings, ragged rows: the general reader says why
-    frame.columns = [str(c).strip() for c in frame.columns]
-    return frame
+            table = pq.read_table(path)
+        elif fmt in ("csv", "tsv"):
+            table = pa.Table.from_pandas(
+                pd.read_csv(path, dtype=str, sep="\t" if fmt == "tsv" else ",",
+                            engine="pyarrow", keep_default_na=False), preserve_index=False)
+    except (ValueError, OSError, pd.errors.ParserError, pa.ArrowException):
+        table = None  # other encodings, ragged rows: the general reader says why
+    if table is None:
+        table = pa.Table.from_pandas(read_frame(path), preserve_index=False)
+    names = [str(c).strip() for c in table.column_names]
+    return pa.table({name: col if name == SCORE and _numeric(col) else _strings(col)
+                     for name, col in zip(names, table.columns, strict=True)})
+
+
+def _numeric(column: pa.ChunkedArray) -> bool:
+    return pa.types.is_floating(column.type) or pa.types.is_integer(column.type)
 
 
 def _row(position: int) -> int:
@@ -112,27 +93,36 @@ def _fail(path: Path, position: int, what: str) -> DocketError:
     return DocketError(f"{path}: row {_row(position)}: {what}")
 
 
-def _values(frame: pd.DataFrame, path: Path) -> tuple[str, np.ndarray]:
-    has_score, has_label = SCORE in frame.columns, LABEL in frame.columns
+def _first(mask: pa.Array | np.ndarray) -> int | None:
+    where = np.flatnonzero(np.asarray(mask, dtype=bool))
+    return int(where[0]) if where.size else None
+
+
+def _values(table: pa.Table, path: Path) -> tuple[str, np.ndarray]:
+    names = table.column_names
+    has_score, has_label = SCORE in names, LABEL in names
     if has_score == has_label:
         raise DocketError(f"{path}: needs one column named {SCORE} (0 to 1) or {LABEL} "
                           "(match / non-match), not " + ("both" if has_score else "neither"))
     if has_label:
-        text = frame[LABEL].fillna("").astype(str).str.strip().str.lower()
-        value = text.map(LABELS)
-        bad = np.flatnonzero(value.isna().to_numpy())
-        if bad.size:
-            given = frame[LABEL].iloc[bad[0]]
-            raise _fail(path, int(bad[0]), f"label {given!r} is not match or non-match")
-        return LABEL, value.to_numpy(dtype=float)
-    raw = frame[SCORE]
-    num = pd.to_numeric(raw, errors="coerce").to_numpy(dtype=float)
-    bad = np.flatnonzero(~np.isfinite(num))
-    if bad.size:
-        raise _fail(path, int(bad[0]), f"score {raw.iloc[bad[0]]!r} is not a number")
-    bad = np.flatnonzero((num < 0.0) | (num > 1.0))
-    if bad.size:
-        raise _fail(path, int(bad[0]), f"score {raw.iloc[bad[0]]} lies outside 0 to 1; "
+        text = pc.utf8_lower(pc.utf8_trim_whitespace(table[LABEL]))
+        code = pc.index_in(text, value_set=pa.array(list(LABELS), pa.large_string()))
+        bad = _first(pc.is_null(code).to_numpy(zero_copy_only=False))
+        if bad is not None:
+            raise _fail(path, bad, f"label {table[LABEL][bad].as_py()!r} is not match or "
+                        "non-match")
+        return LABEL, np.array(list(LABELS.values()))[code.to_numpy(zero_copy_only=False)]
+    raw = table[SCORE]
+    if _numeric(raw):
+        num = raw.to_numpy().astype(float)
+    else:
+        num = pd.to_numeric(raw.to_pandas(), errors="coerce").to_numpy(dtype=float)
+    bad = _first(~np.isfinite(num))
+    if bad is not None:
+        raise _fail(path, bad, f"score {raw[bad].as_py()!r} is not a number")
+    bad = _first((num < 0.0) | (num > 1.0))
+    if bad is not None:
+        raise _fail(path, bad, f"score {raw[bad].as_py()} lies outside 0 to 1; "
                     "rescale the matcher's scores into [0, 1]")
     return SCORE, num
 
@@ -143,42 +133,56 @@ def _known(project: ProjectFile, side: str) -> set[str]:
     return {r for (r,) in project.connection.execute(f"SELECT {store.quote(key)} FROM {table}")}
 
 
-def _positions(project: ProjectFile, index: PairIndex, frame: pd.DataFrame,
-               path: Path) -> np.ndarray:
-    for side in ("left", "right"):
-        empty = np.flatnonzero((frame[f"{side}_id"].fillna("").str.strip() == "").to_numpy())
-        if empty.size:
-            raise _fail(path, int(empty[0]), f"no {side}_id")
-    a, b = frame["left_id"].to_numpy(), frame["right_id"].to_numpy()
-    pos = _lookup(index, a, b)
-    if not index.link:  # one table: a pair may be written either way round
-        pos = np.where(pos < 0, _lookup(index, b, a), pos)
-    miss = np.flatnonzero(pos < 0)
-    if miss.size:  # not candidate pairs: are the records known at all?
+@dataclass
+class Reader:
+    """Reads matcher files against one project's candidate pairs. A file that lists the same
+    pairs in the same order as the one before (matchers run over one export) reuses its
+    positions."""
+
+    project: ProjectFile
+    index: PairKeys
+    last: tuple[pa.Array, pa.Array, np.ndarray] | None = None
+
+    def positions(self, table: pa.Table, path: Path) -> np.ndarray:
+        a, b = table["left_id"], table["right_id"]
         for side, ids in (("left", a), ("right", b)):
-            known = _known(project, side)
-            unknown = [i for i in miss if ids[i] not in known]
-            if unknown:
-                raise _fail(path, int(unknown[0]), f"{side}_id {ids[unknown[0]]!r} names no "
-                            "record of the project; check the ids (or the file's sides)")
-    return pos
+            empty = _first(pc.equal(pc.utf8_trim_whitespace(ids), "").to_numpy(
+                zero_copy_only=False))
+            if empty is not None:
+                raise _fail(path, empty, f"no {side}_id")
+        if self.last is not None and self.last[0].equals(a) and self.last[1].equals(b):
+            return self.last[2]
+        pos = lookup(self.index, a, b)
+        miss = np.flatnonzero(pos < 0)
+        if miss.size:  # not candidate pairs: are the records known at all?
+            for side, ids in (("left", a), ("right", b)):
+                known = _known(self.project, side)
+                values = ids.take(pa.array(miss)).to_pylist()
+                unknown = [i for i, v in zip(miss, values, strict=True) if v not in known]
+                if unknown:
+                    raise _fail(path, int(unknown[0]), f"{side}_id {ids[unknown[0]].as_py()!r} "
+                                "names no record of the project; check the ids (or the file's "
+                                "sides)")
+        self.last = (a, b, pos)
+        return pos
 
 
 def _one(name: str, kind: str, values: np.ndarray, pos: np.ndarray, rows: np.ndarray,
-         frame: pd.DataFrame, path: Path, n_pairs: int) -> ReadMatcher:
+         table: pa.Table, path: Path, n_pairs: int) -> ReadMatcher:
     inside = pos >= 0
-    seen = pd.Series(pos[inside])
-    dup = seen.duplicated(keep=False).to_numpy()
-    if dup.any():
-        first = seen[dup].iloc[0]
-        where = rows[inside][dup][seen[dup].to_numpy() == first][:2]
+    at = pos[inside]
+    repeated = np.bincount(at, minlength=n_pairs)[at] > 1
+    if repeated.any():
+        first = at[repeated][0]
+        where = rows[inside][at == first][:2]
         raise _fail(path, int(where[1]), f"matcher {name!r} already gave this pair on row "
                     f"{_row(int(where[0]))}; give one row per matcher and pair")
     scores = np.full(n_pairs, np.nan)
-    scores[pos[inside]] = values[inside]
+    scores[at] = values[inside]
     out_rows = rows[~inside]
-    examples = [(str(frame["left_id"].iat[i]), str(frame["right_id"].iat[i]))
-                for i in out_rows[:5]]
+    sample = pa.array(out_rows[:5], pa.int64())
+    examples = list(zip(table["left_id"].take(sample).to_pylist(),
+                        table["right_id"].take(sample).to_pylist(), strict=True))
     return ReadMatcher(name, kind, scores, str(path), int(rows.size), int(inside.sum()),
                        int(out_rows.size), examples)
 
@@ -191,34 +195,36 @@ def _check_name(name: str, path: Path) -> str:
     return name
 
 
-def read_file(project: ProjectFile, index: PairIndex, path: str | Path,
-              name: str | None = None) -> list[ReadMatcher]:
+def read_file(reader: Reader, path: str | Path, name: str | None = None) -> list[ReadMatcher]:
     """The matchers in one file: several when it has a ``matcher`` column, else one (named
     ``name``, or the file's stem)."""
     path = Path(path)
-    frame = _read(path).reset_index(drop=True)
-    missing = [c for c in ("left_id", "right_id") if c not in frame.columns]
+    table = _read(path)
+    missing = [c for c in ("left_id", "right_id") if c not in table.column_names]
     if missing:
         raise DocketError(f"{path}: needs columns left_id and right_id (missing "
-                          f"{', '.join(missing)}; found {', '.join(frame.columns[:8])})")
-    kind, values = _values(frame, path)
-    pos = _positions(project, index, frame, path)
-    rows = np.arange(len(frame))
-    if "matcher" not in frame.columns:
+                          f"{', '.join(missing)}; found {', '.join(table.column_names[:8])})")
+    kind, values = _values(table, path)
+    pos = reader.positions(table, path)
+    rows = np.arange(table.num_rows)
+    n_pairs = reader.index.n_pairs
+    if "matcher" not in table.column_names:
         label = _check_name(name if name is not None else path.stem, path)
-        return [_one(label, kind, values, pos, rows, frame, path, index.n_pairs)]
+        return [_one(label, kind, values, pos, rows, table, path, n_pairs)]
     if name is not None:
         raise DocketError(f"{path}: has a matcher column, so --name does not apply; the "
                           "column names each matcher")
-    names = frame["matcher"].fillna("").astype(str).str.strip()
-    blank = np.flatnonzero((names == "").to_numpy())
-    if blank.size:
-        raise _fail(path, int(blank[0]), "no matcher name")
+    names = pc.dictionary_encode(pc.utf8_trim_whitespace(table["matcher"])).combine_chunks()
+    labels = names.dictionary.to_pylist()
+    codes = names.indices.to_numpy(zero_copy_only=False)
+    blank = _first(codes == labels.index("")) if "" in labels else None
+    if blank is not None:
+        raise _fail(path, blank, "no matcher name")
     out = []
-    for label, members in names.groupby(names, sort=True).indices.items():
-        members = np.asarray(members)
-        out.append(_one(_check_name(str(label), path), kind, values[members], pos[members],
-                        members, frame, path, index.n_pairs))
+    for code in np.argsort(np.array(labels, dtype=object), kind="stable"):
+        members = np.flatnonzero(codes == code)
+        out.append(_one(_check_name(labels[code], path), kind, values[members], pos[members],
+                        members, table, path, n_pairs))
     return out
 
 
@@ -228,10 +234,11 @@ def read_files(project: ProjectFile, paths: Sequence[str | Path],
     if name is not None and len(paths) != 1:
         raise DocketError("--name names the matcher of one file; with several files each "
                           "is named after its file (or its matcher column)")
-    index = pair_index(project)
+    with project.reading() as conn:
+        reader = Reader(project, pair_keys(conn, project.link))
     found: dict[str, ReadMatcher] = {}
     for path in paths:
-        for m in read_file(project, index, path, name):
+        for m in read_file(reader, path, name):
             if m.name in found:
                 raise DocketError(f"{path}: matcher {m.name!r} is also in "
                                   f"{found[m.name].source}; give each matcher once")
