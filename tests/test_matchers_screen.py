@@ -83,3 +83,10 @@ async def test_the_table_then_where_a_matcher_fails_masked(rated, team_app):
         assert isinstance(app.screen, PairDetailScreen)
         await press(pilot, "escape", "escape")
         assert isinstance(app.screen, MatchersScreen)
+
+
+def test_the_screen_refuses_an_unknown_mask_column_before_opening(rated: Path, capsys) -> None:
+    from docket.tui.cli import main
+    assert main(["evaluate", str(rated), "--matchers", "--screen", "--mask", "emial"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert len(err.splitlines()) == 1 and "emial" in err, err

@@ -42,6 +42,8 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--screen", action="store_true",
                    help="open the quality screen (plots, threshold table, clusters) instead; with "
                         "--matchers, the matchers screen")
+    p.add_argument("--mask", metavar="COL,...",
+                   help="with --screen: show these columns partly masked")
     p.add_argument("--matchers", action="store_true",
                    help="every matcher stored with 'docket matchers' side by side: figures, "
                         "kappa, paired differences, variants, teacher and student")
@@ -99,19 +101,15 @@ def register(sub: argparse._SubParsersAction) -> None:
 
 def evaluate(args: argparse.Namespace) -> int:
     from docket.core import Project
-    if args.screen and args.matchers:
-        from pathlib import Path
-
-        from .team_app import run_matchers
-        Project.open(args.project, readonly=True).close()  # a bad path fails as one line
-        run_matchers(Path(args.project))
-        return 0
     if args.screen:
         from pathlib import Path
 
-        from .team_app import run_quality
-        Project.open(args.project, readonly=True).close()  # a bad path fails as one line
-        run_quality(Path(args.project))
+        from .masking import expand_mask, parse_mask
+        from .team_app import run_matchers, run_quality
+        mask = parse_mask(args.mask)
+        with Project.open(args.project, readonly=True) as project:  # bad path or mask: one line
+            expand_mask(project, mask)
+        (run_matchers if args.matchers else run_quality)(Path(args.project), mask)
         return 0
     if args.matchers:
         from .matchers_report import evaluate_matchers
