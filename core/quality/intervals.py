@@ -36,53 +36,11 @@ def wilson(x: float, n: float, confidence: float = 0.95) -> tuple[float, float]:
     return (low, high)
 
 
-def _beta_cf(a: float, b: float, x: float) -> float:
-    """Continued fraction of the incomplete beta function (modified Lentz)."""
-    tiny, eps = 1e-300, 1e-15
-    c, d = 1.0, 1.0 - (a + b) * x / (a + 1.0)
-    d = 1.0 / (d if abs(d) > tiny else tiny)
-    h = d
-    for m in range(1, 100_000):
-        for num in (
-            m * (b - m) * x / ((a + 2 * m - 1.0) * (a + 2 * m)),
-            -(a + m) * (a + b + m) * x / ((a + 2 * m) * (a + 2 * m + 1.0)),
-        ):
-            d = 1.0 + num * d
-            d = 1.0 / (d if abs(d) > tiny else tiny)
-            c = 1.0 + num / c
-            c = c if abs(c) > tiny else tiny
-            h *= c * d
-        if abs(c * d - 1.0) < eps:
-            break
-    return h
-
-
-def beta_cdf(x: float, a: float, b: float) -> float:
-    """Regularised incomplete beta function I_x(a, b), the Beta(a, b) distribution function."""
-    if x <= 0.0:
-        return 0.0
-    if x >= 1.0:
-        return 1.0
-    log_front = (math.lgamma(a + b) - math.lgamma(a) - math.lgamma(b)
-                 + a * math.log(x) + b * math.log1p(-x))
-    # the continued fraction converges fast only on one side of the mean; use symmetry beyond it
-    if x < (a + 1.0) / (a + b + 2.0):
-        return math.exp(log_front) * _beta_cf(a, b, x) / a
-    return 1.0 - math.exp(log_front) * _beta_cf(b, a, 1.0 - x) / b
-
-
 def beta_quantile(q: float, a: float, b: float) -> float:
-    """Inverse of ``beta_cdf`` in x, by bisection (the distribution function is monotone)."""
-    lo, hi = 0.0, 1.0
-    for _ in range(200):
-        mid = (lo + hi) / 2.0
-        if beta_cdf(mid, a, b) < q:
-            lo = mid
-        else:
-            hi = mid
-        if hi - lo < 1e-13:
-            break
-    return (lo + hi) / 2.0
+    """The q-quantile of Beta(a, b) (scipy's inverse regularised incomplete beta)."""
+    from scipy.special import betaincinv  # imported on first use: the review screen never needs it
+
+    return float(betaincinv(a, b, q))
 
 
 def clopper_pearson(x: float, n: float, confidence: float = 0.95) -> tuple[float, float]:
