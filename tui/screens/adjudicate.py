@@ -12,7 +12,7 @@ from __future__ import annotations
 import sqlite3
 from dataclasses import dataclass, field
 from functools import partial
-from typing import TYPE_CHECKING, ClassVar, Literal, cast
+from typing import TYPE_CHECKING, ClassVar, cast
 
 from rich.text import Text
 from textual.app import ComposeResult
@@ -29,6 +29,7 @@ from docket.core.types import PairCard
 
 from .. import bindings as shared
 from ..diff import PLAIN, Palette
+from ..navigation import Mode, Move, Navigator
 from ..widgets import CardOptions, Pace, PairCardView, StatusLine
 from ..widgets.key_bar import KeyBar
 from ..widgets.pair_card import card_title
@@ -40,7 +41,6 @@ from .team_help import ADJUDICATION, TeamHelp
 if TYPE_CHECKING:
     from ..hosts import TeamHost
 
-Mode = Literal["queue", "history", "aside"]
 HELD = "held by adjudicator"
 
 
@@ -97,9 +97,13 @@ class AdjudicateScreen(Screen[None]):
         shared.REDRAW,
     ]
 
+    @property
+    def mode(self) -> Mode:
+        return self.nav.mode
+
     def __init__(self) -> None:
         super().__init__()
-        self.mode: Mode = "queue"
+        self.nav: Navigator[int] = Navigator()
         self.queue: list[tuple[int, str]] | None = None  # None until the first worker is back
         self.held: list[int] = []  # pairs this adjudicator held in this session: asked last
         self.generation = 0
@@ -108,9 +112,6 @@ class AdjudicateScreen(Screen[None]):
         self.pair_id: int | None = None
         self.card: PairCard | None = None
         self.standing = PairStanding()
-        self.parked: int | None = None  # the queue pair left for history or an undone pair
-        self.trail: list[int] = []
-        self.pos = 0
         self.where = ""
         self.shown_at = 0.0
         self.show_extra = False
@@ -197,7 +198,7 @@ class AdjudicateScreen(Screen[None]):
     def _show(self, pair_id: int | None, mode: Mode, where: str = "",
               keep_time: bool = False) -> None:
         app = self.team_app
-        self.mode, self.pair_id, self.where = mode, pair_id, where
+        self.nav.mode, self.pair_id, self.where = mode, pair_id, where
         if pair_id is None:
             self.card, self.standing = None, PairStanding()
         else:
@@ -214,7 +215,7 @@ class AdjudicateScreen(Screen[None]):
         self._paint()
 
     def _show_queue(self) -> None:
-        parked, self.parked = self.parked, None
+        parked = self.nav.take_parked()
         waiting = [pid for pid, _ in self.queue or ()]
         if parked is not None and parked in waiting:
             self._show(parked, "queue")
@@ -292,12 +293,7 @@ class AdjudicateScreen(Screen[None]):
                 self.held.append(pair_id)
                 self.queue.append((pair_id, HELD))
         self._refresh_queue()
-        if self.mode == "history":
-            self.pos += 1
-            if self.pos < len(self.trail):
-                self._show_history()
-                return
-        self._show_queue()
+        self._go(self.nav.after_decision())
 
     def action_undo(self) -> None:
         app = self.team_app
@@ -316,40 +312,23 @@ class AdjudicateScreen(Screen[None]):
         self._show(undone.pair_id, "aside", f"undone ({undone.label}): decide again")
 
     # -- moving around -----------------------------------------------------------------------
-    def _park(self) -> None:
-        if self.mode == "queue" and self.pair_id is not None:
-            self.parked = self.pair_id
-
-    def _show_history(self) -> None:
-        where = f"your adjudication {self.pos + 1} of {len(self.trail)}"
-        self._show(self.trail[self.pos], "history", where)
+    def _go(self, move: Move) -> None:
+        if move.message:
+            self.notify(move.message)
+        elif move.to == "history" and move.pair_id is not None:
+            self._show(move.pair_id, "history", self.nav.where("your adjudication"))
+        elif move.to == "queue":
+            self._show_queue()
 
     def action_back(self) -> None:
         app = self.team_app
-        if self.mode != "history":
-            trail = [d.pair_id for d in app.project.history(app.adjudicator,
-                                                             role="adjudicator")]
-            if not trail:
-                self.notify("No adjudications yet to look back at.")
-                return
-            self._park()
-            self.trail, self.pos = trail, len(trail) - 1
-        elif self.pos == 0:
-            self.notify("This is your first adjudication.")
-            return
-        else:
-            self.pos -= 1
-        self._show_history()
+        self._go(self.nav.back(
+            lambda: [d.pair_id for d in app.project.history(app.adjudicator, role="adjudicator")],
+            self.pair_id, "No adjudications yet to look back at.",
+            "This is your first adjudication."))
 
     def action_forward(self) -> None:
-        if self.mode == "queue":
-            self.notify("You are at the newest pair.")
-            return
-        if self.mode == "history" and self.pos + 1 < len(self.trail):
-            self.pos += 1
-            self._show_history()
-            return
-        self._show_queue()
+        self._go(self.nav.forward("You are at the newest pair."))
 
     def action_to_queue(self) -> None:
         if self.mode != "queue":

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import sqlite3
 from functools import partial
-from typing import TYPE_CHECKING, ClassVar, Literal, cast
+from typing import TYPE_CHECKING, ClassVar, cast
 
 from rich.text import Text
 from textual.app import ComposeResult
@@ -25,6 +25,7 @@ from docket.core.types import Decision, PairCard, QueueItem
 
 from .. import bindings as shared
 from ..diff import PLAIN, Palette
+from ..navigation import Mode, Move, Navigator
 from ..widgets import CardOptions, EvidencePanel, KeyBar, Pace, PairCardView, StatusLine, YourSide
 from ..widgets.pair_card import card_title
 from .find import Group, PairPicker
@@ -34,7 +35,7 @@ from .note import NoteScreen
 if TYPE_CHECKING:
     from ..hosts import Recount, ReviewHost
 
-Mode = Literal["queue", "history", "aside"]
+
 
 
 class ReviewScreen(Screen[None]):
@@ -65,16 +66,17 @@ class ReviewScreen(Screen[None]):
         shared.REDRAW,
     ]
 
+    @property
+    def mode(self) -> Mode:
+        return self.nav.mode
+
     def __init__(self) -> None:
         super().__init__()
-        self.mode: Mode = "queue"
+        self.nav: Navigator[QueueItem] = Navigator()
         self.item: QueueItem | None = None
         self.card: PairCard | None = None
         self.mine: Decision | None = None  # this reviewer's own current label on the pair
         self.pending_note = ""
-        self.parked: QueueItem | None = None  # the queue pair left for history / aside
-        self.trail: list[int] = []  # history pair ids, fixed while walking them
-        self.pos = 0
         self.where = ""
         self.shown_at = 0.0
         self.show_extra = False
@@ -123,7 +125,7 @@ class ReviewScreen(Screen[None]):
     # -- showing a pair ----------------------------------------------------------------------
     def _show(self, item: QueueItem | None, mode: Mode, where: str = "") -> None:
         project = self.review_app.project
-        self.mode, self.item, self.where, self.pending_note = mode, item, where, ""
+        self.nav.mode, self.item, self.where, self.pending_note = mode, item, where, ""
         self.card = None if item is None else project.card(item.pair_id, item.reason)
         self.mine = None if item is None else project.current_label(item.pair_id,
                                                                    self.review_app.reviewer)
@@ -139,7 +141,7 @@ class ReviewScreen(Screen[None]):
 
     def _show_queue(self) -> None:
         app = self.review_app
-        parked, self.parked = self.parked, None
+        parked = self.nav.take_parked()
         if parked is not None and app.project.current_label(parked.pair_id,
                                                             app.reviewer) is None:
             self._show(parked, "queue")
@@ -224,12 +226,7 @@ class ReviewScreen(Screen[None]):
         self.review_app.counted += change
 
     def _advance(self) -> None:
-        if self.mode == "history":
-            self.pos += 1
-            if self.pos < len(self.trail):
-                self._show_history()
-                return
-        self._show_queue()
+        self._go(self.nav.after_decision())
 
     def action_undo(self) -> None:
         app = self.review_app
@@ -279,47 +276,31 @@ class ReviewScreen(Screen[None]):
         self._paint()
 
     # -- moving around -----------------------------------------------------------------------
-    def _show_history(self) -> None:
-        where = f"history {self.pos + 1} of {len(self.trail)}"
-        self._show_pair(self.trail[self.pos], "history", where)
+    def _go(self, move: Move) -> None:
+        if move.message:
+            self.notify(move.message)
+        elif move.to == "history" and move.pair_id is not None:
+            self._show_pair(move.pair_id, "history", self.nav.where("history"))
+        elif move.to == "queue":
+            self._show_queue()
 
     def action_back(self) -> None:
-        if self.mode != "history":
-            trail = [d.pair_id for d in self.review_app.project.history(self.review_app.reviewer)]
-            if not trail:
-                self.notify("No decisions yet to look back at.")
-                return
-            self._park()
-            self.trail, self.pos = trail, len(trail) - 1
-        elif self.pos == 0:
-            self.notify("This is your first decision.")
-            return
-        else:
-            self.pos -= 1
-        self._show_history()
+        app = self.review_app
+        self._go(self.nav.back(lambda: [d.pair_id for d in app.project.history(app.reviewer)],
+                               self.item, "No decisions yet to look back at.",
+                               "This is your first decision."))
 
     def action_forward(self) -> None:
-        if self.mode == "queue":
-            self.notify("You are at the newest pair.")
-            return
-        if self.mode == "history" and self.pos + 1 < len(self.trail):
-            self.pos += 1
-            self._show_history()
-            return
-        self._show_queue()
+        self._go(self.nav.forward("You are at the newest pair."))
 
     def action_to_queue(self) -> None:
         if self.mode != "queue":
             self._show_queue()
 
-    def _park(self) -> None:
-        if self.mode == "queue" and self.item is not None:
-            self.parked = self.item
-
     def _open_aside(self, pair_id: int | None) -> None:
         if pair_id is None:
             return
-        self._park()
+        self.nav.open_aside(self.item)
         self._show_pair(pair_id, "aside", "opened: deciding returns to the queue")
 
     def action_find(self) -> None:
