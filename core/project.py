@@ -246,7 +246,7 @@ class Project(SplitFirst, ProjectFile):
     # -- model -------------------------------------------------------------------------------
     def refit(self) -> RefitResult:
         with self._lock:
-            result = refit(self._conn)
+            result = refit(self._conn, gold.fitting_labels(self._conn))
             store.set_meta(self._conn, refit_at=log.stamp())
             self.meta = store.get_meta(self._conn)
         return result

@@ -17,21 +17,14 @@ Policy (stored in the project, shown by ``status``):
 from __future__ import annotations
 
 import sqlite3
-from dataclasses import asdict, dataclass, field
+from dataclasses import asdict, dataclass
 from typing import Any
 
 from ..storage import roles, store
+from . import labels as rules
+from .labels import PairLabels
 
 DEFAULT_POLICY: dict[str, Any] = {"min_reviews": 1, "independent_adjudication": False}
-
-
-@dataclass(frozen=True)
-class PairLabels:
-    """Every standing label on one pair, by role."""
-
-    pair_id: int
-    reviewers: dict[str, str] = field(default_factory=dict)  # reviewer -> label
-    adjudicators: dict[str, str] = field(default_factory=dict)
 
 
 @dataclass(frozen=True)
@@ -118,21 +111,38 @@ def reviewed_by(conn: sqlite3.Connection, name: str) -> set[int]:
         (name,))}
 
 
+def settled_labels(conn: sqlite3.Connection) -> dict[int, PairLabels]:
+    """Standing labels per pair, the adjudications narrowed to those that settle (see
+    ``adjudications``), in the order they were made."""
+    out = standing(conn)
+    for entry in out.values():
+        entry.adjudicators.clear()
+    for pid, who, label, _, _ in adjudications(conn):
+        entry = out.setdefault(pid, PairLabels(pid))
+        entry.adjudicators.pop(who, None)
+        entry.adjudicators[who] = label
+    return out
+
+
 def gold_labels(conn: sqlite3.Connection) -> list[Gold]:
-    rule = policy(conn)
-    final = _latest_adjudication(conn)
+    """Every pair the gold rule settles (``labels.gold_label``), by pair id."""
+    min_reviews = policy(conn)["min_reviews"]
     out = []
-    for pid, labels in sorted(standing(conn).items()):
-        names = tuple(sorted(labels.reviewers))
-        if pid in final:
-            if final[pid] != "hold":
-                out.append(Gold(pid, final[pid], "adjudicated", names, len(names)))
-            continue
-        values = set(labels.reviewers.values())
-        if len(names) < rule["min_reviews"] or len(values) != 1 or "hold" in values:
-            continue
-        out.append(Gold(pid, values.pop(), "unanimous" if len(names) > 1 else "single", names,
-                        len(names)))
+    for pid, labels in sorted(settled_labels(conn).items()):
+        gold = rules.gold_label(labels, min_reviews)
+        if gold is not None:
+            names = tuple(sorted(labels.reviewers))
+            out.append(Gold(pid, gold[0], gold[1], names, len(names)))
+    return out
+
+
+def fitting_labels(conn: sqlite3.Connection) -> dict[int, int]:
+    """pair_id -> 1 (match) / 0 (non-match) under the fitting rule (``labels.fitting_label``)."""
+    out = {}
+    for pid, labels in settled_labels(conn).items():
+        label = rules.fitting_label(labels)
+        if label is not None:
+            out[pid] = int(label == "match")
     return out
 
 

@@ -8,7 +8,6 @@ adjudicator decides after seeing everyone's labels.
 
 from __future__ import annotations
 
-from collections import Counter
 from dataclasses import dataclass
 from typing import Any
 
@@ -16,6 +15,7 @@ from ..errors import DocketError
 from ..storage import roles
 from ..storage.project_file import ProjectFile
 from ..types import ROLES
+from .labels import agreement_label
 
 SE_KIND = ("Fleiss, Cohen & Everitt (1969) large-sample non-null standard error (SAS 'ASE', "
            "Stata kapci); se0 is the standard error under kappa = 0")
@@ -145,11 +145,6 @@ def _pair_entry(r: Any) -> dict[str, Any]:
     }
 
 
-def _majority(votes: list[str]) -> str | None:
-    top = Counter(votes).most_common()
-    return top[0][0] if len(top) == 1 or top[0][1] > top[1][1] else None
-
-
 def _dawid_skene(labels: dict[str, dict[int, str]], categories: tuple[str, ...]
                  ) -> dict[str, Any] | None:
     from .dawid_skene import dawid_skene
@@ -165,7 +160,7 @@ def _dawid_skene(labels: dict[str, dict[int, str]], categories: tuple[str, ...]
         votes.setdefault(pid, []).append(label)
     differs, ties = [], 0
     for pid in sorted(votes):
-        major = _majority(votes[pid])
+        major = agreement_label(votes[pid])
         if major is None:
             ties += 1
         elif fit.labels[pid] != major:

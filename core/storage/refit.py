@@ -1,7 +1,6 @@
 """Refitting with labels: semi-supervised Fellegi–Sunter, and a logistic ranker when it is better.
 
-Labels are taken per pair: an adjudicator's label wins; otherwise the reviewers' majority of
-match / non-match (a tie or a hold leaves the pair unlabelled for fitting).
+Labels come from the caller, one per pair, under the fitting rule of ``reviewing.labels``.
 
 Honest by cross-fitting: the audit slice's labels help fit the model that ranks the queue, but
 ``evaluate`` judges each labelled audit pair by the score of a model fitted without its half of
@@ -42,24 +41,6 @@ class RefitResult:
         return self.__dict__.copy()
 
 
-def fitting_labels(conn: sqlite3.Connection) -> dict[int, int]:
-    """pair_id -> 1 (match) / 0 (non-match) for the pairs whose label is settled enough to fit."""
-    votes: dict[int, list[int]] = {}
-    final: dict[int, int] = {}
-    for pair_id, role, label in conn.execute("SELECT pair_id, role, label FROM current"):
-        if label == "hold":
-            continue
-        y = 1 if label == "match" else 0
-        if role == "adjudicator":
-            final[pair_id] = y
-        else:
-            votes.setdefault(pair_id, []).append(y)
-    for pair_id, ys in votes.items():
-        if pair_id not in final and 2 * sum(ys) != len(ys):
-            final[pair_id] = int(2 * sum(ys) > len(ys))
-    return final
-
-
 def _load(conn: sqlite3.Connection) -> tuple[np.ndarray, np.ndarray]:
     rows = conn.execute("SELECT pattern_id, levels, n_pairs FROM patterns ORDER BY pattern_id")
     pats, counts = [], []
@@ -91,12 +72,12 @@ def _fold_losses(x: np.ndarray, fs_fit, lab_pat: np.ndarray, lab_y: np.ndarray,
     return _log_loss(fs_pred, lab_y, ones), _log_loss(lr_pred, lab_y, ones)
 
 
-def refit(conn: sqlite3.Connection) -> RefitResult:
-    """Refit from the current labels and rewrite every pattern's probability and priority."""
+def refit(conn: sqlite3.Connection, labels: dict[int, int]) -> RefitResult:
+    """Refit from ``labels`` (pair_id -> 1 match / 0 non-match, the fitting rule of
+    ``reviewing.labels``) and rewrite every pattern's probability and priority."""
     meta = store.get_meta(conn)
     base = FSModel.from_dict(meta["fs_model"])
     patterns, counts = _load(conn)
-    labels = fitting_labels(conn)
     info: dict[int, tuple[int, int, int]] = {}
     if labels:
         ids = ",".join(map(str, sorted(labels)))
