@@ -44,6 +44,21 @@ def test_a_claim_ends_on_decide_on_the_next_claim_and_on_release(sample_project:
         assert _claims(sample_project) == []
 
 
+def test_a_pair_taken_back_by_undo_is_held_beside_the_one_on_screen(sample_project: Path
+                                                                     ) -> None:
+    with Project.open(sample_project) as p:
+        (one,) = p.next_pairs("ana", 1, claim=True)
+        p.decide(one.pair_id, "ana", "non-match")
+        (two,) = p.next_pairs("ana", 1, claim=True)
+        p.undo("ana")
+        assert _claims(sample_project) == sorted([(one.pair_id, "ana"), (two.pair_id, "ana")])
+        need = dict(p.connection.execute("SELECT pair_id, need FROM pairs"))
+        served = {i.pair_id for i in p.next_pairs("ben", 20)}
+        assert all(pid not in served for pid in (one.pair_id, two.pair_id) if need[pid] == 1)
+        p.release("ana")
+        assert one.pair_id in {i.pair_id for i in p.next_pairs("ben", 20)}
+
+
 def test_a_lapsed_claim_holds_nothing(sample_project: Path) -> None:
     with Project.open(sample_project) as p:
         (first,) = p.next_pairs("ana", 1)

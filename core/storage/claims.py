@@ -39,13 +39,15 @@ def free_for(alias: str = "p") -> str:
 
 
 def claim(conn: sqlite3.Connection, reviewer: str, pair_ids: Iterable[int],
-          lease: timedelta = LEASE) -> None:
-    """Hold ``pair_ids`` for ``reviewer`` until the lease ends; their earlier claims end.
+          lease: timedelta = LEASE, keep: bool = False) -> None:
+    """Hold ``pair_ids`` for ``reviewer`` until the lease ends; their earlier claims end,
+    unless ``keep`` (a pair taken back by undo joins the one on screen).
 
     Call inside the write transaction that chose the pairs.
     """
     at = datetime.now(UTC)
-    conn.execute("DELETE FROM claims WHERE reviewer = ? OR expires_at <= ?", (reviewer, _iso(at)))
+    conn.execute("DELETE FROM claims WHERE (reviewer = ? AND NOT ?) OR expires_at <= ?",
+                 (reviewer, keep, _iso(at)))
     conn.executemany("INSERT OR REPLACE INTO claims VALUES (?, ?, ?)",
                      [(int(p), reviewer, _iso(at + lease)) for p in pair_ids])
 

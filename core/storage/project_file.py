@@ -146,4 +146,6 @@ class ProjectFile:
             if last is not None:
                 log.append(conn, last.pair_id, reviewer, None, "", 0.0, last.decision_id,
                            last.role)
+                if last.role == "reviewer":  # open again: no one else is given it meanwhile
+                    claims.claim(conn, reviewer, [last.pair_id], keep=True)
         return last
