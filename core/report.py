@@ -78,6 +78,7 @@ def status(project: ProjectFile) -> dict[str, Any]:
             "overlap": one("SELECT count(*) FROM pairs WHERE overlap = 1"),
         },
         "blocking": meta["blocking"],
+        "sampling": meta.get("sampling"),
         "decisions": {
             "log_entries": one("SELECT count(*) FROM decisions"),
             "retractions": one("SELECT count(*) FROM decisions WHERE label IS NULL"),

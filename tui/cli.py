@@ -13,7 +13,16 @@ import sqlite3
 import sys
 import warnings
 
-from . import cli_gold, cli_matchers, cli_missed, cli_policy, cli_project, cli_screens, cli_team
+from . import (
+    cli_gold,
+    cli_matchers,
+    cli_missed,
+    cli_policy,
+    cli_project,
+    cli_scale,
+    cli_screens,
+    cli_team,
+)
 from .cli_base import Formatter, version, warn_line
 from .cli_checks import Parser, parse
 from .terminal import safe_streams, shown
@@ -28,7 +37,7 @@ def build_parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
 
     for module in (cli_project, cli_screens, cli_team, cli_gold, cli_missed, cli_policy,
-                   cli_matchers):
+                   cli_matchers, cli_scale):
         module.register(sub)
     return parser
 

@@ -72,11 +72,12 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "model, JSON lines, from docket's template or yours (--lm-template).\n"
                  "clusters: record id -> cluster id from gold matches; "
                  "conflicts: clusters that hold a gold non-match; missed: true matches that "
-                 "are not candidates (docket missed).",
+                 "are not candidates (docket missed).\nmodel: the current model as a small JSON "
+                 "file that 'docket score --model' and a cluster's scoring function read.",
                  "docket export vets.docket --what training -o training.parquet", export)
     p.add_argument("project")
     p.add_argument("--what", choices=["scores", "gold", "training", "clusters", "conflicts",
-                                      "missed"], default="scores")
+                                      "missed", "model"], default="scores")
     p.add_argument("-o", "--output", required=True, metavar="FILE|-",
                    help="file (.csv, .parquet, .jsonl) or - for standard output")
     p.add_argument("--format", choices=["csv", "parquet", "jsonl"])
@@ -138,6 +139,11 @@ def evaluate(args: argparse.Namespace) -> int:
 
 def export(args: argparse.Namespace) -> int:
     from docket.core.exports.exporting import output_format, scores_frame, write_frame
+    if args.what == "model":
+        from .cli_scale import export_model
+        with open_project(args.project, readonly=True) as project:
+            export_model(project, args.output)
+        return 0
     if not (args.for_lm and args.output == "-"):
         output_format(args.output, args.format)  # a bad target fails before any work
     if args.what != "scores" or args.for_lm or args.lm_template:
@@ -204,6 +210,8 @@ def render(report: dict[str, Any], name: str) -> list[str]:
                f"unweighted) at {n['threshold']:g}: {_short(n)}")
     notes = [t for t in first["note"].split("; ") if t]
     out += [f"note at {first['threshold']:g}: {t}" for t in notes]
+    if report.get("sampling"):
+        out.append(report["sampling"]["note"] + ".")
     sc = report["scope"]
     b = sc["blocking"]
     out += ["", f"{sc['note']}."]

@@ -35,6 +35,11 @@ def print_built(built: Any) -> None:
     print(f"candidate pairs: {r.pairs:,} of {r.possible:,} possible "
           f"(reduction ratio {_ratio(r.reduction_ratio)}; "
           f"{100 * r.pairs / max(1, r.possible):.3g} % of all pairs)")
+    if built.sampling:
+        s = built.sampling
+        print(f"sampled: {s['kept_pairs']:,} of {s['population_pairs']:,} pairs kept "
+              f"(--sample-above {s['sample_above']:,}); every pair's pattern is counted "
+              "and estimates are weighted to all pairs")
     from docket.core.matching.explain import odds_text
     prior = min(max(built.model.prior, 1e-300), 1 - 1e-16)
     print(f"model: odds of a match before the fields "
@@ -75,7 +80,8 @@ def new(args: argparse.Namespace) -> int:
         rules=args.block or [], audit=args.audit, overlap=args.overlap,
         overlap_reviewers=args.overlap_reviewers,
         one_to_one=args.one_to_one, max_pairs=args.max_pairs, threshold=args.threshold,
-        seed=args.seed, force=args.force)
+        seed=args.seed, force=args.force, sample_above=args.sample_above, engine=args.engine,
+        workers=args.workers, scheduler=args.scheduler)
     with progress_bar() as update:
         built = Project.create(spec, progress=update)
     print_built(built)
@@ -98,6 +104,12 @@ def status(args: argparse.Namespace) -> int:
                                                   if info["mode"] == "link" else ""))
     print(f"pairs        {pairs['candidates']:,} candidates, {pairs['open']:,} still queued, "
           f"audit slice {pairs['audit']:,}, overlap {pairs['overlap']:,}")
+    if info["sampling"]:
+        s = info["sampling"]
+        strata = ", ".join(f"{h}: {v[1]:,}/{v[0]:,}" for h, v in s["strata"].items())
+        print(f"sampled      {s['kept_pairs']:,} of {s['population_pairs']:,} candidate pairs "
+              f"kept (--sample-above {s['sample_above']:,}); kept/all per stratum {strata}; "
+              "estimates weigh to all pairs")
     print(f"blocking     {'; '.join(info['blocking']['rules'])} "
           f"(reduction ratio {_ratio(info['blocking']['reduction_ratio'])})")
     print(f"decisions    {dec['current_labels']:,} standing labels on {dec['pairs_decided']:,} "
@@ -191,8 +203,9 @@ def register(sub: argparse._SubParsersAction) -> None:
                    help="compare left column L with right column R (repeatable)")
     p.add_argument("--field", action="append", metavar="COL:KIND",
                    help="set a field's kind instead of the detected one (repeatable)")
-    p.add_argument("--pairs", metavar="FILE",
-                   help="candidate pairs from elsewhere: left id, right id")
+    p.add_argument("--pairs", metavar="PATH",
+                   help="candidate pairs from elsewhere: left id, right id (CSV, Parquet, or "
+                        "a folder of Parquet parts of any size, read in batches)")
     p.add_argument("--block", action="append", metavar="RULE", help="a blocking rule (repeatable)")
     p.add_argument("--max-pairs", type=at_least(1), default=5_000_000, metavar="N",
                    help="stop if blocking would make more pairs than this (default 5,000,000)")
@@ -207,6 +220,18 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--threshold", type=share, default=0.5, metavar="P",
                    help="match probability at which a pair is predicted a match (default 0.5)")
     p.add_argument("--seed", type=int, default=0, help="seed for the audit slice (default 0)")
+    p.add_argument("--sample-above", type=at_least(100), default=1_000_000, metavar="N",
+                   help="with more candidate pairs than this, count every pair's comparison "
+                        "pattern but keep a stratified random sample of N pairs (default "
+                        "1,000,000)")
+    p.add_argument("--engine", choices=["in-process", "dask"], default="in-process",
+                   help="where blocking and scoring run (dask needs: pip install "
+                        "'docket[dask]')")
+    p.add_argument("--workers", type=at_least(1), default=2, metavar="N",
+                   help="dask: workers of the local cluster (default 2)")
+    p.add_argument("--scheduler", metavar="ADDRESS",
+                   help="dask: an existing scheduler (for example tcp://10.0.0.5:8786) "
+                        "instead of a local cluster")
     p.add_argument("--force", action="store_true", help="replace an existing project file")
 
     p = command(sub, "status", "Show a project's records, pairs, decisions and model.", "",

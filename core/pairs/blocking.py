@@ -167,10 +167,14 @@ def estimate_pairs(left: pd.DataFrame, right: pd.DataFrame | None) -> int:
     return int((both["l"] * both["r"]).sum())
 
 
-def rule_pairs(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
-               fields: list[FieldSpec], max_pairs: int, token_share: float = 0.01
-               ) -> tuple[np.ndarray, np.ndarray]:
-    """Record positions (left, right) of the pairs one rule finds; dedupe mode when no right."""
+def rule_keys(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
+              fields: list[FieldSpec], max_pairs: int, token_share: float = 0.01
+              ) -> tuple[pd.DataFrame, pd.DataFrame | None]:
+    """Each record's keys under one rule, (pos, key) per side, checked against the pair cap.
+
+    Joining the two on ``key`` gives the rule's pairs: in this process (``rule_pairs``) or
+    as a distributed join (``dask_engine``).
+    """
     kind_of = {f.name: f.kind for f in fields}
     lk = _exploded(rule, left, {f.name: f.left_column for f in fields}, kind_of)
     rk = None if right is None else _exploded(rule, right,
@@ -181,6 +185,14 @@ def rule_pairs(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
         raise DocketError(f"--block {str(rule)!r} would make about {expected:,} pairs, over the "
                           f"cap of {max_pairs:,}; add a key with & (for example "
                           f"'{rule} & {fields[0].name}[:2]') or raise --max-pairs")
+    return lk, rk
+
+
+def rule_pairs(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
+               fields: list[FieldSpec], max_pairs: int, token_share: float = 0.01
+               ) -> tuple[np.ndarray, np.ndarray]:
+    """Record positions (left, right) of the pairs one rule finds; dedupe mode when no right."""
+    lk, rk = rule_keys(rule, left, right, fields, max_pairs, token_share)
     joined = lk.merge(lk if rk is None else rk, on="key", suffixes=("_l", "_r"))
     li = joined["pos_l"].to_numpy(np.int64)
     ri = joined["pos_r"].to_numpy(np.int64)
@@ -196,6 +208,12 @@ def dedupe_pairs(li: np.ndarray, ri: np.ndarray) -> tuple[np.ndarray, np.ndarray
     code = np.unique(li.astype(np.int64) * (int(ri.max()) + 1) + ri)
     width = int(ri.max()) + 1
     return code // width, code % width
+
+
+def check_total(n: int, max_pairs: int) -> None:
+    if n > max_pairs:
+        raise DocketError(f"the rules together make {n:,} pairs, over the cap of "
+                          f"{max_pairs:,}; use tighter rules or raise --max-pairs")
 
 
 def block(rules: list[Rule], left: pd.DataFrame, right: pd.DataFrame | None,
@@ -221,9 +239,7 @@ def block(rules: list[Rule], left: pd.DataFrame, right: pd.DataFrame | None,
     _, first = np.unique(code, return_index=True)
     first.sort()
     li, ri, rule_ix = li[first], ri[first], rule_ix[first]
-    if len(li) > max_pairs:
-        raise DocketError(f"the rules together make {len(li):,} pairs, over the cap of "
-                          f"{max_pairs:,}; use tighter rules or raise --max-pairs")
+    check_total(len(li), max_pairs)
     n_l = len(left)
     possible = n_l * (n_l - 1) // 2 if right is None else n_l * len(right)
     report = BlockingReport([str(r) for r in rules], auto, len(li), int(possible), per_rule)

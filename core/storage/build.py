@@ -13,20 +13,22 @@ import warnings
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import Any
 
 import numpy as np
-import pandas as pd
 
 from ..errors import Cancelled, DocketError
 from ..matching import random_pairs, scoring
 from ..matching.explain import LogOddsTable
 from ..matching.model import FSModel, fit_em
-from ..ordering import queue
-from ..pairs import autoblock, blocking
+from ..ordering import queue, sampling
+from ..pairs import blocking, candidates
+from ..pairs.candidates import possible_pairs, width_of
 from ..records import fields as fieldmod
 from ..records.sources import Table, load_table, read_frame
 from ..types import FieldSpec
 from . import file_health, store
+from .pair_stream import ChunkScorer, InProcess, levels_of, similarities
 
 Progress = Callable[[str, int, int], None]
 
@@ -58,6 +60,10 @@ class NewProject:
     refit_every: int = 25
     force: bool = False
     name: str | None = None
+    sample_above: int = sampling.DEFAULT_SAMPLE_ABOVE  # more pairs than this: keep a sample
+    engine: str = "in-process"  # or "dask"
+    workers: int = 2  # local Dask cluster size
+    scheduler: str | None = None  # an existing Dask scheduler instead
 
 
 @dataclass
@@ -75,6 +81,7 @@ class Built:
     overlap_pairs: int
     id_columns: tuple[str, str | None] = ("", None)  # (left, right); right None in dedupe mode
     ids_guessed: tuple[bool, bool] = (False, False)  # chosen by docket, not given by the user
+    sampling: dict[str, Any] | None = None  # how a sampled project was drawn; None: all pairs
 
 
 def _check(spec: NewProject) -> None:
@@ -91,6 +98,10 @@ def _check(spec: NewProject) -> None:
         raise DocketError(f"--audit {spec.audit}: give a number of pairs, 0 or more")
     if spec.pairs_file and spec.rules:
         raise DocketError("give either --pairs or --block, not both")
+    if spec.sample_above < 100:
+        raise DocketError(f"--sample-above {spec.sample_above}: give 100 pairs or more")
+    if spec.engine not in ("in-process", "dask"):
+        raise DocketError(f"--engine {spec.engine}: use in-process or dask")
     if spec.one_to_one and spec.right is None:
         raise DocketError("--one-to-one needs two tables (--left and --right)")
 
@@ -103,49 +114,6 @@ def _tables(spec: NewProject) -> tuple[Table, Table | None]:
                        (left.id_column if left.id_column in read_frame(spec.right).columns
                         else None))
     return left, right
-
-
-def _given_pairs(path: Path, left: Table, right: Table | None
-                 ) -> tuple[np.ndarray, np.ndarray]:
-    frame = read_frame(path)
-    if frame.shape[1] < 2:
-        raise DocketError(f"{path}: needs two columns, left id and right id")
-    cols = ([c for c in ("left_id", "right_id") if c in frame.columns]
-            if {"left_id", "right_id"} <= set(frame.columns) else list(frame.columns[:2]))
-    a, b = frame[cols[0]], frame[cols[1]]
-    if a.isna().any() or b.isna().any():
-        row = int(np.flatnonzero((a.isna() | b.isna()).to_numpy())[0]) + 2
-        raise DocketError(f"{path}: row {row} has an empty id; every pair needs both ids")
-    other = left if right is None else right
-    lpos = pd.Index(left.frame.index).get_indexer(a)
-    rpos = pd.Index(other.frame.index).get_indexer(b)
-    for pos, ids, side, table in ((lpos, a, "left", left), (rpos, b, "right", other)):
-        if (pos < 0).any():
-            bad = list(dict.fromkeys(ids[pos < 0].tolist()))
-            raise DocketError(f"{path}: {len(bad)} {side} id(s) not in {table.path.name}: "
-                              f"{', '.join(map(str, bad[:5]))}{'…' if len(bad) > 5 else ''}")
-    li, ri = lpos.astype(np.int64), rpos.astype(np.int64)
-    selfs = np.zeros(len(li), dtype=bool)
-    if right is None:  # one table: (a, b) and (b, a) are the same pair; a record is not a pair
-        li, ri = np.minimum(li, ri), np.maximum(li, ri)
-        selfs = li == ri
-    repeats = pd.DataFrame({"l": li, "r": ri}).duplicated().to_numpy() & ~selfs
-    _say_left_out(path, selfs, repeats)
-    return blocking.dedupe_pairs(li[~selfs], ri[~selfs])
-
-
-def _say_left_out(path: Path, selfs: np.ndarray, repeats: np.ndarray) -> None:
-    """One warning counting the self-pairs and repeated pairs of a pairs file, with rows."""
-    parts = []
-    for flags, what in ((selfs, "pair(s) a record with itself"),
-                        (repeats, "pair(s) given before (the same two ids, in either order)")):
-        if flags.any():
-            rows = ", ".join(str(int(i) + 2) for i in np.flatnonzero(flags)[:5])
-            more = "…" if flags.sum() > 5 else ""
-            parts.append(f"{int(flags.sum()):,} {what}, row(s) {rows}{more}")
-    if parts:
-        warnings.warn(f"{path}: left out {'; and '.join(parts)}; each pair counts once",
-                      UserWarning, stacklevel=3)
 
 
 def fingerprint(left: Table, right: Table | None, li: np.ndarray, ri: np.ndarray) -> str:
@@ -179,52 +147,41 @@ def build(spec: NewProject, progress: Progress | None = None,
         raise DocketError(f"{left.path}: {len(fields):,} fields to compare, more than the "
                           f"{MAX_FIELDS:,} a project can hold; skip some with --field COL:skip "
                           "or keep only the columns worth comparing")
-    rframe = None if right is None else right.frame
-    auto = False
-    if spec.pairs_file is not None:
-        step("reading candidate pairs")
-        li, ri = _given_pairs(spec.pairs_file, left, right)
-        rule_ix = np.zeros(len(li), dtype=np.int16)
-        n_l, n_r = len(left), len(left) if right is None else len(right)
-        possible = n_l * (n_l - 1) // 2 if right is None else n_l * n_r
-        report = blocking.BlockingReport(["given"], False, len(li), int(possible),
-                                         {"given": len(li)})
-        rule_names = ["given"]
-    else:
-        if spec.rules:
-            rules = [blocking.parse_rule(r, fields) for r in spec.rules]
-        else:
-            step("choosing blocking rules")
-            rules = autoblock.choose_rules(left.frame, rframe, fields, spec.max_pairs)
-            auto = True
-            if not rules:
-                raise DocketError("no blocking rule could be chosen from the data; give one "
-                                  "with --block (for example --block 'tokens(name)')")
-        li, ri, rule_ix, report = blocking.block(
-            rules, left.frame, rframe, fields, spec.max_pairs, auto,
-            lambda d, t: step("blocking", d, t))
-        rule_names = [str(r) for r in rules]
-    if len(li) == 0:
-        raise DocketError("no candidate pairs: the blocking rules matched no records; "
-                          "try a looser rule with --block")
-    step("comparing", 0, 1)
-    lnorm = scoring.normalised(fields, left.frame, "left")
-    rnorm = lnorm if right is None else scoring.normalised(fields, right.frame, "right")
-    step("measuring chance agreement")
-    n_l, n_r = len(left), len(left) if right is None else len(right)
-    base = random_pairs.baseline(fields, lnorm, rnorm, n_l, n_r, right is None, spec.seed + 7)
-    sims, levels = scoring.compare_pairs(fields, lnorm, rnorm, li, ri,
-                                         lambda d, t: step("comparing", d, t), base.frequent)
-    step("fitting the model")
-    patterns, pattern_ix, counts = scoring.group_patterns(levels)
-    possible = n_l * (n_l - 1) // 2 if right is None else n_l * n_r
-    model = fit_em(patterns, counts, base.level_names, [f.name for f in fields],
-                   u_random=base.u, population=possible)
-    model.population = possible
-    model.sampled_pairs = base.sampled
-    model.frequent = base.frequent
-    table = LogOddsTable.from_fs(model)
-    weight, prob = table.log_odds(patterns), table.probability(patterns)
+    engine = open_engine(spec, left, right, fields, step)
+    try:
+        if len(engine) == 0:
+            raise DocketError("no candidate pairs: the blocking rules matched no records; "
+                              "try a looser rule with --block")
+        step("comparing", 0, 1)
+        lnorm = scoring.normalised(fields, left.frame, "left")
+        rnorm = lnorm if right is None else scoring.normalised(fields, right.frame, "right")
+        step("measuring chance agreement")
+        n_l, width = len(left), width_of(left, right)
+        base = random_pairs.baseline(fields, lnorm, rnorm, n_l, width, right is None,
+                                     spec.seed + 7)
+        scorer = ChunkScorer(fields, lnorm, rnorm, width, base.frequent)
+        codes, counts = engine.score(scorer, lambda d, t: step("comparing", d, t))
+        step("fitting the model")
+        patterns = levels_of(codes, len(fields))
+        possible = possible_pairs(left, right)
+        model = fit_em(patterns, counts, base.level_names, [f.name for f in fields],
+                       u_random=base.u, population=possible)
+        model.population = possible
+        model.sampled_pairs = base.sampled
+        model.frequent = base.frequent
+        table = LogOddsTable.from_fs(model)
+        weight, prob = table.log_odds(patterns), table.probability(patterns)
+        plan = sampling.make_plan(codes, counts, prob, spec.sample_above, spec.seed)
+        step("drawing the sample" if not plan.keeps_all else "drawing the audit slice")
+        kept = engine.keep(plan)
+    finally:
+        engine.close()
+    sims = kept.sims if kept.sims is not None else similarities(
+        scorer, kept.keys, lambda d, t: step("comparing the kept pairs", d, t))
+    li, ri = scorer.positions(kept.keys)
+    pattern_ix = np.searchsorted(codes, kept.codes)
+    if not plan.keeps_all:
+        left, right, li, ri = _named_records(left, right, li, ri)
 
     step("drawing the audit slice")
     seed = spec.seed
@@ -233,7 +190,8 @@ def build(spec: NewProject, progress: Progress | None = None,
     rng = np.random.default_rng(seed)
     pair_ids = rng.permutation(n) + 1  # random ids: pairs of equal priority come in random order
     audit_n = queue.default_audit_size(n) if spec.audit is None else min(spec.audit, n)
-    audit = queue.draw_audit(prob[pattern_ix], audit_n, seed + 1)
+    audit = sampling.weighted_to_population(
+        queue.draw_audit(prob[pattern_ix], audit_n, seed + 1), plan)
     drawn = int(audit.selected.sum())
     if spec.audit is not None and drawn < spec.audit:
         unit = "pair" if drawn == 1 else "pairs"
@@ -250,10 +208,12 @@ def build(spec: NewProject, progress: Progress | None = None,
         conn = store.create_file(tmp, [f.name for f in fields])
         from .writer import write_project
         write_project(conn, spec=spec, left=left, right=right, fields=fields, li=li, ri=ri,
-                      rule_ix=rule_ix, rule_names=rule_names, sims=sims, patterns=patterns,
-                      pattern_ix=pattern_ix, counts=counts, weight=weight, prob=prob,
-                      model=model, pair_ids=pair_ids, audit=audit, overlap=overlap,
-                      fingerprint=fp, report=report, step=step)
+                      rule_ix=kept.rule_ix, rule_names=engine.rule_names, sims=sims,
+                      patterns=patterns, pattern_ix=pattern_ix, counts=counts, weight=weight,
+                      prob=prob, model=model, pair_ids=pair_ids, audit=audit, overlap=overlap,
+                      fingerprint=fp, report=engine.report, step=step)
+        sampled = plan.describe(spec.sample_above) if not plan.keeps_all else None
+        store.set_meta(conn, sampling=sampled, engine=engine.name)
         step("building indexes")
         store.finish_file(conn)
         step("building indexes", 1, 1)
@@ -261,12 +221,49 @@ def build(spec: NewProject, progress: Progress | None = None,
     finally:
         for extra in ("", "-wal", "-shm", "-journal"):
             Path(f"{tmp}{extra}").unlink(missing_ok=True)
-    return Built(spec.path, "dedupe" if right is None else "link", len(left),
-                 len(left) if right is None else len(right), fields, report, model,
+    n_left = engine.n_left
+    return Built(spec.path, "dedupe" if right is None else "link", n_left,
+                 n_left if right is None else engine.n_right, fields, engine.report, model,
                  int(audit.selected.sum()), int(overlap.sum()),
                  (left.id_column, None if right is None else right.id_column),
                  (not (spec.left_id or spec.id_column),
-                  right is not None and not (spec.right_id or spec.id_column)))
+                  right is not None and not (spec.right_id or spec.id_column)), sampled)
+
+
+def open_engine(spec: NewProject, left: Table, right: Table | None, fields: list[FieldSpec],
+                step: Progress) -> Any:
+    """The pairs, counted and ready to score: in this process or on Dask."""
+    if spec.engine == "dask":
+        from .dask_engine import open_dask
+        engine = open_dask(spec, left, right, fields, step)
+    else:
+        if spec.pairs_file is not None:
+            keys, report = candidates.given_keys(spec.pairs_file, left, right, step)
+            rule_ix = np.zeros(len(keys), dtype=np.int16)
+            rule_names = ["given"]
+        else:
+            rules, auto = candidates.rules_for(spec.rules, left, right, fields, spec.max_pairs,
+                                               step)
+            keys, rule_ix, report = candidates.blocked_keys(rules, auto, left, right, fields,
+                                                            spec.max_pairs, step)
+            rule_names = [str(r) for r in rules]
+        engine = InProcess(keys, rule_ix, keep_sims=len(keys) <= spec.sample_above)
+        engine.report, engine.rule_names = report, rule_names
+    engine.n_left, engine.n_right = len(left), width_of(left, right)
+    return engine
+
+
+def _named_records(left: Table, right: Table | None, li: np.ndarray, ri: np.ndarray
+                   ) -> tuple[Table, Table | None, np.ndarray, np.ndarray]:
+    """Only the records that kept pairs name go into a sampled project's file."""
+    def subset(table: Table, used: np.ndarray) -> Table:
+        return Table(table.path, table.id_column, table.frame.iloc[used])
+    if right is None:
+        used = np.unique(np.concatenate([li, ri]))
+        return (subset(left, used), None, np.searchsorted(used, li), np.searchsorted(used, ri))
+    lu, ru = np.unique(li), np.unique(ri)
+    return (subset(left, lu), subset(right, ru), np.searchsorted(lu, li),
+            np.searchsorted(ru, ri))
 
 
 def replace_project_file(new: Path, target: Path) -> None:

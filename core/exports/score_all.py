@@ -1,0 +1,117 @@
+"""``docket score``: the project's current model applied to every pair, written as Parquet parts.
+
+Labels made on a sample serve the whole data set: the pairs (a file, or a folder of parts of any
+size) are read in batches, scored by the pure scorer with the model file's contents, and each
+batch becomes one part of the output folder. The folder is written under a hidden name and
+renamed when complete, so a failed run leaves nothing behind.
+"""
+
+from __future__ import annotations
+
+import os
+import shutil
+from collections.abc import Callable
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+from ..errors import DocketError
+from ..matching import scoring
+from ..matching.model_file import ScoringModel, score_pairs
+from ..pairs.pair_files import _text, id_batches, open_pairs, positions
+from ..records.sources import Table
+
+
+@dataclass
+class ScoreJob:
+    """What a worker needs to score a batch of pairs given by their ids."""
+
+    model: ScoringModel
+    left_norm: dict[str, np.ndarray]
+    right_norm: dict[str, np.ndarray]
+    left_index: pd.Index
+    right_index: pd.Index
+    names: tuple[str, str]
+    where: str
+
+    def __call__(self, frame: pd.DataFrame) -> pd.DataFrame:
+        a = _text(frame.iloc[:, 0]).reset_index(drop=True)
+        b = _text(frame.iloc[:, 1]).reset_index(drop=True)
+        li, ri = positions(self.where, a, b, self.left_index, self.right_index, *self.names)
+        out = score_pairs(self.model, self.left_norm, self.right_norm, li, ri)
+        out.insert(0, "right_id", b.to_numpy())
+        out.insert(0, "left_id", a.to_numpy())
+        return out
+
+
+def make_job(model: ScoringModel, left: Table, right: Table | None, where: str) -> ScoreJob:
+    other = left if right is None else right
+    lnorm = scoring.normalised(model.fields, left.frame, "left")
+    rnorm = lnorm if right is None else scoring.normalised(model.fields, right.frame, "right")
+    return ScoreJob(model, lnorm, rnorm, pd.Index(left.frame.index),
+                    pd.Index(other.frame.index), (left.path.name, other.path.name), where)
+
+
+def _target(out: Path) -> Path:
+    if out.exists():
+        raise DocketError(f"{out}: already exists; give a new folder for the scored parts")
+    if not out.parent.exists():
+        raise DocketError(f"{out.parent}: no such folder; create it first")
+    tmp = out.with_name(f".{out.name}.{os.getpid()}.scoring")
+    shutil.rmtree(tmp, ignore_errors=True)
+    tmp.mkdir(mode=0o700)
+    return tmp
+
+
+def score_to_parts(job: ScoreJob, pairs: Path, out: Path, engine: str = "in-process",
+                   workers: int = 2, scheduler: str | None = None,
+                   progress: Callable[[int, int], None] | None = None) -> int:
+    """Score every pair in ``pairs`` into Parquet parts in the new folder ``out``; rows written."""
+    source = open_pairs(pairs)
+    tmp = _target(out)
+    try:
+        if engine == "dask":
+            rows = _on_dask(job, source, tmp, workers, scheduler)
+        else:
+            rows = 0
+            for i, (_, a, b) in enumerate(id_batches(source)):
+                part = job(pd.DataFrame({"a": a, "b": b}))
+                part.to_parquet(tmp / f"part-{i:05d}.parquet", index=False)
+                rows += len(part)
+                if progress:
+                    progress(rows, max(rows, source.rows))
+        os.replace(tmp, out)
+    finally:
+        shutil.rmtree(tmp, ignore_errors=True)
+    return rows
+
+
+def _on_dask(job: ScoreJob, source: Any, tmp: Path, workers: int,
+             scheduler: str | None) -> int:
+    from ..storage.dask_engine import _modules, connect
+    _, dd = _modules()
+    client, cluster = connect(workers, scheduler)
+    try:
+        if source.is_parquet:
+            raw = dd.read_parquet([str(p) for p in source.parts], columns=list(source.columns))
+        else:
+            _, a, b = next(id_batches(source))
+            raw = dd.from_pandas(pd.DataFrame({"a": a, "b": b}), npartitions=2 * workers)
+        meta = pd.DataFrame({"left_id": pd.Series(dtype=object),
+                             "right_id": pd.Series(dtype=object),
+                             "match_weight": pd.Series(dtype=float),
+                             "probability": pd.Series(dtype=float),
+                             "predicted": pd.Series(dtype=bool)})
+        shared = client.scatter(job, broadcast=True)
+        scored = raw.map_partitions(lambda f, j: j(f), shared, meta=meta)
+        scored.to_parquet(str(tmp), write_index=False, name_function=lambda i: f"part-{i:05d}"
+                          ".parquet")
+        import pyarrow.parquet as pq
+        return int(sum(pq.ParquetFile(p).metadata.num_rows for p in tmp.glob("*.parquet")))
+    finally:
+        client.close()
+        if cluster is not None:
+            cluster.close()

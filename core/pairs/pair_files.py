@@ -1,0 +1,163 @@
+"""Candidate pairs from a file: CSV/TSV/JSONL, one Parquet file or a folder of Parquet parts.
+
+A folder is what Spark, Dask or DuckDB write: ``part-*.parquet`` files, perhaps in partition
+subfolders, beside ``_SUCCESS`` or ``.crc`` files (names starting with ``_`` or ``.`` are
+skipped). Parquet is read in bounded batches; each batch becomes *pair keys* at once
+(``left position * width + right position``, one int64 per pair), so memory grows by eight
+bytes per pair, never by a frame of id strings.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from ..errors import DocketError
+
+BATCH = 500_000
+ID_COLUMNS = ("left_id", "right_id")
+PARQUET = (".parquet", ".pq")
+
+
+@dataclass
+class PairSource:
+    """Where the pairs are and which two columns hold the ids."""
+
+    path: Path
+    parts: list[Path]  # empty for a text file
+    columns: tuple[str, str]
+    rows: int  # rows in the file(s), before duplicates and self pairs are dropped
+
+    @property
+    def is_parquet(self) -> bool:
+        return bool(self.parts)
+
+
+def _parts(path: Path) -> list[Path]:
+    if path.is_file():
+        return [path] if path.suffix.lower() in PARQUET else []
+    found = sorted(p for p in path.rglob("*") if p.is_file()
+                   and not any(part.startswith(("_", ".")) for part in
+                               p.relative_to(path).parts))
+    parts = [p for p in found if p.suffix.lower() in PARQUET]
+    if not parts:
+        raise DocketError(f"{path}: a folder with no Parquet parts; give a file of pairs or a "
+                          "folder of .parquet files")
+    return parts
+
+
+def _choose(columns: list[str], where: Path) -> tuple[str, str]:
+    if set(ID_COLUMNS) <= set(columns):
+        return ID_COLUMNS
+    if len(columns) < 2:
+        raise DocketError(f"{where}: needs two columns, left id and right id")
+    return columns[0], columns[1]
+
+
+def open_pairs(path: Path) -> PairSource:
+    """Check every part's footer and columns before any work: a bad part fails at once."""
+    import pyarrow.parquet as pq
+
+    if not path.exists():
+        raise DocketError(f"{path}: no such file or folder of pairs; check the path")
+    parts = _parts(path)
+    if not parts:
+        return PairSource(path, [], ID_COLUMNS, -1)
+    columns: tuple[str, str] | None = None
+    rows = 0
+    for part in parts:
+        try:
+            meta = pq.ParquetFile(part)
+        except Exception as exc:  # pyarrow raises several types for a damaged footer
+            first = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
+            raise DocketError(f"{part}: not a readable Parquet part ({first}); rewrite or "
+                              "remove it") from None
+        names = meta.schema_arrow.names
+        if columns is None:
+            columns = _choose(names, part)
+        missing = [c for c in columns if c not in names]
+        if missing:
+            raise DocketError(f"{part}: no column {missing[0]!r} (other parts have "
+                              f"{columns[0]!r} and {columns[1]!r}); every part needs both")
+        rows += meta.metadata.num_rows
+    assert columns is not None
+    return PairSource(path, parts, columns, rows)
+
+
+def id_batches(source: PairSource, batch: int = BATCH
+               ) -> Iterator[tuple[Path, pd.Series, pd.Series]]:
+    """(part, left ids, right ids) in batches of at most ``batch`` rows, ids as text."""
+    import pyarrow.parquet as pq
+
+    if not source.is_parquet:
+        from ..records.sources import read_frame
+        frame = read_frame(source.path)
+        cols = _choose(list(frame.columns), source.path)
+        source.columns = cols
+        source.rows = len(frame)
+        yield source.path, frame[cols[0]], frame[cols[1]]
+        return
+    for part in source.parts:
+        try:
+            reader = pq.ParquetFile(part)
+            for rb in reader.iter_batches(batch_size=batch, columns=list(source.columns)):
+                yield (part, _text(rb.column(0).to_pandas()), _text(rb.column(1).to_pandas()))
+        except DocketError:
+            raise
+        except Exception as exc:
+            first = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
+            raise DocketError(f"{part}: cannot read this Parquet part ({first}); rewrite or "
+                              "remove it") from None
+
+
+def _text(values: pd.Series) -> pd.Series:
+    """Ids as text the way record ids are read (1.0 -> '1'), missing as None."""
+    if values.dtype.kind in "iu":
+        return values.astype(str).astype(object)
+    if values.dtype.kind == "f":
+        out = values.map(lambda v: None if pd.isna(v) else
+                         (str(int(v)) if float(v).is_integer() else str(v)))
+        return out.astype(object)
+    return values.astype(object).where(values.notna(), None).map(
+        lambda v: None if v is None or str(v).strip() == "" else str(v))
+
+
+def positions(where: Path | str, a: pd.Series, b: pd.Series, left_index: pd.Index,
+              right_index: pd.Index, left_name: str, right_name: str, row0: int = 1
+              ) -> tuple[np.ndarray, np.ndarray]:
+    """Record positions of each pair's two ids; an unknown or empty id is a user error.
+
+    ``row0`` is the row number of the batch's first pair, for the message.
+    """
+    na = a.isna().to_numpy() | b.isna().to_numpy()
+    if na.any():
+        row = row0 + int(np.flatnonzero(na)[0])
+        raise DocketError(f"{where}: row {row} has an empty id; every pair needs both ids")
+    lpos = left_index.get_indexer(a.to_numpy())
+    rpos = right_index.get_indexer(b.to_numpy())
+    for pos, ids, side, name in ((lpos, a, "left", left_name), (rpos, b, "right", right_name)):
+        if (pos < 0).any():
+            bad = list(dict.fromkeys(ids[pos < 0].tolist()))
+            raise DocketError(f"{where}: {len(bad)} {side} id(s) not in {name}: "
+                              f"{', '.join(map(str, bad[:5]))}{'…' if len(bad) > 5 else ''}")
+    return lpos.astype(np.int64), rpos.astype(np.int64)
+
+
+def keys_of(where: Path | str, a: pd.Series, b: pd.Series, left_index: pd.Index,
+            right_index: pd.Index, dedupe: bool, left_name: str, right_name: str,
+            row0: int = 1) -> np.ndarray:
+    """Pair keys (int64) for one batch of ids; an unknown or empty id is a user error.
+
+    One table (``dedupe``): (a, b) and (b, a) are the same pair and a record is not a pair
+    with itself, so the key always puts the smaller position first and self pairs are dropped.
+    """
+    li, ri = positions(where, a, b, left_index, right_index, left_name, right_name, row0)
+    if dedupe:
+        li, ri = np.minimum(li, ri), np.maximum(li, ri)
+        keep = li != ri
+        li, ri = li[keep], ri[keep]
+    return li * np.int64(len(right_index)) + ri

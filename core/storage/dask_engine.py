@@ -1,0 +1,205 @@
+"""``--engine dask``: blocking joins and scoring as Dask DataFrame partitions.
+
+Every partition runs the same pure functions as the in-process path (``pair_files.keys_of``,
+``blocking.rule_keys`` for each record's keys, ``ChunkScorer.codes``, ``sampling.pick``), so
+both engines give the same pairs, levels and probabilities. Only pattern counts and the
+kept sample come back to this process; the pairs stay on the workers.
+
+Dask and distributed are an optional extra: ``pip install 'docket[dask]'``.
+"""
+
+from __future__ import annotations
+
+import logging
+from collections.abc import Callable
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+from ..errors import DocketError
+from ..ordering.sampling import SamplePlan, pick
+from ..pairs import blocking
+from ..pairs.candidates import possible_pairs, rules_for, width_of
+from ..pairs.pair_files import _text, id_batches, keys_of, open_pairs
+from ..records.sources import Table
+from ..types import FieldSpec
+from .pair_stream import CHUNK, ChunkScorer, Kept, order_kept
+
+INSTALL = ("--engine dask needs Dask, an optional extra: pip install 'docket[dask]' "
+           "(or pip install 'dask[dataframe]' distributed)")
+
+
+def _modules() -> tuple[Any, Any]:
+    try:
+        import dask
+        import dask.dataframe as dd
+        import distributed  # noqa: F401 - the scheduler the engine runs on
+    except ImportError:
+        raise DocketError(INSTALL) from None
+    return dask, dd
+
+
+def connect(workers: int, scheduler: str | None) -> tuple[Any, Any]:
+    """A client on ``scheduler``, or on a new local cluster of ``workers`` processes."""
+    _modules()
+    from distributed import Client, LocalCluster
+    if scheduler:
+        try:
+            return Client(scheduler, timeout="10s"), None
+        except (OSError, TimeoutError) as exc:
+            raise DocketError(f"--scheduler {scheduler}: cannot reach it ({exc}); check the "
+                              "address and that the scheduler is running") from None
+    if workers < 1:
+        raise DocketError(f"--workers {workers}: give 1 or more")
+    cluster = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
+                           dashboard_address=":0", silence_logs=logging.ERROR)
+    return Client(cluster), cluster
+
+
+# -- per-partition functions (module level: the workers import them) -------------------------
+def _keys_part(frame: pd.DataFrame, lindex: pd.Index, rindex: pd.Index, dedupe: bool,
+               where: str, names: tuple[str, str]) -> pd.DataFrame:
+    a, b = _text(frame.iloc[:, 0]).reset_index(drop=True), _text(frame.iloc[:, 1])
+    keys = keys_of(where, a, b.reset_index(drop=True), lindex, rindex, dedupe, *names)  # type: ignore[arg-type]
+    return pd.DataFrame({"key": keys, "rule": np.zeros(len(keys), dtype=np.int16)})
+
+
+def _joined_part(frame: pd.DataFrame, dedupe: bool, width: int, rule: int) -> pd.DataFrame:
+    li = frame["pos_l"].to_numpy(np.int64)
+    ri = frame["pos_r"].to_numpy(np.int64)
+    if dedupe:
+        keep = li < ri
+        li, ri = li[keep], ri[keep]
+    return pd.DataFrame({"key": li * np.int64(width) + ri,
+                         "rule": np.full(len(li), rule, dtype=np.int16)})
+
+
+def _codes_part(frame: pd.DataFrame, scorer: ChunkScorer) -> pd.DataFrame:
+    return frame.assign(code=scorer.codes(frame["key"].to_numpy()))
+
+
+def _pick_part(frame: pd.DataFrame, plan: SamplePlan) -> pd.DataFrame:
+    return frame.iloc[pick(frame["key"].to_numpy(), frame["code"].to_numpy(), plan)]
+
+
+SHUFFLE = "tasks"  # the task-based shuffle: no extra services needed on the workers
+KEY_META = pd.DataFrame({"key": pd.Series(dtype="int64"), "rule": pd.Series(dtype="int16")})
+
+
+class DaskEngine:
+    """The candidate pairs as a persisted Dask DataFrame of (key, rule[, code])."""
+
+    name = "dask"
+
+    def __init__(self, client: Any, cluster: Any, frame: Any, report: blocking.BlockingReport,
+                 rule_names: list[str]) -> None:
+        self.client, self.cluster = client, cluster
+        self.frame = frame.persist()
+        self.n = int(self.frame.shape[0].compute())
+        self.report, self.rule_names = report, rule_names
+        self.report.pairs = self.n
+        if report.per_rule.keys() == {"given"}:
+            self.report.per_rule = {"given": self.n}
+
+    def __len__(self) -> int:
+        return self.n
+
+    def score(self, scorer: ChunkScorer, progress: Callable[[int, int], None] | None = None
+              ) -> tuple[np.ndarray, np.ndarray]:
+        meta = KEY_META.assign(code=pd.Series(dtype="int64"))
+        shared = self.client.scatter(scorer, broadcast=True)  # once per worker, not per task
+        self.frame = self.frame.map_partitions(_codes_part, shared, meta=meta).persist()
+        counts = self.frame["code"].value_counts().compute().sort_index()
+        if progress:
+            progress(1, 1)
+        return counts.index.to_numpy(np.int64), counts.to_numpy(np.int64)
+
+    def keep(self, plan: SamplePlan) -> Kept:
+        part = self.frame.map_partitions(_pick_part, self.client.scatter(plan, broadcast=True),
+                                         meta=self.frame._meta)
+        got = part.compute()
+        got = got.iloc[pick(got["key"].to_numpy(), got["code"].to_numpy(), plan)]
+        return order_kept(got["key"].to_numpy(np.int64), got["rule"].to_numpy(np.int16),
+                          got["code"].to_numpy(np.int64))
+
+    def close(self) -> None:
+        self.client.close()
+        if self.cluster is not None:
+            self.cluster.close()
+
+
+def _partitions(rows: int, workers: int) -> int:
+    return max(2 * max(1, workers), -(-rows // CHUNK))
+
+
+def _given(spec: Any, left: Table, right: Table | None, dd: Any, client: Any,
+           workers: int) -> Any:
+    source = open_pairs(spec.pairs_file)
+    other = left if right is None else right
+    lindex, rindex = pd.Index(left.frame.index), pd.Index(other.frame.index)
+    names = (left.path.name, other.path.name)
+    if not source.is_parquet:  # a text file is read here; its keys are spread to the workers
+        _, a, b = next(id_batches(source))
+        keys = _keys_part(pd.DataFrame({"a": a, "b": b}), lindex, rindex, right is None,
+                          str(spec.pairs_file), names)
+        frame = dd.from_pandas(keys, npartitions=_partitions(len(keys), workers))
+    else:
+        raw = dd.read_parquet([str(p) for p in source.parts], columns=list(source.columns))
+        frame = raw.map_partitions(_keys_part, client.scatter(lindex, broadcast=True),
+                                   client.scatter(rindex, broadcast=True), right is None,
+                                   str(spec.pairs_file), names, meta=KEY_META)
+    n = max(1, frame.npartitions)
+    frame = frame.drop_duplicates(subset=["key"], split_out=n, shuffle_method=SHUFFLE)
+    report = blocking.BlockingReport(["given"], False, 0, possible_pairs(left, right),
+                                     {"given": 0})
+    return frame, report, ["given"]
+
+
+def _blocked(spec: Any, left: Table, right: Table | None, fields: list[FieldSpec], dd: Any,
+             dask: Any, workers: int, step: Callable[..., None]) -> Any:
+    rules, auto = rules_for(spec.rules, left, right, fields, spec.max_pairs, step)
+    width = width_of(left, right)
+    parts = []
+    for i, rule in enumerate(rules):
+        lk, rk = blocking.rule_keys(rule, left.frame, None if right is None else right.frame,
+                                    fields, spec.max_pairs)
+        lhs = dd.from_pandas(lk, npartitions=_partitions(len(lk), workers))
+        joined = lhs.merge(lk if rk is None else rk, on="key", suffixes=("_l", "_r"))
+        parts.append(joined.map_partitions(_joined_part, right is None, width, i,
+                                           meta=KEY_META).drop_duplicates(subset=["key"],
+                                                                          shuffle_method=SHUFFLE))
+        step("blocking", i + 1, len(rules))
+    parts = list(dask.persist(*parts))  # joined once; counted and unioned from memory
+    per_rule = dask.compute(*[p.shape[0] for p in parts])
+    whole = dd.concat(parts)
+    frame = whole.groupby("key", sort=False)["rule"].min(
+        split_out=_partitions(int(sum(per_rule)), workers), shuffle_method=SHUFFLE)
+    frame = frame.reset_index().astype({"key": "int64", "rule": "int16"})
+    report = blocking.BlockingReport([str(r) for r in rules], auto, 0,
+                                     possible_pairs(left, right),
+                                     {str(r): int(n) for r, n in zip(rules, per_rule,
+                                                                     strict=True)})
+    return frame, report, [str(r) for r in rules]
+
+
+def open_dask(spec: Any, left: Table, right: Table | None, fields: list[FieldSpec],
+              step: Callable[..., None]) -> DaskEngine:
+    dask, dd = _modules()
+    client, cluster = connect(spec.workers, spec.scheduler)
+    try:
+        workers = max(1, len(client.scheduler_info().get("workers", {})))
+        if spec.pairs_file is not None:
+            step("reading candidate pairs")
+            frame, report, names = _given(spec, left, right, dd, client, workers)
+        else:
+            frame, report, names = _blocked(spec, left, right, fields, dd, dask, workers, step)
+        engine = DaskEngine(client, cluster, frame, report, names)
+        if spec.pairs_file is None:
+            blocking.check_total(engine.n, spec.max_pairs)
+        return engine
+    except BaseException:
+        client.close()
+        if cluster is not None:
+            cluster.close()
+        raise

@@ -1,0 +1,79 @@
+"""``--engine dask`` gives the same pairs, levels and probabilities as the in-process path."""
+
+from __future__ import annotations
+
+import sqlite3
+from collections.abc import Iterator
+from pathlib import Path
+
+import pytest
+
+from docket.core import NewProject, Project
+from tests.conftest import sample_spec
+from tests.test_bad_input import assert_one_line_error, run
+from tests.test_stream_pairs import _pairs, _parts, _spec
+
+distributed = pytest.importorskip("distributed", reason="the optional extra docket[dask] is "
+                                  "not installed: pip install 'docket[dask]'")
+
+
+@pytest.fixture(scope="module")
+def scheduler() -> Iterator[str]:
+    """One 2-worker local cluster for the module, reached as an existing scheduler."""
+    import logging
+    cluster = distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
+                                       dashboard_address=":0", silence_logs=logging.ERROR)
+    yield cluster.scheduler_address
+    cluster.close()
+
+
+def rows(path: Path) -> list[tuple]:
+    with sqlite3.connect(path) as conn:
+        return sorted(conn.execute(
+            "SELECT p.pair_id, p.left_id, p.right_id, p.rule, p.audit, t.levels, t.probability "
+            "FROM pairs p JOIN patterns t USING (pattern_id)"))
+
+
+def test_sample_on_dask_matches_in_process(sample_project_file: Path, tmp_path: Path,
+                                           scheduler: str) -> None:
+    path = tmp_path / "dask.docket"
+    built = Project.create(sample_spec(path, engine="dask", scheduler=scheduler))
+    assert rows(path) == rows(sample_project_file)
+    with Project.open(sample_project_file) as p:
+        assert built.blocking.per_rule == p.meta["blocking"]["per_rule"]
+
+
+@pytest.mark.outside
+def test_dblp_acm_on_a_local_cluster_matches_in_process(dblp_acm: Path,
+                                                        tmp_path: Path) -> None:
+    # Outside data: DBLP-ACM benchmark, Köpcke, Thor & Rahm PVLDB 2010 (../shared/data).
+    def spec(name: str, **kw) -> NewProject:
+        return NewProject(path=tmp_path / name, left=dblp_acm / "dblp.csv",
+                          right=dblp_acm / "acm.csv", id_column="id", **kw)
+    Project.create(spec("a.docket"))
+    Project.create(spec("b.docket", engine="dask", workers=2))  # a 2-worker local cluster
+    a, b = rows(tmp_path / "a.docket"), rows(tmp_path / "b.docket")
+    assert len(a) > 10_000 and a == b
+
+
+def test_sampled_parquet_parts_keep_the_same_sample(tmp_path: Path, scheduler: str) -> None:
+    folder = _parts(_pairs(60), tmp_path / "pairs", 5)
+    Project.create(_spec(tmp_path / "a.docket", folder, sample_above=400))
+    Project.create(_spec(tmp_path / "b.docket", folder, sample_above=400, engine="dask",
+                         scheduler=scheduler))
+    a, b = rows(tmp_path / "a.docket"), rows(tmp_path / "b.docket")
+    assert len(a) == 400 and a == b
+
+
+def test_unknown_id_in_a_part_on_dask(tmp_path: Path, scheduler: str, capsys) -> None:
+    frame = _pairs(10)
+    frame.loc[3, "left_id"] = "N-nope"
+    folder = _parts(frame, tmp_path / "pairs", 2)
+    sample = Path(__file__).resolve().parent.parent / "sample"
+    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left",
+                    str(sample / "practice_north.csv"), "--right",
+                    str(sample / "practice_south.csv"), "--left-id", "client_id",
+                    "--right-id", "ref", "--pairs", str(folder), "--engine", "dask",
+                    "--scheduler", scheduler)
+    assert_one_line_error(code, err, "N-nope")
+    assert [p.name for p in tmp_path.iterdir() if "docket" in p.name] == []

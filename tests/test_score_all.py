@@ -1,0 +1,104 @@
+"""``docket score`` and the model file: every pair scored back with the project's model."""
+
+from __future__ import annotations
+
+import importlib.util
+import json
+from pathlib import Path
+
+import pandas as pd
+import pytest
+
+from docket.core import Project
+from docket.tui.cli import main
+from tests.conftest import SAMPLE, sample_spec
+from tests.quality import answer_in_queue_order, load_truth
+from tests.test_bad_input import assert_one_line_error, run
+
+
+def _project_scores(path: Path) -> pd.DataFrame:
+    with Project.open(path) as p:
+        return pd.read_sql_query(
+            "SELECT p.left_id, p.right_id, t.probability FROM pairs p JOIN patterns t "
+            "USING (pattern_id)", p.connection)
+
+
+def _scored(folder: Path) -> pd.DataFrame:
+    parts = sorted(folder.glob("*.parquet"))
+    assert parts
+    return pd.concat([pd.read_parquet(p) for p in parts], ignore_index=True)
+
+
+def _same(scored: pd.DataFrame, expected: pd.DataFrame) -> None:
+    both = expected.merge(scored, on=["left_id", "right_id"], suffixes=("", "_scored"))
+    assert len(both) == len(expected)
+    assert (both["probability"] - both["probability_scored"]).abs().max() < 1e-12
+    assert set(scored.columns) >= {"match_weight", "predicted"}
+
+
+@pytest.fixture
+def refitted(sample_project: Path) -> Path:
+    truth = load_truth(SAMPLE / "truth.csv", "left_id", "right_id")
+    with Project.open(sample_project) as p:
+        answer_in_queue_order(p, truth, 60)  # so the model is the refitted one, not EM's
+    return sample_project
+
+
+def test_score_reproduces_the_projects_probabilities(refitted: Path, tmp_path: Path,
+                                                     capsys) -> None:
+    expected = _project_scores(refitted)
+    pairs = tmp_path / "pairs.parquet"
+    expected[["left_id", "right_id"]].to_parquet(pairs, index=False)
+    assert main(["score", str(refitted), "--pairs", str(pairs), "-o",
+                 str(tmp_path / "out")]) == 0
+    _same(_scored(tmp_path / "out"), expected)
+
+    model = tmp_path / "model.json"
+    assert main(["export", str(refitted), "--what", "model", "-o", str(model)]) == 0
+    assert json.loads(model.read_text())["format"] == "docket-model"
+    assert model.stat().st_size < 200_000
+    assert main(["score", str(refitted), "--model", str(model), "--pairs", str(pairs), "-o",
+                 str(tmp_path / "out2")]) == 0
+    _same(_scored(tmp_path / "out2"), expected)
+
+
+def test_scoring_all_pairs_of_a_sampled_project(tmp_path: Path) -> None:
+    full, small = tmp_path / "full.docket", tmp_path / "small.docket"
+    Project.create(sample_spec(full))
+    Project.create(sample_spec(small, sample_above=3000))
+    everything = _project_scores(full)
+    pairs = tmp_path / "pairs"
+    pairs.mkdir()
+    for i in range(3):
+        everything.iloc[i::3][["left_id", "right_id"]].to_parquet(pairs / f"p{i}.parquet")
+    assert main(["score", str(small), "--pairs", str(pairs), "-o", str(tmp_path / "out"),
+                 "--left", str(SAMPLE / "practice_north.csv"), "--right",
+                 str(SAMPLE / "practice_south.csv")]) == 0
+    scored = _scored(tmp_path / "out")
+    assert len(scored) == len(everything)
+    _same(scored, _project_scores(small))  # the kept pairs score as the project has them
+
+
+@pytest.mark.skipif(importlib.util.find_spec("distributed") is None,
+                    reason="the optional extra docket[dask] is not installed")
+def test_score_on_dask_matches_in_process(sample_project_file: Path, tmp_path: Path) -> None:
+    expected = _project_scores(sample_project_file)
+    pairs = tmp_path / "pairs.csv"
+    expected[["left_id", "right_id"]].to_csv(pairs, index=False)
+    assert main(["score", str(sample_project_file), "--pairs", str(pairs), "-o",
+                 str(tmp_path / "out"), "--engine", "dask", "--workers", "1"]) == 0
+    _same(_scored(tmp_path / "out"), expected)
+
+
+def test_score_refuses_an_existing_output(sample_project_file: Path, tmp_path: Path,
+                                          capsys) -> None:
+    (tmp_path / "out").mkdir()
+    pairs = tmp_path / "pairs.csv"
+    pairs.write_text("left_id,right_id\nN-00001,S-00001\n", encoding="utf-8")
+    code, err = run(capsys, "score", str(sample_project_file), "--pairs", str(pairs), "-o",
+                    str(tmp_path / "out"))
+    assert_one_line_error(code, err, "already exists")
+    code, err = run(capsys, "score", str(sample_project_file), "--pairs", str(pairs), "-o",
+                    str(tmp_path / "new"), "--model", str(pairs))
+    assert_one_line_error(code, err, "model")
+    assert not (tmp_path / "new").exists()

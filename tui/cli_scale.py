@@ -1,0 +1,92 @@
+"""``docket score`` (every pair scored back with the project's model) and the model file."""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from pathlib import Path
+from typing import Any
+
+
+def register(sub: argparse._SubParsersAction) -> None:
+    """Add ``docket score`` to the command's sub-parsers."""
+    from .cli_base import command
+    p = command(
+        sub, "score", "Score any number of pairs with a project's current model.",
+        "Applies the model as the reviewers' labels and refits have left it to every pair in "
+        "--pairs (a CSV or Parquet file, or a folder of Parquet parts of any size) and writes "
+        "left_id, right_id, match_weight, probability and predicted as Parquet parts into the "
+        "new folder -o. Pairs are read and scored in batches, so memory does not grow with "
+        "them. The records come from the project unless --left/--right name the tables (a "
+        "sampled project keeps only the records of its sample). --model scores with an "
+        "exported model file (docket export PROJECT --what model -o FILE) instead.",
+        "docket score vets.docket --pairs all_pairs/ -o scored/ --engine dask --workers 4",
+        score)
+    p.add_argument("project")
+    p.add_argument("--pairs", required=True, metavar="PATH",
+                   help="pairs: left id, right id (CSV, Parquet, or a folder of parts)")
+    p.add_argument("-o", "--output", required=True, metavar="FOLDER",
+                   help="new folder for the scored Parquet parts")
+    p.add_argument("--model", metavar="FILE", help="an exported model file to score with")
+    p.add_argument("--left", metavar="FILE", help="the left (or only) table of records")
+    p.add_argument("--right", metavar="FILE", help="the right table of records (link mode)")
+    p.add_argument("--engine", choices=["in-process", "dask"], default="in-process",
+                   help="where scoring runs (dask needs: pip install 'docket[dask]')")
+    p.add_argument("--workers", type=int, default=2, metavar="N",
+                   help="dask: workers of the local cluster (default 2)")
+    p.add_argument("--scheduler", metavar="ADDRESS", help="dask: an existing scheduler")
+
+
+def _tables(project: Any, args: argparse.Namespace) -> tuple[Any, Any]:
+    import pandas as pd
+
+    from docket.core.records.sources import Table, load_table
+    meta = project.meta
+
+    def stored(table: str, key: str) -> Any:
+        frame = pd.read_sql_query(f"SELECT * FROM {table}", project.connection)
+        frame = frame.set_index(key)
+        frame.index = frame.index.astype(str)
+        where = Path(f"{project.path.name}'s stored {table.split('_')[0]} records (pass "
+                     f"--{table.split('_')[0]} with the full table)")
+        return Table(where, key, frame)
+    left = (load_table(args.left, meta["left_id_column"]) if args.left else
+            stored("left_records", meta["left_id_column"]))
+    if not project.link:
+        return left, None
+    right = (load_table(args.right, meta["right_id_column"]) if args.right else
+             stored("right_records", meta["right_id_column"]))
+    return left, right
+
+
+def score(args: argparse.Namespace) -> int:
+    from docket.core import Project
+    from docket.core.exports.score_all import make_job, score_to_parts
+    from docket.core.matching.model_file import ScoringModel, from_project
+
+    from .progress import progress_bar
+    with Project.open(args.project, readonly=True) as project:
+        model = (ScoringModel.load(args.model) if args.model else
+                 from_project(project.connection, project.meta))
+        left, right = _tables(project, args)
+    job = make_job(model, left, right, str(args.pairs))
+    with progress_bar() as update:
+        rows = score_to_parts(job, Path(args.pairs), Path(args.output), args.engine,
+                              args.workers, args.scheduler,
+                              lambda d, t: update("scoring pairs", d, t))
+    print(f"scored {rows:,} pairs into {args.output} (ranker {model.ranker}, threshold "
+          f"{model.threshold:g})", file=sys.stderr)
+    return 0
+
+
+def export_model(project: Any, target: str) -> None:
+    """The project's current model as a small JSON file (``docket export --what model``)."""
+    from docket.core.exports.exporting import atomic_write
+    from docket.core.matching.model_file import from_project
+    text = json.dumps(from_project(project.connection, project.meta).to_dict())
+    if target == "-":
+        print(text)
+        return
+    atomic_write(Path(target), lambda p: p.write_text(text, encoding="utf-8"))
+    print(f"wrote the model to {target}", file=sys.stderr)
