@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import os
 import shutil
+from collections.abc import Iterator
 from pathlib import Path
 
 import pytest
@@ -66,3 +67,24 @@ def tiny_tables(tmp_path: Path) -> tuple[Path, Path]:
     right.write_text("id,name,town,born\na,Anna Berg,Oslo,1980-01-02\nb,Jon Dal,Bergen,1975-06-05\n"
                      "c,Per Moe,Tromsø,1966-03-03\n", encoding="utf-8")
     return left, right
+
+
+@pytest.fixture(scope="session")
+def dblp_project_file(dblp_acm: Path, tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """DBLP-ACM built once with the defaults; tests open it read-only or copy it."""
+    path = tmp_path_factory.mktemp("dblp") / "dblp.docket"
+    Project.create(NewProject(path=path, left=dblp_acm / "dblp.csv", right=dblp_acm / "acm.csv",
+                              id_column="id"))
+    return path
+
+
+@pytest.fixture(scope="session")
+def dask_scheduler() -> Iterator[str]:
+    """One 2-worker local Dask cluster for the session, reached as an existing scheduler."""
+    import logging
+    distributed = pytest.importorskip("distributed", reason="the optional extra docket[dask] "
+                                      "is not installed: pip install 'docket[dask]'")
+    cluster = distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
+                                       dashboard_address=":0", silence_logs=logging.ERROR)
+    yield cluster.scheduler_address
+    cluster.close()

@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import sqlite3
-from collections.abc import Iterator
 from pathlib import Path
 
 import pytest
@@ -17,14 +16,9 @@ distributed = pytest.importorskip("distributed", reason="the optional extra dock
                                   "not installed: pip install 'docket[dask]'")
 
 
-@pytest.fixture(scope="module")
-def scheduler() -> Iterator[str]:
-    """One 2-worker local cluster for the module, reached as an existing scheduler."""
-    import logging
-    cluster = distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                                       dashboard_address=":0", silence_logs=logging.ERROR)
-    yield cluster.scheduler_address
-    cluster.close()
+@pytest.fixture
+def scheduler(dask_scheduler: str) -> str:
+    return dask_scheduler
 
 
 def rows(path: Path) -> list[tuple]:
@@ -44,15 +38,14 @@ def test_sample_on_dask_matches_in_process(sample_project_file: Path, tmp_path: 
 
 
 @pytest.mark.outside
-def test_dblp_acm_on_a_local_cluster_matches_in_process(dblp_acm: Path,
-                                                        tmp_path: Path) -> None:
+def test_dblp_acm_on_a_local_cluster_matches_in_process(dblp_acm: Path, dblp_project_file: Path,
+                                                        tmp_path: Path, scheduler: str) -> None:
     # Outside data: DBLP-ACM benchmark, Köpcke, Thor & Rahm PVLDB 2010 (../shared/data).
-    def spec(name: str, **kw) -> NewProject:
-        return NewProject(path=tmp_path / name, left=dblp_acm / "dblp.csv",
-                          right=dblp_acm / "acm.csv", id_column="id", **kw)
-    Project.create(spec("a.docket"))
-    Project.create(spec("b.docket", engine="dask", workers=2))  # a 2-worker local cluster
-    a, b = rows(tmp_path / "a.docket"), rows(tmp_path / "b.docket")
+    # The in-process side is the session's DBLP-ACM project, built with the same defaults.
+    Project.create(NewProject(path=tmp_path / "b.docket", left=dblp_acm / "dblp.csv",
+                              right=dblp_acm / "acm.csv", id_column="id", engine="dask",
+                              scheduler=scheduler))  # the session's 2-worker local cluster
+    a, b = rows(dblp_project_file), rows(tmp_path / "b.docket")
     assert len(a) > 10_000 and a == b
 
 

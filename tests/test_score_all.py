@@ -33,7 +33,7 @@ def _same(scored: pd.DataFrame, expected: pd.DataFrame) -> None:
     both = expected.merge(scored, on=["left_id", "right_id"], suffixes=("", "_scored"))
     assert len(both) == len(expected)
     assert (both["probability"] - both["probability_scored"]).abs().max() < 1e-12
-    assert set(scored.columns) >= {"match_weight", "predicted"}
+    assert set(scored.columns) >= {"log_odds", "predicted"}
 
 
 @pytest.fixture
@@ -62,11 +62,11 @@ def test_score_reproduces_the_projects_probabilities(refitted: Path, tmp_path: P
     _same(_scored(tmp_path / "out2"), expected)
 
 
-def test_scoring_all_pairs_of_a_sampled_project(tmp_path: Path) -> None:
-    full, small = tmp_path / "full.docket", tmp_path / "small.docket"
-    Project.create(sample_spec(full))
+def test_scoring_all_pairs_of_a_sampled_project(sample_project_file: Path,
+                                                tmp_path: Path) -> None:
+    small = tmp_path / "small.docket"
     Project.create(sample_spec(small, sample_above=3000))
-    everything = _project_scores(full)
+    everything = _project_scores(sample_project_file)
     pairs = tmp_path / "pairs"
     pairs.mkdir()
     for i in range(3):
@@ -81,12 +81,13 @@ def test_scoring_all_pairs_of_a_sampled_project(tmp_path: Path) -> None:
 
 @pytest.mark.skipif(importlib.util.find_spec("distributed") is None,
                     reason="the optional extra docket[dask] is not installed")
-def test_score_on_dask_matches_in_process(sample_project_file: Path, tmp_path: Path) -> None:
+def test_score_on_dask_matches_in_process(sample_project_file: Path, tmp_path: Path,
+                                          dask_scheduler: str) -> None:
     expected = _project_scores(sample_project_file)
     pairs = tmp_path / "pairs.csv"
     expected[["left_id", "right_id"]].to_csv(pairs, index=False)
     assert main(["score", str(sample_project_file), "--pairs", str(pairs), "-o",
-                 str(tmp_path / "out"), "--engine", "dask", "--workers", "1"]) == 0
+                 str(tmp_path / "out"), "--engine", "dask", "--scheduler", dask_scheduler]) == 0
     _same(_scored(tmp_path / "out"), expected)
 
 

@@ -16,7 +16,7 @@ def register(sub: argparse._SubParsersAction) -> None:
         sub, "score", "Score any number of pairs with a project's current model.",
         "Applies the model as the reviewers' labels and refits have left it to every pair in "
         "--pairs (a CSV or Parquet file, or a folder of Parquet parts of any size) and writes "
-        "left_id, right_id, match_weight, probability and predicted as Parquet parts into the "
+        "left_id, right_id, log_odds, probability and predicted as Parquet parts into the "
         "new folder -o. Pairs are read and scored in batches, so memory does not grow with "
         "them. The records come from the project unless --left/--right name the tables (a "
         "sampled project keeps only the records of its sample). --model scores with an "
@@ -38,38 +38,16 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--scheduler", metavar="ADDRESS", help="dask: an existing scheduler")
 
 
-def _tables(project: Any, args: argparse.Namespace) -> tuple[Any, Any]:
-    import pandas as pd
-
-    from docket.core.records.sources import Table, load_table
-    meta = project.meta
-
-    def stored(table: str, key: str) -> Any:
-        frame = pd.read_sql_query(f"SELECT * FROM {table}", project.connection)
-        frame = frame.set_index(key)
-        frame.index = frame.index.astype(str)
-        where = Path(f"{project.path.name}'s stored {table.split('_')[0]} records (pass "
-                     f"--{table.split('_')[0]} with the full table)")
-        return Table(where, key, frame)
-    left = (load_table(args.left, meta["left_id_column"]) if args.left else
-            stored("left_records", meta["left_id_column"]))
-    if not project.link:
-        return left, None
-    right = (load_table(args.right, meta["right_id_column"]) if args.right else
-             stored("right_records", meta["right_id_column"]))
-    return left, right
-
-
 def score(args: argparse.Namespace) -> int:
     from docket.core import Project
-    from docket.core.exports.score_all import make_job, score_to_parts
-    from docket.core.matching.model_file import ScoringModel, from_project
+    from docket.core.exports.score_all import make_job, score_to_parts, stored_tables
+    from docket.core.matching.model_file import ScoringModel, from_meta
 
     from .progress import progress_bar
     with Project.open(args.project, readonly=True) as project:
-        model = (ScoringModel.load(args.model) if args.model else
-                 from_project(project.connection, project.meta))
-        left, right = _tables(project, args)
+        model = ScoringModel.load(args.model) if args.model else from_meta(project.meta)
+        left, right = stored_tables(project, args.left and Path(args.left),
+                                    args.right and Path(args.right))
     job = make_job(model, left, right, str(args.pairs))
     with progress_bar() as update:
         rows = score_to_parts(job, Path(args.pairs), Path(args.output), args.engine,
@@ -83,8 +61,8 @@ def score(args: argparse.Namespace) -> int:
 def export_model(project: Any, target: str) -> None:
     """The project's current model as a small JSON file (``docket export --what model``)."""
     from docket.core.exports.exporting import atomic_write
-    from docket.core.matching.model_file import from_project
-    text = json.dumps(from_project(project.connection, project.meta).to_dict())
+    from docket.core.matching.model_file import from_meta
+    text = json.dumps(from_meta(project.meta).to_dict())
     if target == "-":
         print(text)
         return

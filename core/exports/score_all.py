@@ -22,7 +22,8 @@ from ..errors import DocketError
 from ..matching import scoring
 from ..matching.model_file import ScoringModel, score_pairs
 from ..pairs.pair_files import _text, id_batches, open_pairs, positions
-from ..records.sources import Table
+from ..records.sources import Table, load_table
+from ..storage.project_file import ProjectFile
 
 
 @dataclass
@@ -45,6 +46,27 @@ class ScoreJob:
         out.insert(0, "right_id", b.to_numpy())
         out.insert(0, "left_id", a.to_numpy())
         return out
+
+
+def stored_tables(project: ProjectFile, left: Path | None, right: Path | None
+                  ) -> tuple[Table, Table | None]:
+    """The tables to score against: the files given, else the records the project holds."""
+    meta = project.meta
+
+    def stored(side: str) -> Table:
+        key = meta[f"{side}_id_column"]
+        with project.reading() as conn:
+            frame = pd.read_sql_query(f"SELECT * FROM {side}_records", conn)
+        frame = frame.set_index(key)
+        frame.index = frame.index.astype(str)
+        where = Path(f"{project.path.name}'s stored {side} records (pass --{side} with the "
+                     "full table)")
+        return Table(where, key, frame)
+
+    lt = load_table(left, meta["left_id_column"]) if left else stored("left")
+    if meta["mode"] != "link":
+        return lt, None
+    return lt, load_table(right, meta["right_id_column"]) if right else stored("right")
 
 
 def make_job(model: ScoringModel, left: Table, right: Table | None, where: str) -> ScoreJob:
@@ -102,7 +124,7 @@ def _on_dask(job: ScoreJob, source: Any, tmp: Path, workers: int,
             raw = dd.from_pandas(pd.DataFrame({"a": a, "b": b}), npartitions=2 * workers)
         meta = pd.DataFrame({"left_id": pd.Series(dtype=object),
                              "right_id": pd.Series(dtype=object),
-                             "match_weight": pd.Series(dtype=float),
+                             "log_odds": pd.Series(dtype=float),
                              "probability": pd.Series(dtype=float),
                              "predicted": pd.Series(dtype=bool)})
         shared = client.scatter(job, broadcast=True)

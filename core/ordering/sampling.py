@@ -61,6 +61,16 @@ class SamplePlan:
         }
 
 
+def sampling_note(described: dict | None) -> dict | None:
+    """``describe``'s record with the line ``evaluate`` prints (None: every pair kept)."""
+    if not described:
+        return None
+    return {**described, "note": f"sampled project: {described['kept_pairs']:,} of "
+                                 f"{described['population_pairs']:,} candidate pairs kept; "
+                                 "audit pairs weigh n/N of their stratum over all pairs, so "
+                                 "the estimates are of all candidate pairs"}
+
+
 def allocate(sizes: dict[int, int], budget: int) -> dict[int, int]:
     """Spread ``budget`` over strata equally; a stratum smaller than its share is kept whole.
 

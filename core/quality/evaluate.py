@@ -21,6 +21,7 @@ import pandas as pd
 from ..errors import DocketError
 from ..matching.decision_rule import predicted
 from ..ordering.queue_order import describe
+from ..ordering.sampling import sampling_note
 from ..records.sources import read_frame
 from ..reviewing.agreement import cohen_kappa, json_ready
 from ..reviewing.gold import gold_labels
@@ -165,16 +166,6 @@ def _blocking(project: ProjectFile) -> dict[str, Any]:
             "reduction_ratio": b.get("reduction_ratio")}
 
 
-def sampling_note(project: ProjectFile) -> dict[str, Any] | None:
-    """How a sampled project was drawn (None when it holds every candidate pair)."""
-    s = project.meta.get("sampling")
-    if not s:
-        return None
-    return {**s, "note": f"sampled project: {s['kept_pairs']:,} of {s['population_pairs']:,} "
-                         "candidate pairs kept; audit pairs weigh n/N of their stratum over "
-                         "all pairs, so the estimates are of all candidate pairs"}
-
-
 def _check_target(name: str, value: float | None) -> None:
     if value is not None and not 0.0 < value <= 1.0:
         raise DocketError(f"--target-{name} {value}: give a share above 0, at most 1")
@@ -241,7 +232,7 @@ def _report(project: ProjectFile, scores: pd.Series, threshold: float,
                   "blocking": _blocking(project)},
         "methods": METHODS,
         "gold_labels": len(gold),
-        "sampling": sampling_note(project),
+        "sampling": sampling_note(project.meta.get("sampling")),
     }
 
 

@@ -189,7 +189,9 @@ def build(spec: NewProject, progress: Progress | None = None,
     n = len(li)
     rng = np.random.default_rng(seed)
     pair_ids = rng.permutation(n) + 1  # random ids: pairs of equal priority come in random order
-    audit_n = queue.default_audit_size(n) if spec.audit is None else min(spec.audit, n)
+    # a sampled project's slice is sized for all its pairs: the estimates are of them all
+    audit_n = (min(queue.default_audit_size(plan.total), n) if spec.audit is None
+               else min(spec.audit, n))
     audit = sampling.weighted_to_population(
         queue.draw_audit(prob[pattern_ix], audit_n, seed + 1), plan)
     drawn = int(audit.selected.sum())

@@ -1,0 +1,191 @@
+"""Past one machine's comfort: candidate pairs from Parquet parts at 1, 3 and 10 million.
+
+    python bench/scale_pairs.py [--sizes 1000000 3000000 10000000] [--work /tmp/docket_scale]
+                                [--skip-dask] [--skip-dedupe]
+
+1. ``docket new --pairs`` from a folder of Parquet parts (2 x 250,000 Parquet records): build
+   time, peak RSS of the build's own process, and the project file's size, per size: the memory
+   curve. Targets: peak RSS <= 2 GB at every size and flat; 10 M pairs in <= 5 minutes.
+2. The largest size again with ``--engine dask`` on a 2-worker local cluster, side by side:
+   the ratio dask / in-process (target <= 1.5).
+3. The sampled largest project: a fresh process from review start to the first pair painted
+   (target <= 1.5 s), and the next-pair query p99 over 300 pairs (target <= 5 ms).
+4. Dedupe of 1,000,000 synthetic person records with automatic blocking: time and peak RSS
+   (target <= 4 GB), within the pair cap.
+5. Pairs scored per second per core (``docket score`` in process), the figure DEVELOPERS.md
+   multiplies out for a cluster.
+
+Every build runs in a child process so its peak RSS is its own (Dask workers are processes of
+their own: their memory is not in the figure). Inputs are generated, seeded, under ``--work``.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import statistics
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+from keys import first_pair, write_records  # the bench folder's own helpers
+
+N_RECORDS = 250_000
+PART = 1_000_000  # rows per Parquet part, as an engine would write them
+MB = 1024.0
+
+BUILD = """
+import json, resource, sys, time, warnings
+from pathlib import Path
+from docket.core import NewProject, Project
+warnings.simplefilter("ignore")
+a = json.loads(sys.argv[1])
+t = time.perf_counter()
+spec = NewProject(path=Path(a["project"]), left=Path(a["left"]),
+                  right=Path(a["right"]) if a["right"] else None, id_column="id",
+                  pairs_file=Path(a["pairs"]) if a["pairs"] else None, engine=a["engine"],
+                  workers=2, force=True)
+built = Project.create(spec)
+print(json.dumps({"seconds": time.perf_counter() - t,
+                  "peak_kb": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss,
+                  "pairs": built.blocking.pairs, "kept": (built.sampling or {}).get("kept_pairs"),
+                  "rules": built.blocking.rules}))
+"""
+
+
+def records(work: Path) -> tuple[Path, Path]:
+    """Two Parquet tables; half of the right records are perturbed copies of left ones."""
+    lp, rp = work / "left.parquet", work / "right.parquet"
+    if not (lp.exists() and rp.exists()):
+        left, right, _ = write_records(work / "csv", N_RECORDS, N_RECORDS, N_RECORDS, 7)
+        pd.read_csv(left, dtype=str).to_parquet(lp, index=False)
+        pd.read_csv(right, dtype=str).to_parquet(rp, index=False)
+    return lp, rp
+
+
+def pair_parts(work: Path, n_pairs: int) -> Path:
+    """``n_pairs`` distinct pairs in parts of ``PART`` rows: each record's copy, then random."""
+    folder = work / f"pairs_{n_pairs}"
+    if folder.exists():
+        return folder
+    tmp = work / f".pairs_{n_pairs}.tmp"
+    tmp.mkdir(parents=True, exist_ok=True)
+    ids_l = np.array([f"L{i:07d}" for i in range(N_RECORDS)], dtype=object)
+    ids_r = np.array([f"R{i:07d}" for i in range(N_RECORDS)], dtype=object)
+    width = N_RECORDS * N_RECORDS
+    step = 2_654_435_761  # odd and coprime with width: g -> g * step mod width is one-to-one
+    for k, start in enumerate(range(0, n_pairs, PART)):
+        g = np.arange(start, min(n_pairs, start + PART), dtype=np.int64)
+        key = g * step % width  # below 2**63 for any size here
+        li, ri = key // N_RECORDS, key % N_RECORDS
+        own = g < N_RECORDS  # the first pass pairs every record with its (possible) copy
+        li[own], ri[own] = g[own], g[own]
+        pd.DataFrame({"left_id": ids_l[li], "right_id": ids_r[ri]}).to_parquet(
+            tmp / f"part-{k:05d}.parquet", index=False)
+    tmp.rename(folder)
+    return folder
+
+
+def build(project: Path, left: Path, right: Path | None, pairs: Path | None,
+          engine: str = "in-process") -> dict:
+    arg = {"project": str(project), "left": str(left), "right": right and str(right),
+           "pairs": pairs and str(pairs), "engine": engine}
+    done = subprocess.run([sys.executable, "-c", BUILD, json.dumps(arg)], capture_output=True,
+                          text=True)
+    if done.returncode:
+        sys.exit(f"build failed:\n{done.stderr[-2000:]}")
+    out = json.loads(done.stdout.strip().splitlines()[-1])
+    out["size_mb"] = project.stat().st_size / MB / MB
+    out["peak_mb"] = out["peak_kb"] / MB
+    return out
+
+
+def next_pair_p99(project: Path) -> tuple[float, float]:
+    from docket.core import Project
+
+    with Project.open(project) as p:
+        times = []
+        for i in range(300):
+            t = time.perf_counter()
+            item = p.next_pairs("bench", 1)[0]
+            times.append(time.perf_counter() - t)
+            if i % 3 == 0:
+                p.decide(item.pair_id, "bench", "non-match")
+    q = sorted(times)
+    return statistics.median(q) * 1e3, q[int(0.99 * len(q))] * 1e3
+
+
+def scoring_rate(work: Path, project: Path, pairs: Path, left: Path, right: Path) -> float:
+    """Pairs per second of ``docket score`` in this process (one core does the comparing)."""
+    out = work / "scored"
+    import shutil
+    shutil.rmtree(out, ignore_errors=True)
+    t = time.perf_counter()
+    subprocess.run([str(Path(sys.executable).parent / "docket"), "score", str(project), "--pairs",
+                    str(pairs), "--left", str(left), "--right", str(right), "-o", str(out)],
+                   check=True, capture_output=True)
+    seconds = time.perf_counter() - t
+    rows = sum(len(pd.read_parquet(p, columns=["probability"])) for p in out.glob("*.parquet"))
+    shutil.rmtree(out, ignore_errors=True)
+    return rows / seconds
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--sizes", type=int, nargs="+",
+                        default=[1_000_000, 3_000_000, 10_000_000])
+    parser.add_argument("--work", type=Path, default=Path("/tmp/docket_scale"))
+    parser.add_argument("--skip-dask", action="store_true")
+    parser.add_argument("--skip-dedupe", action="store_true")
+    args = parser.parse_args()
+    args.work.mkdir(parents=True, exist_ok=True)
+    left, right = records(args.work)
+    print(f"records 2 x {N_RECORDS:,} (Parquet); pairs in Parquet parts of {PART:,} rows")
+    print(f"{'pairs':>12} {'build s':>8} {'peak RSS MB':>12} {'file MB':>8} {'kept':>10}")
+    runs = {}
+    for n in args.sizes:
+        parts = pair_parts(args.work, n)
+        r = runs[n] = build(args.work / f"p{n}.docket", left, right, parts)
+        print(f"{r['pairs']:>12,} {r['seconds']:>8.1f} {r['peak_mb']:>12,.0f} "
+              f"{r['size_mb']:>8.1f} {r['kept'] or r['pairs']:>10,}", flush=True)
+    big = max(args.sizes)
+    peaks = [runs[n]["peak_mb"] for n in args.sizes]
+    print(f"peak RSS largest / smallest size: {peaks[-1] / peaks[0]:.2f} for "
+          f"{big / min(args.sizes):.0f}x the pairs (flat = 1); target <= 2,048 MB -> ratio "
+          f"{max(peaks) / 2048:.2f} of budget")
+    print(f"{big:,} pairs in {runs[big]['seconds']:.0f} s; target <= 300 s -> ratio "
+          f"{runs[big]['seconds'] / 300:.2f} of budget")
+    if not args.skip_dask:
+        d = build(args.work / f"d{big}.docket", left, right, pair_parts(args.work, big), "dask")
+        print(f"--engine dask, 2-worker local cluster, {big:,} pairs: {d['seconds']:.1f} s vs "
+              f"in-process {runs[big]['seconds']:.1f} s -> ratio "
+              f"{d['seconds'] / runs[big]['seconds']:.2f} (target <= 1.5); client peak RSS "
+              f"{d['peak_mb']:,.0f} MB")
+    project = args.work / f"p{big}.docket"
+    firsts = [first_pair(project) for _ in range(3)]
+    best = min(firsts, key=lambda r: r["first"])
+    p50, p99 = next_pair_p99(project)
+    print(f"sampled {big:,}-pair project: review start -> first pair painted "
+          f"{best['first']:.3f} s (target <= 1.5 s; imports {best['imports']:.3f} s more); "
+          f"next pair p50 {p50:.2f} ms, p99 {p99:.2f} ms (target <= 5 ms)")
+    rate = scoring_rate(args.work, project, pair_parts(args.work, min(args.sizes)), left, right)
+    print(f"docket score in process: {rate:,.0f} pairs/s")
+    if not args.skip_dedupe:
+        people = args.work / "people.parquet"
+        if not people.exists():
+            # 700,000 people and 300,000 records more, half of them perturbed copies
+            a, b, _ = write_records(args.work / "csv", 700_000, 300_000, 700_000, 11)
+            both = pd.concat([pd.read_csv(a, dtype=str), pd.read_csv(b, dtype=str)])
+            both["id"] = [f"P{i:07d}" for i in range(len(both))]
+            both.to_parquet(people, index=False)
+        r = build(args.work / "people.docket", people, None, None)
+        print(f"dedupe of 1,000,000 person records, automatic blocking ({'; '.join(r['rules'])})"
+              f": {r['pairs']:,} pairs in {r['seconds']:.0f} s, peak RSS {r['peak_mb']:,.0f} MB "
+              f"(target <= 4,096 MB -> ratio {r['peak_mb'] / 4096:.2f})")
+
+
+if __name__ == "__main__":
+    main()
