@@ -17,7 +17,9 @@ from docket.core.quality.estimates import threshold_table
 from docket.core.quality.evaluate import evaluate, sample_from
 from docket.core.report import status
 from docket.tui.cli import main
+from docket.tui.review_app import make_app
 from tests.conftest import sample_spec
+from tests.fixtures_review import pilot_test, settle
 from tests.quality import load_truth
 from tests.test_evaluate import answer_audit, truth_vector
 
@@ -141,3 +143,18 @@ def test_sampled_intervals_cover_the_truth_on_dblp_acm(dblp_acm: Path, dblp_proj
         print(f"\nsampled DBLP-ACM ({KEEP:,} pairs kept) coverage of 95% intervals: "
               f"precision {cov_p:.0%}, recall {cov_r:.0%} ({RUNS} runs)")
     assert cov_p >= 0.93 and cov_r >= 0.93
+
+
+@pilot_test
+async def test_review_screen_on_a_sampled_project(sampled: Path, tmp_path: Path) -> None:
+    copy = tmp_path / "copy.docket"
+    copy.write_bytes(sampled.read_bytes())
+    app = make_app(copy, "maya", keymap_file=copy.with_suffix(".no-keymap"))
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        first = app.screen.item.pair_id
+        await pilot.press("s")
+        await settle(pilot)
+        assert app.screen.item.pair_id != first
+    with Project.open(copy) as p:
+        assert [(d.pair_id, d.label) for d in p.decisions()] == [(first, "match")]
