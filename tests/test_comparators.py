@@ -99,3 +99,40 @@ def test_normalise_each_distinct_value_once() -> None:
 
     out = normalise.per_distinct(["A", "B", "A", None, "A"], spy)
     assert list(out) == ["a", "b", "a", None, "a"] and sorted(calls) == ["A", "B"]
+
+
+def test_every_kind_has_a_comparison_rule() -> None:
+    # types.KINDS is what field mapping accepts; compare.KINDS says how each is compared
+    from docket.core import types
+
+    assert set(compare.KINDS) == set(types.KINDS)
+
+
+def test_numbers_are_judged_pair_by_pair() -> None:
+    # One non-integer elsewhere in the chunk must not turn 2000 vs 2019 (years: 19 apart, far
+    # beyond one unit) into "within 1 %". Common practice: integers such as years differ by units.
+    alone = compare.compare_values("number", np.array([2000.0]), np.array([2019.0]))[1]
+    mixed = compare.compare_values("number", np.array([2000.0, 12.5]),
+                                   np.array([2019.0, 12.5]))[1]
+    assert alone[0] == mixed[0] == 2
+
+
+def test_dates_far_ahead_and_in_the_us_order() -> None:
+    iso = normalise.date("1990-12-31")
+    assert normalise.date("31/12/1990") == iso
+    assert normalise.date("12/31/1990") == iso  # 31 cannot be a month: the US order
+    assert normalise.date("03/04/1990") == normalise.date("1990-04-03")  # ambiguous: day first
+    assert normalise.date("now") is None and normalise.date("today") is None
+    # 9999-12-31, a common "no end date" value, compares like any other day
+    far = np.array([normalise.date("9999-12-31")])
+    assert compare.compare_values("date", far, far)[1][0] == 0
+
+
+def test_patterns_with_many_levels_stay_distinct() -> None:
+    from docket.core.matching.scoring import group_patterns
+
+    rng = np.random.default_rng(4)
+    for levels in (rng.integers(0, 20, size=(2000, 3)), rng.integers(0, 3, size=(500, 30))):
+        patterns, index, _ = group_patterns(levels.astype(np.int8))
+        assert len(patterns) == len(np.unique(levels, axis=0))
+        assert (patterns[index] == levels).all()

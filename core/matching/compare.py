@@ -74,21 +74,30 @@ def _number(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     a = a.astype(float)
     b = b.astype(float)
     diff = np.abs(a - b)
-    integers = bool(np.all(np.mod(a, 1) == 0) and np.all(np.mod(b, 1) == 0))
-    # Integers such as years or ages are near within one unit; other numbers within 1 %.
-    tol = np.ones_like(diff) if integers else 0.01 * np.maximum(np.abs(a), np.abs(b))
+    # Integers such as years or ages are near within one unit; other numbers within 1 %. Decided
+    # per pair: one 12.5 elsewhere in the column must not change how 2000 and 2019 compare.
+    integers = (np.mod(a, 1) == 0) & (np.mod(b, 1) == 0)
+    tol = np.where(integers, 1.0, 0.01 * np.maximum(np.abs(a), np.abs(b)))
     tol = np.where(tol == 0, 1e-9, tol)
     sim = (1.0 / (1.0 + diff / tol)).astype(np.float32)
     lv = np.where(diff == 0, 0, np.where(diff <= tol, 1, 2)).astype(np.int8)
     return sim, lv
 
 
+def _ymd(days: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    d = days.astype("int64").astype("datetime64[D]")
+    months = d.astype("datetime64[M]")
+    years = d.astype("datetime64[Y]")
+    return (years.astype("int64"), (months - years.astype("datetime64[M]")).astype("int64") + 1,
+            (d - months.astype("datetime64[D]")).astype("int64") + 1)
+
+
 def _date(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    da = pd.to_datetime(a.astype("int64"), unit="D")
-    db = pd.to_datetime(b.astype("int64"), unit="D")
+    # numpy's day resolution holds any year to 9999 (nanosecond timestamps end in 2262)
+    ya, ma, da = _ymd(a)
+    yb, mb, db = _ymd(b)
     diff = np.abs(a.astype(float) - b.astype(float))
-    swapped = np.asarray((da.day == db.month) & (da.month == db.day) & (da.year == db.year)
-                         & (da.day != da.month))
+    swapped = (da == mb) & (ma == db) & (ya == yb) & (da != ma)
     lv = np.full(len(a), 3, dtype=np.int8)
     lv[diff <= 31] = 2
     lv[swapped] = 1

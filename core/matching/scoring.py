@@ -61,7 +61,8 @@ def compare_pairs(fields: list[FieldSpec], left_norm: dict[str, np.ndarray],
 
 
 def pattern_codes(levels: np.ndarray, radix: int = 16) -> np.ndarray:
-    """One int64 per pair for its level vector (mixed radix), for fast grouping."""
+    """One int64 per pair for its level vector (fixed radix), for fast grouping; every level
+    must be below ``radix`` and ``radix ** fields`` within int64 (``group_patterns`` checks)."""
     code = np.zeros(len(levels), dtype=np.int64)
     for j in range(levels.shape[1]):
         code = code * radix + levels[:, j].astype(np.int64)
@@ -70,9 +71,11 @@ def pattern_codes(levels: np.ndarray, radix: int = 16) -> np.ndarray:
 
 def group_patterns(levels: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Distinct level vectors, the pattern index of each pair, and each pattern's count."""
-    if levels.shape[1] * 4 < 63:  # one int64 per pair: much faster than unique rows
-        _, first, inverse, counts = np.unique(pattern_codes(levels), return_index=True,
-                                              return_inverse=True, return_counts=True)
+    radix = int(levels.max()) + 1 if levels.size else 1
+    if levels.shape[1] * max(radix - 1, 1).bit_length() < 63:  # one int64 per pair: much faster
+        _, first, inverse, counts = np.unique(pattern_codes(levels, max(radix, 2)),
+                                              return_index=True, return_inverse=True,
+                                              return_counts=True)
     else:
         _, first, inverse, counts = np.unique(levels, axis=0, return_index=True,
                                               return_inverse=True, return_counts=True)

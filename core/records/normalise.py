@@ -60,7 +60,8 @@ def number(value: str) -> float | None:
 
 
 def date(value: str) -> float | None:
-    """Days since 1970-01-01. ISO first, then day/month/year (the usual order outside the US)."""
+    """Days since 1970-01-01. ISO first, then day/month/year (the usual order outside the US),
+    read as month/day/year only where the middle number cannot be a month; None for words."""
     text = value.strip()
     m = _ISO.match(text)
     parts: tuple[int, int, int] | None = None
@@ -69,8 +70,13 @@ def date(value: str) -> float | None:
     else:
         m = _DMY.match(text)
         if m:
-            parts = (int(m[3]), int(m[2]), int(m[1]))
+            day, month, year = int(m[1]), int(m[2]), int(m[3])
+            # day/month/year unless the month cannot be one and the day can: then the US order
+            # (12/31/1990), which is unambiguous there
+            parts = (year, day, month) if month > 12 >= day else (year, month, day)
     if parts is None:
+        if not any(ch.isdigit() for ch in text):  # "now", "today": words are not dates
+            return None
         try:
             ts = pd.Timestamp(text)
         except (ValueError, TypeError):
