@@ -81,17 +81,17 @@ def _as_printed(value: float, printed: str) -> bool:
     ],
 )
 def test_standard_errors_and_interval(table: list[list[int]], printed: str) -> None:
-    """Columns: κ, ASE (Fleiss, Cohen & Everitt 1969), 95% CI, SE0 (null), z = κ/SE0."""
+    """Columns: κ, ASE (Fleiss, Cohen & Everitt 1969), its 95% CI, SE0 (null), z = κ/SE0."""
     got = cohen_kappa(table)
-    values = (got.kappa, got.se, got.ci_low, got.ci_high, got.se0, got.z)
+    values = (got.kappa, got.se, got.wald_low, got.wald_high, got.se0, got.z)
     for value, expected in zip(values, printed.split(), strict=True):
         assert expected == "-" or _as_printed(value, expected), (value, expected)
 
 
-def test_interval_uses_the_exact_normal_quantile() -> None:
+def test_large_sample_interval_uses_the_exact_normal_quantile() -> None:
     got = cohen_kappa(SAS_3X3)
-    assert (got.ci_high - got.kappa) / got.se == pytest.approx(1.959964, abs=1e-6)
-    assert got.ci_high - got.kappa == pytest.approx(got.kappa - got.ci_low)
+    assert (got.wald_high - got.kappa) / got.se == pytest.approx(1.959964, abs=1e-6)
+    assert got.wald_high - got.kappa == pytest.approx(got.kappa - got.wald_low)
 
 
 def test_result_carries_table_and_band() -> None:

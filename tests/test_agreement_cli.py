@@ -55,7 +55,7 @@ def test_label_then_agreement_reproduces_the_worked_example(
     assert pair["kappa"] == pytest.approx(0.4000, abs=5e-5)  # Wikipedia "Cohen's kappa" [S]
     # FCE (1969) non-null ASE 0.1270, CI 0.1511-0.6489 [C] (statsmodels cohens_kappa)
     assert pair["se"] == pytest.approx(0.1270, abs=5e-5)
-    assert (pair["ci_low"], pair["ci_high"]) == (pytest.approx(0.1511, abs=5e-5),
+    assert (pair["wald_low"], pair["wald_high"]) == (pytest.approx(0.1511, abs=5e-5),
                                                  pytest.approx(0.6489, abs=5e-5))
     assert pair["se0"] == pytest.approx(0.1386, abs=5e-5)  # null SE [C], FCE 1969
     reference = cohens_kappa(TABLE)  # statsmodels, the reference library
@@ -68,12 +68,16 @@ def test_label_then_agreement_reproduces_the_worked_example(
     assert pair["bias_index"] == pytest.approx(-0.10)
     assert pair["band"] == "Fair"  # 0.20 < 0.40 <= 0.40, the upper-inclusive convention
     assert report["overall"]["fleiss_units"] == 50
-    assert report["dawid_skene"]["units"] == 50
+    # two reviewers: the Dawid–Skene model is not identified, so no rates are given
+    assert report["dawid_skene"]["identified"] is False
+    assert report["dawid_skene"]["reviewers"] == []
 
     assert run(["agreement", str(sample_project)]) == 0
     out = capsys.readouterr().out
     assert "ana × ben: 50 pairs used of 50 in common" in out
-    assert "Cohen's kappa 0.4000  SE 0.1270  95% CI 0.1511 – 0.6489  (Fair)" in out
+    lo, hi = pair["ci_low"], pair["ci_high"]
+    assert f"Cohen's kappa 0.4000 [{lo:.4f}, {hi:.4f}] (n 50; Fair); SE 0.1270" in out
+    assert -1 <= lo < 0.4 < hi <= 1 and "Dawid–Skene: not identified" in out
     assert "Fleiss, Cohen & Everitt (1969)" in out and "Landis & Koch" in out
 
 

@@ -64,7 +64,7 @@ def coverage(project: Project, truth: set[tuple[str, str]]) -> tuple[float, floa
         s = a.selected
         sample = sample_from(score[s], y[s].astype(int).tolist(), a.stratum[s], a.inclusion[s],
                              a.sizes)
-        e = threshold_table(sample, [threshold], n_boot=2)[0]  # P and R need no replicates
+        e = threshold_table(sample, [threshold])[0]
         hits_p += e.precision.low <= true_p <= e.precision.high
         hits_r += e.recall.low <= true_r <= e.recall.high
     return hits_p / REPETITIONS, hits_r / REPETITIONS
@@ -140,11 +140,10 @@ def test_design_based_and_naive_side_by_side_and_marked(answered: Project) -> No
     assert [r["threshold"] for r in rows] == sorted({*[r["threshold"] for r in rows], 0.5})
     for r in rows:
         assert r["biased"] is False
-        assert r["precision"]["method"] in ("smoothed-korn-graubard", "wilson")
-        assert r["f1"]["method"] == "stratified-bootstrap"
+        assert r["precision"]["method"] == r["f1"]["method"] == "linearised-korn-graubard"
     naive = report["naive_at_threshold"]
     assert naive["biased"] is True and naive["method"] == "naive-unweighted"
-    assert "biased by the queue order" in naive["note"]
+    assert "chosen by the queue" in naive["note"]  # labels from the queue beside the audit
     assert naive["n_labelled"] == report["gold_labels"] > report["audit"]["labelled"]
     assert "within the candidate pairs" in report["scope"]["note"]
     reach = report["scope"]["blocking"]
@@ -186,8 +185,10 @@ def test_machine_rater_equal_to_the_truth(answered: Project, tmp_path: Path) -> 
     for path in (labels, scores):
         report = evaluate_predictions(answered, path)
         m, row = report["machine_rater"], report["at_threshold"]
-        assert m["kappa"] == 1.0 and m["table"][0][1] == m["table"][1][0] == 0
-        assert m["n"] == report["gold_labels"]
+        assert m["kappa"] == pytest.approx(1.0) and m["table"][0][1] == m["table"][1][0] == 0
+        assert m["n"] == report["audit"]["labelled"]  # design-weighted on the audit slice
+        assert m["all_gold"]["n"] == report["gold_labels"]
+        assert m["ci_low"] <= 1.0 and m["ci_high"] == 1.0
         assert row["precision"]["value"] == 1.0 and row["recall"]["value"] == 1.0
         assert report["naive_at_threshold"]["precision"]["value"] == 1.0
         assert report["predictions"]["outside_candidates"] == len(rows) - \
@@ -202,7 +203,9 @@ def test_machine_rater_that_always_says_match(answered: Project, tmp_path: Path)
     report = evaluate_predictions(answered, path)
     assert report["at_threshold"]["recall"]["value"] == 1.0
     assert report["at_threshold"]["precision"]["value"] < 0.2
-    assert report["machine_rater"]["kappa"] == 0.0  # agreement no better than chance
+    # agreement no better than chance, weighted or not
+    assert report["machine_rater"]["kappa"] == pytest.approx(0.0, abs=1e-12)
+    assert report["machine_rater"]["all_gold"]["kappa"] == 0.0
 
 
 def test_bad_prediction_files_fail_with_one_clear_message(answered: Project,
@@ -240,7 +243,7 @@ def test_evaluate_command_human_and_json(answered: Project, capsys) -> None:
     out = capsys.readouterr().out
     assert "threshold  precision" in out and "*      0.5" in out
     assert "suggested threshold:" in out and "recall ≥ 0.9" in out
-    assert "naive, BIASED by the queue order" in out
+    assert "unweighted) at 0.5" in out and "chosen by the queue" in out  # marked biased
     assert "within the candidate pairs" in out and "reduction ratio" in out
     assert run(["evaluate", path, "--json", "--thresholds", "0.3,0.7"]) == 0
     report = json.loads(capsys.readouterr().out)

@@ -42,7 +42,7 @@ async def test_threshold_table_is_design_based_with_the_naive_figures_marked(tea
         p = at["precision"]
         assert row[0] == "*" and row[2] == f"{p['value']:.3f} [{p['low']:.3f}, {p['high']:.3f}]"
         text = screen_text(app)
-        assert "naive P / R (biased)" in text and "biased by the queue order" in text
+        assert "naive P / R (biased)" in text and "chosen by the queue" in text
         assert "within the candidate pairs" in text
         assert f"{report['audit']['labelled']} of {report['audit']['drawn']:,} drawn" in text
         await press(pilot, "1")

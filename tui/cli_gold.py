@@ -12,6 +12,7 @@ from typing import Any
 
 from .cli_base import command, open_project
 from .cli_checks import share
+from .figures import bounds, estimate, interval, number
 from .terminal import json_text
 
 EXPORTS = ("gold", "training", "clusters", "conflicts", "missed")
@@ -162,11 +163,7 @@ def export(args: argparse.Namespace) -> int:
 
 # -- human output -------------------------------------------------------------------------------
 def _iv(d: dict[str, Any]) -> str:
-    if d.get("value") is None:
-        return f"{'—':<22}"
-    if d.get("low") is None:
-        return f"{d['value']:.3f}{'':<17}"
-    return f"{d['value']:.3f} [{d['low']:.3f}, {d['high']:.3f}]"
+    return f"{estimate(d):<22}"
 
 
 def _row(e: dict[str, Any], mark: str) -> str:
@@ -175,25 +172,40 @@ def _row(e: dict[str, Any], mark: str) -> str:
 
 
 def _short(e: dict[str, Any]) -> str:
-    return (f"precision {_iv(e['precision']).strip()}, recall {_iv(e['recall']).strip()}, "
-            f"F1 {_iv(e['f1']).strip()}")
+    return (f"precision {estimate(e['precision'])}, recall {estimate(e['recall'])}, "
+            f"F1 {estimate(e['f1'])}")
+
+
+def held_line(e: dict[str, Any]) -> str | None:
+    """The bounds at one threshold when audit pairs are held, else None."""
+    if not e.get("held"):
+        return None
+    return (f"with the {e['held']:,} held audit pairs all wrong … all right: precision "
+            f"{bounds(e['precision_bounds'])}, recall {bounds(e['recall_bounds'])}, F1 "
+            f"{bounds(e['f1_bounds'])} (these bounds, not the intervals above, are what the "
+            "labels can vouch for)")
 
 
 def render(report: dict[str, Any], name: str) -> list[str]:
     """The evaluation as lines of text: table, suggestion, naive line, scope, machine rater."""
     a = report["audit"]
     conf = f"{report['confidence']:.0%}"
+    held = f"; {a['held']:,} held" if a.get("held") else ""
     out = [f"{name} · quality from the audit slice: {a['labelled']:,} of {a['drawn']:,} drawn "
-           f"pairs have gold labels ({a['matches']:,} matches); {conf} intervals",
+           f"pairs have gold labels ({a['matches']:,} matches{held}); {conf} intervals",
            f"score: {report['model']['score']}; decision threshold {report['threshold']:g}", ""]
     head = f"{'precision':<24}{'recall':<24}{'F1':<24}{'predicted':>12}"
     out.append(f"{'threshold':>10}  {head}")
     for e in report["estimates"]:
         out.append(_row(e, "*" if e["threshold"] == report["threshold"] else " "))
     first = report["at_threshold"]
-    out.append(f"  * decision threshold. Intervals: precision and recall "
-               f"{first['precision']['method']}, F1 {first['f1']['method']}; estimated "
-               f"predicted matches among {first['n_pairs']:,} candidate pairs.")
+    out.append(f"  * decision threshold. Intervals: {first['precision']['method']} for "
+               f"precision, recall and F1 (linearised variance, with an allowance for strata "
+               f"that show no error); predicted matches among {first['n_pairs']:,} candidate "
+               "pairs.")
+    bound = held_line(first)
+    if bound:
+        out.append(bound)
     s = report["suggested"]
     if s is not None:
         if s["threshold"] is None:
@@ -203,11 +215,11 @@ def render(report: dict[str, Any], name: str) -> list[str]:
                        f"{s['goal']:g}: {_short(s['estimate'])} ({s['note']})")
     elif report["best_f1"] is not None:
         b = report["best_f1"]
-        out.append(f"suggested threshold: {b['threshold']:g} (highest estimated F1 in the table, "
-                   f"{b['f1']:.3f}); pass --target-precision or --target-recall to aim at one")
+        out.append(f"highest estimated F1 in the table: {b['f1']:.3f} at {b['threshold']:g}, "
+                   f"{b['note']}; pass --target-precision or --target-recall to aim at one")
     n = report["naive_at_threshold"]
-    out.append(f"naive, BIASED by the queue order ({report['gold_labels']:,} gold labels, "
-               f"unweighted) at {n['threshold']:g}: {_short(n)}")
+    out.append(f"naive ({report['gold_labels']:,} gold labels, unweighted) at "
+               f"{n['threshold']:g}: {_short(n)} — {n['note']}")
     notes = [t for t in first["note"].split("; ") if t]
     out += [f"note at {first['threshold']:g}: {t}" for t in notes]
     if report.get("sampling"):
@@ -232,20 +244,21 @@ def _machine_lines(report: dict[str, Any]) -> list[str]:
     p, m = report["predictions"], report["machine_rater"]
     out = [f"machine rater {p['file']}: {p['candidate_pairs_given']:,} candidate pairs given "
            f"({p['column']} column); {p['absent_count_as_non_match']:,} absent pairs count as "
-           f"predicted non-matches"]
-    if p["outside_candidates"]:
-        out.append(f"  {p['outside_candidates']:,} predictions name pairs outside the candidate "
-                   "pairs: not evaluated (no audit stratum holds them)")
+           f"predicted non-matches", f"  {p['scope']}"]
     if m["kappa"] is None:
-        out.append(f"Cohen's kappa against {m['n']:,} gold labels: undefined ({m['band']})")
+        out.append(f"Cohen's kappa on {m['n']:,} audit pairs: undefined ({m['band']})")
     else:
-        out.append(f"Cohen's kappa against {m['n']:,} gold labels: {m['kappa']:.3f} "
-                   f"[{m['ci_low']:.3f}, {m['ci_high']:.3f}] ({m['band']}); observed "
-                   f"agreement {m['observed_agreement']:.3f}")
-    (tp, fp), (fn, tn) = m["table"]
-    out += [f"  {'':<20}{'gold match':>12}{'gold non-match':>16}",
-            f"  {'predicted match':<20}{tp:>12,}{fp:>16,}",
-            f"  {'predicted non-match':<20}{fn:>12,}{tn:>16,}"]
+        out.append(f"Cohen's kappa on {m['n']:,} audit pairs, design-weighted: "
+                   f"{interval(m['kappa'], m['ci_low'], m['ci_high'])} ({m['band']}); "
+                   f"{m['scope']}")
+    g = m["all_gold"]
+    out.append(f"  over all {g['n']:,} gold labels, unweighted: {number(g['kappa'])} "
+               f"({g['scope']})")
+    if m["table"] is not None:
+        (tp, fp), (fn, tn) = m["table"]
+        out += [f"  estimated candidate pairs{'':<4}{'gold match':>12}{'gold non-match':>16}",
+                f"  {'predicted match':<29}{tp:>12,.0f}{fp:>16,.0f}",
+                f"  {'predicted non-match':<29}{fn:>12,.0f}{tn:>16,.0f}"]
     return out
 
 

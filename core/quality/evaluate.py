@@ -12,6 +12,7 @@ in no stratum and no estimate can see it. The blocking rules' reach is reported 
 from __future__ import annotations
 
 from collections.abc import Hashable, Mapping, Sequence
+from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
@@ -22,32 +23,36 @@ from ..errors import DocketError
 from ..matching.decision_rule import predicted
 from ..ordering.queue_order import describe
 from ..ordering.sampling import sampling_note
-from ..records.sources import read_frame
-from ..reviewing.agreement import cohen_kappa, json_ready
-from ..reviewing.gold import gold_labels
-from ..storage import store
+from ..reviewing.agreement import json_ready
+from ..reviewing.gold import gold_labels, standing
 from ..storage.project_file import ProjectFile
 from ..storage.refit import audit_scores
 from . import estimates
-from .intervals import clopper_pearson
+from .machine_rater import machine_rater
+from .predictions_file import read_predictions
+from .quality_notes import design_notes
 
 DEFAULT_THRESHOLDS = (0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8, 0.9, 0.95, 0.99)
 WITHIN_CANDIDATES = ("recall is measured within the candidate pairs: true matches that the "
                      "blocking rules never paired are outside it and not counted")
-NAIVE_MARK = ("biased by the queue order: unweighted over every gold label, most of them chosen "
-              "because the model was unsure, so it describes the labelled pairs, not the "
-              "candidate pairs")
+NAIVE_QUEUE = ("biased: unweighted over every gold label, many of them chosen by the queue "
+               "because the model was unsure, so it describes the labelled pairs, not the "
+               "candidate pairs")
+NAIVE_WEIGHTS = ("biased: unweighted over the gold labels, all from the audit slice, whose "
+                 "strata were drawn at unequal rates (thin strata over-represented), so it "
+                 "describes the labelled pairs, not the candidate pairs")
+OPTIMISTIC = ("optimistic: the best of the table, chosen on the same labels that measure it; "
+              "the F1 a fresh sample would show at this threshold is likely lower")
 METHODS = {
-    "point": "Horvitz–Thompson ratio estimates over the audit slice's strata (weights N_h / m_h)",
-    "precision_recall": "Korn–Graubard interval from a stratified rescaling bootstrap (Wilson "
-                        "when the labelled pairs are self-weighting); see each interval's method",
-    "f1": "percentile interval of the stratified rescaling bootstrap",
+    "point": "within each stratum of the audit slice, the share of matches among its labelled "
+             "predicted matches and among its other labelled pairs, times the exact number of "
+             "candidate pairs of each kind there",
+    "precision_recall": "Korn–Graubard interval (Clopper–Pearson at the effective sample size) "
+                        "on the linearised variance, with an allowance for strata that show no "
+                        "error of a kind or no predicted match",
+    "f1": "the same linearised Korn–Graubard interval as precision and recall",
     "naive": "plain proportions with Wilson intervals over all gold labels: biased",
 }
-SCORE_COLUMNS = ("score", "probability")
-LABEL_COLUMNS = ("label", "predicted")
-TRUE_WORDS = {"match", "1", "true", "yes", "y", "t"}
-FALSE_WORDS = {"non-match", "nonmatch", "non_match", "0", "false", "no", "n", "f"}
 
 
 # -- the audit sample ---------------------------------------------------------------------------
@@ -103,18 +108,33 @@ def model_scores(project: ProjectFile) -> pd.Series:
     return pd.Series(score, index=frame["pair_id"].to_numpy())
 
 
+def _held(project: ProjectFile, gold: Mapping[int, int]) -> set[int]:
+    """Pairs with a standing hold and no gold label."""
+    return {pid for pid, e in standing(project.connection).items() if pid not in gold and
+            "hold" in (*e.reviewers.values(), *e.adjudicators.values())}
+
+
 def audit_sample(project: ProjectFile, scores: pd.Series | None = None) -> estimates.AuditSample:
     """The audit slice's standing gold labels with their strata and inclusion probabilities.
 
-    ``scores`` (by pair id) defaults to ``model_scores``. Audit pairs without a gold label (not
-    reviewed yet, on hold, in disagreement) count as missing at random within their stratum.
+    ``scores`` (by pair id) defaults to ``model_scores``; every candidate pair's score goes in
+    as the sample's ``population``, so predicted matches per stratum are counted, not
+    estimated. Audit pairs not reviewed yet or in disagreement count as missing at random
+    within their stratum; held ones are kept apart, for bounds.
     """
     scores = model_scores(project) if scores is None else scores
     rows = _audit_rows(project)
     gold = _gold_y(project)
-    return sample_from(scores.reindex(rows["pair_id"]).to_numpy(),
+    held = _held(project, gold)
+    base = sample_from(scores.reindex(rows["pair_id"]).to_numpy(),
                        [gold.get(int(p)) for p in rows["pair_id"]], rows["stratum"].to_numpy(),
                        rows["inclusion"].to_numpy(), _strata(project))
+    on_hold = rows[rows["pair_id"].isin(held)]
+    every = pd.read_sql_query("SELECT pair_id, stratum FROM pairs", project.connection)
+    every["score"] = scores.reindex(every["pair_id"]).to_numpy()
+    population = {int(h): g["score"].to_numpy() for h, g in every.groupby("stratum")}
+    return replace(base, held_score=scores.reindex(on_hold["pair_id"]).to_numpy(),
+                   held_stratum=on_hold["stratum"].to_numpy(), population=population)
 
 
 # -- the report ---------------------------------------------------------------------------------
@@ -125,38 +145,11 @@ def _thresholds(given: Sequence[float] | None, extra: float | None) -> list[floa
     return sorted({round(float(t), 12) for t in ts})
 
 
-def _naive(scores: np.ndarray, y: np.ndarray, t: float, confidence: float) -> dict[str, Any]:
+def _naive(scores: np.ndarray, y: np.ndarray, t: float, confidence: float,
+           mark: str) -> dict[str, Any]:
     d = estimates.naive_estimate(scores, y, t, confidence).to_dict()
-    d["note"] = NAIVE_MARK
+    d["note"] = mark
     return d
-
-
-def rare_error_notes(sample: estimates.AuditSample, threshold: float,
-                     confidence: float = 0.95) -> list[str]:
-    """Where a stratum shows no error of a kind, the interval cannot see the errors it hides.
-
-    A stratum whose labelled predicted matches hold no false positive (or whose labelled
-    matches hold no missed match) adds nothing to the variance, so with rare errors the
-    interval comes out too narrow; the note bounds how many such errors could hide there.
-    """
-    pred = sample.score >= threshold
-    kinds = (("false positive", "predicted matches", "precision", pred, sample.label == 0),
-             ("missed match", "matches", "recall", sample.label == 1, ~pred))
-    notes = []
-    for error, among, measure, inside, wrong in kinds:
-        hidden, where = 0.0, []
-        for h, m_h in sorted(sample.labelled_counts().items(), key=lambda kv: str(kv[0])):
-            big = sample.stratum_sizes[h]
-            in_h = (sample.stratum == h) & inside
-            k = int(in_h.sum())
-            if big > m_h and k and not (in_h & wrong).any():
-                where.append(h)
-                hidden += big * k / m_h * clopper_pearson(0, k, confidence)[1]
-        if where and hidden >= 1:
-            notes.append(f"no {error} among the labelled {among} of strata {where}: up to "
-                         f"{hidden:.0f} could hide there ({confidence:.0%} bound per stratum), "
-                         f"which the {measure} interval does not reflect")
-    return notes
 
 
 def _blocking(project: ProjectFile) -> dict[str, Any]:
@@ -173,8 +166,7 @@ def _check_target(name: str, value: float | None) -> None:
 
 def _report(project: ProjectFile, scores: pd.Series, threshold: float,
             thresholds: Sequence[float] | None, target_precision: float | None,
-            target_recall: float | None, confidence: float, n_boot: int,
-            seed: int) -> dict[str, Any]:
+            target_recall: float | None, confidence: float) -> dict[str, Any]:
     _check_target("precision", target_precision)
     _check_target("recall", target_recall)
     if target_precision is not None and target_recall is not None:
@@ -186,16 +178,17 @@ def _report(project: ProjectFile, scores: pd.Series, threshold: float,
                           "pairs); review some: every fifth pair of a reviewer's queue is "
                           "an audit pair")
     ts = _thresholds(thresholds, threshold)
-    table = estimates.threshold_table(sample, ts, confidence, n_boot, seed)
+    table = estimates.threshold_table(sample, ts, confidence)
     rows = [e.to_dict() for e in table]
     for row in rows:
-        parts = [row["note"], *rare_error_notes(sample, row["threshold"], confidence)]
-        row["note"] = "; ".join(p for p in parts if p)
+        row["note"] = "; ".join(design_notes(sample, row["threshold"], confidence))
     gold = _gold_y(project)
     g_ids = np.fromiter(gold, dtype=np.int64, count=len(gold))
     g_y = np.fromiter(gold.values(), dtype=np.int64, count=len(gold))
     g_s = scores.reindex(g_ids).to_numpy(dtype=float)
-    naive = [_naive(g_s, g_y, t, confidence) for t in ts]
+    audit_ids = set(_audit_rows(project)["pair_id"].tolist())
+    mark = NAIVE_WEIGHTS if set(gold) <= audit_ids else NAIVE_QUEUE
+    naive = [_naive(g_s, g_y, t, confidence, mark) for t in ts]
     at = ts.index(round(float(threshold), 12))
     defined = [r for r in rows if r["f1"]["value"] is not None]
     best = max(defined, key=lambda r: r["f1"]["value"]) if defined else None
@@ -207,26 +200,26 @@ def _report(project: ProjectFile, scores: pd.Series, threshold: float,
         suggested = {
             "target": which, "goal": goal, "threshold": t,
             "estimate": None if t is None else
-            estimates.estimate_at(sample, t, confidence, n_boot, seed).to_dict(),
+            estimates.estimate_at(sample, t, confidence).to_dict(),
             "note": (f"no threshold reaches estimated {which} {goal}" if t is None else
                      "chosen on the point estimates of this sample: read the interval at it "
                      "before relying on it")}
-    counts = sample.labelled_counts()
-    strata = [{"stratum": h, "pairs": v[0], "drawn": v[1], "labelled": int(counts.get(h, 0))}
-              for h, v in sorted(_strata(project).items())]
+    counts, held = sample.labelled_counts(), sample.held_counts()
+    strata = [{"stratum": h, "pairs": v[0], "drawn": v[1], "labelled": int(counts.get(h, 0)),
+               "held": int(held.get(h, 0))} for h, v in sorted(_strata(project).items())]
     return {
         "project": str(project.path),
         "mode": project.meta.get("mode"),
         "confidence": confidence,
         "threshold": float(threshold),
         "audit": {"drawn": int(drawn), "labelled": sample.n_labelled,
-                  "matches": int(sample.label.sum()), "strata": strata},
+                  "matches": int(sample.label.sum()), "held": sample.n_held, "strata": strata},
         "estimates": rows,
         "at_threshold": rows[at],
         "naive": naive,
         "naive_at_threshold": naive[at],
         "best_f1": None if best is None else {"threshold": best["threshold"],
-                                              "f1": best["f1"]["value"]},
+                                              "f1": best["f1"]["value"], "note": OPTIMISTIC},
         "suggested": suggested,
         "scope": {"recall_within": "candidate pairs", "note": WITHIN_CANDIDATES,
                   "blocking": _blocking(project)},
@@ -238,7 +231,7 @@ def _report(project: ProjectFile, scores: pd.Series, threshold: float,
 
 def evaluate(project: ProjectFile, thresholds: Sequence[float] | None = None,
              target_precision: float | None = None, target_recall: float | None = None,
-             confidence: float = 0.95, n_boot: int = 2000, seed: int = 0) -> dict[str, Any]:
+             confidence: float = 0.95) -> dict[str, Any]:
     """The project's model judged on the audit slice: a JSON-ready dict.
 
     Keys: ``estimates`` (design-based precision, recall and F1 per threshold, each interval
@@ -249,7 +242,7 @@ def evaluate(project: ProjectFile, thresholds: Sequence[float] | None = None,
     """
     scores = model_scores(project)
     out = _report(project, scores, project.threshold, thresholds, target_precision,
-                  target_recall, confidence, n_boot, seed)
+                  target_recall, confidence)
     one = bool(project.meta.get("one_to_one"))
     out["queue_order"] = describe(project.meta)
     out["model"] = {"ranker": project.meta.get("ranker"), "one_to_one": one,
@@ -260,117 +253,11 @@ def evaluate(project: ProjectFile, thresholds: Sequence[float] | None = None,
     return json_ready(out)
 
 
-# -- any matcher's output -----------------------------------------------------------------------
-def _flag(values: pd.Series, path: Path) -> np.ndarray:
-    text = values.map(lambda v: None if v is None else str(v).strip().lower())
-    bad = sorted({v for v in text if v not in TRUE_WORDS and v not in FALSE_WORDS}, key=str)
-    if bad:
-        raise DocketError(f"{path}: {len(bad)} label value(s) not understood: "
-                          f"{', '.join(map(str, bad[:5]))}; use match / non-match (or 1 / 0)")
-    return text.isin(TRUE_WORDS).to_numpy()
-
-
-def _numbers(values: pd.Series, column: str, path: Path) -> np.ndarray:
-    num = pd.to_numeric(values, errors="coerce")
-    bad = values[num.isna() | ~np.isfinite(num.fillna(0.0))]
-    if len(bad):
-        raise DocketError(f"{path}: column {column} needs a number on every row; row "
-                          f"{int(bad.index[0]) + 2} has {bad.iloc[0]!r}")
-    return num.to_numpy(dtype=float)
-
-
-def _known_ids(project: ProjectFile, side: str) -> set[str]:
-    table = "right_records" if side == "right" and project.link else "left_records"
-    key = project.meta["right_id_column" if table == "right_records" else "left_id_column"]
-    return {r for (r,) in project.connection.execute(f"SELECT {store.quote(key)} FROM {table}")}
-
-
-def read_predictions(project: ProjectFile, path: str | Path) -> tuple[pd.Series, dict[str, Any]]:
-    """Scores per candidate pair id from a matcher's file, and what was read.
-
-    The file (CSV, Parquet or JSONL) has left_id, right_id and a score (``score`` or
-    ``probability``) or a label (``label`` or ``predicted``: match / non-match, 1 / 0). A label
-    becomes score 1 or 0. Candidate pairs absent from the file get a score below every other:
-    a predicted non-match. Ids that name no record are an error; pairs of known records that
-    are not candidate pairs are counted and left out (no audit stratum holds them).
-    """
-    path = Path(path)
-    frame = read_frame(path)
-    if not {"left_id", "right_id"} <= set(frame.columns):
-        raise DocketError(f"{path}: needs columns left_id and right_id (found "
-                          f"{', '.join(frame.columns[:8])})")
-    kind = next((c for c in SCORE_COLUMNS if c in frame.columns), None)
-    label_col = next((c for c in LABEL_COLUMNS if c in frame.columns), None)
-    if kind is None and label_col is None:
-        raise DocketError(f"{path}: needs a score column ({' or '.join(SCORE_COLUMNS)}) or a "
-                          f"label column ({' or '.join(LABEL_COLUMNS)})")
-    for side in ("left", "right"):
-        ids = frame[f"{side}_id"]
-        if ids.isna().any():
-            row = int(np.flatnonzero(ids.isna().to_numpy())[0]) + 2
-            raise DocketError(f"{path}: row {row} has no {side}_id")
-        unknown = sorted(set(ids) - _known_ids(project, side))
-        if unknown:
-            more = "…" if len(unknown) > 5 else ""
-            raise DocketError(f"{path}: {len(unknown)} {side} id(s) name no record: "
-                              f"{', '.join(unknown[:5])}{more}")
-    if kind is not None:
-        score = _numbers(frame[kind], kind, path)
-    else:
-        kind = label_col
-        score = _flag(frame[label_col], path).astype(float)
-    pairs = pd.read_sql_query("SELECT pair_id, left_id, right_id FROM pairs", project.connection)
-    keyed = pairs.set_index(["left_id", "right_id"])["pair_id"]
-    a, b = frame["left_id"].to_numpy(), frame["right_id"].to_numpy()
-    found = keyed.reindex(pd.MultiIndex.from_arrays([a, b])).to_numpy(dtype=float)
-    if not project.link:  # one table: a pair may be written either way round
-        swapped = keyed.reindex(pd.MultiIndex.from_arrays([b, a])).to_numpy(dtype=float)
-        found = np.where(np.isnan(found), swapped, found)
-    inside = ~np.isnan(found)
-    ids = found[inside].astype(np.int64)
-    dupes = pd.Series(ids).duplicated()
-    if dupes.any():
-        first = int(ids[dupes.to_numpy()][0])
-        raise DocketError(f"{path}: pair {first} appears more than once; give one prediction "
-                          "per pair")
-    given = pd.Series(score[inside], index=ids)
-    floor = (min(0.0, float(score.min())) if score.size else 0.0) - 1.0
-    full = given.reindex(pairs["pair_id"].to_numpy()).fillna(floor)
-    info = {"file": str(path), "column": kind, "rows": len(frame),
-            "candidate_pairs_given": int(inside.sum()),
-            "outside_candidates": int((~inside).sum()),
-            "absent_count_as_non_match": int(len(pairs) - inside.sum()),
-            "labels_only": kind in LABEL_COLUMNS,
-            "scores_in_unit_interval": bool(score.size == 0 or
-                                            (score.min() >= 0 and score.max() <= 1))}
-    return full, info
-
-
-def machine_rater(project: ProjectFile, predicted_match: pd.Series) -> dict[str, Any]:
-    """Cohen's kappa of a matcher's labels against the gold labels: a machine rater.
-
-    ``predicted_match`` is a bool per pair id. Rows of ``table`` are the machine rater, columns
-    the gold labels, both in the order match, non-match.
-    """
-    gold = _gold_y(project)
-    ids = list(gold)
-    machine = predicted_match.reindex(ids).fillna(False).to_numpy(dtype=bool)
-    truth = np.array([gold[i] == 1 for i in ids], dtype=bool)
-    table = [[int(np.sum(machine & truth)), int(np.sum(machine & ~truth))],
-             [int(np.sum(~machine & truth)), int(np.sum(~machine & ~truth))]]
-    k = cohen_kappa(table, ("match", "non-match"))
-    return {"n": k.n, "kappa": k.kappa, "se": k.se, "ci_low": k.ci_low, "ci_high": k.ci_high,
-            "band": k.band, "observed_agreement": k.observed, "chance_agreement": k.expected,
-            "table": table, "rows": "machine rater (match, non-match)",
-            "columns": "gold label (match, non-match)",
-            "se_method": "Fleiss, Cohen & Everitt (1969) large-sample standard error"}
-
-
 def evaluate_predictions(project: ProjectFile, path: str | Path, threshold: float | None = None,
                          thresholds: Sequence[float] | None = None,
                          target_precision: float | None = None,
-                         target_recall: float | None = None, confidence: float = 0.95,
-                         n_boot: int = 2000, seed: int = 0) -> dict[str, Any]:
+                         target_recall: float | None = None,
+                         confidence: float = 0.95) -> dict[str, Any]:
     """A matcher's output judged like the model (see ``evaluate``), plus its kappa.
 
     ``threshold`` is where the file's score becomes a predicted match (default: the project's
@@ -388,7 +275,16 @@ def evaluate_predictions(project: ProjectFile, path: str | Path, threshold: floa
         given = scores[scores > scores.min()] if scores.nunique() > 1 else scores
         thresholds = sorted({float(q) for q in np.quantile(given, np.linspace(0.1, 0.9, 9))})
     out = _report(project, scores, float(threshold), thresholds, target_precision,
-                  target_recall, confidence, n_boot, seed)
+                  target_recall, confidence)
+    outside = info.pop("_outside_scores")
+    k = int(np.sum(outside >= float(threshold)))
+    info["outside_predicted_matches"] = k
+    at = out["at_threshold"]
+    tp, pp = at["true_positives"], at["predicted_positives"]
+    info["scope"] = (f"precision and recall speak for the candidate pairs only; {k:,} of the "
+                     "file's predicted matches name pairs outside them and are not evaluated"
+                     + (f": over all its predicted matches precision could be as low as "
+                        f"{tp / (pp + k):.3f}" if k and pp + k > 0 else ""))
     out["predictions"] = info
     out["machine_rater"] = machine_rater(project, scores >= float(threshold))
     out["model"] = {"ranker": "predictions", "one_to_one": False,

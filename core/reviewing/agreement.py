@@ -17,7 +17,6 @@ from __future__ import annotations
 import math
 from collections.abc import Hashable, Mapping, Sequence
 from dataclasses import asdict, dataclass
-from statistics import NormalDist
 from typing import Any
 
 import numpy as np
@@ -27,7 +26,6 @@ MATCH, NON_MATCH, HOLD = "match", "non-match", "hold"
 DECIDED: tuple[str, ...] = (MATCH, NON_MATCH)
 WITH_HOLD: tuple[str, ...] = (MATCH, NON_MATCH, HOLD)
 UNDEFINED = "undefined"
-Z_95 = NormalDist().inv_cdf(0.975)  # 1.959964...
 
 _NAN = math.nan
 _EPS = 1e-12  # how close to 1 chance agreement may come before kappa counts as undefined
@@ -82,10 +80,8 @@ def confusion(a: Sequence[str], b: Sequence[str], categories: Sequence[str]) -> 
     return np.bincount(rows * k + cols, minlength=k * k).reshape(k, k)
 
 
-_BANDS: tuple[tuple[float, str], ...] = (
-    (0.20, "Slight"), (0.40, "Fair"), (0.60, "Moderate"), (0.80, "Substantial"),
-    (1.00, "Almost perfect"),
-)  # fmt: skip
+_BANDS: tuple[tuple[float, str], ...] = ((0.20, "Slight"), (0.40, "Fair"), (0.60, "Moderate"),
+                                         (0.80, "Substantial"), (1.00, "Almost perfect"))
 
 
 def landis_koch(kappa: float | None) -> str:
@@ -109,15 +105,15 @@ def landis_koch(kappa: float | None) -> str:
     raise ValueError(f"kappa cannot exceed 1, got {kappa}")
 
 
-
 @dataclass(frozen=True)
 class CohenResult(_ToDict):
     """Cohen's (1960) kappa for two reviewers, from their k x k table of counts.
 
     ``se`` is the large-sample non-null asymptotic standard error of Fleiss, Cohen & Everitt
-    (1969), the "ASE" of SAS and the SE of Stata's kapci; the confidence interval is
-    kappa +/- 1.959964 * se (not clipped). ``se0`` is the standard error under the null
-    hypothesis kappa = 0, and ``z`` = kappa / se0 (NaN when se0 is 0, which happens when one
+    (1969), the "ASE" of SAS and the SE of Stata's kapci. The 95 % interval is not built on it
+    (it covers too little on small or lopsided samples): ``ci_method`` names the one used, see
+    :mod:`agreement_intervals`; it never leaves [-1, 1]. ``se0`` is the standard error under the
+    null hypothesis kappa = 0, and ``z`` = kappa / se0 (NaN when se0 is 0, which happens when one
     reviewer used a single category). NaN fields mark an undefined kappa: see the module notes.
     """
 
@@ -133,6 +129,9 @@ class CohenResult(_ToDict):
     ci_high: float
     z: float
     band: str
+    ci_method: str = ""
+    wald_low: float = _NAN  # kappa -/+ 1.959964 se: the large-sample interval SAS and Stata print
+    wald_high: float = _NAN
 
 
 def cohen_kappa(table: Any, categories: Sequence[str] | None = None) -> CohenResult:
@@ -169,6 +168,8 @@ def cohen_kappa(table: Any, categories: Sequence[str] | None = None) -> CohenRes
     se = math.sqrt(var) if var * n > _EPS else 0.0
     se0 = math.sqrt(var0) if var0 * n > _EPS else 0.0
     z = kappa / se0 if se0 > 0 else _NAN
+    from .agreement_intervals import kappa_interval
+    low, high, how = kappa_interval(counts, kappa)
     return CohenResult(
         n=n,
         categories=names,
@@ -178,22 +179,22 @@ def cohen_kappa(table: Any, categories: Sequence[str] | None = None) -> CohenRes
         kappa=kappa,
         se=se,
         se0=se0,
-        ci_low=kappa - Z_95 * se,
-        ci_high=kappa + Z_95 * se,
+        ci_low=_NAN if low is None else low,
+        ci_high=_NAN if high is None else high,
         z=z,
         band=landis_koch(kappa),
+        ci_method=how,
+        wald_low=kappa - 1.959963984540054 * se,
+        wald_high=kappa + 1.959963984540054 * se,
     )
-
 
 
 @dataclass(frozen=True)
 class PabakResult(_ToDict):
-    """Prevalence- and bias-adjusted kappa (Byrt, Bishop & Carlin 1993).
+    """Prevalence- and bias-adjusted kappa (Byrt, Bishop & Carlin 1993): (k p_o - 1)/(k - 1).
 
-    For k categories pabak = (k p_o - 1)/(k - 1), i.e. 2 p_o - 1 for a 2 x 2 table. For a 2 x 2
-    table [[a, b], [c, d]] of n units, prevalence_index = (a - d)/n and bias_index = (b - c)/n,
-    both signed; for other sizes they are None.
-    """
+    For a 2 x 2 table [[a, b], [c, d]] of n units, prevalence_index = (a - d)/n and bias_index
+    = (b - c)/n, both signed; for other sizes they are None."""
 
     n: int
     k: int
@@ -215,7 +216,6 @@ def pabak(table: Any) -> PabakResult:
     if n == 0:
         return PabakResult(n, k, p_o, value, _NAN, _NAN)
     return PabakResult(n, k, p_o, value, (a - d) / n, (b - c) / n)
-
 
 
 @dataclass(frozen=True)

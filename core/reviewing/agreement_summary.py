@@ -11,6 +11,8 @@ from dataclasses import dataclass
 from itertools import combinations
 from typing import Any
 
+import numpy as np
+
 from .agreement import (
     _NAN,
     DECIDED,
@@ -26,6 +28,13 @@ from .agreement import (
     krippendorff_alpha_nominal,
     pabak,
     rating_counts,
+)
+from .agreement_intervals import (
+    MIN_PAIRS,
+    alpha_from_counts,
+    bootstrap_interval,
+    fleiss_from_counts,
+    pabak_interval,
 )
 
 
@@ -50,6 +59,8 @@ class PairwiseResult(_ToDict):
     pabak: PabakResult
     hold_rate_a: float
     hold_rate_b: float
+    pabak_low: float | None = None
+    pabak_high: float | None = None
 
 
 @dataclass(frozen=True)
@@ -73,6 +84,10 @@ class OverallResult(_ToDict):
     fleiss_raters: int
     krippendorff_alpha: float
     alpha_units: int
+    fleiss_low: float | None = None  # percentile bootstrap over pairs, clipped to [-1, 1]
+    fleiss_high: float | None = None
+    alpha_low: float | None = None
+    alpha_high: float | None = None
 
 
 def _check_labels(labels: Mapping[Any, Mapping[Any, str]]) -> None:
@@ -108,6 +123,7 @@ def pairwise_agreement(
             used = [u for u in common if given_a[u] != HOLD and given_b[u] != HOLD]
         table = confusion([given_a[u] for u in used], [given_b[u] for u in used], categories)
         cohen = cohen_kappa(table, categories)
+        agree_low, agree_high = pabak_interval(int(np.trace(table)), len(used), len(categories))
         results.append(
             PairwiseResult(
                 reviewer_a=a,
@@ -122,6 +138,8 @@ def pairwise_agreement(
                 pabak=pabak(table),
                 hold_rate_a=sum(given_a[u] == HOLD for u in common) / len(common),
                 hold_rate_b=sum(given_b[u] == HOLD for u in common) / len(common),
+                pabak_low=agree_low,
+                pabak_high=agree_high,
             )
         )
     return results
@@ -144,11 +162,18 @@ def overall_agreement(
                 per_unit.setdefault(unit, []).append(label)
     sizes = Counter(len(v) for v in per_unit.values() if len(v) >= 2)
     kappa, band, modal, used = _NAN, UNDEFINED, 0, 0
+    f_low = f_high = a_low = a_high = None
     if sizes:
         modal = max(sizes, key=lambda size: (sizes[size], size))
         chosen = [v for v in per_unit.values() if len(v) == modal]
-        result = fleiss(rating_counts(chosen, categories))
+        counts = rating_counts(chosen, categories)
+        result = fleiss(counts)
         kappa, band, used = result.kappa, result.band, len(chosen)
+        if used >= MIN_PAIRS:
+            f_low, f_high = bootstrap_interval(counts, fleiss_from_counts)
+        pairable = rating_counts([v for v in per_unit.values() if len(v) >= 2], categories)
+        if len(pairable) >= MIN_PAIRS:
+            a_low, a_high = bootstrap_interval(pairable.astype(float), alpha_from_counts)
     data = [[counted(given.get(unit)) for unit in per_unit] for given in labels.values()]
     return OverallResult(
         include_hold=include_hold,
@@ -161,4 +186,8 @@ def overall_agreement(
         fleiss_raters=modal,
         krippendorff_alpha=krippendorff_alpha_nominal(data),
         alpha_units=sum(len(v) >= 2 for v in per_unit.values()),
+        fleiss_low=f_low,
+        fleiss_high=f_high,
+        alpha_low=a_low,
+        alpha_high=a_high,
     )

@@ -15,15 +15,16 @@ from ..errors import DocketError
 from ..storage import roles
 from ..storage.project_file import ProjectFile
 from ..types import ROLES
-from .labels import agreement_label
+from .agreement_intervals import MIN_PAIRS
 
 SE_KIND = ("Fleiss, Cohen & Everitt (1969) large-sample non-null standard error (SAS 'ASE', "
            "Stata kapci); se0 is the standard error under kappa = 0")
-CI_KIND = "kappa ± 1.959964 × se, not clipped to [-1, 1]"
+CI_KIND = ("two categories: goodness-of-fit interval (Donner & Eliasziw 1992); with holds as "
+           "a third category: percentile bootstrap over pairs; never outside [-1, 1]. "
+           "wald_low / wald_high: kappa ± 1.959964 × se, as SAS and Stata print it")
 BAND_CONVENTION = ("Landis & Koch (1977), edges closed upper-inclusively: kappa < 0 Poor; "
                    "0 ≤ kappa ≤ 0.20 Slight; 0.20 < kappa ≤ 0.40 Fair; 0.40 < kappa ≤ 0.60 "
                    "Moderate; 0.60 < kappa ≤ 0.80 Substantial; 0.80 < kappa ≤ 1 Almost perfect")
-DS_MAX_ITER = 1000
 HOLD_CONVENTION = {
     False: "kappa over match / non-match on pairs both reviewers decided; a hold counts as no "
            "rating, and each reviewer's hold rate on the pairs in common is reported beside it",
@@ -137,49 +138,26 @@ def _pair_entry(r: Any) -> dict[str, Any]:
         "reviewer_a": r.reviewer_a, "reviewer_b": r.reviewer_b, "n_common": r.n_common,
         "n": r.n, "observed": c.observed, "expected": c.expected, "kappa": c.kappa,
         "se": c.se, "se0": c.se0, "z": c.z, "ci_low": c.ci_low, "ci_high": c.ci_high,
+        "ci_method": c.ci_method, "wald_low": c.wald_low, "wald_high": c.wald_high,
         "band": c.band, "pabak": pb.pabak, "prevalence_index": pb.prevalence_index,
-        "bias_index": pb.bias_index,
+        "bias_index": pb.bias_index, "pabak_low": r.pabak_low, "pabak_high": r.pabak_high,
+        "too_few": r.n < MIN_PAIRS,
         "confusion": {"rows": r.reviewer_a, "columns": r.reviewer_b,
                       "categories": list(r.categories), "table": r.table},
         "hold_rate_a": r.hold_rate_a, "hold_rate_b": r.hold_rate_b,
     }
 
 
-def _dawid_skene(labels: dict[str, dict[int, str]], categories: tuple[str, ...]
-                 ) -> dict[str, Any] | None:
-    from .dawid_skene import dawid_skene
+def _rates(labels: dict[str, dict[int, str]], include_hold: bool) -> dict[str, Any] | None:
+    from dataclasses import asdict
 
-    ratings = [(pid, name, label) for name, given in labels.items()
-               for pid, label in given.items() if label in categories]
-    if not ratings:
+    from .reviewer_rates import reviewer_rates
+    fit = reviewer_rates(labels, include_hold)
+    if fit is None:
         return None
-    # Mostly single-rated pairs make EM slow to settle; the default 200 rounds can fall short.
-    fit = dawid_skene(ratings, categories, max_iter=DS_MAX_ITER)
-    votes: dict[int, list[str]] = {}
-    for pid, _, label in ratings:
-        votes.setdefault(pid, []).append(label)
-    differs, ties = [], 0
-    for pid in sorted(votes):
-        major = agreement_label(votes[pid])
-        if major is None:
-            ties += 1
-        elif fit.labels[pid] != major:
-            differs.append(pid)
-    m, nm = categories.index("match"), categories.index("non-match")
-    return {
-        "categories": list(categories), "iterations": fit.iterations,
-        "converged": fit.converged, "log_likelihood": fit.log_likelihood,
-        "priors": fit.priors, "units": len(votes),
-        "units_rated_twice": sum(len(v) >= 2 for v in votes.values()),
-        "reviewers": {name: {"sensitivity": conf[m][m], "specificity": conf[nm][nm],
-                             "confusion": conf}
-                      for name, conf in fit.confusion.items()},
-        "differs_from_majority": len(differs), "differs_pairs": differs,
-        "no_majority": ties,
-        "posterior_matches": sum(v == "match" for v in fit.labels.values()),
-        "pairs": {pid: {"label": fit.labels[pid], "p_match": round(fit.posteriors[pid]["match"], 6)}
-                  for pid in sorted(votes)},
-    }
+    out = asdict(fit)
+    out["posterior"] = {int(k): round(v, 6) for k, v in fit.posterior.items()}
+    return out
 
 
 def agreement_report(project: ProjectFile, include_hold: bool = False) -> dict[str, Any]:
@@ -188,11 +166,12 @@ def agreement_report(project: ProjectFile, include_hold: bool = False) -> dict[s
     ``reviewer_pairs``: Cohen's kappa, its SE and 95 % CI, PABAK with the prevalence and bias
     indices, the confusion matrix (rows reviewer_a) and hold rates, for every two reviewers
     with pairs in common. ``overall``: Fleiss' kappa on the pairs with the modal number of
-    ratings, and Krippendorff's alpha (nominal) on all pairs. ``dawid_skene``: each reviewer's
-    sensitivity P(says match | match) and specificity P(says non-match | non-match) from the
-    fitted confusion matrices (with hold included, the latent classes include hold too), and
-    how many pairs' most probable class differs from the reviewers' strict majority; its
-    ``pairs`` holds each rated pair's most probable class and posterior P(match).
+    ratings, and Krippendorff's alpha (nominal) on all pairs, each with a bootstrap interval.
+    ``dawid_skene`` (``core.reviewer_rates``): each reviewer's sensitivity P(says match |
+    match) and specificity P(says non-match | non-match) with bootstrap intervals, only where
+    the model is identified (else ``identified`` false and ``reason``); with hold included,
+    hold is a third response of the two classes. Figures resting on fewer than ``min_pairs``
+    pairs are shown as "too few pairs to say".
     """
     from .agreement import DECIDED, WITH_HOLD, json_ready
     from .agreement_summary import overall_agreement, pairwise_agreement
@@ -214,7 +193,8 @@ def agreement_report(project: ProjectFile, include_hold: bool = False) -> dict[s
                       for name, given in labels.items()},
         "reviewer_pairs": [_pair_entry(r) for r in pairs],
         "overall": overall.to_dict(),
-        "dawid_skene": _dawid_skene(labels, categories),
+        "dawid_skene": _rates(labels, include_hold),
+        "min_pairs": MIN_PAIRS,
     })
 
 

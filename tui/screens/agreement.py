@@ -8,7 +8,7 @@ pair with both labels and notes. With ``--blind`` the reviewers are "reviewer A"
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING, Any, ClassVar
+from typing import Any, ClassVar
 
 from rich.text import Text
 from textual.app import ComposeResult
@@ -24,90 +24,10 @@ from .. import literal
 from ..diff import PLAIN, Palette
 from ..widgets.key_bar import KeyBar
 from ..widgets.reviews import blind_aliases, label_style
+from .agreement_text import NAME_WIDTH, cell_text, detail_text, overall_text
 from .pair_detail import PairDetailScreen
 from .team_base import TeamScreen
 from .team_help import AGREEMENT
-
-if TYPE_CHECKING:
-    pass
-
-NAME_WIDTH = 18
-
-
-def _num(value: float | None, digits: int = 2) -> str:
-    return "—" if value is None else f"{value:.{digits}f}"
-
-
-def _pct(value: float | None) -> str:
-    return "—" if value is None else f"{100 * value:.1f} %"
-
-
-def cell_text(entry: dict[str, Any] | None, palette: Palette = PLAIN) -> Text:
-    """One matrix cell: ``0.62 [0.48, 0.76]`` over ``n 40 · Substantial``."""
-    if entry is None:
-        return Text("no pairs\nin common", palette.muted)
-    if entry["kappa"] is None:
-        top = Text("kappa undefined", palette.muted)
-    else:
-        top = Text(f"{entry['kappa']:.2f} ", palette.heading)
-        top.append(f"[{_num(entry['ci_low'])}, {_num(entry['ci_high'])}]")
-    top.append(f"\nn {entry['n']:,} · {entry['band']}", palette.muted)
-    return top
-
-
-def detail_text(entry: dict[str, Any], shown: dict[str, str], palette: Palette = PLAIN
-                ) -> Text:
-    """Every figure for the highlighted reviewer pair; names as ``shown`` maps them."""
-    p = palette
-    a = shown.get(entry["reviewer_a"], entry["reviewer_a"])
-    b = shown.get(entry["reviewer_b"], entry["reviewer_b"])
-    text = literal.one_line(a, NAME_WIDTH, p.escape)
-    text.append(" × ")
-    text.append_text(literal.one_line(b, NAME_WIDTH, p.escape))
-    text.append(f": {entry['n']:,} pairs used of {entry['n_common']:,} in common\n", p.muted)
-    text.append("Cohen's kappa ", p.muted)
-    text.append(_num(entry["kappa"], 3), p.heading)
-    text.append(f"  SE {_num(entry['se'], 3)}  95 % CI [{_num(entry['ci_low'], 3)}, "
-                f"{_num(entry['ci_high'], 3)}]  {entry['band']}\n")
-    text.append(f"observed {_num(entry['observed'], 3)}  chance {_num(entry['expected'], 3)}  "
-                f"PABAK {_num(entry['pabak'], 3)}  prevalence index "
-                f"{_num(entry['prevalence_index'], 3)}  bias index "
-                f"{_num(entry['bias_index'], 3)}\n", p.muted)
-    text.append("holds on the pairs in common: ", p.muted)
-    text.append_text(literal.one_line(a, NAME_WIDTH, p.escape))
-    text.append(f" {_pct(entry['hold_rate_a'])}, ", p.muted)
-    text.append_text(literal.one_line(b, NAME_WIDTH, p.escape))
-    text.append(f" {_pct(entry['hold_rate_b'])} · Enter lists their disagreements", p.muted)
-    return text
-
-
-def overall_text(report: dict[str, Any], shown: dict[str, str],
-                 palette: Palette = PLAIN) -> Text:
-    p = palette
-    o = report["overall"]
-    text = Text("all reviewers  ", p.muted)
-    if o["fleiss_units"]:
-        text.append(f"Fleiss' kappa {_num(o['fleiss_kappa'], 3)} ({o['fleiss_band']}) on "
-                    f"{o['fleiss_units']:,} pairs with {o['fleiss_raters']} ratings each")
-    else:
-        text.append("Fleiss' kappa — (no pair has two ratings yet)")
-    text.append(f" · Krippendorff's alpha (nominal) {_num(o['krippendorff_alpha'], 3)} on "
-                f"{o['alpha_units']:,} pairs\n")
-    ds = report.get("dawid_skene")
-    if ds:
-        text.append("Dawid–Skene  ", p.muted)
-        parts = []
-        for name, v in sorted(ds["reviewers"].items(), key=lambda kv: shown.get(kv[0], kv[0])):
-            part = literal.one_line(shown.get(name, name), NAME_WIDTH, p.escape)
-            part.append(f" sensitivity {_num(v['sensitivity'])}, specificity "
-                        f"{_num(v['specificity'])}")
-            parts.append(part)
-        text.append_text(Text("; ").join(parts))
-        text.append("\n")
-    c = report["conventions"]
-    text.append(f"{c['holds']}.\nSE: {c['se']}. CI: {c['ci']}.\nBands: {c['bands']}.",
-                p.muted)
-    return text
 
 
 class AgreementScreen(TeamScreen):

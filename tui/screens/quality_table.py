@@ -14,6 +14,7 @@ from textual.widgets import DataTable
 from docket.core.quality.evaluate import DEFAULT_THRESHOLDS
 
 from ..diff import PLAIN, Palette
+from ..figures import bounds
 
 NARROW_BELOW = 110  # screen widths below this get the narrow threshold table
 WIDE_LABELS = ("", "threshold", "precision [95 % CI]", "recall [95 % CI]", "F1 [95 % CI]",
@@ -76,17 +77,21 @@ def notes_text(report: dict[str, Any], palette: Palette = PLAIN) -> Text:
     p = palette
     at, naive = report["at_threshold"], report["naive_at_threshold"]
     text = Text(f"* the project's decision threshold, {report['threshold']:g}. Intervals: "
-                f"precision and recall {at['precision']['method']}; F1 {at['f1']['method']}. "
-                f"Predicted: estimated matches among {at['n_pairs']:,} candidate pairs.\n",
-                p.muted)
+                f"{at['precision']['method']} for precision, recall and F1. Predicted: "
+                f"matches predicted among {at['n_pairs']:,} candidate pairs.\n", p.muted)
+    if at.get("held"):
+        text.append(f"{at['held']:,} held audit pairs, all wrong … all right: precision "
+                    f"{bounds(at['precision_bounds'])}, recall {bounds(at['recall_bounds'])}, "
+                    f"F1 {bounds(at['f1_bounds'])}: these bounds are what the labels vouch "
+                    "for; adjudicate the holds to narrow them\n", p.heading)
     s, best = report["suggested"], report["best_f1"]
     if s is not None and s["threshold"] is not None:
         text.append(f"suggested threshold {s['threshold']:.4g} for {s['target']} ≥ "
                     f"{s['goal']:g} ({s['note']})\n")
     elif best is not None:
         text.append(f"highest estimated F1 in the table: {best['f1']:.3f} at threshold "
-                    f"{best['threshold']:g} (docket evaluate --target-precision P or "
-                    "--target-recall R suggests one for a goal)\n")
+                    f"{best['threshold']:g}, {best['note']} (docket evaluate "
+                    "--target-precision P or --target-recall R suggests one for a goal)\n")
     text.append("naive column: ", p.heading)
     text.append(f"precision / recall {naive['note']}; their Wilson intervals are in "
                 "docket evaluate --json.\n", p.muted)

@@ -1,0 +1,104 @@
+"""Reading a matcher's output file: scores per candidate pair, and what was read."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+from ..errors import DocketError
+from ..records.sources import read_frame
+from ..storage import store
+from ..storage.project_file import ProjectFile
+
+SCORE_COLUMNS = ("score", "probability")
+LABEL_COLUMNS = ("label", "predicted")
+TRUE_WORDS = {"match", "1", "true", "yes", "y", "t"}
+FALSE_WORDS = {"non-match", "nonmatch", "non_match", "0", "false", "no", "n", "f"}
+
+
+def _flag(values: pd.Series, path: Path) -> np.ndarray:
+    text = values.map(lambda v: None if v is None else str(v).strip().lower())
+    bad = sorted({v for v in text if v not in TRUE_WORDS and v not in FALSE_WORDS}, key=str)
+    if bad:
+        raise DocketError(f"{path}: {len(bad)} label value(s) not understood: "
+                          f"{', '.join(map(str, bad[:5]))}; use match / non-match (or 1 / 0)")
+    return text.isin(TRUE_WORDS).to_numpy()
+
+
+def _numbers(values: pd.Series, column: str, path: Path) -> np.ndarray:
+    num = pd.to_numeric(values, errors="coerce")
+    bad = values[num.isna() | ~np.isfinite(num.fillna(0.0))]
+    if len(bad):
+        raise DocketError(f"{path}: column {column} needs a number on every row; row "
+                          f"{int(bad.index[0]) + 2} has {bad.iloc[0]!r}")
+    return num.to_numpy(dtype=float)
+
+
+def _known_ids(project: ProjectFile, side: str) -> set[str]:
+    table = "right_records" if side == "right" and project.link else "left_records"
+    key = project.meta["right_id_column" if table == "right_records" else "left_id_column"]
+    return {r for (r,) in project.connection.execute(f"SELECT {store.quote(key)} FROM {table}")}
+
+
+def read_predictions(project: ProjectFile, path: str | Path) -> tuple[pd.Series, dict[str, Any]]:
+    """Scores per candidate pair id from a matcher's file, and what was read.
+
+    The file (CSV, Parquet or JSONL) has left_id, right_id and a score (``score`` or
+    ``probability``) or a label (``label`` or ``predicted``: match / non-match, 1 / 0). A label
+    becomes score 1 or 0. Candidate pairs absent from the file get a score below every other:
+    a predicted non-match. Ids that name no record are an error; pairs of known records that
+    are not candidate pairs are counted and left out (no audit stratum holds them).
+    """
+    path = Path(path)
+    frame = read_frame(path)
+    if not {"left_id", "right_id"} <= set(frame.columns):
+        raise DocketError(f"{path}: needs columns left_id and right_id (found "
+                          f"{', '.join(frame.columns[:8])})")
+    kind = next((c for c in SCORE_COLUMNS if c in frame.columns), None)
+    label_col = next((c for c in LABEL_COLUMNS if c in frame.columns), None)
+    if kind is None and label_col is None:
+        raise DocketError(f"{path}: needs a score column ({' or '.join(SCORE_COLUMNS)}) or a "
+                          f"label column ({' or '.join(LABEL_COLUMNS)})")
+    for side in ("left", "right"):
+        ids = frame[f"{side}_id"]
+        if ids.isna().any():
+            row = int(np.flatnonzero(ids.isna().to_numpy())[0]) + 2
+            raise DocketError(f"{path}: row {row} has no {side}_id")
+        unknown = sorted(set(ids) - _known_ids(project, side))
+        if unknown:
+            more = "…" if len(unknown) > 5 else ""
+            raise DocketError(f"{path}: {len(unknown)} {side} id(s) name no record: "
+                              f"{', '.join(unknown[:5])}{more}")
+    if kind is not None:
+        score = _numbers(frame[kind], kind, path)
+    else:
+        kind = label_col
+        score = _flag(frame[label_col], path).astype(float)
+    pairs = pd.read_sql_query("SELECT pair_id, left_id, right_id FROM pairs", project.connection)
+    keyed = pairs.set_index(["left_id", "right_id"])["pair_id"]
+    a, b = frame["left_id"].to_numpy(), frame["right_id"].to_numpy()
+    found = keyed.reindex(pd.MultiIndex.from_arrays([a, b])).to_numpy(dtype=float)
+    if not project.link:  # one table: a pair may be written either way round
+        swapped = keyed.reindex(pd.MultiIndex.from_arrays([b, a])).to_numpy(dtype=float)
+        found = np.where(np.isnan(found), swapped, found)
+    inside = ~np.isnan(found)
+    ids = found[inside].astype(np.int64)
+    dupes = pd.Series(ids).duplicated()
+    if dupes.any():
+        first = int(ids[dupes.to_numpy()][0])
+        raise DocketError(f"{path}: pair {first} appears more than once; give one prediction "
+                          "per pair")
+    given = pd.Series(score[inside], index=ids)
+    floor = (min(0.0, float(score.min())) if score.size else 0.0) - 1.0
+    full = given.reindex(pairs["pair_id"].to_numpy()).fillna(floor)
+    info = {"file": str(path), "column": kind, "rows": len(frame),
+            "candidate_pairs_given": int(inside.sum()),
+            "outside_candidates": int((~inside).sum()),
+            "absent_count_as_non_match": int(len(pairs) - inside.sum()),
+            "labels_only": kind in LABEL_COLUMNS, "_outside_scores": score[~inside],
+            "scores_in_unit_interval": bool(score.size == 0 or
+                                            (score.min() >= 0 and score.max() <= 1))}
+    return full, info

@@ -1,0 +1,59 @@
+"""What to keep in mind when reading an estimate from the audit slice: the notes of each row.
+
+Each note names the strata it speaks of and how many candidate pairs are at stake, so that a
+reader can tell a figure resting on the labels from one resting on an allowance.
+"""
+
+from __future__ import annotations
+
+from .audit_sample import AuditSample
+from .intervals import clopper_pearson
+
+
+def _strata(keys: list) -> str:
+    return ", ".join(str(k) for k in sorted(keys, key=str))
+
+
+def design_notes(sample: AuditSample, threshold: float, confidence: float = 0.95) -> list[str]:
+    notes = []
+    labelled = sample.labelled_counts()
+    missing = [h for h, n in sample.stratum_sizes.items() if n and h not in labelled]
+    if missing:
+        left_out = sum(sample.stratum_sizes[h] for h in missing)
+        notes.append(f"strata {_strata(missing)} ({left_out:,} pairs) have no labels and are "
+                     "left out")
+    held = sample.held_counts()
+    drawn = sum(sample.drawn[h] for h in labelled)
+    waiting = drawn - sample.n_labelled - sum(held.get(h, 0) for h in labelled)
+    if waiting > 0:
+        notes.append(f"{sample.n_labelled:,} of {drawn:,} drawn audit pairs labelled; "
+                     f"{waiting:,} not reviewed yet (or in disagreement) are taken as missing "
+                     "at random within their stratum")
+    if held:
+        per = ", ".join(f"{h}: {k}" for h, k in sorted(held.items(), key=lambda kv: str(kv[0])))
+        notes.append(f"{sample.n_held:,} audit pairs are held (per stratum {per}): held pairs "
+                     "are the hard ones, so the bounds count them all wrong and all right; "
+                     "adjudicate them to narrow the bounds")
+    single = [h for h, m in labelled.items() if m == 1 and sample.stratum_sizes[h] > 1]
+    if single:
+        notes.append(f"strata {_strata(single)} have one label each: their variance is not "
+                     "estimated")
+    counts = sample.predicted_counts(threshold)
+    pred = sample.score >= threshold
+    if counts is not None:
+        unseen = [h for h in labelled if counts.get(h, 0) and
+                  not (pred & (sample.stratum == h)).any()]
+        if unseen:
+            k = sum(counts[h] for h in unseen)
+            notes.append(f"{k:,} predicted matches in strata {_strata(unseen)} have no labelled "
+                         "pair: they count at the precision of the other strata, with the widest "
+                         "variance")
+    no_match = [h for h, m in labelled.items() if sample.stratum_sizes[h] > m
+                and not sample.label[sample.stratum == h].any()]
+    if no_match:
+        hidden = sum(sample.stratum_sizes[h] * clopper_pearson(0, labelled[h], confidence)[1]
+                     for h in no_match)
+        notes.append(f"no labelled match in strata {_strata(no_match)}: their matches count as "
+                     f"0, though up to {hidden:,.0f} could hide there ({confidence:.0%} bound per "
+                     "stratum), which the recall interval does not reflect")
+    return notes

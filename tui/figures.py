@@ -1,0 +1,51 @@
+"""How a figure is written, the same in the CLI and on the screens: numbers, shares, intervals.
+
+Undefined values (None) are a dash; a figure resting on too few pairs says so instead of a
+number, with the count beside it.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from typing import Any
+
+DASH = "—"
+TOO_FEW = "too few pairs to say"
+
+
+def number(value: float | None, digits: int = 3) -> str:
+    return DASH if value is None else f"{value:.{digits}f}"
+
+
+def percent(value: float | None, space: str = "") -> str:
+    return DASH if value is None else f"{100 * value:.1f}{space}%"
+
+
+def interval(value: float | None, low: float | None, high: float | None,
+             digits: int = 3) -> str:
+    """``0.412 [0.301, 0.530]``; the point alone when there is no interval; a dash if neither."""
+    if value is None:
+        return DASH
+    if low is None or high is None:
+        return number(value, digits)
+    return f"{value:.{digits}f} [{low:.{digits}f}, {high:.{digits}f}]"
+
+
+def estimate(d: Mapping[str, Any], digits: int = 3) -> str:
+    """An ``Interval`` as a dict (value, low, high)."""
+    return interval(d.get("value"), d.get("low"), d.get("high"), digits)
+
+
+def counted(value: float | None, low: float | None, high: float | None, n: int,
+            floor: int, digits: int = 3) -> str:
+    """A coefficient with its interval and count, or "too few pairs to say" below ``floor``."""
+    if n < floor:
+        return f"{TOO_FEW} (n {n:,}; needs {floor})"
+    return f"{interval(value, low, high, digits)} (n {n:,})"
+
+
+def bounds(b: Mapping[str, Any] | None, digits: int = 3) -> str:
+    """Hold bounds: the interval from all held pairs wrong to all of them right."""
+    if not b or b.get("low") is None:
+        return DASH
+    return f"[{b['low']:.{digits}f}, {b['high']:.{digits}f}]"
