@@ -32,7 +32,6 @@ Holds. Held audit pairs (no one has settled them) are the hard ones, not missing
 
 from __future__ import annotations
 
-import math
 from collections.abc import Iterable, Sequence
 from dataclasses import replace
 
@@ -40,6 +39,7 @@ import numpy as np
 
 from .audit_sample import AuditSample, Bounds, Interval, QualityEstimate
 from .intervals import clopper_pearson, wilson, z_value
+from .known_domains import known_domains
 from .threshold_choice import suggest_threshold  # noqa: F401  (part of this module's API)
 
 LINEARISED = "linearised-korn-graubard"
@@ -134,96 +134,10 @@ def _total_interval(sample: AuditSample, y: np.ndarray, confidence: float) -> In
     return Interval(total, max(float(y.sum()), total - half), total + half, "linearised-wald")
 
 
-def _share(x: float, n: int, big: int, seen_kind: bool, a: float = SMOOTHING
-           ) -> tuple[float, float, float]:
-    """Share x / n of one domain of a stratum (n labelled of ``big`` pairs): the point, the
-    share for the spread, and the variance of big times the share.
-
-    Where the labels show one kind only (and ``seen_kind`` allows it), the variance is the
-    larger of the plain and the add-half one; where the domain has pairs but no label, the
-    share is unknown: NaN (the caller fills in the pooled share), with the widest variance
-    and the spread of the share 1/2 that goes with it.
-    """
-    if big == 0:
-        return 0.0, 0.0, 0.0
-    if n == 0:
-        return math.nan, 0.5, big ** 2 * 0.25
-    p = x / n
-    fpc = 1.0 - n / big
-    var = big ** 2 * fpc * (p * (1.0 - p) * n / max(n - 1, 1)) / n
-    smooth = p
-    if seen_kind and (x == 0 or x == n) and big > n:
-        smooth = (x + a) / (n + 2.0 * a)
-        var = max(var, big ** 2 * fpc * smooth * (1.0 - smooth) / max(n - 1, 1))
-    return p, smooth, var
-
-
-def _korn_graubard(point: float, spread_at: float, var: float, cap: float,
-                   confidence: float) -> Interval:
-    spread = spread_at * (1.0 - spread_at)
-    n_eff = spread / var if var > 0 and spread > 0 else cap
-    n_eff = max(min(n_eff, cap), 1e-9)
-    return Interval(point, *clopper_pearson(point * n_eff, n_eff, confidence), LINEARISED)
-
-
-def _known_domains(sample: AuditSample, t: float, cells: np.ndarray, confidence: float
-                   ) -> tuple[Interval, Interval, Interval, Interval, float, float]:
-    """Precision, recall, F1 and true matches when each stratum's count of predicted matches
-    is known (``AuditSample.population``).
-
-    Within stratum h the PP_h predicted matches and the N_h - PP_h others are two domains of
-    known size, each sampled at random: T = sum PP_h p_h (p_h the share of matches among the
-    labelled predicted pairs) and F = sum (N_h - PP_h) r_h (r_h among the labelled others), so
-    precision = T / PP, recall = T / (T + F), F1 = 2 T / (T + PP + F), with the delta-method
-    variance from var T and var F (independent: disjoint labels). A stratum with predicted
-    matches but none labelled counts them at the share of the strata that have some (pooled),
-    with the widest variance, (PP_h / 2)^2; likewise for the other domain.
-    """
-    counts = sample.predicted_counts(t) or {}
-    parts = []
-    for h, idx in sample.stratum_index().items():
-        pp_h, rest = counts.get(h, 0), sample.stratum_sizes[h] - counts.get(h, 0)
-        tp, fp, fn = cells[idx].sum(axis=0)
-        a_h, b_h = int(tp + fp), idx.size - int(tp + fp)
-        parts.append((pp_h, _share(tp, a_h, pp_h, True), rest,
-                      _share(fn, b_h, rest, tp + fn > 0)))
-
-    def pooled(domain: int) -> float:  # 0: the predicted matches, 1: the other pairs
-        seen = [(part[2 * domain], part[2 * domain + 1][0]) for part in parts
-                if not math.isnan(part[2 * domain + 1][0])]
-        total = sum(size for size, _ in seen)
-        return sum(size * v for size, v in seen) / total if total else 0.5
-
-    fill_p, fill_r = pooled(0), pooled(1)
-    big_t = big_f = var_t = var_f = sm_t = sm_f = 0.0
-    for pp_h, (p, ps, vt), rest, (r, rs, vf) in parts:
-        p = fill_p if math.isnan(p) else p  # the spread keeps the share 1/2 of the variance
-        r = fill_r if math.isnan(r) else r
-        big_t, sm_t, var_t = big_t + pp_h * p, sm_t + pp_h * ps, var_t + vt
-        big_f, sm_f, var_f = big_f + rest * r, sm_f + rest * rs, var_f + vf
-    big_pp = float(sum(counts.get(h, 0) for h in sample.labelled_counts()))
-    nothing = Interval(None, None, None, LINEARISED)
-    precision = nothing if big_pp == 0 else _korn_graubard(
-        big_t / big_pp, sm_t / big_pp, var_t / big_pp ** 2, big_pp, confidence)
-    m = big_t + big_f
-    recall = nothing if m <= 0 else _korn_graubard(
-        big_t / m, sm_t / max(sm_t + sm_f, 1e-300),
-        (big_f ** 2 * var_t + big_t ** 2 * var_f) / m ** 4, m, confidence)
-    d = big_t + big_pp + big_f
-    f1 = nothing if d <= 0 else _korn_graubard(
-        2 * big_t / d, 2 * sm_t / max(sm_t + big_pp + sm_f, 1e-300),
-        ((2 * (big_pp + big_f)) ** 2 * var_t + (2 * big_t) ** 2 * var_f) / d ** 4,
-        d / 2.0, confidence)
-    half = z_value(confidence) * (var_t + var_f) ** 0.5
-    found = float(sample.label.sum())
-    matches = Interval(m, max(found, m - half), m + half, "linearised-wald")
-    return precision, recall, f1, matches, big_pp, big_t
-
-
 def _estimate(sample: AuditSample, t: float, confidence: float) -> QualityEstimate:
     cells = _cells(sample.score, sample.label, t)
     if sample.population is not None:
-        precision, recall, f1, matches, pp, tp = _known_domains(sample, t, cells, confidence)
+        precision, recall, f1, matches, pp, tp = known_domains(sample, t, cells, confidence)
     else:
         w = sample.weights()
         tp, fp, _ = (float(v) for v in w @ cells)

@@ -46,8 +46,8 @@ def design_notes(sample: AuditSample, threshold: float, confidence: float = 0.95
         if unseen:
             k = sum(counts[h] for h in unseen)
             notes.append(f"{k:,} predicted matches in strata {_strata(unseen)} have no labelled "
-                         "pair: they count at the precision of the other strata, with the widest "
-                         "variance")
+                         "pair: the point counts them at the precision of the other strata; the "
+                         "intervals are bounds, from all of them wrong to all of them right")
     no_match = [h for h, m in labelled.items() if sample.stratum_sizes[h] > m
                 and not sample.label[sample.stratum == h].any()]
     if no_match:

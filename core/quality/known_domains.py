@@ -1,0 +1,131 @@
+"""Precision, recall and F1 when every candidate pair's score is known, so that the predicted
+matches of each stratum are counted, not estimated (``AuditSample.population``).
+
+Within stratum h the PP_h predicted matches and the N_h - PP_h other pairs are two domains of
+known size, each sampled at random by the audit slice: T = sum PP_h p_h (p_h the share of
+matches among the labelled predicted pairs) and F = sum (N_h - PP_h) r_h (r_h among the labelled
+others), so precision = T / PP, recall = T / (T + F), F1 = 2 T / (T + PP + F), with the
+delta-method variance from var T and var F (independent: disjoint labels), and the Korn–Graubard
+interval at the effective sample size (see ``estimates``). A domain whose labels show one kind
+only gets the add-half allowance for its variance.
+
+Unseen domains. A domain with pairs but no labelled pair (predicted matches in a stratum whose
+labels hold none, say) has a share the labels cannot estimate. Its point counts it at the share
+of the strata that have labels (pooled), but the interval does not pretend to know more: its
+lower bound is that of the figures with every unseen pair wrong (predicted ones non-matches,
+others missed matches), its upper bound that with every one right: bounds, as for holds.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from .audit_sample import AuditSample, Interval
+from .intervals import clopper_pearson, z_value
+
+LINEARISED = "linearised-korn-graubard"
+SMOOTHING = 0.5
+
+
+def _share(x: float, n: int, big: int, seen_kind: bool, a: float = SMOOTHING
+           ) -> tuple[float, float, float]:
+    """Share x / n of one domain of a stratum (n labelled of ``big`` pairs): the point, the
+    share for the spread, and the variance of big times the share (NaN point: no label).
+
+    Where the labels show one kind only (and ``seen_kind`` allows it), the variance is the
+    larger of the plain and the add-half one.
+    """
+    if big == 0:
+        return 0.0, 0.0, 0.0
+    if n == 0:
+        return math.nan, math.nan, 0.0
+    p = x / n
+    fpc = 1.0 - n / big
+    var = big ** 2 * fpc * (p * (1.0 - p) * n / max(n - 1, 1)) / n
+    smooth = p
+    if seen_kind and (x == 0 or x == n) and big > n:
+        smooth = (x + a) / (n + 2.0 * a)
+        var = max(var, big ** 2 * fpc * smooth * (1.0 - smooth) / max(n - 1, 1))
+    return p, smooth, var
+
+
+def _korn_graubard(point: float, spread_at: float, var: float, cap: float,
+                   confidence: float) -> Interval:
+    spread = spread_at * (1.0 - spread_at)
+    n_eff = spread / var if var > 0 and spread > 0 else cap
+    n_eff = max(min(n_eff, cap), 1e-9)
+    return Interval(point, *clopper_pearson(point * n_eff, n_eff, confidence), LINEARISED)
+
+
+@dataclass(frozen=True)
+class _Domain:
+    size: int
+    point: float  # NaN: no labelled pair
+    spread: float
+    var: float
+
+
+def _figures(parts: list[tuple[_Domain, _Domain]], fill_p: float, fill_r: float,
+             big_pp: float, confidence: float) -> tuple[Interval, Interval, Interval, float,
+                                                        float, float]:
+    """The three figures with unseen domains at the shares given (fixed: no variance)."""
+    big_t = big_f = var_t = var_f = sm_t = sm_f = 0.0
+    for pred, other in parts:
+        p, ps = (fill_p, fill_p) if math.isnan(pred.point) else (pred.point, pred.spread)
+        r, rs = (fill_r, fill_r) if math.isnan(other.point) else (other.point, other.spread)
+        big_t, sm_t, var_t = big_t + pred.size * p, sm_t + pred.size * ps, var_t + pred.var
+        big_f, sm_f, var_f = big_f + other.size * r, sm_f + other.size * rs, var_f + other.var
+    nothing = Interval(None, None, None, LINEARISED)
+    precision = nothing if big_pp == 0 else _korn_graubard(
+        big_t / big_pp, sm_t / big_pp, var_t / big_pp ** 2, big_pp, confidence)
+    m = big_t + big_f
+    recall = nothing if m <= 0 else _korn_graubard(
+        big_t / m, sm_t / max(sm_t + sm_f, 1e-300),
+        (big_f ** 2 * var_t + big_t ** 2 * var_f) / m ** 4, m, confidence)
+    d = big_t + big_pp + big_f
+    f1 = nothing if d <= 0 else _korn_graubard(
+        2 * big_t / d, 2 * sm_t / max(sm_t + big_pp + sm_f, 1e-300),
+        ((2 * (big_pp + big_f)) ** 2 * var_t + (2 * big_t) ** 2 * var_f) / d ** 4,
+        d / 2.0, confidence)
+    return precision, recall, f1, big_t, m, var_t + var_f
+
+
+def _outer(point: Interval, worst: Interval, best: Interval) -> Interval:
+    if point.value is None or worst.low is None or best.high is None:
+        return point
+    return Interval(point.value, min(worst.low, point.value), max(best.high, point.value),
+                    point.method)
+
+
+def known_domains(sample: AuditSample, t: float, cells: np.ndarray, confidence: float
+                  ) -> tuple[Interval, Interval, Interval, Interval, float, float]:
+    """Precision, recall, F1, true matches, predicted matches and true positives at ``t``."""
+    counts = sample.predicted_counts(t) or {}
+    parts = []
+    for h, idx in sample.stratum_index().items():
+        pp_h, rest = counts.get(h, 0), sample.stratum_sizes[h] - counts.get(h, 0)
+        tp, fp, fn = cells[idx].sum(axis=0)
+        a_h, b_h = int(tp + fp), idx.size - int(tp + fp)
+        parts.append((_Domain(pp_h, *_share(tp, a_h, pp_h, True)),
+                      _Domain(rest, *_share(fn, b_h, rest, tp + fn > 0))))
+
+    def pooled(side: int) -> float:  # 0: the predicted matches, 1: the other pairs
+        seen = [d[side] for d in parts if not math.isnan(d[side].point)]
+        total = sum(d.size for d in seen)
+        return sum(d.size * d.point for d in seen) / total if total else 0.5
+
+    big_pp = float(sum(counts.get(h, 0) for h in sample.labelled_counts()))
+    precision, recall, f1, big_t, m, var = _figures(parts, pooled(0), pooled(1), big_pp,
+                                                    confidence)
+    if any(math.isnan(d.point) and d.size for pair in parts for d in pair):
+        worst = _figures(parts, 0.0, 1.0, big_pp, confidence)
+        best = _figures(parts, 1.0, 0.0, big_pp, confidence)
+        precision, recall, f1 = (_outer(v, w, b) for v, w, b in
+                                 zip((precision, recall, f1), worst[:3], best[:3], strict=True))
+    half = z_value(confidence) * var ** 0.5
+    found = float(sample.label.sum())
+    matches = Interval(m, max(found, m - half), m + half, "linearised-wald")
+    return precision, recall, f1, matches, big_pp, big_t
