@@ -51,12 +51,13 @@ def default_design(rng: np.random.Generator, n_pairs: int = 1500, prevalence: fl
     return labels, truth
 
 
-def rates_coverage(reps: int, seed: int = 0, n_boot: int = 200) -> float:
+def rates_coverage(reps: int, seed: int = 0, n_boot: int = 200, n_pairs: int = 1500) -> float:
+    """Share of the reviewers' sensitivity and specificity intervals that hold the true rate."""
     from docket.core.reviewing.reviewer_rates import reviewer_rates
     rng = np.random.default_rng(seed)
     hits = []
     for _ in range(reps):
-        labels, _ = default_design(rng)
+        labels, _ = default_design(rng, n_pairs)
         fit = reviewer_rates(labels, include_hold=False, n_boot=n_boot,
                              seed=int(rng.integers(1 << 31)))
         assert fit is not None and fit.identified
