@@ -156,7 +156,8 @@ def test_kappa_at_most_one_and_blind_to_category_order(
     table = _defined(k, a, b)
     got = cohen_kappa(table)
     assert got.kappa <= 1.0 + 1e-12
-    assert got.ci_low <= got.kappa <= got.ci_high
+    if not math.isnan(got.ci_low):  # NaN: no interval from so few pairs (see above)
+        assert got.ci_low <= got.kappa <= got.ci_high
     order = np.arange(k)[::-1]
     assert math.isclose(cohen_kappa(table[np.ix_(order, order)]).kappa, got.kappa, abs_tol=1e-12)
 

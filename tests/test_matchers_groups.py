@@ -126,7 +126,7 @@ def test_ensembles_are_stored_and_judged_like_any_matcher(grouped: Project) -> N
         store_ensemble(grouped, "vote", members, "vote")
     with pytest.raises(DocketError, match="at least two"):
         store_ensemble(grouped, "one", ["lm-0"], "vote")
-    report = side_by_side(grouped, n_boot=200)
+    report = side_by_side(grouped)
     names = {m["name"]: m for m in report["matchers"]}
     assert names["vote"]["kind"] == names["ds"]["kind"] == "ensemble"
     assert names["ds"]["f1"]["value"] is not None

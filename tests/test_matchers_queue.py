@@ -52,7 +52,7 @@ def test_disagreement_first_wraps_the_order_and_leaves_the_audit_slice(sample_pr
         later = p.next_pairs("r", 5)
         assert not {q.pair_id for q in others[:3]} & {q.pair_id for q in later}
         answer_audit(p, SAMPLE_TRUTH)
-        report = evaluate(p, n_boot=50)
+        report = evaluate(p)
     assert report["queue_order"]["mode"] == "disagreement"
     assert "disagree on first" in report["queue_order"]["text"]
     assert main(["matchers", str(sample_project), "queue", "uncertain"]) == 0

@@ -48,7 +48,7 @@ def test_a_matcher_equal_to_the_truth_scores_kappa_one_and_precision_recall_one(
         judged_sample: Project) -> None:
     # Definition (common practice): a rater identical to the reference agrees on every pair,
     # so Cohen's kappa is 1 and there is neither a false positive nor a missed match.
-    report = side_by_side(judged_sample, n_boot=200)
+    report = side_by_side(judged_sample)
     row = _row(report, "truth")
     assert row["kappa_gold"]["kappa"] == 1.0
     assert row["precision"]["value"] == 1.0 and row["recall"]["value"] == 1.0
@@ -111,7 +111,7 @@ def test_a_flipped_truth_is_recovered_within_its_intervals(dblp: tuple, capsys) 
     for seed in range(1, RUNS + 1):
         pred = flipped(y, 0.05, 1000 + seed)
         truth = _true(pred, y)
-        row = figures(redrawn(prob, y, seed, {"lm": pred}), "lm", n_boot=2)
+        row = figures(redrawn(prob, y, seed, {"lm": pred}), "lm")
         for m in hits:
             hits[m] += row[m]["low"] <= truth[m] <= row[m]["high"]
     with capsys.disabled():

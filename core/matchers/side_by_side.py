@@ -1,6 +1,6 @@
 """Every stored matcher judged on the audit slice, against the gold and against each other.
 
-Per matcher: design-based precision, recall and F1 at its own threshold (``core.estimates``,
+Per matcher: design-based precision, recall and F1 at its own threshold (``quality.estimates``,
 the same estimators and intervals as ``docket evaluate``), the audit pairs they rest on,
 Cohen's kappa against the gold labels and against every other matcher; then the paired
 differences of every two matchers (``paired``), so that one is said to beat another only when
@@ -18,6 +18,7 @@ import numpy as np
 from ..errors import DocketError
 from ..ordering.queue_order import describe
 from ..quality import estimates
+from ..quality.quality_notes import design_notes
 from ..reviewing.agreement import cohen_kappa, json_ready
 from ..storage.project_file import ProjectFile
 from . import catalogue
@@ -40,12 +41,11 @@ def kappa_of(a: np.ndarray, b: np.ndarray) -> dict[str, Any]:
             "observed_agreement": k.observed, "table": table}
 
 
-def figures(judged: Judged, name: str, confidence: float = 0.95, n_boot: int = 1000,
-            seed: int = 0) -> dict[str, Any]:
+def figures(judged: Judged, name: str, confidence: float = 0.95) -> dict[str, Any]:
     """One matcher's row: P, R, F1 with intervals, audit pairs used, kappa against the gold."""
     pred = judged.predicted[name]
     sample = with_score(judged.sample, pred[judged.audit_at].astype(float))
-    e = estimates.estimate_at(sample, 0.5, confidence, n_boot, seed)
+    e = estimates.estimate_at(sample, 0.5, confidence)
     info = judged.infos[name]
     gold = judged.gold_y == 1
     return {
@@ -59,7 +59,7 @@ def figures(judged: Judged, name: str, confidence: float = 0.95, n_boot: int = 1
         "predicted_matches": float(pred.sum()),
         "estimated_true_matches": e.true_matches.value,
         "kappa_gold": kappa_of(pred[judged.gold_at], gold),
-        "note": e.note,
+        "note": "; ".join(design_notes(sample, 0.5, confidence)),
     }
 
 
@@ -83,8 +83,7 @@ def differences(judged: Judged, confidence: float = 0.95) -> list[dict[str, Any]
 
 
 def side_by_side(project: ProjectFile, names: Sequence[str] | None = None,
-                 confidence: float = 0.95, n_boot: int = 1000, seed: int = 0
-                 ) -> dict[str, Any]:
+                 confidence: float = 0.95) -> dict[str, Any]:
     """The report of ``docket evaluate --matchers``: a JSON-ready dict."""
     if not catalogue.matchers(project.connection):
         raise DocketError("no matchers stored in this project; add some with 'docket "
@@ -97,7 +96,7 @@ def side_by_side(project: ProjectFile, names: Sequence[str] | None = None,
         "audit": {"drawn": int(drawn), "labelled": judged.sample.n_labelled,
                   "matches": int(judged.sample.label.sum())},
         "gold_labels": int(judged.gold_y.size),
-        "matchers": [figures(judged, n, confidence, n_boot, seed) for n in judged.names],
+        "matchers": [figures(judged, n, confidence) for n in judged.names],
         "kappa_between": between(judged),
         "differences": differences(judged, confidence),
         "variants": variants(project, judged),
