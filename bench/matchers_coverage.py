@@ -35,7 +35,7 @@ def main() -> None:
         for seed in range(1, args.runs + 1):
             pred = flipped(y, rate, 1000 + seed)
             truth = _true(pred, y)
-            row = figures(redrawn(prob, y, seed, {"lm": pred}), "lm", n_boot=200, seed=seed)
+            row = figures(redrawn(prob, y, seed, {"lm": pred}), "lm")
             for m in measures:
                 hits[m] += row[m]["low"] <= truth[m] <= row[m]["high"]
         print(f"truth with {rate:.0%} flipped, {args.runs} runs: " + ", ".join(
