@@ -135,7 +135,7 @@ def status(args: argparse.Namespace) -> int:
           f"review(s); {pol['rules']})")
     m = info["missed_matches"]
     if m["count"]:
-        print(f"missed       {m['count']:,} true matches that are not candidates (docket missed); "
+        print(f"missed       true matches outside the candidates: {m['count']:,} (docket missed); "
               f"the candidates hold {m['reach']:.1%} of the {m['gold_matches'] + m['count']:,} "
               "matches known")
     if info["matchers"]:
