@@ -265,3 +265,16 @@ def test_export_other_and_write_export(answered: Project, tmp_path: Path, capsys
         cli_gold.export_other(answered, "clusters", argparse.Namespace(for_lm=True))
     cli_gold.write_export(lm, "-", None)
     assert json.loads(capsys.readouterr().out.splitlines()[0])["pair_id"] == lm[0]["pair_id"]
+
+
+def test_predicted_counts_are_exact_and_shown_whole(answered: Project) -> None:
+    # every candidate pair's score is known, so the number predicted a match at a threshold
+    # is a count, not an estimate: it equals the scores export's own tally
+    report = evaluate(answered)
+    scores = scores_frame(answered)
+    for e in report["estimates"]:
+        assert e["predicted_positives"] == int((scores["probability"] >= e["threshold"]).sum())
+    at = next(e for e in report["estimates"] if e["threshold"] == report["threshold"])
+    assert at["predicted_positives"] == int((scores["predicted"] == "match").sum())
+    row = next(line for line in cli_gold.render(report, "sample") if line.startswith("*"))
+    assert row.rstrip().endswith(f"{int(at['predicted_positives']):,}")
