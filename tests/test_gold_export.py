@@ -50,6 +50,22 @@ def test_gold_rows_follow_the_policy(tiny: Project) -> None:
     assert audit["inclusion_probability"].between(0, 1, inclusive="right").all()
     assert gold.loc[~gold["audit"], "inclusion_probability"].isna().all()
     assert gold.loc[~gold["audit"], "audit_stratum"].isna().all()
+    assert gold.loc[~gold["audit"], "audit_weight"].isna().all()
+
+
+def test_audit_weights_rebuild_each_stratum(tiny: Project) -> None:
+    # common practice (stratified sampling): each labelled pair of stratum h stands for
+    # N_h / m_h candidate pairs, so a stratum's weights add up to its N_h pairs, whatever
+    # share of its drawn pairs is labelled yet; the draw probability n_h / N_h is kept beside it
+    gold = ge.gold_frame(tiny)
+    audit = gold[gold["audit"]]
+    strata = {int(h): v for h, v in tiny.meta["audit_strata"].items()}
+    assert len(audit) > 0
+    for h, rows in audit.groupby("audit_stratum"):
+        size, drawn = strata[int(h)]
+        assert rows["audit_weight"].sum() == pytest.approx(size)
+        assert rows["inclusion_probability"].to_numpy() == pytest.approx(drawn / size)
+        assert rows["audit_weight"].iloc[0] >= 1 / rows["inclusion_probability"].iloc[0] - 1e-9
 
 
 @pytest.mark.parametrize("what", ["gold", "training", "clusters"])
@@ -96,7 +112,7 @@ def test_gold_export_round_trips_with_how_each_label_was_reached(tiny: Project, 
     for column in frame.columns:  # every value, the reviews' JSON and the reasons included
         want = [None if pd.isna(v) else v for v in frame[column]]
         got = [None if pd.isna(v) else v for v in back[column]]
-        if column in ("audit_stratum", "inclusion_probability"):  # numbers, some missing
+        if column in ("audit_stratum", "inclusion_probability", "audit_weight"):  # numbers
             assert [None if v is None else float(v) for v in got] == pytest.approx(
                 [None if v is None else float(v) for v in want])
         else:

@@ -10,6 +10,7 @@ keeps each record on one side by default (``split``).
 from __future__ import annotations
 
 import json
+from collections import Counter
 from collections.abc import Iterable
 from dataclasses import asdict, dataclass
 from pathlib import Path
@@ -29,7 +30,8 @@ from .split import split, split_of
 __all__ = ["split_of"]  # kept here for callers of the pair split
 
 GOLD_COLUMNS = ("pair_id", "left_id", "right_id", "label", "how", "reviewers", "n_reviews",
-                "audit", "audit_stratum", "inclusion_probability", *DETAIL_COLUMNS)
+                "audit", "audit_stratum", "inclusion_probability", "audit_weight",
+                *DETAIL_COLUMNS)
 LEFT, RIGHT = "L:", "R:"  # link mode: the two sides share no id space once clustered
 
 
@@ -40,9 +42,13 @@ def gold_frame(project: ProjectFile) -> pd.DataFrame:
     ``how`` is unanimous, adjudicated or single; ``reviewers`` is ';'-joined; ``reviews`` is
     every reviewer's standing label, note and time as JSON; adjudicated pairs add
     ``why_adjudicated``, ``adjudicator``, ``reason`` and ``adjudicated_at`` (see
-    ``gold_detail``). ``audit_stratum`` and ``inclusion_probability`` are set only for pairs
-    of the audit slice: a pair the queue chose by uncertainty has no known probability of
-    having been chosen.
+    ``gold_detail``). The audit columns are set only for pairs of the audit slice: a pair the
+    queue chose by uncertainty has no known probability of having been chosen.
+    ``inclusion_probability`` is n_h / N_h, the chance that a pair of stratum h was drawn into
+    the slice (n_h drawn of its N_h candidate pairs). Not every drawn pair is gold yet, so the
+    weight that lets the labelled pairs stand for the candidate pairs is ``audit_weight`` =
+    N_h / m_h, m_h the gold-labelled audit pairs of the stratum: a stratum's weights add up to
+    N_h, and equal 1 / inclusion_probability once every drawn pair is gold.
     """
     golds = gold_labels(project.connection)
     rows = {pid: (a, b, audit, stratum, inc) for pid, a, b, audit, stratum, inc in
@@ -50,17 +56,26 @@ def gold_frame(project: ProjectFile) -> pd.DataFrame:
                 "SELECT pair_id, left_id, right_id, audit, stratum, inclusion FROM pairs "
                 "WHERE pair_id IN (SELECT pair_id FROM current)")}
     how = details(project.connection, {g.pair_id for g in golds})
+    weight = _audit_weights(project, [rows[g.pair_id] for g in golds])
     records = []
     for g in golds:
         a, b, audit, stratum, inc = rows[g.pair_id]
         records.append((g.pair_id, a, b, g.label, g.how, ";".join(g.reviewers), g.n_reviews,
                         bool(audit), stratum if audit else None, inc if audit else None,
-                        *how[g.pair_id].row()))
+                        weight.get(stratum) if audit else None, *how[g.pair_id].row()))
     frame = pd.DataFrame.from_records(records, columns=list(GOLD_COLUMNS))
     return frame.astype({"pair_id": "int64", "n_reviews": "int64", "audit": "bool",
                          "audit_stratum": "Int64", "inclusion_probability": "float64",
+                         "audit_weight": "float64",
                          **{c: "object" for c in ("left_id", "right_id", "label", "how",
                                                   "reviewers", *DETAIL_COLUMNS)}})
+
+
+def _audit_weights(project: ProjectFile, rows: list[tuple]) -> dict[int, float]:
+    """N_h / m_h per audit stratum, m_h its gold-labelled audit pairs (see ``gold_frame``)."""
+    sizes = {int(h): int(v[0]) for h, v in project.meta.get("audit_strata", {}).items()}
+    labelled = Counter(int(stratum) for _, _, audit, stratum, _ in rows if audit)
+    return {h: sizes[h] / m for h, m in labelled.items()}
 
 
 def gold_split(project: ProjectFile, gold: pd.DataFrame, test_share: float = 0.2,
