@@ -52,17 +52,16 @@ class Project(SplitFirst, ProjectFile):
     def _stream(self, reviewer: str, audit: bool, n: int, exclude: tuple[int, ...]) -> list:
         skip = f"AND p.pair_id NOT IN ({','.join(map(str, exclude))})" if exclude else ""
         order = "p.audit_order" if audit else "t.priority, t.pattern_id, p.pair_id"
-        args: tuple = (int(audit), reviewer)
-        free = ""
-        if self._claims_kept():
-            free = f"AND {claims.free_for('p')}"
-            args += (reviewer, claims.now())
-        return self._conn.execute(
+        free = f"AND {claims.free_for('p')}" if self._claims_kept() else ""
+        args: tuple = (int(audit), reviewer, *((reviewer, claims.now()) if free else ()))
+        rows = self._conn.execute(  # the model's order: a pool beyond n, to break its runs
             "SELECT p.pair_id, p.left_id, p.right_id, t.probability, p.audit, p.overlap, "
-            "p.n_labels FROM pairs p JOIN patterns t ON t.pattern_id = p.pattern_id "
+            "p.n_labels, p.pattern_id FROM pairs p JOIN patterns t USING (pattern_id) "
             f"WHERE p.open = 1 AND p.audit = ? {skip} AND NOT EXISTS (SELECT 1 FROM current c "
             "WHERE c.pair_id = p.pair_id AND c.reviewer = ? AND c.role = 'reviewer') "
-            f"{free} ORDER BY {order} LIMIT ?", (*args, n)).fetchall()
+            f"{free} ORDER BY {order} LIMIT ?", (*args, n + (0 if audit else queue.POOL)))
+        return [r[:7] for r in rows] if audit else queue.runs_broken(
+            rows.fetchall(), log.last_patterns(self._conn, reviewer, queue.MAX_RUN), n)
 
     _has_claims: bool | None = None
 

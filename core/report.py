@@ -37,6 +37,17 @@ def how_fitted(fs: dict) -> list[str]:
     return out
 
 
+def one_to_one_suggestion(meta: dict, labels: int) -> str | None:
+    """Why ``--one-to-one`` looks right, while no label says otherwise (None when it does not)."""
+    hint = meta.get("one_to_one_hint")
+    if labels or meta.get("one_to_one") or not hint or not hint.get("suggest"):
+        return None
+    return (f"both tables look free of duplicates (only {hint['left_repeated']:.1%} and "
+            f"{hint['right_repeated']:.1%} of their records copy another exactly), yet "
+            f"{hint['several']:,} records have more than one predicted match: a build with "
+            "--one-to-one would keep only pairs that are each other's best")
+
+
 def status(project: ProjectFile) -> dict[str, Any]:
     conn = project.connection
     meta = project.meta
@@ -97,6 +108,8 @@ def status(project: ProjectFile) -> dict[str, Any]:
             "how_fitted": how_fitted(fs),
             "threshold": meta["threshold"],
             "one_to_one": meta.get("one_to_one", False),
+            "one_to_one_suggested": one_to_one_suggestion(meta, one(
+                "SELECT count(*) FROM current")),
             "refits": meta.get("refits", 0),
             "labels_used": fs.get("labels_used", 0),
             "fields": model,

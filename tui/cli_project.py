@@ -46,6 +46,10 @@ def print_built(built: Any) -> None:
           f"{odds_text(math.log(prior / (1 - prior)))} (fitted in {built.model.iterations} "
           f"rounds); audit slice {built.audit_size:,} pairs; overlap {built.overlap_pairs:,} "
           "pairs")
+    hint = built.one_to_one_hint
+    if hint is not None and hint.suggest:
+        from docket.core.report import one_to_one_suggestion
+        print(f"suggestion: {one_to_one_suggestion({'one_to_one_hint': hint.to_dict()}, 0)}")
     from docket.core.report import CAUTION
     print(f"note: {CAUTION}")
 
@@ -124,6 +128,8 @@ def status(args: argparse.Namespace) -> int:
           + ("; one-to-one" if model["one_to_one"] else ""))
     for line in model["how_fitted"]:
         print(f"  {line}")
+    if model.get("one_to_one_suggested"):
+        print(f"  suggestion: {model['one_to_one_suggested']}")
     print(f"odds before the fields {odds_text(math.log(model['odds_before_fields']))}; "
           "each field's level multiplies them:")
     for f in model["fields"]:
@@ -188,7 +194,8 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "rules docket chooses from the data), compares them, fits a Fellegi-Sunter model "
                  "and draws the audit slice.\n\nBlocking keys: col, col[:N], tokens(col), "
                  "digits(col), year(col); join keys with & inside a rule; several --block rules "
-                 "are OR-ed.\nField kinds: name, text, longtext, code, number, date (or skip).",
+                 "are OR-ed; near(col) (each record's nearest by TF-IDF similarity) stands "
+                 "alone.\nField kinds: name, text, longtext, code, number, date (or skip).",
                  "docket new vets.docket --left north.csv --right south.csv "
                  "--left-id client_id --right-id ref --map owner=owner_name",
                  new)

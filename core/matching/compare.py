@@ -14,6 +14,8 @@ import pandas as pd
 from rapidfuzz import fuzz, process
 from rapidfuzz.distance import OSA, JaroWinkler, Levenshtein
 
+from ..records import text_vectors
+
 MISSING = "missing"
 
 
@@ -34,10 +36,18 @@ def _string_scorer(scorer: Callable, scale: float = 1.0) -> Callable[[list, list
     return run
 
 
+def _bands(cuts: tuple[float, ...]) -> tuple[str, ...]:
+    return tuple(f"≥ {c:.2f}" for c in cuts)
+
+
+# Fine bands keep most of the ranking a continuous similarity holds: the model weighs each band
+# on its own (kept in order), so a pair at 0.93 is not lumped with one at 0.71.
+NAME_CUTS = (0.97, 0.94, 0.90, 0.85, 0.80, 0.70)
+LONG_CUTS = (0.90, 0.80, 0.70, 0.60, 0.50, 0.40, 0.30)
 KINDS: dict[str, KindRule] = {
     "name": KindRule(("exact", "close", "similar", "different"), (0.92, 0.80)),
     "text": KindRule(("exact", "close", "similar", "different"), (0.90, 0.70)),
-    "longtext": KindRule(("exact", "close", "similar", "weak", "different"), (0.90, 0.70, 0.50)),
+    "longtext": KindRule(("exact", *_bands(LONG_CUTS), "different"), LONG_CUTS),
     "code": KindRule(("exact", "one edit", "different"), ()),
     "number": KindRule(("exact", "near", "different"), ()),
     "date": KindRule(("exact", "day/month swapped", "within a month", "different"), ()),
@@ -108,8 +118,38 @@ def _date(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return sim, lv
 
 
-def compare_values(kind: str, a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Similarity (float32, NaN when missing) and level (int8) for aligned value arrays."""
+def _text_similarity(kind: str, a: list, b: list, text: TextRows | None) -> np.ndarray:
+    """Long text: the mean of TF-IDF cosine over words and the token set ratio, so that rare
+    shared words weigh more than common ones and a typo costs only its word."""
+    if kind != "longtext":
+        return SCORERS[kind](a, b)
+    if text is None:  # values without a corpus: the vectors come from these values alone
+        text = TextRows.of(a, b, np.arange(len(a)), np.arange(len(b)))
+    words = text_vectors.row_cosine(text.words.left, text.words.right, text.ia, text.ib)
+    tokens = SCORERS[kind](a, b)
+    return ((words + tokens) / np.float32(2.0)).astype(np.float32)
+
+
+@dataclass
+class TextRows:
+    """TF-IDF rows of a field's distinct values, and which row each compared value is."""
+
+    words: text_vectors.Vectors
+    ia: np.ndarray
+    ib: np.ndarray
+
+    @classmethod
+    def of(cls, a: list, b: list, ia: np.ndarray, ib: np.ndarray) -> TextRows:
+        return cls(text_vectors.vectors(a, b, "word"), ia, ib)
+
+
+def compare_values(kind: str, a: np.ndarray, b: np.ndarray, text: TextRows | None = None
+                   ) -> tuple[np.ndarray, np.ndarray]:
+    """Similarity (float32, NaN when missing) and level (int8) for aligned value arrays.
+
+    ``text`` (long text only) holds the TF-IDF rows of the field's whole corpus and the row of
+    each of ``a`` and ``b``; without it the corpus is ``a`` and ``b`` themselves.
+    """
     n = len(a)
     sim = np.full(n, np.nan, dtype=np.float32)
     lv = np.full(n, len(KINDS[kind].levels), dtype=np.int8)  # the missing level
@@ -123,7 +163,9 @@ def compare_values(kind: str, a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray,
         s, lvl = _date(pa, pb)
     else:
         la, lb = pa.tolist(), pb.tolist()
-        s = SCORERS[kind](la, lb)
+        rows = None if text is None else TextRows(text.words, text.ia[present],
+                                                  text.ib[present])
+        s = _text_similarity(kind, la, lb, rows)
         lvl = _string_levels(kind, s, la, lb)
         s = np.where(lvl == 0, np.float32(1.0), np.minimum(s, np.float32(0.999)))
     sim[present] = s
@@ -131,22 +173,53 @@ def compare_values(kind: str, a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray,
     return sim, lv
 
 
+@dataclass
+class Prepared:
+    """One field's values made ready once for all chunks of pairs: codes of distinct values
+    per record and, for long text, their TF-IDF rows."""
+
+    lcodes: np.ndarray
+    rcodes: np.ndarray
+    lu: np.ndarray
+    ru: np.ndarray
+    text: TextRows | None
+
+
+def prepare(kind: str, left_norm: np.ndarray, right_norm: np.ndarray) -> Prepared:
+    lcodes, lu = pd.factorize(pd.Series(left_norm, dtype=object), use_na_sentinel=True)
+    if right_norm is left_norm:
+        rcodes, ru = lcodes, lu
+    else:
+        rcodes, ru = pd.factorize(pd.Series(right_norm, dtype=object), use_na_sentinel=True)
+    lu_a, ru_a = np.asarray(lu, dtype=object), np.asarray(ru, dtype=object)
+    text = None
+    if kind == "longtext":
+        text = TextRows.of(lu_a.tolist(), ru_a.tolist(), np.zeros(0, np.int64),
+                           np.zeros(0, np.int64))
+    return Prepared(lcodes, rcodes, lu_a, ru_a, text)
+
+
 def compare_field(kind: str, left_norm: np.ndarray, right_norm: np.ndarray,
-                  li: np.ndarray, ri: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+                  li: np.ndarray, ri: np.ndarray, prepared: Prepared | None = None
+                  ) -> tuple[np.ndarray, np.ndarray]:
     """Compare one field over pairs given as record positions, each distinct value pair once.
 
     ``left_norm``/``right_norm`` hold one normalised value per record. Many pairs repeat the same
-    two values (towns, species, years), so only distinct combinations are scored.
+    two values (towns, species, years), so only distinct combinations are scored. ``prepared``
+    (from :func:`prepare`) saves redoing the per-record work for every chunk of pairs.
     """
-    lcodes, lu = pd.factorize(pd.Series(left_norm, dtype=object), use_na_sentinel=True)
-    rcodes, ru = pd.factorize(pd.Series(right_norm, dtype=object), use_na_sentinel=True)
-    pl = lcodes[li].astype(np.int64)
-    pr = rcodes[ri].astype(np.int64)
-    combo = (pl + 1) * (len(ru) + 1) + (pr + 1)
+    prep = prepared or prepare(kind, left_norm, right_norm)
+    pl = prep.lcodes[li].astype(np.int64)
+    pr = prep.rcodes[ri].astype(np.int64)
+    width = len(prep.ru) + 1
+    combo = (pl + 1) * width + (pr + 1)
     uniq, inverse = np.unique(combo, return_inverse=True)
-    ul = uniq // (len(ru) + 1) - 1
-    ur = uniq % (len(ru) + 1) - 1
-    lvals = np.array([*lu, None], dtype=object)[ul]  # -1 picks the trailing None
-    rvals = np.array([*ru, None], dtype=object)[ur]
-    sim, lv = compare_values(kind, lvals, rvals)
-    return sim[inverse], lv[inverse]
+    ul = uniq // width - 1
+    ur = uniq % width - 1
+    lvals = np.array([*prep.lu, None], dtype=object)[ul]  # -1 picks the trailing None
+    rvals = np.array([*prep.ru, None], dtype=object)[ur]
+    text = None
+    if prep.text is not None:
+        text = TextRows(prep.text.words, np.maximum(ul, 0), np.maximum(ur, 0))
+    sim, lv = compare_values(kind, lvals, rvals, text)
+    return sim[inverse].reshape(-1), lv[inverse].reshape(-1)

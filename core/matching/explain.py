@@ -15,6 +15,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .logistic import level_effects
 from .model import FSModel
 
 MODEL_NAMES = {
@@ -57,10 +58,10 @@ class LogOddsTable:
         """Coefficients laid out as :func:`logistic.one_hot` lays out its columns."""
         scale = float(coef[1])
         parts, at = [], 2
-        for f, k in enumerate(n_levels):
-            own = np.asarray(coef[at:at + k], dtype=float)
+        for f, k in enumerate(n_levels):  # k levels (missing last) take k - 1 columns
+            own = level_effects(coef[at:at + k - 1])
             parts.append(list(map(float, scale * np.asarray(fs.parts[f]) + own)))
-            at += k
+            at += k - 1
         return cls("logistic", float(coef[0]) + scale * fs.base, parts)
 
 

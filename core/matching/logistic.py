@@ -12,18 +12,32 @@ import numpy as np
 
 
 def one_hot(patterns: np.ndarray, n_levels: list[int], offset: np.ndarray) -> np.ndarray:
-    """A bias, the Fellegi–Sunter log-odds, then indicators for every field and level.
+    """A bias, the Fellegi–Sunter log-odds, then each field's levels in cumulative coding.
 
-    The log-odds column lets a few labels recalibrate the whole model, while the indicators,
+    The log-odds column lets a few labels recalibrate the whole model, while the level columns,
     held near zero by the penalty, learn only the corrections the labels support (fields that
     are not independent). Far from any label the ranker falls back to the calibrated FS score.
+    A field of k levels (missing last) gets k - 1 columns: "at least as good as level j" for
+    each present level j but the worst, then "missing". The penalty thus shrinks the *step*
+    from one level to the next, not each level's weight, so fine bands with few labels each
+    borrow strength from their neighbours.
     """
     cols = [np.ones((len(patterns), 1)), np.asarray(offset, dtype=float)[:, None]]
     for f, k in enumerate(n_levels):
-        block = np.zeros((len(patterns), k))
-        block[np.arange(len(patterns)), patterns[:, f]] = 1.0
-        cols.append(block)
+        lv = patterns[:, f][:, None]
+        missing = lv == k - 1
+        steps = (lv <= np.arange(k - 2)[None, :]) & ~missing
+        cols.append(np.hstack([steps, missing]).astype(float))
     return np.hstack(cols)
+
+
+def level_effects(block: np.ndarray) -> np.ndarray:
+    """Per level (missing last), the log-odds one field's columns of :func:`one_hot` add."""
+    block = np.asarray(block, dtype=float)
+    steps, missing = block[:-1], block[-1]
+    # Level l is "at least as good as" every level j >= l: the sum of those steps.
+    cumulative = np.cumsum(steps[::-1])[::-1]
+    return np.concatenate([cumulative, [0.0, missing]])
 
 
 @dataclass

@@ -19,12 +19,12 @@ import numpy as np
 import pandas as pd
 
 from ..types import FieldSpec
-from . import scoring
+from . import compare, scoring
 from .compare import MISSING, level_names
 
 SAMPLE_PAIRS = 100_000
 SMOOTH = 0.5
-FREQUENT_KINDS = ("name", "text", "code")
+FREQUENT_KINDS = ("name", "text", "longtext", "code")
 MAX_FREQUENT = 2000  # frequent values kept per field (the model file stays small)
 RARE, COMMON = "exact, rare", "exact, common"
 
@@ -94,13 +94,15 @@ def names_with_frequent(fields: list[FieldSpec], frequent: dict[str, list]) -> l
 
 def baseline(fields: list[FieldSpec], lnorm: dict[str, np.ndarray],
              rnorm: dict[str, np.ndarray], n_left: int, n_right: int, dedupe: bool,
-             seed: int, n: int = SAMPLE_PAIRS) -> Baseline:
+             seed: int, n: int = SAMPLE_PAIRS,
+             prepared: dict[str, compare.Prepared] | None = None) -> Baseline:
     """Measure u on a random sample of all pairs; exact levels from value frequencies."""
     frequent = frequent_values(fields, lnorm, rnorm, dedupe)
     names = names_with_frequent(fields, frequent)
     possible = n_left * (n_left - 1) // 2 if dedupe else n_left * n_right
     li, ri = sample_pairs(n_left, n_right, dedupe, int(min(n, max(possible, 1))), seed)
-    _, levels = scoring.compare_pairs(fields, lnorm, rnorm, li, ri, frequent=frequent)
+    _, levels = scoring.compare_pairs(fields, lnorm, rnorm, li, ri, frequent=frequent,
+                                      prepared=prepared)
     u = []
     for j, f in enumerate(fields):
         k = len(names[j]) - 1

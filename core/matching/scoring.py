@@ -27,14 +27,24 @@ def normalised(fields: list[FieldSpec], frame: pd.DataFrame, side: str) -> dict[
     return out
 
 
+def prepare(fields: list[FieldSpec], left_norm: dict[str, np.ndarray],
+            right_norm: dict[str, np.ndarray]) -> dict[str, compare.Prepared]:
+    """Per field, the work done once per record rather than once per pair."""
+    return {f.name: compare.prepare(f.kind, left_norm[f.name], right_norm[f.name])
+            for f in fields}
+
+
 def compare_pairs(fields: list[FieldSpec], left_norm: dict[str, np.ndarray],
                   right_norm: dict[str, np.ndarray], li: np.ndarray, ri: np.ndarray,
                   progress: Callable[[int, int], None] | None = None,
-                  frequent: dict[str, list] | None = None) -> tuple[np.ndarray, np.ndarray]:
+                  frequent: dict[str, list] | None = None,
+                  prepared: dict[str, compare.Prepared] | None = None
+                  ) -> tuple[np.ndarray, np.ndarray]:
     """Similarities (float32, NaN = missing) and levels (int8), shape (pairs, fields).
 
     ``frequent`` names, per field, the values whose exact agreement is the level "exact,
     common" (see :mod:`random_pairs`); every other level of that field moves down by one.
+    ``prepared`` (from :func:`prepare`) lets several calls share the per-record work.
     """
     n = len(li)
     frequent = frequent or {}
@@ -44,11 +54,12 @@ def compare_pairs(fields: list[FieldSpec], left_norm: dict[str, np.ndarray],
     levels = np.empty((n, len(fields)), dtype=np.int8)
     steps = max(1, -(-n // CHUNK)) * len(fields)
     done = 0
+    prepared = prepared or prepare(fields, left_norm, right_norm)
     for start in range(0, max(n, 1), CHUNK):
         sl = slice(start, min(n, start + CHUNK))
         for j, f in enumerate(fields):
             s, lv = compare.compare_field(f.kind, left_norm[f.name], right_norm[f.name],
-                                          li[sl], ri[sl])
+                                          li[sl], ri[sl], prepared[f.name])
             if f.name in is_common:
                 lv = np.where(lv == 0, is_common[f.name][li[sl]].astype(np.int8),
                               lv + 1).astype(np.int8)

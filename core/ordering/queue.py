@@ -33,6 +33,37 @@ def reason_for(probability: float, threshold: float, audit: bool, second_look: b
     return "likely match" if probability >= threshold else "likely non-match"
 
 
+MAX_RUN = 3  # at most this many pairs of one pattern in a row, while others are in reach
+POOL = 60  # how far down the uncertain queue a pair may be brought forward to break a run
+
+
+def diversified(patterns: list[int], recent: list[int], n: int, max_run: int = MAX_RUN
+                ) -> list[int]:
+    """Positions in ``patterns`` (the queue's next pairs, best first) to show, ``n`` of them.
+
+    Pairs of one pattern look alike and teach the model the same thing, so after ``max_run``
+    of them in a row (counting ``recent``, the reviewer's last pairs, oldest first) the next
+    pair comes from another pattern, the best placed one. Only when the pool holds no other
+    pattern does the run go on.
+    """
+    history = list(recent)
+    taken: list[int] = []
+    left = list(range(len(patterns)))
+    while left and len(taken) < n:
+        tail = history[-max_run:]
+        run = len(tail) == max_run and len(set(tail)) == 1
+        pick = next((i for i in left if not run or patterns[i] != tail[0]), left[0])
+        left.remove(pick)
+        taken.append(pick)
+        history.append(patterns[pick])
+    return taken
+
+
+def runs_broken(rows: list, recent: list[int], n: int) -> list:
+    """Queue rows (their pattern id last) reordered by :func:`diversified`, pattern id dropped."""
+    return [rows[i][:-1] for i in diversified([r[-1] for r in rows], recent, n)]
+
+
 def priority(probability: np.ndarray, threshold: float) -> np.ndarray:
     """Distance from the decision boundary: the smallest is the most uncertain, shown first."""
     return np.abs(np.asarray(probability, dtype=float) - threshold)

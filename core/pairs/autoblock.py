@@ -8,6 +8,10 @@ import pandas as pd
 
 from ..types import FieldSpec
 from .blocking import Rule, _drop_common_tokens, _exploded, estimate_pairs, parse_rule, rule_pairs
+from .neighbours import NEAR_K
+
+NEAR_KINDS = ("longtext", "name")
+NEAR_MAX_RECORDS = 50_000  # the exact neighbour search grows with the square of the records
 
 MAX_EXACT = 3
 MAX_TOKENS = 2
@@ -23,8 +27,11 @@ def choose_rules(left: pd.DataFrame, right: pd.DataFrame | None, fields: list[Fi
     """Cheap exact keys on distinctive fields, plus shared-word keys on name-like fields.
 
     Exact keys (codes, dates, distinctive numbers) catch pairs whose text is garbled; word keys
-    catch pairs whose codes changed. Each must cover at least half of the records, and their
-    estimated pairs together stay within a budget that grows with the number of records.
+    catch pairs whose codes changed. On long text and names, nearest neighbours by TF-IDF
+    similarity (``near``) take the word key's place where shared words cover less than half of
+    the records or give each record more pairs than its few nearest. Each must cover at least
+    half of the records, and their estimated pairs together stay within a budget that grows
+    with the number of records.
     """
     n_right = len(left) if right is None else len(right)
     budget = _budget(len(left), n_right, max_pairs)
@@ -51,12 +58,18 @@ def choose_rules(left: pd.DataFrame, right: pd.DataFrame | None, fields: list[Fi
                                                   kind_of)
         lk, rk = _drop_common_tokens(rule, lk, rk, 0.01)
         covered = lk["pos"].nunique() / max(1, len(left))
-        if covered < 0.5:
-            continue
-        if estimate_pairs(lk, rk) > max_pairs:
-            continue
+        words_fit = covered >= 0.5 and estimate_pairs(lk, rk) <= max_pairs
         # The estimate counts a pair once per shared word; the real join is what costs.
-        found = len(rule_pairs(rule, left, right, fields, max_pairs)[0])
+        found = len(rule_pairs(rule, left, right, fields, max_pairs)[0]) if words_fit else 0
+        near_cap = NEAR_K * (len(left) + (0 if right is None else n_right))
+        if bucket is tokens and f.kind in NEAR_KINDS and near_cap <= max_pairs and \
+                len(left) + n_right <= NEAR_MAX_RECORDS and (not words_fit or found > near_cap):
+            # Shared words cover too few records, or pair each with more than its few
+            # nearest: the nearest by TF-IDF similarity are the better candidates.
+            rule = parse_rule(f"near({f.name})", fields)
+            found = len(rule_pairs(rule, left, right, fields, max_pairs)[0])
+        elif not words_fit:
+            continue
         bucket.append((found, f.kind != "name", rule))
     chosen: list[Rule] = []
     spent = 0

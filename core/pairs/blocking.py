@@ -8,6 +8,8 @@ rules are OR-ed. Keys:
   ``tokens(col)``   any one shared word (words held by too many records are skipped)
   ``digits(col)``   only its digits
   ``year(col)``     the year of a date
+  ``near(col)``     each record's nearest records by TF-IDF similarity (a rule of its own, not
+                    joined with ``&``; see :mod:`neighbours`)
 
 Example: ``--block "postcode" --block "tokens(owner) & year(born)"``.
 """
@@ -25,7 +27,7 @@ from ..errors import DocketError
 from ..records import normalise
 from ..types import FieldSpec
 
-_KEY = re.compile(r"^\s*(?:(tokens|digits|year)\s*\(\s*([^()]+?)\s*\)|([^\[\]()&]+?)"
+_KEY = re.compile(r"^\s*(?:(tokens|digits|year|near)\s*\(\s*([^()]+?)\s*\)|([^\[\]()&]+?)"
                   r"(?:\[\s*:\s*(\d+)\s*\])?)\s*$")
 DEFAULT_MAX_PAIRS = 5_000_000
 
@@ -90,6 +92,9 @@ def parse_rule(text: str, fields: list[FieldSpec]) -> Rule:
             keys.append(Key("prefix", column, int(length)))
         else:
             keys.append(Key("value", column))
+    if len(keys) > 1 and any(k.func == "near" for k in keys):
+        raise DocketError(f"--block {text!r}: near(...) stands alone; give it as a rule of its "
+                          "own, for example --block 'near(title)'")
     return Rule(tuple(keys))
 
 
@@ -175,6 +180,9 @@ def rule_keys(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
     Joining the two on ``key`` gives the rule's pairs: in this process (``rule_pairs``) or
     as a distributed join (``dask_engine``).
     """
+    if rule.keys[0].func == "near":  # neighbours are no key: nothing to join on
+        raise DocketError(f"--block {str(rule)!r}: near(...) runs in this process only; use "
+                          "it without --engine dask, or give a word key such as tokens(...)")
     kind_of = {f.name: f.kind for f in fields}
     lk = _exploded(rule, left, {f.name: f.left_column for f in fields}, kind_of)
     rk = None if right is None else _exploded(rule, right,
@@ -192,6 +200,8 @@ def rule_pairs(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
                fields: list[FieldSpec], max_pairs: int, token_share: float = 0.01
                ) -> tuple[np.ndarray, np.ndarray]:
     """Record positions (left, right) of the pairs one rule finds; dedupe mode when no right."""
+    if rule.keys[0].func == "near":
+        return _near(rule, left, right, fields, max_pairs)
     lk, rk = rule_keys(rule, left, right, fields, max_pairs, token_share)
     joined = lk.merge(lk if rk is None else rk, on="key", suffixes=("_l", "_r"))
     li = joined["pos_l"].to_numpy(np.int64)
@@ -199,6 +209,20 @@ def rule_pairs(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
     if rk is None:
         keep = li < ri
         li, ri = li[keep], ri[keep]
+    return dedupe_pairs(li, ri)
+
+
+def _near(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
+          fields: list[FieldSpec], max_pairs: int) -> tuple[np.ndarray, np.ndarray]:
+    from .neighbours import NEAR_K, near_pairs
+
+    spec = next(f for f in fields if f.name == rule.keys[0].column)
+    expected = NEAR_K * (len(left) + (0 if right is None else len(right)))
+    if expected > max_pairs:
+        raise DocketError(f"--block {str(rule)!r} could make up to {expected:,} pairs, over "
+                          f"the cap of {max_pairs:,}; raise --max-pairs")
+    li, ri = near_pairs(left[spec.left_column],
+                        None if right is None else right[spec.right_column])
     return dedupe_pairs(li, ri)
 
 

@@ -18,7 +18,7 @@ from typing import Any
 import numpy as np
 
 from ..errors import Cancelled, DocketError
-from ..matching import random_pairs, scoring
+from ..matching import decision_rule, random_pairs, scoring
 from ..matching.explain import LogOddsTable
 from ..matching.model import FSModel, fit_em
 from ..ordering import queue, sampling
@@ -82,6 +82,7 @@ class Built:
     id_columns: tuple[str, str | None] = ("", None)  # (left, right); right None in dedupe mode
     ids_guessed: tuple[bool, bool] = (False, False)  # chosen by docket, not given by the user
     sampling: dict[str, Any] | None = None  # how a sampled project was drawn; None: all pairs
+    one_to_one_hint: decision_rule.OneToOneHint | None = None
 
 
 def _check(spec: NewProject) -> None:
@@ -157,9 +158,10 @@ def build(spec: NewProject, progress: Progress | None = None,
         rnorm = lnorm if right is None else scoring.normalised(fields, right.frame, "right")
         step("measuring chance agreement")
         n_l, width = len(left), width_of(left, right)
+        prepared = scoring.prepare(fields, lnorm, rnorm)
         base = random_pairs.baseline(fields, lnorm, rnorm, n_l, width, right is None,
-                                     spec.seed + 7)
-        scorer = ChunkScorer(fields, lnorm, rnorm, width, base.frequent)
+                                     spec.seed + 7, prepared=prepared)
+        scorer = ChunkScorer(fields, lnorm, rnorm, width, base.frequent, prepared)
         codes, counts = engine.score(scorer, lambda d, t: step("comparing", d, t))
         step("fitting the model")
         patterns = levels_of(codes, len(fields))
@@ -180,6 +182,8 @@ def build(spec: NewProject, progress: Progress | None = None,
         scorer, kept.keys, lambda d, t: step("comparing the kept pairs", d, t))
     li, ri = scorer.positions(kept.keys)
     pattern_ix = np.searchsorted(codes, kept.codes)
+    hint = None if right is None or spec.one_to_one else decision_rule.one_to_one_hint(
+        lnorm, rnorm, li, ri, prob[pattern_ix] >= spec.threshold)
     if not plan.keeps_all:
         left, right, li, ri = _named_records(left, right, li, ri)
 
@@ -215,7 +219,8 @@ def build(spec: NewProject, progress: Progress | None = None,
                       prob=prob, model=model, pair_ids=pair_ids, audit=audit, overlap=overlap,
                       fingerprint=fp, report=engine.report, step=step)
         sampled = plan.describe(spec.sample_above) if not plan.keeps_all else None
-        store.set_meta(conn, sampling=sampled, engine=engine.name)
+        store.set_meta(conn, sampling=sampled, engine=engine.name,
+                       **({} if hint is None else {"one_to_one_hint": hint.to_dict()}))
         step("building indexes")
         store.finish_file(conn)
         step("building indexes", 1, 1)
@@ -229,7 +234,7 @@ def build(spec: NewProject, progress: Progress | None = None,
                  int(audit.selected.sum()), int(overlap.sum()),
                  (left.id_column, None if right is None else right.id_column),
                  (not (spec.left_id or spec.id_column),
-                  right is not None and not (spec.right_id or spec.id_column)), sampled)
+                  right is not None and not (spec.right_id or spec.id_column)), sampled, hint)
 
 
 def open_engine(spec: NewProject, left: Table, right: Table | None, fields: list[FieldSpec],

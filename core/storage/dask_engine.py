@@ -162,8 +162,15 @@ def _blocked(spec: Any, left: Table, right: Table | None, fields: list[FieldSpec
     width = width_of(left, right)
     parts = []
     for i, rule in enumerate(rules):
-        lk, rk = blocking.rule_keys(rule, left.frame, None if right is None else right.frame,
-                                    fields, spec.max_pairs)
+        rframe = None if right is None else right.frame
+        if rule.keys[0].func == "near":  # nearest neighbours: found here, no key to join on
+            li, ri = blocking.rule_pairs(rule, left.frame, rframe, fields, spec.max_pairs)
+            near = pd.DataFrame({"pos_l": li, "pos_r": ri})
+            parts.append(dd.from_pandas(_joined_part(near, False, width, i),
+                                        npartitions=_partitions(len(near), workers)))
+            step("blocking", i + 1, len(rules))
+            continue
+        lk, rk = blocking.rule_keys(rule, left.frame, rframe, fields, spec.max_pairs)
         lhs = dd.from_pandas(lk, npartitions=_partitions(len(lk), workers))
         joined = lhs.merge(lk if rk is None else rk, on="key", suffixes=("_l", "_r"))
         parts.append(joined.map_partitions(_joined_part, right is None, width, i,

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 
@@ -31,6 +32,7 @@ class ChunkScorer:
     right_norm: dict[str, np.ndarray]
     width: int  # records on the right (the left table again in dedupe mode)
     frequent: dict[str, list] = field(default_factory=dict)  # values with a level "exact, common"
+    prepared: dict[str, Any] | None = None  # per-record work shared by every chunk
 
     def positions(self, keys: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         keys = np.asarray(keys, dtype=np.int64)
@@ -40,7 +42,7 @@ class ChunkScorer:
         """Similarities and levels of these pairs (the pure scorer)."""
         li, ri = self.positions(keys)
         return scoring.compare_pairs(self.fields, self.left_norm, self.right_norm, li, ri,
-                                     frequent=self.frequent)
+                                     frequent=self.frequent, prepared=self.prepared)
 
     def codes(self, keys: np.ndarray) -> np.ndarray:
         return scoring.pattern_codes(self.compare(keys)[1], RADIX)

@@ -1,0 +1,97 @@
+"""TF-IDF vectors of a field's distinct values: cosine similarity of pairs and nearest neighbours.
+
+Both sides' distinct values share one vocabulary and one set of inverse document frequencies,
+so a word (or character n-gram) that many records hold counts little and a rare one counts
+much. scikit-learn builds the vectors (imported here only, so opening a project never loads
+it); rows are L2-normalised, so the cosine of two values is the dot product of their rows.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+
+NGRAM = (3, 3)  # character 3-grams inside word boundaries
+BLOCK = 20_000_000  # similarities held at once by the neighbour search (bounds its memory)
+
+
+@dataclass
+class Vectors:
+    """Row ``i`` of ``left`` is the vector of distinct left value ``i`` (likewise ``right``)."""
+
+    left: Any  # scipy CSR, one L2-normalised row per value
+    right: Any
+
+
+def _vectorizer(analyzer: str, max_df: float | int) -> Any:
+    from sklearn.feature_extraction.text import TfidfVectorizer
+
+    if analyzer == "word":
+        return TfidfVectorizer(analyzer="word", token_pattern=r"(?u)\b\w+\b",
+                               sublinear_tf=True, dtype=np.float32, max_df=max_df)
+    return TfidfVectorizer(analyzer="char_wb", ngram_range=NGRAM, sublinear_tf=True,
+                           dtype=np.float32, max_df=max_df)
+
+
+def vectors(left: list[str], right: list[str], analyzer: str, max_share: float = 1.0
+            ) -> Vectors:
+    """TF-IDF rows for each side's distinct values ("word" or "char" analyzer); terms held by
+    more than ``max_share`` of the values are left out."""
+    from scipy import sparse
+
+    corpus = list(dict.fromkeys([*left, *right]))
+    if not corpus:
+        empty = sparse.csr_matrix((0, 1), dtype=np.float32)
+        return Vectors(empty, empty)
+    try:
+        # A small corpus keeps every term: in ten values, each is held by a tenth of them.
+        max_df = 1.0 if max_share >= 1.0 else max(10, int(max_share * len(corpus)))
+        rows = _vectorizer(analyzer, max_df).fit_transform(corpus).tocsr()
+    except ValueError:  # nothing but stop characters: no vocabulary at all
+        rows = sparse.csr_matrix((len(corpus), 1), dtype=np.float32)
+    at = {v: i for i, v in enumerate(corpus)}
+    return Vectors(rows[[at[v] for v in left]], rows[[at[v] for v in right]])
+
+
+def row_cosine(a: Any, b: Any, ia: np.ndarray, ib: np.ndarray) -> np.ndarray:
+    """Cosine of row ``ia[k]`` of ``a`` with row ``ib[k]`` of ``b``, for every k (float32)."""
+    if len(ia) == 0:
+        return np.zeros(0, dtype=np.float32)
+    prod = a[ia].multiply(b[ib])
+    out = np.asarray(prod.sum(axis=1), dtype=np.float32).reshape(-1)
+    return np.clip(out, 0.0, 1.0)
+
+
+def neighbours(a: Any, b: Any | None, k: int, floor: float
+               ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """For each row of ``a``: its ``k`` most similar rows of ``b`` (of ``a`` itself when ``b``
+    is None, never the row itself) with cosine at least ``floor``; (rows of a, rows of b, cos).
+
+    Exact, by blocks of sparse products, so the result does not depend on any random start.
+    """
+    other = a if b is None else b
+    out_a, out_b, out_s = [], [], []
+    other_t = other.T.tocsc()
+    step = max(1, BLOCK // max(1, other.shape[0]))
+    for start in range(0, a.shape[0], step):
+        block = (a[start:start + step] @ other_t).toarray()
+        if b is None:
+            rows = np.arange(block.shape[0])
+            block[rows, rows + start] = -1.0
+        kk = min(k, block.shape[1])
+        if kk <= 0:
+            continue
+        top = np.argpartition(-block, kk - 1, axis=1)[:, :kk]
+        sims = np.take_along_axis(block, top, axis=1)
+        keep = sims >= floor
+        rows = np.repeat(np.arange(block.shape[0]) + start, kk).reshape(block.shape[0], kk)
+        out_a.append(rows[keep])
+        out_b.append(top[keep])
+        out_s.append(sims[keep])
+    if not out_a:
+        z = np.zeros(0, dtype=np.int64)
+        return z, z, np.zeros(0, dtype=np.float32)
+    return (np.concatenate(out_a).astype(np.int64), np.concatenate(out_b).astype(np.int64),
+            np.concatenate(out_s).astype(np.float32))
