@@ -11,7 +11,7 @@ from .blocking import Rule, _drop_common_tokens, _exploded, estimate_pairs, pars
 from .neighbours import NEAR_K
 
 NEAR_KINDS = ("longtext", "name")
-NEAR_MAX_RECORDS = 50_000  # the exact neighbour search grows with the square of the records
+NEAR_MAX_RECORDS = 20_000  # both sides together: the exact search grows with their square
 
 MAX_EXACT = 3
 MAX_TOKENS = 2
