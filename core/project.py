@@ -56,12 +56,12 @@ class Project(SplitFirst, ProjectFile):
         args: tuple = (int(audit), reviewer, *((reviewer, claims.now()) if free else ()))
         rows = self._conn.execute(  # the model's order: a pool beyond n, to break its runs
             "SELECT p.pair_id, p.left_id, p.right_id, t.probability, p.audit, p.overlap, "
-            "p.n_labels, p.pattern_id FROM pairs p JOIN patterns t USING (pattern_id) "
+            "p.n_labels FROM pairs p JOIN patterns t ON t.pattern_id = p.pattern_id "
             f"WHERE p.open = 1 AND p.audit = ? {skip} AND NOT EXISTS (SELECT 1 FROM current c "
             "WHERE c.pair_id = p.pair_id AND c.reviewer = ? AND c.role = 'reviewer') "
             f"{free} ORDER BY {order} LIMIT ?", (*args, n + (0 if audit else queue.POOL)))
-        return [r[:7] for r in rows] if audit else queue.runs_broken(
-            rows.fetchall(), log.last_patterns(self._conn, reviewer, queue.MAX_RUN), n)
+        return rows.fetchall() if audit else queue.runs_broken(
+            rows.fetchall(), log.last_probabilities(self._conn, reviewer, queue.WINDOW), n)
 
     _has_claims: bool | None = None
 

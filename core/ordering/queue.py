@@ -33,35 +33,42 @@ def reason_for(probability: float, threshold: float, audit: bool, second_look: b
     return "likely match" if probability >= threshold else "likely non-match"
 
 
-MAX_RUN = 3  # at most this many pairs of one pattern in a row, while others are in reach
-POOL = 60  # how far down the uncertain queue a pair may be brought forward to break a run
+ALIKE = 3  # at most this many look-alike pairs among a reviewer's last WINDOW...
+WINDOW = 10  # ... while pairs that look otherwise are in reach
+POOL = 60  # how far down the uncertain queue a pair may be brought forward
 
 
-def diversified(patterns: list[int], recent: list[int], n: int, max_run: int = MAX_RUN
+def look(probability: float) -> float:
+    """Pairs whose probabilities agree to two decimals look alike to the model (levels pooled
+    to one weight give different patterns the very same probability)."""
+    return round(float(probability), 2)
+
+
+def diversified(keys: list, recent: list, n: int, alike: int = ALIKE, window: int = WINDOW
                 ) -> list[int]:
-    """Positions in ``patterns`` (the queue's next pairs, best first) to show, ``n`` of them.
+    """Positions in ``keys`` (the queue's next pairs, best first, by :func:`look`) to show.
 
-    Pairs of one pattern look alike and teach the model the same thing, so after ``max_run``
-    of them in a row (counting ``recent``, the reviewer's last pairs, oldest first) the next
-    pair comes from another pattern, the best placed one. Only when the pool holds no other
-    pattern does the run go on.
+    Look-alike pairs teach the model the same thing and tire the reviewer, so a pair is brought
+    forward past those whose look already fills ``alike`` of the last ``window`` pairs
+    (counting ``recent``, the reviewer's last pairs, oldest first): the best placed pair of
+    another look. Only when the pool holds no other look does the queue's order stand.
     """
     history = list(recent)
     taken: list[int] = []
-    left = list(range(len(patterns)))
+    left = list(range(len(keys)))
     while left and len(taken) < n:
-        tail = history[-max_run:]
-        run = len(tail) == max_run and len(set(tail)) == 1
-        pick = next((i for i in left if not run or patterns[i] != tail[0]), left[0])
+        last = history[-window:]
+        pick = next((i for i in left if last.count(keys[i]) < alike), left[0])
         left.remove(pick)
         taken.append(pick)
-        history.append(patterns[pick])
+        history.append(keys[pick])
     return taken
 
 
-def runs_broken(rows: list, recent: list[int], n: int) -> list:
-    """Queue rows (their pattern id last) reordered by :func:`diversified`, pattern id dropped."""
-    return [rows[i][:-1] for i in diversified([r[-1] for r in rows], recent, n)]
+def runs_broken(rows: list, recent: list[float], n: int) -> list:
+    """Queue rows (probability fourth) in the order of :func:`diversified`."""
+    keys = [look(r[3]) for r in rows]
+    return [rows[i] for i in diversified(keys, [look(p) for p in recent], n)]
 
 
 def priority(probability: np.ndarray, threshold: float) -> np.ndarray:

@@ -113,10 +113,10 @@ def log(conn: sqlite3.Connection, pair_id: int | None = None) -> list[Decision]:
     return [row_to_decision(r) for r in rows]
 
 
-def last_patterns(conn: sqlite3.Connection, reviewer: str, n: int) -> list[int]:
-    """Patterns of the reviewer's last ``n`` decided pairs, oldest first."""
+def last_probabilities(conn: sqlite3.Connection, reviewer: str, n: int) -> list[float]:
+    """The model's probability of the reviewer's last ``n`` decided pairs, oldest first."""
     rows = conn.execute(
-        "SELECT p.pattern_id FROM current c JOIN pairs p ON p.pair_id = c.pair_id "
-        "WHERE c.reviewer = ? AND c.role = 'reviewer' ORDER BY c.decided_at DESC LIMIT ?",
-        (reviewer, n)).fetchall()
+        "SELECT t.probability FROM current c JOIN pairs p ON p.pair_id = c.pair_id "
+        "JOIN patterns t ON t.pattern_id = p.pattern_id WHERE c.reviewer = ? "
+        "AND c.role = 'reviewer' ORDER BY c.decided_at DESC LIMIT ?", (reviewer, n)).fetchall()
     return [r[0] for r in rows][::-1]
