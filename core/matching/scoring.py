@@ -71,13 +71,20 @@ def compare_pairs(fields: list[FieldSpec], left_norm: dict[str, np.ndarray],
     return sims, levels
 
 
-def pattern_codes(levels: np.ndarray, radix: int = 16) -> np.ndarray:
-    """One int64 per pair for its level vector (fixed radix), for fast grouping; every level
-    must be below ``radix`` and ``radix ** fields`` within int64 (``group_patterns`` checks)."""
+def pattern_codes(levels: np.ndarray, radix: int | list[int] = 16) -> np.ndarray:
+    """One int64 per pair for its level vector, for fast grouping: one base for all fields, or
+    one per field (mixed radix); every level must be below its base and the product of the
+    bases within int64 (``group_patterns`` checks for its own use)."""
     code = np.zeros(len(levels), dtype=np.int64)
     for j in range(levels.shape[1]):
-        code = code * radix + levels[:, j].astype(np.int64)
+        base = radix if isinstance(radix, int) else radix[j]
+        code = code * base + levels[:, j].astype(np.int64)
     return code
+
+
+def level_counts(fields: list[FieldSpec], frequent: dict[str, list]) -> list[int]:
+    """How many levels (missing included) each field's comparison gives."""
+    return [len(compare.level_names(f.kind)) + (f.name in frequent) for f in fields]
 
 
 def group_patterns(levels: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:

@@ -164,7 +164,7 @@ def build(spec: NewProject, progress: Progress | None = None,
         scorer = ChunkScorer(fields, lnorm, rnorm, width, base.frequent, prepared)
         codes, counts = engine.score(scorer, lambda d, t: step("comparing", d, t))
         step("fitting the model")
-        patterns = levels_of(codes, len(fields))
+        patterns = levels_of(codes, scorer.radix)
         possible = possible_pairs(left, right)
         model = fit_em(patterns, counts, base.level_names, [f.name for f in fields],
                        u_random=base.u, population=possible)

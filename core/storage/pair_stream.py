@@ -20,7 +20,6 @@ from ..ordering.sampling import SamplePlan, pick
 from ..types import FieldSpec
 
 CHUNK = 250_000
-RADIX = 8  # pattern codes: one mixed-radix digit per field (scoring.pattern_codes)
 
 
 @dataclass
@@ -44,17 +43,22 @@ class ChunkScorer:
         return scoring.compare_pairs(self.fields, self.left_norm, self.right_norm, li, ri,
                                      frequent=self.frequent, prepared=self.prepared)
 
+    @property
+    def radix(self) -> list[int]:
+        """Pattern codes: one mixed-radix digit per field, its base the field's level count."""
+        return scoring.level_counts(self.fields, self.frequent)
+
     def codes(self, keys: np.ndarray) -> np.ndarray:
-        return scoring.pattern_codes(self.compare(keys)[1], RADIX)
+        return scoring.pattern_codes(self.compare(keys)[1], self.radix)
 
 
-def levels_of(codes: np.ndarray, n_fields: int) -> np.ndarray:
+def levels_of(codes: np.ndarray, radix: list[int]) -> np.ndarray:
     """The level vectors of pattern codes (the inverse of ``scoring.pattern_codes``)."""
     codes = np.asarray(codes, dtype=np.int64).copy()
-    out = np.zeros((len(codes), n_fields), dtype=np.int64)
-    for j in range(n_fields - 1, -1, -1):
-        out[:, j] = codes % RADIX
-        codes //= RADIX
+    out = np.zeros((len(codes), len(radix)), dtype=np.int64)
+    for j in range(len(radix) - 1, -1, -1):
+        out[:, j] = codes % radix[j]
+        codes //= radix[j]
     return out
 
 
@@ -99,7 +103,7 @@ class InProcess:
         for start in range(0, n, CHUNK):
             sl = slice(start, min(n, start + CHUNK))
             sims, levels = scorer.compare(self.keys[sl])
-            self.codes[sl] = scoring.pattern_codes(levels, RADIX)
+            self.codes[sl] = scoring.pattern_codes(levels, scorer.radix)
             if self.sims is not None:
                 self.sims[sl] = sims
             if progress:
