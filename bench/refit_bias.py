@@ -29,8 +29,8 @@ TARGET_BIAS = 0.005
 TARGET_COVER = 0.93
 
 
-def one_run(folder: Path, tmp: Path, truth: set[tuple[str, str]], seed: int,
-            n_boot: int = 1000) -> dict[str, float]:
+def one_run(folder: Path, tmp: Path, truth: set[tuple[str, str]], seed: int
+            ) -> dict[str, float]:
     """Estimate and truth of precision and recall for one seed's audit slice and refit."""
     path = tmp / f"dblp{seed}.docket"
     Project.create(NewProject(path=path, left=folder / "dblp.csv", right=folder / "acm.csv",
@@ -41,7 +41,7 @@ def one_run(folder: Path, tmp: Path, truth: set[tuple[str, str]], seed: int,
         for pid, a, b in audit:
             project.decide(pid, "oracle", "match" if (a, b) in truth else "non-match")
         project.refit()
-        row = evaluate(project, n_boot=n_boot, seed=seed)["at_threshold"]
+        row = evaluate(project)["at_threshold"]
         s = scores_frame(project)
     path.unlink()
     yes = (s.predicted == "match").to_numpy()

@@ -202,7 +202,7 @@ def test_refit_on_the_audit_slice_keeps_evaluate_honest(tmp_path: Path, seed: in
                 "SELECT pair_id, left_id, right_id FROM pairs WHERE audit = 1").fetchall():
             project.decide(pid, "oracle", "match" if (a, b) in TRUTH else "non-match")
         project.refit()
-        row = evaluate(project, n_boot=500, seed=seed)["at_threshold"]
+        row = evaluate(project)["at_threshold"]
         s = scores_frame(project)
     yes = (s.predicted == "match").to_numpy()
     y = np.array([(a, b) in TRUTH for a, b in zip(s.left_id, s.right_id, strict=True)])
