@@ -8,6 +8,7 @@ import sys
 import tempfile
 from collections.abc import Callable
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 import pandas as pd
@@ -81,6 +82,18 @@ def to_stdout(text: str | bytes) -> None:
     sys.stdout.buffer.flush()
 
 
+def write_parquet(frame: pd.DataFrame, target: Any) -> None:
+    """Parquet with text as Arrow ``string`` whichever pandas wrote it (pandas 3 would make it
+    ``large_string``, pandas 2 ``string``), so a file's schema does not depend on the install."""
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+
+    table = pa.Table.from_pandas(frame, preserve_index=False)
+    schema = pa.schema([pa.field(f.name, pa.string()) if pa.types.is_large_string(f.type)
+                        else f for f in table.schema], metadata=table.schema.metadata)
+    pq.write_table(table.cast(schema), target)
+
+
 def write_frame(frame: pd.DataFrame, target: str, fmt: str | None = None,
                 guard: bool = True) -> None:
     """Write to a file (atomically: a temporary beside it, then renamed) or '-' for stdout.
@@ -91,7 +104,7 @@ def write_frame(frame: pd.DataFrame, target: str, fmt: str | None = None,
     if target == "-":
         if kind == "parquet":
             buf = io.BytesIO()
-            frame.to_parquet(buf, index=False)
+            write_parquet(frame, buf)
             to_stdout(buf.getvalue())
         elif kind == "csv":
             to_stdout(csv_text(frame, guard))
@@ -101,7 +114,7 @@ def write_frame(frame: pd.DataFrame, target: str, fmt: str | None = None,
 
     def write(tmp: Path) -> None:
         if kind == "parquet":
-            frame.to_parquet(tmp, index=False)
+            write_parquet(frame, tmp)
         elif kind == "csv":
             tmp.write_text(csv_text(frame, guard), encoding="utf-8", newline="")
         else:
