@@ -240,6 +240,7 @@ def build(spec: NewProject, progress: Progress | None = None,
 def open_engine(spec: NewProject, left: Table, right: Table | None, fields: list[FieldSpec],
                 step: Progress) -> Any:
     """The pairs, counted and ready to score: in this process or on Dask."""
+    engine: Any  # an InProcess or a DaskEngine: both offer the same verbs
     if spec.engine == "dask":
         from .dask_engine import open_dask
         engine = open_dask(spec, left, right, fields, step)

@@ -61,7 +61,7 @@ def connect(workers: int, scheduler: str | None) -> tuple[Any, Any]:
 def _keys_part(frame: pd.DataFrame, lindex: pd.Index, rindex: pd.Index, dedupe: bool,
                where: str, names: tuple[str, str]) -> pd.DataFrame:
     a, b = _text(frame.iloc[:, 0]).reset_index(drop=True), _text(frame.iloc[:, 1])
-    keys = keys_of(where, a, b.reset_index(drop=True), lindex, rindex, dedupe, *names)  # type: ignore[arg-type]
+    keys = keys_of(where, a, b.reset_index(drop=True), lindex, rindex, dedupe, *names)
     return pd.DataFrame({"key": keys, "rule": np.zeros(len(keys), dtype=np.int16)})
 
 
