@@ -41,7 +41,7 @@ class AuditSample:
     drawn: Mapping[Any, int]
     held_score: np.ndarray = field(default_factory=lambda: np.zeros(0))
     held_stratum: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=np.int64))
-    population: Mapping[Hashable, np.ndarray] | None = None
+    population: Mapping[Any, np.ndarray] | None = None
 
     def __post_init__(self) -> None:
         set_ = object.__setattr__  # frozen: coerce once here, never again
@@ -153,7 +153,7 @@ class AuditSample:
                            self.stratum_sizes, self.drawn, population=self.population)
 
     def rescored(self, score: np.ndarray, held_score: np.ndarray | None = None,
-                 population: Mapping[Hashable, np.ndarray] | None = None) -> AuditSample:
+                 population: Mapping[Any, np.ndarray] | None = None) -> AuditSample:
         """The same labelled pairs and design, scored by another matcher (same order);
         ``population`` as in the class notes, for that matcher."""
         held = self.held_score if held_score is None else held_score

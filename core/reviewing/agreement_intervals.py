@@ -127,9 +127,10 @@ def kappa_interval(table: np.ndarray, kappa: float, confidence: float = 0.95
     def stat(cells: np.ndarray) -> float:
         return table_kappa(np.bincount(cells, minlength=k * k).reshape(k, k))
 
-    low, high = bootstrap_interval(rows, stat, confidence)
-    if low is None or high is None:
+    boot_low, boot_high = bootstrap_interval(rows, stat, confidence)
+    if boot_low is None or boot_high is None:
         return (None, None, BOOT)
+    low, high = boot_low, boot_high
     return (min(low, kappa), max(high, kappa), BOOT)
 
 

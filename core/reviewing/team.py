@@ -9,7 +9,7 @@ adjudicator decides after seeing everyone's labels.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any
+from typing import Any, cast
 
 from ..errors import DocketError
 from ..storage import roles
@@ -156,7 +156,7 @@ def _rates(labels: dict[str, dict[int, str]], include_hold: bool) -> dict[str, A
     if fit is None:
         return None
     out = asdict(fit)
-    out["posterior"] = {int(k): round(v, 6) for k, v in fit.posterior.items()}
+    out["posterior"] = {int(cast(int, k)): round(v, 6) for k, v in fit.posterior.items()}
     return out
 
 
