@@ -50,7 +50,7 @@ class PairPicker(ModalScreen[int | None]):
         with Vertical(id="picker-box") as box:
             box.border_title = self.title_text
             if self.search:
-                yield Input(placeholder="pair id, record id, or text in a record",
+                yield Input(placeholder="pair id, record id, or words of a record",
                             id="picker-input")
             yield OptionList(id="picker-results")
             yield Static(Text("Enter opens the pair · Escape closes"), id="picker-hint")
