@@ -82,7 +82,7 @@ def test_evaluate_on_a_sampled_project_says_so(sampled: Path, tmp_path: Path, ca
                        "right_id")
     with Project.open(copy) as p:
         answer_audit(p, truth)
-        report = evaluate(p, n_boot=50)
+        report = evaluate(p)
     assert report["sampling"]["kept_pairs"] == KEEP
     assert report["at_threshold"]["n_pairs"] == report["sampling"]["population_pairs"]
     assert main(["evaluate", str(copy)]) == 0
@@ -122,7 +122,7 @@ def sampled_coverage(project: Project, truth: set[tuple[str, str]], keep: int,
         s = kept[a.selected]
         sample = sample_from(score[s], y[s].astype(int).tolist(), a.stratum[a.selected],
                              a.inclusion[a.selected], a.sizes)
-        e = threshold_table(sample, [project.threshold], n_boot=2)[0]
+        e = threshold_table(sample, [project.threshold])[0]
         hits_p += e.precision.low <= true_p <= e.precision.high
         hits_r += e.recall.low <= true_r <= e.recall.high
     return hits_p / runs, hits_r / runs
