@@ -129,8 +129,15 @@ def _on_dask(job: ScoreJob, source: Any, tmp: Path, workers: int,
                              "predicted": pd.Series(dtype=bool)})
         shared = client.scatter(job, broadcast=True)
         scored = raw.map_partitions(lambda f, j: j(f), shared, meta=meta)
-        scored.to_parquet(str(tmp), write_index=False, name_function=lambda i: f"part-{i:05d}"
-                          ".parquet")
+        import pyarrow as pa
+
+        # the schema given, not inferred from the empty meta: text columns of an empty frame
+        # hold no value to infer from, and newer dask/pyarrow refuse the placeholder
+        schema = pa.schema([("left_id", pa.string()), ("right_id", pa.string()),
+                            ("log_odds", pa.float64()), ("probability", pa.float64()),
+                            ("predicted", pa.bool_())])
+        scored.to_parquet(str(tmp), write_index=False, schema=schema,
+                          name_function=lambda i: f"part-{i:05d}.parquet")
         import pyarrow.parquet as pq
         return int(sum(pq.ParquetFile(p).metadata.num_rows for p in tmp.glob("*.parquet")))
     finally:
