@@ -116,7 +116,10 @@ def _values(table: pa.Table, path: Path) -> tuple[str, np.ndarray]:
     if _numeric(raw):
         num = raw.to_numpy().astype(float)
     else:
-        num = pd.to_numeric(raw.to_pandas(), errors="coerce").to_numpy(dtype=float)
+        try:  # arrow parses decimal text exactly; pandas 2's to_numeric may lose the last bit
+            num = pc.cast(pc.utf8_trim_whitespace(raw), pa.float64()).to_numpy()
+        except pa.ArrowInvalid:  # blanks or words: find the first bad row below
+            num = pd.to_numeric(raw.to_pandas(), errors="coerce").to_numpy(dtype=float)
     bad = _first(~np.isfinite(num))
     if bad is not None:
         raise _fail(path, bad, f"score {raw[bad].as_py()!r} is not a number")
