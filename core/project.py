@@ -66,9 +66,9 @@ class Project(SplitFirst, ProjectFile):
     _has_claims: bool | None = None
 
     def _claims_kept(self) -> bool:
-        # An older file opened read-only has no claims table (nor standing counts) yet.
+        # An older file opened read-only has no claims by role (nor standing counts) yet.
         if self._has_claims is None:
-            self._has_claims = store.has_table(self._conn, "claims")
+            self._has_claims = claims.kept(self._conn)
         return self._has_claims
 
     def next_pairs(self, reviewer: str, n: int = 1, exclude: tuple[int, ...] = (),

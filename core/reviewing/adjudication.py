@@ -10,6 +10,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from ..errors import DocketError
+from ..storage import claims
 from ..storage.project_file import ProjectFile
 from ..types import LABELS, Decision
 from . import gold
@@ -54,6 +55,27 @@ def queue(project: ProjectFile, extra: set[int] | None = None) -> list[tuple[int
     """(pair_id, why) for the pairs waiting for an adjudicator; see gold.needs_adjudication."""
     with project.reading():
         return gold.needs_adjudication(project.connection, extra)
+
+
+def serve(project: ProjectFile, adjudicator: str, waiting: list[int]) -> int | None:
+    """Claim and return the first of ``waiting`` that no other adjudicator holds (None when
+    they hold them all); this adjudicator's earlier claim ends."""
+    with project.transaction() as conn:
+        return claims.claim_first_free(conn, adjudicator.strip(), waiting, "adjudicator")
+
+
+def held_by_others(project: ProjectFile, adjudicator: str) -> set[int]:
+    """Waiting pairs that another adjudicator has on screen now."""
+    with project.reading():
+        if not claims.kept(project.connection):
+            return set()
+        return claims.held_by_others(project.connection, adjudicator.strip(), "adjudicator")
+
+
+def release(project: ProjectFile, adjudicator: str) -> None:
+    """Give back every pair this adjudicator holds (on quitting)."""
+    with project.transaction() as conn:
+        claims.release(conn, adjudicator.strip(), None, "adjudicator")
 
 
 def set_aside_for(project: ProjectFile, adjudicator: str) -> set[int]:

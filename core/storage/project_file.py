@@ -123,7 +123,7 @@ class ProjectFile:
         with self.transaction() as conn:
             prior = log.current_of(conn, pair_id, reviewer, role)
             roles.register(conn, reviewer)  # a role beyond reviewer is only ever granted
-            claims.release(conn, reviewer, pair_id)
+            claims.release(conn, reviewer, pair_id, role)
             note = note or drafts.of(conn, pair_id, reviewer, role)
             drafts.clear(conn, pair_id, reviewer, role)  # the note is in the log now
             return log.append(conn, pair_id, reviewer, label, note, seconds,
@@ -146,6 +146,6 @@ class ProjectFile:
             if last is not None:
                 log.append(conn, last.pair_id, reviewer, None, "", 0.0, last.decision_id,
                            last.role)
-                if last.role == "reviewer":  # open again: no one else is given it meanwhile
-                    claims.claim(conn, reviewer, [last.pair_id], keep=True)
+                # Open again: no one else in the same role is given it meanwhile.
+                claims.claim(conn, reviewer, [last.pair_id], keep=True, role=last.role)
         return last

@@ -19,7 +19,7 @@ from ..errors import DocketError, NotAProject
 from . import file_health
 
 APPLICATION_ID = 0x646F636B  # "dock": marks the file as a docket project
-SCHEMA_VERSION = 4
+SCHEMA_VERSION = 5
 BUSY_TIMEOUT_MS = 5000
 
 SCHEMA_V1 = """
@@ -133,6 +133,23 @@ def _add_machine_raters(conn: sqlite3.Connection) -> None:
         conn.execute(statement)
 
 
+# Version 5. Claims carry the role they were made in, so one person reviewing in one terminal
+# and adjudicating in another holds a pair in each, and neither ends the other's claims.
+CLAIMS_BY_ROLE = ("""
+CREATE TABLE claims_by_role (
+    pair_id INTEGER NOT NULL, reviewer TEXT NOT NULL, role TEXT NOT NULL, expires_at TEXT NOT NULL,
+    PRIMARY KEY (pair_id, role, reviewer), CHECK (role IN ('reviewer', 'adjudicator')))""",
+    "INSERT INTO claims_by_role SELECT pair_id, reviewer, 'reviewer', expires_at FROM claims",
+    "DROP TABLE claims",
+    "ALTER TABLE claims_by_role RENAME TO claims",
+    "CREATE INDEX claims_reviewer ON claims(reviewer, role)")
+
+
+def _claims_by_role(conn: sqlite3.Connection) -> None:
+    for statement in CLAIMS_BY_ROLE:
+        conn.execute(statement)
+
+
 Migration = Callable[[sqlite3.Connection], None]
 
 
@@ -161,6 +178,7 @@ MIGRATIONS: dict[int, tuple[str, Migration]] = {
     2: ("drafts and missed matches", _to_v2),
     3: ("indexed history, role grants, claims", _to_v3),
     4: ("machine raters", _add_machine_raters),
+    5: ("claims by role", _claims_by_role),
 }
 
 

@@ -4,11 +4,14 @@ The pair card is the review screen's; the reviews panel replaces the evidence pa
 decision key asks for a reason, then saves the adjudication (role 'adjudicator', the reason
 as its note) before moving on. The queue (disagreements, holds, cluster conflicts) is worked
 out in a worker after every change; between two refreshes the screen steps through the copy
-it has, so the next pair is on screen at once.
+it has, so the next pair is on screen at once. The pair on screen is claimed (the review
+screen's lease, in the adjudicator role), so two adjudicators at work together are never shown
+one pair; the claim ends on deciding, on being served the next pair, and on quitting.
 """
 
 from __future__ import annotations
 
+import contextlib
 import sqlite3
 from dataclasses import dataclass, field
 from functools import partial
@@ -54,13 +57,16 @@ class QueueState:
     gold: dict[int, tuple[str, str]] = field(default_factory=dict)  # pair -> (label, how)
     decided: int = 0  # this adjudicator's standing adjudications
     for_others: int = 0  # waiting pairs the policy leaves to another adjudicator
+    claimed: int = 0  # waiting pairs another adjudicator has on screen now
 
 
 def load_queue(project: Project, adjudicator: str, generation: int) -> QueueState:
     """Worker thread: the adjudication queue with conflicts and gold labels, on ``project``."""
     aside = adjudication.set_aside_for(project, adjudicator)
     waiting = adjudication_queue(project)
-    entries = tuple(e for e in waiting if e[0] not in aside)
+    mine = [e for e in waiting if e[0] not in aside]
+    taken = adjudication.held_by_others(project, adjudicator)
+    entries = tuple(e for e in mine if e[0] not in taken)
     found: dict[int, ConflictInfo] = {}
     for c in conflicts(project):
         info = ConflictInfo(c.cluster, len(c.members), c.match_pairs, c.non_match_pairs)
@@ -68,7 +74,8 @@ def load_queue(project: Project, adjudicator: str, generation: int) -> QueueStat
             found[pid] = info
     gold = {g.pair_id: (g.label, g.how) for g in project.gold_labels()}
     decided = len(project.history(adjudicator, role="adjudicator"))
-    return QueueState(generation, entries, found, gold, decided, len(waiting) - len(entries))
+    return QueueState(generation, entries, found, gold, decided, len(waiting) - len(mine),
+                      len(mine) - len(entries))
 
 
 class AdjudicateScreen(Screen[None]):
@@ -117,6 +124,7 @@ class AdjudicateScreen(Screen[None]):
         self.show_extra = False
         self.decided = 0
         self.for_others = 0
+        self.claimed = 0
         self.palette: Palette = PLAIN
         self._footer_in_queue = True
 
@@ -186,7 +194,7 @@ class AdjudicateScreen(Screen[None]):
             return  # a later change started a newer count; wait for that one
         self.queue = self._ordered(state.entries)
         self.conflicts, self.gold, self.decided = state.conflicts, state.gold, state.decided
-        self.for_others = state.for_others
+        self.for_others, self.claimed = state.for_others, state.claimed
         if self.pair_id is None and self.mode == "queue":
             self._show_queue()
         elif self.pair_id is not None:
@@ -218,9 +226,21 @@ class AdjudicateScreen(Screen[None]):
         parked = self.nav.take_parked()
         waiting = [pid for pid, _ in self.queue or ()]
         if parked is not None and parked in waiting:
-            self._show(parked, "queue")
-            return
-        self._show(waiting[0] if waiting else None, "queue")
+            waiting.remove(parked)
+            waiting.insert(0, parked)
+        self._show(self._serve(waiting), "queue")
+
+    def _serve(self, waiting: list[int]) -> int | None:
+        """The first waiting pair no other adjudicator holds, claimed for this one."""
+        if not waiting:
+            return None
+        app = self.team_app
+        try:
+            return adjudication.serve(app.project, app.adjudicator, waiting)
+        except (DocketError, sqlite3.Error) as exc:
+            # Shown unclaimed rather than not at all: the adjudication itself still saves.
+            self.notify(f"Pair not claimed: {exc}", severity="warning", markup=False)
+            return waiting[0]
 
     def _empty_message(self) -> Text:
         if self.queue is None:
@@ -231,6 +251,9 @@ class AdjudicateScreen(Screen[None]):
         if self.for_others:
             settled = (f"Nothing more for you: {self.for_others:,} waiting pair(s) you decided "
                        "as a reviewer are left to another adjudicator (the project's policy).")
+        if self.claimed or self.queue:  # what is left waits on others' screens
+            settled += (f" {self.claimed + len(self.queue or ()):,} waiting pair(s) are on "
+                        "another adjudicator's screen; they come back here if left.")
         return Text(
             f"{settled}\n\nWhat next: [ looks back at your adjudications; a shows how far the "
             "reviewers agree; g shows the model's quality; q quits. New pairs arrive here as "
@@ -361,6 +384,13 @@ class AdjudicateScreen(Screen[None]):
 
     def action_quit(self) -> None:
         self.app.exit()
+
+    def on_unmount(self) -> None:
+        # Quitting gives the pair on screen back at once; if the file cannot be written now,
+        # the claim lapses at its expiry all the same.
+        app = self.team_app
+        with contextlib.suppress(DocketError, sqlite3.Error):
+            adjudication.release(app.project, app.adjudicator)
 
     def action_redraw(self) -> None:
         self._paint()
