@@ -46,9 +46,9 @@ def main() -> None:
             a, b = flipped(y, ra, 2000 + seed), flipped(y, rb, 3000 + seed)
             ta, tb = _true(a, y), _true(b, y)
             judged = redrawn(prob, y, seed, {"a": a, "b": b})
-            at = judged.audit_at
+            sa, sb = judged.sample_for("a"), judged.sample_for("b")
             for m in measures:
-                d = paired_difference(judged.sample, "a", a[at], "b", b[at], m)
+                d = paired_difference(sa, "a", sb, "b", m)
                 hits[m] += d.low <= ta[m] - tb[m] <= d.high
         print(f"paired difference, {ra:.0%} vs {rb:.0%} flipped, {args.runs} runs: " + ", ".join(
             f"{m} {k / args.runs:.1%}" for m, k in hits.items()) + " hold the true difference "

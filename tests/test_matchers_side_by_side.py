@@ -98,7 +98,8 @@ def redrawn(prob: np.ndarray, y: np.ndarray, seed: int, matchers: dict[str, np.n
     everything = np.ones(prob.size, dtype=bool)
     return Judged(list(matchers), dict.fromkeys(matchers), matchers,
                   dict.fromkeys(matchers, everything), np.arange(1, prob.size + 1), at, sample,
-                  at, y[at].astype(np.int64))
+                  at, y[at].astype(np.int64),
+                  {int(h): np.flatnonzero(a.stratum == h) for h in np.unique(a.stratum)})
 
 
 @pytest.mark.outside
@@ -121,24 +122,21 @@ def test_a_flipped_truth_is_recovered_within_its_intervals(dblp: tuple, capsys) 
 
 
 @pytest.mark.outside
-@pytest.mark.xfail(reason="known gap: since the estimator counts predicted matches from every "
-                   "candidate pair, the paired interval covers precision in 26 of 30 runs "
-                   "(27 asked); core/matchers/paired.py needs the per-stratum counts too",
-                   strict=False)
 def test_the_paired_difference_covers_the_true_difference(dblp: tuple, capsys) -> None:
     # Outside check: DBLP-ACM as above; two matchers, the truth with 3 % and with 8 % of
     # answers flipped, so their true difference in F1, precision and recall is known.
+    # Nominal 95 %, asked 93 % (28 of 30).
     prob, y = dblp
     hits = dict.fromkeys(("precision", "recall", "f1"), 0)
     for seed in range(1, RUNS + 1):
         a, b = flipped(y, 0.03, 2000 + seed), flipped(y, 0.08, 3000 + seed)
         ta, tb = _true(a, y), _true(b, y)
         judged = redrawn(prob, y, seed, {"a": a, "b": b})
-        at = judged.audit_at
+        sa, sb = judged.sample_for("a"), judged.sample_for("b")
         for m in hits:
-            d = paired_difference(judged.sample, "a", a[at], "b", b[at], m)
+            d = paired_difference(sa, "a", sb, "b", m)
             hits[m] += d.low <= ta[m] - tb[m] <= d.high
     with capsys.disabled():
         print(f"\npaired differences on DBLP-ACM, {RUNS} runs: "
               + ", ".join(f"{m} {k}/{RUNS}" for m, k in hits.items()))
-    assert min(hits.values()) >= 0.9 * RUNS
+    assert min(hits.values()) >= 0.93 * RUNS

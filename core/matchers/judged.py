@@ -31,6 +31,16 @@ class Judged:
     sample: AuditSample  # score unused (0): each matcher's predictions are set per figure
     gold_at: np.ndarray  # positions of every gold-labelled pair
     gold_y: np.ndarray  # 1 match, 0 non-match, per gold_at
+    strata_at: dict[int, np.ndarray]  # positions of every candidate pair of each stratum
+
+    def sample_for(self, name: str) -> AuditSample:
+        """The audit sample scored by one matcher's predictions (1.0 / 0.0), with its
+        predictions over every candidate pair of each stratum as the ``population``, so its
+        predicted matches per stratum are counted, not estimated (as ``evaluate`` does for the
+        model)."""
+        pred = self.predicted[name].astype(float)
+        return self.sample.rescored(pred[self.audit_at],
+                                    population={h: pred[at] for h, at in self.strata_at.items()})
 
 
 def predictions(scores: np.ndarray, threshold: float) -> np.ndarray:
@@ -71,10 +81,13 @@ def gather(project: ProjectFile, names: Sequence[str] | None = None,
     sample = sample_from(np.zeros(len(kept)), [gold[p] for p, _, _ in kept],
                          [h for _, h, _ in kept], [pi for _, _, pi in kept], strata)
     g_ids = np.fromiter(gold, dtype=np.int64, count=len(gold))
+    every = np.array([-1 if h is None else h for (h,) in conn.execute(
+        "SELECT stratum FROM pairs ORDER BY pair_id")], dtype=np.int64)
+    strata_at = {int(h): np.flatnonzero(every == h) for h in np.unique(every) if h >= 0}
     return Judged(list(predicted), infos, predicted, given, ids,
                   np.searchsorted(ids, [p for p, _, _ in kept]), sample,
                   np.searchsorted(ids, g_ids), np.fromiter(gold.values(), dtype=np.int64,
-                                                           count=len(gold)))
+                                                           count=len(gold)), strata_at)
 
 
 def with_score(sample: AuditSample, score: np.ndarray) -> AuditSample:

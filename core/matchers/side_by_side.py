@@ -74,10 +74,10 @@ def between(judged: Judged) -> list[dict[str, Any]]:
 
 def differences(judged: Judged, confidence: float = 0.95) -> list[dict[str, Any]]:
     out = []
+    samples = {n: judged.sample_for(n) for n in judged.names}
     for a, b in combinations(judged.names, 2):
-        pa, pb = judged.predicted[a][judged.audit_at], judged.predicted[b][judged.audit_at]
         for measure in MEASURES:
-            out.append(paired_difference(judged.sample, a, pa, b, pb, measure,
+            out.append(paired_difference(samples[a], a, samples[b], b, measure,
                                          confidence).to_dict())
     return out
 
