@@ -9,6 +9,17 @@ delta-method variance from var T and var F (independent: disjoint labels), and t
 interval at the effective sample size (see ``estimates``). A domain whose labels show one kind
 only gets the add-half allowance for its variance.
 
+Few labels in a domain. The figure's uncertainty often rests on one small domain: on DBLP-ACM,
+the ~10 labelled pairs among the 243 pairs of the top stratum that the refit model scores below
+0.9, half of them matches. Two things then made the recall interval too short above (it held the
+truth in 0.927 of 300 seeded slices, missing high in 0.063): a variance estimated from ten pairs
+is itself uncertain, and the Clopper–Pearson shape of a figure near 1 is skewed downwards while
+the error, coming from a share near one half, is not. So each domain's variance is scaled by
+(t_{n-1} / z)^2 (never past the variance whose normal interval spans the share's whole range),
+and the interval is never shorter on either side than the normal one on the same variance
+(0.967 of the same 300 slices, half-width 0.043 against 0.035; common practice, the pairing of
+the two named from memory).
+
 Unseen domains. A domain with pairs but no labelled pair (predicted matches in a stratum whose
 labels hold none, say) has a share the labels cannot estimate. Its point counts it at the share
 of the strata that have labels (pooled), but the interval does not pretend to know more: its
@@ -30,13 +41,16 @@ LINEARISED = "linearised-korn-graubard"
 SMOOTHING = 0.5
 
 
-def _share(x: float, n: int, big: int, seen_kind: bool, a: float = SMOOTHING
-           ) -> tuple[float, float, float]:
+def _share(x: float, n: int, big: int, seen_kind: bool, confidence: float,
+           a: float = SMOOTHING) -> tuple[float, float, float]:
     """Share x / n of one domain of a stratum (n labelled of ``big`` pairs): the point, the
     share for the spread, and the variance of big times the share (NaN point: no label).
 
     Where the labels show one kind only (and ``seen_kind`` allows it), the variance is the
-    larger of the plain and the add-half one.
+    larger of the plain and the add-half one. Where they show both, the variance is itself
+    estimated from the n labels, so it is scaled by (t_{n-1} / z)^2, as a t interval would be
+    for a share measured on few pairs, but never past the variance whose normal interval spans
+    the whole range of the share (0 to 1) or the plain one, whichever is larger.
     """
     if big == 0:
         return 0.0, 0.0, 0.0
@@ -49,7 +63,17 @@ def _share(x: float, n: int, big: int, seen_kind: bool, a: float = SMOOTHING
     if seen_kind and (x == 0 or x == n) and big > n:
         smooth = (x + a) / (n + 2.0 * a)
         var = max(var, big ** 2 * fpc * smooth * (1.0 - smooth) / max(n - 1, 1))
+    elif 0 < x < n and n >= 2:
+        whole_range = (big * max(p, 1.0 - p) / z_value(confidence)) ** 2
+        var = min(var * t_ratio(n - 1, confidence), max(var, whole_range))
     return p, smooth, var
+
+
+def t_ratio(df: int, confidence: float) -> float:
+    """(t_df / z)^2 at the two-sided ``confidence`` (Student 1908; common practice)."""
+    from scipy.stats import t as student  # imported on first use (the review screen never needs it)
+
+    return float((student.ppf(0.5 + confidence / 2.0, df) / z_value(confidence)) ** 2)
 
 
 def _korn_graubard(point: float, spread_at: float, var: float, cap: float,
@@ -57,7 +81,11 @@ def _korn_graubard(point: float, spread_at: float, var: float, cap: float,
     spread = spread_at * (1.0 - spread_at)
     n_eff = spread / var if var > 0 and spread > 0 else cap
     n_eff = max(min(n_eff, cap), 1e-9)
-    return Interval(point, *clopper_pearson(point * n_eff, n_eff, confidence), LINEARISED)
+    low, high = clopper_pearson(point * n_eff, n_eff, confidence)
+    if var > 0:  # never narrower on either side than the plain normal interval
+        half = z_value(confidence) * math.sqrt(var)
+        low, high = min(low, max(0.0, point - half)), max(high, min(1.0, point + half))
+    return Interval(point, low, high, LINEARISED)
 
 
 @dataclass(frozen=True)
@@ -109,8 +137,8 @@ def known_domains(sample: AuditSample, t: float, cells: np.ndarray, confidence: 
         pp_h, rest = counts.get(h, 0), sample.stratum_sizes[h] - counts.get(h, 0)
         tp, fp, fn = cells[idx].sum(axis=0)
         a_h, b_h = int(tp + fp), idx.size - int(tp + fp)
-        parts.append((_Domain(pp_h, *_share(tp, a_h, pp_h, True)),
-                      _Domain(rest, *_share(fn, b_h, rest, tp + fn > 0))))
+        parts.append((_Domain(pp_h, *_share(tp, a_h, pp_h, True, confidence)),
+                      _Domain(rest, *_share(fn, b_h, rest, tp + fn > 0, confidence))))
 
     def pooled(side: int) -> float:  # 0: the predicted matches, 1: the other pairs
         seen = [d[side] for d in parts if not math.isnan(d[side].point)]
