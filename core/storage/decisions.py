@@ -3,7 +3,7 @@
 Nothing is ever deleted from ``decisions``. ``current`` holds, per pair, reviewer and role
 (a person may review a pair and later adjudicate it), the latest label decision that has not
 been retracted; it is rebuilt from the log for the one (pair, reviewer, role) a new decision
-touches, so the two can never drift apart.
+touches (for all that a merge touches at once), so the two can never drift apart.
 """
 
 from __future__ import annotations
@@ -60,6 +60,48 @@ def refresh(conn: sqlite3.Connection, pair_id: int, reviewer: str,
         "UPDATE pairs SET n_labels = (SELECT count(*) FROM current c WHERE c.pair_id = ? "
         "AND c.role = 'reviewer') WHERE pair_id = ?", (pair_id, pair_id))
     conn.execute("UPDATE pairs SET open = (n_labels < need) WHERE pair_id = ?", (pair_id,))
+
+
+_STANDING = ("SELECT c.reviewer, count(*) FROM current c JOIN temp.touched t USING "
+             "(pair_id, reviewer, role) WHERE c.role = 'reviewer' GROUP BY c.reviewer")
+
+
+def refresh_many(conn: sqlite3.Connection, keys: list[tuple[int, str, str]]) -> None:
+    """``refresh`` for many (pair_id, reviewer, role) at once, as a few statements over all of
+    them: a merge of 25,000 decisions ran 150,000 statements one key at a time."""
+    if len(keys) < 50:
+        for pair_id, reviewer, role in keys:
+            refresh(conn, pair_id, reviewer, role)
+        return
+    conn.execute("CREATE TEMP TABLE IF NOT EXISTS touched (pair_id INTEGER, reviewer TEXT, "
+                 "role TEXT, PRIMARY KEY (pair_id, reviewer, role)) WITHOUT ROWID")
+    conn.execute("DELETE FROM temp.touched")
+    conn.executemany("INSERT OR IGNORE INTO temp.touched VALUES (?, ?, ?)",
+                     [(int(p), r, o) for p, r, o in keys])
+    before = dict(conn.execute(_STANDING).fetchall())
+    conn.execute("DELETE FROM current WHERE (pair_id, reviewer, role) IN "
+                 "(SELECT pair_id, reviewer, role FROM temp.touched)")
+    # The same choice as refresh: the latest label not retracted, ties broken by id.
+    conn.execute(
+        "INSERT INTO current SELECT pair_id, reviewer, role, decision_id, label, decided_at "
+        "FROM (SELECT d.pair_id, d.reviewer, d.role, d.decision_id, d.label, d.decided_at, "
+        "  row_number() OVER (PARTITION BY d.pair_id, d.reviewer, d.role "
+        "    ORDER BY d.decided_at DESC, d.decision_id DESC) AS k "
+        "  FROM temp.touched t JOIN decisions d ON d.pair_id = t.pair_id "
+        "  AND d.reviewer = t.reviewer AND d.role = t.role WHERE d.label IS NOT NULL "
+        "  AND NOT EXISTS (SELECT 1 FROM decisions r WHERE r.supersedes = d.decision_id "
+        "    AND r.label IS NULL)) WHERE k = 1")
+    after = dict(conn.execute(_STANDING).fetchall())
+    conn.executemany("UPDATE reviewers SET standing = standing + ? WHERE name = ?",
+                     [(after.get(n, 0) - before.get(n, 0), n) for n in {*before, *after}
+                      if after.get(n, 0) != before.get(n, 0)])
+    conn.execute(
+        "UPDATE pairs SET n_labels = (SELECT count(*) FROM current c WHERE c.pair_id = "
+        "pairs.pair_id AND c.role = 'reviewer') WHERE pair_id IN "
+        "(SELECT pair_id FROM temp.touched)")
+    conn.execute("UPDATE pairs SET open = (n_labels < need) WHERE pair_id IN "
+                 "(SELECT pair_id FROM temp.touched)")
+    conn.execute("DELETE FROM temp.touched")
 
 
 def append(conn: sqlite3.Connection, pair_id: int, reviewer: str, label: str | None,
