@@ -140,3 +140,26 @@ def test_the_paired_difference_covers_the_true_difference(dblp: tuple, capsys) -
         print(f"\npaired differences on DBLP-ACM, {RUNS} runs: "
               + ", ".join(f"{m} {k}/{RUNS}" for m, k in hits.items()))
     assert min(hits.values()) >= 0.93 * RUNS
+
+
+def test_the_model_row_is_what_evaluate_reports(sample_project: Path, tmp_path: Path) -> None:
+    # Part of the audit slice labelled, as in a project under way: every matcher's predicted
+    # matches per stratum are counted over all candidate pairs, as evaluate counts the model's,
+    # so the model's row must equal evaluate's figures at the threshold.
+    from docket.core.quality.evaluate import evaluate
+    with Project.open(sample_project) as p:
+        audit = p.connection.execute("SELECT pair_id, left_id, right_id FROM pairs WHERE "
+                                     "audit = 1 ORDER BY pair_id LIMIT 60").fetchall()
+        for pid, a, b in audit:
+            p.decide(pid, "oracle", "match" if (a, b) in SAMPLE_TRUTH else "non-match")
+        frame = candidates(p)
+        y = is_match(frame, SAMPLE_TRUTH)
+        import_matchers(p, [label_file(tmp_path / "m.csv", frame, {"truth": y})])
+        report = side_by_side(p)
+        plain = evaluate(p)["at_threshold"]
+    model = _row(report, "(model)")
+    for measure in ("precision", "recall", "f1"):
+        for end in ("value", "low", "high"):
+            assert model[measure][end] == pytest.approx(plain[measure][end]), (measure, end)
+    truth = _row(report, "truth")
+    assert truth["recall"]["low"] > 0.0 and truth["precision"]["high"] == 1.0

@@ -89,7 +89,3 @@ def gather(project: ProjectFile, names: Sequence[str] | None = None,
                   np.searchsorted(ids, g_ids), np.fromiter(gold.values(), dtype=np.int64,
                                                            count=len(gold)), strata_at)
 
-
-def with_score(sample: AuditSample, score: np.ndarray) -> AuditSample:
-    return AuditSample(score, sample.label, sample.stratum, sample.inclusion_probability,
-                       sample.stratum_sizes, sample.drawn)

@@ -23,7 +23,7 @@ from ..reviewing.agreement import cohen_kappa, json_ready
 from ..storage.project_file import ProjectFile
 from . import catalogue
 from .distillation import distillation
-from .judged import Judged, gather, with_score
+from .judged import Judged, gather
 from .paired import MEASURES, METHOD, paired_difference
 from .stability import variants
 
@@ -44,7 +44,7 @@ def kappa_of(a: np.ndarray, b: np.ndarray) -> dict[str, Any]:
 def figures(judged: Judged, name: str, confidence: float = 0.95) -> dict[str, Any]:
     """One matcher's row: P, R, F1 with intervals, audit pairs used, kappa against the gold."""
     pred = judged.predicted[name]
-    sample = with_score(judged.sample, pred[judged.audit_at].astype(float))
+    sample = judged.sample_for(name)
     e = estimates.estimate_at(sample, 0.5, confidence)
     info = judged.infos[name]
     gold = judged.gold_y == 1
