@@ -1,20 +1,45 @@
 """docket's library: records in, scored candidate pairs, a review queue and a decision log out.
 
-Front ends use :class:`Project` and the dataclasses in :mod:`docket.core.types`; nothing here
-imports a user interface.
+Front ends use :class:`Project` (the facade), the dataclasses in :mod:`docket.core.types`, the
+errors in :mod:`docket.core.errors`, and the few helpers named in ``__all__`` below: how to
+word odds and factors, the personal-data caution, the parsers of ``--map`` and ``--field``, and
+the writers of the rows the facade returns. Nothing here imports a user interface.
 """
 
+from importlib import import_module
 from typing import Any
 
 from .errors import DocketError
 from .project import Project
 
-__all__ = ["DocketError", "NewProject", "Project"]
+# name -> (module under docket.core, name there). Loaded when first asked for, so opening the
+# review screen does not import pandas for a helper it never calls.
+_ELSEWHERE = {
+    "NewProject": ("storage.build", "NewProject"),
+    "CAUTION": ("report", "CAUTION"),
+    "one_to_one_suggestion": ("report", "one_to_one_suggestion"),
+    "MODEL_NAMES": ("matching.explain", "MODEL_NAMES"),
+    "odds_text": ("matching.explain", "odds_text"),
+    "factor_text": ("matching.explain", "factor_text"),
+    "parse_map": ("records.fields", "parse_map"),
+    "parse_kinds": ("records.fields", "parse_kinds"),
+    "DEFAULT_THRESHOLDS": ("quality.evaluate", "DEFAULT_THRESHOLDS"),
+    "QUEUE_ORDERS": ("ordering.queue_order", "MODES"),
+    "FailureGroup": ("matchers.failures", "FailureGroup"),
+    "file_trouble": ("storage.file_health", "explain"),
+    "output_format": ("exports.exporting", "output_format"),
+    "atomic_write": ("exports.exporting", "atomic_write"),
+    "write_rows": ("exports.export_kinds", "write_rows"),
+    "score_to_parts": ("exports.score_all", "score_to_parts"),
+}
+
+__all__ = ["DocketError", "Project", *_ELSEWHERE]
 
 
 def __getattr__(name: str) -> Any:
-    # NewProject lives with the build code, which needs pandas: load it only when asked for.
-    if name == "NewProject":
-        from .storage.build import NewProject
-        return NewProject
-    raise AttributeError(name)
+    if name not in _ELSEWHERE:
+        raise AttributeError(name)
+    module, attr = _ELSEWHERE[name]
+    value = getattr(import_module(f".{module}", __name__), attr)
+    globals()[name] = value
+    return value

@@ -11,23 +11,28 @@ from collections.abc import Collection
 from typing import TYPE_CHECKING, Any
 
 from .errors import DocketError
+from .matcher_verbs import MatcherVerbs
 from .matchers.split_queue import SplitFirst
 from .matching.explain import explanation
 from .ordering import queue
+from .report_verbs import ReportVerbs
 from .reviewing import gold, missed
 from .reviewing.gold import Gold, gold_labels
 from .reviewing.missed import MissedMatch
 from .storage import claims, roles, search, store
 from .storage import decisions as log
-from .storage.project_file import ProjectFile
 from .storage.refit import RefitResult, refit
+from .team_verbs import TeamVerbs
 from .types import ROLES, Decision, FieldComparison, PairCard, QueueItem
 
 if TYPE_CHECKING:  # building needs pandas; opening a project does not
     from .storage.build import Built, NewProject, Progress
 
-class Project(SplitFirst, ProjectFile):
+class Project(TeamVerbs, ReportVerbs, MatcherVerbs, SplitFirst):
     """The facade: an open project file plus the verbs the front ends need.
+
+    The verbs over people's labels, reports and stored matchers live in ``team_verbs``,
+    ``report_verbs`` and ``matcher_verbs``; the queue, pairs and decisions here.
 
     Thread-safe for one writer: calls are serialised by the file's lock.
     """

@@ -113,3 +113,35 @@ class FieldSpec:
 
     def to_dict(self) -> dict[str, Any]:
         return asdict(self)
+
+
+@dataclass(frozen=True)
+class Review:
+    """One standing label on a pair, as the adjudication screen lists it.
+
+    ``seconds`` is all the time this person spent on the pair in that role, retracted
+    decisions included. ``own`` flags the adjudicator's own earlier reviewer label, which they
+    are then asked to settle. Entries with role 'adjudicator' are standing adjudications: a
+    hold that left the pair waiting, or a final label someone may overrule.
+    """
+
+    reviewer: str
+    label: str
+    note: str
+    seconds: float
+    decided_at: str
+    own: bool
+    role: str = "reviewer"
+
+
+@dataclass(frozen=True)
+class ClusterConflict:
+    """A cluster of gold matches that holds a gold non-match between two of its members."""
+
+    cluster: int
+    members: tuple[tuple[str, str], ...]  # (side, record id); side is "" in dedupe mode
+    non_match_pairs: tuple[int, ...]  # the gold non-matches inside the cluster
+    match_pairs: tuple[int, ...]  # the gold matches that hold the cluster together
+
+    def to_dict(self) -> dict[str, Any]:
+        return asdict(self)

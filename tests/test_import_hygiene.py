@@ -24,7 +24,8 @@ FLOORS = [
     {"quality"},
     {"matchers"},
     {"exports"},
-    {"project", "report", ""},  # the facade ("" is docket.core itself)
+    # the facade and its verbs ("" is docket.core itself)
+    {"project", "team_verbs", "report_verbs", "matcher_verbs", "report", ""},
 ]
 UI = ("textual", "rich")
 CORE = Path(docket.core.__file__).parent

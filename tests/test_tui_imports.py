@@ -38,7 +38,27 @@ def test_command_modules_share_only_the_base() -> None:
 
 
 def test_no_connection_or_sql_in_the_front_end() -> None:
-    sql = re.compile(r"\.connection\b|\.execute\(|\bSELECT\b|\bINSERT\b|\bUPDATE\b")
+    sql = re.compile(r"\.connection\b|\.execute\(|\.reading\(|\.transaction\(|\bSELECT\b"
+                     r"|\bINSERT\b|\bUPDATE\b")
     bad = [f"{p.relative_to(TUI)}:{n}: {line.strip()}" for p in MODULES.values()
            for n, line in enumerate(p.read_text().splitlines(), 1) if sql.search(line)]
     assert not bad, "\n".join(bad)
+
+
+# Project, the plain data it returns (types), its errors, and the helpers docket.core names
+FACADE = {"docket.core", "docket.core.project", "docket.core.types", "docket.core.errors"}
+NOT_YET = {"docket.tui.screens.adjudicate"}  # still calls reviewing/ and exports/ directly
+
+
+def test_front_end_reaches_the_core_only_through_the_facade() -> None:
+    bad = [f"{m}:{line} imports {t}" for m, p in MODULES.items() if m not in NOT_YET
+           for line, t in imports(m, p, MODULES)
+           if t.startswith("docket.core") and t not in FACADE]
+    assert not bad, "\n".join(bad)
+
+
+def test_the_facade_names_what_it_lends() -> None:
+    # every helper docket.core lends is importable from it, so the rule above costs nothing
+    import docket.core
+    missing = [n for n in docket.core.__all__ if getattr(docket.core, n, None) is None]
+    assert not missing, missing

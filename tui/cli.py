@@ -63,8 +63,8 @@ def _main(argv: list[str] | None) -> int:
         print(f"docket: {shown(exc)}", file=sys.stderr)
         return exc.exit_code
     except sqlite3.Error as exc:  # the file met trouble mid-command (full disk, busy, damage)
-        from docket.core.storage.file_health import explain
-        print(f"docket: {shown(explain(exc, getattr(args, 'project', None) or 'project'))}",
+        from docket.core import file_trouble
+        print(f"docket: {shown(file_trouble(exc, getattr(args, 'project', None) or 'project'))}",
               file=sys.stderr)
         return 2
     except KeyboardInterrupt:

@@ -1,7 +1,7 @@
 """``docket evaluate`` and ``docket export``.
 
-Argument parsing and printing only: the figures come from ``docket.core.quality.evaluate`` and the
-frames from ``docket.core.exports.gold_export``.
+Argument parsing and printing only: the figures and the frames come from the facade
+(``Project.evaluate``, ``Project.export_rows``).
 """
 
 from __future__ import annotations
@@ -14,8 +14,6 @@ from .cli_base import command, open_project
 from .cli_checks import share
 from .figures import bounds, estimate, interval, number
 from .terminal import json_text
-
-EXPORTS = ("gold", "training", "clusters", "conflicts", "missed")
 
 
 def _shares(text: str) -> list[float]:
@@ -116,20 +114,18 @@ def evaluate(args: argparse.Namespace) -> int:
     if args.matchers:
         from .matchers_report import evaluate_matchers
         return evaluate_matchers(args)
-    from docket.core.quality.evaluate import evaluate as model_report
-    from docket.core.quality.evaluate import evaluate_predictions
     with Project.open(args.project, readonly=True) as project:
         if args.predictions:
-            report = evaluate_predictions(project, args.predictions, args.threshold,
-                                          args.thresholds, args.target_precision,
-                                          args.target_recall)
+            report = project.evaluate_predictions(args.predictions, args.threshold,
+                                                  args.thresholds, args.target_precision,
+                                                  args.target_recall)
         else:
             if args.threshold is not None:
                 from docket.core import DocketError
                 raise DocketError("--threshold goes with --predictions; the project's own "
                                   "threshold is set at 'docket new'")
-            report = model_report(project, args.thresholds, args.target_precision,
-                                  args.target_recall)
+            report = project.evaluate(args.thresholds, args.target_precision,
+                                      args.target_recall)
         name = project.meta.get("name") or project.path.stem
     if args.json:
         print(json_text(report))
@@ -139,7 +135,7 @@ def evaluate(args: argparse.Namespace) -> int:
 
 
 def export(args: argparse.Namespace) -> int:
-    from docket.core.exports.exporting import output_format, scores_frame, write_frame
+    from docket.core import output_format
     if args.what == "model":
         from .cli_scale import export_model
         with open_project(args.project, readonly=True) as project:
@@ -153,9 +149,10 @@ def export(args: argparse.Namespace) -> int:
         write_export(result, args.output, args.format,
                               guard=getattr(args, "formula_guard", True))
         return 0
+    from docket.core import write_rows
     with open_project(args.project, readonly=True) as project:
-        frame = scores_frame(project)
-    write_frame(frame, args.output, args.format, guard=getattr(args, "formula_guard", True))
+        frame = project.scores_frame()
+    write_rows(frame, args.output, args.format, guard=getattr(args, "formula_guard", True))
     if args.output != "-":
         print(f"wrote {len(frame):,} pairs to {args.output}", file=sys.stderr)
     return 0
@@ -264,53 +261,23 @@ def _machine_lines(report: dict[str, Any]) -> list[str]:
 
 # -- exports ------------------------------------------------------------------------------------
 def export_other(project: Any, what: str, args: argparse.Namespace) -> Any:
-    """The frame (or, with --for-lm, the list of records) that ``docket export --what`` writes.
-
-    ``what`` is gold, training, clusters or conflicts; ``args`` may carry ``test_share``,
-    ``seed``, ``for_lm`` and ``all_records``.
-    """
-    from docket.core import DocketError
-    from docket.core.exports import gold_export as ge
+    """The frame (or, with --for-lm, the list of records) that ``docket export --what``
+    writes. ``args`` may carry ``test_share``, ``seed``, ``split_by``, ``for_lm``,
+    ``lm_template`` and ``all_records``."""
     share = getattr(args, "test_share", None)
-    share = 0.2 if share is None else float(share)
-    seed = int(getattr(args, "seed", 0) or 0)
-    split_by = getattr(args, "split_by", None) or "record"
-    template_file = getattr(args, "lm_template", None)
-    if template_file and not getattr(args, "for_lm", False):
-        raise DocketError("--lm-template shapes the --for-lm text: add --for-lm")
-    if getattr(args, "for_lm", False):
-        from docket.core.exports.lm_export import lm_records
-        from docket.core.exports.lm_text import LmTemplate
-        return lm_records(project, what, LmTemplate.load(template_file), share, seed,
-                          split_by)
-    if what == "gold":
-        return ge.gold_frame(project)
-    if what == "training":
-        return ge.training_frame(project, share, seed, split_by)
-    if what == "clusters":
-        return ge.clusters_frame(project, bool(getattr(args, "all_records", False)))
-    if what == "conflicts":
-        return ge.conflicts_frame(project)
-    if what == "missed":
-        from docket.core.reviewing.missed import frame
-        with project.reading() as conn:
-            return frame(conn)
-    raise DocketError(f"--what {what}: use one of scores, {', '.join(EXPORTS)}")
+    return project.export_rows(
+        what, test_share=0.2 if share is None else float(share),
+        seed=int(getattr(args, "seed", 0) or 0),
+        split_by=getattr(args, "split_by", None) or "record",
+        all_records=bool(getattr(args, "all_records", False)),
+        for_lm=bool(getattr(args, "for_lm", False)),
+        lm_template=getattr(args, "lm_template", None))
 
 
 def write_export(result: Any, target: str, fmt: str | None, guard: bool = True) -> int:
     """Write what ``export_other`` returned; returns the number of rows written."""
-    from docket.core import DocketError
-    from docket.core.exports.exporting import output_format, write_frame
-    from docket.core.exports.gold_export import write_jsonl
-    if isinstance(result, list):
-        kind = fmt or ("jsonl" if target == "-" else output_format(target, None))
-        if kind != "jsonl":
-            raise DocketError("--for-lm writes JSON lines: give a .jsonl file, or "
-                              "--format jsonl")
-        write_jsonl(result, target)
-    else:
-        write_frame(result, target, fmt, guard)
+    from docket.core import write_rows
+    n = write_rows(result, target, fmt, guard)
     if target != "-":
-        print(f"wrote {len(result):,} rows to {target}", file=sys.stderr)
-    return len(result)
+        print(f"wrote {n:,} rows to {target}", file=sys.stderr)
+    return n

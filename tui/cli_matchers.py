@@ -58,7 +58,6 @@ def register(sub: argparse._SubParsersAction) -> None:
 
 def run(args: argparse.Namespace) -> int:
     from docket.core import DocketError, Project
-    from docket.core.matchers import catalogue
     if args.action != "import" and args.name:
         raise DocketError("--name goes with import")
     readonly = args.action == "list"
@@ -68,14 +67,14 @@ def run(args: argparse.Namespace) -> int:
         elif args.action == "mark":
             out = _mark(project, args)
         elif args.action == "remove":
-            catalogue.forget(project, args.names)
+            project.forget_matchers(args.names)
             out = {"removed": args.names}
         elif args.action == "ensemble":
             out = _ensemble(project, args)
         elif args.action == "queue":
             out = _queue(project, args)
         else:
-            out = catalogue.listing(project)
+            out = project.matchers()
     if args.json:
         print(json_text(out))
         return 0
@@ -85,10 +84,9 @@ def run(args: argparse.Namespace) -> int:
 
 def _import(project: Any, args: argparse.Namespace) -> list[dict[str, Any]]:
     from docket.core import DocketError
-    from docket.core.matchers.importing import import_matchers
     if not args.names:
         raise DocketError("import needs at least one file of matcher output")
-    read = import_matchers(project, args.names, name=args.name, replace=args.replace,
+    read = project.import_matchers(args.names, name=args.name, replace=args.replace,
                            threshold=0.5 if args.threshold is None else args.threshold,
                            group=args.group, role=args.role)
     return [{"name": m.name, "kind": m.kind, "source": m.source, "rows": m.rows,
@@ -97,45 +95,38 @@ def _import(project: Any, args: argparse.Namespace) -> list[dict[str, Any]]:
 
 
 def _mark(project: Any, args: argparse.Namespace) -> list[dict[str, Any]]:
-    from docket.core.matchers import catalogue
-    return catalogue.mark_all(project, args.names, group=args.group, role=args.role,
+    return project.mark_matchers(args.names, group=args.group, role=args.role,
                               threshold=args.threshold, clear=args.clear)
 
 
 def _ensemble(project: Any, args: argparse.Namespace) -> list[dict[str, Any]]:
     from docket.core import DocketError
-    from docket.core.matchers.ensembles import store_ensemble
     if len(args.names) != 1 or not args.of:
         raise DocketError("ensemble needs one new name and --of A,B,... (at least two)")
     members = [m.strip() for m in args.of.split(",") if m.strip()]
-    store_ensemble(project, args.names[0], members, args.method, args.with_reviewers,
-                   args.replace)
-    from docket.core.matchers import catalogue
-    return catalogue.listing(project)
+    project.store_ensemble(args.names[0], members, args.method, args.with_reviewers,
+                           args.replace)
+    return project.matchers()
 
 
 def apply_demo_matchers(project: Any, folder: Any) -> list[str]:
     """Store the demo's invented matcher outputs (``sample/make_matchers.py``), marked as the
     scenario has them: three prompt variants of one model, its distilled student, a rule."""
-    from docket.core.matchers import catalogue
-    from docket.core.matchers.importing import import_matchers
-    import_matchers(project, [folder / "matchers_lm.csv"], group="lm-prompts", replace=True)
-    import_matchers(project, [folder / "matcher_rules.csv"], name="rules", threshold=0.6,
-                    replace=True)
-    import_matchers(project, [folder / "matcher_student.csv"], name="student", role="student",
-                    replace=True)
-    catalogue.mark_all(project, ["lm-plain"], role="teacher")
-    return [m["name"] for m in catalogue.listing(project)]
+    project.import_matchers([folder / "matchers_lm.csv"], group="lm-prompts", replace=True)
+    project.import_matchers([folder / "matcher_rules.csv"], name="rules", threshold=0.6,
+                            replace=True)
+    project.import_matchers([folder / "matcher_student.csv"], name="student",
+                            role="student", replace=True)
+    project.mark_matchers(["lm-plain"], role="teacher")
+    return [m["name"] for m in project.matchers()]
 
 
 def _queue(project: Any, args: argparse.Namespace) -> dict[str, Any]:
-    from docket.core import DocketError
-    from docket.core.matchers.queue_mode import choose_order
-    from docket.core.ordering.queue_order import MODES
-    if len(args.names) != 1 or args.names[0] not in MODES:
+    from docket.core import QUEUE_ORDERS, DocketError
+    if len(args.names) != 1 or args.names[0] not in QUEUE_ORDERS:
         raise DocketError("queue needs one order: disagreement or uncertain")
     members = [m.strip() for m in args.of.split(",") if m.strip()] if args.of else None
-    return choose_order(project, args.names[0], members)
+    return project.choose_queue_order(args.names[0], members)
 
 
 def render(action: str, out: Any) -> list[str]:

@@ -40,7 +40,7 @@ def print_built(built: Any) -> None:
         print(f"sampled: {s['kept_pairs']:,} of {s['population_pairs']:,} pairs kept "
               f"(--sample-above {s['sample_above']:,}); every pair's pattern is counted "
               "and estimates are weighted to all pairs")
-    from docket.core.matching.explain import odds_text
+    from docket.core import CAUTION, odds_text, one_to_one_suggestion
     prior = min(max(built.model.prior, 1e-300), 1 - 1e-16)
     print(f"model: odds of a match before the fields "
           f"{odds_text(math.log(prior / (1 - prior)))} (fitted in {built.model.iterations} "
@@ -48,9 +48,7 @@ def print_built(built: Any) -> None:
           "pairs")
     hint = built.one_to_one_hint
     if hint is not None and hint.suggest:
-        from docket.core.report import one_to_one_suggestion
         print(f"suggestion: {one_to_one_suggestion({'one_to_one_hint': hint.to_dict()}, 0)}")
-    from docket.core.report import CAUTION
     print(f"note: {CAUTION}")
 
 
@@ -69,8 +67,7 @@ def _ids_line(built: Any) -> str:
 
 
 def new(args: argparse.Namespace) -> int:
-    from docket.core import NewProject, Project
-    from docket.core.records.fields import parse_kinds, parse_map
+    from docket.core import NewProject, Project, parse_kinds, parse_map
 
     from .progress import progress_bar
     if args.id_column and (args.left_id or args.right_id):
@@ -96,9 +93,8 @@ def new(args: argparse.Namespace) -> int:
 
 
 def status(args: argparse.Namespace) -> int:
-    from docket.core.report import status as get_status
     with open_project(args.project, readonly=True) as project:
-        info = get_status(project)
+        info = project.status()
     if args.json:
         print(json_text(info))
         return 0
@@ -121,7 +117,7 @@ def status(args: argparse.Namespace) -> int:
     for name, c in dec["per_reviewer"].items():
         counts = ", ".join(f"{k} {v:,}" for k, v in c.items() if k != "role")
         print(f"  {shown(name):<16} {c['role']:<12} {counts}")
-    from docket.core.matching.explain import MODEL_NAMES, factor_text, odds_text
+    from docket.core import MODEL_NAMES, factor_text, odds_text
 
     print(f"model        {MODEL_NAMES.get(model['ranker'], model['ranker'])} ranks the queue "
           f"({model['ranker_note']}); threshold {model['threshold']}"
@@ -174,12 +170,9 @@ def next_pairs(args: argparse.Namespace) -> int:
 
 
 def label(args: argparse.Namespace) -> int:
-    from docket.core.reviewing.bulk import apply_rows, read_rows
     reviewer = default_reviewer(args.reviewer)
     with open_project(args.project) as project:  # registers the reviewer only if it records
-        rows = read_rows(project, Path(args.source))
-        n = apply_rows(project, reviewer, rows)
-        result = project.refit()
+        n, result = project.label_from(Path(args.source), reviewer)
     aside = (f"; {result.set_aside:,} set aside (audit pairs, judged apart, and pairs still "
              "waiting for another reviewer)" if result.set_aside else "")
     print(f"recorded {n:,} decisions for {reviewer}; refit: ranker {result.ranker}, "

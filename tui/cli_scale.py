@@ -39,16 +39,12 @@ def register(sub: argparse._SubParsersAction) -> None:
 
 
 def score(args: argparse.Namespace) -> int:
-    from docket.core import Project
-    from docket.core.exports.score_all import make_job, score_to_parts, stored_tables
-    from docket.core.matching.model_file import ScoringModel, from_meta
+    from docket.core import Project, score_to_parts
 
     from .progress import progress_bar
     with Project.open(args.project, readonly=True) as project:
-        model = ScoringModel.load(args.model) if args.model else from_meta(project.meta)
-        left, right = stored_tables(project, args.left and Path(args.left),
-                                    args.right and Path(args.right))
-    job = make_job(model, left, right, str(args.pairs))
+        job = project.scoring_job(args.pairs, args.model, args.left, args.right)
+    model = job.model
     with progress_bar() as update:
         rows = score_to_parts(job, Path(args.pairs), Path(args.output), args.engine,
                               args.workers, args.scheduler,
@@ -60,9 +56,8 @@ def score(args: argparse.Namespace) -> int:
 
 def export_model(project: Any, target: str) -> None:
     """The project's current model as a small JSON file (``docket export --what model``)."""
-    from docket.core.exports.exporting import atomic_write
-    from docket.core.matching.model_file import from_meta
-    text = json.dumps(from_meta(project.meta).to_dict())
+    from docket.core import atomic_write
+    text = json.dumps(project.model_file())
     if target == "-":
         print(text)
         return

@@ -119,7 +119,6 @@ def _refuse_to_discard(path: Path) -> None:
 
 def demo(args: argparse.Namespace) -> int:
     from docket.core import Project
-    from docket.core.reviewing.bulk import label_once
 
     from .progress import progress_bar
     folder = Path(args.dir)
@@ -134,8 +133,8 @@ def demo(args: argparse.Namespace) -> int:
             built = Project.create(spec, progress=update)
         print_built(built)
         with Project.open(spec.path) as project:
-            n = label_once(project, DEMO_SECOND_REVIEWER, sample_dir() / "second_reviewer.csv",
-                           default_reviewer(args.reviewer))
+            n = project.label_once(DEMO_SECOND_REVIEWER, sample_dir() / "second_reviewer.csv",
+                                   default_reviewer(args.reviewer))
             from .cli_matchers import apply_demo_matchers
             names = apply_demo_matchers(project, sample_dir())
         print(f"second reviewer {DEMO_SECOND_REVIEWER}: {n:,} labels on overlap pairs; "

@@ -75,15 +75,14 @@ def _duration(seconds: float) -> str:
 
 
 def reviewers(args: argparse.Namespace) -> int:
-    from docket.core.reviewing.team import add_reviewer, list_reviewers
     if args.action == "add":
         with open_project(args.project) as project:
-            change = add_reviewer(project, args.name, args.role,
-                                  granted_by=default_reviewer(args.by))
+            change = project.add_reviewer(args.name, args.role,
+                                          granted_by=default_reviewer(args.by))
         print(change.message)
         return 0
     with open_project(args.project, readonly=True) as project:
-        people = list_reviewers(project)
+        people = project.reviewers()
     if args.json:
         print(json_text(people))
         return 0
@@ -179,7 +178,6 @@ def print_agreement(report: dict[str, Any]) -> None:
 
 
 def agreement(args: argparse.Namespace) -> int:
-    from docket.core.reviewing.team import agreement_report
     if args.screen:
         from pathlib import Path
 
@@ -189,7 +187,7 @@ def agreement(args: argparse.Namespace) -> int:
         run_agreement(Path(args.project))
         return 0
     with open_project(args.project, readonly=True) as project:
-        report = agreement_report(project, include_hold=args.include_hold)
+        report = project.agreement(include_hold=args.include_hold)
     if args.json:
         print(json_text(report))
     else:
@@ -199,11 +197,9 @@ def agreement(args: argparse.Namespace) -> int:
 
 # -- merge ---------------------------------------------------------------------------------
 def merge(args: argparse.Namespace) -> int:
-    from docket.core.reviewing.merge import merge as merge_files
     with open_project(args.project) as project:
-        result = merge_files(project, [Path(p) for p in args.others],
-                             accept_roles=args.accept_roles)
-        refit = project.refit() if result.added else None
+        result, refit = project.merge([Path(p) for p in args.others],
+                                      accept_roles=args.accept_roles)
     for f in result.files:
         print(f"  {f.path}: {f.decisions:,} decisions, {f.new:,} new")
     for change in result.role_changes:

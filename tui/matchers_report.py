@@ -11,7 +11,6 @@ from .terminal import json_text
 
 def evaluate_matchers(args: argparse.Namespace) -> int:
     from docket.core import DocketError, Project
-    from docket.core.matchers.side_by_side import side_by_side
     for option in ("predictions", "threshold", "thresholds", "target_precision",
                    "target_recall"):
         if getattr(args, option, None) is not None:
@@ -19,7 +18,7 @@ def evaluate_matchers(args: argparse.Namespace) -> int:
                               "each matcher is judged at its own threshold (docket matchers "
                               "PROJECT mark NAME --threshold T)")
     with Project.open(args.project, readonly=True) as project:
-        report = side_by_side(project)
+        report = project.side_by_side()
         name = project.meta.get("name") or project.path.stem
     if args.json:
         print(json_text(report))

@@ -24,7 +24,6 @@ from textual.driver import Driver
 from textual.screen import Screen
 
 from docket.core.project import Project
-from docket.core.reviewing.adjudication import require_adjudicator
 
 from .keymap import LoadedKeymap, load_keymap
 from .masking import Mask, expand_mask
@@ -128,7 +127,7 @@ def make_team_app(path: Path | str, adjudicator: str = "", *, start: Start = "ad
     project = Project.open(Path(path)) if start == "adjudicate" else open_project(Path(path))
     try:
         if start == "adjudicate":
-            require_adjudicator(project, adjudicator)
+            project.require_adjudicator(adjudicator)
         mask = expand_mask(project, mask)
     except BaseException:
         project.close()

@@ -12,7 +12,7 @@ from __future__ import annotations
 import json
 from collections import Counter
 from collections.abc import Iterable
-from dataclasses import asdict, dataclass
+from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
@@ -22,6 +22,7 @@ import pandas as pd
 from ..reviewing.gold import gold_labels, needs_adjudication
 from ..storage import store
 from ..storage.project_file import ProjectFile
+from ..types import ClusterConflict
 from . import clusters as clustering
 from .exporting import atomic_write, to_stdout
 from .gold_detail import DETAIL_COLUMNS, details
@@ -150,19 +151,6 @@ def write_jsonl(records: list[dict[str, Any]], target: str) -> None:
 
 
 # -- clusters and conflicts ---------------------------------------------------------------------
-@dataclass(frozen=True)
-class ClusterConflict:
-    """A cluster of gold matches that holds a gold non-match between two of its members."""
-
-    cluster: int
-    members: tuple[tuple[str, str], ...]  # (side, record id); side is "" in dedupe mode
-    non_match_pairs: tuple[int, ...]  # the gold non-matches inside the cluster
-    match_pairs: tuple[int, ...]  # the gold matches that hold the cluster together
-
-    def to_dict(self) -> dict[str, Any]:
-        return asdict(self)
-
-
 @dataclass(frozen=True)
 class _State:
     cluster_of: dict[str, int]

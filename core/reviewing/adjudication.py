@@ -7,32 +7,11 @@ wait, and what becomes gold, is the policy of ``reviewing.gold``.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 from ..errors import DocketError
 from ..storage import claims
 from ..storage.project_file import ProjectFile
-from ..types import LABELS, Decision
+from ..types import LABELS, Decision, Review
 from . import gold
-
-
-@dataclass(frozen=True)
-class Review:
-    """One standing label on a pair, as the adjudication screen lists it.
-
-    ``seconds`` is all the time this person spent on the pair in that role, retracted
-    decisions included. ``own`` flags the adjudicator's own earlier reviewer label, which they
-    are then asked to settle. Entries with role 'adjudicator' are standing adjudications: a
-    hold that left the pair waiting, or a final label someone may overrule.
-    """
-
-    reviewer: str
-    label: str
-    note: str
-    seconds: float
-    decided_at: str
-    own: bool
-    role: str = "reviewer"
 
 
 def is_adjudicator(project: ProjectFile, name: str) -> bool:

@@ -18,8 +18,6 @@ from textual.coordinate import Coordinate
 from textual.widgets import DataTable, Static
 from textual.worker import Worker, WorkerState
 
-from docket.core.reviewing.team import agreement_report, disagreements
-
 from .. import literal
 from ..diff import PLAIN, Palette
 from ..widgets.key_bar import KeyBar
@@ -73,7 +71,7 @@ class AgreementScreen(TeamScreen):
 
         def work() -> dict[str, Any]:
             with app.reader() as project:
-                return agreement_report(project, include_hold=include_hold)
+                return project.agreement(include_hold=include_hold)
 
         self.run_worker(work, thread=True, exit_on_error=False, group="agreement", name="agreement",
                         exclusive=True)
@@ -210,7 +208,7 @@ class DisagreementsScreen(TeamScreen):
     def on_mount(self) -> None:
         app = self.team_app
         p = Palette.from_variables(self.app.get_css_variables(), self.app.no_color)
-        self.rows = disagreements(app.project, self.a, self.b)
+        self.rows = app.project.disagreements(self.a, self.b)
         sa, sb = self.shown.get(self.a, self.a), self.shown.get(self.b, self.b)
         head = Text(f"{len(self.rows):,} disagreement{'s' if len(self.rows) != 1 else ''} of ",
                     "bold")

@@ -17,7 +17,7 @@ from textual.coordinate import Coordinate
 from textual.screen import Screen
 from textual.widgets import DataTable, Static
 
-from docket.core.exports.gold_export import ClusterConflict
+from docket.core.types import ClusterConflict
 
 from .. import literal
 from ..diff import Palette

@@ -16,7 +16,7 @@ from textual.binding import Binding, BindingType
 from textual.widgets import DataTable, Footer, Static
 from textual.worker import Worker, WorkerState
 
-from docket.core.matchers.failures import FailureGroup, failures
+from docket.core import FailureGroup
 from docket.core.project import Project
 
 from ..characters import visible
@@ -89,7 +89,7 @@ class MatcherFailuresScreen(TeamScreen):
 
         def work() -> Listed:
             with app.reader() as project:
-                groups = failures(project, self.matcher)
+                groups = project.matcher_failures(self.matcher)
                 return Listed(groups, differing_values(project, groups))
 
         self.run_worker(work, thread=True, exit_on_error=False, group="failures",

@@ -18,7 +18,6 @@ from textual.widgets import DataTable, Footer, Static
 from textual.worker import Worker, WorkerState
 
 from docket.core.errors import DocketError
-from docket.core.matchers.side_by_side import side_by_side
 
 from ..characters import visible
 from ..diff import PLAIN, Palette
@@ -75,7 +74,7 @@ class MatchersScreen(TeamScreen):
         def work() -> dict[str, Any] | str:
             with app.reader() as project:
                 try:
-                    return side_by_side(project)
+                    return project.side_by_side()
                 except DocketError as exc:
                     return str(exc)
 

@@ -15,9 +15,6 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.screen import Screen
 from textual.widgets import Static
 
-from docket.core.reviewing import adjudication
-from docket.core.reviewing.gold import gold_labels
-
 from ..diff import Palette
 from ..widgets import CardOptions, PairCardView
 from ..widgets.key_bar import KeyBar
@@ -68,10 +65,9 @@ class PairDetailScreen(Screen[None]):
         palette = Palette.from_variables(self.app.get_css_variables(), self.app.no_color)
         project = app.project
         card = project.card(self.pair_id, "")
-        reviews = adjudication.reviews_of(project, self.pair_id, app.adjudicator)
-        with project.reading() as conn:
-            gold = next(((g.label, g.how) for g in gold_labels(conn)
-                         if g.pair_id == self.pair_id), None)
+        reviews = project.reviews_of(self.pair_id, app.adjudicator)
+        gold = next(((g.label, g.how) for g in project.gold_labels()
+                     if g.pair_id == self.pair_id), None)
         self.query_one(PairCardView).show(card, CardOptions(palette, app.mask,
                                                             self.show_extra))
         box = self.query_one("#card-box", VerticalScroll)

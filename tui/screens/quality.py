@@ -22,9 +22,8 @@ from textual.worker import Worker, WorkerState
 from textual_plotext import PlotextPlot
 
 from docket.core.errors import DocketError
-from docket.core.exports.gold_export import ClusterConflict, clusters_frame, conflicts
 from docket.core.project import Project
-from docket.core.quality.evaluate import evaluate, model_scores
+from docket.core.types import ClusterConflict
 
 from .. import literal
 from ..diff import PLAIN, Palette
@@ -61,21 +60,21 @@ def load_quality(project: Project) -> QualityData:
     report = curve = None
     problem = cluster_problem = ""
     try:
-        report = evaluate(project)
-        curve = evaluate(project, thresholds=CURVE)
+        report = project.evaluate()
+        curve = project.evaluate(thresholds=CURVE)
     except DocketError as exc:
         problem = str(exc)
     except (ValueError, ArithmeticError) as exc:  # a figure the estimator could not form
         problem = f"the estimates could not be worked out ({exc})"
     scores: dict[str, list[float]] = {"match": [], "non-match": []}
-    by_pair = model_scores(project)
+    by_pair = project.model_scores()
     for g in project.gold_labels():
         scores.setdefault(g.label, []).append(float(by_pair.get(g.pair_id, 0.0)))
     found: tuple[ClusterConflict, ...] = ()
     clusters = largest = clustered = 0
     try:
-        found = tuple(conflicts(project))
-        frame = clusters_frame(project)
+        found = tuple(project.conflicts())
+        frame = project.clusters_frame()
         sizes = frame.drop_duplicates("cluster")["cluster_size"]
         multi = sizes[sizes >= 2]
         clusters, clustered = len(multi), int(multi.sum())

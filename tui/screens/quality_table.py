@@ -11,7 +11,7 @@ from typing import Any
 from rich.text import Text
 from textual.widgets import DataTable
 
-from docket.core.quality.evaluate import DEFAULT_THRESHOLDS
+from docket.core import DEFAULT_THRESHOLDS
 
 from ..diff import PLAIN, Palette
 from ..figures import bounds

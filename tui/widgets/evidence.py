@@ -8,7 +8,7 @@ from dataclasses import dataclass
 from rich.text import Text
 from textual.widgets import Static
 
-from docket.core.matching.explain import factor_text, odds_text
+from docket.core import factor_text, odds_text
 from docket.core.types import PairCard
 
 from .. import literal

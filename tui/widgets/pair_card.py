@@ -8,7 +8,7 @@ from rich.text import Text
 from textual.widget import Widget
 from textual.widgets import Static
 
-from docket.core.matching.explain import factor_text
+from docket.core import factor_text
 from docket.core.types import FieldComparison, PairCard
 
 from .. import literal

@@ -18,9 +18,8 @@ from rich.style import Style
 from rich.text import Text
 from textual.widgets import Static
 
-from docket.core.matching.explain import odds_text
-from docket.core.reviewing.adjudication import Review
-from docket.core.types import PairCard
+from docket.core import odds_text
+from docket.core.types import PairCard, Review
 
 from .. import literal
 from ..diff import PLAIN, Palette

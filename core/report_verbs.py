@@ -1,0 +1,81 @@
+"""The facade's report verbs: status, the model's and a matcher file's evaluation, clusters
+and exports. ``Project`` inherits them; the work is done in ``quality/``, ``exports/`` and
+``report.py``, loaded only when a report is asked for (they need pandas)."""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from pathlib import Path
+from typing import TYPE_CHECKING, Any
+
+from .storage.project_file import ProjectFile
+
+if TYPE_CHECKING:
+    import pandas as pd
+
+
+class ReportVerbs(ProjectFile):
+    """Mixed into ``Project``."""
+
+    def status(self) -> dict[str, Any]:
+        from .report import status
+        with self.reading():
+            return status(self)
+
+    # -- evaluation --------------------------------------------------------------------------
+    def evaluate(self, thresholds: Sequence[float] | None = None,
+                 target_precision: float | None = None,
+                 target_recall: float | None = None) -> dict[str, Any]:
+        """The model judged on the audit slice (see ``quality.evaluate.evaluate``)."""
+        from .quality.evaluate import evaluate
+        return evaluate(self, thresholds, target_precision, target_recall)
+
+    def evaluate_predictions(self, path: str | Path, threshold: float | None = None,
+                             thresholds: Sequence[float] | None = None,
+                             target_precision: float | None = None,
+                             target_recall: float | None = None) -> dict[str, Any]:
+        """A matcher's file judged like the model, plus its kappa as a machine rater."""
+        from .quality.evaluate import evaluate_predictions
+        return evaluate_predictions(self, path, threshold, thresholds, target_precision,
+                                    target_recall)
+
+    def model_scores(self) -> pd.Series:
+        """The model's score of every candidate pair, by pair id."""
+        from .quality.evaluate import model_scores
+        return model_scores(self)
+
+    # -- exports -----------------------------------------------------------------------------
+    def clusters_frame(self, all_records: bool = False) -> pd.DataFrame:
+        from .exports.gold_export import clusters_frame
+        return clusters_frame(self, all_records)
+
+    def scores_frame(self) -> pd.DataFrame:
+        from .exports.exporting import scores_frame
+        return scores_frame(self)
+
+    def export_rows(self, what: str, *, test_share: float = 0.2, seed: int = 0,
+                    split_by: str = "record", all_records: bool = False,
+                    for_lm: bool = False, lm_template: str | None = None) -> Any:
+        """The rows of ``docket export --what`` (gold, training, clusters, conflicts,
+        missed): a frame, or with ``for_lm`` a list of records; write them with
+        ``docket.core.write_rows``."""
+        from .exports.export_kinds import export_rows
+        return export_rows(self, what, test_share=test_share, seed=seed, split_by=split_by,
+                           all_records=all_records, for_lm=for_lm, lm_template=lm_template)
+
+    def model_file(self) -> dict[str, Any]:
+        """The current model as the small JSON-ready file ``docket score --model`` reads."""
+        from .matching.model_file import from_meta
+        return from_meta(self.meta).to_dict()
+
+    def scoring_job(self, pairs: str | Path, model: str | Path | None = None,
+                    left: str | Path | None = None, right: str | Path | None = None) -> Any:
+        """What ``docket score`` runs over a pairs file: this project's model (or the model
+        file given) and its records (or the tables given); run it with
+        ``docket.core.score_to_parts``."""
+        from .exports.score_all import make_job, stored_tables
+        from .matching.model_file import ScoringModel, from_meta
+        scorer = ScoringModel.load(model) if model else from_meta(self.meta)
+        tables = stored_tables(self, Path(left) if left else None,
+                               Path(right) if right else None)
+        return make_job(scorer, *tables, str(pairs))

@@ -1,0 +1,92 @@
+"""The facade's verbs over people's labels: reviewers, agreement, labels from files, copies
+merged, adjudication. ``Project`` inherits them, so front ends never import ``reviewing``."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import TYPE_CHECKING, Any
+
+from .storage.project_file import ProjectFile
+
+if TYPE_CHECKING:
+    from .reviewing.merge import MergeResult
+    from .reviewing.team import ReviewerChange
+    from .storage.refit import RefitResult
+    from .types import ClusterConflict, Decision, Review
+
+
+class TeamVerbs(ProjectFile):
+    """Mixed into ``Project``; the work is done in ``reviewing/``."""
+
+    if TYPE_CHECKING:  # defined on Project
+        def refit(self) -> RefitResult: ...
+
+    # -- reviewers ---------------------------------------------------------------------------
+    def add_reviewer(self, name: str, role: str = "reviewer",
+                     granted_by: str = "") -> ReviewerChange:
+        from .reviewing.team import add_reviewer
+        return add_reviewer(self, name, role, granted_by=granted_by)
+
+    def reviewers(self) -> list[dict[str, Any]]:
+        from .reviewing.team import list_reviewers
+        return list_reviewers(self)
+
+    # -- agreement ---------------------------------------------------------------------------
+    def agreement(self, include_hold: bool = False) -> dict[str, Any]:
+        from .reviewing.team import agreement_report
+        return agreement_report(self, include_hold=include_hold)
+
+    def disagreements(self, a: str, b: str) -> list[dict[str, Any]]:
+        from .reviewing.team import disagreements
+        return disagreements(self, a, b)
+
+    # -- labels from elsewhere ---------------------------------------------------------------
+    def label_from(self, path: str | Path, reviewer: str) -> tuple[int, RefitResult]:
+        """Every row of a labels file for ``reviewer`` (all checked before any is written),
+        then a refit; (decisions recorded, the refit)."""
+        from .reviewing.bulk import apply_rows, read_rows
+        rows = read_rows(self, Path(path))
+        n = apply_rows(self, reviewer, rows)
+        return n, self.refit()
+
+    def label_once(self, name: str, path: str | Path, adjudicator: str | None = None) -> int:
+        from .reviewing.bulk import label_once
+        return label_once(self, name, Path(path), adjudicator)
+
+    def merge(self, others: list[Path], accept_roles: bool = False
+              ) -> tuple[MergeResult, RefitResult | None]:
+        """Decisions from offline copies; a refit when anything new came in."""
+        from .reviewing.merge import merge
+        result = merge(self, [Path(p) for p in others], accept_roles=accept_roles)
+        return result, (self.refit() if result.added else None)
+
+    # -- adjudication ------------------------------------------------------------------------
+    def require_adjudicator(self, name: str) -> None:
+        from .reviewing.adjudication import require_adjudicator
+        require_adjudicator(self, name)
+
+    def set_aside_for(self, adjudicator: str) -> set[int]:
+        from .reviewing.adjudication import set_aside_for
+        return set_aside_for(self, adjudicator)
+
+    def reviews_of(self, pair_id: int, adjudicator: str) -> list[Review]:
+        from .reviewing.adjudication import reviews_of
+        return reviews_of(self, pair_id, adjudicator)
+
+    def adjudicate(self, pair_id: int, adjudicator: str, label: str, reason: str,
+                   seconds: float = 0.0) -> Decision:
+        from .reviewing.adjudication import adjudicate
+        return adjudicate(self, pair_id, adjudicator, label, reason, seconds)
+
+    def undo_adjudication(self, adjudicator: str) -> Decision | None:
+        from .reviewing.adjudication import undo
+        return undo(self, adjudicator)
+
+    def adjudication_queue(self) -> list[tuple[int, str]]:
+        """(pair id, why) of every pair waiting for an adjudicator, in queue order."""
+        from .exports.gold_export import adjudication_queue
+        return adjudication_queue(self)
+
+    def conflicts(self) -> list[ClusterConflict]:
+        from .exports.gold_export import conflicts
+        return conflicts(self)
