@@ -8,6 +8,7 @@ from collections.abc import Sequence
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
+from .results import Evaluation, StatusReport
 from .storage.project_file import ProjectFile
 
 if TYPE_CHECKING:
@@ -17,27 +18,28 @@ if TYPE_CHECKING:
 class ReportVerbs(ProjectFile):
     """Mixed into ``Project``."""
 
-    def status(self) -> dict[str, Any]:
+    def status(self) -> StatusReport:
         from .report import status
         with self.reading():
-            return status(self)
+            return StatusReport.from_dict(status(self))
 
     # -- evaluation --------------------------------------------------------------------------
     def evaluate(self, thresholds: Sequence[float] | None = None,
                  target_precision: float | None = None,
-                 target_recall: float | None = None) -> dict[str, Any]:
+                 target_recall: float | None = None) -> Evaluation:
         """The model judged on the audit slice (see ``quality.evaluate.evaluate``)."""
         from .quality.evaluate import evaluate
-        return evaluate(self, thresholds, target_precision, target_recall)
+        return Evaluation.from_dict(evaluate(self, thresholds, target_precision,
+                                             target_recall))
 
     def evaluate_predictions(self, path: str | Path, threshold: float | None = None,
                              thresholds: Sequence[float] | None = None,
                              target_precision: float | None = None,
-                             target_recall: float | None = None) -> dict[str, Any]:
+                             target_recall: float | None = None) -> Evaluation:
         """A matcher's file judged like the model, plus its kappa as a machine rater."""
         from .quality.evaluate import evaluate_predictions
-        return evaluate_predictions(self, path, threshold, thresholds, target_precision,
-                                    target_recall)
+        return Evaluation.from_dict(evaluate_predictions(
+            self, path, threshold, thresholds, target_precision, target_recall))
 
     def model_scores(self) -> pd.Series:
         """The model's score of every candidate pair, by pair id."""

@@ -6,6 +6,7 @@ from __future__ import annotations
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
+from .results import AgreementReport
 from .storage.project_file import ProjectFile
 
 if TYPE_CHECKING:
@@ -32,9 +33,9 @@ class TeamVerbs(ProjectFile):
         return list_reviewers(self)
 
     # -- agreement ---------------------------------------------------------------------------
-    def agreement(self, include_hold: bool = False) -> dict[str, Any]:
+    def agreement(self, include_hold: bool = False) -> AgreementReport:
         from .reviewing.team import agreement_report
-        return agreement_report(self, include_hold=include_hold)
+        return AgreementReport.from_dict(agreement_report(self, include_hold=include_hold))
 
     def disagreements(self, a: str, b: str) -> list[dict[str, Any]]:
         from .reviewing.team import disagreements

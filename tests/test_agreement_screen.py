@@ -77,11 +77,11 @@ async def test_holds_key_counts_hold_as_a_third_category(team, team_app):
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot)
         await press(pilot, "h")
-        assert agreement(app).report["include_hold"] is True
+        assert agreement(app).report.include_hold is True
         text = screen_text(app)
         assert "third category" in text and f"n {with_hold['n']}" in text
         await press(pilot, "h")
-        assert agreement(app).report["include_hold"] is False
+        assert agreement(app).report.include_hold is False
 
 
 @pilot_test

@@ -21,7 +21,9 @@ from docket.core.quality.evaluate import (
     model_scores,
     sample_from,
 )
+from docket.core.results import Evaluation
 from docket.tui import cli_gold
+from docket.tui.evaluation_text import evaluation_lines
 from tests.conftest import SAMPLE, sample_spec
 from tests.quality import answer_in_queue_order, load_truth
 
@@ -276,5 +278,6 @@ def test_predicted_counts_are_exact_and_shown_whole(answered: Project) -> None:
         assert e["predicted_positives"] == int((scores["probability"] >= e["threshold"]).sum())
     at = next(e for e in report["estimates"] if e["threshold"] == report["threshold"])
     assert at["predicted_positives"] == int((scores["predicted"] == "match").sum())
-    row = next(line for line in cli_gold.render(report, "sample") if line.startswith("*"))
+    lines = evaluation_lines(Evaluation.from_dict(report), "sample")
+    row = next(line for line in lines if line.startswith("*"))
     assert row.rstrip().endswith(f"{int(at['predicted_positives']):,}")

@@ -45,8 +45,9 @@ def test_no_connection_or_sql_in_the_front_end() -> None:
     assert not bad, "\n".join(bad)
 
 
-# Project, the plain data it returns (types), its errors, and the helpers docket.core names
-FACADE = {"docket.core", "docket.core.project", "docket.core.types", "docket.core.errors"}
+# Project, the plain data it returns (types, results), its errors, and the helpers docket.core names
+FACADE = {"docket.core", "docket.core.project", "docket.core.types", "docket.core.results",
+          "docket.core.errors"}
 NOT_YET = {"docket.tui.screens.adjudicate"}  # still calls reviewing/ and exports/ directly
 
 

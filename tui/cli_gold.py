@@ -12,7 +12,7 @@ from typing import Any
 
 from .cli_base import command, open_project
 from .cli_checks import share
-from .figures import bounds, estimate, interval, number
+from .evaluation_text import evaluation_lines
 from .terminal import json_text
 
 
@@ -128,9 +128,9 @@ def evaluate(args: argparse.Namespace) -> int:
                                       args.target_recall)
         name = project.meta.get("name") or project.path.stem
     if args.json:
-        print(json_text(report))
+        print(json_text(report.to_dict()))
         return 0
-    print("\n".join(render(report, name)))
+    print("\n".join(evaluation_lines(report, name)))
     return 0
 
 
@@ -156,107 +156,6 @@ def export(args: argparse.Namespace) -> int:
     if args.output != "-":
         print(f"wrote {len(frame):,} pairs to {args.output}", file=sys.stderr)
     return 0
-
-
-# -- human output -------------------------------------------------------------------------------
-def _iv(d: dict[str, Any]) -> str:
-    return f"{estimate(d):<22}"
-
-
-def _row(e: dict[str, Any], mark: str) -> str:
-    return (f"{mark} {e['threshold']:>8.4g}  {_iv(e['precision']):<24}{_iv(e['recall']):<24}"
-            f"{_iv(e['f1']):<24}{e['predicted_positives']:>12,.0f}")
-
-
-def _short(e: dict[str, Any]) -> str:
-    return (f"precision {estimate(e['precision'])}, recall {estimate(e['recall'])}, "
-            f"F1 {estimate(e['f1'])}")
-
-
-def held_line(e: dict[str, Any]) -> str | None:
-    """The bounds at one threshold when audit pairs are held, else None."""
-    if not e.get("held"):
-        return None
-    return (f"with the {e['held']:,} held audit pairs all wrong … all right: precision "
-            f"{bounds(e['precision_bounds'])}, recall {bounds(e['recall_bounds'])}, F1 "
-            f"{bounds(e['f1_bounds'])} (these bounds, not the intervals above, are what the "
-            "labels can vouch for)")
-
-
-def render(report: dict[str, Any], name: str) -> list[str]:
-    """The evaluation as lines of text: table, suggestion, naive line, scope, machine rater."""
-    a = report["audit"]
-    conf = f"{report['confidence']:.0%}"
-    held = f"; {a['held']:,} held" if a.get("held") else ""
-    out = [f"{name} · quality from the audit slice: {a['labelled']:,} of {a['drawn']:,} drawn "
-           f"pairs have gold labels ({a['matches']:,} matches{held}); {conf} intervals",
-           f"score: {report['model']['score']}; decision threshold {report['threshold']:g}", ""]
-    head = f"{'precision':<24}{'recall':<24}{'F1':<24}{'predicted':>12}"
-    out.append(f"{'threshold':>10}  {head}")
-    for e in report["estimates"]:
-        out.append(_row(e, "*" if e["threshold"] == report["threshold"] else " "))
-    first = report["at_threshold"]
-    out.append(f"  * decision threshold. Intervals: {first['precision']['method']} for "
-               f"precision, recall and F1 (linearised variance, with an allowance for strata "
-               f"that show no error); predicted matches among {first['n_pairs']:,} candidate "
-               "pairs.")
-    bound = held_line(first)
-    if bound:
-        out.append(bound)
-    s = report["suggested"]
-    if s is not None:
-        if s["threshold"] is None:
-            out.append(f"suggested threshold: none — {s['note']}")
-        else:
-            out.append(f"suggested threshold: {s['threshold']:.4g} for {s['target']} ≥ "
-                       f"{s['goal']:g}: {_short(s['estimate'])} ({s['note']})")
-    elif report["best_f1"] is not None:
-        b = report["best_f1"]
-        out.append(f"highest estimated F1 in the table: {b['f1']:.3f} at {b['threshold']:g}, "
-                   f"{b['note']}; pass --target-precision or --target-recall to aim at one")
-    n = report["naive_at_threshold"]
-    out.append(f"naive ({report['gold_labels']:,} gold labels, unweighted) at "
-               f"{n['threshold']:g}: {_short(n)} — {n['note']}")
-    notes = [t for t in first["note"].split("; ") if t]
-    out += [f"note at {first['threshold']:g}: {t}" for t in notes]
-    if report.get("sampling"):
-        out.append(report["sampling"]["note"] + ".")
-    sc = report["scope"]
-    b = sc["blocking"]
-    out += ["", f"{sc['note']}."]
-    if b.get("candidate_pairs") is not None:
-        out.append(f"blocking reach: {b['candidate_pairs']:,} candidate pairs of "
-                   f"{b['possible_pairs']:,} possible (reduction ratio "
-                   f"{b['reduction_ratio']:.4f})")
-    for rule, k in b.get("pairs_per_rule", {}).items():
-        out.append(f"  {rule:<40} {k:>12,} pairs")
-    if "queue_order" in report:
-        out.append(f"queue order: {report['queue_order']['text']}")
-    if "machine_rater" in report:
-        out += ["", *_machine_lines(report)]
-    return out
-
-
-def _machine_lines(report: dict[str, Any]) -> list[str]:
-    p, m = report["predictions"], report["machine_rater"]
-    out = [f"machine rater {p['file']}: {p['candidate_pairs_given']:,} candidate pairs given "
-           f"({p['column']} column); {p['absent_count_as_non_match']:,} absent pairs count as "
-           f"predicted non-matches", f"  {p['scope']}"]
-    if m["kappa"] is None:
-        out.append(f"Cohen's kappa on {m['n']:,} audit pairs: undefined ({m['band']})")
-    else:
-        out.append(f"Cohen's kappa on {m['n']:,} audit pairs, design-weighted: "
-                   f"{interval(m['kappa'], m['ci_low'], m['ci_high'])} ({m['band']}); "
-                   f"{m['scope']}")
-    g = m["all_gold"]
-    out.append(f"  over all {g['n']:,} gold labels, unweighted: {number(g['kappa'])} "
-               f"({g['scope']})")
-    if m["table"] is not None:
-        (tp, fp), (fn, tn) = m["table"]
-        out += [f"  estimated candidate pairs{'':<4}{'gold match':>12}{'gold non-match':>16}",
-                f"  {'predicted match':<29}{tp:>12,.0f}{fp:>16,.0f}",
-                f"  {'predicted non-match':<29}{fn:>12,.0f}{tn:>16,.0f}"]
-    return out
 
 
 # -- exports ------------------------------------------------------------------------------------

@@ -10,15 +10,8 @@ from typing import Any
 
 from .cli_base import command, default_reviewer, open_project
 from .cli_checks import at_least, share
+from .figures import ratio_text as _ratio
 from .terminal import json_text, shown
-
-
-def _ratio(value: float) -> str:
-    """Enough decimals that a ratio of 0.99998 does not print as 1.0000."""
-    digits = 4
-    while digits < 9 and round(value, digits) == 1.0 and value < 1.0:
-        digits += 1
-    return f"{value:.{digits}f}"
 
 
 def print_built(built: Any) -> None:
@@ -93,57 +86,10 @@ def new(args: argparse.Namespace) -> int:
 
 
 def status(args: argparse.Namespace) -> int:
+    from .status_text import status_lines
     with open_project(args.project, readonly=True) as project:
-        info = project.status()
-    if args.json:
-        print(json_text(info))
-        return 0
-    rec, pairs, dec, model = info["records"], info["pairs"], info["decisions"], info["model"]
-    print(f"{info['name']} · {info['mode']} mode · {info['project']}")
-    print(f"records      left {rec['left']:,}" + (f", right {rec['right']:,}"
-                                                  if info["mode"] == "link" else ""))
-    print(f"pairs        {pairs['candidates']:,} candidates, {pairs['open']:,} still queued, "
-          f"audit slice {pairs['audit']:,}, overlap {pairs['overlap']:,}")
-    if info["sampling"]:
-        s = info["sampling"]
-        strata = ", ".join(f"{h}: {v[1]:,}/{v[0]:,}" for h, v in s["strata"].items())
-        print(f"sampled      {s['kept_pairs']:,} of {s['population_pairs']:,} candidate pairs "
-              f"kept (--sample-above {s['sample_above']:,}); kept/all per stratum {strata}; "
-              "estimates weigh to all pairs")
-    print(f"blocking     {'; '.join(info['blocking']['rules'])} "
-          f"(reduction ratio {_ratio(info['blocking']['reduction_ratio'])})")
-    print(f"decisions    {dec['current_labels']:,} standing labels on {dec['pairs_decided']:,} "
-          f"pairs ({dec['log_entries']:,} log entries, {dec['retractions']:,} retractions)")
-    for name, c in dec["per_reviewer"].items():
-        counts = ", ".join(f"{k} {v:,}" for k, v in c.items() if k != "role")
-        print(f"  {shown(name):<16} {c['role']:<12} {counts}")
-    from docket.core import MODEL_NAMES, factor_text, odds_text
-
-    print(f"model        {MODEL_NAMES.get(model['ranker'], model['ranker'])} ranks the queue "
-          f"({model['ranker_note']}); threshold {model['threshold']}"
-          + ("; one-to-one" if model["one_to_one"] else ""))
-    for line in model["how_fitted"]:
-        print(f"  {line}")
-    if model.get("one_to_one_suggested"):
-        print(f"  suggestion: {model['one_to_one_suggested']}")
-    print(f"odds before the fields {odds_text(math.log(model['odds_before_fields']))}; "
-          "each field's level multiplies them:")
-    for f in model["fields"]:
-        levels = " · ".join(f"{lv['level']} {factor_text(math.log(lv['odds_factor']))}"
-                            for lv in f["levels"])
-        print(f"  {f['field']:<14} {levels}")
-    pol = info["gold_policy"]
-    print(f"gold labels  {info['gold_labels']:,} (policy: at least {pol['min_reviews']} "
-          f"review(s); {pol['rules']})")
-    m = info["missed_matches"]
-    if m["count"]:
-        print(f"missed       true matches outside the candidates: {m['count']:,} (docket missed); "
-              f"the candidates hold {m['reach']:.1%} of the {m['gold_matches'] + m['count']:,} "
-              "matches known")
-    if info["matchers"]:
-        from .cli_matchers import table_lines
-        print(f"matchers     {len(info['matchers'])} stored (docket evaluate --matchers)")
-        print("\n".join(table_lines(info["matchers"])))
+        report = project.status()
+    print(json_text(report.to_dict()) if args.json else "\n".join(status_lines(report)))
     return 0
 
 

@@ -8,10 +8,9 @@ from __future__ import annotations
 
 import argparse
 from pathlib import Path
-from typing import Any
 
+from .agreement_lines import agreement_lines
 from .cli_base import command, default_reviewer, open_project
-from .figures import TOO_FEW, counted, interval, number, percent
 from .terminal import json_text, shown
 
 
@@ -98,85 +97,7 @@ def reviewers(args: argparse.Namespace) -> int:
     return 0
 
 
-# -- agreement -----------------------------------------------------------------------------
-def _print_pair(r: dict[str, Any], floor: int) -> None:
-    a, b = r["reviewer_a"], r["reviewer_b"]
-    print(f"{a} × {b}: {r['n']:,} pairs used of {r['n_common']:,} in common")
-    if r["too_few"]:
-        print(f"  Cohen's kappa and PABAK: {TOO_FEW} (n {r['n']:,}; needs {floor})")
-    else:
-        print(f"  Cohen's kappa {interval(r['kappa'], r['ci_low'], r['ci_high'], 4)} "
-              f"(n {r['n']:,}; {r['band']}); SE {number(r['se'], 4)}")
-        print(f"  observed {number(r['observed'], 4)}  chance {number(r['expected'], 4)}  "
-              f"PABAK {interval(r['pabak'], r['pabak_low'], r['pabak_high'], 4)}  prevalence "
-              f"index {number(r['prevalence_index'], 4)}  bias index "
-              f"{number(r['bias_index'], 4)}")
-    print(f"  holds: {a} {percent(r['hold_rate_a'])}, {b} {percent(r['hold_rate_b'])}")
-    conf = r["confusion"]
-    cats = conf["categories"]
-    width = max(len(c) for c in cats) + 2
-    print(f"  confusion (rows {a}, columns {b}):")
-    print(f"    {'':<{width}}" + "".join(f"{c:>11}" for c in cats))
-    for cat, row in zip(cats, conf["table"], strict=True):
-        print(f"    {cat:<{width}}" + "".join(f"{n:>11,}" for n in row))
-
-
-def _print_rates(ds: dict[str, Any] | None) -> None:
-    if not ds:
-        return
-    if not ds["identified"]:
-        print(f"\nDawid–Skene: {ds['reason']} ({ds['units']:,} pairs, "
-              f"{ds['units_rated_twice']:,} with two or more labels)")
-        return
-    state = "converged" if ds["converged"] else "not converged"
-    print(f"\nDawid–Skene ({ds['iterations']} EM rounds, {state}; {ds['units']:,} pairs, "
-          f"{ds['units_rated_twice']:,} with two or more labels)")
-    holds = ds["reviewers"] and ds["reviewers"][0]["hold_rate_match"] is not None
-    print(f"  {'reviewer':<18} {'sensitivity':>22} {'specificity':>22}"
-          + ("  holds (match / non-match)" if holds else ""))
-    for v in ds["reviewers"]:
-        sens, spec = v["sensitivity"], v["specificity"]
-        line = (f"  {v['name']:<18} {interval(sens['value'], sens['low'], sens['high']):>22} "
-                f"{interval(spec['value'], spec['low'], spec['high']):>22}")
-        if holds:
-            line += f"  {percent(v['hold_rate_match'])} / {percent(v['hold_rate_non_match'])}"
-        print(line)
-    print(f"  {ds['method']}")
-    if ds["warning"]:
-        print(f"  warning: {ds['warning']}")
-
-
-def print_agreement(report: dict[str, Any]) -> None:
-    names = list(report["reviewers"])
-    if not names:
-        print(f"agreement · {report['name']} · no reviewer labels yet")
-        return
-    floor = report["min_pairs"]
-    print(f"agreement · {report['name']} · {len(names)} reviewer(s): " + ", ".join(
-        f"{n} {v['labels']:,} labels" for n, v in report["reviewers"].items()))
-    print(f"({report['conventions']['holds']})")
-    if not report["reviewer_pairs"]:
-        print("\nno two reviewers have pairs in common yet")
-    for r in report["reviewer_pairs"]:
-        print()
-        _print_pair(r, floor)
-    o = report["overall"]
-    print("\nall reviewers")
-    if o["fleiss_units"]:
-        fleiss = counted(o["fleiss_kappa"], o["fleiss_low"], o["fleiss_high"],
-                         o["fleiss_units"], floor)
-        print(f"  Fleiss' kappa {fleiss} ({o['fleiss_band']}) on pairs with "
-              f"{o['fleiss_raters']} ratings each")
-    else:
-        print("  Fleiss' kappa — (no pair has two ratings yet)")
-    alpha = counted(o["krippendorff_alpha"], o["alpha_low"], o["alpha_high"], o["alpha_units"],
-                    floor)
-    print(f"  Krippendorff's alpha (nominal) {alpha} on pairs with two or more ratings")
-    _print_rates(report["dawid_skene"])
-    c = report["conventions"]
-    print(f"\nSE: {c['se']}.\nCI: {c['ci']}.\nbands: {c['bands']}.")
-
-
+# -- agreement ---------------------------------------------------------------------------
 def agreement(args: argparse.Namespace) -> int:
     if args.screen:
         from pathlib import Path
@@ -188,10 +109,7 @@ def agreement(args: argparse.Namespace) -> int:
         return 0
     with open_project(args.project, readonly=True) as project:
         report = project.agreement(include_hold=args.include_hold)
-    if args.json:
-        print(json_text(report))
-    else:
-        print_agreement(report)
+    print(json_text(report.to_dict()) if args.json else "\n".join(agreement_lines(report)))
     return 0
 
 

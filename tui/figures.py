@@ -49,3 +49,11 @@ def bounds(b: Mapping[str, Any] | None, digits: int = 3) -> str:
     if not b or b.get("low") is None:
         return DASH
     return f"[{b['low']:.{digits}f}, {b['high']:.{digits}f}]"
+
+
+def ratio_text(value: float) -> str:
+    """Enough decimals that a ratio of 0.99998 does not print as 1.0000."""
+    digits = 4
+    while digits < 9 and round(value, digits) == 1.0 and value < 1.0:
+        digits += 1
+    return f"{value:.{digits}f}"

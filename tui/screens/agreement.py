@@ -1,6 +1,6 @@
 """The agreement screen: the reviewer-by-reviewer kappa matrix, and each pair's disagreements.
 
-The figures come from ``core.reviewing.team.agreement_report``, worked out in a worker. A cell holds
+The figures come from the facade's ``AgreementReport``, worked out in a worker. A cell holds
 Cohen's kappa with its 95 % CI, the number of pairs it rests on and the Landis & Koch band;
 Enter on a cell lists where those two reviewers differ, and Enter on one of those opens the
 pair with both labels and notes. With ``--blind`` the reviewers are "reviewer A", "B"...
@@ -17,6 +17,8 @@ from textual.containers import VerticalScroll
 from textual.coordinate import Coordinate
 from textual.widgets import DataTable, Static
 from textual.worker import Worker, WorkerState
+
+from docket.core.results import AgreementReport
 
 from .. import literal
 from ..diff import PLAIN, Palette
@@ -48,7 +50,7 @@ class AgreementScreen(TeamScreen):
         super().__init__()
         self.standalone = standalone
         self.include_hold = False
-        self.report: dict[str, Any] | None = None
+        self.report: AgreementReport | None = None
         self.shown: dict[str, str] = {}  # reviewer -> name on screen
         self.entries: dict[tuple[str, str], dict[str, Any]] = {}
         self.palette: Palette = PLAIN
@@ -69,7 +71,7 @@ class AgreementScreen(TeamScreen):
     def _load(self) -> None:
         app, include_hold = self.team_app, self.include_hold
 
-        def work() -> dict[str, Any]:
+        def work() -> AgreementReport:
             with app.reader() as project:
                 return project.agreement(include_hold=include_hold)
 
@@ -84,26 +86,26 @@ class AgreementScreen(TeamScreen):
                 Text(f"Agreement could not be worked out: {event.worker.error}"))
             return
         if event.state == WorkerState.SUCCESS:
-            report: dict[str, Any] = event.worker.result
-            if report["include_hold"] == self.include_hold:
+            report: AgreementReport = event.worker.result
+            if report.include_hold == self.include_hold:
                 self._paint(report)
 
     # -- painting ----------------------------------------------------------------------------
-    def _paint(self, report: dict[str, Any]) -> None:
+    def _paint(self, report: AgreementReport) -> None:
         app, p = self.team_app, self.palette
         self.report = report
-        names = list(report["reviewers"])
+        names = list(report.reviewers)
         self.shown = blind_aliases(names) if app.blind else {n: n for n in names}
         names.sort(key=lambda n: self.shown[n])
         self.entries = {}
-        for r in report["reviewer_pairs"]:
+        for r in report.reviewer_pairs:
             self.entries[(r["reviewer_a"], r["reviewer_b"])] = r
             self.entries[(r["reviewer_b"], r["reviewer_a"])] = r
         head = Text(f"agreement · {app.project_name} · ", "bold")
         head.append(f"{len(names)} reviewer{'s' if len(names) != 1 else ''}")
-        head.append(" · holds counted as a third category" if report["include_hold"] else
+        head.append(" · holds counted as a third category" if report.include_hold else
                     " · holds count as no rating", p.muted)
-        if not report["reviewer_pairs"]:
+        if not report.reviewer_pairs:
             head.append("\nNo two reviewers have pairs in common yet: agreement needs overlap "
                         "pairs decided by two reviewers (docket review, or docket label).",
                         p.heading)
@@ -117,7 +119,7 @@ class AgreementScreen(TeamScreen):
             cells: list[Text] = []
             for col in names:
                 if col == row:
-                    given = report["reviewers"][row]
+                    given = report.reviewers[row]
                     cells.append(Text(f"{given['labels']:,} labels\n{given['holds']:,} holds",
                                       p.muted))
                 else:
@@ -125,8 +127,8 @@ class AgreementScreen(TeamScreen):
             table.add_row(*cells, height=2, key=row,
                           label=literal.one_line(self.shown[row], NAME_WIDTH, p.escape))
         self.query_one("#agree-overall", Static).update(overall_text(report, self.shown, p))
-        if report["reviewer_pairs"]:  # start on the reviewer pair with most pairs used
-            top = max(report["reviewer_pairs"], key=lambda r: r["n"])
+        if report.reviewer_pairs:  # start on the reviewer pair with most pairs used
+            top = max(report.reviewer_pairs, key=lambda r: r["n"])
             a, b = sorted((top["reviewer_a"], top["reviewer_b"]), key=names.index)
             table.move_cursor(row=names.index(a), column=names.index(b))
         self._detail_at(table.cursor_coordinate.row, table.cursor_coordinate.column)

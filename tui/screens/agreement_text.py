@@ -9,6 +9,8 @@ from typing import Any
 
 from rich.text import Text
 
+from docket.core.results import AgreementReport
+
 from .. import literal
 from ..diff import PLAIN, Palette
 from ..figures import TOO_FEW, counted, interval, number, percent
@@ -64,12 +66,12 @@ def detail_text(entry: dict[str, Any], shown: dict[str, str], palette: Palette =
     return text
 
 
-def overall_text(report: dict[str, Any], shown: dict[str, str],
+def overall_text(report: AgreementReport, shown: dict[str, str],
                  palette: Palette = PLAIN) -> Text:
     p = palette
-    o = report["overall"]
+    o = report.overall
     text = Text("all reviewers  ", p.muted)
-    floor = report["min_pairs"]
+    floor = report.min_pairs
     if o["fleiss_units"]:
         fleiss = counted(o["fleiss_kappa"], o["fleiss_low"], o["fleiss_high"],
                          o["fleiss_units"], floor)
@@ -80,7 +82,7 @@ def overall_text(report: dict[str, Any], shown: dict[str, str],
     alpha = counted(o["krippendorff_alpha"], o["alpha_low"], o["alpha_high"], o["alpha_units"],
                     floor)
     text.append(f" · Krippendorff's alpha (nominal) {alpha}\n")
-    ds = report.get("dawid_skene")
+    ds = report.dawid_skene
     if ds and not ds["identified"]:
         text.append(f"Dawid–Skene: {ds['reason']}\n", p.muted)
     elif ds:
@@ -96,7 +98,7 @@ def overall_text(report: dict[str, Any], shown: dict[str, str],
         text.append("\n")
         if ds["warning"]:
             text.append(f"warning: {ds['warning']}\n", p.heading)
-    c = report["conventions"]
+    c = report.conventions
     text.append(f"{c['holds']}.\nSE: {c['se']}. CI: {c['ci']}.\nBands: {c['bands']}.",
                 p.muted)
     return text

@@ -10,7 +10,7 @@ non-match (Enter shows the members). Everything is worked out in a worker.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING, Any, ClassVar
+from typing import TYPE_CHECKING, ClassVar
 
 from rich.text import Text
 from textual.app import ComposeResult
@@ -23,6 +23,7 @@ from textual_plotext import PlotextPlot
 
 from docket.core.errors import DocketError
 from docket.core.project import Project
+from docket.core.results import Evaluation
 from docket.core.types import ClusterConflict
 
 from .. import literal
@@ -44,8 +45,8 @@ BINS = 20
 class QualityData:
     """What the worker found; a part that could not be worked out says why instead."""
 
-    report: dict[str, Any] | None = None  # core.quality.evaluate at its default thresholds
-    curve: dict[str, Any] | None = None  # core.quality.evaluate on a fine grid, for the curve
+    report: Evaluation | None = None  # the evaluation at its default thresholds
+    curve: Evaluation | None = None  # the evaluation on a fine grid, for the curve
     problem: str = ""  # why there is no report
     scores: dict[str, list[float]] = field(default_factory=dict)  # gold label -> scores
     conflicts: tuple[ClusterConflict, ...] = ()
@@ -166,10 +167,10 @@ class QualityScreen(TeamScreen):
         if data.report is None:
             head.append(f"no estimates yet: {data.problem}", p.heading)
         else:
-            a = data.report["audit"]
+            a = data.report.audit
             head.append(f"from the audit slice: {a['labelled']:,} of {a['drawn']:,} drawn pairs "
                         f"have gold labels ({a['matches']:,} matches); "
-                        f"{data.report['confidence']:.0%} intervals")
+                        f"{data.report.confidence:.0%} intervals")
         self.query_one("#quality-head", Static).update(head)
         self._table(data)
         self._plots(data)
@@ -216,15 +217,15 @@ class QualityScreen(TeamScreen):
             plt.title("precision-recall: no estimates yet")
         else:
             plt.title("precision-recall from the audit slice")
-            for rows, name in ((data.curve["estimates"], "design-based"),
-                               (data.curve["naive"], "naive (biased)")):
+            for rows, name in ((data.curve.estimates, "design-based"),
+                               (data.curve.naive, "naive (biased)")):
                 points = [(r["recall"]["value"], r["precision"]["value"]) for r in rows
                           if r["recall"]["value"] is not None and
                           r["precision"]["value"] is not None]
                 if points:
                     plt.plot([x for x, _ in points], [y for _, y in points], label=name,
                              marker="braille")
-            at = data.report["at_threshold"] if data.report else None
+            at = data.report.at_threshold if data.report else None
             if at and at["recall"]["value"] is not None and at["precision"]["value"] is not None:
                 plt.scatter([at["recall"]["value"]], [at["precision"]["value"]], marker="x",
                             label=f"threshold {at['threshold']:g}")

@@ -12,6 +12,7 @@ from rich.text import Text
 from textual.widgets import DataTable
 
 from docket.core import DEFAULT_THRESHOLDS
+from docket.core.results import Evaluation
 
 from ..diff import PLAIN, Palette
 from ..figures import bounds
@@ -22,18 +23,18 @@ WIDE_LABELS = ("", "threshold", "precision [95 % CI]", "recall [95 % CI]", "F1 [
 NARROW_LABELS = ("p ≥", "precision", "recall", "F1 [95 % CI]", "predicted", "naive P/R")
 
 
-def fill_threshold_table(table: DataTable, report: dict[str, Any], palette: Palette,
+def fill_threshold_table(table: DataTable, report: Evaluation, palette: Palette,
                          narrow: bool) -> None:
     """The table's columns and one row per threshold shown (the defaults and the project's)."""
     p = palette
     labels = NARROW_LABELS if narrow else WIDE_LABELS
     for label in labels:
         table.add_column(Text(label, p.negative if label.startswith("naive") else p.muted))
-    shown = set(DEFAULT_THRESHOLDS) | {report["threshold"]}
-    for e, n in zip(report["estimates"], report["naive"], strict=True):
+    shown = set(DEFAULT_THRESHOLDS) | {report.threshold}
+    for e, n in zip(report.estimates, report.naive, strict=True):
         if e["threshold"] not in shown:
             continue
-        mark = "*" if e["threshold"] == report["threshold"] else ""
+        mark = "*" if e["threshold"] == report.threshold else ""
         figures = [interval(e[k], narrow) for k in ("precision", "recall", "f1")]
         predicted = Text(f"{e['predicted_positives']:,.0f}")
         if narrow:  # the mark joins the threshold: 80 columns hold every column
@@ -73,10 +74,10 @@ def _point(d: dict[str, Any], digits: int = 3) -> str:
     return f"{d['value']:.{digits}f}" if digits == 3 else _short(d["value"])
 
 
-def notes_text(report: dict[str, Any], palette: Palette = PLAIN) -> Text:
+def notes_text(report: Evaluation, palette: Palette = PLAIN) -> Text:
     p = palette
-    at, naive = report["at_threshold"], report["naive_at_threshold"]
-    text = Text(f"* the project's decision threshold, {report['threshold']:g}. Intervals: "
+    at, naive = report.at_threshold, report.naive_at_threshold
+    text = Text(f"* the project's decision threshold, {report.threshold:g}. Intervals: "
                 f"{at['precision']['method']} for precision, recall and F1. Predicted: "
                 f"matches predicted among {at['n_pairs']:,} candidate pairs.\n", p.muted)
     if at.get("held"):
@@ -84,7 +85,7 @@ def notes_text(report: dict[str, Any], palette: Palette = PLAIN) -> Text:
                     f"{bounds(at['precision_bounds'])}, recall {bounds(at['recall_bounds'])}, "
                     f"F1 {bounds(at['f1_bounds'])}: these bounds are what the labels vouch "
                     "for; adjudicate the holds to narrow them\n", p.heading)
-    s, best = report["suggested"], report["best_f1"]
+    s, best = report.suggested, report.best_f1
     if s is not None and s["threshold"] is not None:
         text.append(f"suggested threshold {s['threshold']:.4g} for {s['target']} ≥ "
                     f"{s['goal']:g} ({s['note']})\n")
@@ -95,7 +96,7 @@ def notes_text(report: dict[str, Any], palette: Palette = PLAIN) -> Text:
     text.append("naive column: ", p.heading)
     text.append(f"precision / recall {naive['note']}; their Wilson intervals are in "
                 "docket evaluate --json.\n", p.muted)
-    scope = report["scope"]
+    scope = report.scope
     text.append(scope["note"].capitalize() + ".", p.heading)
     b = scope["blocking"]
     if b.get("candidate_pairs") is not None:

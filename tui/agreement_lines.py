@@ -1,0 +1,91 @@
+"""``docket agreement`` as text, drawn from the facade's ``AgreementReport``; the agreement
+screen draws the same object (``screens/agreement.py``)."""
+
+from __future__ import annotations
+
+from typing import Any
+
+from docket.core.results import AgreementReport
+
+from .figures import TOO_FEW, counted, interval, number, percent
+
+
+def _pair_lines(r: dict[str, Any], floor: int, out: list[str]) -> None:
+    a, b = r["reviewer_a"], r["reviewer_b"]
+    out.append(f"{a} × {b}: {r['n']:,} pairs used of {r['n_common']:,} in common")
+    if r["too_few"]:
+        out.append(f"  Cohen's kappa and PABAK: {TOO_FEW} (n {r['n']:,}; needs {floor})")
+    else:
+        out.append(f"  Cohen's kappa {interval(r['kappa'], r['ci_low'], r['ci_high'], 4)} "
+                   f"(n {r['n']:,}; {r['band']}); SE {number(r['se'], 4)}")
+        out.append(f"  observed {number(r['observed'], 4)}  chance {number(r['expected'], 4)}  "
+                   f"PABAK {interval(r['pabak'], r['pabak_low'], r['pabak_high'], 4)}  prevalence "
+                   f"index {number(r['prevalence_index'], 4)}  bias index "
+                   f"{number(r['bias_index'], 4)}")
+    out.append(f"  holds: {a} {percent(r['hold_rate_a'])}, {b} {percent(r['hold_rate_b'])}")
+    conf = r["confusion"]
+    cats = conf["categories"]
+    width = max(len(c) for c in cats) + 2
+    out.append(f"  confusion (rows {a}, columns {b}):")
+    out.append(f"    {'':<{width}}" + "".join(f"{c:>11}" for c in cats))
+    for cat, row in zip(cats, conf["table"], strict=True):
+        out.append(f"    {cat:<{width}}" + "".join(f"{n:>11,}" for n in row))
+
+
+def _rate_lines(ds: dict[str, Any] | None, out: list[str]) -> None:
+    if not ds:
+        return
+    if not ds["identified"]:
+        out.append(f"\nDawid–Skene: {ds['reason']} ({ds['units']:,} pairs, "
+                   f"{ds['units_rated_twice']:,} with two or more labels)")
+        return
+    state = "converged" if ds["converged"] else "not converged"
+    out.append(f"\nDawid–Skene ({ds['iterations']} EM rounds, {state}; {ds['units']:,} pairs, "
+               f"{ds['units_rated_twice']:,} with two or more labels)")
+    holds = ds["reviewers"] and ds["reviewers"][0]["hold_rate_match"] is not None
+    out.append(f"  {'reviewer':<18} {'sensitivity':>22} {'specificity':>22}"
+               + ("  holds (match / non-match)" if holds else ""))
+    for v in ds["reviewers"]:
+        sens, spec = v["sensitivity"], v["specificity"]
+        line = (f"  {v['name']:<18} {interval(sens['value'], sens['low'], sens['high']):>22} "
+                f"{interval(spec['value'], spec['low'], spec['high']):>22}")
+        if holds:
+            line += f"  {percent(v['hold_rate_match'])} / {percent(v['hold_rate_non_match'])}"
+        out.append(line)
+    out.append(f"  {ds['method']}")
+    if ds["warning"]:
+        out.append(f"  warning: {ds['warning']}")
+
+
+def agreement_lines(report: AgreementReport) -> list[str]:
+    """The agreement report as lines of text (JSON is its ``to_dict``)."""
+    out: list[str] = []
+    names = list(report.reviewers)
+    if not names:
+        out.append(f"agreement · {report.name} · no reviewer labels yet")
+        return out
+    floor = report.min_pairs
+    out.append(f"agreement · {report.name} · {len(names)} reviewer(s): " + ", ".join(
+             f"{n} {v['labels']:,} labels" for n, v in report.reviewers.items()))
+    out.append(f"({report.conventions['holds']})")
+    if not report.reviewer_pairs:
+        out.append("\nno two reviewers have pairs in common yet")
+    for r in report.reviewer_pairs:
+        out.append("")
+        _pair_lines(r, floor, out)
+    o = report.overall
+    out.append("\nall reviewers")
+    if o["fleiss_units"]:
+        fleiss = counted(o["fleiss_kappa"], o["fleiss_low"], o["fleiss_high"],
+                         o["fleiss_units"], floor)
+        out.append(f"  Fleiss' kappa {fleiss} ({o['fleiss_band']}) on pairs with "
+                   f"{o['fleiss_raters']} ratings each")
+    else:
+        out.append("  Fleiss' kappa — (no pair has two ratings yet)")
+    alpha = counted(o["krippendorff_alpha"], o["alpha_low"], o["alpha_high"], o["alpha_units"],
+                    floor)
+    out.append(f"  Krippendorff's alpha (nominal) {alpha} on pairs with two or more ratings")
+    _rate_lines(report.dawid_skene, out)
+    c = report.conventions
+    out.append(f"\nSE: {c['se']}.\nCI: {c['ci']}.\nbands: {c['bands']}.")
+    return out
