@@ -83,6 +83,21 @@ class TeamVerbs(ProjectFile):
         from .reviewing.adjudication import undo
         return undo(self, adjudicator)
 
+    def serve_adjudication(self, adjudicator: str, waiting: list[int]) -> int | None:
+        """Claim and return the first of ``waiting`` no other adjudicator holds (None when
+        they hold them all); this adjudicator's earlier claim ends."""
+        from .reviewing.adjudication import serve
+        return serve(self, adjudicator, waiting)
+
+    def held_by_other_adjudicators(self, adjudicator: str) -> set[int]:
+        from .reviewing.adjudication import held_by_others
+        return held_by_others(self, adjudicator)
+
+    def release_adjudication(self, adjudicator: str) -> None:
+        """Give back every pair this adjudicator holds (on quitting)."""
+        from .reviewing.adjudication import release
+        release(self, adjudicator)
+
     def adjudication_queue(self) -> list[tuple[int, str]]:
         """(pair id, why) of every pair waiting for an adjudicator, in queue order."""
         from .exports.gold_export import adjudication_queue

@@ -25,9 +25,7 @@ from textual.screen import Screen
 from textual.worker import Worker, WorkerState
 
 from docket.core.errors import DocketError
-from docket.core.exports.gold_export import adjudication_queue, conflicts
 from docket.core.project import Project
-from docket.core.reviewing import adjudication
 from docket.core.types import PairCard
 
 from .. import bindings as shared
@@ -62,13 +60,13 @@ class QueueState:
 
 def load_queue(project: Project, adjudicator: str, generation: int) -> QueueState:
     """Worker thread: the adjudication queue with conflicts and gold labels, on ``project``."""
-    aside = adjudication.set_aside_for(project, adjudicator)
-    waiting = adjudication_queue(project)
+    aside = project.set_aside_for(adjudicator)
+    waiting = project.adjudication_queue()
     mine = [e for e in waiting if e[0] not in aside]
-    taken = adjudication.held_by_others(project, adjudicator)
+    taken = project.held_by_other_adjudicators(adjudicator)
     entries = tuple(e for e in mine if e[0] not in taken)
     found: dict[int, ConflictInfo] = {}
-    for c in conflicts(project):
+    for c in project.conflicts():
         info = ConflictInfo(c.cluster, len(c.members), c.match_pairs, c.non_match_pairs)
         for pid in (*c.match_pairs, *c.non_match_pairs):
             found[pid] = info
@@ -212,7 +210,7 @@ class AdjudicateScreen(Screen[None]):
         else:
             why = self._why(pair_id)
             self.card = app.project.card(pair_id, why or "adjudication")
-            reviews = adjudication.reviews_of(app.project, pair_id, app.adjudicator)
+            reviews = app.project.reviews_of(pair_id, app.adjudicator)
             self.standing = PairStanding(why, tuple(reviews), self.gold.get(pair_id),
                                          self.conflicts.get(pair_id))
         if not keep_time:
@@ -236,7 +234,7 @@ class AdjudicateScreen(Screen[None]):
             return None
         app = self.team_app
         try:
-            return adjudication.serve(app.project, app.adjudicator, waiting)
+            return app.project.serve_adjudication(app.adjudicator, waiting)
         except (DocketError, sqlite3.Error) as exc:
             # Shown unclaimed rather than not at all: the adjudication itself still saves.
             self.notify(f"Pair not claimed: {exc}", severity="warning", markup=False)
@@ -301,8 +299,8 @@ class AdjudicateScreen(Screen[None]):
             self.notify("Cancelled: nothing was written.")
             return
         try:
-            adjudication.adjudicate(app.project, pair_id, app.adjudicator, label, reason,
-                                    app.clock() - self.shown_at)
+            app.project.adjudicate(pair_id, app.adjudicator, label, reason,
+                                   app.clock() - self.shown_at)
         except (DocketError, sqlite3.Error) as exc:
             self.notify(f"Not saved: {exc}. The pair stays on screen; try again.",
                         severity="error", markup=False)
@@ -321,7 +319,7 @@ class AdjudicateScreen(Screen[None]):
     def action_undo(self) -> None:
         app = self.team_app
         try:
-            undone = adjudication.undo(app.project, app.adjudicator)
+            undone = app.project.undo_adjudication(app.adjudicator)
         except (DocketError, sqlite3.Error) as exc:
             self.notify(f"Undo not saved: {exc}", severity="error", markup=False)
             return
@@ -390,7 +388,7 @@ class AdjudicateScreen(Screen[None]):
         # the claim lapses at its expiry all the same.
         app = self.team_app
         with contextlib.suppress(DocketError, sqlite3.Error):
-            adjudication.release(app.project, app.adjudicator)
+            app.project.release_adjudication(app.adjudicator)
 
     def action_redraw(self) -> None:
         self._paint()
