@@ -30,6 +30,10 @@ def how_fitted(fs: dict) -> list[str]:
               for g in groups]
     out.append("levels kept in order" + (f" by pooling {'; '.join(pooled)}" if pooled
                                           else " (no pooling needed)"))
+    if fs.get("shrink", 1.0) < 1.0:
+        out.append(f"field weights times {fs['shrink']:.2f}, fitted to EM's view of the "
+                   "candidates: fields that agree together among non-matches are not counted "
+                   "as independent evidence")
     if fs.get("frequent"):
         out.append("frequent values get their own exact level: " + ", ".join(
             f"{f} ({len(v):,} value{'' if len(v) == 1 else 's'})"

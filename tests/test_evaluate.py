@@ -271,13 +271,18 @@ def test_export_other_and_write_export(answered: Project, tmp_path: Path, capsys
 
 def test_predicted_counts_are_exact_and_shown_whole(answered: Project) -> None:
     # every candidate pair's score is known, so the number predicted a match at a threshold
-    # is a count, not an estimate: it equals the scores export's own tally
+    # is a count, not an estimate: the tally of the scores evaluate judges by (the export's,
+    # except that each labelled audit pair has the score of a model fitted without it)
     report = evaluate(answered)
-    scores = scores_frame(answered)
+    scores = scores_frame(answered).set_index("pair_id")
+    judged = model_scores(answered).reindex(scores.index)
+    crossed = judged.to_numpy() != scores["probability"].to_numpy()
     for e in report["estimates"]:
-        assert e["predicted_positives"] == int((scores["probability"] >= e["threshold"]).sum())
+        assert e["predicted_positives"] == int((judged >= e["threshold"]).sum())
     at = next(e for e in report["estimates"] if e["threshold"] == report["threshold"])
-    assert at["predicted_positives"] == int((scores["predicted"] == "match").sum())
+    shown = scores["predicted"] == "match"
+    assert at["predicted_positives"] == int(shown[~crossed].sum()) + int(
+        (judged[crossed] >= at["threshold"]).sum())
     lines = evaluation_lines(Evaluation.from_dict(report), "sample")
     row = next(line for line in lines if line.startswith("*"))
     assert row.rstrip().endswith(f"{int(at['predicted_positives']):,}")

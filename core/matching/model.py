@@ -12,6 +12,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .dependence import fit_shrink
+
 SMOOTH = 0.5  # pseudo-count per level, so no level has m or u of exactly zero
 
 
@@ -31,6 +33,7 @@ class FSModel:
     sampled_pairs: int = 0  # size of the random sample u was measured on
     frequent: dict[str, list] = field(default_factory=dict)  # field -> values "exact, common"
     population: int = 0  # all possible record pairs (the prior is a share of these)
+    shrink: float = 1.0  # every field's weight is log2(m/u) times this (see dependence.py)
 
     def log_odds_table(self) -> tuple[float, list[np.ndarray]]:
         """Natural log-odds before the fields, and each field's contribution per level."""
@@ -38,10 +41,10 @@ class FSModel:
         return base, [w * math.log(2.0) for w in self.weights()]
 
     def weights(self) -> list[np.ndarray]:
-        """log2(m/u) per field and level; the missing level weighs 0."""
+        """log2(m/u) per field and level, times the shrink factor; the missing level weighs 0."""
         out = []
         for m, u in zip(self.m, self.u, strict=True):
-            w = np.log2(np.asarray(m) / np.asarray(u))
+            w = self.shrink * np.log2(np.asarray(m) / np.asarray(u))
             out.append(np.append(w, 0.0))
         return out
 
@@ -64,14 +67,16 @@ class FSModel:
                 "u": self.u, "prior": self.prior, "iterations": self.iterations,
                 "labels_used": self.labels_used, "u_source": self.u_source,
                 "pooled": self.pooled, "sampled_pairs": self.sampled_pairs,
-                "frequent": self.frequent, "population": self.population}
+                "frequent": self.frequent, "population": self.population,
+                "shrink": self.shrink}
 
     @classmethod
     def from_dict(cls, d: dict) -> FSModel:
         return cls(d["fields"], d["level_names"], d["m"], d["u"], d["prior"],
                    d.get("iterations", 0), d.get("labels_used", 0),
                    d.get("u_source", "candidates"), d.get("pooled", []),
-                   d.get("sampled_pairs", 0), d.get("frequent", {}), d.get("population", 0))
+                   d.get("sampled_pairs", 0), d.get("frequent", {}), d.get("population", 0),
+                   d.get("shrink", 1.0))
 
 
 def posterior(weight: np.ndarray | float, prior: float) -> np.ndarray:
@@ -96,9 +101,11 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
     ``u_random`` (u measured on a random sample of all record pairs) and ``population`` (the
     number of all possible pairs), the result uses that u instead, and the prior becomes the
     share of matches among all pairs (EM's matches among candidates over ``population``), so
-    that agreement on a blocked field counts as the evidence it is. Levels are kept in order
-    (a better level never weighs less than a worse one: pool adjacent violators). The fit is a
-    pure function of its inputs, so a refit on the same data gives the same parameters.
+    that agreement on a blocked field counts as the evidence it is; the summed weights are then
+    shrunk by one factor fitted to EM's own view of the candidates (:mod:`dependence`). Levels
+    are kept in order (a better level never weighs less than a worse one: pool adjacent
+    violators). The fit is a pure function of its inputs, so a refit on the same data gives the
+    same parameters.
     """
     patterns = np.asarray(patterns, dtype=np.int64)
     counts = np.asarray(counts, dtype=float)
@@ -148,9 +155,17 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
         source = "random pairs"
     m = [monotone_m(mf, uf) for mf, uf in zip(m, u, strict=True)]
     pooled = [_pooled_names(m[f], u[f], level_names[f]) for f in range(len(n_lv))]
-    return FSModel(fields, level_names, [list(map(float, x)) for x in m],
-                   [list(map(float, x)) for x in u], prior, it, model.labels_used, source,
-                   pooled)
+    out = FSModel(fields, level_names, [list(map(float, x)) for x in m],
+                  [list(map(float, x)) for x in u], prior, it, model.labels_used, source,
+                  pooled)
+    if source == "random pairs":
+        # EM's share of matches per pattern among the candidates, labels as they are
+        share = (free * model.probability(patterns) + lab_m) / np.maximum(counts, 1e-12)
+        base = math.log(out.prior / (1.0 - out.prior))
+        fields_sum = out.pattern_weight(patterns) * math.log(2.0)
+        out.shrink, base = fit_shrink(fields_sum, base, share, counts)
+        out.prior = float(np.clip(1.0 / (1.0 + math.exp(-base)), 1e-12, 1 - 1e-6))
+    return out
 
 
 def monotone_m(m: np.ndarray, u: np.ndarray) -> np.ndarray:
@@ -198,4 +213,4 @@ def _oriented(model: FSModel) -> FSModel:
         return model
     return FSModel(model.fields, model.level_names, model.u, model.m, 1.0 - model.prior,
                    model.iterations, model.labels_used, model.u_source, model.pooled,
-                   model.sampled_pairs, model.frequent, model.population)
+                   model.sampled_pairs, model.frequent, model.population, model.shrink)
