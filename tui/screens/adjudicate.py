@@ -13,7 +13,6 @@ from __future__ import annotations
 
 import contextlib
 import sqlite3
-from dataclasses import dataclass, field
 from functools import partial
 from typing import TYPE_CHECKING, ClassVar, cast
 
@@ -22,10 +21,8 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, VerticalScroll
 from textual.screen import Screen
-from textual.worker import Worker, WorkerState
 
 from docket.core.errors import DocketError
-from docket.core.project import Project
 from docket.core.types import PairCard
 
 from .. import bindings as shared
@@ -35,6 +32,7 @@ from ..widgets import CardOptions, Pace, PairCardView, StatusLine
 from ..widgets.key_bar import KeyBar
 from ..widgets.pair_card import card_title
 from ..widgets.reviews import ConflictInfo, PairStanding, ReviewsPanel
+from .adjudication_queue import HELD, AdjudicationQueue
 from .help import key_rows
 from .reason import ReasonScreen
 from .team_help import ADJUDICATION, TeamHelp
@@ -42,41 +40,7 @@ from .team_help import ADJUDICATION, TeamHelp
 if TYPE_CHECKING:
     from ..hosts import TeamHost
 
-HELD = "held by adjudicator"
-
-
-@dataclass(frozen=True)
-class QueueState:
-    """What a queue worker found: the waiting pairs and what the panel says about them."""
-
-    generation: int
-    entries: tuple[tuple[int, str], ...]  # (pair_id, why), in the core's order
-    conflicts: dict[int, ConflictInfo] = field(default_factory=dict)
-    gold: dict[int, tuple[str, str]] = field(default_factory=dict)  # pair -> (label, how)
-    decided: int = 0  # this adjudicator's standing adjudications
-    for_others: int = 0  # waiting pairs the policy leaves to another adjudicator
-    claimed: int = 0  # waiting pairs another adjudicator has on screen now
-
-
-def load_queue(project: Project, adjudicator: str, generation: int) -> QueueState:
-    """Worker thread: the adjudication queue with conflicts and gold labels, on ``project``."""
-    aside = project.set_aside_for(adjudicator)
-    waiting = project.adjudication_queue()
-    mine = [e for e in waiting if e[0] not in aside]
-    taken = project.held_by_other_adjudicators(adjudicator)
-    entries = tuple(e for e in mine if e[0] not in taken)
-    found: dict[int, ConflictInfo] = {}
-    for c in project.conflicts():
-        info = ConflictInfo(c.cluster, len(c.members), c.match_pairs, c.non_match_pairs)
-        for pid in (*c.match_pairs, *c.non_match_pairs):
-            found[pid] = info
-    gold = {g.pair_id: (g.label, g.how) for g in project.gold_labels()}
-    decided = len(project.history(adjudicator, role="adjudicator"))
-    return QueueState(generation, entries, found, gold, decided, len(waiting) - len(mine),
-                      len(mine) - len(entries))
-
-
-class AdjudicateScreen(Screen[None]):
+class AdjudicateScreen(AdjudicationQueue, Screen[None]):
     HORIZONTAL_BREAKPOINTS: ClassVar[list[tuple[int, str]] | None] = [
         (0, "-tiny"), (64, "-narrow"), (110, "-wide")]
     BINDINGS: ClassVar[list[BindingType]] = [
@@ -156,50 +120,6 @@ class AdjudicateScreen(Screen[None]):
         self._set_palette()
         self._paint()
 
-    # -- the queue ---------------------------------------------------------------------------
-    def _refresh_queue(self) -> None:
-        self.generation += 1
-        app, generation = self.team_app, self.generation
-
-        def work() -> QueueState:
-            with app.reader() as project:
-                return load_queue(project, app.adjudicator, generation)
-
-        self.run_worker(work, thread=True, exit_on_error=False, group="queue",
-                        name="adjudication queue")
-
-    def _ordered(self, entries: tuple[tuple[int, str], ...]) -> list[tuple[int, str]]:
-        held = {p: i for i, p in enumerate(self.held)}
-        first = [e for e in entries if e[0] not in held]
-        last = sorted((e for e in entries if e[0] in held), key=lambda e: held[e[0]])
-        return first + last
-
-    def _why(self, pair_id: int) -> str:
-        return next((why for pid, why in self.queue or () if pid == pair_id), "")
-
-    def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
-        worker = event.worker
-        if worker.group != "queue":
-            return
-        if event.state == WorkerState.ERROR:
-            self.notify(f"The adjudication queue could not be read: {worker.error}",
-                        severity="error", markup=False)
-            return
-        if event.state != WorkerState.SUCCESS:
-            return
-        state: QueueState = worker.result
-        if state.generation != self.generation:
-            return  # a later change started a newer count; wait for that one
-        self.queue = self._ordered(state.entries)
-        self.conflicts, self.gold, self.decided = state.conflicts, state.gold, state.decided
-        self.for_others, self.claimed = state.for_others, state.claimed
-        if self.pair_id is None and self.mode == "queue":
-            self._show_queue()
-        elif self.pair_id is not None:
-            self._show(self.pair_id, self.mode, self.where, keep_time=True)
-        else:
-            self._paint()
-
     # -- showing a pair ----------------------------------------------------------------------
     def _show(self, pair_id: int | None, mode: Mode, where: str = "",
               keep_time: bool = False) -> None:
@@ -227,36 +147,6 @@ class AdjudicateScreen(Screen[None]):
             waiting.remove(parked)
             waiting.insert(0, parked)
         self._show(self._serve(waiting), "queue")
-
-    def _serve(self, waiting: list[int]) -> int | None:
-        """The first waiting pair no other adjudicator holds, claimed for this one."""
-        if not waiting:
-            return None
-        app = self.team_app
-        try:
-            return app.project.serve_adjudication(app.adjudicator, waiting)
-        except (DocketError, sqlite3.Error) as exc:
-            # Shown unclaimed rather than not at all: the adjudication itself still saves.
-            self.notify(f"Pair not claimed: {exc}", severity="warning", markup=False)
-            return waiting[0]
-
-    def _empty_message(self) -> Text:
-        if self.queue is None:
-            return Text("Reading the adjudication queue…", self.palette.muted)
-        path = self.team_app.project.path
-        settled = ("Nothing waits for adjudication: every disagreement, hold and cluster "
-                   "conflict is settled.")
-        if self.for_others:
-            settled = (f"Nothing more for you: {self.for_others:,} waiting pair(s) you decided "
-                       "as a reviewer are left to another adjudicator (the project's policy).")
-        if self.claimed or self.queue:  # what is left waits on others' screens
-            settled += (f" {self.claimed + len(self.queue or ()):,} waiting pair(s) are on "
-                        "another adjudicator's screen; they come back here if left.")
-        return Text(
-            f"{settled}\n\nWhat next: [ looks back at your adjudications; a shows how far the "
-            "reviewers agree; g shows the model's quality; q quits. New pairs arrive here as "
-            f"reviewers label overlap pairs (docket review {path}). Export the gold labels "
-            f"with: docket export {path} --what gold -o gold.csv", self.palette.muted)
 
     def _paint(self) -> None:
         app = self.team_app

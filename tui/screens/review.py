@@ -10,7 +10,6 @@ Nothing here holds statistics or SQL; it asks :class:`~docket.core.project.Proje
 from __future__ import annotations
 
 import sqlite3
-from functools import partial
 from typing import TYPE_CHECKING, ClassVar, cast
 
 from rich.text import Text
@@ -18,27 +17,25 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, VerticalScroll
 from textual.screen import Screen
-from textual.worker import Worker, WorkerState
 
 from docket.core.errors import DocketError
 from docket.core.types import Decision, PairCard, QueueItem
 
 from .. import bindings as shared
 from ..diff import PLAIN, Palette
-from ..navigation import Mode, Move, Navigator
+from ..navigation import Mode, Navigator
 from ..widgets import CardOptions, EvidencePanel, KeyBar, Pace, PairCardView, StatusLine, YourSide
 from ..widgets.pair_card import card_title
-from .find import Group, PairPicker
 from .help import HelpScreen, key_rows
-from .note import NoteScreen
+from .review_background import ReviewBackground
+from .review_moves import ReviewMoves
+from .review_notes import ReviewNotes
 
 if TYPE_CHECKING:
-    from ..hosts import Recount, ReviewHost
+    from ..hosts import ReviewHost
 
 
-
-
-class ReviewScreen(Screen[None]):
+class ReviewScreen(ReviewNotes, ReviewMoves, ReviewBackground, Screen[None]):
     HORIZONTAL_BREAKPOINTS: ClassVar[list[tuple[int, str]] | None] = [
         (0, "-tiny"), (64, "-narrow"), (110, "-wide")]
     BINDINGS: ClassVar[list[BindingType]] = [
@@ -244,85 +241,6 @@ class ReviewScreen(Screen[None]):
         # its turn once the undone pair is decided again.
         self._show_pair(undone.pair_id, "aside", f"undone ({undone.label}): decide again")
 
-    def action_note(self) -> None:
-        if self.item is None:
-            return
-        initial = self.pending_note or ("" if self.mine is None else self.mine.note)
-        self.app.push_screen(NoteScreen(self.item.pair_id, initial, self.mine is not None),
-                             self._save_note)
-
-    def _save_note(self, note: str | None) -> None:
-        if note is None or self.item is None:
-            return
-        app = self.review_app
-        if self.mine is None:
-            try:  # saved now: quitting before the decision must not lose it
-                app.project.save_draft(self.item.pair_id, app.reviewer, note)
-            except (DocketError, sqlite3.Error) as exc:
-                self.notify(f"Note not saved: {exc}", severity="error", markup=False)
-                return
-            self.pending_note = note
-            self.notify("Note saved; it goes with your decision on this pair.")
-        else:
-            try:
-                self.mine = app.project.decide(self.item.pair_id, app.reviewer,
-                                               str(self.mine.label), note,
-                                               app.clock() - self.shown_at)
-            except (DocketError, sqlite3.Error) as exc:
-                self.notify(f"Note not saved: {exc}", severity="error", markup=False)
-                return
-            self.shown_at = app.clock()
-            self.notify("Note saved.")
-        self._paint()
-
-    # -- moving around -----------------------------------------------------------------------
-    def _go(self, move: Move) -> None:
-        if move.message:
-            self.notify(move.message)
-        elif move.to == "history" and move.pair_id is not None:
-            self._show_pair(move.pair_id, "history", self.nav.where("history"))
-        elif move.to == "queue":
-            self._show_queue()
-
-    def action_back(self) -> None:
-        app = self.review_app
-        self._go(self.nav.back(lambda: [d.pair_id for d in app.project.history(app.reviewer)],
-                               self.item, "No decisions yet to look back at.",
-                               "This is your first decision."))
-
-    def action_forward(self) -> None:
-        self._go(self.nav.forward("You are at the newest pair."))
-
-    def action_to_queue(self) -> None:
-        if self.mode != "queue":
-            self._show_queue()
-
-    def _open_aside(self, pair_id: int | None) -> None:
-        if pair_id is None:
-            return
-        self.nav.open_aside(self.item)
-        self._show_pair(pair_id, "aside", "opened: deciding returns to the queue")
-
-    def action_find(self) -> None:
-        app = self.review_app
-        self.app.push_screen(PairPicker(app.project, app.reviewer, app.mask,
-                                        title="find a pair"), self._open_aside)
-
-    def action_candidates(self) -> None:
-        app = self.review_app
-        if self.card is None:
-            return
-        groups = []
-        for side, rid, name in (("left", self.card.left_id, self.card.sides[0]),
-                                ("right", self.card.right_id, self.card.sides[1])):
-            others = tuple(q.pair_id for q in app.project.candidates_of(side, rid)
-                           if q.pair_id != self.card.pair_id)
-            groups.append(Group(f"{name} record: {len(others)} other candidate"
-                                f"{'s' if len(others) != 1 else ''}", others))
-        self.app.push_screen(PairPicker(app.project, app.reviewer, app.mask,
-                                        title="other candidates", search=False,
-                                        groups=tuple(groups)), self._open_aside)
-
     def action_full_values(self) -> None:
         self.query_one(PairCardView).toggle_full_values()
 
@@ -350,43 +268,6 @@ class ReviewScreen(Screen[None]):
         if action == "to_queue":
             return self.mode != "queue"
         return True
-
-    # -- the background: counting and refitting ----------------------------------------------
-    def _count(self) -> None:
-        app = self.review_app
-        self.run_worker(partial(app.recount, app.counted), thread=True, group="count",
-                        name="count", exit_on_error=False)
-
-    def _after_decision(self) -> None:
-        app = self.review_app
-        self.since_refit += 1
-        if app.refit_every and self.since_refit >= app.refit_every and not self.refitting:
-            self.since_refit = 0
-            self.refitting = True
-            self.query_one(StatusLine).set_who(app.project_name, app.reviewer, "refitting")
-            # A refit that fails (the file busy, say) is reported; the review goes on.
-            self.run_worker(partial(app.refit, app.counted), thread=True, group="refit",
-                            name="refit", exit_on_error=False)
-
-    def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
-        worker, app = event.worker, self.review_app
-        if worker.group == "refit" and event.state in (WorkerState.ERROR,
-                                                       WorkerState.SUCCESS):
-            self.refitting = False
-            self.query_one(StatusLine).set_who(app.project_name, app.reviewer)
-        if event.state == WorkerState.ERROR:
-            self.notify(f"{worker.name} failed: {worker.error}", severity="error",
-                        markup=False)
-            return
-        if event.state != WorkerState.SUCCESS:
-            return
-        count: Recount = worker.result
-        if worker.group == "refit":
-            self.model_note = count.note
-            app.project.reload()
-        moved = app.counted - count.counted_at  # decisions made while the worker counted
-        self.decided, self.remaining = count.decided + moved, max(0, count.remaining - moved)
-        self._status()
 
 
 def binding_ids() -> list[str]:
