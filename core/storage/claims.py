@@ -57,8 +57,10 @@ def claim(conn: sqlite3.Connection, reviewer: str, pair_ids: Iterable[int],
     Call inside the write transaction that chose the pairs.
     """
     at = datetime.now(UTC)
-    conn.execute("DELETE FROM claims WHERE (reviewer = ? AND role = ? AND NOT ?) "
-                 "OR expires_at <= ?", (reviewer, role, keep, _iso(at)))
+    # Two deletes, each an index lookup (claims_reviewer, claims_expiry); one with OR scanned.
+    if not keep:
+        conn.execute("DELETE FROM claims WHERE reviewer = ? AND role = ?", (reviewer, role))
+    conn.execute("DELETE FROM claims WHERE expires_at <= ?", (_iso(at),))
     conn.executemany("INSERT OR REPLACE INTO claims VALUES (?, ?, ?, ?)",
                      [(int(p), reviewer, role, _iso(at + lease)) for p in pair_ids])
 

@@ -8,8 +8,11 @@ here, one per pair, person and role, until a decision on the pair carries it int
 from __future__ import annotations
 
 import sqlite3
+from typing import TypeVar
 
 from . import store
+
+T = TypeVar("T")
 
 
 def save(conn: sqlite3.Connection, pair_id: int, reviewer: str, note: str,
@@ -23,14 +26,25 @@ def save(conn: sqlite3.Connection, pair_id: int, reviewer: str, note: str,
 
 
 def of(conn: sqlite3.Connection, pair_id: int, reviewer: str, role: str = "reviewer") -> str:
-    if not store.has_table(conn, "drafts"):
-        return ""
-    row = conn.execute("SELECT note FROM drafts WHERE pair_id = ? AND reviewer = ? AND role = ?",
-                       (int(pair_id), reviewer, role)).fetchone()
+    try:
+        row = conn.execute("SELECT note FROM drafts WHERE pair_id = ? AND reviewer = ? "
+                           "AND role = ?", (int(pair_id), reviewer, role)).fetchone()
+    except sqlite3.OperationalError as exc:
+        return _absent(exc, "")
     return "" if row is None else str(row[0])
 
 
 def clear(conn: sqlite3.Connection, pair_id: int, reviewer: str, role: str = "reviewer") -> None:
-    if store.has_table(conn, "drafts"):
+    try:
         conn.execute("DELETE FROM drafts WHERE pair_id = ? AND reviewer = ? AND role = ?",
                      (int(pair_id), reviewer, role))
+    except sqlite3.OperationalError as exc:
+        _absent(exc, None)
+
+
+def _absent(exc: sqlite3.OperationalError, value: T) -> T:
+    # An older file opened read-only has no drafts table. Asked this way rather than looked up
+    # in sqlite_master first, which every decision paid for with a scan of the schema.
+    if "no such table" not in str(exc):
+        raise exc
+    return value

@@ -19,7 +19,7 @@ from ..errors import DocketError, NotAProject
 from . import file_health
 
 APPLICATION_ID = 0x646F636B  # "dock": marks the file as a docket project
-SCHEMA_VERSION = 5
+SCHEMA_VERSION = 6
 BUSY_TIMEOUT_MS = 5000
 
 SCHEMA_V1 = """
@@ -150,6 +150,11 @@ def _claims_by_role(conn: sqlite3.Connection) -> None:
         conn.execute(statement)
 
 
+def _claims_by_expiry(conn: sqlite3.Connection) -> None:
+    # Version 6: lapsed claims are cleared on every claim; found by index, not by a scan.
+    conn.execute("CREATE INDEX claims_expiry ON claims(expires_at)")
+
+
 Migration = Callable[[sqlite3.Connection], None]
 
 
@@ -179,6 +184,7 @@ MIGRATIONS: dict[int, tuple[str, Migration]] = {
     3: ("indexed history, role grants, claims", _to_v3),
     4: ("machine raters", _add_machine_raters),
     5: ("claims by role", _claims_by_role),
+    6: ("claims by expiry", _claims_by_expiry),
 }
 
 
