@@ -4,13 +4,12 @@ Three tabs. Plots: the score of gold-labelled pairs by label, and the precisionâ
 (design-based from the audit slice, with the naive curve beside it). Thresholds: the table of
 ``quality.evaluate`` with intervals, the naive figures marked biased, and the note that recall is
 within the candidate pairs. Clusters: the conflicts, clusters of gold matches holding a gold
-non-match (Enter shows the members). Everything is worked out in a worker.
+non-match (Enter shows the members). Everything is worked out in a worker (``quality_data.py``).
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
-from typing import TYPE_CHECKING, ClassVar
+from typing import ClassVar
 
 from rich.text import Text
 from textual.app import ComposeResult
@@ -21,69 +20,16 @@ from textual.widgets import DataTable, Static, TabbedContent, TabPane
 from textual.worker import Worker, WorkerState
 from textual_plotext import PlotextPlot
 
-from docket.core.errors import DocketError
-from docket.core.project import Project
-from docket.core.results import Evaluation
-from docket.core.types import ClusterConflict
-
 from .. import literal
 from ..diff import PLAIN, Palette
 from ..widgets.key_bar import KeyBar
 from .conflict import ConflictScreen
+from .quality_data import QualityData, load_quality
 from .quality_table import NARROW_BELOW, fill_threshold_table, notes_text
 from .team_base import TeamScreen
 from .team_help import QUALITY
 
-if TYPE_CHECKING:
-    pass
-
-CURVE = tuple(round(0.025 * i, 3) for i in range(1, 40))  # thresholds of the drawn curve
 BINS = 20
-
-
-@dataclass(frozen=True)
-class QualityData:
-    """What the worker found; a part that could not be worked out says why instead."""
-
-    report: Evaluation | None = None  # the evaluation at its default thresholds
-    curve: Evaluation | None = None  # the evaluation on a fine grid, for the curve
-    problem: str = ""  # why there is no report
-    scores: dict[str, list[float]] = field(default_factory=dict)  # gold label -> scores
-    conflicts: tuple[ClusterConflict, ...] = ()
-    clusters: int = 0  # clusters of two or more records
-    largest: int = 0
-    clustered: int = 0  # records in those clusters
-    cluster_problem: str = ""
-
-
-def load_quality(project: Project) -> QualityData:
-    """Worker thread: evaluation, scores by gold label, clusters and conflicts."""
-    report = curve = None
-    problem = cluster_problem = ""
-    try:
-        report = project.evaluate()
-        curve = project.evaluate(thresholds=CURVE)
-    except DocketError as exc:
-        problem = str(exc)
-    except (ValueError, ArithmeticError) as exc:  # a figure the estimator could not form
-        problem = f"the estimates could not be worked out ({exc})"
-    scores: dict[str, list[float]] = {"match": [], "non-match": []}
-    by_pair = project.model_scores()
-    for g in project.gold_labels():
-        scores.setdefault(g.label, []).append(float(by_pair.get(g.pair_id, 0.0)))
-    found: tuple[ClusterConflict, ...] = ()
-    clusters = largest = clustered = 0
-    try:
-        found = tuple(project.conflicts())
-        frame = project.clusters_frame()
-        sizes = frame.drop_duplicates("cluster")["cluster_size"]
-        multi = sizes[sizes >= 2]
-        clusters, clustered = len(multi), int(multi.sum())
-        largest = int(multi.max()) if len(multi) else 0
-    except (DocketError, ValueError) as exc:
-        cluster_problem = f"clusters could not be formed ({exc})"
-    return QualityData(report, curve, problem, scores, found, clusters, largest, clustered,
-                       cluster_problem)
 
 
 class QualityScreen(TeamScreen):
