@@ -54,19 +54,36 @@ class Project(TeamVerbs, ReportVerbs, MatcherVerbs, SplitFirst):
             roles.register(self._conn, name)
 
     # -- queue -------------------------------------------------------------------------------
-    def _stream(self, reviewer: str, audit: bool, n: int, exclude: tuple[int, ...]) -> list:
+    def _stream(self, reviewer: str, audit: bool, n: int, exclude: tuple[int, ...],
+                extra: bool = False) -> list:
         skip = f"AND p.pair_id NOT IN ({','.join(map(str, exclude))})" if exclude else ""
         order = "p.audit_order" if audit else "t.priority, t.pattern_id, p.pair_id"
         free = f"AND {claims.free_for('p')}" if self._claims_kept() else ""
         args: tuple = (int(audit), reviewer, *((reviewer, claims.now()) if free else ()))
+        which, audit_col, join = "p.audit = ?", "p.audit", ""
+        if extra:  # a supplement's pairs (quality.supplement), in their draw order
+            which, audit_col, order = "? = 1", "1", "s.draw, p.pair_id"
+            join = ("JOIN (SELECT pair_id, min(draw_order) AS draw FROM supplement_pairs "
+                    "GROUP BY pair_id) s ON s.pair_id = p.pair_id ")
         rows = self._conn.execute(  # the model's order: a pool beyond n, to break its runs
-            "SELECT p.pair_id, p.left_id, p.right_id, t.probability, p.audit, p.overlap, "
-            "p.n_labels FROM pairs p JOIN patterns t ON t.pattern_id = p.pattern_id "
-            f"WHERE p.open = 1 AND p.audit = ? {skip} AND NOT EXISTS (SELECT 1 FROM current c "
+            f"SELECT p.pair_id, p.left_id, p.right_id, t.probability, {audit_col}, p.overlap, "
+            f"p.n_labels FROM pairs p JOIN patterns t ON t.pattern_id = p.pattern_id {join}"
+            f"WHERE p.open = 1 AND {which} {skip} AND NOT EXISTS (SELECT 1 FROM current c "
             "WHERE c.pair_id = p.pair_id AND c.reviewer = ? AND c.role = 'reviewer') "
             f"{free} ORDER BY {order} LIMIT ?", (*args, n + (0 if audit else queue.POOL)))
         return rows.fetchall() if audit else queue.runs_broken(
             rows.fetchall(), log.last_probabilities(self._conn, reviewer, queue.WINDOW), n)
+
+    def _audit_stream(self, reviewer: str, n: int, exclude: tuple[int, ...]) -> list:
+        """The audit slice's next pairs, a supplement's (if any) taking every other place."""
+        audit = self._stream(reviewer, True, n, exclude)
+        if not store.has_table(self._conn, "supplement_pairs"):
+            return audit
+        extra = self._stream(reviewer, True, n, exclude, extra=True)
+        mixed = [r for pair in zip(extra, audit, strict=False) for r in pair]
+        longer = extra if len(extra) > len(audit) else audit
+        rows = mixed + longer[min(len(extra), len(audit)):]
+        return list({r[0]: r for r in rows}.values())  # a pair drawn in both: shown once
 
     _has_claims: bool | None = None
 
@@ -106,8 +123,10 @@ class Project(TeamVerbs, ReportVerbs, MatcherVerbs, SplitFirst):
         else:
             done = self._conn.execute("SELECT count(*) FROM current WHERE reviewer = ? "
                                       "AND role = 'reviewer'", (reviewer,)).fetchone()[0]
-        audit = self._stream(reviewer, True, n, exclude)
+        audit = self._audit_stream(reviewer, n, exclude)
         other, split = self._others(reviewer, n, exclude)  # the model's order, or split first
+        served = {r[0] for r in audit}
+        other = [r for r in other if r[0] not in served]  # a supplement pair: in one stream
         every = int(self.meta.get("audit_every", queue.AUDIT_EVERY))
         out: list[QueueItem] = []
         for i in range(n):

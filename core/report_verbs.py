@@ -35,11 +35,21 @@ class ReportVerbs(ProjectFile):
     def evaluate_predictions(self, path: str | Path, threshold: float | None = None,
                              thresholds: Sequence[float] | None = None,
                              target_precision: float | None = None,
-                             target_recall: float | None = None) -> Evaluation:
-        """A matcher's file judged like the model, plus its kappa as a machine rater."""
+                             target_recall: float | None = None,
+                             supplement: bool = False) -> Evaluation:
+        """A matcher's file judged like the model, plus its kappa as a machine rater; with
+        ``supplement``, from the supplement drawn on its scores (``quality.supplement``)."""
         from .quality.evaluate import evaluate_predictions
         return Evaluation.from_dict(evaluate_predictions(
-            self, path, threshold, thresholds, target_precision, target_recall))
+            self, path, threshold, thresholds, target_precision, target_recall,
+            supplement=supplement))
+
+    def draw_supplement(self, path: str | Path, size: int | None = None,
+                        seed: int | None = None) -> dict[str, Any]:
+        """Draw and store a second audit sample on a matcher's scores: its design, as a dict
+        (fingerprint, file, size, seed, strata: stratum -> [N_h, n_h])."""
+        from .quality.supplement import draw_supplement
+        return draw_supplement(self, path, size, seed).to_dict()
 
     def model_scores(self) -> pd.Series:
         """The model's score of every candidate pair, by pair id."""

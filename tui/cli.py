@@ -21,6 +21,7 @@ from . import (
     cli_project,
     cli_scale,
     cli_screens,
+    cli_supplement,
     cli_team,
 )
 from .cli_base import Formatter, version, warn_line
@@ -37,7 +38,7 @@ def build_parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
 
     for module in (cli_project, cli_screens, cli_team, cli_gold, cli_missed, cli_policy,
-                   cli_matchers, cli_scale):
+                   cli_matchers, cli_scale, cli_supplement):
         module.register(sub)
     return parser
 

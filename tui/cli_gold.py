@@ -51,6 +51,8 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--threshold", type=float, metavar="T",
                    help="with --predictions: the score at which a pair is a predicted match "
                         "(default: the project's threshold)")
+    p.add_argument("--supplement", action="store_true", help="with --predictions: judge it "
+                   "from the supplement drawn on its scores ('docket supplement')")
     p.add_argument("--thresholds", type=_shares, metavar="T,T,...",
                    help="thresholds for the table (default 0.1 ... 0.9, 0.95, 0.99 and the "
                         "project's)")
@@ -118,12 +120,12 @@ def evaluate(args: argparse.Namespace) -> int:
         if args.predictions:
             report = project.evaluate_predictions(args.predictions, args.threshold,
                                                   args.thresholds, args.target_precision,
-                                                  args.target_recall)
+                                                  args.target_recall, supplement=args.supplement)
         else:
-            if args.threshold is not None:
+            if args.threshold is not None or args.supplement:
                 from docket.core import DocketError
-                raise DocketError("--threshold goes with --predictions; the project's own "
-                                  "threshold is set at 'docket new'")
+                raise DocketError("--threshold and --supplement go with --predictions; the "
+                                  "project's own threshold is set at 'docket new'")
             report = project.evaluate(args.thresholds, args.target_precision,
                                       args.target_recall)
         name = project.meta.get("name") or project.path.stem

@@ -41,7 +41,8 @@ def evaluation_lines(report: Evaluation, name: str) -> list[str]:
     a = report.audit
     conf = f"{report.confidence:.0%}"
     held = f"; {a['held']:,} held" if a.get("held") else ""
-    out = [f"{name} · quality from the audit slice: {a['labelled']:,} of {a['drawn']:,} drawn "
+    out = [f"{name} · quality from {a.get('sample', 'the audit slice')}: {a['labelled']:,} of "
+           f"{a['drawn']:,} drawn "
            f"pairs have gold labels ({a['matches']:,} matches{held}); {conf} intervals",
            f"score: {report.model['score']}; decision threshold {report.threshold:g}", ""]
     head = f"{'precision':<24}{'recall':<24}{'F1':<24}{'predicted':>12}"

@@ -166,13 +166,15 @@ def _check_target(name: str, value: float | None) -> None:
 
 def _report(project: ProjectFile, scores: pd.Series, threshold: float,
             thresholds: Sequence[float] | None, target_precision: float | None,
-            target_recall: float | None, confidence: float) -> dict[str, Any]:
+            target_recall: float | None, confidence: float,
+            design: tuple[estimates.AuditSample, dict[int, Any]] | None = None
+            ) -> dict[str, Any]:
     _check_target("precision", target_precision)
     _check_target("recall", target_recall)
     if target_precision is not None and target_recall is not None:
         raise DocketError("give --target-precision or --target-recall, not both")
-    sample = audit_sample(project, scores)
-    drawn = sum(v[1] for v in _strata(project).values())
+    sample, design_strata = design or (audit_sample(project, scores), _strata(project))
+    drawn = sum(v[1] for v in design_strata.values())
     if sample.n_labelled == 0:
         raise DocketError(f"the audit slice has no gold labels yet (0 of {drawn:,} drawn "
                           "pairs); review some: every fifth pair of a reviewer's queue is "
@@ -206,7 +208,7 @@ def _report(project: ProjectFile, scores: pd.Series, threshold: float,
                      "before relying on it")}
     counts, held = sample.labelled_counts(), sample.held_counts()
     strata = [{"stratum": h, "pairs": v[0], "drawn": v[1], "labelled": int(counts.get(h, 0)),
-               "held": int(held.get(h, 0))} for h, v in sorted(_strata(project).items())]
+               "held": int(held.get(h, 0))} for h, v in sorted(design_strata.items())]
     return {
         "project": str(project.path),
         "mode": project.meta.get("mode"),
@@ -257,12 +259,14 @@ def evaluate_predictions(project: ProjectFile, path: str | Path, threshold: floa
                          thresholds: Sequence[float] | None = None,
                          target_precision: float | None = None,
                          target_recall: float | None = None,
-                         confidence: float = 0.95) -> dict[str, Any]:
+                         confidence: float = 0.95, supplement: bool = False) -> dict[str, Any]:
     """A matcher's output judged like the model (see ``evaluate``), plus its kappa.
 
     ``threshold`` is where the file's score becomes a predicted match (default: the project's
     threshold for scores in [0, 1]; a label column needs none). The result adds
-    ``predictions`` (what was read) and ``machine_rater`` (``machine_rater``).
+    ``predictions`` (what was read) and ``machine_rater`` (``machine_rater``). With
+    ``supplement`` the figures come from the supplement drawn on the file's scores
+    (``quality.supplement``), not from the audit slice; ``audit["sample"]`` says so.
     """
     scores, info = read_predictions(project, path)
     if info["labels_only"]:
@@ -274,8 +278,16 @@ def evaluate_predictions(project: ProjectFile, path: str | Path, threshold: floa
     if thresholds is None and not info["scores_in_unit_interval"]:
         given = scores[scores > scores.min()] if scores.nunique() > 1 else scores
         thresholds = sorted({float(q) for q in np.quantile(given, np.linspace(0.1, 0.9, 9))})
+    design, made = None, None
+    if supplement:
+        from .supplement import supplement_sample
+        sample, made = supplement_sample(project, scores, path)
+        design = (sample, dict(made.strata))
     out = _report(project, scores, float(threshold), thresholds, target_precision,
-                  target_recall, confidence)
+                  target_recall, confidence, design)
+    if made is not None:
+        out["audit"]["sample"] = f"the supplement drawn on {made.file}'s scores"
+        out["audit"]["supplement"] = made.to_dict()
     outside = info.pop("_outside_scores")
     k = int(np.sum(outside >= float(threshold)))
     info["outside_predicted_matches"] = k
