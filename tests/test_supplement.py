@@ -93,16 +93,17 @@ def test_draw_store_review_and_evaluate(sample_project: Path, tmp_path: Path, ca
             big, n = made["strata"][str(h)]
             assert pi == pytest.approx(n / big)
         assert sum(n for _, n in made["strata"].values()) == 120
-        # its pairs come in the audit share of the queue, marked as audit pairs
+        # its pairs come in the audit share of the queue, marked as audit pairs (one may also
+        # come up in the model's order: its label counts all the same)
         wanted = {r[0] for r in rows}
-        served = set()
+        served, as_audit = set(), 0
         for _ in range(60):
             item = project.next_pairs("maya", 1)[0]
             if item.pair_id in wanted:
                 served.add(item.pair_id)
-                assert item.reason == "audit"
+                as_audit += item.reason == "audit"
             project.decide(item.pair_id, "maya", "non-match")
-        assert served
+        assert as_audit >= 5
         with pytest.raises(DocketError, match="drawn on these scores already"):
             draw_supplement(project, path)
         report = evaluate_predictions(project, path, supplement=True)
