@@ -1,16 +1,17 @@
-"""Pilot tests for every key of the review screen, against the sample project."""
+"""Pilot tests for the review screen's keys, against the sample project: deciding, notes,
+help, keymaps and layout. The background refit is in test_review_background.py, moving around
+(history, find, other candidates) in test_review_moves.py."""
 
 # ruff: noqa: F811 - pytest fixtures imported from fixtures_review arrive as arguments
 
 from __future__ import annotations
 
 import sqlite3
-import threading
 from pathlib import Path
 
 from docket.core import Project
 from docket.tui.keymap import keymap_path, load_keymap
-from docket.tui.screens import HelpScreen, NoteScreen, PairPicker, ReviewScreen
+from docket.tui.screens import HelpScreen, NoteScreen, ReviewScreen
 from tests.fixtures_review import (  # noqa: F401 - fixtures are used by name
     FrozenClock,
     frozen_clock,
@@ -152,84 +153,6 @@ async def test_note_on_a_decided_pair_appends_a_decision_with_the_same_label(rev
 
 
 @pilot_test
-async def test_history_back_forward_and_changing_a_past_decision(review_sample, review_app):
-    app = review_app(review_sample)
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        decided = []
-        for key in "sss":
-            decided.append(review(app).item.pair_id)
-            await press(pilot, key)
-        waiting = review(app).item.pair_id
-        await press(pilot, "left_square_bracket", "left_square_bracket")
-        screen = review(app)
-        assert (screen.mode, screen.item.pair_id, screen.mine.label) == ("history", decided[1],
-                                                                         "match")
-        assert "history 2 of 3" in screen_text(app)
-        await pilot.press("d")  # change it: appends, then steps forward
-        await pilot.pause()
-        assert review(app).item.pair_id == decided[2]
-        await pilot.press("right_square_bracket")  # past the newest: back to the queue
-        await pilot.pause()
-        assert (review(app).mode, review(app).item.pair_id) == ("queue", waiting)
-        assert review(app).decided == 3
-    changed = rows(review_sample, "SELECT label, supersedes IS NOT NULL FROM decisions "
-                                   "WHERE pair_id = ? ORDER BY decided_at", (decided[1],))
-    assert changed == [("match", 0), ("non-match", 1)]
-    with Project.open(review_sample) as project:
-        assert project.current_label(decided[1], "maya").label == "non-match"
-
-
-@pilot_test
-async def test_find_by_pair_id_opens_it_and_deciding_returns_to_the_queue(review_sample,
-                                                                         review_app):
-    app = review_app(review_sample)
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        waiting = review(app).item.pair_id
-        target = 4242 if waiting != 4242 else 4243
-        await press(pilot, "slash")
-        assert isinstance(app.screen, PairPicker)
-        await press(pilot, *str(target), "enter")
-        await press(pilot, "enter")
-        assert (review(app).mode, review(app).item.pair_id) == ("aside", target)
-        await press(pilot, "h")
-        assert (review(app).mode, review(app).item.pair_id) == ("queue", waiting)
-    assert log(review_sample)[0][:3] == (target, "maya", "hold")
-
-
-@pilot_test
-async def test_find_by_text_and_escape_back_to_the_queue(review_sample, review_app):
-    app = review_app(review_sample)
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        waiting = review(app).item.pair_id
-        await press(pilot, "slash", *"Fjelholm", "enter")
-        assert "Fjelholm" in screen_text(app)
-        await press(pilot, "enter")
-        assert review(app).mode == "aside"
-        await press(pilot, "escape")
-        assert (review(app).mode, review(app).item.pair_id) == ("queue", waiting)
-    assert log(review_sample) == []
-
-
-@pilot_test
-async def test_other_candidates_can_be_opened(review_sample, review_app):
-    app = review_app(review_sample)
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        card = review(app).card
-        await press(pilot, "c")
-        assert isinstance(app.screen, PairPicker)
-        assert "left record" in screen_text(app)
-        await press(pilot, "enter")
-        opened = review(app).card
-        assert opened.pair_id != card.pair_id
-        assert card.left_id in (opened.left_id, opened.right_id) or \
-            card.right_id in (opened.left_id, opened.right_id)
-
-
-@pilot_test
 async def test_extra_columns_toggle(review_sample, review_app):
     app = review_app(review_sample)
     async with app.run_test(size=SIZE) as pilot:
@@ -336,21 +259,6 @@ async def test_keymap_file_remaps_keys(review_sample, review_app, tmp_path):
 
 
 @pilot_test
-async def test_refit_runs_in_the_background_and_keeps_the_pair_on_screen(review_sample,
-                                                                         review_app):
-    app = review_app(review_sample, refit_every=3)
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        for key in "sds":
-            await pilot.press(key)
-        on_screen = review(app).item
-        await settle(pilot)
-        assert review(app).item == on_screen
-        assert "model refit" in review(app).model_note
-    assert rows(review_sample, "SELECT value FROM meta WHERE key = 'refits'") == [("1",)]
-
-
-@pilot_test
 async def test_layout_stacks_when_narrow_and_follows_resizes(review_sample, review_app):
     from docket.tui.widgets import PairCardView
 
@@ -367,32 +275,6 @@ async def test_layout_stacks_when_narrow_and_follows_resizes(review_sample, revi
             await pilot.pause()
         assert not app.screen.query_one(PairCardView).stacked
         assert " R " not in screen_text(app).split("field")[1][:200]
-
-
-@pilot_test
-async def test_input_is_not_blocked_while_a_refit_runs(review_sample, review_app):
-    app = review_app(review_sample, refit_every=1)
-    release = threading.Event()
-    bg = app.background()
-    real_refit = bg.refit
-
-    def slow_refit():
-        assert release.wait(timeout=30)
-        return real_refit()
-
-    bg.refit = slow_refit  # type: ignore[method-assign]
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot)
-        seen = []
-        for key in "sdd":  # the first starts a refit that waits; the others go through
-            seen.append(review(app).item.pair_id)
-            await press(pilot, key)
-        assert review(app).refitting
-        assert len(log(review_sample)) == 3 and len(set(seen)) == 3
-        on_screen = review(app).item
-        release.set()
-        await settle(pilot)
-        assert not review(app).refitting and review(app).item == on_screen
 
 
 @pilot_test

@@ -1,0 +1,99 @@
+"""Pilot tests for the review screen's moves, against the sample project: back and forward
+through history (changing a past decision), find by pair id or by text, and another record's
+candidates; deciding a pair opened aside returns to the queue."""
+
+# ruff: noqa: F811 - pytest fixtures imported from fixtures_review arrive as arguments
+
+from __future__ import annotations
+
+from docket.core import Project
+from docket.tui.screens import PairPicker
+from tests.fixtures_review import (  # noqa: F401 - fixtures are used by name
+    FrozenClock,
+    frozen_clock,
+    pilot_test,
+    review_app,
+    review_sample,
+    review_sample_master,
+    screen_text,
+    settle,
+)
+from tests.test_review_keys import SIZE, log, press, review, rows
+
+
+@pilot_test
+async def test_history_back_forward_and_changing_a_past_decision(review_sample, review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        decided = []
+        for key in "sss":
+            decided.append(review(app).item.pair_id)
+            await press(pilot, key)
+        waiting = review(app).item.pair_id
+        await press(pilot, "left_square_bracket", "left_square_bracket")
+        screen = review(app)
+        assert (screen.mode, screen.item.pair_id, screen.mine.label) == ("history", decided[1],
+                                                                         "match")
+        assert "history 2 of 3" in screen_text(app)
+        await pilot.press("d")  # change it: appends, then steps forward
+        await pilot.pause()
+        assert review(app).item.pair_id == decided[2]
+        await pilot.press("right_square_bracket")  # past the newest: back to the queue
+        await pilot.pause()
+        assert (review(app).mode, review(app).item.pair_id) == ("queue", waiting)
+        assert review(app).decided == 3
+    changed = rows(review_sample, "SELECT label, supersedes IS NOT NULL FROM decisions "
+                                   "WHERE pair_id = ? ORDER BY decided_at", (decided[1],))
+    assert changed == [("match", 0), ("non-match", 1)]
+    with Project.open(review_sample) as project:
+        assert project.current_label(decided[1], "maya").label == "non-match"
+
+
+@pilot_test
+async def test_find_by_pair_id_opens_it_and_deciding_returns_to_the_queue(review_sample,
+                                                                         review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        waiting = review(app).item.pair_id
+        target = 4242 if waiting != 4242 else 4243
+        await press(pilot, "slash")
+        assert isinstance(app.screen, PairPicker)
+        await press(pilot, *str(target), "enter")
+        await press(pilot, "enter")
+        assert (review(app).mode, review(app).item.pair_id) == ("aside", target)
+        await press(pilot, "h")
+        assert (review(app).mode, review(app).item.pair_id) == ("queue", waiting)
+    assert log(review_sample)[0][:3] == (target, "maya", "hold")
+
+
+@pilot_test
+async def test_find_by_text_and_escape_back_to_the_queue(review_sample, review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        waiting = review(app).item.pair_id
+        await press(pilot, "slash", *"Fjelholm", "enter")
+        assert "Fjelholm" in screen_text(app)
+        await press(pilot, "enter")
+        assert review(app).mode == "aside"
+        await press(pilot, "escape")
+        assert (review(app).mode, review(app).item.pair_id) == ("queue", waiting)
+    assert log(review_sample) == []
+
+
+@pilot_test
+async def test_other_candidates_can_be_opened(review_sample, review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        card = review(app).card
+        await press(pilot, "c")
+        assert isinstance(app.screen, PairPicker)
+        assert "left record" in screen_text(app)
+        await press(pilot, "enter")
+        opened = review(app).card
+        assert opened.pair_id != card.pair_id
+        assert card.left_id in (opened.left_id, opened.right_id) or \
+            card.right_id in (opened.left_id, opened.right_id)
