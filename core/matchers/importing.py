@@ -24,12 +24,16 @@ from ..records.sources import detect_format, read_frame
 from ..storage import store
 from ..storage.project_file import ProjectFile
 from . import catalogue
-from .pair_keys import PairKeys, lookup, pair_keys
+from .file_rows import Reader, check_ids, fail, first, row_number
+from .pair_keys import pair_keys
 
 SCORE = "score"
 LABEL = "label"
 LABELS = {"match": 1.0, "non-match": 0.0}
 MAX_NAME = 60
+# Rows looked up together: one hash of the candidate keys serves them all, and memory stays
+# bounded (a batch's files are held until their rows are found).
+BATCH_ROWS = 4_000_000
 
 
 @dataclass
@@ -85,19 +89,6 @@ def _numeric(column: pa.ChunkedArray) -> bool:
     return pa.types.is_floating(column.type) or pa.types.is_integer(column.type)
 
 
-def _row(position: int) -> int:
-    return position + 2  # the header is line 1
-
-
-def _fail(path: Path, position: int, what: str) -> DocketError:
-    return DocketError(f"{path}: row {_row(position)}: {what}")
-
-
-def _first(mask: pa.Array | np.ndarray) -> int | None:
-    where = np.flatnonzero(np.asarray(mask, dtype=bool))
-    return int(where[0]) if where.size else None
-
-
 def _values(table: pa.Table, path: Path) -> tuple[str, np.ndarray]:
     names = table.column_names
     has_score, has_label = SCORE in names, LABEL in names
@@ -107,9 +98,9 @@ def _values(table: pa.Table, path: Path) -> tuple[str, np.ndarray]:
     if has_label:
         text = pc.utf8_lower(pc.utf8_trim_whitespace(table[LABEL]))
         code = pc.index_in(text, value_set=pa.array(list(LABELS), pa.large_string()))
-        bad = _first(pc.is_null(code).to_numpy(zero_copy_only=False))
+        bad = first(pc.is_null(code).to_numpy(zero_copy_only=False))
         if bad is not None:
-            raise _fail(path, bad, f"label {table[LABEL][bad].as_py()!r} is not match or "
+            raise fail(path, bad, f"label {table[LABEL][bad].as_py()!r} is not match or "
                         "non-match")
         return LABEL, np.array(list(LABELS.values()))[code.to_numpy(zero_copy_only=False)]
     raw = table[SCORE]
@@ -120,54 +111,14 @@ def _values(table: pa.Table, path: Path) -> tuple[str, np.ndarray]:
             num = pc.cast(pc.utf8_trim_whitespace(raw), pa.float64()).to_numpy()
         except pa.ArrowInvalid:  # blanks or words: find the first bad row below
             num = pd.to_numeric(raw.to_pandas(), errors="coerce").to_numpy(dtype=float)
-    bad = _first(~np.isfinite(num))
+    bad = first(~np.isfinite(num))
     if bad is not None:
-        raise _fail(path, bad, f"score {raw[bad].as_py()!r} is not a number")
-    bad = _first((num < 0.0) | (num > 1.0))
+        raise fail(path, bad, f"score {raw[bad].as_py()!r} is not a number")
+    bad = first((num < 0.0) | (num > 1.0))
     if bad is not None:
-        raise _fail(path, bad, f"score {raw[bad].as_py()} lies outside 0 to 1; "
+        raise fail(path, bad, f"score {raw[bad].as_py()} lies outside 0 to 1; "
                     "rescale the matcher's scores into [0, 1]")
     return SCORE, num
-
-
-def _known(project: ProjectFile, side: str) -> set[str]:
-    table = "right_records" if side == "right" and project.link else "left_records"
-    key = project.meta["right_id_column" if table == "right_records" else "left_id_column"]
-    return {r for (r,) in project.connection.execute(f"SELECT {store.quote(key)} FROM {table}")}
-
-
-@dataclass
-class Reader:
-    """Reads matcher files against one project's candidate pairs. A file that lists the same
-    pairs in the same order as the one before (matchers run over one export) reuses its
-    positions."""
-
-    project: ProjectFile
-    index: PairKeys
-    last: tuple[pa.Array, pa.Array, np.ndarray] | None = None
-
-    def positions(self, table: pa.Table, path: Path) -> np.ndarray:
-        a, b = table["left_id"], table["right_id"]
-        for side, ids in (("left", a), ("right", b)):
-            empty = _first(pc.equal(pc.utf8_trim_whitespace(ids), "").to_numpy(
-                zero_copy_only=False))
-            if empty is not None:
-                raise _fail(path, empty, f"no {side}_id")
-        if self.last is not None and self.last[0].equals(a) and self.last[1].equals(b):
-            return self.last[2]
-        pos = lookup(self.index, a, b)
-        miss = np.flatnonzero(pos < 0)
-        if miss.size:  # not candidate pairs: are the records known at all?
-            for side, ids in (("left", a), ("right", b)):
-                known = _known(self.project, side)
-                values = ids.take(pa.array(miss)).to_pylist()
-                unknown = [i for i, v in zip(miss, values, strict=True) if v not in known]
-                if unknown:
-                    raise _fail(path, int(unknown[0]), f"{side}_id {ids[unknown[0]].as_py()!r} "
-                                "names no record of the project; check the ids (or the file's "
-                                "sides)")
-        self.last = (a, b, pos)
-        return pos
 
 
 def _one(name: str, kind: str, values: np.ndarray, pos: np.ndarray, rows: np.ndarray,
@@ -178,8 +129,8 @@ def _one(name: str, kind: str, values: np.ndarray, pos: np.ndarray, rows: np.nda
     if repeated.any():
         first = at[repeated][0]
         where = rows[inside][at == first][:2]
-        raise _fail(path, int(where[1]), f"matcher {name!r} already gave this pair on row "
-                    f"{_row(int(where[0]))}; give one row per matcher and pair")
+        raise fail(path, int(where[1]), f"matcher {name!r} already gave this pair on row "
+                    f"{row_number(int(where[0]))}; give one row per matcher and pair")
     scores = np.full(n_pairs, np.nan)
     scores[at] = values[inside]
     out_rows = rows[~inside]
@@ -198,54 +149,79 @@ def _check_name(name: str, path: Path) -> str:
     return name
 
 
-def read_file(reader: Reader, path: str | Path, name: str | None = None) -> list[ReadMatcher]:
-    """The matchers in one file: several when it has a ``matcher`` column, else one (named
-    ``name``, or the file's stem)."""
-    path = Path(path)
+@dataclass
+class _File:
+    """One file read and checked, waiting for its rows to be found among the candidates."""
+
+    path: Path
+    table: pa.Table
+    kind: str
+    values: np.ndarray
+
+
+def _prepare(path: Path) -> _File:
     table = _read(path)
     missing = [c for c in ("left_id", "right_id") if c not in table.column_names]
     if missing:
         raise DocketError(f"{path}: needs columns left_id and right_id (missing "
                           f"{', '.join(missing)}; found {', '.join(table.column_names[:8])})")
     kind, values = _values(table, path)
-    pos = reader.positions(table, path)
+    check_ids(table, path)
+    return _File(path, table, kind, values)
+
+
+def _matchers(f: _File, pos: np.ndarray, n_pairs: int, name: str | None) -> list[ReadMatcher]:
+    """The matchers in one file: several when it has a ``matcher`` column, else one (named
+    ``name``, or the file's stem)."""
+    path, table = f.path, f.table
     rows = np.arange(table.num_rows)
-    n_pairs = reader.index.n_pairs
     if "matcher" not in table.column_names:
         label = _check_name(name if name is not None else path.stem, path)
-        return [_one(label, kind, values, pos, rows, table, path, n_pairs)]
+        return [_one(label, f.kind, f.values, pos, rows, table, path, n_pairs)]
     if name is not None:
         raise DocketError(f"{path}: has a matcher column, so --name does not apply; the "
                           "column names each matcher")
     names = pc.dictionary_encode(pc.utf8_trim_whitespace(table["matcher"])).combine_chunks()
     labels = names.dictionary.to_pylist()
     codes = names.indices.to_numpy(zero_copy_only=False)
-    blank = _first(codes == labels.index("")) if "" in labels else None
+    blank = first(codes == labels.index("")) if "" in labels else None
     if blank is not None:
-        raise _fail(path, blank, "no matcher name")
+        raise fail(path, blank, "no matcher name")
     out = []
     for code in np.argsort(np.array(labels, dtype=object), kind="stable"):
         members = np.flatnonzero(codes == code)
-        out.append(_one(_check_name(labels[code], path), kind, values[members], pos[members],
-                        members, table, path, n_pairs))
+        out.append(_one(_check_name(labels[code], path), f.kind, f.values[members],
+                        pos[members], members, table, path, n_pairs))
     return out
 
 
 def read_files(project: ProjectFile, paths: Sequence[str | Path],
                name: str | None = None) -> list[ReadMatcher]:
-    """Every matcher in ``paths``, all checked; a name given twice is an error."""
+    """Every matcher in ``paths``, all checked; a name given twice is an error. Files are
+    read in batches of about ``BATCH_ROWS`` rows, whose rows are found in one lookup."""
     if name is not None and len(paths) != 1:
         raise DocketError("--name names the matcher of one file; with several files each "
                           "is named after its file (or its matcher column)")
     with project.reading() as conn:
         reader = Reader(project, pair_keys(conn, project.link))
     found: dict[str, ReadMatcher] = {}
+    batch: list[_File] = []
+
+    def flush() -> None:
+        places = reader.positions([(f.table, f.path) for f in batch])
+        for f, pos in zip(batch, places, strict=True):
+            for m in _matchers(f, pos, reader.index.n_pairs, name):
+                if m.name in found:
+                    raise DocketError(f"{f.path}: matcher {m.name!r} is also in "
+                                      f"{found[m.name].source}; give each matcher once")
+                found[m.name] = m
+        batch.clear()
+
     for path in paths:
-        for m in read_file(reader, path, name):
-            if m.name in found:
-                raise DocketError(f"{path}: matcher {m.name!r} is also in "
-                                  f"{found[m.name].source}; give each matcher once")
-            found[m.name] = m
+        batch.append(_prepare(Path(path)))
+        if sum(f.table.num_rows for f in batch) >= BATCH_ROWS:
+            flush()
+    flush()
     return list(found.values())
 
 

@@ -6,11 +6,17 @@ way and looked up with one hash join (``pyarrow.compute.index_in``). The keys jo
 with a character that no candidate pair's ids hold, checked by counting, so a key names one
 pair. Row by row in Python, or through a pandas index of strings, the same lookup took
 seconds per file; here it is a fraction of a second.
+
+pyarrow builds the hash of the value set (the million candidate keys) anew for each call, at
+about the cost of looking up a million rows; it builds it once for all the chunks of one
+call. So ``lookup_many`` looks up the rows of several files in one call (bench/matchers_lookup.py
+measures it against one call per file).
 """
 
 from __future__ import annotations
 
 import sqlite3
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -80,18 +86,29 @@ def lookup(index: PairKeys, left: pa.ChunkedArray | pa.Array,
            right: pa.ChunkedArray | pa.Array) -> np.ndarray:
     """Position in pair-id order of each (left, right) row, -1 where it is no candidate pair
     (in one table, a pair may be written either way round)."""
-    found = _find(index, join(left, right, index.separator))
+    return lookup_many(index, [(left, right)])[0]
+
+
+def lookup_many(index: PairKeys, files: Sequence[tuple[pa.ChunkedArray | pa.Array,
+                                                       pa.ChunkedArray | pa.Array]]
+                ) -> list[np.ndarray]:
+    """``lookup`` for the (left, right) columns of each file, with one hash of the candidate
+    keys for all of them."""
+    found = _find(index, [join(a, b, index.separator) for a, b in files])
     if not index.link:
-        miss = np.flatnonzero(found < 0)
-        if miss.size:
-            at = pa.array(miss)
-            found[miss] = _find(index, join(right.take(at), left.take(at), index.separator))
+        misses = [np.flatnonzero(f < 0) for f in found]
+        swapped = _find(index, [join(b.take(pa.array(m)), a.take(pa.array(m)), index.separator)
+                                for (a, b), m in zip(files, misses, strict=True)])
+        for f, m, again in zip(found, misses, swapped, strict=True):
+            f[m] = again
     return found
 
 
-def _find(index: PairKeys, keys: pa.Array) -> np.ndarray:
-    if not index.n_pairs:
-        return np.full(len(keys), -1, dtype=np.int64)
-    hit = pc.index_in(keys, value_set=index.keys).fill_null(-1).to_numpy(zero_copy_only=False)
-    hit = hit.astype(np.int64)
-    return np.where(hit >= 0, index.position[hit.clip(0)], -1)
+def _find(index: PairKeys, keys: list[pa.Array]) -> list[np.ndarray]:
+    sizes = [len(k) for k in keys]
+    if not index.n_pairs or not sum(sizes):
+        return [np.full(n, -1, dtype=np.int64) for n in sizes]
+    hit = pc.index_in(pa.chunked_array(keys, pa.large_string()), value_set=index.keys)
+    at = hit.fill_null(-1).to_numpy().astype(np.int64)
+    at = np.where(at >= 0, index.position[at.clip(0)], -1)
+    return np.split(at, np.cumsum(sizes)[:-1])

@@ -1,0 +1,95 @@
+"""Where a matcher file's rows sit among the candidate pairs, checked, and how a bad row is
+named: the reading side of ``importing``."""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import pyarrow as pa
+import pyarrow.compute as pc
+
+from ..errors import DocketError
+from ..storage import store
+from ..storage.project_file import ProjectFile
+from .pair_keys import PairKeys, lookup_many
+
+
+def row_number(position: int) -> int:
+    return position + 2  # the header is line 1
+
+
+def fail(path: Path, position: int, what: str) -> DocketError:
+    return DocketError(f"{path}: row {row_number(position)}: {what}")
+
+
+def first(mask: pa.Array | np.ndarray) -> int | None:
+    where = np.flatnonzero(np.asarray(mask, dtype=bool))
+    return int(where[0]) if where.size else None
+
+
+def _known(project: ProjectFile, side: str) -> set[str]:
+    table = "right_records" if side == "right" and project.link else "left_records"
+    key = project.meta["right_id_column" if table == "right_records" else "left_id_column"]
+    return {r for (r,) in project.connection.execute(f"SELECT {store.quote(key)} FROM {table}")}
+
+
+def check_ids(table: pa.Table, path: Path) -> None:
+    for side in ("left", "right"):
+        empty = first(pc.equal(pc.utf8_trim_whitespace(table[f"{side}_id"]), "").to_numpy(
+            zero_copy_only=False))
+        if empty is not None:
+            raise fail(path, empty, f"no {side}_id")
+
+
+@dataclass
+class Reader:
+    """Reads matcher files against one project's candidate pairs. The rows of several files
+    are found in one lookup (one hash of the candidate keys for all of them); a file that
+    lists the same pairs in the same order as the one before (matchers run over one export)
+    reuses its positions."""
+
+    project: ProjectFile
+    index: PairKeys
+    last: tuple[pa.ChunkedArray, pa.ChunkedArray, np.ndarray] | None = None
+    known: dict[str, set[str]] = field(default_factory=dict)
+
+    def positions(self, batch: Sequence[tuple[pa.Table, Path]]) -> list[np.ndarray]:
+        """Each file's position in pair-id order of each row (-1: not a candidate pair)."""
+        slots: list[int] = []  # per file: which lookup it uses (-1: the previous batch's last)
+        todo: list[tuple[pa.ChunkedArray, pa.ChunkedArray, Path]] = []
+        prev = None if self.last is None else (self.last[0], self.last[1], -1)
+        for table, path in batch:
+            a, b = table["left_id"], table["right_id"]
+            if prev is not None and prev[0].equals(a) and prev[1].equals(b):
+                slots.append(prev[2])
+            else:
+                todo.append((a, b, path))
+                slots.append(len(todo) - 1)
+            prev = (a, b, slots[-1])
+        found = lookup_many(self.index, [(a, b) for a, b, _ in todo])
+        for (a, b, path), pos in zip(todo, found, strict=True):
+            self._known_records(a, b, pos, path)
+        out = [found[s] if s >= 0 else self.last[2] for s in slots]  # type: ignore[index]
+        if batch:
+            table = batch[-1][0]
+            self.last = (table["left_id"], table["right_id"], out[-1])
+        return out
+
+    def _known_records(self, a: pa.ChunkedArray, b: pa.ChunkedArray, pos: np.ndarray,
+                       path: Path) -> None:
+        """Rows that are no candidate pair must still name records of the project."""
+        miss = np.flatnonzero(pos < 0)
+        if not miss.size:
+            return
+        for side, ids in (("left", a), ("right", b)):
+            if side not in self.known:
+                self.known[side] = _known(self.project, side)
+            values = ids.take(pa.array(miss)).to_pylist()
+            unknown = [i for i, v in zip(miss, values, strict=True) if v not in self.known[side]]
+            if unknown:
+                raise fail(path, int(unknown[0]), f"{side}_id {ids[unknown[0]].as_py()!r} "
+                            "names no record of the project; check the ids (or the file's "
+                            "sides)")
