@@ -85,3 +85,24 @@ def test_near_stands_alone_and_empty_values_meet_nobody() -> None:
         blocking.parse_rule("near(title) & year", fields)
     li, ri = near_pairs(pd.Series(["same words here", None, "same words here"]), None)
     assert set(zip(li.tolist(), ri.tolist(), strict=True)) == {(0, 2)}
+
+
+def test_word_best_match_is_symmetric_monge_elkan_with_jaro_winkler() -> None:
+    # Monge & Elkan (1996): the mean over one string's words of the best similarity to a word
+    # of the other; made symmetric by averaging both directions. Inner measure from jellyfish.
+    import jellyfish
+
+    from docket.core.matching.compare import word_best_match
+
+    def reference(a: str, b: str) -> float:
+        wa, wb = a.split(), b.split()
+
+        def one_way(x: list[str], y: list[str]) -> float:
+            return sum(max(jellyfish.jaro_winkler_similarity(p, q) for q in y) for p in x) / len(x)
+        return (one_way(wa, wb) + one_way(wb, wa)) / 2
+
+    a = ["alan blake", "blake clan", "kasia nowak", "bryn hallan", "ann marie lee", "yu"]
+    b = ["blake clan", "alan blake", "kasia nowak", "bryn", "lee mary", "yu wen"]
+    got = word_best_match(a, b)
+    assert np.allclose(got, [reference(x, y) for x, y in zip(a, b, strict=True)], atol=1e-6)
+    assert got[2] == 1.0
