@@ -101,7 +101,7 @@ def overlap_pairs(project: Path) -> list[Pair]:
 
 def build_demo(folder: Path) -> Path:
     from docket.core import Project
-    from docket.tui.commands import demo_spec
+    from docket.tui.cli_screens import demo_spec
     spec = demo_spec(folder)
     Project.create(spec)
     return spec.path
