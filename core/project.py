@@ -6,6 +6,7 @@ and no statistics.
 
 from __future__ import annotations
 
+import sqlite3
 import threading
 from collections.abc import Collection
 from typing import TYPE_CHECKING, Any
@@ -77,9 +78,12 @@ class Project(TeamVerbs, ReportVerbs, MatcherVerbs, SplitFirst):
     def _audit_stream(self, reviewer: str, n: int, exclude: tuple[int, ...]) -> list:
         """The audit slice's next pairs, a supplement's (if any) taking every other place."""
         audit = self._stream(reviewer, True, n, exclude)
-        if not store.has_table(self._conn, "supplement_pairs"):
-            return audit
-        extra = self._stream(reviewer, True, n, exclude, extra=True)
+        try:  # asked this way, not looked up in sqlite_master (a scan of the schema per pair)
+            extra = self._stream(reviewer, True, n, exclude, extra=True)
+        except sqlite3.OperationalError as exc:
+            if "no such table" not in str(exc):
+                raise
+            return audit  # no supplement drawn
         mixed = [r for pair in zip(extra, audit, strict=False) for r in pair]
         longer = extra if len(extra) > len(audit) else audit
         rows = mixed + longer[min(len(extra), len(audit)):]
