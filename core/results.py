@@ -17,8 +17,19 @@ def _plain(obj: Any, skip: tuple[str, ...] = ()) -> dict[str, Any]:
     return {f.name: getattr(obj, f.name) for f in fields(obj) if f.name not in skip}
 
 
+class _Report:
+    """The JSON round trip of a report whose fields are its sections, in order."""
+
+    @classmethod
+    def from_dict(cls, d: dict[str, Any]) -> Self:
+        return cls(**d)
+
+    def to_dict(self) -> dict[str, Any]:
+        return _plain(self)
+
+
 @dataclass(frozen=True)
-class StatusReport:
+class StatusReport(_Report):
     """``docket status``: records, pairs, decisions, the model, policies, matchers."""
 
     project: str
@@ -38,13 +49,6 @@ class StatusReport:
     matchers: list[dict[str, Any]]
     missed_matches: dict[str, Any]
     caution: str
-
-    @classmethod
-    def from_dict(cls, d: dict[str, Any]) -> Self:
-        return cls(**d)
-
-    def to_dict(self) -> dict[str, Any]:
-        return _plain(self)
 
 
 @dataclass(frozen=True)
@@ -98,7 +102,7 @@ class Evaluation:
 
 
 @dataclass(frozen=True)
-class AgreementReport:
+class AgreementReport(_Report):
     """``docket agreement``: kappa for every two reviewers, Fleiss and Krippendorff overall,
     each reviewer's rates (Dawid-Skene) where identified."""
 
@@ -112,10 +116,3 @@ class AgreementReport:
     overall: dict[str, Any]
     dawid_skene: dict[str, Any]
     min_pairs: int
-
-    @classmethod
-    def from_dict(cls, d: dict[str, Any]) -> Self:
-        return cls(**d)
-
-    def to_dict(self) -> dict[str, Any]:
-        return _plain(self)

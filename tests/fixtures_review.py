@@ -10,6 +10,7 @@ import functools
 import json
 import re
 import shutil
+import sqlite3
 from collections.abc import Callable, Coroutine
 from html import unescape
 from pathlib import Path
@@ -19,6 +20,7 @@ import pytest
 
 from docket.core import NewProject, Project
 from docket.tui.review_app import ReviewApp, make_app
+from docket.tui.screens import ReviewScreen
 
 REPO = Path(__file__).resolve().parents[1]
 SAMPLE = REPO / "sample"
@@ -138,3 +140,29 @@ def screen_text(app: ReviewApp) -> str:
     svg = app.export_screenshot()
     texts = re.findall(r"<text[^>]*>(.*?)</text>", svg, flags=re.S)
     return unescape("".join(texts)).replace("\xa0", " ")
+
+
+# helpers the review-screen test files share
+SIZE = (120, 40)
+
+
+def rows(path: Path, sql: str, args: tuple = ()) -> list[tuple]:
+    with sqlite3.connect(path) as conn:
+        return conn.execute(sql, args).fetchall()
+
+
+def log(path: Path) -> list[tuple]:
+    return rows(path, "SELECT pair_id, reviewer, label, note, seconds, supersedes FROM decisions "
+                      "ORDER BY decided_at")
+
+
+async def press(pilot, *keys: str) -> None:
+    """Press each key and let the screen catch up before the next."""
+    for key in keys:
+        await pilot.press(key)
+        await pilot.pause()
+
+
+def review(app) -> ReviewScreen:
+    assert isinstance(app.screen, ReviewScreen)
+    return app.screen

@@ -6,46 +6,26 @@ help, keymaps and layout. The background refit is in test_review_background.py, 
 
 from __future__ import annotations
 
-import sqlite3
 from pathlib import Path
 
 from docket.core import Project
 from docket.tui.keymap import keymap_path, load_keymap
 from docket.tui.screens import HelpScreen, NoteScreen, ReviewScreen
 from tests.fixtures_review import (  # noqa: F401 - fixtures are used by name
+    SIZE,
     FrozenClock,
     frozen_clock,
+    log,
     pilot_test,
+    press,
+    review,
     review_app,
     review_sample,
     review_sample_master,
+    rows,
     screen_text,
     settle,
 )
-
-SIZE = (120, 40)
-
-
-def rows(path: Path, sql: str, args: tuple = ()) -> list[tuple]:
-    with sqlite3.connect(path) as conn:
-        return conn.execute(sql, args).fetchall()
-
-
-def log(path: Path) -> list[tuple]:
-    return rows(path, "SELECT pair_id, reviewer, label, note, seconds, supersedes FROM decisions "
-                      "ORDER BY decided_at")
-
-
-async def press(pilot, *keys: str) -> None:
-    """Press each key and let the screen catch up before the next."""
-    for key in keys:
-        await pilot.press(key)
-        await pilot.pause()
-
-
-def review(app) -> ReviewScreen:
-    assert isinstance(app.screen, ReviewScreen)
-    return app.screen
 
 
 @pilot_test

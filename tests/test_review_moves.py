@@ -9,16 +9,20 @@ from __future__ import annotations
 from docket.core import Project
 from docket.tui.screens import PairPicker
 from tests.fixtures_review import (  # noqa: F401 - fixtures are used by name
+    SIZE,
     FrozenClock,
     frozen_clock,
+    log,
     pilot_test,
+    press,
+    review,
     review_app,
     review_sample,
     review_sample_master,
+    rows,
     screen_text,
     settle,
 )
-from tests.test_review_keys import SIZE, log, press, review, rows
 
 
 @pilot_test
