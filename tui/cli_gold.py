@@ -52,7 +52,8 @@ def register(sub: argparse._SubParsersAction) -> None:
                    help="with --predictions: the score at which a pair is a predicted match "
                         "(default: the project's threshold)")
     p.add_argument("--supplement", action="store_true", help="with --predictions: judge it "
-                   "from the supplement drawn on its scores ('docket supplement')")
+                   "from the audit slice and the supplement drawn on its scores together "
+                   "('docket supplement')")
     p.add_argument("--thresholds", type=_shares, metavar="T,T,...",
                    help="thresholds for the table (default 0.1 ... 0.9, 0.95, 0.99 and the "
                         "project's)")

@@ -20,8 +20,9 @@ def register(sub: argparse._SubParsersAction) -> None:
         "pairs, drawn independently on the matcher's scores (0…1, or a label column) and "
         "stored with its strata and inclusion probabilities. Its pairs join the audit share "
         "of every reviewer's queue; once they are reviewed, 'docket evaluate --predictions "
-        "FILE --supplement' judges the matcher from them (design-based, as the audit slice "
-        "judges the model). One supplement per set of scores.",
+        "FILE --supplement' judges the matcher from them and the audit slice together "
+        "(design-based, as the audit slice judges the model). One supplement per set of "
+        "scores.",
         "docket supplement vets.docket --predictions matcher.csv --size 400", supplement)
     p.add_argument("project")
     p.add_argument("--predictions", metavar="FILE", required=True,

@@ -167,7 +167,7 @@ def _check_target(name: str, value: float | None) -> None:
 def _report(project: ProjectFile, scores: pd.Series, threshold: float,
             thresholds: Sequence[float] | None, target_precision: float | None,
             target_recall: float | None, confidence: float,
-            design: tuple[estimates.AuditSample, dict[int, Any]] | None = None
+            design: tuple[estimates.AuditSample, Mapping[Any, Any]] | None = None
             ) -> dict[str, Any]:
     _check_target("precision", target_precision)
     _check_target("recall", target_recall)
@@ -265,8 +265,8 @@ def evaluate_predictions(project: ProjectFile, path: str | Path, threshold: floa
     ``threshold`` is where the file's score becomes a predicted match (default: the project's
     threshold for scores in [0, 1]; a label column needs none). The result adds
     ``predictions`` (what was read) and ``machine_rater`` (``machine_rater``). With
-    ``supplement`` the figures come from the supplement drawn on the file's scores
-    (``quality.supplement``), not from the audit slice; ``audit["sample"]`` says so.
+    ``supplement`` the figures come from the audit slice and the supplement drawn on the file's
+    scores together (``quality.union_design``); ``audit["sample"]`` says so.
     """
     scores, info = read_predictions(project, path)
     if info["labels_only"]:
@@ -281,12 +281,15 @@ def evaluate_predictions(project: ProjectFile, path: str | Path, threshold: floa
     design, made = None, None
     if supplement:
         from .supplement import supplement_sample
-        sample, made = supplement_sample(project, scores, path)
-        design = (sample, dict(made.strata))
+        sample, made, cells = supplement_sample(project, scores, path)
+        design = (sample, cells)
     out = _report(project, scores, float(threshold), thresholds, target_precision,
                   target_recall, confidence, design)
     if made is not None:
-        out["audit"]["sample"] = f"the supplement drawn on {made.file}'s scores"
+        out["audit"]["sample"] = (f"the audit slice and the supplement drawn on {made.file}'s "
+                                  "scores, together")
+        out["audit"]["strata_are"] = ("cells 'h:g' of audit stratum h and supplement stratum g "
+                                      "(small cells merged along g)")
         out["audit"]["supplement"] = made.to_dict()
     outside = info.pop("_outside_scores")
     k = int(np.sum(outside >= float(threshold)))

@@ -6,9 +6,10 @@ slice come out wide or bounded. A supplement is a second stratified random sampl
 candidate pairs, drawn independently of the slice on the matcher's own score (the slice's
 strata and allocation, ``queue.draw_audit``), stored with its strata, sizes N_h, drawn counts
 n_h and inclusion probabilities n_h / N_h. Its pairs join the audit share of every reviewer's
-queue; once labelled they give design-based figures for that matcher alone, by the same
-estimators as the slice (``estimates.threshold_table``, every candidate pair's score as the
-population, so predicted matches per stratum are counted).
+queue; once labelled they and the audit slice's labelled pairs give design-based figures for
+that matcher together (``union_design``: the cells of the two stratifications as post-strata,
+the estimators of ``estimates.threshold_table``, every candidate pair's score as the
+population, so predicted matches per cell are counted).
 
 A supplement pair's label counts however it was reached (in the queue, in the audit slice): the
 design chose the pair, the label only measures it. The supplement belongs to the scores it was
@@ -18,7 +19,7 @@ drawn on (a fingerprint of them); other scores need a supplement of their own.
 from __future__ import annotations
 
 import hashlib
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
@@ -32,6 +33,7 @@ from ..storage import store
 from ..storage.project_file import ProjectFile
 from .audit_sample import AuditSample
 from .predictions_file import read_predictions
+from .union_design import UnionDesign, union_sample
 
 TABLE = "supplement_pairs"
 SCHEMA = (f"CREATE TABLE IF NOT EXISTS {TABLE} (fingerprint TEXT NOT NULL, "
@@ -122,13 +124,14 @@ def draw_supplement(project: ProjectFile, path: str | Path, size: int | None = N
     return made
 
 
-def supplement_sample(project: ProjectFile, scores: pd.Series,
-                      path: str | Path) -> tuple[AuditSample, Supplement]:
-    """The supplement drawn on ``scores`` as an ``AuditSample``, with its design.
+def supplement_sample(project: ProjectFile, scores: pd.Series, path: str | Path
+                      ) -> tuple[AuditSample, Supplement, dict[str, tuple[int, int]]]:
+    """The audit slice and the supplement drawn on ``scores``, judged together as one sample
+    (``union_design``), with the supplement and the design (post-stratum -> (N, drawn)).
 
-    Labelled pairs are those with a standing gold label; pairs held and not settled are kept
-    apart, for bounds, as in the audit slice; the others count as missing at random within
-    their stratum.
+    Labelled pairs are those of either sample with a standing gold label; pairs held and not
+    settled are kept apart, for bounds; the others count as missing at random within their
+    post-stratum.
     """
     key = fingerprint(scores)
     made = stored(project).get(key)
@@ -136,25 +139,24 @@ def supplement_sample(project: ProjectFile, scores: pd.Series,
         raise DocketError(f"{path}: no supplement was drawn on these scores; draw one with "
                           f"docket supplement {project.path} --predictions {path}, then "
                           "review its pairs")
-    rows = pd.read_sql_query(f"SELECT pair_id, stratum, inclusion FROM {TABLE} WHERE "
-                             "fingerprint = ? ORDER BY pair_id", project.connection,
-                             params=(key,))
+    every = pd.read_sql_query("SELECT pair_id, stratum, audit FROM pairs ORDER BY pair_id",
+                              project.connection)
+    drawn = pd.read_sql_query(f"SELECT pair_id FROM {TABLE} WHERE fingerprint = ?",
+                              project.connection, params=(key,))["pair_id"]
     gold = {g.pair_id: int(g.label == "match") for g in gold_labels(project.connection)}
     held = {pid for pid, e in standing(project.connection).items() if pid not in gold and
             "hold" in (*e.reviewers.values(), *e.adjudicators.values())}
-    label = rows["pair_id"].map(gold)
-    keep = label.notna().to_numpy()
-    on_hold = rows["pair_id"].isin(held).to_numpy() & ~keep
-    score = scores.reindex(rows["pair_id"]).to_numpy(dtype=float)
-    stratum = rows["stratum"].to_numpy(dtype=np.int64)
-    if not keep.any():
+    ids = every["pair_id"]
+    in_supplement = ids.isin(drawn).to_numpy()
+    label = ids.map(gold).to_numpy(dtype=float)
+    if not (in_supplement & ~np.isnan(label)).any():
         raise DocketError(f"{path}: the supplement's {made.size:,} pairs have no gold labels "
                           "yet; review them: they come in the audit share of every reviewer's "
                           "queue")
-    every = queue.stratum_of(strata_score(scores))
-    population = {h: scores.to_numpy(dtype=float)[every == h] for h in made.strata}
-    sample = AuditSample(score[keep], label[keep].to_numpy(dtype=int), stratum[keep],
-                         rows["inclusion"].to_numpy(dtype=float)[keep],
-                         {h: v[0] for h, v in made.strata.items()},
-                         {h: v[1] for h, v in made.strata.items()}, population=population)
-    return replace(sample, held_score=score[on_hold], held_stratum=stratum[on_hold]), made
+    score = scores.reindex(ids).to_numpy(dtype=float)
+    design = UnionDesign(score, label, ids.isin(held).to_numpy(),
+                         every["stratum"].to_numpy(dtype=np.int64),
+                         queue.stratum_of(strata_score(scores.reindex(ids))),
+                         every["audit"].to_numpy(dtype=bool), in_supplement)
+    sample, cells = union_sample(design)
+    return sample, made, cells
