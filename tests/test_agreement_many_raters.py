@@ -9,12 +9,11 @@ import math
 import numpy as np
 import pytest
 
-from docket.core.reviewing.agreement import (
-    cohen_kappa,
+from docket.core.reviewing.agreement import cohen_kappa, pabak
+from docket.core.reviewing.agreement_many import (
     fleiss,
     fleiss_kappa,
     krippendorff_alpha_nominal,
-    pabak,
     rating_counts,
 )
 from docket.core.reviewing.agreement_summary import overall_agreement, pairwise_agreement

@@ -17,12 +17,10 @@ from sklearn.metrics import cohen_kappa_score
 from statsmodels.stats.inter_rater import aggregate_raters, cohens_kappa
 from statsmodels.stats.inter_rater import fleiss_kappa as sm_fleiss_kappa
 
-from docket.core.reviewing.agreement import (
-    cohen_kappa,
-    confusion,
+from docket.core.reviewing.agreement import cohen_kappa, confusion, pabak
+from docket.core.reviewing.agreement_many import (
     fleiss_kappa,
     krippendorff_alpha_nominal,
-    pabak,
     rating_counts,
 )
 

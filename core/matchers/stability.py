@@ -14,7 +14,7 @@ from typing import Any
 
 import numpy as np
 
-from ..reviewing.agreement import fleiss
+from ..reviewing.agreement_many import fleiss
 from ..storage.project_file import ProjectFile
 from .judged import Judged
 

@@ -24,10 +24,7 @@ from .agreement import (
     _ToDict,
     cohen_kappa,
     confusion,
-    fleiss,
-    krippendorff_alpha_nominal,
     pabak,
-    rating_counts,
 )
 from .agreement_intervals import (
     MIN_PAIRS,
@@ -36,6 +33,7 @@ from .agreement_intervals import (
     fleiss_from_counts,
     pabak_interval,
 )
+from .agreement_many import fleiss, krippendorff_alpha_nominal, rating_counts
 
 
 @dataclass(frozen=True)
