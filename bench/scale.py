@@ -1,7 +1,8 @@
-"""A 1,000,000-pair project end to end: time, peak memory, and next-pair latency.
+"""A 1,000,000-pair project end to end: time, peak memory, first pair on screen, next pair.
 
 Synthetic records and pairs are generated in a temporary folder (never in the repository);
-the build runs in a child process so its peak RSS is its own. Targets: ≤ 30 s, ≤ 1.5 GB.
+the build runs in a child process so its peak RSS is its own. Targets: ≤ 30 s, ≤ 1.5 GB, the
+review's first pair painted ≤ 1.5 s after its start (a fresh process, best of 3).
 """
 
 from __future__ import annotations
@@ -16,6 +17,7 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
+from keys import first_pair  # the bench folder's own helper
 
 N_RECORDS = 250_000
 N_PAIRS = 1_000_000
@@ -77,6 +79,12 @@ def main() -> None:
               f"target <= 30 s -> ratio {wall / 30:.2f} of budget")
         print(f"peak RSS of the build: {peak_mb:,.0f} MB; target <= 1,536 MB -> "
               f"ratio {peak_mb / 1536:.2f} of budget")
+
+        firsts = [first_pair(project) for _ in range(3)]
+        best = min(firsts, key=lambda r: r["first"])
+        print(f"review start -> first pair painted (fresh process, best of 3): "
+              f"{best['first']:.3f} s; target <= 1.5 s -> ratio {best['first'] / 1.5:.2f} of "
+              f"budget (imports {best['imports']:.3f} s before it)")
 
         from docket.core import Project
         with Project.open(project) as p:

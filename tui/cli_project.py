@@ -173,8 +173,9 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--engine", choices=["in-process", "dask"], default="in-process",
                    help="where blocking and scoring run (dask needs: pip install "
                         "'docket[dask]')")
-    p.add_argument("--workers", type=at_least(1), default=2, metavar="N",
-                   help="dask: workers of the local cluster (default 2)")
+    p.add_argument("--workers", type=at_least(1), default=None, metavar="N",
+                   help="processes that compare pairs (default: every core; small builds "
+                        "use one); dask: workers of the local cluster (default 2)")
     p.add_argument("--scheduler", metavar="ADDRESS",
                    help="dask: an existing scheduler (for example tcp://10.0.0.5:8786) "
                         "instead of a local cluster")

@@ -26,6 +26,16 @@ SALT = 0x5A3D_1E57
 
 
 @dataclass
+class Held:
+    """Which pairs' similarities a scoring pass returns: all, none, or those whose sample hash
+    is below ``below`` (the pairs a sample is likely to keep)."""
+
+    all: bool = False
+    salt: int = 0
+    below: float = 0.0
+
+
+@dataclass
 class SamplePlan:
     """Which pairs a build keeps: per stratum, how many of how many."""
 
@@ -87,6 +97,22 @@ def allocate(sizes: dict[int, int], budget: int) -> dict[int, int]:
     return take
 
 
+def salt_of(seed: int) -> int:
+    """The sample hash's salt for a build's seed."""
+    return (int(seed) * 0x9E3779B1 + SALT) & 0xFFFFFFFF
+
+
+def held_for(pairs: int, sample_above: int, seed: int) -> Held:
+    """Whose similarities a scoring pass keeps: every pair's when all are kept; else those of
+    the pairs whose hash is below twice the share kept overall. The sample keeps each
+    stratum's lowest hashes, so a stratum thinned below that share finds all its kept pairs
+    there; the rest (strata kept whole or nearly) are compared again. Memory: about twice the
+    sample's pairs, however many pairs there are."""
+    if pairs <= sample_above:
+        return Held(all=True)
+    return Held(salt=salt_of(seed), below=min(1.0, 2.0 * sample_above / pairs))
+
+
 def make_plan(codes: np.ndarray, counts: np.ndarray, probability: np.ndarray, budget: int,
               seed: int) -> SamplePlan:
     """The sample for distinct pattern ``codes`` with their pair ``counts`` and probabilities."""
@@ -97,7 +123,7 @@ def make_plan(codes: np.ndarray, counts: np.ndarray, probability: np.ndarray, bu
     total = sum(sizes.values())
     take = dict(sizes) if total <= budget else allocate(sizes, budget)
     return SamplePlan(np.asarray(codes, dtype=np.int64), stratum.astype(np.int64), sizes, take,
-                      (int(seed) * 0x9E3779B1 + SALT) & 0xFFFFFFFF)
+                      salt_of(seed))
 
 
 def pick(keys: np.ndarray, codes: np.ndarray, plan: SamplePlan) -> np.ndarray:

@@ -62,7 +62,7 @@ class NewProject:
     name: str | None = None
     sample_above: int = sampling.DEFAULT_SAMPLE_ABOVE  # more pairs than this: keep a sample
     engine: str = "in-process"  # or "dask"
-    workers: int = 2  # local Dask cluster size
+    workers: int | None = None  # scoring processes (all cores); Dask: cluster size (2)
     scheduler: str | None = None  # an existing Dask scheduler instead
 
 
@@ -175,7 +175,7 @@ def build(spec: NewProject, progress: Progress | None = None,
         weight, prob = table.log_odds(patterns), table.probability(patterns)
         plan = sampling.make_plan(codes, counts, prob, spec.sample_above, spec.seed)
         step("drawing the sample" if not plan.keeps_all else "drawing the audit slice")
-        kept = engine.keep(plan)
+        kept = engine.keep(plan, scorer, lambda d, t: step("comparing the kept pairs", d, t))
     finally:
         engine.close()
     sims = kept.sims if kept.sims is not None else similarities(
@@ -255,7 +255,8 @@ def open_engine(spec: NewProject, left: Table, right: Table | None, fields: list
             keys, rule_ix, report = candidates.blocked_keys(rules, auto, left, right, fields,
                                                             spec.max_pairs, step)
             rule_names = [str(r) for r in rules]
-        engine = InProcess(keys, rule_ix, keep_sims=len(keys) <= spec.sample_above)
+        engine = InProcess(keys, rule_ix, sampling.held_for(len(keys), spec.sample_above,
+                                                            spec.seed), spec.workers)
         engine.report, engine.rule_names = report, rule_names
     engine.n_left, engine.n_right = len(left), width_of(left, right)
     return engine

@@ -115,7 +115,8 @@ class DaskEngine:
             progress(1, 1)
         return counts.index.to_numpy(np.int64), counts.to_numpy(np.int64)
 
-    def keep(self, plan: SamplePlan) -> Kept:
+    def keep(self, plan: SamplePlan, scorer: Any = None, progress: Any = None) -> Kept:
+        """The kept pairs; their similarities are compared again by the caller."""
         part = self.frame.map_partitions(_pick_part, self.client.scatter(plan, broadcast=True),
                                          meta=self.frame._meta)
         got = part.compute()
@@ -193,7 +194,7 @@ def _blocked(spec: Any, left: Table, right: Table | None, fields: list[FieldSpec
 def open_dask(spec: Any, left: Table, right: Table | None, fields: list[FieldSpec],
               step: Callable[..., None]) -> DaskEngine:
     dask, dd = _modules()
-    client, cluster = connect(spec.workers, spec.scheduler)
+    client, cluster = connect(2 if spec.workers is None else spec.workers, spec.scheduler)
     try:
         workers = max(1, len(client.scheduler_info().get("workers", {})))
         if spec.pairs_file is not None:

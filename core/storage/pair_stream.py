@@ -16,8 +16,9 @@ from typing import Any
 import numpy as np
 
 from ..matching import scoring
-from ..ordering.sampling import SamplePlan, pick
+from ..ordering.sampling import Held, SamplePlan, pick
 from ..types import FieldSpec
+from .score_pool import score_all, workers_for
 
 CHUNK = 250_000
 
@@ -69,7 +70,7 @@ class Kept:
     keys: np.ndarray
     rule_ix: np.ndarray
     codes: np.ndarray
-    sims: np.ndarray | None  # kept from the scoring pass when every pair is kept
+    sims: np.ndarray | None  # None: to be compared again (the Dask engine keeps none)
 
 
 def order_kept(keys: np.ndarray, rule_ix: np.ndarray, codes: np.ndarray,
@@ -80,16 +81,25 @@ def order_kept(keys: np.ndarray, rule_ix: np.ndarray, codes: np.ndarray,
 
 
 class InProcess:
-    """Every pair's key, rule and pattern code in this process's memory, scored in chunks."""
+    """Every pair's key, rule and pattern code in this process's memory, scored in chunks.
+
+    ``held`` says whose similarities the scoring pass keeps: every pair's when every pair will
+    be kept; on a sampled build only those of the pairs whose sample hash is low (the sample
+    keeps the lowest hashes of each stratum), so most kept pairs are not compared twice and
+    memory stays bounded by the sample's size, not by the pairs'.
+    """
 
     name = "in-process"
 
-    def __init__(self, keys: np.ndarray, rule_ix: np.ndarray, keep_sims: bool) -> None:
+    def __init__(self, keys: np.ndarray, rule_ix: np.ndarray, held: Held,
+                 workers: int | None = None) -> None:
         self.keys = np.asarray(keys, dtype=np.int64)
         self.rule_ix = np.asarray(rule_ix, dtype=np.int16)
         self.codes = np.zeros(len(self.keys), dtype=np.int64)
-        self.keep_sims = keep_sims
-        self.sims: np.ndarray | None = None
+        self.held = held
+        self.workers = workers_for(len(self.keys), workers)
+        self.held_at = np.zeros(0, dtype=np.int64)  # positions whose similarities are held
+        self.held_sims: np.ndarray | None = None
 
     def __len__(self) -> int:
         return len(self.keys)
@@ -97,37 +107,46 @@ class InProcess:
     def score(self, scorer: ChunkScorer, progress: Callable[[int, int], None] | None = None
               ) -> tuple[np.ndarray, np.ndarray]:
         """Distinct pattern codes (sorted) and how many pairs have each."""
-        n = len(self.keys)
-        if self.keep_sims:
-            self.sims = np.empty((n, len(scorer.fields)), dtype=np.float32)
-        for start in range(0, n, CHUNK):
-            sl = slice(start, min(n, start + CHUNK))
-            sims, levels = scorer.compare(self.keys[sl])
-            self.codes[sl] = scoring.pattern_codes(levels, scorer.radix)
-            if self.sims is not None:
-                self.sims[sl] = sims
-            if progress:
-                progress(sl.stop, n)
+        at, sims = [], []
+        for part in score_all(scorer, self.keys, self.held, self.workers, progress):
+            self.codes[part.start:part.start + len(part.codes)] = part.codes
+            at.append(part.held + part.start)
+            sims.append(part.sims)
+        if at:
+            self.held_at = np.concatenate(at)
+            self.held_sims = np.concatenate(sims)
         codes, counts = np.unique(self.codes, return_counts=True)
         return codes, counts
 
-    def keep(self, plan: SamplePlan) -> Kept:
+    def keep(self, plan: SamplePlan, scorer: ChunkScorer | None = None,
+             progress: Callable[[int, int], None] | None = None) -> Kept:
+        """The kept pairs with their similarities: held ones from the scoring pass, the rest
+        (given a ``scorer``) compared again."""
         ix = pick(self.keys, self.codes, plan)
-        return order_kept(self.keys[ix], self.rule_ix[ix], self.codes[ix],
-                          None if self.sims is None else self.sims[ix])
+        sims = None
+        if self.held_sims is not None and scorer is not None:
+            where = np.searchsorted(self.held_at, ix)
+            found = where < len(self.held_at)
+            found[found] = self.held_at[where[found]] == ix[found]
+            sims = np.empty((len(ix), len(scorer.fields)), dtype=np.float32)
+            sims[found] = self.held_sims[where[found]]
+            missing = np.flatnonzero(~found)
+            if len(missing):
+                sims[missing] = similarities(scorer, self.keys[ix[missing]], progress,
+                                             self.workers)
+        self.held_sims = None
+        return order_kept(self.keys[ix], self.rule_ix[ix], self.codes[ix], sims)
 
     def close(self) -> None:
         pass
 
 
 def similarities(scorer: ChunkScorer, keys: np.ndarray,
-                 progress: Callable[[int, int], None] | None = None) -> np.ndarray:
-    """Similarities of the kept pairs, in chunks (the scoring pass kept only their codes)."""
-    n = len(keys)
-    out = np.empty((n, len(scorer.fields)), dtype=np.float32)
-    for start in range(0, n, CHUNK):
-        sl = slice(start, min(n, start + CHUNK))
-        out[sl] = scorer.compare(keys[sl])[0]
-        if progress:
-            progress(sl.stop, n)
+                 progress: Callable[[int, int], None] | None = None,
+                 workers: int | None = 1) -> np.ndarray:
+    """Similarities of these pairs, in chunks (on ``workers`` processes when many)."""
+    out = np.empty((len(keys), len(scorer.fields)), dtype=np.float32)
+    for part in score_all(scorer, keys, Held(all=True), workers_for(len(keys), workers),
+                          progress):
+        out[part.start:part.start + len(part.codes)] = part.sims
     return out
