@@ -17,6 +17,7 @@ import pandas as pd
 import pytest
 
 from docket.core import DocketError, Project
+from docket.core.exports.gold_export import gold_frame
 from docket.core.ordering import queue
 from docket.core.quality.audit_sample import AuditSample
 from docket.core.quality.estimates import MEASURES, threshold_table
@@ -128,6 +129,23 @@ def test_draw_store_review_and_evaluate(sample_project: Path, tmp_path: Path, ca
         assert "audit slice and the supplement" in report["audit"]["sample"]
         assert report["at_threshold"]["recall"]["value"] is None  # every label a non-match
         assert list(stored(project)) == [made["fingerprint"]]
+        # the gold export carries each supplement pair's design beside the audit slice's: a
+        # stratum's weights add up to its N_g pairs (common practice, as for the slice)
+        gold = gold_frame(project)
+        entries = [(pid, e) for pid, v in zip(gold.pair_id, gold.supplements, strict=True)
+                   if isinstance(v, str) for e in json.loads(v)]
+        assert {pid for pid, _ in entries} == decided & wanted
+        pi_a = dict(project.connection.execute("SELECT pair_id, inclusion FROM pairs"))
+        weights: dict[int, float] = {}
+        for pid, e in entries:
+            big, n = made["strata"][str(e["stratum"])]
+            assert e["supplement"] == made["fingerprint"]
+            assert e["inclusion_probability"] == pytest.approx(n / big)
+            assert e["union_inclusion_probability"] == pytest.approx(
+                1 - (1 - pi_a[pid]) * (1 - n / big))
+            weights[e["stratum"]] = weights.get(e["stratum"], 0.0) + e["weight"]
+        for g, total in weights.items():
+            assert total == pytest.approx(made["strata"][str(g)][0])
     assert main(["evaluate", str(sample_project), "--predictions", str(path),
                  "--supplement"]) == 0
     assert "quality from the audit slice and the supplement drawn on" in capsys.readouterr().out

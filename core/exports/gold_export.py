@@ -26,13 +26,14 @@ from ..types import ClusterConflict
 from . import clusters as clustering
 from .exporting import atomic_write, to_stdout
 from .gold_detail import DETAIL_COLUMNS, details
+from .gold_supplement import supplement_entries
 from .split import split, split_of
 
 __all__ = ["split_of"]  # kept here for callers of the pair split
 
 GOLD_COLUMNS = ("pair_id", "left_id", "right_id", "label", "how", "reviewers", "n_reviews",
                 "audit", "audit_stratum", "inclusion_probability", "audit_weight",
-                *DETAIL_COLUMNS)
+                "supplements", *DETAIL_COLUMNS)
 LEFT, RIGHT = "L:", "R:"  # link mode: the two sides share no id space once clustered
 
 
@@ -49,7 +50,9 @@ def gold_frame(project: ProjectFile) -> pd.DataFrame:
     the slice (n_h drawn of its N_h candidate pairs). Not every drawn pair is gold yet, so the
     weight that lets the labelled pairs stand for the candidate pairs is ``audit_weight`` =
     N_h / m_h, m_h the gold-labelled audit pairs of the stratum: a stratum's weights add up to
-    N_h, and equal 1 / inclusion_probability once every drawn pair is gold.
+    N_h, and equal 1 / inclusion_probability once every drawn pair is gold. ``supplements``
+    gives the same for each supplement that drew the pair, with its chance of being drawn by
+    the slice or that supplement (JSON, see ``gold_supplement``).
     """
     golds = gold_labels(project.connection)
     rows = {pid: (a, b, audit, stratum, inc) for pid, a, b, audit, stratum, inc in
@@ -58,18 +61,21 @@ def gold_frame(project: ProjectFile) -> pd.DataFrame:
                 "WHERE pair_id IN (SELECT pair_id FROM current)")}
     how = details(project.connection, {g.pair_id for g in golds})
     weight = _audit_weights(project, [rows[g.pair_id] for g in golds])
+    drawn_by = supplement_entries(project, (g.pair_id for g in golds))
     records = []
     for g in golds:
         a, b, audit, stratum, inc = rows[g.pair_id]
         records.append((g.pair_id, a, b, g.label, g.how, ";".join(g.reviewers), g.n_reviews,
                         bool(audit), stratum if audit else None, inc if audit else None,
-                        weight.get(stratum) if audit else None, *how[g.pair_id].row()))
+                        weight.get(stratum) if audit else None, drawn_by.get(g.pair_id),
+                        *how[g.pair_id].row()))
     frame = pd.DataFrame.from_records(records, columns=list(GOLD_COLUMNS))
     return frame.astype({"pair_id": "int64", "n_reviews": "int64", "audit": "bool",
                          "audit_stratum": "Int64", "inclusion_probability": "float64",
                          "audit_weight": "float64",
                          **{c: "object" for c in ("left_id", "right_id", "label", "how",
-                                                  "reviewers", *DETAIL_COLUMNS)}})
+                                                  "reviewers", "supplements",
+                                                  *DETAIL_COLUMNS)}})
 
 
 def _audit_weights(project: ProjectFile, rows: list[tuple]) -> dict[int, float]:
