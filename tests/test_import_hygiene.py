@@ -25,7 +25,7 @@ FLOORS = [
     {"matchers"},
     {"exports"},
     # the facade and its verbs ("" is docket.core itself)
-    {"project", "team_verbs", "report_verbs", "matcher_verbs", "report", ""},
+    {"project", "team_verbs", "report_verbs", "matcher_verbs", "queue_verbs", "report", ""},
 ]
 UI = ("textual", "rich")
 CORE = Path(docket.core.__file__).parent
