@@ -62,6 +62,20 @@ def test_pool_adjacent_violators_against_reference() -> None:
     assert out.sum() == pytest.approx(1.0)
 
 
+@settings(max_examples=60, deadline=None)
+@given(st.lists(st.tuples(st.floats(1e-6, 1.0), st.floats(1e-6, 1.0)), min_size=2, max_size=12))
+def test_pool_adjacent_violators_as_scikit_learn(levels: list[tuple[float, float]]) -> None:
+    # Reference: scikit-learn's IsotonicRegression (decreasing, weights u) over the levels'
+    # ratios m/u, scaled back by u and renormalised: the same answer from another library
+    from sklearn.isotonic import IsotonicRegression
+
+    m = np.array([a for a, _ in levels]) / sum(a for a, _ in levels)
+    u = np.array([b for _, b in levels]) / sum(b for _, b in levels)
+    want = IsotonicRegression(increasing=False).fit_transform(
+        np.arange(len(m), dtype=float), m / u, sample_weight=u) * u
+    assert monotone_m(m, u) == pytest.approx(want / want.sum(), rel=1e-9, abs=1e-15)
+
+
 def test_odds_wording() -> None:
     # Arithmetic facts (common practice): probability 0.75 is odds 3 to 1, 0.04 is 1 to 24.
     assert odds_text(math.log(0.75 / 0.25)) == "3 to 1"

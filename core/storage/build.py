@@ -121,7 +121,7 @@ def fingerprint(left: Table, right: Table | None, li: np.ndarray, ri: np.ndarray
     h = hashlib.sha256()
     for table in (left, right):
         if table is not None:
-            h.update("\x1f".join(table.frame.index).encode())
+            h.update("\x1f".join(table.frame.index.tolist()).encode())
             h.update(b"\x1e")
     h.update(np.ascontiguousarray(li, dtype=np.int64).tobytes())
     h.update(np.ascontiguousarray(ri, dtype=np.int64).tobytes())

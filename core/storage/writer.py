@@ -22,14 +22,13 @@ def write_records(conn: sqlite3.Connection, table: str, frame: Any, id_column: s
     import sqlite_utils  # pulls in pandas: only building a project needs it
 
     db = sqlite_utils.Database(conn)
-    rows = frame.reset_index()
-    rows.columns = [id_column, *frame.columns]
-    db.table(table).create({str(c): str for c in rows.columns}, pk=id_column)
-    # one executemany over plain tuples: building a dict per record for insert_all cost more
-    # than the writing itself
-    marks = ", ".join("?" * len(rows.columns))
-    conn.executemany(f'INSERT INTO "{table}" VALUES ({marks})',
-                     rows.itertuples(index=False, name=None))
+    names = [id_column, *map(str, frame.columns)]
+    db.table(table).create(dict.fromkeys(names, str), pk=id_column)
+    # one executemany over plain tuples of whole columns: a dict per record (insert_all), or a
+    # row at a time (itertuples over an Arrow-backed id index), cost more than the writing
+    marks = ", ".join("?" * len(names))
+    columns = [frame.index.tolist(), *(frame[c].tolist() for c in frame.columns)]
+    conn.executemany(f'INSERT INTO "{table}" VALUES ({marks})', zip(*columns, strict=True))
     search.index_records(conn, table, [str(c) for c in frame.columns])
 
 
