@@ -2,8 +2,10 @@
 
 from __future__ import annotations
 
+import bisect
 import warnings
-from collections.abc import Callable
+from collections.abc import Callable, Iterator
+from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
@@ -27,72 +29,103 @@ def width_of(left: Table, right: Table | None) -> int:
     return len(left) if right is None else len(right)
 
 
+@dataclass
+class GivenReader:
+    """A pairs file read batch by batch into pair keys, with each kept pair's row number.
+
+    Self pairs (one table: a record with itself) are dropped and counted here; repeated
+    pairs are found by whoever collects the keys (all at once, or bucket by bucket), and both
+    are named in one warning by :meth:`warn`.
+    """
+
+    path: Path
+    left: Table
+    right: Table | None
+    source: PairSource = field(init=False)
+    starts: list[tuple[Path, int, int]] = field(default_factory=list)  # part, row, first read
+    self_rows: list[str] = field(default_factory=list)
+    n_self: int = 0
+
+    def __post_init__(self) -> None:
+        self.source = open_pairs(self.path)
+
+    def batches(self, step: Step) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+        """(keys, read positions) per batch; a read position counts every row read."""
+        left, right, source = self.left, self.right, self.source
+        other = left if right is None else right
+        lindex, rindex = pd.Index(left.frame.index), pd.Index(other.frame.index)
+        width = np.int64(width_of(left, right))
+        done = row_in_part = 0
+        last = None
+        for part, a, b in id_batches(source):
+            row_in_part = 0 if part != last else row_in_part
+            last = part
+            first_row = row_in_part + (1 if source.is_parquet else 2)
+            self.starts.append((part, first_row, done))
+            li, ri = positions(part, a.reset_index(drop=True), b.reset_index(drop=True),
+                               lindex, rindex, left.path.name, other.path.name, first_row)
+            read = np.arange(done, done + len(li), dtype=np.int64)
+            if right is None:  # one table: (a, b) and (b, a) are the same pair
+                li, ri = np.minimum(li, ri), np.maximum(li, ri)
+                keep = li != ri
+                self.n_self += int((~keep).sum())
+                self.self_rows += [self.row_name(int(i)) for i in
+                                   read[~keep][:5 - len(self.self_rows)]]
+                li, ri, read = li[keep], ri[keep], read[keep]
+            yield li * width + ri, read
+            row_in_part += len(a)
+            done += len(a)
+            step("reading candidate pairs", done, max(done, source.rows))
+
+    def row_name(self, read: int) -> str:
+        """The file row (``part:row`` for a folder of parts) of a read position."""
+        i = bisect.bisect_right([s[2] for s in self.starts], read) - 1
+        part, first_row, begun = self.starts[i]
+        row = first_row + read - begun
+        return str(row) if len(self.source.parts) <= 1 else f"{part.name}:{row}"
+
+    def warn(self, n_again: int, again_rows: list[int]) -> None:
+        notes = []
+        if self.n_self:
+            notes.append(f"{self.n_self:,} pair(s) a record with itself, row(s) "
+                         f"{', '.join(self.self_rows)}{'…' if self.n_self > 5 else ''}")
+        if n_again:
+            rows = [self.row_name(r) for r in sorted(again_rows)[:5]]
+            notes.append(f"{n_again:,} pair(s) given before (the same two ids, in either "
+                         f"order), row(s) {', '.join(rows)}{'…' if n_again > 5 else ''}")
+        if notes:
+            warnings.warn(f"{self.path}: left out {'; and '.join(notes)}; each pair counts once",
+                          UserWarning, stacklevel=4)
+
+    def report(self, n_pairs: int) -> blocking.BlockingReport:
+        return blocking.BlockingReport(["given"], False, n_pairs,
+                                       int(possible_pairs(self.left, self.right)),
+                                       {"given": n_pairs})
+
+
+def first_seen(keys: np.ndarray, read: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Distinct keys (sorted) and the read positions of the repeats (every later sighting)."""
+    distinct, first = np.unique(keys, return_index=True)
+    if len(distinct) == len(keys):
+        return distinct, np.zeros(0, dtype=np.int64)
+    again = np.ones(len(keys), dtype=bool)
+    again[first] = False
+    return distinct, read[again]
+
+
 def given_keys(path: Path, left: Table, right: Table | None, step: Step
                ) -> tuple[np.ndarray, blocking.BlockingReport]:
-    """Distinct pair keys of a pairs file, read batch by batch (8 bytes per pair held).
-
-    Self pairs (one table: a record with itself) and repeated pairs are left out, counted and
-    named in one warning.
-    """
-    source = open_pairs(path)
-    other = left if right is None else right
-    lindex, rindex = pd.Index(left.frame.index), pd.Index(other.frame.index)
-    width = np.int64(width_of(left, right))
-    parts: list[np.ndarray] = []
-    batches: list[tuple[Path, int, np.ndarray]] = []  # part, its first row number, kept rows
-    self_rows: list[str] = []
-    n_self = done = row_in_part = 0
-    last = None
-    for part, a, b in id_batches(source):
-        row_in_part = 0 if part != last else row_in_part
-        last = part
-        first_row = row_in_part + (1 if source.is_parquet else 2)
-        li, ri = positions(part, a.reset_index(drop=True), b.reset_index(drop=True), lindex,
-                           rindex, left.path.name, other.path.name, first_row)
-        keep = np.ones(len(li), dtype=bool)
-        if right is None:  # one table: (a, b) and (b, a) are the same pair
-            li, ri = np.minimum(li, ri), np.maximum(li, ri)
-            keep = li != ri
-            n_self += int((~keep).sum())
-            self_rows += [_row(source, part, first_row + int(i))
-                          for i in np.flatnonzero(~keep)[:5 - len(self_rows)]]
-        parts.append(li[keep] * width + ri[keep])
-        batches.append((part, first_row, np.flatnonzero(keep)))
-        row_in_part += len(a)
-        done += len(a)
-        step("reading candidate pairs", done, max(done, source.rows))
-    every = np.concatenate(parts) if parts else np.zeros(0, dtype=np.int64)
-    keys, first = np.unique(every, return_index=True)
-    notes = []
-    if n_self:
-        notes.append(f"{n_self:,} pair(s) a record with itself, row(s) "
-                     f"{', '.join(self_rows)}{'…' if n_self > 5 else ''}")
-    if len(every) > len(keys):
-        again = np.ones(len(every), dtype=bool)
-        again[first] = False
-        rows = [_row_at(source, batches, int(i)) for i in np.flatnonzero(again)[:5]]
-        n_again = len(every) - len(keys)
-        notes.append(f"{n_again:,} pair(s) given before (the same two ids, in either order), "
-                     f"row(s) {', '.join(rows)}{'…' if n_again > 5 else ''}")
-    if notes:
-        warnings.warn(f"{path}: left out {'; and '.join(notes)}; each pair counts once",
-                      UserWarning, stacklevel=3)
-    report = blocking.BlockingReport(["given"], False, len(keys),
-                                     int(possible_pairs(left, right)), {"given": len(keys)})
-    return keys, report
-
-
-def _row(source: PairSource, part: Path, row: int) -> str:
-    return str(row) if len(source.parts) <= 1 else f"{part.name}:{row}"
-
-
-def _row_at(source: PairSource, batches: list[tuple[Path, int, np.ndarray]], i: int) -> str:
-    """The row of the i-th kept pair, counted over every batch."""
-    for part, first_row, kept in batches:
-        if i < len(kept):
-            return _row(source, part, first_row + int(kept[i]))
-        i -= len(kept)
-    return "?"  # pragma: no cover - i is always within the batches
+    """Distinct pair keys of a pairs file, all in memory (16 bytes per pair while reading)."""
+    reader = GivenReader(path, left, right)
+    keys, reads = [], []
+    for k, r in reader.batches(step):
+        keys.append(k)
+        reads.append(r)
+    every = np.concatenate(keys) if keys else np.zeros(0, dtype=np.int64)
+    read = np.concatenate(reads) if reads else np.zeros(0, dtype=np.int64)
+    distinct, again = first_seen(every, read)
+    reader.warn(len(again), again[:5].tolist())
+    return distinct, reader.report(len(distinct))
 
 
 def rules_for(spec_rules: list[str], left: Table, right: Table | None, fields: list[FieldSpec],

@@ -27,7 +27,8 @@ from ..pairs.candidates import possible_pairs, width_of
 from ..records import fields as fieldmod
 from ..records.sources import Table, load_table, read_frame
 from ..types import FieldSpec
-from . import file_health, store
+from . import file_health, spilled, store
+from .build_files import remove_stale_builds, replace_project_file
 from .pair_stream import ChunkScorer, InProcess, levels_of, similarities
 
 Progress = Callable[[str, int, int], None]
@@ -244,6 +245,10 @@ def open_engine(spec: NewProject, left: Table, right: Table | None, fields: list
     if spec.engine == "dask":
         from .dask_engine import open_dask
         engine = open_dask(spec, left, right, fields, step)
+    elif spec.pairs_file is not None and spilled.worth_spilling(spec.pairs_file,
+                                                                 spec.sample_above):
+        engine = spilled.Spilled(spec.pairs_file, left, right, spec.path, spec.sample_above,
+                                 spec.seed, spec.workers, step)
     else:
         if spec.pairs_file is not None:
             keys, report = candidates.given_keys(spec.pairs_file, left, right, step)
@@ -273,44 +278,3 @@ def _named_records(left: Table, right: Table | None, li: np.ndarray, ri: np.ndar
     lu, ru = np.unique(li), np.unique(ri)
     return (subset(left, lu), subset(right, ru), np.searchsorted(lu, li),
             np.searchsorted(ru, ri))
-
-
-def replace_project_file(new: Path, target: Path) -> None:
-    """Put a finished build at ``target``, taking the old file's ``-wal``/``-shm`` with it.
-
-    SQLite would replay an old write-ahead log into the new file ("database disk image is
-    malformed"), so the old file is moved aside first and its side files removed before the new
-    one takes its name.
-    """
-    if target.exists():
-        aside = target.with_name(f".{target.name}.{os.getpid()}.replaced")
-        os.replace(target, aside)
-        for extra in ("", "-wal", "-shm", "-journal"):
-            Path(f"{aside}{extra}").unlink(missing_ok=True)
-    for extra in ("-wal", "-shm", "-journal"):
-        Path(f"{target}{extra}").unlink(missing_ok=True)
-    os.replace(new, target)
-
-
-def remove_stale_builds(target: Path) -> None:
-    """Delete hidden copies left by builds whose process has died (``.NAME.PID.building``)."""
-    for leftover in target.parent.glob(f".{target.name}.*"):
-        rest = leftover.name[len(target.name) + 2:]
-        for extra in ("-wal", "-shm", "-journal"):
-            rest = rest.removesuffix(extra)
-        parts = rest.split(".")
-        if len(parts) < 2 or parts[1] not in {"building", "replaced"} or not parts[0].isdigit():
-            continue
-        if int(parts[0]) != os.getpid() and _alive(int(parts[0])):
-            continue
-        leftover.unlink(missing_ok=True)
-
-
-def _alive(pid: int) -> bool:
-    try:
-        os.kill(pid, 0)
-    except ProcessLookupError:
-        return False
-    except PermissionError:
-        return True
-    return True

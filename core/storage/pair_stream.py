@@ -4,7 +4,8 @@ A pair is carried as its *key* (``left position * width + right position``, int6
 scorer turns keys into pattern codes through the pure scorer; the engine keeps one key, one
 rule index and one pattern code per pair (18 bytes), counts the patterns, and hands back the
 pairs a :class:`~docket.core.ordering.sampling.SamplePlan` keeps. ``dask_engine`` does the same on
-Dask partitions with the same :class:`ChunkScorer`, so both give the same pairs and levels.
+Dask partitions with the same :class:`ChunkScorer`, so both give the same pairs and levels;
+``spilled`` keeps a large pairs file's keys in bucket files on disk instead of in memory.
 """
 
 from __future__ import annotations

@@ -1,0 +1,53 @@
+"""The files a build leaves beside the project: the finished file put in place, and leftovers
+of builds whose process died (hidden copies, spilled pairs) removed."""
+
+from __future__ import annotations
+
+import os
+import shutil
+from pathlib import Path
+
+
+def replace_project_file(new: Path, target: Path) -> None:
+    """Put a finished build at ``target``, taking the old file's ``-wal``/``-shm`` with it.
+
+    SQLite would replay an old write-ahead log into the new file ("database disk image is
+    malformed"), so the old file is moved aside first and its side files removed before the new
+    one takes its name.
+    """
+    if target.exists():
+        aside = target.with_name(f".{target.name}.{os.getpid()}.replaced")
+        os.replace(target, aside)
+        for extra in ("", "-wal", "-shm", "-journal"):
+            Path(f"{aside}{extra}").unlink(missing_ok=True)
+    for extra in ("-wal", "-shm", "-journal"):
+        Path(f"{target}{extra}").unlink(missing_ok=True)
+    os.replace(new, target)
+
+
+def remove_stale_builds(target: Path) -> None:
+    """Delete hidden copies left by builds whose process has died (``.NAME.PID.building``)."""
+    for leftover in target.parent.glob(f".{target.name}.*"):
+        rest = leftover.name[len(target.name) + 2:]
+        for extra in ("-wal", "-shm", "-journal"):
+            rest = rest.removesuffix(extra)
+        parts = rest.split(".")
+        if len(parts) < 2 or parts[1] not in {"building", "replaced", "spill"} or \
+                not parts[0].isdigit():
+            continue
+        if int(parts[0]) != os.getpid() and _alive(int(parts[0])):
+            continue
+        if leftover.is_dir():
+            shutil.rmtree(leftover, ignore_errors=True)
+        else:
+            leftover.unlink(missing_ok=True)
+
+
+def _alive(pid: int) -> bool:
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except PermissionError:
+        return True
+    return True

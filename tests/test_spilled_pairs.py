@@ -1,0 +1,80 @@
+"""Pairs spread over bucket files on disk give the project an in-memory build gives."""
+
+from __future__ import annotations
+
+import sqlite3
+import warnings
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from docket.core import Project
+from docket.core.storage import build, spilled
+from tests.test_stream_pairs import _pairs, _parts, _spec
+
+KEEP = 300
+
+
+def _table(path: Path) -> list[tuple]:
+    with sqlite3.connect(path) as conn:
+        pairs = conn.execute("SELECT * FROM pairs ORDER BY pair_id").fetchall()
+        meta = conn.execute("SELECT * FROM meta WHERE key IN ('sampling', 'blocking') "
+                            "ORDER BY key").fetchall()
+    return pairs + meta
+
+
+def _build(path: Path, folder: Path, spill: bool, monkeypatch: pytest.MonkeyPatch
+           ) -> tuple[list[tuple], list[str]]:
+    with monkeypatch.context() as m:
+        if spill:  # many small buckets, so that every pair's bucket matters
+            m.setattr(spilled, "BUCKET", 97)
+        else:
+            m.setattr(spilled, "worth_spilling", lambda *a: False)
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            Project.create(_spec(path, folder, sample_above=KEEP, workers=1))
+        seen = [str(w.message) for w in caught if "left out" in str(w.message)]
+    return _table(path), seen
+
+
+def test_spilled_build_equals_the_in_memory_one(tmp_path: Path,
+                                                monkeypatch: pytest.MonkeyPatch) -> None:
+    frame = _pairs(60)  # 1,800 pairs, three of them given twice
+    frame = pd.concat([frame, frame.iloc[[5, 9, 700]]], ignore_index=True)
+    folder = _parts(frame, tmp_path / "pairs", 5)
+    made, spill_warn = _build(tmp_path / "s.docket", folder, True, monkeypatch)
+    plain, plain_warn = _build(tmp_path / "m.docket", folder, False, monkeypatch)
+    assert made == plain
+    assert spill_warn == plain_warn and "3 pair(s) given before" in spill_warn[0]
+    with sqlite3.connect(tmp_path / "s.docket") as conn:
+        kept = conn.execute("SELECT count(*) FROM pairs").fetchone()[0]
+    assert kept == KEEP  # sampled: the project holds the sample, not all 1,800 pairs
+    assert not list(tmp_path.glob(".*.spill"))  # the buckets are gone
+
+
+def test_a_bad_part_leaves_no_buckets_behind(tmp_path: Path,
+                                             monkeypatch: pytest.MonkeyPatch) -> None:
+    frame = _pairs(60)
+    frame.loc[1500, "left_id"] = "no-such-client"
+    folder = _parts(frame, tmp_path / "pairs", 5)
+    monkeypatch.setattr(spilled, "BUCKET", 97)
+    with pytest.raises(Exception, match="no-such-client"):
+        Project.create(_spec(tmp_path / "s.docket", folder, sample_above=KEEP, workers=1))
+    assert not list(tmp_path.glob(".*")) and not (tmp_path / "s.docket").exists()
+
+
+def test_buckets_of_a_dead_build_are_removed(tmp_path: Path) -> None:
+    target = tmp_path / "p.docket"
+    dead = tmp_path / f".{target.name}.999999999.spill"
+    dead.mkdir()
+    (dead / "0.keys").write_bytes(b"x")
+    build.remove_stale_builds(target)
+    assert not dead.exists()
+
+
+def test_buckets_spread_keys_evenly() -> None:
+    keys = np.arange(0, 2_000_000, 7, dtype=np.int64) * 1_000  # a regular pattern
+    counts = np.bincount(spilled.bucket_of(keys, 13), minlength=13)
+    assert counts.min() > 0.95 * counts.mean()
