@@ -8,10 +8,14 @@ Each build runs in a child process, alternating, so machine noise hits every var
 and with --sample-above below --pairs (a sampled project), also
   compare again one process that holds no similarities from the scoring pass and compares
                 every kept pair again (how a sampled build went before it held them)
-Printed: wall seconds, CPU seconds (the build's process and its workers), peak RSS of the
-build's process and of its largest worker, and each variant's wall time over the first's.
+Printed: wall seconds, CPU seconds (the build's process and its workers), wall seconds of the
+comparing steps (normalising values, the scoring pass and any second pass; the chance
+baseline not included), peak RSS of the build's process and of its largest worker (shared
+pages counted in both), and each variant's wall time over the first's.
 Inputs (2 x 250,000 synthetic Parquet records, seeded) are made by bench/scale.py's generator
-under --work.
+under --work, or given with --inputs: a folder holding left.parquet, right.parquet and
+pairs.parquet (a file or a folder of parts; bench/scale_pairs.py's inputs linked so have six
+compared fields to bench/scale.py's four).
 """
 
 from __future__ import annotations
@@ -35,20 +39,28 @@ a = json.loads(sys.argv[1])
 if a["again"]:
     sampling.held_for = lambda *args: sampling.Held()
 d = Path(a["dir"])
+spent, last = {}, [time.perf_counter(), ""]
+def progress(name, done, total):  # seconds per build step, up to the next step's report
+    now = time.perf_counter()
+    spent[last[1]] = spent.get(last[1], 0.0) + now - last[0]
+    last[:] = [now, name]
 t = time.perf_counter()
 Project.create(NewProject(path=Path(a["project"]), left=d / "left.parquet",
                           right=d / "right.parquet", id_column="id",
                           pairs_file=d / "pairs.parquet", force=True, workers=a["workers"],
-                          sample_above=a["sample_above"]))
+                          sample_above=a["sample_above"]), progress=progress)
 me, kids = resource.getrusage(resource.RUSAGE_SELF), resource.getrusage(resource.RUSAGE_CHILDREN)
 print(json.dumps({"wall": time.perf_counter() - t,
                   "cpu": me.ru_utime + me.ru_stime + kids.ru_utime + kids.ru_stime,
-                  "rss": me.ru_maxrss / 1024, "worker_rss": kids.ru_maxrss / 1024}))
+                  "rss": me.ru_maxrss / 1024, "worker_rss": kids.ru_maxrss / 1024,
+                  "comparing": spent.get("comparing", 0.0)
+                               + spent.get("comparing the kept pairs", 0.0)}))
 """
 
 
-def run(folder: Path, workers: int | None, sample_above: int, again: bool) -> dict:
-    arg = {"dir": str(folder), "project": str(folder / "bench.docket"), "workers": workers,
+def run(folder: Path, project: Path, workers: int | None, sample_above: int, again: bool
+        ) -> dict:
+    arg = {"dir": str(folder), "project": str(project), "workers": workers,
            "sample_above": sample_above, "again": again}
     done = subprocess.run([sys.executable, "-c", CHILD, json.dumps(arg)], capture_output=True,
                           text=True)
@@ -64,8 +76,9 @@ def main() -> None:
                         help="keep a sample of this many pairs (default: keep every pair)")
     parser.add_argument("--rounds", type=int, default=1)
     parser.add_argument("--work", type=Path, default=Path("/tmp/docket_workers"))
+    parser.add_argument("--inputs", type=Path, default=None)
     args = parser.parse_args()
-    folder = args.work / f"in{args.pairs}"
+    folder = args.inputs or args.work / f"in{args.pairs}"
     if not (folder / "pairs.parquet").exists():
         folder.mkdir(parents=True, exist_ok=True)
         scale.N_PAIRS = args.pairs
@@ -76,14 +89,15 @@ def main() -> None:
     if sample_above < args.pairs:
         variants.insert(0, ("compare again", 1, True))
     kept = f"sample of {sample_above:,}" if sample_above < args.pairs else "all kept"
-    print(f"{args.pairs:,} pairs, 2 x {scale.N_RECORDS:,} records, {kept}")
+    print(f"{args.pairs:,} pairs from {folder}, {kept}")
     for r in range(args.rounds):
         first = None
         for name, workers, again in variants:
             t = time.perf_counter()
-            out = run(folder, workers, sample_above, again)
+            out = run(folder, args.work / "bench.docket", workers, sample_above, again)
             first = first or out["wall"]
             print(f"  round {r + 1} {name:13s} wall {out['wall']:6.1f} s  cpu {out['cpu']:6.1f} s"
+                  f"  comparing {out['comparing']:5.1f} s"
                   f"  rss {out['rss']:6.0f} MB  worker rss {out['worker_rss']:5.0f} MB  "
                   f"wall / first {out['wall'] / first:.2f}  ({time.perf_counter() - t:.1f} s "
                   "with interpreter)")
