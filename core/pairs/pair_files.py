@@ -12,6 +12,7 @@ from __future__ import annotations
 from collections.abc import Iterator
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 import pandas as pd
@@ -105,7 +106,8 @@ def id_batches(source: PairSource, batch: int = BATCH
         try:
             reader = pq.ParquetFile(part)
             for rb in reader.iter_batches(batch_size=batch, columns=list(source.columns)):
-                yield (part, _text(rb.column(0).to_pandas()), _text(rb.column(1).to_pandas()))
+                a, b = rb.column(0), rb.column(1)
+                yield part, _text(a.to_pandas(), a), _text(b.to_pandas(), b)
         except DocketError:
             raise
         except Exception as exc:
@@ -114,16 +116,46 @@ def id_batches(source: PairSource, batch: int = BATCH
                               "remove it") from None
 
 
-def _text(values: pd.Series) -> pd.Series:
-    """Ids as text the way record ids are read (1.0 -> '1'), missing as None."""
+def _text(values: pd.Series, arrow: Any = None) -> pd.Series:
+    """Ids as text the way record ids are read (1.0 -> '1'), missing as None.
+
+    ``arrow``: the same values as an Arrow array, when the caller has them (saves a copy).
+    """
     if values.dtype.kind in "iu":
         return values.astype(str).astype(object)
     if values.dtype.kind == "f":
         out = values.map(lambda v: None if pd.isna(v) else
                          (str(int(v)) if float(v).is_integer() else str(v)))
         return out.astype(object)
-    return values.astype(object).where(values.notna(), None).map(
-        lambda v: None if v is None or str(v).strip() == "" else str(v))
+    out = values.astype(object).where(values.notna(), None)
+    doubt = _not_plain(values if arrow is None else arrow)
+    if doubt is None:
+        return out.map(_id_text)
+    if doubt.any():
+        out[doubt] = out[doubt].map(_id_text)
+    return out
+
+
+def _id_text(v: Any) -> str | None:
+    return None if v is None or str(v).strip() == "" else str(v)
+
+
+def _not_plain(values: Any) -> np.ndarray | None:
+    """Which ids need ``_id_text`` (None: all of them): text starting with an ASCII letter or
+    digit is neither blank nor changed by str(), and Arrow finds those in one pass instead of a
+    Python call per id (a tenth of reading ten million pairs)."""
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
+    try:
+        arr = values if isinstance(values, pa.Array | pa.ChunkedArray) else pa.array(
+            values, from_pandas=True)
+    except (pa.ArrowInvalid, pa.ArrowTypeError):
+        return None
+    if not (pa.types.is_string(arr.type) or pa.types.is_large_string(arr.type)):
+        return None
+    plain = pc.fill_null(pc.match_substring_regex(arr, "^[0-9A-Za-z]"), False)
+    return ~np.asarray(plain, dtype=bool)
 
 
 def positions(where: Path | str, a: pd.Series, b: pd.Series, left_index: pd.Index,
