@@ -8,6 +8,7 @@ in about 95 % of repeated samples), loosened for the few runs a test can afford.
 from __future__ import annotations
 
 import numpy as np
+import pytest
 
 from docket.core.ordering import queue
 from docket.core.quality.audit_sample import AuditSample
@@ -62,3 +63,24 @@ def test_kappa_intervals_cover_and_stay_in_range() -> None:
 def test_reviewer_rate_intervals_cover() -> None:
     # three simulated reviewers of known rates on the default overlap design; 2 reps of 6 rates
     assert rates_coverage(2, seed=1, n_boot=60, n_pairs=1000) >= 10 / 12
+
+
+def test_a_domain_showing_one_kind_widens_on_the_side_the_other_kind_would_move_it() -> None:
+    # Stratum 0: 2,288 predicted matches, 32 labelled, every one a match; stratum 1: 300, 20
+    # labelled, 2 matches. The share of false matches in stratum 0 may still be as large as
+    # the Jeffreys upper bound for 0 of 32 (Brown, Cai & DasGupta 2001, Statistical Science
+    # 16(2); scipy.stats.beta as the reference), so the precision interval reaches at least
+    # that far below its point (times the finite-population factor), whatever stratum 1 adds.
+    from scipy.stats import beta
+
+    label = np.r_[np.ones(34), np.zeros(18)].astype(int)
+    stratum = np.r_[np.zeros(32), np.ones(20)].astype(int)
+    pi = np.r_[np.full(32, 32 / 2288), np.full(20, 20 / 300)]
+    sample = AuditSample(np.full(52, 0.95), label, stratum, pi, {0: 2288, 1: 300},
+                         {0: 32, 1: 20}, population={0: np.full(2288, 0.95),
+                                                     1: np.full(300, 0.95)})
+    precision = estimate_at(sample, 0.9).precision
+    assert precision.value == pytest.approx((2288 + 300 * 2 / 20) / 2588)
+    reach = 2288 * float(beta.ppf(0.975, 0.5, 32.5)) * np.sqrt(1 - 32 / 2288) / 2588
+    assert precision.low <= precision.value - reach + 1e-12
+    assert precision.high < 1.0
