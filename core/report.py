@@ -24,7 +24,8 @@ def how_fitted(fs: dict) -> list[str]:
                    "record pairs, exact agreement from value frequencies")
     else:
         out.append("chance agreement (u) estimated among the candidate pairs")
-    out.append(f"agreement among matches (m) by EM, {fs.get('iterations', 0)} rounds"
+    rounds = fs.get("iterations", 0)
+    out.append(f"agreement among matches (m) by EM, {rounds} round{'' if rounds == 1 else 's'}"
                + (f", {fs['labels_used']:,} labels held fixed" if fs.get("labels_used") else ""))
     pooled = [f"{f}: {g}" for f, groups in zip(fs["fields"], fs.get("pooled", []), strict=False)
               for g in groups]

@@ -45,7 +45,7 @@ def test_link_project_from_start_to_export(tiny_tables, tmp_path: Path, capsys) 
     labels.write_text('{"left_id": "1", "right_id": "a", "label": "match", "note": "same"}\n',
                       encoding="utf-8")
     assert main(["label", str(project), "--reviewer", "maya", "--from", str(labels)]) == 0
-    assert "recorded 1 decisions" in capsys.readouterr().out
+    assert "recorded 1 decision for" in capsys.readouterr().out
     assert main(["status", str(project), "--json"]) == 0
     info = json.loads(capsys.readouterr().out)
     assert info["decisions"]["per_reviewer"]["maya"]["match"] == 1
@@ -99,7 +99,7 @@ def test_demo_fresh_refuses_to_discard_decisions_unless_told(tmp_path: Path, cap
     capsys.readouterr()
     assert main(["demo", "--dir", str(tmp_path), "--no-open", "--fresh"]) == 2
     err = capsys.readouterr().err
-    assert "1 decision(s) by 1 reviewer(s)" in err and "--discard-decisions" in err
+    assert "1 decision by 1 reviewer that" in err and "--discard-decisions" in err
     with Project.open(path, readonly=True) as p:
         assert len(p.history("kim")) == 1  # nothing was touched
     assert main(["demo", "--dir", str(tmp_path), "--no-open", "--fresh",

@@ -7,12 +7,12 @@ from typing import Any
 
 from docket.core.results import AgreementReport
 
-from .figures import TOO_FEW, counted, interval, number, percent
+from .figures import TOO_FEW, counted, interval, many, number, percent
 
 
 def _pair_lines(r: dict[str, Any], floor: int, out: list[str]) -> None:
     a, b = r["reviewer_a"], r["reviewer_b"]
-    out.append(f"{a} × {b}: {r['n']:,} pairs used of {r['n_common']:,} in common")
+    out.append(f"{a} × {b}: {many(r['n'], 'pair')} used of {r['n_common']:,} in common")
     if r["too_few"]:
         out.append(f"  Cohen's kappa and PABAK: {TOO_FEW} (n {r['n']:,}; needs {floor})")
     else:
@@ -36,11 +36,12 @@ def _rate_lines(ds: dict[str, Any] | None, out: list[str]) -> None:
     if not ds:
         return
     if not ds["identified"]:
-        out.append(f"\nDawid–Skene: {ds['reason']} ({ds['units']:,} pairs, "
+        out.append(f"\nDawid–Skene: {ds['reason']} ({many(ds['units'], 'pair')}, "
                    f"{ds['units_rated_twice']:,} with two or more labels)")
         return
     state = "converged" if ds["converged"] else "not converged"
-    out.append(f"\nDawid–Skene ({ds['iterations']} EM rounds, {state}; {ds['units']:,} pairs, "
+    out.append(f"\nDawid–Skene ({many(ds['iterations'], 'EM round')}, {state}; "
+               f"{many(ds['units'], 'pair')}, "
                f"{ds['units_rated_twice']:,} with two or more labels)")
     holds = ds["reviewers"] and ds["reviewers"][0]["hold_rate_match"] is not None
     out.append(f"  {'reviewer':<18} {'sensitivity':>22} {'specificity':>22}"
@@ -65,8 +66,8 @@ def agreement_lines(report: AgreementReport) -> list[str]:
         out.append(f"agreement · {report.name} · no reviewer labels yet")
         return out
     floor = report.min_pairs
-    out.append(f"agreement · {report.name} · {len(names)} reviewer(s): " + ", ".join(
-             f"{n} {v['labels']:,} labels" for n, v in report.reviewers.items()))
+    out.append(f"agreement · {report.name} · {many(len(names), 'reviewer')}: " + ", ".join(
+             f"{n} {many(v['labels'], 'label')}" for n, v in report.reviewers.items()))
     out.append(f"({report.conventions['holds']})")
     if not report.reviewer_pairs:
         out.append("\nno two reviewers have pairs in common yet")

@@ -13,6 +13,7 @@ from typing import Any
 from .cli_base import command, open_project
 from .cli_checks import share
 from .evaluation_text import evaluation_lines
+from .figures import many
 from .terminal import json_text
 
 
@@ -157,7 +158,7 @@ def export(args: argparse.Namespace) -> int:
         frame = project.scores_frame()
     write_rows(frame, args.output, args.format, guard=getattr(args, "formula_guard", True))
     if args.output != "-":
-        print(f"wrote {len(frame):,} pairs to {args.output}", file=sys.stderr)
+        print(f"wrote {many(len(frame), 'pair')} to {args.output}", file=sys.stderr)
     return 0
 
 
@@ -181,5 +182,5 @@ def write_export(result: Any, target: str, fmt: str | None, guard: bool = True) 
     from docket.core import write_rows
     n = write_rows(result, target, fmt, guard)
     if target != "-":
-        print(f"wrote {n:,} rows to {target}", file=sys.stderr)
+        print(f"wrote {many(n, 'row')} to {target}", file=sys.stderr)
     return n

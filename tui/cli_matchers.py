@@ -9,6 +9,7 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
+from .figures import many
 from .terminal import json_text
 
 ACTIONS = ("import", "list", "mark", "remove", "ensemble", "queue")
@@ -135,7 +136,7 @@ def render(action: str, out: Any) -> list[str]:
         lines = []
         for m in out:
             lines.append(f"stored matcher {plain(m['name'])} ({m['kind']}s) from "
-                         f"{plain(m['source'])}: {m['given']:,} candidate pairs given, "
+                         f"{plain(m['source'])}: {many(m['given'], 'candidate pair')} given, "
                          f"{m['absent']:,} absent (count as predicted non-matches)")
             if m["outside"]:
                 shown = ", ".join(f"{plain(a)}|{plain(b)}" for a, b in m["outside_examples"])
@@ -143,7 +144,8 @@ def render(action: str, out: Any) -> list[str]:
                              f"(not stored, no audit stratum holds them), e.g. {shown}")
         return lines
     if action == "queue":
-        extra = (f"; {out['split_pairs']:,} pairs split {', '.join(map(plain, out['raters']))}"
+        extra = (f"; {many(out['split_pairs'], 'pair')} split "
+                 f"{', '.join(map(plain, out['raters']))}"
                  if out["mode"] == "disagreement" else "")
         return [f"queue order: {out['text']}{extra}"]
     if action == "remove":

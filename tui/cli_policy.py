@@ -10,6 +10,7 @@ from typing import Any
 
 from .cli_base import command, open_project
 from .cli_checks import at_least
+from .figures import many
 from .terminal import json_text
 
 
@@ -39,7 +40,7 @@ def policy_lines(rules: dict[str, Any]) -> list[str]:
     own = ("an adjudicator may not settle a pair they decided as a reviewer"
            if rules["independent_adjudication"] else
            "an adjudicator may settle a pair they reviewed (flagged on screen)")
-    return [f"a pair needs {rules['min_reviews']} reviewer decision(s); unanimous decisions "
+    return [f"a pair needs {many(rules['min_reviews'], 'reviewer decision')}; unanimous decisions "
             "become gold; disagreements only when an adjudicator settles them; holds never",
             own]
 

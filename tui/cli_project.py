@@ -10,6 +10,7 @@ from typing import Any
 
 from .cli_base import command, default_reviewer, open_project
 from .cli_checks import at_least, share
+from .figures import many
 from .figures import ratio_text as _ratio
 from .terminal import json_text, shown
 
@@ -18,13 +19,13 @@ def print_built(built: Any) -> None:
     r = built.blocking
     how = "chosen from the data" if r.auto else "given"
     print(f"created {built.path} ({built.mode} mode): {built.n_left:,} left and "
-          f"{built.n_right:,} right records" if built.mode == "link" else
-          f"created {built.path} (dedupe mode): {built.n_left:,} records")
+          f"{many(built.n_right, 'right record')}" if built.mode == "link" else
+          f"created {built.path} (dedupe mode): {many(built.n_left, 'record')}")
     print(_ids_line(built))
     print("fields compared: " + ", ".join(f"{f.name} ({f.kind})" for f in built.fields))
     print(f"blocking rules ({how}):")
     for rule, n in r.per_rule.items():
-        print(f"  {rule:<40} {n:>10,} pairs")
+        print(f"  {rule:<40} {n:>10,} {'pair' if n == 1 else 'pairs'}")
     print(f"candidate pairs: {r.pairs:,} of {r.possible:,} possible "
           f"(reduction ratio {_ratio(r.reduction_ratio)}; "
           f"{100 * r.pairs / max(1, r.possible):.3g} % of all pairs)")
@@ -36,9 +37,9 @@ def print_built(built: Any) -> None:
     from docket.core import CAUTION, odds_text, one_to_one_suggestion
     prior = min(max(built.model.prior, 1e-300), 1 - 1e-16)
     print(f"model: odds of a match before the fields "
-          f"{odds_text(math.log(prior / (1 - prior)))} (fitted in {built.model.iterations} "
-          f"rounds); audit slice {built.audit_size:,} pairs; overlap {built.overlap_pairs:,} "
-          "pairs")
+          f"{odds_text(math.log(prior / (1 - prior)))} (fitted in "
+          f"{many(built.model.iterations, 'round')}); audit slice "
+          f"{many(built.audit_size, 'pair')}; overlap {many(built.overlap_pairs, 'pair')}")
     hint = built.one_to_one_hint
     if hint is not None and hint.suggest:
         print(f"suggestion: {one_to_one_suggestion({'one_to_one_hint': hint.to_dict()}, 0)}")
@@ -121,8 +122,8 @@ def label(args: argparse.Namespace) -> int:
         n, result = project.label_from(Path(args.source), reviewer)
     aside = (f"; {result.set_aside:,} set aside (audit pairs, judged apart, and pairs still "
              "waiting for another reviewer)" if result.set_aside else "")
-    print(f"recorded {n:,} decisions for {reviewer}; refit: ranker {result.ranker}, "
-          f"{result.labels:,} labelled pairs used{aside}")
+    print(f"recorded {many(n, 'decision')} for {reviewer}; refit: ranker {result.ranker}, "
+          f"{many(result.labels, 'labelled pair')} used{aside}")
     return 0
 
 

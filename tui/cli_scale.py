@@ -8,6 +8,8 @@ import sys
 from pathlib import Path
 from typing import Any
 
+from .figures import many
+
 
 def register(sub: argparse._SubParsersAction) -> None:
     """Add ``docket score`` to the command's sub-parsers."""
@@ -49,7 +51,7 @@ def score(args: argparse.Namespace) -> int:
         rows = score_to_parts(job, Path(args.pairs), Path(args.output), args.engine,
                               args.workers, args.scheduler,
                               lambda d, t: update("scoring pairs", d, t))
-    print(f"scored {rows:,} pairs into {args.output} (ranker {model.ranker}, threshold "
+    print(f"scored {many(rows, 'pair')} into {args.output} (ranker {model.ranker}, threshold "
           f"{model.threshold:g})", file=sys.stderr)
     return 0
 

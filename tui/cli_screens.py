@@ -14,6 +14,7 @@ from typing import Any
 
 from .cli_base import command, default_reviewer, open_project
 from .cli_project import print_built, status
+from .figures import many
 
 DEMO_SECOND_REVIEWER = "ines"
 
@@ -112,7 +113,7 @@ def _refuse_to_discard(path: Path) -> None:
     with open_project(str(path), readonly=True) as project:
         n, people = project.decisions_by_others(DEMO_SECOND_REVIEWER)
     if n:
-        raise DocketError(f"{path} holds {n:,} decision(s) by {people} reviewer(s) that "
+        raise DocketError(f"{path} holds {many(n, 'decision')} by {many(people, 'reviewer')} that "
                           "--fresh would discard; copy the file to keep them, then pass "
                           "--fresh --discard-decisions")
 
@@ -137,7 +138,7 @@ def demo(args: argparse.Namespace) -> int:
                                    default_reviewer(args.reviewer))
             from .cli_matchers import apply_demo_matchers
             names = apply_demo_matchers(project, sample_dir())
-        print(f"second reviewer {DEMO_SECOND_REVIEWER}: {n:,} labels on overlap pairs; "
+        print(f"second reviewer {DEMO_SECOND_REVIEWER}: {many(n, 'label')} on overlap pairs; "
               f"{default_reviewer(args.reviewer)} is an adjudicator")
         print(f"invented matcher outputs stored: {', '.join(names)} "
               f"(docket evaluate {spec.path} --matchers, once the audit pairs have labels)")

@@ -8,6 +8,7 @@ from __future__ import annotations
 import argparse
 
 from .cli_base import command, open_project
+from .figures import many
 from .terminal import json_text
 
 
@@ -44,7 +45,7 @@ def supplement(args: argparse.Namespace) -> int:
         return 0
     strata = ", ".join(f"{h}: {n:,} of {big:,}"
                        for h, (big, n) in sorted(made["strata"].items(), key=lambda v: int(v[0])))
-    print(f"drew {made['size']:,} candidate pairs stratified on the scores of {made['file']} "
+    print(f"drew {many(made['size'], 'candidate pair')} stratified on the scores of {made['file']} "
           f"(stratum: drawn of pairs — {strata}; seed {made['seed']})")
     print("they come in the audit share of every reviewer's queue; once reviewed: "
           f"docket evaluate {args.project} --predictions {made['file']} --supplement")

@@ -11,6 +11,7 @@ from pathlib import Path
 
 from .agreement_lines import agreement_lines
 from .cli_base import command, default_reviewer, open_project
+from .figures import many
 from .terminal import json_text, shown
 
 
@@ -119,7 +120,7 @@ def merge(args: argparse.Namespace) -> int:
         result, refit = project.merge([Path(p) for p in args.others],
                                       accept_roles=args.accept_roles)
     for f in result.files:
-        print(f"  {f.path}: {f.decisions:,} decisions, {f.new:,} new")
+        print(f"  {f.path}: {many(f.decisions, 'decision')}, {f.new:,} new")
     for change in result.role_changes:
         print(("role accepted: " if result.roles_accepted else "role left out: ")
               + change.message)
@@ -130,8 +131,8 @@ def merge(args: argparse.Namespace) -> int:
         print(f"nothing new: every decision in these files is already in {args.project}")
         return 0
     who = ", ".join(f"{n} {k:,}" for n, k in result.by_reviewer.items())
-    print(f"brought {result.added:,} decisions into {args.project} ({who}) on "
-          f"{result.pairs_touched:,} pairs")
+    print(f"brought {many(result.added, 'decision')} into {args.project} ({who}) on "
+          f"{many(result.pairs_touched, 'pair')}")
     if result.new_reviewers:
         print("new reviewers: " + ", ".join(result.new_reviewers))
     for name in result.unconfirmed_adjudicators:

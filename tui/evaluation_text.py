@@ -8,7 +8,7 @@ from typing import Any
 
 from docket.core.results import Evaluation
 
-from .figures import bounds, estimate, interval, number
+from .figures import bounds, estimate, interval, labelled_text, many, number
 
 
 # -- text -------------------------------------------------------------------------------
@@ -30,7 +30,7 @@ def held_line(e: dict[str, Any]) -> str | None:
     """The bounds at one threshold when audit pairs are held, else None."""
     if not e.get("held"):
         return None
-    return (f"with the {e['held']:,} held audit pairs all wrong … all right: precision "
+    return (f"with the {many(e['held'], 'held audit pair')} all wrong … all right: precision "
             f"{bounds(e['precision_bounds'])}, recall {bounds(e['recall_bounds'])}, F1 "
             f"{bounds(e['f1_bounds'])} (these bounds, not the intervals above, are what the "
             "labels can vouch for)")
@@ -41,9 +41,8 @@ def evaluation_lines(report: Evaluation, name: str) -> list[str]:
     a = report.audit
     conf = f"{report.confidence:.0%}"
     held = f"; {a['held']:,} held" if a.get("held") else ""
-    out = [f"{name} · quality from {a.get('sample', 'the audit slice')}: {a['labelled']:,} of "
-           f"{a['drawn']:,} drawn "
-           f"pairs have gold labels ({a['matches']:,} matches{held}); {conf} intervals",
+    out = [f"{name} · quality from {a.get('sample', 'the audit slice')}: "
+           f"{labelled_text(a, held)}; {conf} intervals",
            f"score: {report.model['score']}; decision threshold {report.threshold:g}", ""]
     head = f"{'precision':<24}{'recall':<24}{'F1':<24}{'predicted':>12}"
     out.append(f"{'threshold':>10}  {head}")
@@ -52,8 +51,8 @@ def evaluation_lines(report: Evaluation, name: str) -> list[str]:
     first = report.at_threshold
     out.append(f"  * decision threshold. Intervals: {first['precision']['method']} for "
                f"precision, recall and F1 (linearised variance, with an allowance for strata "
-               f"that show no error); predicted matches among {first['n_pairs']:,} candidate "
-               "pairs.")
+               f"that show no error); predicted matches among "
+               f"{many(first['n_pairs'], 'candidate pair')}.")
     bound = held_line(first)
     if bound:
         out.append(bound)
@@ -69,7 +68,7 @@ def evaluation_lines(report: Evaluation, name: str) -> list[str]:
         out.append(f"highest estimated F1 in the table: {b['f1']:.3f} at {b['threshold']:g}, "
                    f"{b['note']}; pass --target-precision or --target-recall to aim at one")
     n = report.naive_at_threshold
-    out.append(f"naive ({report.gold_labels:,} gold labels, unweighted) at "
+    out.append(f"naive ({many(report.gold_labels, 'gold label')}, unweighted) at "
                f"{n['threshold']:g}: {_short(n)} — {n['note']}")
     notes = [t for t in first["note"].split("; ") if t]
     out += [f"note at {first['threshold']:g}: {t}" for t in notes]
@@ -79,11 +78,11 @@ def evaluation_lines(report: Evaluation, name: str) -> list[str]:
     b = sc["blocking"]
     out += ["", f"{sc['note']}."]
     if b.get("candidate_pairs") is not None:
-        out.append(f"blocking reach: {b['candidate_pairs']:,} candidate pairs of "
+        out.append(f"blocking reach: {many(b['candidate_pairs'], 'candidate pair')} of "
                    f"{b['possible_pairs']:,} possible (reduction ratio "
                    f"{b['reduction_ratio']:.4f})")
     for rule, k in b.get("pairs_per_rule", {}).items():
-        out.append(f"  {rule:<40} {k:>12,} pairs")
+        out.append(f"  {rule:<40} {k:>12,} {'pair' if k == 1 else 'pairs'}")
     if report.queue_order is not None:
         out.append(f"queue order: {report.queue_order['text']}")
     if report.machine_rater is not None:
@@ -93,17 +92,18 @@ def evaluation_lines(report: Evaluation, name: str) -> list[str]:
 
 def _machine_lines(report: Evaluation) -> list[str]:
     p, m = report.predictions, report.machine_rater
-    out = [f"machine rater {p['file']}: {p['candidate_pairs_given']:,} candidate pairs given "
-           f"({p['column']} column); {p['absent_count_as_non_match']:,} absent pairs count as "
-           f"predicted non-matches", f"  {p['scope']}"]
+    absent = p["absent_count_as_non_match"]
+    out = [f"machine rater {p['file']}: {many(p['candidate_pairs_given'], 'candidate pair')} "
+           f"given ({p['column']} column); {many(absent, 'absent pair')} "
+           f"{'counts' if absent == 1 else 'count'} as predicted non-matches", f"  {p['scope']}"]
     if m["kappa"] is None:
-        out.append(f"Cohen's kappa on {m['n']:,} audit pairs: undefined ({m['band']})")
+        out.append(f"Cohen's kappa on {many(m['n'], 'audit pair')}: undefined ({m['band']})")
     else:
-        out.append(f"Cohen's kappa on {m['n']:,} audit pairs, design-weighted: "
+        out.append(f"Cohen's kappa on {many(m['n'], 'audit pair')}, design-weighted: "
                    f"{interval(m['kappa'], m['ci_low'], m['ci_high'])} ({m['band']}); "
                    f"{m['scope']}")
     g = m["all_gold"]
-    out.append(f"  over all {g['n']:,} gold labels, unweighted: {number(g['kappa'])} "
+    out.append(f"  over all {many(g['n'], 'gold label')}, unweighted: {number(g['kappa'])} "
                f"({g['scope']})")
     if m["table"] is not None:
         (tp, fp), (fn, tn) = m["table"]

@@ -57,3 +57,20 @@ def ratio_text(value: float) -> str:
     while digits < 9 and round(value, digits) == 1.0 and value < 1.0:
         digits += 1
     return f"{value:.{digits}f}"
+
+
+def many(n: int, noun: str, plural: str = "") -> str:
+    """A count with its noun in agreement: "1 audit pair", "2 audit pairs", "1,500 matches"."""
+    if n == 1:
+        return f"1 {noun}"
+    if not plural:
+        plural = noun + ("es" if noun.endswith(("ch", "sh", "s", "x")) else "s")
+    return f"{n:,} {plural}"
+
+
+def labelled_text(audit: Mapping[str, Any], held: str = "") -> str:
+    """How much of a drawn sample people have labelled: "12 of 40 drawn pairs have gold labels
+    (5 matches)"; ``held`` is added inside the brackets."""
+    have = "has" if audit["labelled"] == 1 else "have"
+    return (f"{audit['labelled']:,} of {many(audit['drawn'], 'drawn pair')} {have} gold labels "
+            f"({many(audit['matches'], 'match')}{held})")

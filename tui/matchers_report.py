@@ -6,6 +6,7 @@ import argparse
 from typing import Any
 
 from .characters import visible
+from .figures import labelled_text, many
 from .terminal import json_text
 
 
@@ -57,8 +58,7 @@ HEADERS = ["matcher", "kind", "thr", "precision", "recall", "F1", "κ gold", "au
 def render(report: dict[str, Any], name: str) -> list[str]:
     a = report["audit"]
     conf = f"{report['confidence']:.0%}"
-    out = [f"{name} · matchers side by side on the audit slice: {a['labelled']:,} of "
-           f"{a['drawn']:,} drawn pairs have gold labels ({a['matches']:,} matches); "
+    out = [f"{name} · matchers side by side on the audit slice: {labelled_text(a)}; "
            f"{conf} intervals", ""]
     widths = [22, 9, 5, 24, 24, 24, 7, 6]
     out.append(" ".join(h.ljust(w) for h, w in zip(HEADERS, widths, strict=True)))
@@ -71,7 +71,7 @@ def render(report: dict[str, Any], name: str) -> list[str]:
         value = "—" if d["difference"] is None else \
             f"{d['difference']:+.3f} [{d['low']:+.3f}, {d['high']:+.3f}]"
         out.append(f"  F1 {visible(d['first'])} − {visible(d['second'])}: {value}  "
-                   f"({d['disagreeing_audit_pairs']} audit pairs split them) → "
+                   f"({many(d['disagreeing_audit_pairs'], 'audit pair')} split them) → "
                    f"{visible(d['verdict'])}")
     out.append(f"  ({report['notes']['differences']}; precision and recall differences in "
                "--json)")
@@ -85,7 +85,7 @@ def render(report: dict[str, Any], name: str) -> list[str]:
             out.append(f"  {v['note']}")
             continue
         among = v["flip_share_among_any_match"]
-        out.append(f"  answer flips on {v['flipping_pairs']:,} of {v['pairs']:,} pairs "
+        out.append(f"  answer flips on {v['flipping_pairs']:,} of {many(v['pairs'], 'pair')} "
                    f"({v['flip_share']:.2%}); among pairs any variant calls a match: "
                    + ("—" if among is None else f"{among:.1%}"))
         fk = v["fleiss_kappa"]
@@ -107,7 +107,7 @@ def _share(s: dict[str, Any]) -> str:
 
 def distillation_lines(d: dict[str, Any]) -> list[str]:
     scope = "every candidate pair" if d["census"] else \
-        f"the {d['pairs_both_scored']:,} pairs both scored"
+        f"the {many(d['pairs_both_scored'], 'pair')} both scored"
     return [f"distillation: student {visible(d['student'])} against teacher "
             f"{visible(d['teacher'])}, over {scope}",
             f"  agreement {_share(d['agreement'])}",

@@ -8,7 +8,7 @@ import math
 from docket.core import MODEL_NAMES, factor_text, odds_text
 from docket.core.results import StatusReport
 
-from .figures import ratio_text
+from .figures import many, ratio_text
 from .terminal import shown
 
 
@@ -17,7 +17,8 @@ def status_lines(info: StatusReport) -> list[str]:
     out = [f"{info.name} · {info.mode} mode · {info.project}",
            f"records      left {rec['left']:,}" + (f", right {rec['right']:,}"
                                                      if info.mode == "link" else ""),
-           f"pairs        {pairs['candidates']:,} candidates, {pairs['open']:,} still queued, "
+           f"pairs        {many(pairs['candidates'], 'candidate')}, {pairs['open']:,} still "
+           "queued, "
            f"audit slice {pairs['audit']:,}, overlap {pairs['overlap']:,}"]
     if info.sampling:
         s = info.sampling
@@ -27,9 +28,10 @@ def status_lines(info: StatusReport) -> list[str]:
                    f"{strata}; estimates weigh to all pairs")
     out.append(f"blocking     {'; '.join(info.blocking['rules'])} "
                f"(reduction ratio {ratio_text(info.blocking['reduction_ratio'])})")
-    out.append(f"decisions    {dec['current_labels']:,} standing labels on "
-               f"{dec['pairs_decided']:,} pairs ({dec['log_entries']:,} log entries, "
-               f"{dec['retractions']:,} retractions)")
+    out.append(f"decisions    {many(dec['current_labels'], 'standing label')} on "
+               f"{many(dec['pairs_decided'], 'pair')} "
+               f"({many(dec['log_entries'], 'log entry', 'log entries')}, "
+               f"{many(dec['retractions'], 'retraction')})")
     for name, c in dec["per_reviewer"].items():
         counts = ", ".join(f"{k} {v:,}" for k, v in c.items() if k != "role")
         out.append(f"  {shown(name):<16} {c['role']:<12} {counts}")
@@ -47,12 +49,12 @@ def status_lines(info: StatusReport) -> list[str]:
         out.append(f"  {f['field']:<14} {levels}")
     pol = info.gold_policy
     out.append(f"gold labels  {info.gold_labels:,} (policy: at least {pol['min_reviews']} "
-               f"review(s); {pol['rules']})")
+               f"{'review' if pol['min_reviews'] == 1 else 'reviews'}; {pol['rules']})")
     m = info.missed_matches
     if m["count"]:
         out.append(f"missed       true matches outside the candidates: {m['count']:,} (docket "
                    f"missed); the candidates hold {m['reach']:.1%} of the "
-                   f"{m['gold_matches'] + m['count']:,} matches known")
+                   f"{many(m['gold_matches'] + m['count'], 'match')} known")
     if info.matchers:
         from .cli_matchers import table_lines
         out.append(f"matchers     {len(info.matchers)} stored (docket evaluate --matchers)")

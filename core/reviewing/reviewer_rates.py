@@ -166,7 +166,8 @@ def reviewer_rates(labels: Mapping[str, Mapping[int, str]], include_hold: bool,
         float(theta[pos[name], 1, 2]) if include_hold else None) for name in raters)
     warning = ""
     if multi < FEW_MULTI:
-        warning = (f"only {multi} pairs carry two or more labels: the rates rest mostly on the "
+        carry = "1 pair carries" if multi == 1 else f"{multi} pairs carry"
+        warning = (f"only {carry} two or more labels: the rates rest mostly on the "
                    "model's assumption that reviewers err independently")
     return RatesSummary(True, "", len(units), multi, fit.iterations, fit.converged,
                         fit.priors["match"], rows, warning, method,

@@ -15,6 +15,7 @@ from docket.core.errors import DocketError
 from docket.core.project import Project
 
 from ..diff import Palette
+from ..figures import many
 from ..navigation import Mode
 from ..widgets.reviews import ConflictInfo
 
@@ -140,11 +141,15 @@ class AdjudicationQueue:
         settled = ("Nothing waits for adjudication: every disagreement, hold and cluster "
                    "conflict is settled.")
         if self.for_others:
-            settled = (f"Nothing more for you: {self.for_others:,} waiting pair(s) you decided "
-                       "as a reviewer are left to another adjudicator (the project's policy).")
+            are = "is" if self.for_others == 1 else "are"
+            settled = (f"Nothing more for you: {many(self.for_others, 'waiting pair')} you "
+                       f"decided as a reviewer {are} left to another adjudicator (the project's "
+                       "policy).")
         if self.claimed or self.queue:  # what is left waits on others' screens
-            settled += (f" {self.claimed + len(self.queue or ()):,} waiting pair(s) are on "
-                        "another adjudicator's screen; they come back here if left.")
+            left = self.claimed + len(self.queue or ())
+            settled += (f" {many(left, 'waiting pair')} {'is' if left == 1 else 'are'} on "
+                        "another adjudicator's screen; "
+                        f"{'it comes' if left == 1 else 'they come'} back here if left.")
         return Text(
             f"{settled}\n\nWhat next: [ looks back at your adjudications; a shows how far the "
             "reviewers agree; g shows the model's quality; q quits. New pairs arrive here as "

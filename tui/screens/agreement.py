@@ -22,6 +22,7 @@ from docket.core.results import AgreementReport
 
 from .. import literal
 from ..diff import PLAIN, Palette
+from ..figures import many
 from ..widgets.key_bar import KeyBar
 from ..widgets.reviews import blind_aliases, label_style
 from .agreement_text import NAME_WIDTH, cell_text, detail_text, overall_text
@@ -120,8 +121,8 @@ class AgreementScreen(TeamScreen):
             for col in names:
                 if col == row:
                     given = report.reviewers[row]
-                    cells.append(Text(f"{given['labels']:,} labels\n{given['holds']:,} holds",
-                                      p.muted))
+                    cells.append(Text(f"{many(given['labels'], 'label')}\n"
+                                      f"{many(given['holds'], 'hold')}", p.muted))
                 else:
                     cells.append(cell_text(self.entries.get((row, col)), p))
             table.add_row(*cells, height=2, key=row,

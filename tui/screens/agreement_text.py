@@ -13,7 +13,7 @@ from docket.core.results import AgreementReport
 
 from .. import literal
 from ..diff import PLAIN, Palette
-from ..figures import TOO_FEW, counted, interval, number, percent
+from ..figures import TOO_FEW, counted, interval, many, number, percent
 
 NAME_WIDTH = 18
 
@@ -44,7 +44,7 @@ def detail_text(entry: dict[str, Any], shown: dict[str, str], palette: Palette =
     text = literal.one_line(a, NAME_WIDTH, p.escape)
     text.append(" × ")
     text.append_text(literal.one_line(b, NAME_WIDTH, p.escape))
-    text.append(f": {entry['n']:,} pairs used of {entry['n_common']:,} in common\n", p.muted)
+    text.append(f": {many(entry['n'], 'pair')} used of {entry['n_common']:,} in common\n", p.muted)
     text.append("Cohen's kappa ", p.muted)
     if entry["too_few"]:
         text.append(f"{TOO_FEW} (n {entry['n']:,})\n", p.heading)

@@ -21,6 +21,7 @@ from docket.core.project import Project
 
 from ..characters import visible
 from ..diff import PLAIN, Palette
+from ..figures import many
 from ..masking import Mask, masked
 from .pair_detail import PairDetailScreen
 from .team_base import TeamScreen
@@ -108,8 +109,8 @@ class MatcherFailuresScreen(TeamScreen):
         p, mask = self.palette, self.team_app.mask
         total = sum(len(g.failures) for g in listed.groups)
         head = Text(f"where {visible(self.matcher)} fails · ", "bold")
-        head.append(f"{total:,} gold-labelled pairs it gets wrong, in {len(listed.groups)} "
-                    "groups by the fields that differ" if total else
+        head.append(f"{many(total, 'gold-labelled pair')} it gets wrong, in "
+                    f"{many(len(listed.groups), 'group')} by the fields that differ" if total else
                     "no gold-labelled pair disagrees with it")
         self.query_one("#failures-head", Static).update(head)
         table = self.query_one("#failures-table", DataTable)

@@ -21,6 +21,7 @@ from docket.core.errors import DocketError
 
 from ..characters import visible
 from ..diff import PLAIN, Palette
+from ..figures import labelled_text
 from ..matchers_report import HEADERS, distillation_lines, matcher_rows
 from .team_base import TeamScreen
 
@@ -99,8 +100,7 @@ class MatchersScreen(TeamScreen):
         p = self.palette
         a = report["audit"]
         head = Text(f"matchers · {self.team_app.project_name} · ", "bold")
-        head.append(f"audit slice: {a['labelled']:,} of {a['drawn']:,} drawn pairs have gold "
-                    f"labels ({a['matches']:,} matches); {report['confidence']:.0%} intervals")
+        head.append(f"audit slice: {labelled_text(a)}; {report['confidence']:.0%} intervals")
         self.query_one("#matchers-head", Static).update(head)
         table = self.query_one("#matchers-table", DataTable)
         table.clear(columns=True)

@@ -22,6 +22,7 @@ from textual_plotext import PlotextPlot
 
 from .. import literal
 from ..diff import PLAIN, Palette
+from ..figures import labelled_text, many
 from ..widgets.key_bar import KeyBar
 from .conflict import ConflictScreen
 from .quality_data import QualityData, load_quality
@@ -114,8 +115,7 @@ class QualityScreen(TeamScreen):
             head.append(f"no estimates yet: {data.problem}", p.heading)
         else:
             a = data.report.audit
-            head.append(f"from the audit slice: {a['labelled']:,} of {a['drawn']:,} drawn pairs "
-                        f"have gold labels ({a['matches']:,} matches); "
+            head.append(f"from the audit slice: {labelled_text(a)}; "
                         f"{data.report.confidence:.0%} intervals")
         self.query_one("#quality-head", Static).update(head)
         self._table(data)
@@ -183,12 +183,12 @@ class QualityScreen(TeamScreen):
         if data.cluster_problem:
             summary.append(data.cluster_problem, p.heading)
         else:
-            summary.append(f"{data.clusters:,} clusters of two or more records hold "
+            hold = "holds" if data.clusters == 1 else "hold"
+            summary.append(f"{many(data.clusters, 'cluster')} of two or more records {hold} "
                            f"{data.clustered:,} records (largest {data.largest:,}), from the "
                            "gold matches. ")
             if data.conflicts:
-                summary.append(f"{len(data.conflicts):,} conflict"
-                               f"{'s' if len(data.conflicts) != 1 else ''}: a chain of gold "
+                summary.append(f"{many(len(data.conflicts), 'conflict')}: a chain of gold "
                                "matches joins two records that a gold non-match keeps apart. "
                                "They wait in the adjudication queue. Enter shows the members.",
                                p.heading)

@@ -15,7 +15,7 @@ from docket.core import DEFAULT_THRESHOLDS
 from docket.core.results import Evaluation
 
 from ..diff import PLAIN, Palette
-from ..figures import bounds
+from ..figures import bounds, many
 
 NARROW_BELOW = 110  # screen widths below this get the narrow threshold table
 WIDE_LABELS = ("", "threshold", "precision [95 % CI]", "recall [95 % CI]", "F1 [95 % CI]",
@@ -79,9 +79,9 @@ def notes_text(report: Evaluation, palette: Palette = PLAIN) -> Text:
     at, naive = report.at_threshold, report.naive_at_threshold
     text = Text(f"* the project's decision threshold, {report.threshold:g}. Intervals: "
                 f"{at['precision']['method']} for precision, recall and F1. Predicted: "
-                f"matches predicted among {at['n_pairs']:,} candidate pairs.\n", p.muted)
+                f"matches predicted among {many(at['n_pairs'], 'candidate pair')}.\n", p.muted)
     if at.get("held"):
-        text.append(f"{at['held']:,} held audit pairs, all wrong … all right: precision "
+        text.append(f"{many(at['held'], 'held audit pair')}, all wrong … all right: precision "
                     f"{bounds(at['precision_bounds'])}, recall {bounds(at['recall_bounds'])}, "
                     f"F1 {bounds(at['f1_bounds'])}: these bounds are what the labels vouch "
                     "for; adjudicate the holds to narrow them\n", p.heading)
@@ -100,7 +100,7 @@ def notes_text(report: Evaluation, palette: Palette = PLAIN) -> Text:
     text.append(scope["note"].capitalize() + ".", p.heading)
     b = scope["blocking"]
     if b.get("candidate_pairs") is not None:
-        text.append(f" Blocking reach: {b['candidate_pairs']:,} candidate pairs of "
+        text.append(f" Blocking reach: {many(b['candidate_pairs'], 'candidate pair')} of "
                     f"{b['possible_pairs']:,} possible (reduction ratio "
                     f"{b['reduction_ratio']:.4f}).", p.muted)
     for note in (n for n in at["note"].split("; ") if n):
