@@ -1,4 +1,4 @@
-"""Pair ids read as text: the one-pass Arrow check gives what the per-id rule gives."""
+"""Pair ids read as text and looked up in Arrow give what the per-id rule and pandas give."""
 
 from __future__ import annotations
 
@@ -8,7 +8,7 @@ import pyarrow as pa
 from hypothesis import given
 from hypothesis import strategies as st
 
-from docket.core.pairs.pair_files import _id_text, _text
+from docket.core.pairs.pair_files import _id_text, _lookup, _text
 
 TRICKY = ["a1", "A", "0", " b", "b ", "", " ", "\t", "\x1c", "\x85", "\u00a0x", "\u3000",
           "é", "_x", "-1", None, np.nan, "Zz9", "\u2028"]
@@ -39,3 +39,11 @@ def test_any_text_ids_are_read_as_the_rule_reads_them(values: list) -> None:
 def test_mixed_values_fall_back_to_the_rule() -> None:
     values = ["x", 3, None, " "]
     assert _read(_text(pd.Series(values, dtype=object))) == ["x", "3", None, None]
+
+
+@given(st.lists(st.text(max_size=3), unique=True, max_size=20),
+       st.lists(st.text(max_size=3), max_size=30))
+def test_ids_are_found_where_pandas_finds_them(records: list, ids: list) -> None:
+    index = pd.Index(records, dtype=object)
+    wanted = pd.Series(ids, dtype=object)
+    assert _lookup(index, wanted).tolist() == index.get_indexer(wanted.to_numpy()).tolist()
