@@ -28,9 +28,9 @@ import pandas as pd
 
 from ..errors import DocketError
 from ..ordering import queue
-from ..reviewing.gold import gold_labels, standing
 from ..storage import store
 from ..storage.project_file import ProjectFile
+from .audit_data import gold_y, held_pairs
 from .audit_sample import AuditSample
 from .predictions_file import read_predictions
 from .union_design import UnionDesign, union_sample
@@ -143,9 +143,8 @@ def supplement_sample(project: ProjectFile, scores: pd.Series, path: str | Path
                               project.connection)
     drawn = pd.read_sql_query(f"SELECT pair_id FROM {TABLE} WHERE fingerprint = ?",
                               project.connection, params=(key,))["pair_id"]
-    gold = {g.pair_id: int(g.label == "match") for g in gold_labels(project.connection)}
-    held = {pid for pid, e in standing(project.connection).items() if pid not in gold and
-            "hold" in (*e.reviewers.values(), *e.adjudicators.values())}
+    gold = gold_y(project)
+    held = held_pairs(project, gold)
     ids = every["pair_id"]
     in_supplement = ids.isin(drawn).to_numpy()
     label = ids.map(gold).to_numpy(dtype=float)
