@@ -104,6 +104,10 @@ NORMALISERS: dict[str, Callable[[str], object]] = {
 
 def per_distinct(values: pd.Series | list, func: Callable[[str], object]) -> np.ndarray:
     """Apply ``func`` to each distinct non-missing value once; missing stays None."""
+    from .normalise_arrow import apply  # Arrow over many values where it is the same answer
+
     codes, uniques = pd.factorize(pd.Series(values, dtype=object), use_na_sentinel=True)
-    done = np.array([func(u) for u in uniques] + [None], dtype=object)
+    uniques = np.asarray(uniques, dtype=object)
+    many = apply(uniques, func)
+    done = np.array([*(many if many is not None else map(func, uniques)), None], dtype=object)
     return done[codes]  # code -1 (missing) picks the trailing None

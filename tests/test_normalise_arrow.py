@@ -1,0 +1,45 @@
+"""The Arrow path of normalising gives what each value's own normaliser gives."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from docket.core.records import normalise
+from docket.core.records.normalise_arrow import apply
+from tests.conftest import SAMPLE
+
+ASCII = st.text(st.sampled_from(list("aZ09_ -./()+&;@,\t\n\x0b\x0c\r\x1c\x1f'")), max_size=14)
+ANY = st.one_of(ASCII, st.text(max_size=8), st.sampled_from(["Zoë Ångström", "&amp;Co", "１２３"]))
+FUNCS = (normalise.words, normalise.name, normalise.code)
+
+
+@settings(max_examples=80, deadline=None)
+@given(st.lists(ANY, min_size=1, max_size=25, unique=True))
+def test_arrow_path_matches_each_value(values: list[str]) -> None:
+    uniques = np.array(values, dtype=object)
+    for func in FUNCS:
+        assert apply(uniques, func) == [func(v) for v in values], func.__name__
+
+
+def test_phone_like_codes_keep_their_last_nine_digits() -> None:
+    values = np.array(["+44 20 7946 0958", "020-7946-0958", "123456", "12 34 567", "AB1 2CD"],
+                      dtype=object)
+    got = apply(values, normalise.code)
+    assert got == [normalise.code(v) for v in values]
+    assert got[:4] == ["079460958", "079460958", "123456", "1234567"]  # worked by hand
+
+
+def test_sample_values_normalise_alike() -> None:
+    frame = pd.read_csv(SAMPLE / "practice_north.csv", dtype=str, keep_default_na=False)
+    for col in frame.columns:
+        uniques = np.array(frame[col].unique(), dtype=object)
+        for func in FUNCS:
+            assert apply(uniques, func) == [func(v) for v in uniques], (col, func.__name__)
+
+
+def test_other_normalisers_and_mixed_values_take_the_value_path() -> None:
+    assert apply(np.array(["2020-01-02"], dtype=object), normalise.date) is None
+    assert apply(np.array(["a", 1], dtype=object), normalise.words) is None
