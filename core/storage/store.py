@@ -77,10 +77,10 @@ SCHEMA_V2 = (
 )
 
 # Indexes built after the bulk load: building once is faster than maintaining during inserts.
+# Lookups by left id use pairs_ids (left_id leads it), so left_id has no index of its own.
 PAIR_INDEXES = """
 CREATE INDEX pairs_queue ON pairs(pattern_id, open, audit);
 CREATE INDEX pairs_audit ON pairs(audit, open, audit_order);
-CREATE INDEX pairs_left ON pairs(left_id);
 CREATE INDEX pairs_right ON pairs(right_id);
 CREATE UNIQUE INDEX pairs_ids ON pairs(left_id, right_id);
 """

@@ -35,6 +35,10 @@ def write_records(conn: sqlite3.Connection, table: str, frame: Any, id_column: s
 def rounded_rows(s: np.ndarray) -> list[list[float | None]]:
     """Each value as Python's round(v, 4) gives it, missing as None, without a Python call per
     value (that loop was a fifth of a million-pair build)."""
+    return _rounded(s).tolist()
+
+
+def _rounded(s: np.ndarray) -> np.ndarray:
     r = np.round(s, 4)  # rint(v * 1e4) / 1e4: Python's value except next to a half
     scaled = s * 1e4
     near_half = np.abs(scaled - np.floor(scaled) - 0.5) < 1e-6
@@ -42,7 +46,7 @@ def rounded_rows(s: np.ndarray) -> list[list[float | None]]:
         r[i, j] = round(float(s[i, j]), 4)
     out = r.astype(object)
     out[np.isnan(s)] = None
-    return out.tolist()
+    return out
 
 
 def write_model(conn: sqlite3.Connection, model: FSModel) -> None:
@@ -93,17 +97,18 @@ def write_project(conn: sqlite3.Connection, *, spec: Any, left: Any, right: Any,
     n = len(order)
     for start in range(0, n, BATCH):
         ix = order[start:start + BATCH]
-        s = sims[ix].astype(float)
-        s_rows = rounded_rows(s)
-        cols = zip(pair_ids[ix].tolist(), lid[li[ix]].tolist(), rid[ri[ix]].tolist(),
+        rounded = _rounded(sims[ix].astype(float))
+        audit_order = audit.order[ix].astype(object)
+        audit_order[audit.order[ix] < 0] = None
+        # whole columns zipped into rows: no Python frame per pair between them and SQLite
+        columns = [pair_ids[ix].tolist(), lid[li[ix]].tolist(), rid[ri[ix]].tolist(),
                    pattern_ix[ix].tolist(), rules[rule_ix[ix]].tolist(),
                    overlap[ix].astype(int).tolist(),
                    np.where(overlap[ix], spec.overlap_reviewers, 1).astype(int).tolist(),
-                   audit.selected[ix].astype(int).tolist(), audit.stratum[ix].tolist(),
-                   audit.inclusion[ix].tolist(), audit.order[ix].tolist(), s_rows, strict=True)
-        conn.executemany(sql, ((p, a, b, pat, rule, ov, need, 0, 1, au, st, inc,
-                                None if o < 0 else o, *srow)
-                               for p, a, b, pat, rule, ov, need, au, st, inc, o, srow in cols))
+                   [0] * len(ix), [1] * len(ix), audit.selected[ix].astype(int).tolist(),
+                   audit.stratum[ix].tolist(), audit.inclusion[ix].tolist(),
+                   audit_order.tolist(), *(rounded[:, j].tolist() for j in range(len(fields)))]
+        conn.executemany(sql, zip(*columns, strict=True))
         step("writing pairs", min(n, start + BATCH), n)
     store.set_meta(
         conn,
