@@ -65,6 +65,14 @@ def test_bad_left_table(case: str, tmp_path: Path, capsys) -> None:
     assert [p.name for p in tmp_path.iterdir() if "docket" in p.name] == []
 
 
+def test_an_id_column_with_repeats_is_named_without_id(tmp_path: Path, capsys) -> None:
+    # no --id: the id-like column is still the one the message is about, with its rows
+    bad = write(tmp_path / "dup.csv", "id,name\n1,a\n1,b\n2,c\n")
+    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(bad))
+    assert_one_line_error(code, err, "dup.csv", "column 'id' has duplicate ids", "rows 2, 3")
+    assert not (tmp_path / "p.docket").exists()
+
+
 def test_no_columns_in_common(tmp_path: Path, good: Path, capsys) -> None:
     other = write(tmp_path / "other.csv", "id,colour\n9,red\n")
     code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(good),

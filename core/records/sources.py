@@ -133,7 +133,8 @@ def load_table(path: str | Path, id_column: str | None) -> Table:
     if len(frame) == 0:
         raise DocketError(f"{path}: the table has no records; give a file with at least one row")
     if id_column is None:
-        id_column = guess_id_column(frame)
+        # an id-like column with gaps or repeats is still the id: say what is wrong with it
+        id_column = guess_id_column(frame) or next(iter(id_like(frame)), None)
         if id_column is None:
             raise DocketError(f"{path}: no id column given and none found; "
                               f"pass --id COLUMN (columns: {', '.join(frame.columns)})")
@@ -149,9 +150,11 @@ def load_table(path: str | Path, id_column: str | None) -> Table:
     dup = ids[ids.duplicated(keep=False)]
     if len(dup):
         first = list(dict.fromkeys(dup.tolist()))[:5]
+        rows = [str(i + 2) for i in np.flatnonzero((ids == first[0]).to_numpy())[:3]]
         raise DocketError(f"{path}: column '{id_column}' has duplicate ids "
-                          f"({', '.join(map(str, first))}{'…' if dup.nunique() > 5 else ''}); "
-                          "ids must be unique")
+                          f"({', '.join(map(str, first))}{'…' if dup.nunique() > 5 else ''}; "
+                          f"'{first[0]}' on rows {', '.join(rows)}, counting the header as row 1)"
+                          "; ids must be unique")
     _check_edge_spaces(path, id_column, ids)
     frame = frame.set_index(id_column, drop=True)
     frame.index = frame.index.astype(str)
@@ -176,12 +179,15 @@ def _check_edge_spaces(path: Path, id_column: str, ids: pd.Series) -> None:
                           "each record has one id")
 
 
+def id_like(frame: pd.DataFrame) -> list[str]:
+    """Columns named like an id, in file order."""
+    return [c for c in frame.columns if c.lower() in ("id", "ref", "key", "record_id", "uid")
+            or c.lower().endswith(("_id", "_ref", "_key"))]
+
+
 def guess_id_column(frame: pd.DataFrame) -> str | None:
     """A column named like an id whose values are all present and unique."""
-    names = [c for c in frame.columns
-             if c.lower() in ("id", "ref", "key", "record_id", "uid")
-             or c.lower().endswith(("_id", "_ref", "_key"))]
-    for c in names:
+    for c in id_like(frame):
         s = frame[c]
         if s.notna().all() and s.is_unique:
             return c
