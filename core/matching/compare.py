@@ -42,7 +42,6 @@ def _bands(cuts: tuple[float, ...]) -> tuple[str, ...]:
 
 # Fine bands keep most of the ranking a continuous similarity holds: the model weighs each band
 # on its own (kept in order), so a pair at 0.93 is not lumped with one at 0.71.
-NAME_CUTS = (0.97, 0.94, 0.90, 0.85, 0.80, 0.70)
 LONG_CUTS = (0.90, 0.80, 0.70, 0.60, 0.50, 0.40, 0.30)
 KINDS: dict[str, KindRule] = {
     "name": KindRule(("exact", "close", "similar", "different"), (0.92, 0.80)),
