@@ -1,8 +1,6 @@
 """The adjudication screen claims the pair it shows: two adjudicators at work together are
 never shown one pair, and the claim ends on deciding and on quitting."""
 
-# ruff: noqa: F811 - pytest fixtures imported from screens_support arrive as arguments
-
 from __future__ import annotations
 
 import sqlite3
@@ -14,13 +12,7 @@ from docket.core.reviewing import adjudication
 from docket.core.reviewing.team import add_reviewer
 from docket.tui.screens.adjudicate import AdjudicateScreen
 from tests.fixtures_review import pilot_test
-from tests.screens_support import (  # noqa: F401 - fixtures are used by name
-    decide,
-    settle,
-    team,
-    team_app,
-    team_master,
-)
+from tests.screens_support import decide, settle
 
 SIZE = (120, 40)
 

@@ -1,7 +1,5 @@
 """Pilot tests of the adjudication screen on a small team project (see screens_support)."""
 
-# ruff: noqa: F811 - pytest fixtures imported from screens_support arrive as arguments
-
 from __future__ import annotations
 
 import sqlite3
@@ -20,14 +18,7 @@ from docket.tui.screens.reason import ReasonScreen
 from docket.tui.screens.team_help import TeamHelp
 from docket.tui.widgets.reviews import ReviewsPanel
 from tests.fixtures_review import pilot_test, screen_text
-from tests.screens_support import (  # noqa: F401 - fixtures are used by name
-    decide,
-    press,
-    settle,
-    team,
-    team_app,
-    team_master,
-)
+from tests.screens_support import decide, press, settle
 
 SIZE = (120, 40)
 

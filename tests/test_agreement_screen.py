@@ -1,7 +1,5 @@
 """Pilot tests of the agreement screen: the kappa matrix, holds, disagreements, blind names."""
 
-# ruff: noqa: F811 - pytest fixtures imported from screens_support arrive as arguments
-
 from __future__ import annotations
 
 from docket.core import Project
@@ -10,15 +8,7 @@ from docket.tui.screens.agreement import AgreementScreen, DisagreementsScreen, c
 from docket.tui.screens.pair_detail import PairDetailScreen
 from docket.tui.widgets.reviews import ReviewsPanel
 from tests.fixtures_review import pilot_test, screen_text
-from tests.screens_support import (  # noqa: F401 - fixtures are used by name
-    FLIPPED,
-    HELD,
-    press,
-    settle,
-    team,
-    team_app,
-    team_master,
-)
+from tests.screens_support import FLIPPED, HELD, press, settle
 
 SIZE = (120, 40)
 

@@ -2,7 +2,6 @@
 
 Golden files live in tests/golden/ (see ``tests/gold_fixtures.py`` to rewrite them).
 """
-# ruff: noqa: F811 - pytest fixtures imported from gold_fixtures arrive as arguments
 
 from __future__ import annotations
 
@@ -18,13 +17,7 @@ import pytest
 from docket.core import NewProject, Project
 from docket.core.exports import gold_export as ge
 from docket.core.exports.exporting import write_frame
-from tests.gold_fixtures import (  # noqa: F401 - fixtures are used by name
-    check_golden,
-    pair_ids,
-    plain,
-    tiny,
-    tiny_file,
-)
+from tests.gold_fixtures import check_golden, pair_ids, plain
 
 
 # -- gold -------------------------------------------------------------------------------------

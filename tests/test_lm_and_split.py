@@ -1,5 +1,4 @@
 """Pairs for a language model (--for-lm, --lm-template) and the train/test split."""
-# ruff: noqa: F811 - pytest fixtures imported from gold_fixtures arrive as arguments
 
 from __future__ import annotations
 
@@ -18,12 +17,7 @@ from docket.core.exports import gold_export as ge
 from docket.core.exports.lm_export import lm_records
 from docket.core.exports.lm_text import DEFAULT_TEMPLATE, LmTemplate
 from docket.core.exports.split import record_split
-from tests.gold_fixtures import (  # noqa: F401 - fixtures are used by name
-    check_golden,
-    pair_ids,
-    tiny,
-    tiny_file,
-)
+from tests.gold_fixtures import check_golden, pair_ids
 
 
 def test_for_lm_golden_and_serialisation(tiny: Project, tmp_path: Path) -> None:

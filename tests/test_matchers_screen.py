@@ -1,7 +1,5 @@
 """Pilot tests of the matchers screen and of the pairs where a matcher fails."""
 
-# ruff: noqa: F811 - pytest fixtures imported from screens_support arrive as arguments
-
 from __future__ import annotations
 
 from pathlib import Path
@@ -23,7 +21,7 @@ from tests.matchers_support import (
     is_match,
     label_file,
 )
-from tests.screens_support import press, settle, team_app  # noqa: F401 - fixtures by name
+from tests.screens_support import press, settle
 
 SIZE = (120, 40)
 

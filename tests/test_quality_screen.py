@@ -1,7 +1,5 @@
 """Pilot tests of the quality screen: threshold table, plots, clusters and a conflict."""
 
-# ruff: noqa: F811 - pytest fixtures imported from screens_support arrive as arguments
-
 from __future__ import annotations
 
 from docket.core import Project
@@ -11,13 +9,7 @@ from docket.tui.screens.conflict import ConflictScreen
 from docket.tui.screens.pair_detail import PairDetailScreen
 from docket.tui.screens.quality import QualityScreen
 from tests.fixtures_review import pilot_test, screen_text
-from tests.screens_support import (  # noqa: F401 - fixtures are used by name
-    press,
-    settle,
-    team,
-    team_app,
-    team_master,
-)
+from tests.screens_support import press, settle
 
 SIZE = (120, 40)
 

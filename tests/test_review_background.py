@@ -1,25 +1,17 @@
 """Pilot tests for the review screen's background work, against the sample project: a refit
 runs in a worker, the pair stays on screen, and keys keep working while it runs."""
 
-# ruff: noqa: F811 - pytest fixtures imported from fixtures_review arrive as arguments
-
 from __future__ import annotations
 
 import threading
 
-from tests.fixtures_review import (  # noqa: F401 - fixtures are used by name
+from tests.fixtures_review import (
     SIZE,
-    FrozenClock,
-    frozen_clock,
     log,
     pilot_test,
     press,
     review,
-    review_app,
-    review_sample,
-    review_sample_master,
     rows,
-    screen_text,
     settle,
 )
 

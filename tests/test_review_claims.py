@@ -1,8 +1,6 @@
 """The review screen claims each pair it serves, gives it back on decide and on quit, and
 goes on when a background refit fails."""
 
-# ruff: noqa: F811 - pytest fixtures imported from fixtures_review arrive as arguments
-
 from __future__ import annotations
 
 import sqlite3
@@ -10,14 +8,7 @@ from pathlib import Path
 
 from docket.core import Project
 from docket.tui.screens import ReviewScreen
-from tests.fixtures_review import (  # noqa: F401 - fixtures are used by name
-    frozen_clock,
-    pilot_test,
-    review_app,
-    review_sample,
-    review_sample_master,
-    settle,
-)
+from tests.fixtures_review import pilot_test, settle
 
 SIZE = (120, 40)
 

@@ -6,8 +6,6 @@ SIGKILL, mid-session, with the background refit possibly running (K = 25 is the 
 point). Reopening must show exactly K decisions, an intact file, and the queue resumed.
 """
 
-# ruff: noqa: F811 - pytest fixtures imported from fixtures_review arrive as arguments
-
 from __future__ import annotations
 
 import os
@@ -22,10 +20,6 @@ from pathlib import Path
 import pytest
 
 from docket.core import Project
-from tests.fixtures_review import (  # noqa: F401 - fixtures are used by name
-    review_sample,
-    review_sample_master,
-)
 
 DRIVER = Path(__file__).with_name("review_driver.py")
 REPO = Path(__file__).resolve().parents[1]

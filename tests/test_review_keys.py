@@ -2,8 +2,6 @@
 help, keymaps and layout. The background refit is in test_review_background.py, moving around
 (history, find, other candidates) in test_review_moves.py."""
 
-# ruff: noqa: F811 - pytest fixtures imported from fixtures_review arrive as arguments
-
 from __future__ import annotations
 
 from pathlib import Path
@@ -11,17 +9,13 @@ from pathlib import Path
 from docket.core import Project
 from docket.tui.keymap import keymap_path, load_keymap
 from docket.tui.screens import HelpScreen, NoteScreen, ReviewScreen
-from tests.fixtures_review import (  # noqa: F401 - fixtures are used by name
+from tests.fixtures_review import (
     SIZE,
     FrozenClock,
-    frozen_clock,
     log,
     pilot_test,
     press,
     review,
-    review_app,
-    review_sample,
-    review_sample_master,
     rows,
     screen_text,
     settle,

@@ -3,8 +3,6 @@
 Also the character highlights (rapidfuzz opcodes) and masking, with hypothesis invariants.
 """
 
-# ruff: noqa: F811 - pytest fixtures imported from fixtures_review arrive as arguments
-
 from __future__ import annotations
 
 import io
@@ -18,17 +16,7 @@ from docket.tui import literal
 from docket.tui.diff import PLAIN, Palette, differing, paired, render
 from docket.tui.masking import MASK_CHAR, Mask, mask_flags, masked, parse_mask
 from docket.tui.widgets import KeyBar, PairCardView, StatusLine
-from tests.fixtures_review import (  # noqa: F401 - fixtures are used by name
-    BIG,
-    copy_project,
-    frozen_clock,
-    pilot_test,
-    review_app,
-    review_hostile_master,
-    review_sample,
-    review_sample_master,
-    screen_text,
-)
+from tests.fixtures_review import BIG, copy_project, pilot_test, screen_text
 
 HOSTILE = ["[bold red]x[/]", "[link=https://example.org]y[/]", "\x1b[2J", "\u202e", "\x00",
            "a\u2066b\u2069c", "\x9b31m", "tab\there", "line\nbreak", "\u200bzero"]

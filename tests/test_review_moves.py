@@ -2,23 +2,16 @@
 through history (changing a past decision), find by pair id or by text, and another record's
 candidates; deciding a pair opened aside returns to the queue."""
 
-# ruff: noqa: F811 - pytest fixtures imported from fixtures_review arrive as arguments
-
 from __future__ import annotations
 
 from docket.core import Project
 from docket.tui.screens import PairPicker
-from tests.fixtures_review import (  # noqa: F401 - fixtures are used by name
+from tests.fixtures_review import (
     SIZE,
-    FrozenClock,
-    frozen_clock,
     log,
     pilot_test,
     press,
     review,
-    review_app,
-    review_sample,
-    review_sample_master,
     rows,
     screen_text,
     settle,

@@ -6,18 +6,7 @@ Regenerate after an intended change with ``pytest tests/test_review_snapshots.py
 --snapshot-update`` and look at the pictures before committing them.
 """
 
-# ruff: noqa: F811 - pytest fixtures imported from fixtures_review arrive as arguments
-
 from __future__ import annotations
-
-from tests.fixtures_review import (  # noqa: F401 - fixtures are used by name
-    frozen_clock,
-    review_app,
-    review_hostile,
-    review_hostile_master,
-    review_sample,
-    review_sample_master,
-)
 
 
 async def _settled(pilot) -> None:

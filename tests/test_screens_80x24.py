@@ -3,28 +3,13 @@ tables keep their columns. Snapshots of the adjudication, agreement and quality 
 this size sit beside the review screen's (``test_review_snapshots``).
 """
 
-# ruff: noqa: F811 - pytest fixtures imported from the support modules arrive as arguments
-
 from __future__ import annotations
 
 from textual.containers import VerticalScroll
 
 from docket.tui.widgets import KeyBar
-from tests.fixtures_review import (  # noqa: F401 - fixtures are used by name
-    frozen_clock,
-    pilot_test,
-    review_app,
-    review_sample,
-    review_sample_master,
-    screen_text,
-)
-from tests.screens_support import (  # noqa: F401 - fixtures are used by name
-    press,
-    settle,
-    team,
-    team_app,
-    team_master,
-)
+from tests.fixtures_review import pilot_test, screen_text
+from tests.screens_support import press, settle
 
 SMALL = (80, 24)
 
