@@ -79,8 +79,8 @@ def main() -> None:
     outside = pop.matchers["outside (title)"]
     for first in (None, 200):
         cov = union_coverage(pop.truth, pop.strata_score, outside, range(runs), THRESHOLDS, first)
-        print(f"\nslice and supplement together, {'every' if first is None else first} "
-              "drawn pair(s) of each labelled")
+        print("\nslice and supplement together, " + ("every drawn pair labelled" if first is None
+              else f"the first {first} drawn pairs of each labelled"))
         for t in THRESHOLDS:
             row = "  ".join(f"{m} {cov[(t, m)][0]:.3f} (width {cov[(t, m)][1]:.3f})"
                             for m in ("precision", "recall", "f1"))

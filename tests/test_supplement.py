@@ -22,6 +22,7 @@ from docket.core.ordering import queue
 from docket.core.quality.audit_sample import AuditSample
 from docket.core.quality.estimates import MEASURES, threshold_table
 from docket.core.quality.evaluate import evaluate_predictions
+from docket.core.quality.machine_rater import machine_rater
 from docket.core.quality.supplement import draw_supplement, stored
 from docket.core.quality.union_design import UnionDesign, groups, union_inclusion, union_sample
 from docket.core.reviewing.gold import gold_labels
@@ -169,3 +170,16 @@ def test_bad_supplement_requests_fail_with_one_line_and_change_nothing(
         err = capsys.readouterr().err.strip()
         assert message in err and "\n" not in err and "Traceback" not in err, err
     assert sample_project.read_bytes() == before
+
+
+def test_machine_rater_kappa_from_a_handful_of_audit_pairs_is_too_few_to_say(
+        sample_project: Path) -> None:
+    with Project.open(sample_project) as project:
+        audit = [r[0] for r in project.connection.execute(
+            "SELECT pair_id FROM pairs WHERE audit = 1 ORDER BY pair_id LIMIT 3")]
+        for pid in audit:
+            project.decide(pid, "maya", "match")
+        every = pd.read_sql_query("SELECT pair_id FROM pairs", project.connection)["pair_id"]
+        m = machine_rater(project, pd.Series(True, index=every))
+    assert m["n"] <= 3 and m["kappa"] is None and m["ci_low"] is None
+    assert m["band"] == "too few pairs to say"

@@ -5,7 +5,8 @@ because the model was unsure), so the kappa that speaks for the candidate pairs 
 the audit slice, each labelled audit pair weighted N_h / m_h: ``kappa`` and its interval. Its
 interval is the percentile interval of a stratified rescaling bootstrap (Rao–Wu: m_h - 1 draws
 with replacement within each stratum, weights rescaled with the finite-population correction),
-seeded, clipped to [-1, 1]. The plain kappa over every gold label is given beside it, marked
+seeded, clipped to [-1, 1]; below ``MIN_PAIRS`` labelled audit pairs it reads "too few pairs to
+say". The plain kappa over every gold label is given beside it, marked
 as describing only the labelled pairs, with no interval.
 """
 
@@ -18,7 +19,7 @@ import numpy as np
 import pandas as pd
 
 from ..reviewing.agreement import cohen_kappa, landis_koch
-from ..reviewing.agreement_intervals import table_kappa
+from ..reviewing.agreement_intervals import MIN_PAIRS, table_kappa
 from ..reviewing.gold import gold_labels
 from ..storage.project_file import ProjectFile
 
@@ -71,7 +72,8 @@ def machine_rater(project: ProjectFile, predicted_match: pd.Series, seed: int = 
                      "scope": "every gold label, unweighted: describes only the labelled pairs "
                               "(most chosen by the queue), so no interval is given"},
         "rows": "machine rater (match, non-match)", "columns": "gold label (match, non-match)"}
-    if len(audit) < 2:
+    if len(audit) < MIN_PAIRS:  # as for the reviewers' agreement: no figure from a handful
+        out["band"] = "too few pairs to say"
         return out
     a_ids = [pid for pid, _ in audit]
     stratum = np.array([h for _, h in audit], dtype=np.int64)
