@@ -91,6 +91,12 @@ def test_demo_builds_without_opening(tmp_path: Path, capsys) -> None:
     assert "personal data" not in out  # the caution is said at creation, not on every status
 
 
+def test_demo_refuses_the_invented_second_reviewer_s_name(tmp_path: Path, capsys) -> None:
+    assert main(["demo", "--dir", str(tmp_path / "d"), "--no-open", "--reviewer", "Ines"]) == 2
+    assert "second reviewer" in capsys.readouterr().err
+    assert not (tmp_path / "d").exists()
+
+
 def test_demo_fresh_refuses_to_discard_decisions_unless_told(tmp_path: Path, capsys) -> None:
     assert main(["demo", "--dir", str(tmp_path), "--no-open", "--reviewer", "kim"]) == 0
     path = tmp_path / "vet-clients.docket"

@@ -119,9 +119,13 @@ def _refuse_to_discard(path: Path) -> None:
 
 
 def demo(args: argparse.Namespace) -> int:
-    from docket.core import Project
+    from docket.core import DocketError, Project
 
     from .progress import progress_bar
+    if default_reviewer(args.reviewer).strip().casefold() == DEMO_SECOND_REVIEWER:
+        # reviewing as the invented second reviewer would show their labels as one's own
+        raise DocketError(f"{DEMO_SECOND_REVIEWER} is the demo's invented second reviewer; "
+                          "pass --reviewer NAME with another name")
     folder = Path(args.dir)
     folder.mkdir(parents=True, exist_ok=True)
     spec = demo_spec(folder)

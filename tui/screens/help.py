@@ -18,7 +18,8 @@ from textual.widgets import Static
 CAUTION = (
     "Records may be personal data. Keep the project file private: it holds every record and "
     "every decision. Do not copy it to shared places, and delete copies you no longer need. "
-    "Decisions made here can merge people's records; when you cannot tell, hold the pair."
+    "Decisions made here can merge people's records; when you cannot tell, hold the pair. "
+    "Follow your local data-protection law and your organisation's policy."
 )
 
 HOW = (

@@ -33,7 +33,7 @@ class PairDetailScreen(Screen[None]):
         Binding("x", "extra", "columns", id="detail-extra-columns",
                 tooltip="show or hide the columns that are not compared"),
         Binding("w", "full_values", "full values", show=False, id="detail-full-values",
-                tooltip="values shortened with … to fit: show them in full, or shorten again"),
+                tooltip="show in full the values shortened with … to fit, or shorten again"),
         Binding("q", "quit", "quit", id="detail-quit", tooltip="quit docket"),
     ]
 
