@@ -135,6 +135,10 @@ def write_project(conn: sqlite3.Connection, *, spec: Any, left: Any, right: Any,
         ranker_note="no labels yet",
         refits=0,
     )
-    from .fingerprint import records_fingerprint
-    store.set_meta(conn, records_fingerprint=records_fingerprint(conn))
+    from .fingerprint import fingerprint_of_written
+    tables = [("left_records", left.id_column, left.frame)]
+    if right is not None:
+        tables.append(("right_records", right.id_column, right.frame))
+    store.set_meta(conn, records_fingerprint=fingerprint_of_written(
+        tables, pair_ids[order].tolist(), lid[li[order]].tolist(), rid[ri[order]].tolist()))
     conn.execute("COMMIT")
