@@ -36,8 +36,9 @@ from docket.core import NewProject, Project
 from docket.core.ordering import sampling
 warnings.simplefilter("ignore")
 a = json.loads(sys.argv[1])
-if a["again"]:
-    sampling.held_for = lambda *args: sampling.Held()
+if a["again"]:  # both engines that hold similarities: pairs in memory, pairs spilled to disk
+    from docket.core.storage import spilled
+    sampling.held_for = spilled.held_for = lambda *args: sampling.Held()
 d = Path(a["dir"])
 spent, last = {}, [time.perf_counter(), ""]
 def progress(name, done, total):  # seconds per build step, up to the next step's report
