@@ -37,7 +37,7 @@ def register(sub: argparse._SubParsersAction) -> None:
         "score or a label column) is judged the same way and scored as a machine rater "
         "(Cohen's kappa against the gold labels).",
         "docket evaluate vets.docket --target-precision 0.95", evaluate)
-    p.add_argument("project")
+    p.add_argument("project", help="the project file (made by docket new)")
     p.add_argument("--json", action="store_true", help="machine-readable output")
     p.add_argument("--screen", action="store_true",
                    help="open the quality screen (plots, threshold table, clusters) instead; with "
@@ -78,7 +78,7 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "are not candidates (docket missed).\nmodel: the current model as a small JSON "
                  "file that 'docket score --model' and a cluster's scoring function read.",
                  "docket export vets.docket --what training -o training.parquet", export)
-    p.add_argument("project")
+    p.add_argument("project", help="the project file (made by docket new)")
     p.add_argument("--what", choices=["scores", "gold", "training", "clusters", "conflicts",
                                       "missed", "model"], default="scores")
     p.add_argument("-o", "--output", required=True, metavar="FILE|-",

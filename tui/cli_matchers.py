@@ -32,7 +32,7 @@ def register(sub: argparse._SubParsersAction) -> None:
         "slice is untouched); queue uncertain: back to the model's order.\n\n"
         "Then: docket evaluate PROJECT --matchers",
         "docket matchers vets.docket import outputs.csv --group prompts", run)
-    p.add_argument("project")
+    p.add_argument("project", help="the project file (made by docket new)")
     p.add_argument("action", choices=ACTIONS)
     p.add_argument("names", nargs="*", metavar="FILE|NAME",
                    help="files to import, or matcher names to mark / remove / create")

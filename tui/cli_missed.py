@@ -24,22 +24,26 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "takes one back; list shows them.",
                  "docket missed vets.docket add N-00412 S-11877 --reviewer maya "
                  "--note 'same owner, moved'", missed)
-    p.add_argument("project")
+    p.add_argument("project", help="the project file (made by docket new)")
     actions = p.add_subparsers(dest="action", metavar="ACTION", required=True)
     a = actions.add_parser("add", help="record a missed match by its two record ids",
                            description="Record a true match that is not a candidate pair.")
-    a.add_argument("left_id", metavar="LEFT")
-    a.add_argument("right_id", metavar="RIGHT")
+    _ids(a)
     a.add_argument("--reviewer", metavar="NAME",
                    help="who found it (default $DOCKET_REVIEWER, then your user name)")
     a.add_argument("--note", default="", help="why they are the same entity")
     r = actions.add_parser("remove", help="take back a missed match recorded by mistake",
                            description="Take back a missed match recorded by mistake.")
-    r.add_argument("left_id", metavar="LEFT")
-    r.add_argument("right_id", metavar="RIGHT")
+    _ids(r)
     b = actions.add_parser("list", help="list the missed matches",
                            description="List the recorded missed matches, oldest first.")
     b.add_argument("--json", action="store_true", help="machine-readable output")
+
+
+def _ids(p: argparse.ArgumentParser) -> None:
+    for side in ("left", "right"):
+        p.add_argument(f"{side}_id", metavar=side.upper(),
+                       help=f"record id in the {side} table (dedupe: any id of the table)")
 
 
 def missed(args: argparse.Namespace) -> int:

@@ -25,7 +25,7 @@ def register(sub: argparse._SubParsersAction) -> None:
                 "stops counting. --adjudicator-may-settle-own allows it again (the default: "
                 "the adjudication screen then flags the adjudicator's own label).",
                 "docket policy vets.docket --independent-adjudication", policy)
-    p.add_argument("project")
+    p.add_argument("project", help="the project file (made by docket new)")
     p.add_argument("--min-reviews", type=at_least(1), metavar="N",
                    help="reviewer decisions a pair needs before it can be gold (default 1)")
     own = p.add_mutually_exclusive_group()

@@ -184,7 +184,7 @@ def register(sub: argparse._SubParsersAction) -> None:
 
     p = command(sub, "status", "Show a project's records, pairs, decisions and model.", "",
                  "docket status vets.docket --json", status)
-    p.add_argument("project")
+    p.add_argument("project", help="the project file (made by docket new)")
     p.add_argument("--json", action="store_true", help="machine-readable output")
 
     p = command(sub, "next", "List the next pairs a reviewer's queue would show.",
@@ -195,8 +195,8 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "pairs are held for this reviewer for 15 minutes, or until decided or others "
                  "are claimed, so that no one else is given them meanwhile.",
                  "docket next vets.docket --reviewer maya -n 5 --claim", next_pairs)
-    p.add_argument("project")
-    p.add_argument("--reviewer", required=True, metavar="NAME")
+    p.add_argument("project", help="the project file (made by docket new)")
+    p.add_argument("--reviewer", required=True, metavar="NAME", help="whose queue to list")
     p.add_argument("-n", type=at_least(0), default=10, metavar="N", help="how many (default 10)")
     p.add_argument("--claim", action="store_true",
                    help="hold the pairs listed for this reviewer (registers the reviewer)")
@@ -209,6 +209,8 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "at work on the project meanwhile are not held up; should writing fail part "
                  "way, the rows already written are taken back.",
                  "docket label vets.docket --reviewer maya --from decisions.csv", label)
-    p.add_argument("project")
-    p.add_argument("--reviewer", required=True, metavar="NAME")
-    p.add_argument("--from", dest="source", required=True, metavar="FILE")
+    p.add_argument("project", help="the project file (made by docket new)")
+    p.add_argument("--reviewer", required=True, metavar="NAME",
+                   help="who made the decisions in the file")
+    p.add_argument("--from", dest="source", required=True, metavar="FILE",
+                   help="the decisions: CSV or JSONL with the columns above")

@@ -25,7 +25,7 @@ def register(sub: argparse._SubParsersAction) -> None:
         "exported model file (docket export PROJECT --what model -o FILE) instead.",
         "docket score vets.docket --pairs all_pairs/ -o scored/ --engine dask --workers 4",
         score)
-    p.add_argument("project")
+    p.add_argument("project", help="the project file (made by docket new)")
     p.add_argument("--pairs", required=True, metavar="PATH",
                    help="pairs: left id, right id (CSV, Parquet, or a folder of parts)")
     p.add_argument("-o", "--output", required=True, metavar="FOLDER",

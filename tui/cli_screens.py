@@ -25,7 +25,7 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "Keys: s match, d non-match, h hold, z undo, e note, [ ] history, / find, "
                  "? help, q quit. Every decision is saved as it is made.",
                  "docket review vets.docket --reviewer maya --mask email,phone", review)
-    p.add_argument("project")
+    p.add_argument("project", help="the project file (made by docket new)")
     p.add_argument("--reviewer", metavar="NAME",
                    help="defaults to $DOCKET_REVIEWER, then your user name")
     p.add_argument("--mask", metavar="COL,...", help="show these columns partly masked")
@@ -54,7 +54,7 @@ def register(sub: argparse._SubParsersAction) -> None:
         "Only reviewers with the adjudicator role may adjudicate; add one with\n"
         "  docket reviewers PROJECT add NAME --role adjudicator",
         "docket adjudicate vets.docket --reviewer ines --blind --mask email,phone", adjudicate)
-    p.add_argument("project")
+    p.add_argument("project", help="the project file (made by docket new)")
     p.add_argument("--reviewer", metavar="NAME",
                    help="the adjudicator; defaults to $DOCKET_REVIEWER, then your user name")
     p.add_argument("--blind", action="store_true",

@@ -25,7 +25,7 @@ def register(sub: argparse._SubParsersAction) -> None:
         "(design-based, as the audit slice judges the model). One supplement per set of "
         "scores.",
         "docket supplement vets.docket --predictions matcher.csv --size 400", supplement)
-    p.add_argument("project")
+    p.add_argument("project", help="the project file (made by docket new)")
     p.add_argument("--predictions", metavar="FILE", required=True,
                    help="the matcher's output (left_id, right_id, score or label), as for "
                         "'docket evaluate --predictions'")

@@ -23,11 +23,11 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "adjudicators are added here.\nlist shows each person's role, standing labels, "
                  "holds, adjudications and time spent.",
                  "docket reviewers vets.docket add ines --role adjudicator", reviewers)
-    p.add_argument("project")
+    p.add_argument("project", help="the project file (made by docket new)")
     actions = p.add_subparsers(dest="action", metavar="ACTION", required=True)
     a = actions.add_parser("add", help="register a reviewer or change their role",
                            description="Register a reviewer, or change an existing one's role.")
-    a.add_argument("name")
+    a.add_argument("name", help="the reviewer's name, as they give it to review, next and label")
     a.add_argument("--role", choices=["reviewer", "adjudicator"], default="reviewer",
                    help="default reviewer")
     a.add_argument("--by", metavar="NAME",
@@ -46,7 +46,7 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "default kappa is over match / non-match on pairs both decided; --include-hold "
                  "counts hold as a third category.",
                  "docket agreement vets.docket --json", agreement)
-    p.add_argument("project")
+    p.add_argument("project", help="the project file (made by docket new)")
     p.add_argument("--json", action="store_true", help="machine-readable output")
     p.add_argument("--screen", action="store_true",
                    help="open the agreement screen instead of printing")
@@ -62,7 +62,7 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "an unknown role, or a time more than 1 hour ahead of this machine's clock, is "
                  "refused.",
                  "docket merge vets.docket laptop-ines.docket laptop-maya.docket", merge)
-    p.add_argument("project")
+    p.add_argument("project", help="the project file (made by docket new)")
     p.add_argument("others", nargs="+", metavar="OTHER", help="a copy of the project")
     p.add_argument("--accept-roles", action="store_true",
                    help="also take the copies' role changes (default: list and leave them out)")
