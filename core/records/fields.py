@@ -18,7 +18,9 @@ _DATE_HINT = re.compile(r"(date|dob|born|birth)", re.I)
 
 def detect_kind(column: str, values: pd.Series) -> str:
     """Guess a field kind from the column name and a sample of its values."""
-    sample = values.dropna()
+    # by position: the same sample as over the ids (Series.sample draws positions), without
+    # copying the ids of every record to drop the missing ones
+    sample = pd.Series(values.to_numpy(dtype=object)).dropna()
     sample = sample.sample(min(len(sample), 2000), random_state=0) if len(sample) else sample
     if len(sample) == 0:
         return "text"
