@@ -87,4 +87,7 @@ def test_narrow_intervals_leave_out_what_only_takes_room() -> None:
     assert interval({"value": 1.0, "low": 1.0, "high": 1.0}, True).plain == "1.00 [1–1]"
     assert interval({"value": 0.97, "low": 0.82, "high": 1.0}, True).plain == "0.97 [.82–1]"
     assert interval({"value": 0.97, "low": 0.82, "high": 0.99}, True).plain == "0.97 [.82–.99]"
+    # ends round outwards, so that a low of 0.995 does not read as a certain 1
+    assert interval({"value": 1.0, "low": 0.995, "high": 1.0}, True).plain == "1.00 [.99–1]"
+    assert interval({"value": 0.82, "low": 0.472, "high": 0.9991}, True).plain == "0.82 [.47–1]"
     assert interval({"value": 0.97, "low": 0.82, "high": 1.0}).plain == "0.970 [0.820, 1.000]"

@@ -6,6 +6,7 @@ decision threshold's mark joins the threshold, rather than a column being cut.
 
 from __future__ import annotations
 
+import math
 from typing import Any
 
 from rich.text import Text
@@ -56,6 +57,13 @@ def _short(x: float) -> str:
     return "1" if text == "1.00" else text.removeprefix("0")
 
 
+def _bound(x: float, up: bool) -> str:
+    """An interval's end at two decimals, rounded outwards: a low of 0.995 shown as 1 would
+    claim a certainty the labels do not give (the 1e-9 keeps float noise from moving it)."""
+    hundredths = math.ceil(x * 100 - 1e-9) if up else math.floor(x * 100 + 1e-9)
+    return _short(hundredths / 100)
+
+
 def interval(d: dict[str, Any], narrow: bool = False) -> Text:
     """``0.923 [0.880, 0.951]``, or at narrow widths ``0.92 [.88–.95]``."""
     if d.get("value") is None:
@@ -64,7 +72,7 @@ def interval(d: dict[str, Any], narrow: bool = False) -> Text:
     if d.get("low") is None:
         return Text(f"{d['value']:.{digits}f}")
     if narrow:
-        return Text(f"{d['value']:.2f} [{_short(d['low'])}–{_short(d['high'])}]")
+        return Text(f"{d['value']:.2f} [{_bound(d['low'], False)}–{_bound(d['high'], True)}]")
     return Text(f"{d['value']:.3f} [{d['low']:.3f}, {d['high']:.3f}]")
 
 
