@@ -143,7 +143,7 @@ def test_newer_schema_is_refused_untouched(sample_project: Path, capsys) -> None
 @pytest.mark.parametrize(("body", "needle"), [
     ("pair_id,label\n999999,match\n", "unknown pair id"),
     ("pair_id,label\n1,maybe\n", "label 'maybe'"),
-    ("left_id,right_id,label\nN-00001,S-99999,match\n", "not candidate pairs"),
+    ("left_id,right_id,label\nN-00001,S-99999,match\n", "1 pair is not a candidate pair"),
     ("who,label\n1,match\n", "pair_id"),
 ])
 def test_bad_label_file_writes_nothing(sample_project: Path, tmp_path: Path, capsys,

@@ -56,7 +56,9 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
         pair_ids = [int(x) for x in ids]
         unknown = [p for p in pair_ids if p not in known]
         if unknown:
-            raise DocketError(f"{path}: {len(unknown)} unknown pair id(s): "
+            ids_text = "1 unknown pair id" if len(unknown) == 1 else \
+                f"{len(unknown)} unknown pair ids"
+            raise DocketError(f"{path}: {ids_text}: "
                               f"{', '.join(map(str, unknown[:5]))}; nothing was written")
     elif {"left_id", "right_id"} <= cols:
         lookup = {(a, b): p for p, a, b in project.connection.execute(
@@ -72,8 +74,10 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
             else:
                 pair_ids.append(p)
         if missing:
-            raise DocketError(f"{path}: {len(missing)} pair(s) are not candidate pairs of this "
-                              f"project: {', '.join(missing[:3])}; nothing was written")
+            are = "1 pair is not a candidate pair" if len(missing) == 1 else \
+                f"{len(missing)} pairs are not candidate pairs"
+            raise DocketError(f"{path}: {are} of this project: {', '.join(missing[:3])}; "
+                              "nothing was written")
     else:
         raise DocketError(f"{path}: needs pair_id, or left_id and right_id, beside 'label'")
     rows = []
