@@ -132,3 +132,10 @@ def test_a_failed_export_leaves_no_temporary(tmp_path: Path) -> None:
     with pytest.raises(DocketError, match="No space left"):
         atomic_write(tmp_path / "out.csv", broken)
     assert list(tmp_path.iterdir()) == []
+
+
+def test_an_export_into_a_missing_folder_names_the_folder(tmp_path: Path) -> None:
+    target = tmp_path / "absent" / "gold.csv"
+    with pytest.raises(DocketError, match=r"the folder .*absent does not exist"):
+        atomic_write(target, lambda p: p.write_text("x", encoding="utf-8"))
+    assert not (tmp_path / "absent").exists()

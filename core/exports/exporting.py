@@ -133,6 +133,9 @@ def atomic_write(path: Path, write: Callable[[Path], object]) -> None:
     try:
         fd, name = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".partial", dir=path.parent)
     except OSError as exc:
+        if not path.parent.is_dir():
+            raise DocketError(f"{path}: cannot write: the folder {path.parent} does not exist; "
+                              "create it or write elsewhere") from None
         raise DocketError(f"{path}: cannot write ({exc.strerror or exc})") from None
     os.close(fd)
     tmp = Path(name)
