@@ -13,7 +13,13 @@ from tests.conftest import SAMPLE
 
 ASCII = st.text(st.sampled_from(list("aZ09_ -./()+&;@,\t\n\x0b\x0c\r\x1c\x1f'")), max_size=14)
 ANY = st.one_of(ASCII, st.text(max_size=8), st.sampled_from(["Zoë Ångström", "&amp;Co", "１２３"]))
-FUNCS = (normalise.words, normalise.name, normalise.code)
+FUNCS = (normalise.words, normalise.name, normalise.code, normalise.date)
+DATES = st.one_of(
+    st.builds(lambda y, m, d, sep, tail: f"{sep}{y:04d}-{m:0{len(str(m))}d}-{d:02d}{tail}",
+              st.integers(0, 9999), st.integers(0, 13), st.integers(0, 32),
+              st.sampled_from(["", " ", "\t"]), st.sampled_from(["", " ", "T10:00", "x", "5"])),
+    st.sampled_from(["31/12/1990", "12/31/1990", "03.04.1990", "now", "1990", "2020-1-2",
+                     "Jan 5 2001", "2020-02-30", "1900-02-29", "2000-02-29", "0000-01-01"]))
 
 
 @settings(max_examples=80, deadline=None)
@@ -22,6 +28,24 @@ def test_arrow_path_matches_each_value(values: list[str]) -> None:
     uniques = np.array(values, dtype=object)
     for func in FUNCS:
         assert apply(uniques, func) == [func(v) for v in values], func.__name__
+
+
+@settings(max_examples=80, deadline=None)
+@given(st.lists(DATES, min_size=1, max_size=25, unique=True))
+def test_arrow_dates_match_each_value(values: list[str]) -> None:
+    assert apply(np.array(values, dtype=object), normalise.date) == [normalise.date(v)
+                                                                     for v in values]
+
+
+def test_iso_days_are_the_calendars() -> None:
+    # datetime.date (the standard library's proleptic Gregorian calendar) as the reference
+    import datetime as dt
+
+    assert apply(np.array(["1970-01-01", "2000-02-29", "0001-01-01", "9999-12-31"],
+                          dtype=object), normalise.date) == [
+        0.0, float(dt.date(2000, 2, 29).toordinal() - 719163),
+        float(dt.date(1, 1, 1).toordinal() - 719163),
+        float(dt.date(9999, 12, 31).toordinal() - 719163)]
 
 
 def test_phone_like_codes_keep_their_last_nine_digits() -> None:
@@ -41,5 +65,5 @@ def test_sample_values_normalise_alike() -> None:
 
 
 def test_other_normalisers_and_mixed_values_take_the_value_path() -> None:
-    assert apply(np.array(["2020-01-02"], dtype=object), normalise.date) is None
+    assert apply(np.array(["2020-01-02"], dtype=object), normalise.number) is None
     assert apply(np.array(["a", 1], dtype=object), normalise.words) is None

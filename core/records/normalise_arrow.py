@@ -18,7 +18,8 @@ import pyarrow.compute as pc
 from . import normalise
 
 # Python's \s over ASCII (str.isspace: tab to carriage return, the four separators, space)
-_ASCII_SPACE = r"\t\n\x0b\x0c\r\x1c-\x1f "
+_ASCII_BLANK = "\t\n\x0b\x0c\r\x1c\x1d\x1e\x1f "
+_ASCII_SPACE = r"\t\n\x0b\x0c\r\x1c-\x1f "  # the same characters, as a regular expression
 _NOT_WORD = r"[^0-9a-z_]+"  # after lower case: the ASCII characters \w leaves out
 _SEPARATORS = rf"[{_ASCII_SPACE}\-./()_]+"
 _PHONE = r"^\+?[0-9]{7,}$"
@@ -36,17 +37,25 @@ def _none_if_empty(values: pa.Array) -> np.ndarray:
         zero_copy_only=False)
 
 
-def words_many(values: pa.Array) -> np.ndarray:
+def _words(values: pa.Array) -> pa.Array:
+    """:func:`normalise.words` with "" where nothing is left."""
     spaced = pc.replace_substring_regex(pc.ascii_lower(values), _NOT_WORD, " ")
-    return _none_if_empty(pc.utf8_trim(spaced, " "))
+    return pc.utf8_trim(spaced, " ")
+
+
+def words_many(values: pa.Array) -> np.ndarray:
+    return _none_if_empty(_words(values))
 
 
 def name_many(values: pa.Array) -> np.ndarray:
-    out = words_many(values)
-    several = np.flatnonzero(pc.match_substring(pa.array(out, pa.large_string()), " ")
-                             .fill_null(False).to_numpy(zero_copy_only=False))
-    out[several] = [" ".join(sorted(out[i].split())) for i in several]
-    return out
+    """Each value's words sorted within it: one sort of all words by (value, word), where
+    Arrow's byte order is Python's order for ASCII."""
+    parts = pc.split_pattern(_words(values), " ")
+    flat = pc.list_flatten(parts)
+    order = pc.sort_indices(pa.table({"value": pc.list_parent_indices(parts), "word": flat}),
+                            sort_keys=[("value", "ascending"), ("word", "ascending")])
+    sorted_words = pa.ListArray.from_arrays(parts.offsets, flat.take(order))
+    return _none_if_empty(pc.binary_join(sorted_words, pa.scalar(" ", pa.large_string())))
 
 
 def code_many(values: pa.Array) -> np.ndarray:
@@ -55,8 +64,42 @@ def code_many(values: pa.Array) -> np.ndarray:
     return _none_if_empty(pc.if_else(phone, pc.utf8_slice_codeunits(text, start=-9), text))
 
 
+def iso_days(values: pa.Array) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`normalise.date` of values that begin "yyyy-m-d" after trimming: days since
+    1970-01-01 (NaN for a date no calendar has), and which values begin so (the others need
+    the per-value rules: day/month/year, words)."""
+    text = pc.utf8_trim(values, _ASCII_BLANK)  # str.strip() for ASCII
+    parts = pc.extract_regex(text, r"^(?P<y>[0-9]{4})-(?P<m>[0-9]{1,2})-(?P<d>[0-9]{1,2})")
+    iso = pc.is_valid(parts).to_numpy(zero_copy_only=False)
+    y, m, d = (pc.cast(pc.struct_field(parts, k), pa.int64()).fill_null(0).to_numpy()
+               for k in ("y", "m", "d"))
+    leap = (y % 4 == 0) & ((y % 100 != 0) | (y % 400 == 0))
+    month_days = np.array([0, 31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31])
+    ok = (y >= 1) & (m >= 1) & (m <= 12) & (d >= 1)
+    ok &= d <= month_days[np.clip(m, 0, 12)] + (leap & (m == 2))
+    # days from the civil calendar (proleptic Gregorian, as datetime.date counts them)
+    yy = y - (m <= 2)
+    era = yy // 400
+    yoe = yy - era * 400
+    doy = (153 * (m + np.where(m > 2, -3, 9)) + 2) // 5 + d - 1
+    days = (era * 146097 + yoe * 365 + yoe // 4 - yoe // 100 + doy - 719468).astype(float)
+    return np.where(ok, days, np.nan), iso
+
+
+def date_many(values: pa.Array) -> np.ndarray:
+    days, iso = iso_days(values)
+    out = np.empty(len(days), dtype=object)
+    out[:] = [None if np.isnan(v) else float(v) for v in days.tolist()]
+    rest = np.flatnonzero(~iso)
+    if len(rest):
+        strings = values.take(pa.array(rest)).to_pylist()
+        out[rest] = [normalise.date(v) for v in strings]
+    return out
+
+
 MANY: dict[Callable, Callable[[pa.Array], np.ndarray]] = {
-    normalise.words: words_many, normalise.name: name_many, normalise.code: code_many}
+    normalise.words: words_many, normalise.name: name_many, normalise.code: code_many,
+    normalise.date: date_many}
 
 
 def apply(uniques: np.ndarray, func: Callable[[str], object]) -> list[object] | None:
