@@ -13,6 +13,7 @@ from __future__ import annotations
 import gc
 import multiprocessing
 import os
+import signal
 import sys
 from collections.abc import Callable, Iterator
 from dataclasses import dataclass
@@ -66,6 +67,11 @@ def score_chunk(scorer: Any, keys: np.ndarray, start: int, held: Held) -> Scored
 _JOB: dict[str, Any] = {}  # the scorer and keys, set before the workers are forked
 
 
+def _quiet() -> None:
+    # Ctrl-C is the build's to handle (it ends the pool); a worker would print a traceback
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+
+
 def _work(bounds: tuple[int, int]) -> Scored:
     start, stop = bounds
     return score_chunk(_JOB["scorer"], _JOB["keys"][start:stop], start, _JOB["held"])
@@ -97,7 +103,7 @@ def score_all(scorer: Any, keys: np.ndarray, held: Held, workers: int,
     _JOB.update(scorer=scorer, keys=keys, held=held)
     gc.freeze()  # the workers' collector then leaves the shared objects (and their pages) alone
     try:
-        with multiprocessing.get_context("fork").Pool(workers) as pool:
+        with multiprocessing.get_context("fork").Pool(workers, initializer=_quiet) as pool:
             for part in pool.imap(_work, bounds):
                 yield part
                 if progress:
