@@ -31,6 +31,14 @@ to each figure on the side it moves it (precision, recall and F1 all fall with u
 matches among the predicted and with unseen missed matches among the others). Same 200 slices:
 1.000, width unchanged (0.263); the other side of every interval is as before.
 
+Both kinds seen, share far from one half. A share estimated at 17 of 19 where the truth is
+0.71 (the refit model's pairs of its second-highest stratum that it scores below 0.9) makes its
+own variance too small on the side towards one half: recall at 0.9 with the whole slice held
+the truth in 0.935 of 200 slices, every miss with the truth above the interval. So each side of
+such a domain also gets what it takes for its normal interval to reach that side of the Wilson
+interval of x of n (Wilson 1927), carried through as above: 0.980 of the same slices, width
+0.058 against 0.056.
+
 Unseen domains. A domain with pairs but no labelled pair (predicted matches in a stratum whose
 labels hold none, say) has a share the labels cannot estimate. Its point counts it at the share
 of the strata that have labels (pooled), but the interval does not pretend to know more: its
@@ -46,7 +54,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .audit_sample import AuditSample, Interval
-from .intervals import beta_quantile, clopper_pearson, z_value
+from .intervals import beta_quantile, clopper_pearson, wilson, z_value
 
 LINEARISED = "linearised-korn-graubard"
 SMOOTHING = 0.5
@@ -64,7 +72,8 @@ def _share(x: float, n: int, big: int, seen_kind: bool, confidence: float,
     unseen kind's share (see the module notes). Where they show both, the variance is itself
     estimated from the n labels, so it is scaled by (t_{n-1} / z)^2, as a t interval would be
     for a share measured on few pairs, but never past the variance whose normal interval spans
-    the whole range of the share (0 to 1) or the plain one, whichever is larger.
+    the whole range of the share (0 to 1) or the plain one, whichever is larger; and each side
+    gets what it takes to reach that side of the Wilson interval.
     """
     if big == 0:
         return 0.0, 0.0, 0.0, 0.0, 0.0
@@ -83,6 +92,10 @@ def _share(x: float, n: int, big: int, seen_kind: bool, confidence: float,
     elif 0 < x < n and n >= 2:
         whole_range = (big * max(p, 1.0 - p) / z_value(confidence)) ** 2
         var = min(var * t_ratio(n - 1, confidence), max(var, whole_range))
+        low, high = wilson(x, n, confidence)
+        z = z_value(confidence)
+        down = max(0.0, fpc * (big * (p - low) / z) ** 2 - var)
+        up = max(0.0, fpc * (big * (high - p) / z) ** 2 - var)
     return p, smooth, var, down, up
 
 
