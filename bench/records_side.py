@@ -8,8 +8,8 @@ record. Each step is timed in CPU seconds both ways in the same run, alternating
 ``--repeat``, and the ratio printed (new / one at a time; below 1 is faster):
 
 1. record values into text: one Python call per cell vs a column at a time (Arrow);
-2. normalising each field's distinct values: the per-value function vs per_distinct (Arrow for
-   ASCII words, names, codes and yyyy-m-d dates);
+2. normalising each field's distinct values: the per-value function vs
+   distinct.per_distinct (Arrow for ASCII words, names, codes and yyyy-m-d dates);
 3. the records fingerprint: read back from the file vs worked out from the rows just written.
 
 Both ways give the same values (checked here as well as in the tests).

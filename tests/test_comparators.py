@@ -14,7 +14,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from docket.core.matching import compare
-from docket.core.records import normalise
+from docket.core.records import distinct, normalise
 
 JW = compare.SCORERS["name"]
 LEV = compare.SCORERS["text"]
@@ -97,7 +97,7 @@ def test_normalise_each_distinct_value_once() -> None:
         calls.append(v)
         return v.lower()
 
-    out = normalise.per_distinct(["A", "B", "A", None, "A"], spy)
+    out = distinct.per_distinct(["A", "B", "A", None, "A"], spy)
     assert list(out) == ["a", "b", "a", None, "a"] and sorted(calls) == ["A", "B"]
 
 

@@ -9,6 +9,7 @@ from docket.core import Project
 from docket.core.reviewing.team import add_reviewer, list_reviewers
 from docket.core.storage import store
 from docket.core.storage.fingerprint import records_fingerprint
+from docket.core.storage.migrations import MIGRATED_GRANTOR
 from tests.store_support import downgrade
 
 # The lookup every decision makes (decisions.refresh): it must be a search on the
@@ -42,7 +43,7 @@ def test_a_version_2_file_is_upgraded_in_place(sample_project: Path, tmp_path: P
         assert store.schema_version(conn) == store.SCHEMA_VERSION
         assert p.meta["records_fingerprint"] == want == records_fingerprint(conn)
         grants = conn.execute("SELECT name, role, granted_by FROM role_grants").fetchall()
-        assert grants == [("ines", "adjudicator", store.MIGRATED_GRANTOR)]
+        assert grants == [("ines", "adjudicator", MIGRATED_GRANTOR)]
         assert len(p.decisions()) == 1
         assert conn.execute("SELECT standing FROM reviewers WHERE name = 'maya'").fetchone() == (1,)
         assert conn.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
@@ -51,7 +52,7 @@ def test_a_version_2_file_is_upgraded_in_place(sample_project: Path, tmp_path: P
     with Project.open(readonly_copy, readonly=True) as p:
         assert store.schema_version(p.connection) == 2
         people = {r["name"]: r for r in list_reviewers(p)}
-        assert people["ines"]["granted_by"] == store.MIGRATED_GRANTOR
+        assert people["ines"]["granted_by"] == MIGRATED_GRANTOR
 
 
 def test_fingerprint_covers_record_values(sample_project: Path, tmp_path: Path) -> None:

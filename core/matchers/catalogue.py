@@ -1,7 +1,7 @@
 """The machine raters stored in a project: list, load, mark, remove.
 
 Each matcher's output is one array of scores aligned with the candidate pairs in pair-id order
-(``pair_ids``), NaN where the matcher said nothing; see ``store.MACHINE_RATERS``.
+(``pair_ids``), NaN where the matcher said nothing; see ``migrations.MACHINE_RATERS``.
 """
 
 from __future__ import annotations

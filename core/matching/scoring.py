@@ -11,7 +11,7 @@ from collections.abc import Callable
 import numpy as np
 import pandas as pd
 
-from ..records import normalise
+from ..records import distinct, normalise
 from ..types import FieldSpec
 from . import compare
 
@@ -23,7 +23,7 @@ def normalised(fields: list[FieldSpec], frame: pd.DataFrame, side: str) -> dict[
     out = {}
     for f in fields:
         column = f.left_column if side == "left" else f.right_column
-        out[f.name] = normalise.per_distinct(frame[column], normalise.NORMALISERS[f.kind])
+        out[f.name] = distinct.per_distinct(frame[column], normalise.NORMALISERS[f.kind])
     return out
 
 

@@ -24,7 +24,7 @@ import numpy as np
 import pandas as pd
 
 from ..errors import DocketError
-from ..records import normalise
+from ..records import distinct, normalise
 from ..types import FieldSpec
 
 _KEY = re.compile(r"^\s*(?:(tokens|digits|year|near)\s*\(\s*([^()]+?)\s*\)|([^\[\]()&]+?)"
@@ -116,7 +116,7 @@ def _key_values(key: Key, values: pd.Series, kind: str) -> list[list[str]]:
         norm = normalise.NORMALISERS[kind]
     else:
         norm = normalise.words
-    done = normalise.per_distinct(values, norm)
+    done = distinct.per_distinct(values, norm)
     out: list[list[str]] = []
     for v in done:
         if v is None:

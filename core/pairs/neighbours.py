@@ -12,7 +12,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from ..records import normalise, text_vectors
+from ..records import distinct, normalise, text_vectors
 
 NEAR_K = 10  # neighbours per record (each side's records look for theirs in link mode)
 NEAR_FLOOR = 0.2  # cosine below which a neighbour is no candidate at all
@@ -22,7 +22,7 @@ NEAR_MAX_SHARE = 0.1
 
 
 def _texts(values: pd.Series) -> list[str]:
-    done = normalise.per_distinct(values, normalise.words)
+    done = distinct.per_distinct(values, normalise.words)
     return ["" if v is None else str(v) for v in done]
 
 

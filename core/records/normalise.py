@@ -1,8 +1,8 @@
 """Normalising raw values before comparison, once per distinct value.
 
 Each function maps one raw string to its comparable form, or None when nothing comparable is
-left. Callers apply them through :func:`per_distinct`, which normalises each distinct value once
-and takes the results back by index: far cheaper than normalising once per record or per pair.
+left. Callers apply them through ``distinct.per_distinct``, which normalises each distinct
+value once and takes the results back by index: far cheaper than once per record or per pair.
 """
 
 from __future__ import annotations
@@ -100,14 +100,3 @@ NORMALISERS: dict[str, Callable[[str], object]] = {
     "number": number,
     "date": date,
 }
-
-
-def per_distinct(values: pd.Series | list, func: Callable[[str], object]) -> np.ndarray:
-    """Apply ``func`` to each distinct non-missing value once; missing stays None."""
-    from .normalise_arrow import apply  # Arrow over many values where it is the same answer
-
-    codes, uniques = pd.factorize(pd.Series(values, dtype=object), use_na_sentinel=True)
-    uniques = np.asarray(uniques, dtype=object)
-    many = apply(uniques, func)
-    done = np.array([*(many if many is not None else map(func, uniques)), None], dtype=object)
-    return done[codes]  # code -1 (missing) picks the trailing None

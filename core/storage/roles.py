@@ -20,10 +20,11 @@ from typing import Any
 from ..types import ROLES
 from . import store
 from .decisions import stamp
+from .migrations import MIGRATED_GRANTOR
 
 __all__ = ["MIGRATED_GRANTOR", "ROLES", "Grant", "grant", "history", "register", "role_at"]
 DEFAULT_ROLE = "reviewer"
-MIGRATED_GRANTOR = store.MIGRATED_GRANTOR
+
 
 History = dict[str, list[tuple[str, str]]]  # name -> [(granted_at, role)], oldest first
 
