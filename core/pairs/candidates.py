@@ -15,7 +15,7 @@ from ..errors import DocketError
 from ..records.sources import Table
 from ..types import FieldSpec
 from . import autoblock, blocking
-from .pair_files import PairSource, id_batches, open_pairs, positions
+from .pair_files import PairSource, id_batches, positions
 
 Step = Callable[..., None]
 
@@ -38,16 +38,12 @@ class GivenReader:
     are named in one warning by :meth:`warn`.
     """
 
-    path: Path
+    source: PairSource  # opened (every part's footer checked) by the caller
     left: Table
     right: Table | None
-    source: PairSource = field(init=False)
     starts: list[tuple[Path, int, int]] = field(default_factory=list)  # part, row, first read
     self_rows: list[str] = field(default_factory=list)
     n_self: int = 0
-
-    def __post_init__(self) -> None:
-        self.source = open_pairs(self.path)
 
     def batches(self, step: Step) -> Iterator[tuple[np.ndarray, np.ndarray]]:
         """(keys, read positions) per batch; a read position counts every row read."""
@@ -94,8 +90,8 @@ class GivenReader:
             notes.append(f"{n_again:,} pair(s) given before (the same two ids, in either "
                          f"order), row(s) {', '.join(rows)}{'…' if n_again > 5 else ''}")
         if notes:
-            warnings.warn(f"{self.path}: left out {'; and '.join(notes)}; each pair counts once",
-                          UserWarning, stacklevel=4)
+            warnings.warn(f"{self.source.path}: left out {'; and '.join(notes)}; each pair "
+                          "counts once", UserWarning, stacklevel=4)
 
     def report(self, n_pairs: int) -> blocking.BlockingReport:
         return blocking.BlockingReport(["given"], False, n_pairs,
@@ -113,10 +109,10 @@ def first_seen(keys: np.ndarray, read: np.ndarray) -> tuple[np.ndarray, np.ndarr
     return distinct, read[again]
 
 
-def given_keys(path: Path, left: Table, right: Table | None, step: Step
+def given_keys(source: PairSource, left: Table, right: Table | None, step: Step
                ) -> tuple[np.ndarray, blocking.BlockingReport]:
     """Distinct pair keys of a pairs file, all in memory (16 bytes per pair while reading)."""
-    reader = GivenReader(path, left, right)
+    reader = GivenReader(source, left, right)
     keys, reads = [], []
     for k, r in reader.batches(step):
         keys.append(k)

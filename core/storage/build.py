@@ -24,6 +24,7 @@ from ..matching.model import FSModel, fit_em
 from ..ordering import queue, sampling
 from ..pairs import blocking, candidates
 from ..pairs.candidates import possible_pairs, width_of
+from ..pairs.pair_files import open_pairs
 from ..records import fields as fieldmod
 from ..records.sources import Table, load_table, read_frame
 from ..types import FieldSpec
@@ -241,17 +242,18 @@ def build(spec: NewProject, progress: Progress | None = None,
 def open_engine(spec: NewProject, left: Table, right: Table | None, fields: list[FieldSpec],
                 step: Progress) -> Any:
     """The pairs, counted and ready to score: in this process or on Dask."""
-    engine: Any  # an InProcess or a DaskEngine: both offer the same verbs
+    engine: Any  # an InProcess, a Spilled or a DaskEngine: all offer the same verbs
+    source = (open_pairs(spec.pairs_file) if spec.engine != "dask" and spec.pairs_file is not None
+              else None)
     if spec.engine == "dask":
         from .dask_engine import open_dask
         engine = open_dask(spec, left, right, fields, step)
-    elif spec.pairs_file is not None and spilled.worth_spilling(spec.pairs_file,
-                                                                 spec.sample_above):
-        engine = spilled.Spilled(spec.pairs_file, left, right, spec.path, spec.sample_above,
-                                 spec.seed, spec.workers, step)
+    elif source is not None and spilled.worth_spilling(source, spec.sample_above):
+        engine = spilled.Spilled(source, left, right, spec.path, spec.sample_above, spec.seed,
+                                 spec.workers, step)
     else:
-        if spec.pairs_file is not None:
-            keys, report = candidates.given_keys(spec.pairs_file, left, right, step)
+        if source is not None:
+            keys, report = candidates.given_keys(source, left, right, step)
             rule_ix = np.zeros(len(keys), dtype=np.int16)
             rule_names = ["given"]
         else:

@@ -9,6 +9,8 @@ import sqlite3
 from collections.abc import Callable
 from datetime import UTC, datetime
 
+from .fingerprint import records_fingerprint
+
 SCHEMA_VERSION = 6
 
 
@@ -114,7 +116,7 @@ def _to_v3(conn: sqlite3.Connection) -> None:
     conn.execute("INSERT INTO role_grants SELECT 'present:' || name, name, role, ?, "
                  "added_at FROM reviewers WHERE role <> 'reviewer'", (MIGRATED_GRANTOR,))
     if conn.execute("SELECT 1 FROM meta WHERE key = 'fields'").fetchone():
-        from .fingerprint import records_fingerprint
+        # store.set_meta's row, written here: store imports this module, not the other way
         conn.execute("INSERT OR REPLACE INTO meta VALUES ('records_fingerprint', ?)",
                      (json.dumps(records_fingerprint(conn)),))
 

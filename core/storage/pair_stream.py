@@ -126,20 +126,31 @@ class InProcess:
         ix = pick(self.keys, self.codes, plan)
         sims = None
         if self.held_sims is not None and scorer is not None:
-            where = np.searchsorted(self.held_at, ix)
-            found = where < len(self.held_at)
-            found[found] = self.held_at[where[found]] == ix[found]
-            sims = np.empty((len(ix), len(scorer.fields)), dtype=np.float32)
-            sims[found] = self.held_sims[where[found]]
-            missing = np.flatnonzero(~found)
-            if len(missing):
-                sims[missing] = similarities(scorer, self.keys[ix[missing]], progress,
-                                             self.workers)
+            sims = held_or_compared(self.held_at, self.held_sims, ix, self.keys[ix], scorer,
+                                    progress, self.workers)
         self.held_sims = None
         return order_kept(self.keys[ix], self.rule_ix[ix], self.codes[ix], sims)
 
     def close(self) -> None:
         pass
+
+
+def held_or_compared(held: np.ndarray, held_sims: np.ndarray | None, wanted: np.ndarray,
+                     keys: np.ndarray, scorer: ChunkScorer,
+                     progress: Callable[[int, int], None] | None, workers: int | None
+                     ) -> np.ndarray:
+    """Similarities of the ``wanted`` pairs (``keys`` theirs): from the scoring pass where it
+    held them (``held`` sorted, rows of ``held_sims`` beside it), the rest compared again."""
+    sims = np.empty((len(wanted), len(scorer.fields)), dtype=np.float32)
+    where = np.searchsorted(held, wanted)
+    hit = where < len(held)
+    hit[hit] = held[where[hit]] == wanted[hit]
+    if held_sims is not None:
+        sims[hit] = held_sims[where[hit]]
+    missing = np.flatnonzero(~hit)
+    if len(missing):
+        sims[missing] = similarities(scorer, keys[missing], progress, workers)
+    return sims
 
 
 def similarities(scorer: ChunkScorer, keys: np.ndarray,

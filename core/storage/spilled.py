@@ -21,14 +21,16 @@ from pathlib import Path
 
 import numpy as np
 
+from ..ordering.queue import unit_hash
 from ..ordering.sampling import Held, SamplePlan, held_for, pick
 from ..pairs.candidates import GivenReader, Step, first_seen
+from ..pairs.pair_files import PairSource
 from ..records.sources import Table
-from .pair_stream import ChunkScorer, Kept, order_kept, similarities
+from .pair_stream import ChunkScorer, Kept, held_or_compared, order_kept
 from .score_pool import score_all, workers_for
 
 BUCKET = 2_000_000  # pairs per bucket, read at most twice as large by chance
-_MIX = np.uint64(0x9E3779B97F4A7C15)
+BUCKET_SALT = 0xB0C4E7
 
 
 def spill_folder(target: Path) -> Path:
@@ -36,10 +38,9 @@ def spill_folder(target: Path) -> Path:
 
 
 def bucket_of(keys: np.ndarray, n: int) -> np.ndarray:
-    """A bucket per key, spread evenly whatever the keys' pattern (Fibonacci hashing)."""
-    with np.errstate(over="ignore"):
-        mixed = np.asarray(keys, dtype=np.int64).astype(np.uint64) * _MIX
-    return ((mixed >> np.uint64(33)) % np.uint64(n)).astype(np.int64)
+    """A bucket per key, spread evenly whatever the keys' pattern (the pair hash of the queue,
+    with a salt of its own so that buckets do not follow the sample's hash)."""
+    return (unit_hash(keys, BUCKET_SALT) * n).astype(np.int64)
 
 
 class Spilled:
@@ -47,10 +48,10 @@ class Spilled:
 
     name = "in-process"
 
-    def __init__(self, path: Path, left: Table, right: Table | None, target: Path,
+    def __init__(self, source: PairSource, left: Table, right: Table | None, target: Path,
                  sample_above: int, seed: int, workers: int | None, step: Step,
                  bucket: int | None = None) -> None:
-        reader = GivenReader(path, left, right)
+        reader = GivenReader(source, left, right)
         self.folder = spill_folder(target)
         shutil.rmtree(self.folder, ignore_errors=True)
         self.folder.mkdir(mode=0o700)  # pairs of personal records: the owner's alone
@@ -149,17 +150,8 @@ class Spilled:
             keys, codes = keys[ix], codes[ix]
         order = np.argsort(keys)
         keys, codes = keys[order], codes[order]
-        sims = None
-        if scorer is not None:
-            sims = np.empty((len(keys), len(scorer.fields)), dtype=np.float32)
-            where = np.searchsorted(self.held_keys, keys)
-            hit = where < len(self.held_keys)
-            hit[hit] = self.held_keys[where[hit]] == keys[hit]
-            if self.held_sims is not None:
-                sims[hit] = self.held_sims[where[hit]]
-            missing = np.flatnonzero(~hit)
-            if len(missing):
-                sims[missing] = similarities(scorer, keys[missing], progress, self.workers)
+        sims = None if scorer is None else held_or_compared(
+            self.held_keys, self.held_sims, keys, keys, scorer, progress, self.workers)
         self.held_sims = None
         return order_kept(keys, np.zeros(len(keys), dtype=np.int16), codes, sims)
 
@@ -167,9 +159,6 @@ class Spilled:
         shutil.rmtree(self.folder, ignore_errors=True)
 
 
-def worth_spilling(path: Path, sample_above: int) -> bool:
+def worth_spilling(source: PairSource, sample_above: int) -> bool:
     """More rows than a project keeps: Parquet only (a text file of pairs is read whole)."""
-    from ..pairs.pair_files import open_pairs
-
-    source = open_pairs(path)
     return source.is_parquet and source.rows > sample_above

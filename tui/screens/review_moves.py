@@ -8,6 +8,7 @@ from typing import TYPE_CHECKING
 
 from docket.core.types import PairCard, QueueItem
 
+from ..figures import many
 from ..navigation import Mode, Move, Navigator
 from .find import Group, PairPicker
 
@@ -68,8 +69,8 @@ class ReviewMoves:
                                 ("right", self.card.right_id, self.card.sides[1])):
             others = tuple(q.pair_id for q in app.project.candidates_of(side, rid)
                            if q.pair_id != self.card.pair_id)
-            groups.append(Group(f"{name} record: {len(others)} other candidate"
-                                f"{'s' if len(others) != 1 else ''}", others))
+            groups.append(Group(f"{name} record: {many(len(others), 'other candidate')}",
+                                others))
         self.app.push_screen(PairPicker(app.project, app.reviewer, app.mask,
                                         title="other candidates", search=False,
                                         groups=tuple(groups)), self._open_aside)
