@@ -4,7 +4,8 @@
 
 Each build runs in a child process, alternating, so machine noise hits every variant alike:
   one process   --workers 1
-  every core    the default (forked scoring workers sharing the scorer)
+  threads x cores  forked workers, each asking rapidfuzz for every core (as builds did before)
+  every core    the default (forked scoring workers sharing the scorer, one thread each)
 and with --sample-above below --pairs (a sampled project), also
   compare again one process that holds no similarities from the scoring pass and compares
                 every kept pair again (how a sampled build went before it held them)
@@ -39,6 +40,9 @@ a = json.loads(sys.argv[1])
 if a["again"]:  # both engines that hold similarities: pairs in memory, pairs spilled to disk
     from docket.core.storage import spilled
     sampling.held_for = spilled.held_for = lambda *args: sampling.Held()
+if a["threads"]:  # each scoring worker's rapidfuzz calls on every core, as before
+    from docket.core.matching import compare
+    compare.use_threads = lambda n: None
 d = Path(a["dir"])
 spent, last = {}, [time.perf_counter(), ""]
 def progress(name, done, total):  # seconds per build step, up to the next step's report
@@ -59,10 +63,10 @@ print(json.dumps({"wall": time.perf_counter() - t,
 """
 
 
-def run(folder: Path, project: Path, workers: int | None, sample_above: int, again: bool
-        ) -> dict:
+def run(folder: Path, project: Path, workers: int | None, sample_above: int, again: bool,
+        threads: bool = False) -> dict:
     arg = {"dir": str(folder), "project": str(project), "workers": workers,
-           "sample_above": sample_above, "again": again}
+           "sample_above": sample_above, "again": again, "threads": threads}
     done = subprocess.run([sys.executable, "-c", CHILD, json.dumps(arg)], capture_output=True,
                           text=True)
     if done.returncode:
@@ -85,17 +89,18 @@ def main() -> None:
         scale.N_PAIRS = args.pairs
         scale.make_inputs(folder)
     sample_above = args.sample_above or args.pairs
-    variants: list[tuple[str, int | None, bool]] = [("one process", 1, False),
-                                                    ("every core", None, False)]
+    variants: list[tuple[str, int | None, bool, bool]] = [
+        ("one process", 1, False, False), ("threads x cores", None, False, True),
+        ("every core", None, False, False)]
     if sample_above < args.pairs:
-        variants.insert(0, ("compare again", 1, True))
+        variants.insert(0, ("compare again", 1, True, False))
     kept = f"sample of {sample_above:,}" if sample_above < args.pairs else "all kept"
     print(f"{args.pairs:,} pairs from {folder}, {kept}")
     for r in range(args.rounds):
         first = None
-        for name, workers, again in variants:
+        for name, workers, again, threads in variants:
             t = time.perf_counter()
-            out = run(folder, args.work / "bench.docket", workers, sample_above, again)
+            out = run(folder, args.work / "bench.docket", workers, sample_above, again, threads)
             first = first or out["wall"]
             print(f"  round {r + 1} {name:13s} wall {out['wall']:6.1f} s  cpu {out['cpu']:6.1f} s"
                   f"  comparing {out['comparing']:5.1f} s"

@@ -6,7 +6,8 @@ levels out. It never touches the project file, so the same code runs over any ch
 
 from __future__ import annotations
 
-from collections.abc import Callable
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
 from dataclasses import dataclass
 
 import numpy as np
@@ -17,6 +18,26 @@ from rapidfuzz.distance import OSA, JaroWinkler, Levenshtein
 from ..records import text_vectors
 
 MISSING = "missing"
+
+# rapidfuzz's threads per call: every core by default; a process that is one of several
+# scoring workers (a pool, a Dask worker) asks for one, or the cores are asked for twice over.
+_THREADS = {"workers": -1}
+
+
+def use_threads(n: int) -> None:
+    """How many threads each rapidfuzz call of this process may use (-1: every core)."""
+    _THREADS["workers"] = int(n)
+
+
+@contextmanager
+def one_thread() -> Iterator[None]:
+    """rapidfuzz on one thread for the duration (a task among many parallel ones)."""
+    before = _THREADS["workers"]
+    use_threads(1)
+    try:
+        yield
+    finally:
+        use_threads(before)
 
 
 @dataclass(frozen=True)
@@ -31,7 +52,8 @@ def _string_scorer(scorer: Callable, scale: float = 1.0) -> Callable[[list, list
     def run(a: list, b: list) -> np.ndarray:
         if not a:
             return np.zeros(0, dtype=np.float32)
-        out = process.cpdist(a, b, scorer=scorer, workers=-1, dtype=np.float32)
+        out = process.cpdist(a, b, scorer=scorer, workers=_THREADS["workers"],
+                             dtype=np.float32)
         return out / np.float32(scale) if scale != 1.0 else out
     return run
 
@@ -73,7 +95,8 @@ def _string_levels(kind: str, sim: np.ndarray, a: list, b: list) -> np.ndarray:
     for i, cut in reversed(list(enumerate(rule.cuts, start=1))):
         lv[sim >= cut] = i
     if kind == "code":
-        dist = process.cpdist(a, b, scorer=OSA.distance, workers=-1) if a else np.zeros(0)
+        dist = (process.cpdist(a, b, scorer=OSA.distance, workers=_THREADS["workers"])
+                if a else np.zeros(0))
         lv[dist <= 1] = 1
     lv[exact] = 0
     return lv
@@ -132,8 +155,8 @@ def word_best_match(a: list, b: list) -> np.ndarray:
     cells = na * nb
     wa = [w for x, y in zip(sa, sb, strict=True) for w in x for _ in y]
     wb = [w for x, y in zip(sa, sb, strict=True) for _ in x for w in y]
-    sim = process.cpdist(wa, wb, scorer=JaroWinkler.normalized_similarity, workers=-1,
-                         dtype=np.float32)
+    sim = process.cpdist(wa, wb, scorer=JaroWinkler.normalized_similarity,
+                         workers=_THREADS["workers"], dtype=np.float32)
     if not len(a):
         return np.zeros(0, dtype=np.float32)
     # Pair i's cells are its na x nb grid, row after row, from offset[i] on.

@@ -18,6 +18,7 @@ import numpy as np
 import pandas as pd
 
 from ..errors import DocketError
+from ..matching import compare
 from ..ordering.sampling import SamplePlan, pick
 from ..pairs import blocking
 from ..pairs.candidates import possible_pairs, rules_for, width_of
@@ -76,7 +77,8 @@ def _joined_part(frame: pd.DataFrame, dedupe: bool, width: int, rule: int) -> pd
 
 
 def _codes_part(frame: pd.DataFrame, scorer: ChunkScorer) -> pd.DataFrame:
-    return frame.assign(code=scorer.codes(frame["key"].to_numpy()))
+    with compare.one_thread():  # Dask runs a task per core already
+        return frame.assign(code=scorer.codes(frame["key"].to_numpy()))
 
 
 def _pick_part(frame: pd.DataFrame, plan: SamplePlan) -> pd.DataFrame:

@@ -21,7 +21,7 @@ from typing import Any
 
 import numpy as np
 
-from ..matching import scoring
+from ..matching import compare, scoring
 from ..ordering.queue import unit_hash
 from ..ordering.sampling import Held
 
@@ -67,9 +67,10 @@ def score_chunk(scorer: Any, keys: np.ndarray, start: int, held: Held) -> Scored
 _JOB: dict[str, Any] = {}  # the scorer and keys, set before the workers are forked
 
 
-def _quiet() -> None:
+def _start_worker() -> None:
     # Ctrl-C is the build's to handle (it ends the pool); a worker would print a traceback
     signal.signal(signal.SIGINT, signal.SIG_IGN)
+    compare.use_threads(1)  # the pool has a process per core already
 
 
 def _work(bounds: tuple[int, int]) -> Scored:
@@ -103,7 +104,7 @@ def score_all(scorer: Any, keys: np.ndarray, held: Held, workers: int,
     _JOB.update(scorer=scorer, keys=keys, held=held)
     gc.freeze()  # the workers' collector then leaves the shared objects (and their pages) alone
     try:
-        with multiprocessing.get_context("fork").Pool(workers, initializer=_quiet) as pool:
+        with multiprocessing.get_context("fork").Pool(workers, initializer=_start_worker) as pool:
             for part in pool.imap(_work, bounds):
                 yield part
                 if progress:
