@@ -2,8 +2,9 @@
 
 Front ends use :class:`Project` (the facade), the dataclasses in :mod:`docket.core.types`, the
 errors in :mod:`docket.core.errors`, and the few helpers named in ``__all__`` below: how to
-word odds and factors, the personal-data caution, the parsers of ``--map`` and ``--field``, and
-the writers of the rows the facade returns. Nothing here imports a user interface.
+word odds and factors, the personal-data caution, the parsers of ``--map`` and ``--field``,
+counts with their nouns, and the writers of the rows the facade returns. Nothing here imports a
+user interface.
 """
 
 from importlib import import_module
@@ -31,6 +32,8 @@ _ELSEWHERE = {
     "atomic_write": ("exports.exporting", "atomic_write"),
     "write_rows": ("exports.export_kinds", "write_rows"),
     "score_to_parts": ("exports.score_all", "score_to_parts"),
+    "many": ("wording", "many"),
+    "noun": ("wording", "noun"),
 }
 
 __all__ = ["DocketError", "Project", *_ELSEWHERE]

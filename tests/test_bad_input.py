@@ -46,7 +46,7 @@ CASES = {
     "garbled parquet": (lambda d: write(d / "bad.parquet", "not parquet"), ["bad.parquet"]),
     "id column missing": (lambda d: write(d / "noid.csv", "key,name\n1,a\n"), ["noid.csv", "'id'"]),
     "empty ids": (lambda d: write(d / "emptyid.csv", "id,name\n1,a\n,b\n"),
-                  ["emptyid.csv", "row(s) 3"]),
+                  ["emptyid.csv", "empty on row 3 "]),
     "duplicate ids": (lambda d: write(d / "dup.csv", "id,name\n1,a\n1,b\n2,c\n2,d\n"),
                       ["dup.csv", "duplicate ids", "1, 2"]),
     "empty table": (lambda d: write(d / "empty.csv", "id,name\n"), ["empty.csv", "no records"]),

@@ -117,10 +117,21 @@ def test_self_and_repeated_pairs_are_counted_and_named(tmp_path: Path,
     assert main(["new", str(path), "--left", str(left), "--id", "id", "--pairs",
                  str(pairs)]) == 0
     err = capsys.readouterr().err
-    assert "pairs.csv" in err and "2 pair(s) a record with itself, row(s) 3, 7" in err
-    assert "2 pair(s) given before" in err and "row(s) 4, 6" in err
+    assert "pairs.csv" in err and "2 pairs of a record with itself, rows 3, 7" in err
+    assert "2 pairs given before" in err and "rows 4, 6" in err
     with Project.open(path, readonly=True) as project:
         assert project.connection.execute("SELECT count(*) FROM pairs").fetchone()[0] == 2
+
+
+def test_one_self_pair_and_one_repeat_are_worded_in_the_singular(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    left = write(tmp_path / "t.csv", TOWNS)
+    pairs = write(tmp_path / "pairs.csv", "left_id,right_id\n1,2\n3,3\n2,1\n")
+    assert main(["new", str(tmp_path / "p.docket"), "--left", str(left), "--id", "id",
+                 "--pairs", str(pairs)]) == 0
+    err = capsys.readouterr().err
+    assert "1 pair of a record with itself, row 3;" in err
+    assert "1 pair given before (the same two ids, in either order), row 4;" in err
 
 
 def test_label_refuses_a_fractional_pair_id(sample_project: Path, tmp_path: Path,

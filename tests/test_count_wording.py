@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from docket.core.wording import noun
 from docket.tui.figures import labelled_text, many
 
 
@@ -10,6 +11,11 @@ def test_one_is_singular_and_every_other_count_plural() -> None:
     assert many(0, "audit pair") == "0 audit pairs"
     assert many(2, "match") == "2 matches"
     assert many(1500, "log entry", "log entries") == "1,500 log entries"
+
+
+def test_a_noun_without_its_count_agrees_too() -> None:
+    assert [noun(n, "row") for n in (0, 1, 2)] == ["rows", "row", "rows"]
+    assert noun(3, "box") == "boxes" and noun(1, "entry", "entries") == "entry"
 
 
 def test_the_labelled_share_agrees_with_its_counts() -> None:

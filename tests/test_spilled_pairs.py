@@ -47,7 +47,7 @@ def test_spilled_build_equals_the_in_memory_one(tmp_path: Path,
     made, spill_warn = _build(tmp_path / "s.docket", folder, True, monkeypatch)
     plain, plain_warn = _build(tmp_path / "m.docket", folder, False, monkeypatch)
     assert made == plain
-    assert spill_warn == plain_warn and "3 pair(s) given before" in spill_warn[0]
+    assert spill_warn == plain_warn and "3 pairs given before" in spill_warn[0]
     with sqlite3.connect(tmp_path / "s.docket") as conn:
         kept = conn.execute("SELECT count(*) FROM pairs").fetchone()[0]
     assert kept == KEEP  # sampled: the project holds the sample, not all 1,800 pairs

@@ -10,7 +10,7 @@ from typing import Any
 
 from .cli_base import command, default_reviewer, open_project
 from .cli_checks import at_least, share
-from .figures import many
+from .figures import many, noun
 from .figures import ratio_text as _ratio
 from .terminal import json_text, shown
 
@@ -25,7 +25,7 @@ def print_built(built: Any) -> None:
     print("fields compared: " + ", ".join(f"{f.name} ({f.kind})" for f in built.fields))
     print(f"blocking rules ({how}):")
     for rule, n in r.per_rule.items():
-        print(f"  {rule:<40} {n:>10,} {'pair' if n == 1 else 'pairs'}")
+        print(f"  {rule:<40} {n:>10,} {noun(n, 'pair')}")
     print(f"candidate pairs: {r.pairs:,} of {r.possible:,} possible "
           f"(reduction ratio {_ratio(r.reduction_ratio)}; "
           f"{100 * r.pairs / max(1, r.possible):.3g} % of all pairs)")

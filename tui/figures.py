@@ -9,6 +9,10 @@ from __future__ import annotations
 from collections.abc import Mapping
 from typing import Any
 
+# counts are worded in the core, so its messages and the screens agree
+from docket.core import many as many
+from docket.core import noun as noun
+
 DASH = "—"
 TOO_FEW = "too few pairs to say"
 
@@ -57,15 +61,6 @@ def ratio_text(value: float) -> str:
     while digits < 9 and round(value, digits) == 1.0 and value < 1.0:
         digits += 1
     return f"{value:.{digits}f}"
-
-
-def many(n: int, noun: str, plural: str = "") -> str:
-    """A count with its noun in agreement: "1 audit pair", "2 audit pairs", "1,500 matches"."""
-    if n == 1:
-        return f"1 {noun}"
-    if not plural:
-        plural = noun + ("es" if noun.endswith(("ch", "sh", "s", "x")) else "s")
-    return f"{n:,} {plural}"
 
 
 def labelled_text(audit: Mapping[str, Any], held: str = "") -> str:

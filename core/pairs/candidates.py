@@ -14,6 +14,7 @@ import pandas as pd
 from ..errors import DocketError
 from ..records.sources import Table
 from ..types import FieldSpec
+from ..wording import many, noun
 from . import autoblock, blocking
 from .pair_files import PairSource, id_batches, positions
 
@@ -83,12 +84,14 @@ class GivenReader:
     def warn(self, n_again: int, again_rows: list[int]) -> None:
         notes = []
         if self.n_self:
-            notes.append(f"{self.n_self:,} pair(s) a record with itself, row(s) "
+            notes.append(f"{many(self.n_self, 'pair')} of a record with itself, "
+                         f"{noun(self.n_self, 'row')} "
                          f"{', '.join(self.self_rows)}{'…' if self.n_self > 5 else ''}")
         if n_again:
             rows = [self.row_name(r) for r in sorted(again_rows)[:5]]
-            notes.append(f"{n_again:,} pair(s) given before (the same two ids, in either "
-                         f"order), row(s) {', '.join(rows)}{'…' if n_again > 5 else ''}")
+            notes.append(f"{many(n_again, 'pair')} given before (the same two ids, in either "
+                         f"order), {noun(n_again, 'row')} "
+                         f"{', '.join(rows)}{'…' if n_again > 5 else ''}")
         if notes:
             warnings.warn(f"{self.source.path}: left out {'; and '.join(notes)}; each pair "
                           "counts once", UserWarning, stacklevel=4)

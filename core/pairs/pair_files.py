@@ -18,6 +18,7 @@ import numpy as np
 import pandas as pd
 
 from ..errors import DocketError
+from ..wording import many
 
 BATCH = 500_000
 ID_COLUMNS = ("left_id", "right_id")
@@ -173,7 +174,7 @@ def positions(where: Path | str, a: pd.Series, b: pd.Series, left_index: pd.Inde
     for pos, ids, side, name in ((lpos, a, "left", left_name), (rpos, b, "right", right_name)):
         if (pos < 0).any():
             bad = list(dict.fromkeys(ids[pos < 0].tolist()))
-            raise DocketError(f"{where}: {len(bad)} {side} id(s) not in {name}: "
+            raise DocketError(f"{where}: {many(len(bad), side + ' id')} not in {name}: "
                               f"{', '.join(map(str, bad[:5]))}{'…' if len(bad) > 5 else ''}")
     return lpos.astype(np.int64), rpos.astype(np.int64)
 

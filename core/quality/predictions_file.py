@@ -12,6 +12,7 @@ from ..errors import DocketError
 from ..records.sources import read_frame
 from ..storage import store
 from ..storage.project_file import ProjectFile
+from ..wording import many
 
 SCORE_COLUMNS = ("score", "probability")
 LABEL_COLUMNS = ("label", "predicted")
@@ -23,7 +24,7 @@ def _flag(values: pd.Series, path: Path) -> np.ndarray:
     text = values.map(lambda v: None if v is None else str(v).strip().lower())
     bad = sorted({v for v in text if v not in TRUE_WORDS and v not in FALSE_WORDS}, key=str)
     if bad:
-        raise DocketError(f"{path}: {len(bad)} label value(s) not understood: "
+        raise DocketError(f"{path}: {many(len(bad), 'label value')} not understood: "
                           f"{', '.join(map(str, bad[:5]))}; use match / non-match (or 1 / 0)")
     return text.isin(TRUE_WORDS).to_numpy()
 
@@ -70,7 +71,8 @@ def read_predictions(project: ProjectFile, path: str | Path) -> tuple[pd.Series,
         unknown = sorted(set(ids) - _known_ids(project, side))
         if unknown:
             more = "…" if len(unknown) > 5 else ""
-            raise DocketError(f"{path}: {len(unknown)} {side} id(s) name no record: "
+            raise DocketError(f"{path}: {many(len(unknown), side + ' id')} "
+                              f"{'names' if len(unknown) == 1 else 'name'} no record: "
                               f"{', '.join(unknown[:5])}{more}")
     if kind is not None:
         score = _numbers(frame[kind], kind, path)

@@ -11,6 +11,7 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from ..errors import DocketError
+from ..wording import noun
 from .text_tables import EncodingWarning_ as EncodingWarning_
 from .text_tables import check_names, read_delimited, read_json
 
@@ -145,7 +146,8 @@ def load_table(path: str | Path, id_column: str | None) -> Table:
     empty = ids.isna()
     if empty.any():
         rows = [str(i + 2) for i in list(empty.to_numpy().nonzero()[0][:5])]
-        raise DocketError(f"{path}: column '{id_column}' is empty on row(s) {', '.join(rows)} "
+        raise DocketError(f"{path}: column '{id_column}' is empty on {noun(len(rows), 'row')} "
+                          f"{', '.join(rows)}{'…' if empty.sum() > 5 else ''} "
                           "(counting the header as row 1); every record needs an id")
     dup = ids[ids.duplicated(keep=False)]
     if len(dup):

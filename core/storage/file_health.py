@@ -14,6 +14,7 @@ import stat
 from pathlib import Path
 
 from ..errors import DocketError
+from ..wording import many
 
 # A whole-file check reads every page: about 0.1 s for the demo, seconds for millions of pairs.
 # Above this size only the tables that commands write are checked on opening; damage elsewhere
@@ -83,7 +84,7 @@ def check_integrity(conn: sqlite3.Connection, path: Path) -> None:
     problems = [line for f in found if f != "ok" for line in f.splitlines()
                 if line.strip() and not line.startswith("***")]
     if problems:
-        more = f", and {len(problems) - 1} more problem(s)" if len(problems) > 1 else ""
+        more = f", and {many(len(problems) - 1, 'more problem')}" if len(problems) > 1 else ""
         raise ProjectFileError(damaged(path, problems[0] + more))
 
 

@@ -103,7 +103,7 @@ class AgreementScreen(TeamScreen):
             self.entries[(r["reviewer_a"], r["reviewer_b"])] = r
             self.entries[(r["reviewer_b"], r["reviewer_a"])] = r
         head = Text(f"agreement · {app.project_name} · ", "bold")
-        head.append(f"{len(names)} reviewer{'s' if len(names) != 1 else ''}")
+        head.append(many(len(names), "reviewer"))
         head.append(" · holds counted as a third category" if report.include_hold else
                     " · holds count as no rating", p.muted)
         if not report.reviewer_pairs:
@@ -213,8 +213,7 @@ class DisagreementsScreen(TeamScreen):
         p = Palette.from_variables(self.app.get_css_variables(), self.app.no_color)
         self.rows = app.project.disagreements(self.a, self.b)
         sa, sb = self.shown.get(self.a, self.a), self.shown.get(self.b, self.b)
-        head = Text(f"{len(self.rows):,} disagreement{'s' if len(self.rows) != 1 else ''} of ",
-                    "bold")
+        head = Text(f"{many(len(self.rows), 'disagreement')} of ", "bold")
         head.append_text(literal.one_line(sa, NAME_WIDTH, p.escape))
         head.append(" and ", "bold")
         head.append_text(literal.one_line(sb, NAME_WIDTH, p.escape))

@@ -16,6 +16,7 @@ from textual.widgets.option_list import Option
 from docket.core.project import Project
 
 from .. import literal
+from ..figures import many
 from ..masking import Mask, masked
 from ..widgets.evidence import probability_text
 
@@ -65,7 +66,7 @@ class PairPicker(ModalScreen[int | None]):
     def on_input_submitted(self, event: Input.Submitted) -> None:
         event.stop()
         found = self.project.find(event.value, limit=LIMIT, skip=self.mask.columns)
-        heading = (f"{len(found)} pair{'s' if len(found) != 1 else ''}"
+        heading = (many(len(found), "pair")
                    + (f" (first {LIMIT})" if len(found) >= LIMIT else ""))
         self._fill((Group(heading, tuple(found)),))
         results = self.query_one(OptionList)
