@@ -84,6 +84,10 @@ def test_odds_wording() -> None:
     assert factor_text(-math.log(3.5)) == "÷3.5"
     assert factor_text(math.log(3084)) == "×3.1k"
     assert odds_text(math.log(3662)) == "3.7k to 1"
+    # a mantissa that rounds up to 10 moves the exponent on (it read "10e5")
+    assert odds_text(-math.log(999_999)) == "1 to 1e6"
+    assert factor_text(math.log(9.7e8)) == "×1e9"
+    assert factor_text(math.log(2.2e9)) == "×2e9"
 
 
 def _check_cards(project: Project, pair_ids: list[int]) -> None:

@@ -134,8 +134,9 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "rules docket chooses from the data), compares them, fits a Fellegi-Sunter model "
                  "and draws the audit slice.\n\nBlocking keys: col, col[:N], tokens(col), "
                  "digits(col), year(col); join keys with & inside a rule; several --block rules "
-                 "are OR-ed; near(col) (each record's nearest by TF-IDF similarity) stands "
-                 "alone.\nField kinds: name, text, longtext, code, number, date (or skip).",
+                 "are OR-ed; near(col) (each record's nearest by TF-IDF similarity) and * "
+                 "(every pair, for small tables) stand alone.\nField kinds: name, text, "
+                 "longtext, code, number, date (or skip).",
                  "docket new vets.docket --left north.csv --right south.csv "
                  "--left-id client_id --right-id ref --map owner=owner_name",
                  new)

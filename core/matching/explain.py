@@ -104,4 +104,7 @@ def _count(x: float) -> str:
     if x < 999_500:
         return f"{x / 1000:.0f}k"
     exp = math.floor(math.log10(x))
-    return f"{x / 10 ** exp:.0f}e{exp}"
+    mantissa = round(x / 10 ** exp)
+    if mantissa == 10:  # 999,999 is "1e6", not "10e5"
+        mantissa, exp = 1, exp + 1
+    return f"{mantissa}e{exp}"

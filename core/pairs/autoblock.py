@@ -7,7 +7,15 @@ from typing import Any
 import pandas as pd
 
 from ..types import FieldSpec
-from .blocking import Rule, _drop_common_tokens, _exploded, estimate_pairs, parse_rule, rule_pairs
+from .blocking import (
+    EVERY,
+    Rule,
+    _drop_common_tokens,
+    _exploded,
+    estimate_pairs,
+    parse_rule,
+    rule_pairs,
+)
 from .neighbours import NEAR_K
 
 NEAR_KINDS = ("longtext", "name")
@@ -31,7 +39,8 @@ def choose_rules(left: pd.DataFrame, right: pd.DataFrame | None, fields: list[Fi
     similarity (``near``) take the word key's place where shared words cover less than half of
     the records or give each record more pairs than its few nearest. Each must cover at least
     half of the records, and their estimated pairs together stay within a budget that grows
-    with the number of records.
+    with the number of records. When no rule fits and all possible pairs fit in that budget
+    (small tables), every pair is compared.
     """
     n_right = len(left) if right is None else len(right)
     budget = _budget(len(left), n_right, max_pairs)
@@ -70,6 +79,8 @@ def choose_rules(left: pd.DataFrame, right: pd.DataFrame | None, fields: list[Fi
             found = len(rule_pairs(rule, left, right, fields, max_pairs)[0])
         elif not words_fit:
             continue
+        if found == 0:  # a key no two records share finds nothing
+            continue
         bucket.append((found, f.kind != "name", rule))
     chosen: list[Rule] = []
     spent = 0
@@ -81,4 +92,8 @@ def choose_rules(left: pd.DataFrame, right: pd.DataFrame | None, fields: list[Fi
                 chosen.append(rule)
                 spent += pairs
                 taken += 1
+    possible = len(left) * (len(left) - 1) // 2 if right is None else len(left) * n_right
+    if not chosen and possible <= budget:
+        # No key covers the records, but there are few enough pairs to compare them all.
+        chosen.append(parse_rule(EVERY, fields))
     return chosen

@@ -30,15 +30,18 @@ from ..types import FieldSpec
 _KEY = re.compile(r"^\s*(?:(tokens|digits|year|near)\s*\(\s*([^()]+?)\s*\)|([^\[\]()&]+?)"
                   r"(?:\[\s*:\s*(\d+)\s*\])?)\s*$")
 DEFAULT_MAX_PAIRS = 5_000_000
+EVERY = "*"  # the rule that compares every pair: small tables need no blocking
 
 
 @dataclass(frozen=True)
 class Key:
-    func: str  # "value", "prefix", "tokens", "digits", "year"
+    func: str  # "value", "prefix", "tokens", "digits", "year", "near", "every"
     column: str
     length: int = 0
 
     def __str__(self) -> str:
+        if self.func == "every":
+            return EVERY
         if self.func == "value":
             return self.column
         if self.func == "prefix":
@@ -73,6 +76,11 @@ class BlockingReport:
 
 
 def parse_rule(text: str, fields: list[FieldSpec]) -> Rule:
+    if text.strip() == EVERY:
+        return Rule((Key("every", EVERY),))
+    if any(part.strip() == EVERY for part in text.split("&")):
+        raise DocketError(f"--block {text!r}: {EVERY} (every pair) stands alone; give it as "
+                          f"--block '{EVERY}'")
     names = {f.name for f in fields}
     keys = []
     for part in text.split("&"):
@@ -180,9 +188,9 @@ def rule_keys(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
     Joining the two on ``key`` gives the rule's pairs: in this process (``rule_pairs``) or
     as a distributed join (``dask_engine``).
     """
-    if rule.keys[0].func == "near":  # neighbours are no key: nothing to join on
-        raise DocketError(f"--block {str(rule)!r}: near(...) runs in this process only; use "
-                          "it without --engine dask, or give a word key such as tokens(...)")
+    if rule.keys[0].func in ("near", "every"):  # no key: nothing to join on
+        raise DocketError(f"--block {str(rule)!r} runs in this process only; use it without "
+                          "--engine dask, or give a word key such as tokens(...)")
     kind_of = {f.name: f.kind for f in fields}
     lk = _exploded(rule, left, {f.name: f.left_column for f in fields}, kind_of)
     rk = None if right is None else _exploded(rule, right,
@@ -202,6 +210,8 @@ def rule_pairs(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
     """Record positions (left, right) of the pairs one rule finds; dedupe mode when no right."""
     if rule.keys[0].func == "near":
         return _near(rule, left, right, fields, max_pairs)
+    if rule.keys[0].func == "every":
+        return every_pair(len(left), None if right is None else len(right), max_pairs)
     lk, rk = rule_keys(rule, left, right, fields, max_pairs, token_share)
     joined = lk.merge(lk if rk is None else rk, on="key", suffixes=("_l", "_r"))
     li = joined["pos_l"].to_numpy(np.int64)
@@ -224,6 +234,20 @@ def _near(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
     li, ri = near_pairs(left[spec.left_column],
                         None if right is None else right[spec.right_column])
     return dedupe_pairs(li, ri)
+
+
+def every_pair(n_left: int, n_right: int | None, max_pairs: int
+               ) -> tuple[np.ndarray, np.ndarray]:
+    """All pairs of the records (each unordered pair once in dedupe mode, n_right None)."""
+    possible = n_left * (n_left - 1) // 2 if n_right is None else n_left * n_right
+    if possible > max_pairs:
+        raise DocketError(f"--block '{EVERY}' makes all {possible:,} pairs, over the cap of "
+                          f"{max_pairs:,}; give blocking rules instead or raise --max-pairs")
+    if n_right is None:
+        li, ri = np.triu_indices(n_left, k=1)
+        return li.astype(np.int64), ri.astype(np.int64)
+    li, ri = np.divmod(np.arange(possible, dtype=np.int64), max(1, n_right))
+    return li, ri
 
 
 def dedupe_pairs(li: np.ndarray, ri: np.ndarray) -> tuple[np.ndarray, np.ndarray]:

@@ -166,7 +166,7 @@ def _blocked(spec: Any, left: Table, right: Table | None, fields: list[FieldSpec
     parts = []
     for i, rule in enumerate(rules):
         rframe = None if right is None else right.frame
-        if rule.keys[0].func == "near":  # nearest neighbours: found here, no key to join on
+        if rule.keys[0].func in ("near", "every"):  # found here: no key to join on
             li, ri = blocking.rule_pairs(rule, left.frame, rframe, fields, spec.max_pairs)
             near = pd.DataFrame({"pos_l": li, "pos_r": ri})
             parts.append(dd.from_pandas(_joined_part(near, False, width, i),
