@@ -174,6 +174,14 @@ def test_one_to_one_scores_are_the_one_to_one_predictions(tmp_path: Path) -> Non
         assert ((score >= project.threshold) == (frame["predicted"] == "match")).all()
         with pytest.raises(DocketError, match="no gold labels yet"):
             evaluate(project)
+        # held audit pairs are counted, so a reviewer who only held pairs knows why
+        audit = [r[0] for r in project.connection.execute(
+            "SELECT pair_id FROM pairs WHERE audit = 1 ORDER BY pair_id LIMIT 2")]
+        for pid in audit:
+            project.decide(int(pid), "ola", "hold")
+        with pytest.raises(DocketError, match=r"0 of [\d,]+ drawn pairs; 2 audit pairs are on "
+                                              "hold, and a hold is no gold label"):
+            evaluate(project)
 
 
 def test_machine_rater_equal_to_the_truth(answered: Project, tmp_path: Path) -> None:

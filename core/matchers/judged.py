@@ -8,7 +8,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..errors import DocketError
+from ..quality.audit_data import no_gold_yet
 from ..quality.audit_sample import AuditSample
 from ..quality.evaluate import model_scores, sample_from
 from ..reviewing.gold import gold_labels
@@ -74,9 +74,7 @@ def gather(project: ProjectFile, names: Sequence[str] | None = None,
     kept = [(p, h, pi) for p, h, pi in audit if p in gold]
     if not kept:
         drawn = len(audit)
-        raise DocketError(f"the audit slice has no gold labels yet (0 of {drawn:,} drawn "
-                          "pairs); review some: every fifth pair of a reviewer's queue is an "
-                          "audit pair")
+        raise no_gold_yet(project, drawn)
     strata = {int(h): v for h, v in project.meta.get("audit_strata", {}).items()}
     sample = sample_from(np.zeros(len(kept)), [gold[p] for p, _, _ in kept],
                          [h for _, h, _ in kept], [pi for _, _, pi in kept], strata)

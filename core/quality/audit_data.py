@@ -14,10 +14,12 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from ..errors import DocketError
 from ..matching.decision_rule import predicted
 from ..reviewing.gold import gold_labels, standing
 from ..storage.project_file import ProjectFile
 from ..storage.refit import audit_scores
+from ..wording import many
 from .audit_sample import AuditSample
 
 
@@ -77,6 +79,17 @@ def held_pairs(project: ProjectFile, gold: Mapping[int, int]) -> set[int]:
     """Pairs with a standing hold and no gold label."""
     return {pid for pid, e in standing(project.connection).items() if pid not in gold and
             "hold" in (*e.reviewers.values(), *e.adjudicators.values())}
+
+
+def no_gold_yet(project: ProjectFile, drawn: int) -> DocketError:
+    """The one line for an audit slice with no gold label, counting the held audit pairs."""
+    audit = set(audit_rows(project)["pair_id"].tolist())
+    held = len(held_pairs(project, {}) & audit)
+    holds = (f"; {many(held, 'audit pair')} {'is' if held == 1 else 'are'} on hold, and a "
+             "hold is no gold label: decide them or adjudicate" if held else "")
+    return DocketError(f"the audit slice has no gold labels yet (0 of {drawn:,} drawn pairs"
+                       f"{holds}); review some: every fifth pair of a reviewer's queue is an "
+                       "audit pair")
 
 
 def audit_sample(project: ProjectFile, scores: pd.Series | None = None) -> AuditSample:

@@ -24,7 +24,7 @@ from ..ordering.sampling import sampling_note
 from ..reviewing.agreement import json_ready
 from ..storage.project_file import ProjectFile
 from . import estimates
-from .audit_data import audit_rows, audit_sample, audit_strata, gold_y
+from .audit_data import audit_rows, audit_sample, audit_strata, gold_y, no_gold_yet
 from .audit_data import model_scores as model_scores  # part of this module's API
 from .audit_data import sample_from as sample_from  # part of this module's API
 from .machine_rater import machine_rater
@@ -93,9 +93,7 @@ def _report(project: ProjectFile, scores: pd.Series, threshold: float,
     sample, design_strata = design or (audit_sample(project, scores), audit_strata(project))
     drawn = sum(v[1] for v in design_strata.values())
     if sample.n_labelled == 0:
-        raise DocketError(f"the audit slice has no gold labels yet (0 of {drawn:,} drawn "
-                          "pairs); review some: every fifth pair of a reviewer's queue is "
-                          "an audit pair")
+        raise no_gold_yet(project, drawn)
     ts = _thresholds(thresholds, threshold)
     table = estimates.threshold_table(sample, ts, confidence)
     rows = [e.to_dict() for e in table]
