@@ -103,3 +103,35 @@ def test_score_refuses_an_existing_output(sample_project_file: Path, tmp_path: P
                     str(tmp_path / "new"), "--model", str(pairs))
     assert_one_line_error(code, err, "model")
     assert not (tmp_path / "new").exists()
+
+
+def _edited(model: dict, change) -> dict:
+    copy = json.loads(json.dumps(model))
+    change(copy)
+    return copy
+
+
+def test_a_damaged_or_foreign_model_file_gets_one_line(sample_project_file: Path,
+                                                       tmp_path: Path, capsys) -> None:
+    model = tmp_path / "model.json"
+    assert main(["export", str(sample_project_file), "--what", "model", "-o", str(model)]) == 0
+    good = json.loads(model.read_text())
+    pairs = tmp_path / "pairs.csv"
+    pairs.write_text("left_id,right_id\nN-00001,S-00001\n", encoding="utf-8")
+    edits = {
+        "2 fields but log-odds for 9": lambda m: m.update(fields=m["fields"][:2]),
+        "unknown kind 'banana'": lambda m: m["fields"][0].update(kind="banana"),
+        "log-odds for": lambda m: m["log_odds"]["parts"][0].pop(),
+        "not a finite number": lambda m: m["log_odds"].update(base=float("nan")),
+        "between 0 and 1": lambda m: m.update(threshold=1.5),
+        # a model of other tables: a column these records do not have
+        "no column 'owner_x'": lambda m: m["fields"][0].update(left_column="owner_x"),
+    }
+    capsys.readouterr()
+    for i, (needle, change) in enumerate(edits.items()):
+        bad = tmp_path / f"bad{i}.json"
+        bad.write_text(json.dumps(_edited(good, change)), encoding="utf-8")
+        code, err = run(capsys, "score", str(sample_project_file), "--pairs", str(pairs),
+                        "-o", str(tmp_path / f"out{i}"), "--model", str(bad))
+        assert_one_line_error(code, err, needle)
+        assert not (tmp_path / f"out{i}").exists()

@@ -69,8 +69,20 @@ def stored_tables(project: ProjectFile, left: Path | None, right: Path | None
     return lt, load_table(right, meta["right_id_column"]) if right else stored("right")
 
 
+def _has_columns(model: ScoringModel, table: Table, side: str) -> None:
+    for f in model.fields:
+        column = f.left_column if side == "left" else f.right_column
+        if column not in table.frame.columns:
+            raise DocketError(f"{table.path}: no column '{column}', which the model compares "
+                              f"(field '{f.name}'); score with a model of these tables, or "
+                              "name tables that have it with --left/--right")
+
+
 def make_job(model: ScoringModel, left: Table, right: Table | None, where: str) -> ScoreJob:
     other = left if right is None else right
+    _has_columns(model, left, "left")
+    if right is not None:
+        _has_columns(model, right, "right")
     lnorm = scoring.normalised(model.fields, left.frame, "left")
     rnorm = lnorm if right is None else scoring.normalised(model.fields, right.frame, "right")
     return ScoreJob(model, lnorm, rnorm, pd.Index(left.frame.index),

@@ -21,6 +21,7 @@ import pandas as pd
 
 from ..errors import DocketError
 from ..types import FieldSpec
+from .compare import KINDS, level_names
 from .explain import LogOddsTable, explanation
 from .scoring import compare_pairs
 
@@ -65,9 +66,33 @@ class ScoringModel:
                               f"docket reads version {VERSION}; " +
                               ("upgrade docket to read it" if newer else HOW_TO + " again"))
         try:
-            return cls.from_dict(d)
-        except (KeyError, TypeError, ValueError) as exc:
-            raise DocketError(f"{path}: a damaged model file (no {exc}); {HOW_TO}") from None
+            model = cls.from_dict(d)
+        except (KeyError, TypeError, ValueError, AttributeError) as exc:
+            what = f"no {exc}" if isinstance(exc, KeyError) else str(exc)
+            raise DocketError(f"{path}: a damaged model file ({what}); {HOW_TO}") from None
+        problem = model.problem()
+        if problem:
+            raise DocketError(f"{path}: a damaged model file ({problem}); {HOW_TO}")
+        return model
+
+    def problem(self) -> str:
+        """What makes the model unusable (a hand-edited or damaged file), or ''."""
+        if not 0.0 < self.threshold < 1.0:
+            return f"threshold {self.threshold} is not between 0 and 1"
+        if not isinstance(self.frequent, dict):
+            return "its frequent values are no table of fields"
+        if len(self.table.parts) != len(self.fields):
+            return (f"{len(self.fields)} fields but log-odds for {len(self.table.parts)}")
+        for f, part in zip(self.fields, self.table.parts, strict=True):
+            if f.kind not in KINDS:
+                return f"field {f.name!r} has the unknown kind {f.kind!r}"
+            levels = len(level_names(f.kind)) + (1 if f.name in self.frequent else 0)
+            if len(part) != levels:
+                return (f"field {f.name!r} ({f.kind}) has {len(part)} log-odds for "
+                        f"{levels} levels")
+        if not all(np.isfinite([self.table.base, *(x for p in self.table.parts for x in p)])):
+            return "a log-odds that is not a finite number"
+        return ""
 
     def score_levels(self, levels: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Log-odds and probability of rows of levels."""
