@@ -18,6 +18,8 @@ def cell(v: object) -> str | None:
         return None
     if isinstance(v, float) and v.is_integer():
         v = int(v)
+    if isinstance(v, bytes):  # UTF-8 text, or hexadecimal digits when it is not text
+        v = v.decode() if v.isascii() else "0x" + v.hex()
     text = str(v)
     return None if text.strip() == "" else text
 

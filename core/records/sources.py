@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import json
+from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -123,8 +125,36 @@ def _is_text(s: pd.Series) -> bool:
 def _text(v: object) -> str | None:
     if isinstance(v, float) and v.is_integer():
         v = int(v)
-    s = str(v)
+    if isinstance(v, (np.ndarray, list, tuple, dict)):
+        # a Parquet list, map or struct: JSON text, not numpy's "['a' 'b']"
+        s = json.dumps(_plain(v), ensure_ascii=False, default=str)
+    elif isinstance(v, bytes):
+        s = _bytes_text(v)
+    else:
+        s = str(v)
     return s if s.strip() != "" else None
+
+
+def _plain(v: object) -> object:
+    if isinstance(v, np.ndarray | list | tuple):
+        return [_plain(x) for x in v]
+    if isinstance(v, dict):
+        return {str(k): _plain(x) for k, x in v.items()}
+    if isinstance(v, bytes):
+        return _bytes_text(v)
+    if isinstance(v, np.generic):
+        return v.item()
+    if isinstance(v, float) and not np.isfinite(v):
+        return None if np.isnan(v) else str(v)
+    return v
+
+
+def _bytes_text(v: bytes) -> str:
+    """Bytes as their UTF-8 text, or as hexadecimal digits when they are not text."""
+    try:
+        return v.decode("utf-8")
+    except UnicodeDecodeError:
+        return "0x" + v.hex()
 
 
 def load_table(path: str | Path, id_column: str | None) -> Table:
@@ -143,20 +173,18 @@ def load_table(path: str | Path, id_column: str | None) -> Table:
         raise DocketError(f"{path}: no column '{id_column}'; columns are "
                           f"{', '.join(frame.columns)}; pass the right one with --id")
     ids = frame[id_column]
-    empty = ids.isna()
+    empty = ids.isna().to_numpy()
     if empty.any():
-        rows = [str(i + 2) for i in list(empty.to_numpy().nonzero()[0][:5])]
-        raise DocketError(f"{path}: column '{id_column}' is empty on {noun(len(rows), 'row')} "
-                          f"{', '.join(rows)}{'…' if empty.sum() > 5 else ''} "
-                          "(counting the header as row 1); every record needs an id")
+        more = "…" if empty.sum() > 5 else ""
+        raise DocketError(f"{path}: column '{id_column}' is empty on "
+                          f"{_rows(path, empty.nonzero()[0][:5])}{more}; every record needs an id")
     dup = ids[ids.duplicated(keep=False)]
     if len(dup):
         first = list(dict.fromkeys(dup.tolist()))[:5]
-        rows = [str(i + 2) for i in np.flatnonzero((ids == first[0]).to_numpy())[:3]]
+        rows = _rows(path, np.flatnonzero((ids == first[0]).to_numpy())[:3])
         raise DocketError(f"{path}: column '{id_column}' has duplicate ids "
                           f"({', '.join(map(str, first))}{'…' if dup.nunique() > 5 else ''}; "
-                          f"'{first[0]}' on rows {', '.join(rows)}, counting the header as row 1)"
-                          "; ids must be unique")
+                          f"'{first[0]}' on {rows}); ids must be unique")
     _check_edge_spaces(path, id_column, ids)
     frame = frame.set_index(id_column, drop=True)
     frame.index = frame.index.astype(str)
@@ -174,11 +202,20 @@ def _check_edge_spaces(path: Path, id_column: str, ids: pd.Series) -> None:
     clash = trimmed.duplicated(keep=False).to_numpy()
     if clash.any():
         first = trimmed[clash].iloc[0]
-        rows = [str(i + 2) for i in np.flatnonzero(clash & (trimmed == first).to_numpy())[:5]]
+        rows = _rows(path, np.flatnonzero(clash & (trimmed == first).to_numpy())[:5])
         shown = ", ".join(repr(v) for v in ids[clash & (trimmed == first).to_numpy()][:5])
         raise DocketError(f"{path}: column '{id_column}' holds ids that differ only in spaces "
-                          f"at their ends ({shown} on rows {', '.join(rows)}); trim them so "
+                          f"at their ends ({shown} on {rows}); trim them so "
                           "each record has one id")
+
+
+def _rows(path: Path, positions: Sequence[int]) -> str:
+    """Where records sit, as a person finds them: a text table's rows with its header as row 1
+    (the row an editor or spreadsheet shows), or a Parquet or JSON file's records from 1."""
+    if detect_format(path) in ("csv", "tsv"):
+        return (f"{noun(len(positions), 'row')} {', '.join(str(i + 2) for i in positions)} "
+                "(counting the header as row 1)")
+    return f"{noun(len(positions), 'record')} {', '.join(str(i + 1) for i in positions)}"
 
 
 def id_like(frame: pd.DataFrame) -> list[str]:
