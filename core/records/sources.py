@@ -209,7 +209,7 @@ def _check_edge_spaces(path: Path, id_column: str, ids: pd.Series) -> None:
                           "each record has one id")
 
 
-def _rows(path: Path, positions: Sequence[int]) -> str:
+def _rows(path: Path, positions: Sequence[int] | np.ndarray) -> str:
     """Where records sit, as a person finds them: a text table's rows with its header as row 1
     (the row an editor or spreadsheet shows), or a Parquet or JSON file's records from 1."""
     if detect_format(path) in ("csv", "tsv"):
