@@ -5,6 +5,8 @@ Plain text only; the front ends word their own counts through the same two funct
 
 from __future__ import annotations
 
+from collections.abc import Sequence
+
 
 def noun(n: int, word: str, plural: str = "") -> str:
     """``word`` for one, its plural for every other count (0 included): English usage."""
@@ -16,3 +18,9 @@ def noun(n: int, word: str, plural: str = "") -> str:
 def many(n: int, word: str, plural: str = "") -> str:
     """A count with its noun in agreement: "1 audit pair", "2 audit pairs", "1,500 matches"."""
     return f"{n:,} {noun(n, word, plural)}"
+
+
+def quoted(values: Sequence[object], most: int = 5) -> str:
+    """The first few values in quotes, so a space at either end shows: "'1', ' 2'…"."""
+    shown = ", ".join(f"'{v}'" for v in values[:most])
+    return shown + ("…" if len(values) > most else "")

@@ -183,3 +183,20 @@ def test_a_capped_audit_size_is_said(tmp_path: Path, capsys: pytest.CaptureFixtu
     left = write(tmp_path / "t.csv", TOWNS)
     _, err = _build(capsys, tmp_path, left, "--audit", "999999")
     assert "--audit 999,999: capped at" in err
+
+
+@pytest.mark.parametrize("rows, needles", [
+    ("1,1\n2,2\n", ["2 pairs of a record with itself, left out", "no pair of two different"]),
+    ("", ["holds no pair of two different records"]),
+    ("1, 2\n", ["1 right id not in t.csv: ' 2'", "exactly as the records have them"]),
+])
+def test_a_pairs_file_with_nothing_to_review_is_one_line(
+        rows: str, needles: list[str], tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    left = write(tmp_path / "t.csv", TOWNS)
+    pairs = write(tmp_path / "pairs.csv", "left_id,right_id\n" + rows)
+    project = tmp_path / "p.docket"
+    code, err = run(capsys, "new", str(project), "--left", str(left), "--id", "id",
+                    "--pairs", str(pairs))
+    assert_one_line_error(code, err, "pairs.csv", *needles)
+    assert not project.exists()

@@ -222,10 +222,10 @@ def test_bad_prediction_files_fail_with_one_clear_message(answered: Project,
                                                           tmp_path: Path) -> None:
     cases = {
         "left_id,right_id,label\nN-00001,NOPE-1,match\nN-00001,NOPE-2,match\n":
-            "2 right ids name no record: NOPE-1, NOPE-2",
+            "2 right ids name no record: 'NOPE-1', 'NOPE-2'",
         "left_id,right_id\nN-00001,S-10321\n": "needs a score column",
         "a,b,score\nN-00001,S-10321,1\n": "needs columns left_id and right_id",
-        "left_id,right_id,label\nN-00001,S-10321,perhaps\n": "not understood: perhaps",
+        "left_id,right_id,label\nN-00001,S-10321,perhaps\n": "not understood: 'perhaps'",
         "left_id,right_id,score\nN-00001,S-10321,high\n": "row 2 has 'high'",
         "left_id,right_id,score\nN-00001,S-10321,1\nN-00001,S-10321,0.5\n": "more than once",
         "left_id,right_id,score\nN-00001,S-10321,7\n": "give --threshold",

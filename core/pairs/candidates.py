@@ -96,6 +96,13 @@ class GivenReader:
             warnings.warn(f"{self.source.path}: left out {'; and '.join(notes)}; each pair "
                           "counts once", UserWarning, stacklevel=4)
 
+    def nothing_left(self) -> DocketError:
+        """The refusal of a pairs file that leaves no pair to review."""
+        why = (f" ({many(self.n_self, 'pair')} of a record with itself, left out)"
+               if self.n_self else "")
+        return DocketError(f"{self.source.path}: holds no pair of two different records{why}; "
+                           "give rows of a left id and a right id, one pair per row")
+
     def report(self, n_pairs: int) -> blocking.BlockingReport:
         return blocking.BlockingReport(["given"], False, n_pairs,
                                        int(possible_pairs(self.left, self.right)),
@@ -123,6 +130,8 @@ def given_keys(source: PairSource, left: Table, right: Table | None, step: Step
     every = np.concatenate(keys) if keys else np.zeros(0, dtype=np.int64)
     read = np.concatenate(reads) if reads else np.zeros(0, dtype=np.int64)
     distinct, again = first_seen(every, read)
+    if not len(distinct):
+        raise reader.nothing_left()
     reader.warn(len(again), again[:5].tolist())
     return distinct, reader.report(len(distinct))
 

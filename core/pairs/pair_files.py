@@ -18,7 +18,7 @@ import numpy as np
 import pandas as pd
 
 from ..errors import DocketError
-from ..wording import many
+from ..wording import many, quoted
 
 BATCH = 500_000
 ID_COLUMNS = ("left_id", "right_id")
@@ -175,7 +175,8 @@ def positions(where: Path | str, a: pd.Series, b: pd.Series, left_index: pd.Inde
         if (pos < 0).any():
             bad = list(dict.fromkeys(ids[pos < 0].tolist()))
             raise DocketError(f"{where}: {many(len(bad), side + ' id')} not in {name}: "
-                              f"{', '.join(map(str, bad[:5]))}{'…' if len(bad) > 5 else ''}")
+                              f"{quoted(bad)}; give ids exactly as the records have them "
+                              "(spaces and case count)")
     return lpos.astype(np.int64), rpos.astype(np.int64)
 
 

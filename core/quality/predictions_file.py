@@ -12,7 +12,7 @@ from ..errors import DocketError
 from ..records.sources import read_frame
 from ..storage import store
 from ..storage.project_file import ProjectFile
-from ..wording import many
+from ..wording import many, quoted
 
 SCORE_COLUMNS = ("score", "probability")
 LABEL_COLUMNS = ("label", "predicted")
@@ -25,7 +25,7 @@ def _flag(values: pd.Series, path: Path) -> np.ndarray:
     bad = sorted({v for v in text if v not in TRUE_WORDS and v not in FALSE_WORDS}, key=str)
     if bad:
         raise DocketError(f"{path}: {many(len(bad), 'label value')} not understood: "
-                          f"{', '.join(map(str, bad[:5]))}; use match / non-match (or 1 / 0)")
+                          f"{quoted(bad)}; use match / non-match (or 1 / 0)")
     return text.isin(TRUE_WORDS).to_numpy()
 
 
@@ -70,10 +70,9 @@ def read_predictions(project: ProjectFile, path: str | Path) -> tuple[pd.Series,
             raise DocketError(f"{path}: row {row} has no {side}_id")
         unknown = sorted(set(ids) - _known_ids(project, side))
         if unknown:
-            more = "…" if len(unknown) > 5 else ""
             raise DocketError(f"{path}: {many(len(unknown), side + ' id')} "
                               f"{'names' if len(unknown) == 1 else 'name'} no record: "
-                              f"{', '.join(unknown[:5])}{more}")
+                              f"{quoted(unknown)}; give ids exactly as the records have them")
     if kind is not None:
         score = _numbers(frame[kind], kind, path)
     else:
