@@ -130,6 +130,16 @@ def test_not_a_project_and_newer_version(tmp_path: Path, capsys) -> None:
     assert_one_line_error(code, err, "not a docket project")
 
 
+@pytest.mark.parametrize("size, said", [(0, "an empty file"), (100, "only 100 bytes")])
+def test_an_empty_or_cut_short_file_is_called_so(size: int, said: str, sample_project: Path,
+                                                 tmp_path: Path, capsys) -> None:
+    short = tmp_path / "short.docket"
+    short.write_bytes(sample_project.read_bytes()[:size])  # the start of a real project
+    code, err = run(capsys, "reviewers", str(short), "add", "zed")
+    assert_one_line_error(code, err, "short.docket", said, "not a docket project", "backup")
+    assert short.stat().st_size == size
+
+
 def test_newer_schema_is_refused_untouched(sample_project: Path, capsys) -> None:
     conn = sqlite3.connect(sample_project)
     conn.execute("PRAGMA user_version = 99")

@@ -138,6 +138,11 @@ def open_file(path: Path, readonly: bool = False, check: bool = True) -> sqlite3
         raise DocketError(f"{path}: no such project; create it with 'docket new {path} ...'")
     if path.is_dir():
         raise NotAProject(f"{path}: a folder, not a docket project; check the path")
+    size = path.stat().st_size
+    if size < 512:  # SQLite's smallest page: any database with a table is at least this long
+        raise NotAProject(f"{path}: {'an empty file' if size == 0 else f'only {size} bytes'}, "
+                          "not a docket project; check the path, or restore the project from "
+                          "a backup if it was cut short")
     # The header is read through SQLite, never with open(): closing any other handle on the
     # file would drop this process's SQLite locks on it (POSIX advisory locks are per process).
     probe = sqlite3.connect(f"file:{path}?mode=ro", uri=True)
