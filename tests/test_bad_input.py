@@ -130,7 +130,7 @@ def test_not_a_project_and_newer_version(tmp_path: Path, capsys) -> None:
     assert_one_line_error(code, err, "not a docket project")
 
 
-@pytest.mark.parametrize("size, said", [(0, "an empty file"), (100, "only 100 bytes")])
+@pytest.mark.parametrize("size, said", [(0, "an empty file"), (50, "only 50 bytes: not")])
 def test_an_empty_or_cut_short_file_is_called_so(size: int, said: str, sample_project: Path,
                                                  tmp_path: Path, capsys) -> None:
     short = tmp_path / "short.docket"

@@ -164,6 +164,11 @@ OPTION_CASES = {
                           ["'gld'", "did you mean 'gold'?"]),
     "misspelled sub-command option": (["reviewers", "P", "add", "ines", "--roel", "adjudicator"],
                                       ["did you mean --role?"]),
+    "count past SQLite's integers": (["next", "P", "--reviewer", "m", "-n", "9" * 20],
+                                     ["-n", "too large", "1,000,000,000"]),
+    "negative seed": (["new", "P", "--left", "L", "--seed", "-5"], ["--seed", "0 or more"]),
+    "workers by the thousand": (["new", "P", "--left", "L", "--workers", "100000"],
+                                ["--workers", "at most 256"]),
 }
 
 

@@ -28,8 +28,13 @@ def share(text: str) -> float:
     return value
 
 
-def at_least(low: int) -> Callable[[str], int]:
-    """A whole number no smaller than ``low``."""
+LARGEST = 2**63 - 1  # the largest whole number SQLite and numpy's int64 hold
+MOST_WORKERS = 256  # processes on one machine; a typo of many digits must not fork them all
+MOST_LISTED = 10**9  # pairs one 'next' lists; the queue reads a pool beyond it in one query
+
+
+def at_least(low: int, high: int = LARGEST) -> Callable[[str], int]:
+    """A whole number from ``low`` to ``high``."""
     def whole(text: str) -> int:
         try:
             value = int(text.replace("_", "").replace(",", ""))
@@ -37,6 +42,8 @@ def at_least(low: int) -> Callable[[str], int]:
             raise argparse.ArgumentTypeError(f"{text!r} is not a whole number") from None
         if value < low:
             raise argparse.ArgumentTypeError(f"{text} is too small; give {low} or more")
+        if value > high:
+            raise argparse.ArgumentTypeError(f"{text} is too large; give at most {high:,}")
         return value
     whole.__name__ = f"whole number ≥ {low}"
     return whole

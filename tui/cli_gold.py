@@ -11,7 +11,7 @@ import sys
 from typing import Any
 
 from .cli_base import command, open_project
-from .cli_checks import share
+from .cli_checks import at_least, share
 from .evaluation_text import evaluation_lines
 from .figures import many
 from .terminal import json_text
@@ -86,7 +86,8 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--format", choices=["csv", "parquet", "jsonl"])
     p.add_argument("--test-share", type=share, default=0.2, metavar="SHARE",
                    help="training: share in the test split (default 0.2)")
-    p.add_argument("--seed", type=int, default=0, help="training: seed of the split (default 0)")
+    p.add_argument("--seed", type=at_least(0), default=0,
+                   help="training: seed of the split (default 0)")
     p.add_argument("--split-by", choices=["record", "pair"], default="record",
                    help="training: keep each record on one side (record, default) or split "
                         "pairs independently, each keeping its side as labels arrive (pair)")

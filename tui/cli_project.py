@@ -9,7 +9,7 @@ from pathlib import Path
 from typing import Any
 
 from .cli_base import command, default_reviewer, open_project
-from .cli_checks import at_least, share
+from .cli_checks import MOST_LISTED, MOST_WORKERS, at_least, share
 from .figures import many, noun
 from .figures import ratio_text as _ratio
 from .terminal import json_text, shown
@@ -167,7 +167,8 @@ def register(sub: argparse._SubParsersAction) -> None:
                    help="link mode: each record matches at most one on the other side")
     p.add_argument("--threshold", type=share, default=0.5, metavar="P",
                    help="match probability at which a pair is predicted a match (default 0.5)")
-    p.add_argument("--seed", type=int, default=0, help="seed for the audit slice (default 0)")
+    p.add_argument("--seed", type=at_least(0), default=0,
+                   help="seed for the audit slice (default 0)")
     p.add_argument("--sample-above", type=at_least(100), default=1_000_000, metavar="N",
                    help="with more candidate pairs than this, count every pair's comparison "
                         "pattern but keep a stratified random sample of N pairs (default "
@@ -175,7 +176,7 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--engine", choices=["in-process", "dask"], default="in-process",
                    help="where blocking and scoring run (dask needs: pip install "
                         "'docket[dask]')")
-    p.add_argument("--workers", type=at_least(1), default=None, metavar="N",
+    p.add_argument("--workers", type=at_least(1, MOST_WORKERS), default=None, metavar="N",
                    help="processes that compare pairs (default: every core; small builds "
                         "use one); dask: workers of the local cluster (default 2)")
     p.add_argument("--scheduler", metavar="ADDRESS",
@@ -198,7 +199,8 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "docket next vets.docket --reviewer maya -n 5 --claim", next_pairs)
     p.add_argument("project", help="the project file (made by docket new)")
     p.add_argument("--reviewer", required=True, metavar="NAME", help="whose queue to list")
-    p.add_argument("-n", type=at_least(0), default=10, metavar="N", help="how many (default 10)")
+    p.add_argument("-n", type=at_least(0, MOST_LISTED), default=10, metavar="N",
+                   help="how many (default 10)")
     p.add_argument("--claim", action="store_true",
                    help="hold the pairs listed for this reviewer (registers the reviewer)")
     p.add_argument("--json", action="store_true", help="machine-readable output")

@@ -8,7 +8,7 @@ import sys
 from pathlib import Path
 from typing import Any
 
-from .cli_checks import at_least
+from .cli_checks import MOST_WORKERS, at_least
 from .figures import many
 
 
@@ -36,7 +36,7 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--right", metavar="FILE", help="the right table of records (link mode)")
     p.add_argument("--engine", choices=["in-process", "dask"], default="in-process",
                    help="where scoring runs (dask needs: pip install 'docket[dask]')")
-    p.add_argument("--workers", type=at_least(1), default=2, metavar="N",
+    p.add_argument("--workers", type=at_least(1, MOST_WORKERS), default=2, metavar="N",
                    help="dask: workers of the local cluster (default 2)")
     p.add_argument("--scheduler", metavar="ADDRESS", help="dask: an existing scheduler")
 

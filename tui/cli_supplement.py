@@ -8,6 +8,7 @@ from __future__ import annotations
 import argparse
 
 from .cli_base import command, open_project
+from .cli_checks import at_least
 from .figures import many
 from .terminal import json_text
 
@@ -32,7 +33,7 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--size", type=int, metavar="N",
                    help="pairs to draw (default: as the audit slice, 5%% of the candidate "
                         "pairs, 50 to 1,000)")
-    p.add_argument("--seed", type=int, metavar="S",
+    p.add_argument("--seed", type=at_least(0), metavar="S",
                    help="seed of the draw (default: taken from the scores, so it repeats)")
     p.add_argument("--json", action="store_true", help="machine-readable output")
 

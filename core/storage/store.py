@@ -138,11 +138,9 @@ def open_file(path: Path, readonly: bool = False, check: bool = True) -> sqlite3
         raise DocketError(f"{path}: no such project; create it with 'docket new {path} ...'")
     if path.is_dir():
         raise NotAProject(f"{path}: a folder, not a docket project; check the path")
-    size = path.stat().st_size
-    if size < 512:  # SQLite's smallest page: any database with a table is at least this long
-        raise NotAProject(f"{path}: {'an empty file' if size == 0 else f'only {size} bytes'}, "
-                          "not a docket project; check the path, or restore the project from "
-                          "a backup if it was cut short")
+    if path.stat().st_size == 0:
+        raise NotAProject(f"{path}: an empty file, not a docket project; check the path, or "
+                          "restore the project from a backup if it was cut short")
     # The header is read through SQLite, never with open(): closing any other handle on the
     # file would drop this process's SQLite locks on it (POSIX advisory locks are per process).
     probe = sqlite3.connect(f"file:{path}?mode=ro", uri=True)
@@ -156,6 +154,11 @@ def open_file(path: Path, readonly: bool = False, check: bool = True) -> sqlite3
     finally:
         probe.close()
     if app_id != APPLICATION_ID:
+        size = path.stat().st_size
+        if size < 512:  # SQLite's smallest page: a database with a table is at least this long
+            raise NotAProject(f"{path}: the start of an SQLite file, only {size} bytes: not a "
+                              "docket project; check the path, or restore the project from a "
+                              "backup if it was cut short")
         raise NotAProject(f"{path}: an SQLite file, but not a docket project; check the path")
     if version > SCHEMA_VERSION:
         raise DocketError(f"{path}: written by a newer docket (schema {version}, this one "
