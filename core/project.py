@@ -47,9 +47,7 @@ class Project(TeamVerbs, ReportVerbs, MatcherVerbs, QueueVerbs):
 
     # -- reviewers ---------------------------------------------------------------------------
     def ensure_reviewer(self, name: str, role: str = "reviewer") -> None:
-        name = name.strip()
-        if not name:
-            raise DocketError("a reviewer needs a name; pass --reviewer NAME")
+        name = roles.plain_name(name)
         if role not in ROLES:
             raise DocketError(f"unknown role '{role}'; use reviewer or adjudicator")
         with self._lock:  # a role beyond reviewer is only ever granted (team.add_reviewer)

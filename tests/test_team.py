@@ -125,6 +125,21 @@ def test_next_registers_a_new_name_only_when_it_claims(tiny: Path, capsys) -> No
         assert [r["name"] for r in list_reviewers(p)] == ["otto"]
 
 
+@pytest.mark.parametrize("name", ["ines\x1b[31m", "a\nb", "rtl\u202e"])
+def test_every_command_that_registers_a_name_refuses_control_characters(
+        name: str, tiny: Path, tmp_path: Path, capsys) -> None:
+    labels = tmp_path / "labels.csv"
+    labels.write_text(f"pair_id,label\n{pair_ids(tiny)[0]},match\n", encoding="utf-8")
+    before = tiny.read_bytes()
+    for argv in (["next", str(tiny), "--reviewer", name, "--claim"],
+                 ["label", str(tiny), "--reviewer", name, "--from", str(labels)],
+                 ["reviewers", str(tiny), "add", name]):
+        assert run(argv) == 2
+        err = capsys.readouterr().err.strip()
+        assert "holds control characters" in err and "\n" not in err, err
+    assert tiny.read_bytes() == before
+
+
 def test_report_and_disagreements_on_a_small_team(tiny: Path) -> None:
     ids = pair_ids(tiny)
     maya = dict(zip(ids, ["match", "match", "non-match", "non-match", "hold", "match"],

@@ -96,8 +96,7 @@ def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: s
                batch: int = BATCH_ROWS, seconds: float = BATCH_S, pause: float = PAUSE_S) -> int:
     """Record ``rows`` for ``reviewer`` in batches of at most ``batch`` rows and about
     ``seconds`` of writing each, ``pause`` apart; on any failure, none of them stands."""
-    if not reviewer.strip():
-        raise DocketError("a reviewer needs a name; pass --reviewer NAME")
+    reviewer = roles.plain_name(reviewer)
     written: list[tuple[int, str]] = []
     try:
         while len(written) < len(rows):

@@ -57,12 +57,7 @@ class ReviewerChange:
 
 
 def clean_name(name: str) -> str:
-    name = (name or "").strip()
-    if not name:
-        raise DocketError("a reviewer needs a name; give one, e.g. 'add maya'")
-    if any(not ch.isprintable() for ch in name):
-        raise DocketError(f"reviewer name {name!r} holds control characters; use plain text")
-    return name
+    return roles.plain_name(name, "give one, e.g. 'add maya'")
 
 
 def add_reviewer(project: ProjectFile, name: str, role: str = "reviewer",

@@ -17,12 +17,14 @@ import uuid
 from dataclasses import asdict, dataclass
 from typing import Any
 
+from ..errors import DocketError
 from ..types import ROLES
 from . import store
 from .decisions import stamp
 from .migrations import MIGRATED_GRANTOR
 
-__all__ = ["MIGRATED_GRANTOR", "ROLES", "Grant", "grant", "history", "register", "role_at"]
+__all__ = ["MIGRATED_GRANTOR", "ROLES", "Grant", "grant", "history", "plain_name", "register",
+           "role_at"]
 DEFAULT_ROLE = "reviewer"
 
 
@@ -42,6 +44,17 @@ class Grant:
 
 
 GRANT_COLUMNS = "grant_id, name, role, granted_by, granted_at"
+
+
+def plain_name(name: str, how: str = "pass --reviewer NAME") -> str:
+    """A person's name trimmed, refused when empty or holding control characters (an escape
+    sequence in a name would act on every terminal that lists the reviewers)."""
+    name = (name or "").strip()
+    if not name:
+        raise DocketError(f"a reviewer needs a name; {how}")
+    if any(not ch.isprintable() for ch in name):
+        raise DocketError(f"reviewer name {name!r} holds control characters; use plain text")
+    return name
 
 
 def register(conn: sqlite3.Connection, name: str) -> None:
