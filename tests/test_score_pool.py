@@ -8,6 +8,7 @@ from pathlib import Path
 import pytest
 
 from docket.core import Project
+from docket.core.matching import compare
 from docket.core.ordering import sampling
 from docket.core.storage import score_pool
 from tests.conftest import sample_spec
@@ -48,3 +49,13 @@ def test_a_sampled_build_keeps_the_similarities_it_compared(
     pairs, patterns = _tables(tmp_path / "held.docket")
     assert len(pairs) == 2_000
     assert (pairs, patterns) == _tables(tmp_path / "again.docket")
+
+
+def test_workers_and_dask_tasks_ask_rapidfuzz_for_one_thread(monkeypatch) -> None:
+    monkeypatch.setitem(compare._THREADS, "workers", -1)
+    with compare.one_thread():
+        assert compare._THREADS["workers"] == 1
+    assert compare._THREADS["workers"] == -1  # restored for the rest of the process
+    monkeypatch.setattr(score_pool.signal, "signal", lambda *a: None)
+    score_pool._start_worker()  # what each forked scoring worker runs first
+    assert compare._THREADS["workers"] == 1
