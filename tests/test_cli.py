@@ -97,6 +97,17 @@ def test_demo_refuses_the_invented_second_reviewer_s_name(tmp_path: Path, capsys
     assert not (tmp_path / "d").exists()
 
 
+def test_demo_into_a_file_is_one_line(tmp_path: Path, capsys) -> None:
+    (tmp_path / "taken").write_text("notes")
+    assert main(["demo", "--dir", str(tmp_path / "taken"), "--no-open"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert "taken: a file, not a folder" in err and "\n" not in err, err
+    assert main(["demo", "--dir", str(tmp_path / "taken" / "sub"), "--no-open"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert "cannot make the folder" in err and "\n" not in err, err
+    assert (tmp_path / "taken").read_text() == "notes"
+
+
 def test_demo_fresh_refuses_to_discard_decisions_unless_told(tmp_path: Path, capsys) -> None:
     assert main(["demo", "--dir", str(tmp_path), "--no-open", "--reviewer", "kim"]) == 0
     path = tmp_path / "vet-clients.docket"

@@ -127,7 +127,14 @@ def demo(args: argparse.Namespace) -> int:
         raise DocketError(f"{DEMO_SECOND_REVIEWER} is the demo's invented second reviewer; "
                           "pass --reviewer NAME with another name")
     folder = Path(args.dir)
-    folder.mkdir(parents=True, exist_ok=True)
+    if folder.exists() and not folder.is_dir():
+        raise DocketError(f"{folder}: a file, not a folder; give --dir a folder (it is made "
+                          "if missing)")
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise DocketError(f"{folder}: cannot make the folder ({exc.strerror or exc}); give "
+                          "--dir a folder you can write to") from None
     spec = demo_spec(folder)
     if spec.path.exists() and not args.fresh:
         print(f"using the existing demo project {spec.path} (pass --fresh to rebuild it)")
