@@ -63,6 +63,21 @@ def test_long_values_are_capped_with_a_marker():
     assert len(text.plain) < literal.CAP + 40
 
 
+def test_a_long_value_shortened_to_one_line_keeps_its_markers_whole():
+    from docket.tui.widgets.card_lines import shorten
+    right = BIG[:5000] + "CHANGED" + BIG[5007:]
+    for value in (literal.literal_text(BIG), paired(BIG, right, "longtext", PLAIN)[1]):
+        for width in (28, 40, 80):
+            line = shorten(value, width).plain
+            assert len(line) <= width and "…" in line, line
+            # a marker is whole or gone: never "…7 characters]", a count that is not there
+            for piece in ("characters]", "[+", "characters] …"):
+                if piece in line:
+                    assert literal.CUT_MARK.search(line) or literal.LEAD_MARK.match(line), line
+    assert shorten(literal.literal_text(BIG), 28).plain.endswith(
+        f" … [+{len(BIG) - literal.CAP:,} characters]")
+
+
 def test_long_value_window_holds_the_first_difference():
     right = BIG[:5000] + "CHANGED" + BIG[5007:]
     left_text, right_text = paired(BIG, right, "longtext", PLAIN)

@@ -137,7 +137,7 @@ def render(value: str | None, palette: Palette, *, differs: list[bool] | None = 
     edges = (max(0, lead - start), 0 if left_out else trail)
     text = Text(overflow="fold")
     if start:
-        text.append(f"[{start:,} characters] … ", palette.muted)
+        text.append(literal.lead_marker(start), palette.muted)
     hot = style + (hot or palette.differs)
     escape = palette.escape
     n = len(shown)

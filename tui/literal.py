@@ -10,6 +10,8 @@ long values are cut at ``CAP`` characters with a marker saying how much was left
 
 from __future__ import annotations
 
+import re
+
 from rich.style import Style, StyleType
 from rich.text import Text
 
@@ -75,6 +77,16 @@ def capped(value: str, cap: int = CAP) -> tuple[str, int]:
 
 def cut_marker(left_out: int) -> str:
     return f" … [+{left_out:,} characters]"
+
+
+def lead_marker(left_out: int) -> str:
+    """Before the part shown of a long value whose start is left out."""
+    return f"[{left_out:,} characters] … "
+
+
+# The two markers as they end and begin a shown value, so that shortening keeps them whole
+CUT_MARK = re.compile(r" … \[\+[\d,]+ characters\]$")
+LEAD_MARK = re.compile(r"^\[[\d,]+ characters\] … ")
 
 
 def literal_text(value: str | None, style: StyleType = "", escape_style: StyleType = "bold",

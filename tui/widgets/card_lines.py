@@ -14,7 +14,10 @@ from rich.console import Console
 from rich.style import Style
 from rich.text import Text
 
+from .. import literal
+
 BAR_CELLS = 5
+MIN_BODY = 4  # cells of a long value kept beside its markers; fewer, and the markers go
 
 
 @dataclass(frozen=True)
@@ -55,6 +58,15 @@ def shorten(text: Text, width: int, mark_style: str | Style = "") -> Text:
     text = Text(text.plain.replace("\n", " "), spans=text.spans)  # one line, same highlights
     if text.cell_len <= width:
         return text
+    # A long value's markers stay whole: cut in two, " … [+99,407 characters]" read as "…7
+    # characters]", a count that is not there
+    plain = text.plain
+    lead, cut = literal.LEAD_MARK.match(plain), literal.CUT_MARK.search(plain)
+    front, back = (lead.end() if lead else 0), (cut.start() if cut else len(plain))
+    room = width - cell_len(plain[:front]) - cell_len(plain[back:])
+    if lead or cut:
+        body = shorten(text[front:back], room if room >= MIN_BODY else width, mark_style)
+        return Text.assemble(text[:front], body, text[back:]) if room >= MIN_BODY else body
     keep = max(1, width - 1)
     head_cells, tail_cells = (keep + 1) // 2, keep // 2
     head = _cut(text, head_cells, from_end=False)
