@@ -77,3 +77,16 @@ def test_a_project_without_the_index_still_finds_text(tmp_path: Path) -> None:
     conn.close()
     with Project.open(path) as p:
         assert p.find("erg12")  # substring match when there is no index
+
+
+def test_a_pasted_search_longer_than_sqlite_s_like_limit_is_answered(tmp_path: Path) -> None:
+    # SQLite refuses LIKE patterns over 50,000 bytes ("LIKE or GLOB pattern too complex",
+    # its documented SQLITE_MAX_LIKE_PATTERN_LENGTH); a 100 kB paste into find met that
+    long = "Lorem ipsum " * 6000
+    left = tmp_path / "long.csv"
+    left.write_text(f"id,name,note\n1,Anna,a{long}\n2,Anne,a{long}\n3,Jon,b\n", encoding="utf-8")
+    path = tmp_path / "l.docket"
+    Project.create(NewProject(path=path, left=left, left_id="id", rules=["note[:1]"]))
+    with Project.open(path) as p:
+        assert p.find("x" * 100_000) == []
+        assert p.find(("A" + long[:59_999]).upper()) == [1]  # ASCII case folded, as LIKE does

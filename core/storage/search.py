@@ -14,6 +14,8 @@ from collections.abc import Collection
 
 from .store import quote
 
+LIKE_MOST = 50_000  # bytes: SQLite's default longest LIKE pattern (SQLITE_MAX_LIKE_PATTERN_LENGTH)
+
 
 def index_records(conn: sqlite3.Connection, table: str, columns: list[str]) -> None:
     """Full-text index over a record table's value columns (the id column is matched exactly)."""
@@ -58,10 +60,15 @@ def _records_by_text(conn: sqlite3.Connection, table: str, key: str, columns: li
                 hits = []
             if hits:
                 return [r[0] for r in hits]
-    cond = " OR ".join(f"{quote(c)} LIKE ? ESCAPE '\\'" for c in columns)
+    if len(text.encode()) < LIKE_MOST:
+        cond = " OR ".join(f"{quote(c)} LIKE ? ESCAPE '\\'" for c in columns)
+        pattern = like_pattern(text)
+    else:  # LIKE refuses a pattern this long; instr with ASCII case folding, as LIKE does
+        cond = " OR ".join(f"instr(lower({quote(c)}), lower(?)) > 0" for c in columns)
+        pattern = text
     return [r[0] for r in conn.execute(
         f"SELECT {quote(key)} FROM {quote(table)} WHERE {cond} LIMIT ?",
-        (*([like_pattern(text)] * len(columns)), limit))]
+        (*([pattern] * len(columns)), limit))]
 
 
 def find_pairs(conn: sqlite3.Connection, meta: dict, link: bool, text: str, limit: int = 50,
