@@ -190,7 +190,8 @@ class QualityScreen(TeamScreen):
             if data.conflicts:
                 summary.append(f"{many(len(data.conflicts), 'conflict')}: a chain of gold "
                                "matches joins two records that a gold non-match keeps apart. "
-                               "They wait in the adjudication queue. Enter shows the members.",
+                               f"{'It waits' if len(data.conflicts) == 1 else 'They wait'} in "
+                               "the adjudication queue. Enter shows the members.",
                                p.heading)
             else:
                 summary.append("No conflicts: no gold non-match falls inside a cluster.",
