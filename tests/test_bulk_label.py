@@ -28,6 +28,23 @@ def test_a_failed_label_registers_no_one(sample_project: Path, tmp_path: Path, c
         assert list_reviewers(p) == [] and p.decisions() == []
 
 
+@pytest.mark.parametrize("body, needles", [
+    ("1,match\n2,non-match\n1,non-match\n", ["rows 2 and 4 label pair 1 match and non-match"]),
+    ("", ["a header and no rows"]),
+    ("1,\n", ["row 2 has no label"]),
+    ("1e23,match\n", ["1 unknown pair id: 1e23;"]),
+])
+def test_a_label_file_that_says_nothing_clear_writes_nothing(
+        body: str, needles: list[str], sample_project: Path, tmp_path: Path, capsys) -> None:
+    rows = tmp_path / "labels.csv"
+    rows.write_text("pair_id,label\n" + body, encoding="utf-8")
+    before = sample_project.read_bytes()
+    assert main(["label", str(sample_project), "--reviewer", "newbie", "--from", str(rows)]) == 2
+    err = capsys.readouterr().err.strip()
+    assert "\n" not in err and all(n in err for n in needles), err
+    assert sample_project.read_bytes() == before
+
+
 def test_rows_go_in_batches_each_its_own_transaction(sample_project: Path) -> None:
     with Project.open(sample_project) as p:
         ids = [i.pair_id for i in p.next_pairs("ana", 7)]

@@ -22,6 +22,7 @@ from ..storage import claims, roles
 from ..storage import decisions as log
 from ..storage.project_file import ProjectFile
 from ..types import LABELS
+from ..wording import many
 
 BATCH_ROWS = 500  # at most, per transaction
 BATCH_S = 0.02  # and a batch ends once it has written for this long
@@ -43,6 +44,8 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
     if "label" not in cols:
         raise DocketError(f"{path}: needs a 'label' column (with pair_id, or left_id and "
                           "right_id)")
+    if not len(frame):
+        raise DocketError(f"{path}: a header and no rows; give one decision per row")
     if "pair_id" in cols:
         ids = pd.to_numeric(frame["pair_id"], errors="coerce")
         bad_rows = [i + 2 for i in range(len(ids))
@@ -54,12 +57,12 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
                               "export)")
         known = {r[0] for r in project.connection.execute("SELECT pair_id FROM pairs")}
         pair_ids = [int(x) for x in ids]
-        unknown = [p for p in pair_ids if p not in known]
+        # named as written: "1e23" read as a number would be shown as 99999999999999991611392
+        unknown = [str(t) for p, t in zip(pair_ids, frame["pair_id"], strict=True)
+                   if p not in known]
         if unknown:
-            ids_text = "1 unknown pair id" if len(unknown) == 1 else \
-                f"{len(unknown)} unknown pair ids"
-            raise DocketError(f"{path}: {ids_text}: "
-                              f"{', '.join(map(str, unknown[:5]))}; nothing was written")
+            raise DocketError(f"{path}: {many(len(unknown), 'unknown pair id')}: "
+                              f"{', '.join(unknown[:5])}; nothing was written")
     elif {"left_id", "right_id"} <= cols:
         lookup = {(a, b): p for p, a, b in project.connection.execute(
             "SELECT pair_id, left_id, right_id FROM pairs")}
@@ -85,11 +88,26 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
     for i, (pid, label, note) in enumerate(zip(pair_ids, frame["label"], notes, strict=True)):
         lab = str(label or "").strip().lower()
         lab = ALIASES.get(lab, lab)
+        if not lab:
+            raise DocketError(f"{path}: row {i + 2} has no label; give match, non-match or "
+                              "hold; nothing was written")
         if lab not in LABELS:
             raise DocketError(f"{path}: row {i + 2}: label '{label}' is not one of "
                               f"{', '.join(LABELS)}; nothing was written")
         rows.append(BulkRow(int(pid), lab, "" if note is None or pd.isna(note) else str(note)))
+    _refuse_contradictions(path, rows)
     return rows
+
+
+def _refuse_contradictions(path: Path, rows: list[BulkRow]) -> None:
+    """One file giving one pair two labels: which the reviewer meant cannot be told."""
+    first: dict[int, int] = {}
+    for i, r in enumerate(rows):
+        j = first.setdefault(r.pair_id, i)
+        if rows[j].label != r.label:
+            raise DocketError(f"{path}: rows {j + 2} and {i + 2} label pair {r.pair_id} "
+                              f"{rows[j].label} and {r.label}; keep the one meant; nothing "
+                              "was written")
 
 
 def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: str = "reviewer",
