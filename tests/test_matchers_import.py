@@ -94,6 +94,8 @@ def _digest(path: Path) -> str:
      "row 2: score 'x' is not a number"),
     (lambda f: pd.concat([f, f.iloc[[4]]], ignore_index=True),
      "already gave this pair on row 6"),
+    (lambda f: f.iloc[:0], "a header and no rows"),
+    (lambda f: f.assign(matcher="lm\x1b[31m"), "control characters"),
 ])
 def test_bad_rows_fail_with_one_line_and_store_nothing(sample_project: Path, tmp_path: Path,
                                                        capsys, edit, expected) -> None:
@@ -123,3 +125,16 @@ def test_mark_and_remove(project: Project, tmp_path: Path) -> None:
         catalogue.remove(conn, ["t"])
     with pytest.raises(DocketError, match="no matcher named 'nope'"):
         catalogue.load_scores(project.connection, ["nope"])
+
+
+def test_an_option_between_the_action_and_the_file_is_understood(project: Project,
+                                                                 tmp_path: Path) -> None:
+    # argparse fills FILE|NAME before the first option: the file after --name was "unrecognized"
+    frame = candidates(project).head(20)
+    path = tmp_path / "one.csv"
+    pd.DataFrame({"left_id": frame.left_id, "right_id": frame.right_id,
+                  "label": "match"}).to_csv(path, index=False)
+    project.close()
+    assert main(["matchers", str(project.path), "import", "--name", "[b]lm[/b]", str(path)]) == 0
+    with Project.open(project.path, readonly=True) as p:
+        assert [m.name for m in catalogue.matchers(p.connection)] == ["[b]lm[/b]"]

@@ -88,11 +88,28 @@ def chosen_parser(parser: argparse.ArgumentParser, args: argparse.Namespace
     return current
 
 
+def _rest_of_a_list(command: argparse.ArgumentParser, args: argparse.Namespace,
+                    extra: list[str]) -> list[str]:
+    """Words after an option that belong to the command's list of files or names.
+
+    argparse fills a ``nargs="*"`` (or ``"+"``) positional before the first option, so in
+    ``matchers P import --name m file.csv`` the file was left over as "unrecognized".
+    """
+    lists = [a for a in command._actions if not a.option_strings and a.nargs in ("*", "+")
+             and isinstance(getattr(args, a.dest, None), list)]
+    if len(lists) != 1 or any(w.startswith("-") for w in extra):
+        return extra
+    getattr(args, lists[0].dest).extend(extra)
+    return []
+
+
 def parse(parser: argparse.ArgumentParser, argv: list[str] | None) -> argparse.Namespace:
     """Parse ``argv``; an unknown option is refused with the nearest option of its command."""
     args, extra = parser.parse_known_args(argv)
     if extra:
         command = chosen_parser(parser, args)
+        extra = _rest_of_a_list(command, args, extra)
+    if extra:
         hints = [f"did you mean {best}?" for word in extra if word.startswith("-")
                  for best in [nearest(word.split("=")[0], _options(command))] if best]
         command.error(f"unrecognized arguments: {' '.join(extra)}"

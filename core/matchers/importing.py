@@ -143,9 +143,10 @@ def _one(name: str, kind: str, values: np.ndarray, pos: np.ndarray, rows: np.nda
 
 def _check_name(name: str, path: Path) -> str:
     name = name.strip()
-    if not name or len(name) > MAX_NAME or any(ch in name for ch in ",=\n\r\t"):
+    if (not name or len(name) > MAX_NAME or any(ch in name for ch in ",=")
+            or not name.isprintable()):  # an escape sequence would act on every listing
         raise DocketError(f"{path}: matcher name {name!r}: use 1 to {MAX_NAME} characters "
-                          "without commas, '=' or line breaks")
+                          "without commas, '=', line breaks or control characters")
     return name
 
 
@@ -165,6 +166,8 @@ def _prepare(path: Path) -> _File:
     if missing:
         raise DocketError(f"{path}: needs columns left_id and right_id (missing "
                           f"{', '.join(missing)}; found {', '.join(table.column_names[:8])})")
+    if not table.num_rows:
+        raise DocketError(f"{path}: a header and no rows; give one row per pair")
     kind, values = _values(table, path)
     check_ids(table, path)
     return _File(path, table, kind, values)
