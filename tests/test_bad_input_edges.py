@@ -48,6 +48,8 @@ CASES = {
         {"records": [{"id": 1, "name": "a"}, {"id": 2, "name": "b"}]})),
         ["wrap.json", "record 1, 'records' holds a list", "flat object"]),
     "UTF-16 without a mark": (_utf16_no_bom, ["nobom.csv", "byte-order mark", "UTF-8"]),
+    "a column named rowid": (lambda d: write(d / "rid.csv", "id,ROWID,town\n1,a,x\n2,b,x\n"),
+                             ["rid.csv", "column 'ROWID'", "rename it"]),
 }
 
 
@@ -205,3 +207,15 @@ def test_a_pairs_file_with_nothing_to_review_is_one_line(
                     "--pairs", str(pairs))
     assert_one_line_error(code, err, "pairs.csv", *needles)
     assert not project.exists()
+
+
+def test_columns_the_text_index_keeps_for_itself_are_read_and_found(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # FTS5 refuses columns named rank or after its own table ("reserved fts5 column name")
+    left = write(tmp_path / "r.csv", "id,rank,left_records_fts,town\n1,first,p,Oslo\n"
+                 "2,first,q,Oslo\n3,third,r,Bergen\n")
+    project, _ = _build(capsys, tmp_path, left)
+    with project:
+        assert project.record("left", "1") == {"rank": "first", "left_records_fts": "p",
+                                               "town": "Oslo"}
+        assert project.find("first") == [1]  # by substring: the column is not in the index

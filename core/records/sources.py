@@ -163,6 +163,10 @@ def load_table(path: str | Path, id_column: str | None) -> Table:
     frame = read_frame(path)
     if len(frame) == 0:
         raise DocketError(f"{path}: the table has no records; give a file with at least one row")
+    taken = next((c for c in frame.columns if c.casefold() == "rowid"), None)
+    if taken is not None:  # a column so named hides SQLite's own row number, which search needs
+        raise DocketError(f"{path}: column '{taken}' has the name SQLite keeps for its row "
+                          f"numbers; rename it (for example to '{taken}_1')")
     if id_column is None:
         # an id-like column with gaps or repeats is still the id: say what is wrong with it
         id_column = guess_id_column(frame) or next(iter(id_like(frame)), None)

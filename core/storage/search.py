@@ -21,6 +21,10 @@ def index_records(conn: sqlite3.Connection, table: str, columns: list[str]) -> N
     """Full-text index over a record table's value columns (the id column is matched exactly)."""
     import sqlite_utils  # only building a project needs it
 
+    # FTS5 keeps rowid, rank and its own table's name as hidden columns and refuses a column
+    # so named; such a column is left out of the index (find still reaches it by substring)
+    hidden = {"rowid", "rank", f"{table}_fts"}
+    columns = [c for c in columns if c.casefold() not in hidden]
     if columns:
         sqlite_utils.Database(conn).table(table).enable_fts(
             columns, fts_version="FTS5", create_triggers=False,
