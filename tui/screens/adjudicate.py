@@ -192,7 +192,7 @@ class AdjudicateScreen(AdjudicationQueue, Screen[None]):
             app.project.adjudicate(pair_id, app.adjudicator, label, reason,
                                    app.clock() - self.shown_at)
         except (DocketError, sqlite3.Error) as exc:
-            self.notify(f"Not saved: {exc}. The pair stays on screen; try again.",
+            self.notify(f"Not saved: {exc}. The pair stays on screen.",
                         severity="error", markup=False)
             return
         self.pace.record(app.clock())

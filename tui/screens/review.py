@@ -207,7 +207,7 @@ class ReviewScreen(ReviewNotes, ReviewMoves, ReviewBackground, Screen[None]):
             app.project.decide(self.item.pair_id, app.reviewer, label, note,
                                app.clock() - self.shown_at)
         except (DocketError, sqlite3.Error) as exc:
-            self.notify(f"Not saved: {exc}. The pair stays on screen; try again.",
+            self.notify(f"Not saved: {exc}. The pair stays on screen.",
                         severity="error", markup=False)
             return
         if before is None:
