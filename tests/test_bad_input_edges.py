@@ -6,6 +6,7 @@ nothing written; what docket reads anyway it reads correctly and says how."""
 from __future__ import annotations
 
 import codecs
+import gzip
 import json
 import sqlite3
 from pathlib import Path
@@ -30,6 +31,11 @@ def _utf16_no_bom(d: Path) -> Path:
     return path
 
 
+def _bytes(path: Path, data: bytes) -> Path:
+    path.write_bytes(data)
+    return path
+
+
 CASES = {
     "2,001 columns": (_wide, ["wide.csv", "2,001 columns", "999"]),
     "names collide after trimming": (lambda d: write(d / "trim.csv", "id,name, name \n1,a,b\n"),
@@ -48,6 +54,12 @@ CASES = {
         {"records": [{"id": 1, "name": "a"}, {"id": 2, "name": "b"}]})),
         ["wrap.json", "record 1, 'records' holds a list", "flat object"]),
     "UTF-16 without a mark": (_utf16_no_bom, ["nobom.csv", "byte-order mark", "UTF-8"]),
+    "gzip under a .csv name": (lambda d: _bytes(d / "gz.csv", gzip.compress(b"id,name\n1,a\n")),
+                               ["gz.csv", "gzip-compressed", "unpack it"]),
+    "a spreadsheet under a .csv name": (lambda d: _bytes(d / "s.csv", b"PK\x03\x04" + b"\0" * 40),
+                                        ["s.csv", "zip archive", "save the sheet as CSV"]),
+    "bytes that are no text": (lambda d: _bytes(d / "b.csv", b"id,name\n1,\xff\x81\n"),
+                               ["b.csv", "neither UTF-8 nor cp1252"]),
     "a column named rowid": (lambda d: write(d / "rid.csv", "id,ROWID,town\n1,a,x\n2,b,x\n"),
                              ["rid.csv", "column 'ROWID'", "rename it"]),
 }

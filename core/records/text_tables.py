@@ -41,7 +41,31 @@ def bom_encoding(head: bytes) -> str | None:
     return None
 
 
+# The first bytes of files that are often given a .csv name by mistake (common practice: each
+# format's magic number, from its specification)
+PACKED = ((b"\x1f\x8b", "a gzip-compressed file; unpack it first"),
+          (b"PK\x03\x04", "a zip archive (or a spreadsheet, which is one); unpack it, or "
+                          "save the sheet as CSV"),
+          (b"\xfd7zXZ\x00", "an xz-compressed file; unpack it first"),
+          (b"SQLite format 3\x00", "an SQLite database, not a table of records"))
+
+
+def _packed(path: Path, head: bytes) -> str | None:
+    found = next((what for magic, what in PACKED if head.startswith(magic)), None)
+    if found is None and head[:3] == b"BZh" and head[4:10] == b"1AY&SY":  # "BZh9" + block mark
+        found = "a bzip2-compressed file; unpack it first"
+    if found is None and head.startswith(b"PAR1"):  # a header "PAR1,..." is text: check the end
+        with path.open("rb") as f:
+            f.seek(max(0, path.stat().st_size - 4))
+            if f.read(4) == b"PAR1":
+                found = "a Parquet file; name it .parquet"
+    return found
+
+
 def _encodings(path: Path, head: bytes) -> list[str]:
+    packed = _packed(path, head)
+    if packed:
+        raise DocketError(f"{path}: {packed}")
     named = bom_encoding(head)
     if named:
         return [named]
@@ -112,11 +136,12 @@ def read_delimited(path: Path, fmt: str) -> pd.DataFrame:
                                 encoding=encoding)
         except UnicodeDecodeError:
             if encoding != "utf-8":
-                raise DocketError(f"{path}: cannot decode the text as {encoding}; save it "
-                                  "as UTF-8") from None
+                raise DocketError(f"{path}: neither UTF-8 nor {encoding} text; save it as "
+                                  "UTF-8") from None
+            continue
+        if encoding == "cp1252":  # said once it is read, so a refusal stays one line
             warnings.warn(f"{path}: not valid UTF-8; read as cp1252 (Windows Latin-1) instead",
                           EncodingWarning_, stacklevel=3)
-            continue
         return frame
     raise DocketError(f"{path}: cannot decode the text; save it as UTF-8")  # pragma: no cover
 
