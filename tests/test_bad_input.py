@@ -50,6 +50,8 @@ CASES = {
     "duplicate ids": (lambda d: write(d / "dup.csv", "id,name\n1,a\n1,b\n2,c\n2,d\n"),
                       ["dup.csv", "duplicate ids", "1, 2"]),
     "empty table": (lambda d: write(d / "empty.csv", "id,name\n"), ["empty.csv", "no records"]),
+    "one record": (lambda d: write(d / "one.csv", "id,name\n1,a\n"),
+                   ["one.csv", "one record, so no pair", "--right"]),
     "empty file": (lambda d: write(d / "blank.csv", ""), ["blank.csv", "empty"]),
 }
 

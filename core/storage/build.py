@@ -112,6 +112,9 @@ def _check(spec: NewProject) -> None:
 def _tables(spec: NewProject) -> tuple[Table, Table | None]:
     left = load_table(spec.left, spec.left_id or spec.id_column)
     if spec.right is None:
+        if len(left) < 2:  # else blocking is blamed for the pairs that cannot be
+            raise DocketError(f"{spec.left}: one record, so no pair to review; deduplicating "
+                              "needs two or more (or give --right to link two tables)")
         return left, None
     right = load_table(spec.right, spec.right_id or spec.id_column or
                        (left.id_column if left.id_column in read_frame(spec.right).columns
