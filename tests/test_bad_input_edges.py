@@ -231,3 +231,12 @@ def test_columns_the_text_index_keeps_for_itself_are_read_and_found(
         assert project.record("left", "1") == {"rank": "first", "left_records_fts": "p",
                                                "town": "Oslo"}
         assert project.find("first") == [1]  # by substring: the column is not in the index
+
+
+def test_a_scheduler_without_dask_is_refused(tmp_path: Path,
+                                             capsys: pytest.CaptureFixture[str]) -> None:
+    left = write(tmp_path / "t.csv", TOWNS)
+    project = tmp_path / "p.docket"
+    code, err = run(capsys, "new", str(project), "--left", str(left), "--scheduler", "tcp://h:1")
+    assert_one_line_error(code, err, "--scheduler tcp://h:1", "add --engine dask")
+    assert not project.exists()

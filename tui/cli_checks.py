@@ -49,6 +49,13 @@ def at_least(low: int, high: int = LARGEST) -> Callable[[str], int]:
     return whole
 
 
+def check_engine(args: argparse.Namespace) -> None:
+    """A --scheduler is a Dask scheduler: given without --engine dask it would go unused."""
+    if getattr(args, "scheduler", None) and getattr(args, "engine", None) != "dask":
+        from docket.core.errors import DocketError
+        raise DocketError(f"--scheduler {args.scheduler}: a Dask scheduler; add --engine dask")
+
+
 def nearest(word: str, choices: Sequence[str]) -> str | None:
     found = difflib.get_close_matches(word, list(choices), n=1, cutoff=0.6)
     return found[0] if found else None

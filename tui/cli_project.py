@@ -9,7 +9,7 @@ from pathlib import Path
 from typing import Any
 
 from .cli_base import command, default_reviewer, open_project
-from .cli_checks import MOST_LISTED, MOST_WORKERS, at_least, share
+from .cli_checks import MOST_LISTED, MOST_WORKERS, at_least, check_engine, share
 from .figures import many, noun
 from .figures import ratio_text as _ratio
 from .terminal import json_text, shown
@@ -67,6 +67,7 @@ def new(args: argparse.Namespace) -> int:
     if args.id_column and (args.left_id or args.right_id):
         from docket.core import DocketError
         raise DocketError("give --id, or --left-id and --right-id, not both")
+    check_engine(args)
     spec = NewProject(
         path=Path(args.project), left=Path(args.left),
         right=Path(args.right) if args.right else None, id_column=args.id_column,

@@ -8,7 +8,7 @@ import sys
 from pathlib import Path
 from typing import Any
 
-from .cli_checks import MOST_WORKERS, at_least
+from .cli_checks import MOST_WORKERS, at_least, check_engine
 from .figures import many
 
 
@@ -45,6 +45,7 @@ def score(args: argparse.Namespace) -> int:
     from docket.core import Project, score_to_parts
 
     from .progress import progress_bar
+    check_engine(args)
     with Project.open(args.project, readonly=True) as project:
         job = project.scoring_job(args.pairs, args.model, args.left, args.right)
     model = job.model
