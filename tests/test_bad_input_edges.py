@@ -240,3 +240,12 @@ def test_a_scheduler_without_dask_is_refused(tmp_path: Path,
     code, err = run(capsys, "new", str(project), "--left", str(left), "--scheduler", "tcp://h:1")
     assert_one_line_error(code, err, "--scheduler tcp://h:1", "add --engine dask")
     assert not project.exists()
+
+
+def test_the_model_is_not_written_in_another_format(sample_project: Path, tmp_path: Path,
+                                                    capsys: pytest.CaptureFixture[str]) -> None:
+    out = tmp_path / "model.parquet"
+    code, err = run(capsys, "export", str(sample_project), "--what", "model", "-o", str(out),
+                    "--format", "parquet")
+    assert_one_line_error(code, err, "--format parquet", "always a JSON file")
+    assert not out.exists()

@@ -142,6 +142,10 @@ def evaluate(args: argparse.Namespace) -> int:
 def export(args: argparse.Namespace) -> int:
     from docket.core import output_format
     if args.what == "model":
+        if args.format:
+            from docket.core import DocketError
+            raise DocketError(f"--format {args.format}: the model is always a JSON file; "
+                              "leave --format out")
         from .cli_scale import export_model
         with open_project(args.project, readonly=True) as project:
             export_model(project, args.output)
