@@ -1,5 +1,6 @@
 """Find: a number is both a pair id and a record id; words match from their start through the
-full-text index; LIKE wildcards are literal; masked columns are never searched."""
+full-text index; other text is a literal substring (wildcards, NULs and control characters
+included); masked columns are never searched."""
 
 from __future__ import annotations
 
@@ -7,7 +8,6 @@ import sqlite3
 from pathlib import Path
 
 from docket.core import NewProject, Project
-from docket.core.storage.search import like_pattern
 
 
 def _numeric_project(tmp_path: Path) -> Path:
@@ -48,7 +48,6 @@ def test_words_match_from_their_start_in_any_order(tmp_path: Path) -> None:
 
 
 def test_like_wildcards_are_literal(tmp_path: Path) -> None:
-    assert like_pattern("50%_\\") == "%50\\%\\_\\\\%"
     path = _numeric_project(tmp_path)
     with Project.open(path) as p:
         pairs_of_7 = {pid for pid, a in p.connection.execute(
@@ -90,3 +89,43 @@ def test_a_pasted_search_longer_than_sqlite_s_like_limit_is_answered(tmp_path: P
     with Project.open(path) as p:
         assert p.find("x" * 100_000) == []
         assert p.find(("A" + long[:59_999]).upper()) == [1]  # ASCII case folded, as LIKE does
+
+
+def _control_project(tmp_path: Path) -> Path:
+    left = tmp_path / "ctl.csv"
+    # a NUL and a control character inside values, as a badly exported table can hold them
+    left.write_text("id,name,note\n" + "".join(
+        f"{i},Berit Lund{i},n\x00{i}\x01q\n" for i in range(1, 31)), encoding="utf-8")
+    path = tmp_path / "ctl.docket"
+    Project.create(NewProject(path=path, left=left, left_id="id", rules=["name[:5]"]))
+    return path
+
+
+def test_a_nul_in_the_search_text_is_matched_literally_not_as_the_end_of_it(
+        tmp_path: Path) -> None:
+    # SQLite's LIKE stopped its pattern at the NUL, so "\x00" was "%" and found every record
+    path = _numeric_project(tmp_path)
+    with Project.open(path) as p:
+        assert p.find("\x00") == []
+        assert p.find("\x00zzzz") == []
+        assert p.find("Anna\x00") == []
+    path = _control_project(tmp_path)
+    with Project.open(path) as p:
+        rows = p.connection.execute("SELECT pair_id, left_id, right_id FROM pairs").fetchall()
+        of_7 = {pid for pid, a, b in rows if "7" in (a, b)}
+        assert of_7, "the fixture must give record 7 a pair"
+        assert set(p.find("n\x007\x01", limit=500)) == of_7
+        assert len(p.find("\x00", limit=500)) == len(rows)  # every value holds one
+
+
+def test_text_of_control_characters_alone_matches_only_values_holding_them(
+        tmp_path: Path) -> None:
+    path = _numeric_project(tmp_path)
+    with Project.open(path) as p:
+        for text in ("\x01", "\x01\x02", "\x1b[", "\x7f", "\x9b"):
+            assert p.find(text) == [], repr(text)
+    path = _control_project(tmp_path)
+    with Project.open(path) as p:
+        total = p.connection.execute("SELECT count(*) FROM pairs").fetchone()[0]
+        assert len(p.find("\x01q", limit=500)) == total
+        assert p.find("\x02") == []

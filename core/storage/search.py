@@ -3,18 +3,19 @@
 Record tables get a full-text index when the project is built (SQLite FTS5 through
 sqlite-utils, no triggers: records never change after the build). Text is matched word by
 word from the start of each word, so "smi jo" finds "Jo Smith". A project built before the
-index existed, or a search the index cannot answer, falls back to a substring match with the
-LIKE wildcards escaped, so "50%" means the characters 5, 0 and %.
+index existed, or a search the index cannot answer, falls back to a literal substring match
+(ASCII letters in either case, as SQLite's LIKE does), so "50%" means the characters 5, 0 and %.
+Text holding a control character (a NUL, an escape) goes straight to the substring match: the
+index's tokenizer reads those characters as gaps between words, so it cannot match them.
 """
 
 from __future__ import annotations
 
 import sqlite3
+import unicodedata
 from collections.abc import Collection
 
 from .store import quote
-
-LIKE_MOST = 50_000  # bytes: SQLite's default longest LIKE pattern (SQLITE_MAX_LIKE_PATTERN_LENGTH)
 
 
 def index_records(conn: sqlite3.Connection, table: str, columns: list[str]) -> None:
@@ -42,15 +43,13 @@ def _fts_query(text: str, columns: list[str]) -> str:
     return f"{{{names}}} : ({words})"
 
 
-def like_pattern(text: str) -> str:
-    r"""A LIKE pattern for ``text`` as a substring, its own % _ and \ taken literally."""
-    escaped = text.replace("\\", "\\\\").replace("%", "\\%").replace("_", "\\_")
-    return f"%{escaped}%"
+def _has_control(text: str) -> bool:
+    return any(unicodedata.category(ch) == "Cc" and not ch.isspace() for ch in text)
 
 
 def _records_by_text(conn: sqlite3.Connection, table: str, key: str, columns: list[str],
                      text: str, limit: int) -> list[str]:
-    if _has_index(conn, table):
+    if _has_index(conn, table) and not _has_control(text):
         indexed = {r[1] for r in conn.execute(f"PRAGMA table_info({quote(table + '_fts')})")}
         cols = [c for c in columns if c in indexed]
         if cols:
@@ -64,15 +63,12 @@ def _records_by_text(conn: sqlite3.Connection, table: str, key: str, columns: li
                 hits = []
             if hits:
                 return [r[0] for r in hits]
-    if len(text.encode()) < LIKE_MOST:
-        cond = " OR ".join(f"{quote(c)} LIKE ? ESCAPE '\\'" for c in columns)
-        pattern = like_pattern(text)
-    else:  # LIKE refuses a pattern this long; instr with ASCII case folding, as LIKE does
-        cond = " OR ".join(f"instr(lower({quote(c)}), lower(?)) > 0" for c in columns)
-        pattern = text
+    # instr, not LIKE: LIKE ends its pattern and each value at a NUL (so a NUL in the text
+    # matched every record), refuses patterns past 50,000 bytes, and needs its wildcards escaped
+    cond = " OR ".join(f"instr(lower({quote(c)}), lower(?)) > 0" for c in columns)
     return [r[0] for r in conn.execute(
         f"SELECT {quote(key)} FROM {quote(table)} WHERE {cond} LIMIT ?",
-        (*([pattern] * len(columns)), limit))]
+        (*([text] * len(columns)), limit))]
 
 
 def find_pairs(conn: sqlite3.Connection, meta: dict, link: bool, text: str, limit: int = 50,
