@@ -46,12 +46,13 @@ class Project(TeamVerbs, ReportVerbs, MatcherVerbs, QueueVerbs):
         return build(spec, progress, cancel)
 
     # -- reviewers ---------------------------------------------------------------------------
-    def ensure_reviewer(self, name: str, role: str = "reviewer") -> None:
+    def ensure_reviewer(self, name: str, role: str = "reviewer") -> str:
+        """Register ``name`` if new; returns the name to work under (see ``roles.as_kept``)."""
         name = roles.plain_name(name)
         if role not in ROLES:
             raise DocketError(f"unknown role '{role}'; use reviewer or adjudicator")
         with self._lock:  # a role beyond reviewer is only ever granted (team.add_reviewer)
-            roles.register(self._conn, name)
+            return roles.enter(self._conn, name)
 
     # -- pairs -------------------------------------------------------------------------------
     def _record(self, side: str, record_id: str) -> dict[str, str | None]:

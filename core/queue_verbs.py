@@ -74,8 +74,8 @@ class QueueVerbs(ProjectFile, SplitFirst):
             with self._lock:
                 return self._next(reviewer, n, exclude)
         with self.transaction() as conn:
+            reviewer = roles.enter(conn, reviewer)
             items = self._next(reviewer, n, exclude)
-            roles.register(conn, reviewer)
             claims.claim(conn, reviewer, [i.pair_id for i in items])
         return items
 

@@ -62,9 +62,10 @@ class TeamVerbs(ProjectFile):
         return result, (self.refit() if result.added else None)
 
     # -- adjudication ------------------------------------------------------------------------
-    def require_adjudicator(self, name: str) -> None:
+    def require_adjudicator(self, name: str) -> str:
+        """The adjudicator's name as the project keeps it; refused unless one."""
         from .reviewing.adjudication import require_adjudicator
-        require_adjudicator(self, name)
+        return require_adjudicator(self, name)
 
     def set_aside_for(self, adjudicator: str) -> set[int]:
         from .reviewing.adjudication import set_aside_for

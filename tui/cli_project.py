@@ -102,7 +102,7 @@ def next_pairs(args: argparse.Namespace) -> int:
             items = project.next_pairs(reviewer, max(0, args.n))
     else:
         with open_project(args.project) as project:
-            project.ensure_reviewer(reviewer)
+            reviewer = project.ensure_reviewer(reviewer)
             items = project.next_pairs(reviewer, max(0, args.n), claim=True)
     if args.json:
         print(json_text([i.to_dict() for i in items]))

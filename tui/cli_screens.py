@@ -90,8 +90,8 @@ def review(args: argparse.Namespace) -> int:
     mask = parse_mask(args.mask)
     with open_project(args.project) as project:  # fails cleanly before the screen starts
         expand_mask(project, mask)
-        project.ensure_reviewer(default_reviewer(args.reviewer))
-    return _run_review(Path(args.project), default_reviewer(args.reviewer), mask)
+        reviewer = project.ensure_reviewer(default_reviewer(args.reviewer))
+    return _run_review(Path(args.project), reviewer, mask)
 
 
 def sample_dir() -> Path:

@@ -126,11 +126,11 @@ def make_app(path: Path | str, reviewer: str, mask: Sequence[str] = (), *,
     project = Project.open(Path(path))
     try:
         mask = expand_mask(project, mask)  # an unknown column fails before anything is written
+        reviewer = project.ensure_reviewer(reviewer)
     except BaseException:
         project.close()
         raise
-    project.ensure_reviewer(reviewer)
-    return ReviewApp(project, reviewer.strip(), mask, clock=clock or time.monotonic,
+    return ReviewApp(project, reviewer, mask, clock=clock or time.monotonic,
                      refit_every=refit_every, keymap_file=keymap_file)
 
 

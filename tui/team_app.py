@@ -127,7 +127,7 @@ def make_team_app(path: Path | str, adjudicator: str = "", *, start: Start = "ad
     project = Project.open(Path(path)) if start == "adjudicate" else open_project(Path(path))
     try:
         if start == "adjudicate":
-            project.require_adjudicator(adjudicator)
+            adjudicator = project.require_adjudicator(adjudicator)
         mask = expand_mask(project, mask)
     except BaseException:
         project.close()

@@ -8,7 +8,7 @@ wait, and what becomes gold, is the policy of ``reviewing.gold``.
 from __future__ import annotations
 
 from ..errors import DocketError
-from ..storage import claims
+from ..storage import claims, roles
 from ..storage.project_file import ProjectFile
 from ..types import LABELS, Decision, Review
 from . import gold
@@ -21,13 +21,16 @@ def is_adjudicator(project: ProjectFile, name: str) -> bool:
     return row is not None and row[0] == "adjudicator"
 
 
-def require_adjudicator(project: ProjectFile, name: str) -> None:
+def require_adjudicator(project: ProjectFile, name: str) -> str:
     if not name.strip():
         raise DocketError("adjudication needs a name; pass --reviewer NAME")
+    with project.reading():
+        name = roles.as_kept(project.connection, roles.plain_name(name))
     if not is_adjudicator(project, name):
         raise DocketError(f"{name.strip()} is not an adjudicator of {project.path}, and only "
                           f"adjudicators may settle pairs; add one with 'docket reviewers "
                           f"{project.path} add {name.strip()} --role adjudicator'")
+    return name
 
 
 def queue(project: ProjectFile, extra: set[int] | None = None) -> list[tuple[int, str]]:

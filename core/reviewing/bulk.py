@@ -115,6 +115,8 @@ def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: s
     """Record ``rows`` for ``reviewer`` in batches of at most ``batch`` rows and about
     ``seconds`` of writing each, ``pause`` apart; on any failure, none of them stands."""
     reviewer = roles.plain_name(reviewer)
+    with project.reading():
+        reviewer = roles.as_kept(project.connection, reviewer)
     written: list[tuple[int, str]] = []
     try:
         while len(written) < len(rows):

@@ -72,6 +72,7 @@ def add_reviewer(project: ProjectFile, name: str, role: str = "reviewer",
         raise DocketError(f"unknown role '{role}'; use reviewer or adjudicator")
     by = clean_name(granted_by) if granted_by.strip() else ""
     with project.transaction() as conn:
+        name = roles.as_kept(conn, name)
         row = conn.execute("SELECT role FROM reviewers WHERE name = ?", (name,)).fetchone()
         before = None if row is None else row[0]
         roles.register(conn, name)

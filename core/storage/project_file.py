@@ -121,8 +121,8 @@ class ProjectFile:
         if label not in LABELS:
             raise DocketError(f"unknown label '{label}'; use one of {', '.join(LABELS)}")
         with self.transaction() as conn:
+            reviewer = roles.enter(conn, reviewer)  # a role beyond it is only ever granted
             prior = log.current_of(conn, pair_id, reviewer, role)
-            roles.register(conn, reviewer)  # a role beyond reviewer is only ever granted
             claims.release(conn, reviewer, pair_id, role)
             note = note or drafts.of(conn, pair_id, reviewer, role)
             drafts.clear(conn, pair_id, reviewer, role)  # the note is in the log now

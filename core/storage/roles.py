@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import bisect
 import sqlite3
+import unicodedata
 import uuid
 from dataclasses import asdict, dataclass
 from typing import Any
@@ -23,8 +24,8 @@ from . import store
 from .decisions import stamp
 from .migrations import MIGRATED_GRANTOR
 
-__all__ = ["MIGRATED_GRANTOR", "ROLES", "Grant", "grant", "history", "plain_name", "register",
-           "role_at"]
+__all__ = ["MIGRATED_GRANTOR", "ROLES", "Grant", "as_kept", "enter", "grant", "history",
+           "plain_name", "register", "role_at"]
 DEFAULT_ROLE = "reviewer"
 
 
@@ -47,13 +48,48 @@ GRANT_COLUMNS = "grant_id, name, role, granted_by, granted_at"
 
 
 def plain_name(name: str, how: str = "pass --reviewer NAME") -> str:
-    """A person's name trimmed, refused when empty or holding control characters (an escape
-    sequence in a name would act on every terminal that lists the reviewers)."""
-    name = (name or "").strip()
+    """A person's name trimmed and in Unicode NFC, refused when empty or holding control
+    characters (an escape sequence in a name would act on every terminal that lists the
+    reviewers). NFC because one keyboard types "é" as one character and another as "e" and a
+    combining accent: the same name to the eye."""
+    name = unicodedata.normalize("NFC", (name or "").strip())
     if not name:
         raise DocketError(f"a reviewer needs a name; {how}")
     if any(not ch.isprintable() for ch in name):
         raise DocketError(f"reviewer name {name!r} holds control characters; use plain text")
+    return name
+
+
+def _folded(name: str) -> str:
+    return unicodedata.normalize("NFC", unicodedata.normalize("NFC", name).casefold())
+
+
+def as_kept(conn: sqlite3.Connection, name: str) -> str:
+    """``name`` as the project keeps it: a known name differing only in Unicode form (a file
+    written before names were normalised) is that name; a new name equal to a known one but
+    for letter case is refused, since it is almost surely the same person typed otherwise.
+    A file already holding both spellings keeps working: an exact name is always taken. A new
+    name comes back in NFC."""
+    if conn.execute("SELECT 1 FROM reviewers WHERE name = ?", (name,)).fetchone():
+        return name
+    known = [k for (k,) in conn.execute("SELECT name FROM reviewers ORDER BY name")]
+    name = unicodedata.normalize("NFC", name)
+    same = [k for k in known if unicodedata.normalize("NFC", k) == name]
+    if same:
+        return same[0]
+    folded = _folded(name)
+    alike = [k for k in known if _folded(k) == folded]
+    if alike:
+        raise DocketError(f"reviewer {name!r} differs only in letter case from {alike[0]!r}, "
+                          f"who is in this project already; use {alike[0]!r}, or a name "
+                          "that differs in more than case")
+    return name
+
+
+def enter(conn: sqlite3.Connection, name: str) -> str:
+    """Register a name someone typed, as ``as_kept`` reads it; returns the name to use."""
+    name = as_kept(conn, name)
+    register(conn, name)
     return name
 
 
