@@ -202,3 +202,17 @@ def test_dedupe_clusters_have_no_side(tmp_path: Path) -> None:
         assert ge.conflict_pairs(project) == {key[frozenset({"1", "3"})]}
 
 
+
+
+def test_a_conflicts_export_with_none_says_so_in_its_one_line(sample_project: Path,
+                                                               tiny: Project, tmp_path: Path,
+                                                               capsys) -> None:
+    from docket.tui import cli
+    out = tmp_path / "c.csv"
+    assert cli.main(["export", str(sample_project), "--what", "conflicts", "-o", str(out)]) == 0
+    assert capsys.readouterr().err.strip() == (
+        f"wrote 0 rows to {out}: no conflicts, no gold non-match falls inside a cluster")
+    assert out.read_text(encoding="utf-8").splitlines() == [
+        "cluster,pair_id,left_id,right_id,cluster_size,match_pairs"]  # the columns still
+    assert cli.main(["export", str(tiny.path), "--what", "conflicts", "-o", str(out)]) == 0
+    assert capsys.readouterr().err.strip() == f"wrote 1 row to {out}"

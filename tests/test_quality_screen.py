@@ -53,6 +53,7 @@ async def test_clusters_tab_lists_the_conflict_and_enter_shows_its_members(team,
         await settle(pilot)
         await press(pilot, "3")
         assert "1 conflict" in screen_text(app)
+        assert "held together by gold matches" in screen_text(app)
         await press(pilot, "enter")
         assert isinstance(app.screen, ConflictScreen)
         text = screen_text(app)
@@ -77,7 +78,26 @@ async def test_without_audit_labels_the_screen_says_what_is_missing(sample_proje
         text = screen_text(app)
         assert "no estimates yet" in text and "audit slice has no gold labels" in text
         await press(pilot, "3")
-        assert "No conflicts" in screen_text(app)
+        text = screen_text(app)
+        assert "No clusters yet" in text and "No conflicts" in text
+        assert "held together by gold matches" not in text  # no headings over no rows
+
+
+@pilot_test
+async def test_clusters_without_a_conflict_show_no_conflict_table(sample_project, team_app):
+    with Project.open(sample_project) as project:
+        first = project.next_pairs("maya", 1)[0].pair_id
+        project.decide(first, "maya", "match")
+    app = team_app(sample_project, start="quality")
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await press(pilot, "3")
+        text = screen_text(app)
+        assert "1 cluster of two or more records holds 2 records" in text
+        assert "No conflicts: no gold non-match" in text
+        assert "held together by gold matches" not in text
+        await press(pilot, "enter")
+        assert isinstance(app.screen, QualityScreen)  # nothing to open, and nothing opened
 
 
 def test_narrow_intervals_leave_out_what_only_takes_room() -> None:

@@ -155,8 +155,10 @@ def export(args: argparse.Namespace) -> int:
     if args.what != "scores" or args.for_lm or args.lm_template:
         with open_project(args.project, readonly=True) as project:
             result = export_other(project, args.what, args)
+        none = ": no conflicts, no gold non-match falls inside a cluster" \
+            if args.what == "conflicts" else ""
         write_export(result, args.output, args.format,
-                              guard=getattr(args, "formula_guard", True))
+                     guard=getattr(args, "formula_guard", True), none=none)
         return 0
     from docket.core import write_rows
     with open_project(args.project, readonly=True) as project:
@@ -182,10 +184,12 @@ def export_other(project: Any, what: str, args: argparse.Namespace) -> Any:
         lm_template=getattr(args, "lm_template", None))
 
 
-def write_export(result: Any, target: str, fmt: str | None, guard: bool = True) -> int:
-    """Write what ``export_other`` returned; returns the number of rows written."""
+def write_export(result: Any, target: str, fmt: str | None, guard: bool = True,
+                 none: str = "") -> int:
+    """Write what ``export_other`` returned; returns the number of rows written. ``none``
+    ends the line said when there are no rows (what their absence means)."""
     from docket.core import write_rows
     n = write_rows(result, target, fmt, guard)
     if target != "-":
-        print(f"wrote {many(n, 'row')} to {target}", file=sys.stderr)
+        print(f"wrote {many(n, 'row')} to {target}{none if not n else ''}", file=sys.stderr)
     return n

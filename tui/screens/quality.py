@@ -182,6 +182,9 @@ class QualityScreen(TeamScreen):
         summary = Text()
         if data.cluster_problem:
             summary.append(data.cluster_problem, p.heading)
+        elif not data.clusters:
+            summary.append("No clusters yet: no gold match joins two records. No conflicts.",
+                           p.muted)
         else:
             hold = "holds" if data.clusters == 1 else "hold"
             summary.append(f"{many(data.clusters, 'cluster')} of two or more records {hold} "
@@ -199,6 +202,7 @@ class QualityScreen(TeamScreen):
         self.query_one("#cluster-summary", Static).update(summary)
         table = self.query_one("#conflict-table", DataTable)
         table.clear(columns=True)
+        table.display = bool(data.conflicts)  # no column headings over no rows
         for label in ("cluster", "records", "gold non-match", "held together by gold matches"):
             table.add_column(Text(label, p.muted))
         for c in data.conflicts:
