@@ -70,3 +70,14 @@ def test_unknown_id_in_a_part_on_dask(tmp_path: Path, scheduler: str, capsys) ->
                     "--scheduler", scheduler)
     assert_one_line_error(code, err, "N-nope")
     assert [p.name for p in tmp_path.iterdir() if "docket" in p.name] == []
+
+
+def test_a_file_of_self_pairs_only_on_dask_is_named_so(tmp_path: Path, scheduler: str,
+                                                       capsys) -> None:
+    from tests.test_spilled_pairs import _self_pairs
+    table, pairs = _self_pairs(tmp_path)
+    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(table), "--id",
+                    "id", "--pairs", str(pairs), "--engine", "dask", "--scheduler", scheduler)
+    assert_one_line_error(code, err, f"{pairs}: holds no pair of two different records")
+    assert "blocking" not in err
+    assert [p.name for p in tmp_path.iterdir() if "docket" in p.name] == []

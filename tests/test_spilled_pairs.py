@@ -78,3 +78,29 @@ def test_buckets_spread_keys_evenly() -> None:
     keys = np.arange(0, 2_000_000, 7, dtype=np.int64) * 1_000  # a regular pattern
     counts = np.bincount(spilled.bucket_of(keys, 13), minlength=13)
     assert counts.min() > 0.95 * counts.mean()
+
+
+def _self_pairs(tmp_path: Path) -> tuple[Path, Path]:
+    """One table of invented clients and a Parquet file of each client paired with itself."""
+    ids = [f"c{i:03d}" for i in range(120)]
+    table = tmp_path / "clients.csv"
+    pd.DataFrame({"id": ids, "name": [f"Wren Ostby{i % 9}" for i in range(120)]}).to_csv(
+        table, index=False)
+    pairs = tmp_path / "self.parquet"
+    pd.DataFrame({"left_id": ids * 2, "right_id": ids * 2}).to_parquet(pairs, index=False)
+    return table, pairs
+
+
+def test_a_file_of_self_pairs_only_is_named_so_when_spilled(
+        tmp_path: Path, monkeypatch: pytest.MonkeyPatch, capsys) -> None:
+    # the spilled path blamed the blocking rules, which a pairs file does not use
+    from tests.test_bad_input import assert_one_line_error, run
+    table, pairs = _self_pairs(tmp_path)
+    monkeypatch.setattr(spilled, "BUCKET", 97)
+    for above in ("100", "1000000"):  # spilled, and held in memory: the same line
+        code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(table),
+                        "--id", "id", "--pairs", str(pairs), "--sample-above", above)
+        assert_one_line_error(code, err, f"{pairs}: holds no pair of two different records",
+                              "240 pairs of a record with itself")
+        assert "blocking" not in err
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["clients.csv", "self.parquet"]

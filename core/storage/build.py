@@ -155,6 +155,9 @@ def build(spec: NewProject, progress: Progress | None = None,
                           "or keep only the columns worth comparing")
     engine = open_engine(spec, left, right, fields, step)
     try:
+        if len(engine) == 0 and spec.pairs_file is not None:  # Dask: self pairs dropped there
+            raise DocketError(f"{spec.pairs_file}: holds no pair of two different records; "
+                              "give rows of a left id and a right id, one pair per row")
         if len(engine) == 0:
             raise DocketError("no candidate pairs: the blocking rules matched no records; "
                               "try a looser rule with --block")

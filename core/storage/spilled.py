@@ -98,6 +98,8 @@ class Spilled:
             distinct.tofile(self._file(b, "keys"))
             self._file(b, "read").unlink()
             n += len(distinct)
+        if not n:  # said as the in-memory build says it, not as blocking that found nothing
+            raise reader.nothing_left()
         reader.warn(n_again, again_rows)
         return n
 
