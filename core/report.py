@@ -16,6 +16,17 @@ CAUTION = ("Records may be personal data: keep the project file private (it is c
            "merge. Follow your local data-protection law and your organisation's policy.")
 
 
+def one_field_note(fields: int, labels_used: int) -> str | None:
+    """Why a one-field model says little before labels (None when it does not apply)."""
+    if fields != 1 or labels_used:
+        return None
+    # Two classes mixed over one field's levels have no single answer: EM's split is one of
+    # many that fit the counts equally well, so its probabilities are no estimate yet.
+    return ("only one field is compared, and with one field EM cannot tell matches from "
+            "look-alikes: until pairs are labelled and refit, the probabilities are a rough "
+            "order (perhaps no predicted match at all), not estimates")
+
+
 def how_fitted(fs: dict) -> list[str]:
     """What the label-free start did, in a few plain sentences."""
     out = []
@@ -39,6 +50,9 @@ def how_fitted(fs: dict) -> list[str]:
         out.append("frequent values get their own exact level: " + ", ".join(
             f"{f} ({len(v):,} value{'' if len(v) == 1 else 's'})"
             for f, v in fs["frequent"].items()))
+    note = one_field_note(len(fs["fields"]), fs.get("labels_used", 0))
+    if note:
+        out.append(note)
     return out
 
 
