@@ -216,3 +216,21 @@ def test_a_conflicts_export_with_none_says_so_in_its_one_line(sample_project: Pa
         "cluster,pair_id,left_id,right_id,cluster_size,match_pairs"]  # the columns still
     assert cli.main(["export", str(tiny.path), "--what", "conflicts", "-o", str(out)]) == 0
     assert capsys.readouterr().err.strip() == f"wrote 1 row to {out}"
+
+
+def test_an_export_of_no_rows_as_json_lines_holds_no_line(sample_project: Path, tmp_path: Path,
+                                                           capsys) -> None:
+    # pandas wrote one empty line, which json.loads (and so any JSON-lines reader) refuses
+    from docket.tui import cli
+    out = tmp_path / "c.jsonl"
+    assert cli.main(["export", str(sample_project), "--what", "conflicts", "-o", str(out)]) == 0
+    assert out.read_bytes() == b""
+    capsys.readouterr()
+    assert cli.main(["export", str(sample_project), "--what", "gold", "--format", "jsonl",
+                     "-o", "-"]) == 0
+    assert capsys.readouterr().out == ""
+    one = pd.DataFrame({"a": ["x"]})
+    write_frame(one, str(out))
+    assert [json.loads(line) for line in out.read_text(encoding="utf-8").splitlines()] == [
+        {"a": "x"}]
+    assert out.read_text(encoding="utf-8").endswith("\n")

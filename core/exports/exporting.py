@@ -71,6 +71,15 @@ def csv_text(frame: pd.DataFrame, guard: bool = True) -> str:
     return (guarded(frame) if guard else frame).to_csv(index=False, lineterminator="\r\n")
 
 
+def jsonl_text(frame: pd.DataFrame) -> str:
+    """One JSON object per line, each line ended; no rows is no lines (pandas writes one empty
+    line for them, which a JSON-lines reader takes for a broken record)."""
+    if not len(frame):
+        return ""
+    text = frame.to_json(orient="records", lines=True, force_ascii=False)
+    return text if text.endswith("\n") else text + "\n"
+
+
 def to_stdout(text: str | bytes) -> None:
     """Export data on standard output: exact bytes to a pipe; to a terminal, as printed text."""
     if isinstance(text, str) and sys.stdout.isatty():
@@ -109,7 +118,7 @@ def write_frame(frame: pd.DataFrame, target: str, fmt: str | None = None,
         elif kind == "csv":
             to_stdout(csv_text(frame, guard))
         else:
-            to_stdout(frame.to_json(orient="records", lines=True, force_ascii=False))
+            to_stdout(jsonl_text(frame))
         return
 
     def write(tmp: Path) -> None:
@@ -118,7 +127,7 @@ def write_frame(frame: pd.DataFrame, target: str, fmt: str | None = None,
         elif kind == "csv":
             tmp.write_text(csv_text(frame, guard), encoding="utf-8", newline="")
         else:
-            frame.to_json(tmp, orient="records", lines=True, force_ascii=False)
+            tmp.write_text(jsonl_text(frame), encoding="utf-8", newline="")
 
     atomic_write(Path(target), write)
 
