@@ -76,7 +76,9 @@ def _encodings(path: Path, head: bytes) -> list[str]:
 
 
 def _header(text: str, sep: str) -> list[str]:
-    return next(csv.reader(io.StringIO(text), delimiter=sep), [])
+    # newline="": rows end at CR, LF or CRLF as in the file (a file of CR-only line ends, as
+    # old spreadsheets on a Mac write, stopped the reader with an error)
+    return next(csv.reader(io.StringIO(text, newline=""), delimiter=sep), [])
 
 
 def choose_separator(path: Path, head_text: str, expected: str) -> str:

@@ -1,0 +1,42 @@
+"""CSV files as spreadsheets and other programs write them: any line end, a byte-order mark,
+values across lines, names that clash only in letter case, blank header cells, long values.
+Each is read as meant or refused in one line naming the file and what to change."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from docket.core import Project
+from docket.tui.cli import main
+
+ROWS = [("1", "Tove Marsk", "Oslo"), ("2", "Tove Mask", "Oslo"), ("3", "Ivo Brenn", "Vik"),
+        ("4", "Ivo Bren", "Vik")]
+
+
+def _csv(rows: list[tuple[str, ...]], end: str, header: str = "id,name,town") -> str:
+    return end.join([header, *(",".join(r) for r in rows)]) + end
+
+
+def _build(tmp_path: Path, left: Path, capsys: pytest.CaptureFixture[str]) -> Project:
+    path = tmp_path / "p.docket"
+    assert main(["new", str(path), "--left", str(left), "--id", "id", "--block", "town"]) == 0, \
+        capsys.readouterr().err
+    capsys.readouterr()
+    return Project.open(path, readonly=True)
+
+
+@pytest.mark.parametrize("end", ["\n", "\r\n", "\r"], ids=["LF", "CRLF", "CR"])
+@pytest.mark.parametrize("bom", [False, True], ids=["plain", "bom"])
+def test_every_line_end_with_or_without_a_mark_reads_the_same_records(
+        end: str, bom: bool, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # CR alone (old spreadsheets on a Mac) ended in a traceback from the header's reader
+    rows = [*ROWS[:3], ("4", '"Ivo' + end + 'Bren"', "Vik")]  # a value across two lines
+    left = tmp_path / "t.csv"
+    left.write_bytes(("\ufeff" if bom else "").encode() + _csv(rows, end).encode())
+    with _build(tmp_path, left, capsys) as project:
+        assert project.record("left", "1") == {"name": "Tove Marsk", "town": "Oslo"}
+        assert project.record("left", "4")["name"] in {"Ivo\nBren", "Ivo\r\nBren", "Ivo\rBren"}
+        assert project.record("left", "4")["town"] == "Vik"
+        assert project.record_columns() == ["id", "name", "town"]
