@@ -11,6 +11,8 @@ import pytest
 from docket.core import Project
 from docket.tui.cli import main
 
+from .test_bad_input import assert_one_line_error, run
+
 ROWS = [("1", "Tove Marsk", "Oslo"), ("2", "Tove Mask", "Oslo"), ("3", "Ivo Brenn", "Vik"),
         ("4", "Ivo Bren", "Vik")]
 
@@ -40,3 +42,19 @@ def test_every_line_end_with_or_without_a_mark_reads_the_same_records(
         assert project.record("left", "4")["name"] in {"Ivo\nBren", "Ivo\r\nBren", "Ivo\rBren"}
         assert project.record("left", "4")["town"] == "Vik"
         assert project.record_columns() == ["id", "name", "town"]
+
+
+@pytest.mark.parametrize("header, said", [
+    ("id,Name,name", "columns 2 and 3 are named 'Name' and 'name'"),
+    ("ID,name,id", "columns 1 and 3 are named 'ID' and 'id'"),
+    ("id,name,NAME ", "columns 2 and 3 are named 'name' and 'NAME'")])
+def test_names_that_differ_only_in_letter_case_are_refused_in_one_line(
+        header: str, said: str, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # SQLite keeps the records and ignores ASCII case in column names: the build ended in
+    # "duplicate column name: sim_name", naming the project file, not the table
+    left = tmp_path / "case.csv"
+    left.write_text(_csv([(*r, "x") for r in ROWS], "\n", header), encoding="utf-8")
+    project = tmp_path / "p.docket"
+    code, err = run(capsys, "new", str(project), "--left", str(left), "--id", "id")
+    assert_one_line_error(code, err, f"{left}: {said}", "letter case", "rename one")
+    assert not project.exists()

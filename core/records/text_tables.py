@@ -95,15 +95,27 @@ def choose_separator(path: Path, head_text: str, expected: str) -> str:
     return best
 
 
+def _ascii_lower(name: str) -> str:
+    # SQLite, which keeps the records, tells column names apart ignoring ASCII letter case only
+    return "".join(ch.lower() if ch.isascii() else ch for ch in name)
+
+
 def check_names(path: Path, names: list[str]) -> None:
-    """Column names must stay distinct once spaces at their ends are trimmed."""
-    seen: dict[str, int] = {}
+    """Column names must stay distinct once spaces at their ends are trimmed, and in the
+    project file, where 'Name' and 'name' are one column."""
+    seen: dict[str, tuple[int, str]] = {}
     for position, raw in enumerate(names, start=1):
         name = str(raw).strip()
-        if name in seen:
-            raise DocketError(f"{path}: columns {seen[name]} and {position} are both named "
-                              f"'{name}' (spaces at the ends do not count); rename one")
-        seen[name] = position
+        key = _ascii_lower(name)
+        if key in seen:
+            first, other = seen[key]
+            if other == name:
+                raise DocketError(f"{path}: columns {first} and {position} are both named "
+                                  f"'{name}' (spaces at the ends do not count); rename one")
+            raise DocketError(f"{path}: columns {first} and {position} are named '{other}' and "
+                              f"'{name}', which differ only in letter case, and the project "
+                              "file cannot keep them apart; rename one")
+        seen[key] = (position, name)
 
 
 def check_widths(path: Path, encoding: str, sep: str) -> None:
