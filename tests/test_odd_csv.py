@@ -58,3 +58,28 @@ def test_names_that_differ_only_in_letter_case_are_refused_in_one_line(
     code, err = run(capsys, "new", str(project), "--left", str(left), "--id", "id")
     assert_one_line_error(code, err, f"{left}: {said}", "letter case", "rename one")
     assert not project.exists()
+
+
+def test_a_nameless_empty_column_from_a_trailing_separator_is_left_out(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # pandas named it "Unnamed: 3", and it was compared as a text field that is always missing
+    left = tmp_path / "t.csv"
+    left.write_text(_csv([(*r, "") for r in ROWS], "\r\n", "id,name,town,"), encoding="utf-8")
+    with _build(tmp_path, left, capsys) as project:
+        assert project.record_columns() == ["id", "name", "town"]
+        assert [f.name for f in project.fields] == ["name", "town"]
+
+
+@pytest.mark.parametrize("name, text", [
+    ("blank.csv", _csv([(r[0], "x", *r[1:]) for r in ROWS], "\n", "id, ,name,town")),
+    ("blank.json", '[{"id": "1", "": "x", "name": "Tove"}, {"id": "2", "": null, "name": "Bo"}]'),
+])
+def test_a_nameless_column_holding_values_is_refused_by_its_position(
+        name: str, text: str, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    left = tmp_path / name
+    left.write_text(text, encoding="utf-8")
+    project = tmp_path / "p.docket"
+    code, err = run(capsys, "new", str(project), "--left", str(left), "--id", "id")
+    assert_one_line_error(code, err, f"{left}: column 2 has no name in the header but holds "
+                          "values", "name it")
+    assert not project.exists()

@@ -75,7 +75,25 @@ def read_frame(path: Path) -> pd.DataFrame:
                           "or showing")
     check_names(path, list(frame.columns))
     frame.columns = [str(c).strip() for c in frame.columns]
-    return _as_text(frame)
+    return _as_text(_without_blank_names(path, frame))
+
+
+def _holds_values(column: pd.Series) -> bool:
+    return bool((column.notna() & column.astype(str).str.strip().ne("")).any())
+
+
+def _without_blank_names(path: Path, frame: pd.DataFrame) -> pd.DataFrame:
+    """A column with no name is left out when it holds nothing (a separator at the end of
+    every row, as spreadsheets write), and refused when it holds values: what it is, only
+    the user can say."""
+    keep = []
+    for position, name in enumerate(frame.columns, start=1):
+        if name:
+            keep.append(position - 1)
+        elif _holds_values(frame.iloc[:, position - 1]):
+            raise DocketError(f"{path}: column {position} has no name in the header but holds "
+                              "values; name it, or remove the column")
+    return frame if len(keep) == frame.shape[1] else frame.iloc[:, keep]
 
 
 # The characters str.isspace() accepts: a value made only of them is missing, as

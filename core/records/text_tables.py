@@ -106,6 +106,8 @@ def check_names(path: Path, names: list[str]) -> None:
     seen: dict[str, tuple[int, str]] = {}
     for position, raw in enumerate(names, start=1):
         name = str(raw).strip()
+        if not name:
+            continue  # a blank header cell: see sources.read_frame
         key = _ascii_lower(name)
         if key in seen:
             first, other = seen[key]
@@ -144,10 +146,13 @@ def read_delimited(path: Path, fmt: str) -> pd.DataFrame:
             head_text = head.decode(encoding, errors="ignore" if len(head) == HEAD_BYTES
                                     else "strict")
             sep = choose_separator(path, head_text, "\t" if fmt == "tsv" else ",")
-            check_names(path, _header(head_text, sep))
+            header = _header(head_text, sep)
+            check_names(path, header)
             check_widths(path, encoding, sep)
             frame = pd.read_csv(path, sep=sep, dtype=str, keep_default_na=False,
                                 encoding=encoding)
+            if len(header) == frame.shape[1]:  # the names as written, not pandas' "Unnamed: 2"
+                frame.columns = header
         except UnicodeDecodeError:
             if encoding != "utf-8":
                 raise DocketError(f"{path}: neither UTF-8 nor {encoding} text; save it as "
