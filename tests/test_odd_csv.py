@@ -83,3 +83,16 @@ def test_a_nameless_column_holding_values_is_refused_by_its_position(
     assert_one_line_error(code, err, f"{left}: column 2 has no name in the header but holds "
                           "values", "name it")
     assert not project.exists()
+
+
+def test_a_value_longer_than_the_csv_modules_limit_is_read_whole(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # the row check refused it ("field larger than field limit (131072)"), though pandas reads it
+    import csv
+    long = "Brenn " * 30_000  # 180,000 characters
+    left = tmp_path / "long.csv"
+    left.write_text(_csv([*ROWS[:3], ("4", f'"{long}"', "Vik")], "\n"), encoding="utf-8")
+    before = csv.field_size_limit()
+    with _build(tmp_path, left, capsys) as project:
+        assert project.record("left", "4")["name"] == long
+    assert csv.field_size_limit() == before  # the module's limit is as it was

@@ -13,6 +13,7 @@ import codecs
 import csv
 import io
 import json
+import sys
 import warnings
 from pathlib import Path
 
@@ -122,6 +123,9 @@ def check_names(path: Path, names: list[str]) -> None:
 
 def check_widths(path: Path, encoding: str, sep: str) -> None:
     """Every row has as many fields as the header (a short row would pass silently)."""
+    # the csv module refuses a value over 131,072 characters, which pandas reads: a long
+    # text (an abstract, a note) is a record's value like any other
+    limit = csv.field_size_limit(sys.maxsize)
     with path.open(encoding=encoding, newline="") as f:
         rows = csv.reader(f, delimiter=sep)
         try:
@@ -135,6 +139,8 @@ def check_widths(path: Path, encoding: str, sep: str) -> None:
         except csv.Error as exc:
             raise DocketError(f"{path}: line {rows.line_num + 1}: {exc}; check the file's "
                               "contents") from None
+        finally:
+            csv.field_size_limit(limit)
 
 
 def read_delimited(path: Path, fmt: str) -> pd.DataFrame:
