@@ -105,6 +105,32 @@ def test_score_refuses_an_existing_output(sample_project_file: Path, tmp_path: P
     assert not (tmp_path / "new").exists()
 
 
+def test_score_into_a_folder_it_cannot_write_is_one_line(sample_project_file: Path,
+                                                          tmp_path: Path, capsys,
+                                                          monkeypatch: pytest.MonkeyPatch
+                                                          ) -> None:
+    # a read-only folder ended in a traceback (PermissionError from making the parts' folder);
+    # a file in the folder's place fails the same way whoever runs it, root included
+    with Project.open(sample_project_file, readonly=True) as p:
+        a, b = p.connection.execute("SELECT left_id, right_id FROM pairs LIMIT 1").fetchone()
+    pairs = tmp_path / "pairs.csv"
+    pairs.write_text(f"left_id,right_id\n{a},{b}\n", encoding="utf-8")
+    (tmp_path / "file").write_text("", encoding="utf-8")
+    code, err = run(capsys, "score", str(sample_project_file), "--pairs", str(pairs), "-o",
+                    str(tmp_path / "file" / "out"))
+    assert_one_line_error(code, err, f"{tmp_path / 'file' / 'out'}: cannot write the scored "
+                          "parts", "nothing was written")
+
+    def full(*_a: object, **_k: object) -> None:
+        raise OSError(28, "No space left on device")
+
+    monkeypatch.setattr(pd.DataFrame, "to_parquet", full)  # the disk fills while writing
+    code, err = run(capsys, "score", str(sample_project_file), "--pairs", str(pairs), "-o",
+                    str(tmp_path / "out"))
+    assert_one_line_error(code, err, "No space left on device", "nothing was written")
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["file", "pairs.csv"]
+
+
 def _edited(model: dict, change) -> dict:
     copy = json.loads(json.dumps(model))
     change(copy)

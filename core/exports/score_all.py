@@ -10,7 +10,8 @@ from __future__ import annotations
 
 import os
 import shutil
-from collections.abc import Callable
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -96,8 +97,20 @@ def _target(out: Path) -> Path:
         raise DocketError(f"{out.parent}: no such folder; create it first")
     tmp = out.with_name(f".{out.name}.{os.getpid()}.scoring")
     shutil.rmtree(tmp, ignore_errors=True)
-    tmp.mkdir(mode=0o700)
+    with _writing(out):
+        tmp.mkdir(mode=0o700)
     return tmp
+
+
+@contextmanager
+def _writing(out: Path) -> Iterator[None]:
+    """A folder that cannot be written (read-only, full) as one line naming it."""
+    try:
+        yield
+    except OSError as exc:
+        raise DocketError(f"{out}: cannot write the scored parts in {out.parent} "
+                          f"({exc.strerror or exc}); nothing was written; give a folder you "
+                          "can write to") from None
 
 
 def score_to_parts(job: ScoreJob, pairs: Path, out: Path, engine: str = "in-process",
@@ -113,11 +126,13 @@ def score_to_parts(job: ScoreJob, pairs: Path, out: Path, engine: str = "in-proc
             rows = 0
             for i, (_, a, b) in enumerate(id_batches(source)):
                 part = job(pd.DataFrame({"a": a, "b": b}))
-                part.to_parquet(tmp / f"part-{i:05d}.parquet", index=False)
+                with _writing(out):
+                    part.to_parquet(tmp / f"part-{i:05d}.parquet", index=False)
                 rows += len(part)
                 if progress:
                     progress(rows, max(rows, source.rows))
-        os.replace(tmp, out)
+        with _writing(out):
+            os.replace(tmp, out)
     finally:
         shutil.rmtree(tmp, ignore_errors=True)
     return rows
