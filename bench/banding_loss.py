@@ -16,9 +16,10 @@ inside a band carries signal the bands throw away, in two ways:
   loss on those labels, as the refit chooses its ranker.
 
 Data: DBLP-ACM (link; link without titles, the hardest of them; titles as one table), the
-bundled sample, and the sample's generator run with another seed (a scenario nothing was tuned
-on). Answers come from the truth files.
-Rerun: python bench/banding_loss.py [link authors titles sample other]
+bundled sample, the sample's generator run with another seed, and two invented scenarios
+(bench/invented_tables.py: products to deduplicate, suppliers to link); nothing was tuned on the
+last three. Answers come from the truth files.
+Rerun: python bench/banding_loss.py [link authors titles sample other products suppliers]
 """
 
 from __future__ import annotations
@@ -32,6 +33,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 from _common import REPO, data_dir
+from invented_tables import products, suppliers
 from model_quality import titles_table
 from sklearn.linear_model import LogisticRegression
 from sklearn.metrics import log_loss
@@ -135,7 +137,8 @@ def _run(name: str, spec: NewProject, truth: set, n_true: int, n: int) -> None:
 
 def main() -> None:
     folder = data_dir()
-    which = set(sys.argv[1:]) or {"link", "authors", "titles", "sample", "other"}
+    which = set(sys.argv[1:]) or {"link", "authors", "titles", "sample", "other", "products",
+                                  "suppliers"}
     with tempfile.TemporaryDirectory() as tmp_name:
         tmp = Path(tmp_name)
         if "link" in which:
@@ -172,6 +175,16 @@ def main() -> None:
             spec.left, spec.right = where / "practice_north.csv", where / "practice_south.csv"
             _run("the sample" if seed is None else f"the sample's generator, seed {seed}",
                  spec, truth, len(truth), 200)
+        if "products" in which:
+            csv, both_ways = products(tmp)
+            _run("products to deduplicate (invented)",
+                 NewProject(path=tmp / "products.docket", left=csv, id_column="id"),
+                 both_ways, len(both_ways) // 2, 200)
+        if "suppliers" in which:
+            left, right, truth = suppliers(tmp)
+            _run("suppliers to link (invented)",
+                 NewProject(path=tmp / "suppliers.docket", left=left, right=right,
+                            id_column="id"), truth, len(truth), 200)
 
 
 if __name__ == "__main__":

@@ -4,6 +4,9 @@ labels, and blocking reach for free text.
 Targets: DBLP-ACM link with no labels (no --one-to-one) F1 ≥ 0.90; after 200 queue-order
 labels ≥ 0.98; DBLP-ACM titles as one table: reach ≥ 0.995 in ≤ 50,000 candidates and F1 ≥ 0.80
 after 300 labels; the sample F1 ≥ 0.98 after 200 labels. Answers come from the truth files.
+Two invented scenarios nothing was tuned on (bench/invented_tables.py: products, suppliers)
+are printed beside them, with no target.
+Rerun: python bench/model_quality.py [link titles sample products suppliers]
 """
 
 from __future__ import annotations
@@ -14,6 +17,7 @@ from pathlib import Path
 
 import pandas as pd
 from _common import REPO, data_dir
+from invented_tables import products, suppliers
 
 from docket.core import NewProject, Project
 from tests.conftest import sample_spec
@@ -57,7 +61,7 @@ def dedupe_measure(project: Project, truth: set) -> dict[str, float]:
 def main() -> None:
     folder = data_dir()
     truth = load_truth(folder / "matches.csv", "dblp_id", "acm_id")
-    which = set(sys.argv[1:]) or {"link", "titles", "sample"}
+    which = set(sys.argv[1:]) or {"link", "titles", "sample", "products", "suppliers"}
     with tempfile.TemporaryDirectory() as tmp_name:
         tmp = Path(tmp_name)
         if "link" in which:
@@ -85,6 +89,22 @@ def main() -> None:
                 _line("sample, no labels", measure(project, struth))
                 answer_in_queue_order(project, struth, 200)
                 _line("sample, 200 labels", measure(project, struth))
+        if "products" in which:
+            csv, ptruth = products(tmp)
+            path = tmp / "products.docket"
+            Project.create(NewProject(path=path, left=csv, id_column="id"))
+            with Project.open(path) as project:
+                _line("products (invented), no labels", dedupe_measure(project, ptruth))
+                answer_in_queue_order(project, ptruth, 200)
+                _line("products (invented), 200 labels", dedupe_measure(project, ptruth))
+        if "suppliers" in which:
+            left, right, rtruth = suppliers(tmp)
+            path = tmp / "suppliers.docket"
+            Project.create(NewProject(path=path, left=left, right=right, id_column="id"))
+            with Project.open(path) as project:
+                _line("suppliers (invented), no labels", measure(project, rtruth))
+                answer_in_queue_order(project, rtruth, 200)
+                _line("suppliers (invented), 200 labels", measure(project, rtruth))
 
 
 if __name__ == "__main__":
