@@ -58,53 +58,41 @@ def dedupe_measure(project: Project, truth: set) -> dict[str, float]:
     return m
 
 
+def _run(name: str, spec: NewProject, truth: set, n: int) -> None:
+    """Build, measure with no labels, answer ``n`` pairs in queue order, measure again."""
+    # a one-table truth holds each pair both ways round; dedupe_measure counts it once
+    how = dedupe_measure if spec.right is None else measure
+    Project.create(spec)
+    with Project.open(spec.path) as project:
+        _line(f"{name}, no labels", how(project, truth))
+        answer_in_queue_order(project, truth, n)
+        _line(f"{name}, {n} labels", how(project, truth))
+
+
 def main() -> None:
     folder = data_dir()
-    truth = load_truth(folder / "matches.csv", "dblp_id", "acm_id")
     which = set(sys.argv[1:]) or {"link", "titles", "sample", "products", "suppliers"}
     with tempfile.TemporaryDirectory() as tmp_name:
         tmp = Path(tmp_name)
         if "link" in which:
-            path = tmp / "dblp.docket"
-            Project.create(NewProject(path=path, left=folder / "dblp.csv",
-                                      right=folder / "acm.csv", id_column="id"))
-            with Project.open(path) as project:
-                _line("DBLP-ACM link, no labels", measure(project, truth))
-                answer_in_queue_order(project, truth, 200)
-                _line("DBLP-ACM link, 200 labels", measure(project, truth))
+            _run("DBLP-ACM link", NewProject(path=tmp / "dblp.docket", left=folder / "dblp.csv",
+                                             right=folder / "acm.csv", id_column="id"),
+                 load_truth(folder / "matches.csv", "dblp_id", "acm_id"), 200)
         if "titles" in which:
             csv, ttruth = titles_table(folder, tmp)
-            path = tmp / "titles.docket"
-            Project.create(NewProject(path=path, left=csv, id_column="id"))
-            with Project.open(path) as project:
-                _line("DBLP-ACM titles, no labels", dedupe_measure(project, ttruth))
-                answer_in_queue_order(project, ttruth, 300)
-                _line("DBLP-ACM titles, 300 labels", dedupe_measure(project, ttruth))
+            _run("DBLP-ACM titles", NewProject(path=tmp / "titles.docket", left=csv,
+                                               id_column="id"), ttruth, 300)
         if "sample" in which:
-            sample = REPO / "sample"
-            struth = load_truth(sample / "truth.csv", "left_id", "right_id")
-            path = tmp / "sample.docket"
-            Project.create(sample_spec(path))
-            with Project.open(path) as project:
-                _line("sample, no labels", measure(project, struth))
-                answer_in_queue_order(project, struth, 200)
-                _line("sample, 200 labels", measure(project, struth))
+            _run("sample", sample_spec(tmp / "sample.docket"),
+                 load_truth(REPO / "sample" / "truth.csv", "left_id", "right_id"), 200)
         if "products" in which:
             csv, ptruth = products(tmp)
-            path = tmp / "products.docket"
-            Project.create(NewProject(path=path, left=csv, id_column="id"))
-            with Project.open(path) as project:
-                _line("products (invented), no labels", dedupe_measure(project, ptruth))
-                answer_in_queue_order(project, ptruth, 200)
-                _line("products (invented), 200 labels", dedupe_measure(project, ptruth))
+            _run("products (invented)", NewProject(path=tmp / "products.docket", left=csv,
+                                                   id_column="id"), ptruth, 200)
         if "suppliers" in which:
             left, right, rtruth = suppliers(tmp)
-            path = tmp / "suppliers.docket"
-            Project.create(NewProject(path=path, left=left, right=right, id_column="id"))
-            with Project.open(path) as project:
-                _line("suppliers (invented), no labels", measure(project, rtruth))
-                answer_in_queue_order(project, rtruth, 200)
-                _line("suppliers (invented), 200 labels", measure(project, rtruth))
+            _run("suppliers (invented)", NewProject(path=tmp / "suppliers.docket", left=left,
+                                                    right=right, id_column="id"), rtruth, 200)
 
 
 if __name__ == "__main__":
