@@ -140,3 +140,30 @@ def test_review_and_adjudicate_reach_their_screens(tiny_tables, tmp_path: Path,
     assert main(["reviewers", str(project), "add", "lee", "--role", "adjudicator"]) == 0
     assert main(["adjudicate", str(project), "--reviewer", "lee"]) == 0
     assert opened == ["review", "adjudicate"]
+
+
+def test_ctrl_c_while_new_writes_leaves_the_old_project_and_says_one_line(
+        tiny_tables, tmp_path: Path, capsys, monkeypatch: pytest.MonkeyPatch) -> None:
+    import warnings
+
+    from docket.core.storage import store
+    left, right = tiny_tables
+    path = tmp_path / "p.docket"
+    argv = ["new", str(path), "--left", str(left), "--right", str(right), "--id", "id"]
+    assert main(argv) == 0
+    before = path.read_bytes()
+    capsys.readouterr()
+
+    def interrupted(*_a: object, **_k: object) -> None:
+        # what a Ctrl-C in the middle of an import leaves: developers' warnings, then the key
+        warnings.warn("unclosed file <_io.BufferedReader name='x.pyc'>", ResourceWarning,
+                      stacklevel=1)
+        warnings.warn("a library's old call", DeprecationWarning, stacklevel=1)
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(store, "finish_file", interrupted)  # the new file is half-written now
+    assert main([*argv, "--force"]) == 130
+    assert capsys.readouterr().err.strip() == "docket: interrupted; nothing was half-written"
+    assert path.read_bytes() == before
+    assert sorted(p.name for p in tmp_path.iterdir()) == sorted(
+        [left.name, right.name, path.name])

@@ -47,6 +47,10 @@ def main(argv: list[str] | None = None) -> int:
     with safe_streams(), warnings.catch_warnings():  # every line printed reaches it inert
         warnings.simplefilter("default")  # each distinct message once
         warnings.filterwarnings("ignore", message="DataFrame is highly fragmented")
+        # warnings for developers, not users: a library's deprecations, and a file left open
+        # by an import that a Ctrl-C cut short ("unclosed file ... .pyc") before 'interrupted'
+        for category in (DeprecationWarning, PendingDeprecationWarning, ResourceWarning):
+            warnings.filterwarnings("ignore", category=category)
         warnings.showwarning = warn_line  # one line each, on standard error
         return _main(argv)
 
