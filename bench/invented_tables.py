@@ -106,7 +106,7 @@ def products(folder: Path, seed: int = 7, n: int = 2500) -> tuple[Path, set[tupl
 
 
 def suppliers(folder: Path, seed: int = 11) -> tuple[Path, Path, set[tuple[str, str]]]:
-    """(left.csv, right.csv, true pairs): 3,000 left, 2,500 right, 1,500 in both."""
+    """(left.csv, right.csv, true pairs): 3,000 left, 2,300 right, 1,500 in both."""
     rng = random.Random(seed)
     firms = []
     for _ in range(3500):
