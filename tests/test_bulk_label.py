@@ -84,3 +84,13 @@ def test_a_batch_that_fails_takes_back_the_ones_before(sample_project: Path, mon
             apply_rows(p, "cleo", rows, batch=2, seconds=float('inf'), pause=0)
         # The log shows cleo's run and its retraction; no label of hers stands.
         assert {r["name"]: r["labels"] for r in list_reviewers(p)}["cleo"] == 0
+
+
+def test_a_label_file_headed_in_another_case_is_read(sample_project: Path, tmp_path: Path,
+                                                     capsys) -> None:
+    rows = tmp_path / "labels.csv"
+    rows.write_text("Pair_ID, Label ,NOTE\n1,Match,same phone\n", encoding="utf-8")
+    assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(rows)]) == 0
+    with Project.open(sample_project) as p:
+        (d,) = p.decisions()
+    assert (d.pair_id, d.label, d.note) == (1, "match", "same phone")

@@ -205,6 +205,22 @@ def test_machine_rater_equal_to_the_truth(answered: Project, tmp_path: Path) -> 
             report["predictions"]["candidate_pairs_given"]
 
 
+def test_a_predictions_file_headed_in_another_case_is_read(answered: Project,
+                                                          tmp_path: Path) -> None:
+    rows = sorted(SAMPLE_TRUTH)
+    lower, upper = tmp_path / "lower.csv", tmp_path / "upper.csv"
+    frame = pd.DataFrame({"left_id": [a for a, _ in rows], "right_id": [b for _, b in rows],
+                          "score": 0.9})
+    frame.to_csv(lower, index=False)
+    frame.rename(columns={"left_id": "Left_ID", "right_id": "RIGHT_ID", "score": "Score"}
+                 ).to_csv(upper, index=False)
+    a, b = evaluate_predictions(answered, lower), evaluate_predictions(answered, upper)
+    a["predictions"].pop("path", None)
+    b["predictions"].pop("path", None)
+    assert json.dumps(a, sort_keys=True, default=str).replace("lower.csv", "") == \
+        json.dumps(b, sort_keys=True, default=str).replace("upper.csv", "")
+
+
 def test_machine_rater_that_always_says_match(answered: Project, tmp_path: Path) -> None:
     frame = pd.read_sql_query("SELECT left_id, right_id FROM pairs", answered.connection)
     frame["label"] = "match"

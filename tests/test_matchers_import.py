@@ -138,3 +138,15 @@ def test_an_option_between_the_action_and_the_file_is_understood(project: Projec
     assert main(["matchers", str(project.path), "import", "--name", "[b]lm[/b]", str(path)]) == 0
     with Project.open(project.path, readonly=True) as p:
         assert [m.name for m in catalogue.matchers(p.connection)] == ["[b]lm[/b]"]
+
+
+def test_column_names_in_another_case_are_read(project: Project, tmp_path: Path) -> None:
+    # a spreadsheet's 'Left_ID,Right_ID,Matcher,Score' was refused as lacking left_id
+    frame = candidates(project)[:50]
+    path = tmp_path / "upper.csv"
+    pd.DataFrame({"Left_ID": frame.left_id, "RIGHT_ID": frame.right_id, " Matcher": "m",
+                  "Score": np.linspace(0, 1, 50)}).to_csv(path, index=False)
+    (read,) = import_matchers(project, [path])
+    assert read.name == "m"
+    scores = catalogue.load_scores(project.connection, ["m"])["m"]
+    assert np.count_nonzero(~np.isnan(scores)) == 50

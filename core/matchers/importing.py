@@ -21,6 +21,7 @@ import pyarrow.parquet as pq
 
 from ..errors import DocketError
 from ..records.sources import detect_format, read_frame
+from ..records.text_tables import plain_names
 from ..storage import store
 from ..storage.project_file import ProjectFile
 from . import catalogue
@@ -80,7 +81,8 @@ def _read(path: Path) -> pa.Table:
         table = None  # other encodings, ragged rows: the general reader says why
     if table is None:
         table = pa.Table.from_pandas(read_frame(path), preserve_index=False)
-    names = [str(c).strip() for c in table.column_names]
+    names = plain_names([str(c).strip() for c in table.column_names],
+                        ("left_id", "right_id", "matcher", SCORE, LABEL))
     return pa.table({name: col if name == SCORE and _numeric(col) else _strings(col)
                      for name, col in zip(names, table.columns, strict=True)})
 

@@ -10,6 +10,7 @@ import pandas as pd
 
 from ..errors import DocketError
 from ..records.sources import read_frame
+from ..records.text_tables import plain_names
 from ..storage import store
 from ..storage.project_file import ProjectFile
 from ..wording import many, quoted
@@ -55,6 +56,8 @@ def read_predictions(project: ProjectFile, path: str | Path) -> tuple[pd.Series,
     """
     path = Path(path)
     frame = read_frame(path)
+    frame.columns = plain_names(list(frame.columns),
+                                ("left_id", "right_id", *SCORE_COLUMNS, *LABEL_COLUMNS))
     if not {"left_id", "right_id"} <= set(frame.columns):
         raise DocketError(f"{path}: needs columns left_id and right_id (found "
                           f"{', '.join(frame.columns[:8])})")

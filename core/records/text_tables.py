@@ -121,6 +121,15 @@ def check_names(path: Path, names: list[str]) -> None:
         seen[key] = (position, name)
 
 
+def plain_names(names: list[str], wanted: tuple[str, ...]) -> list[str]:
+    """``names`` with each that is one of ``wanted`` but for letter case or end spaces written
+    as wanted: a file of decisions or scores headed 'Pair_ID,Label' means pair_id and label.
+    Left as they are where that would make two columns one."""
+    by = {w.lower(): w for w in wanted}
+    renamed = [by.get(str(n).strip().lower(), n) for n in names]
+    return renamed if len(set(renamed)) == len(renamed) else names
+
+
 def check_widths(path: Path, encoding: str, sep: str) -> None:
     """Every row has as many fields as the header (a short row would pass silently)."""
     # the csv module refuses a value over 131,072 characters, which pandas reads: a long

@@ -18,6 +18,7 @@ import pandas as pd
 
 from ..errors import DocketError
 from ..records.sources import read_frame
+from ..records.text_tables import plain_names
 from ..storage import claims, roles
 from ..storage import decisions as log
 from ..storage.project_file import ProjectFile
@@ -40,6 +41,8 @@ class BulkRow:
 
 def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
     frame = read_frame(path)
+    frame.columns = plain_names(list(frame.columns),
+                                ("pair_id", "label", "note", "left_id", "right_id"))
     cols = set(frame.columns)
     if "label" not in cols:
         raise DocketError(f"{path}: needs a 'label' column (with pair_id, or left_id and "
