@@ -175,3 +175,25 @@ def test_merge_cli_says_what_came_in(base: Path, tmp_path: Path, capsys) -> None
     assert "2 decisions, 2 new" in out and "brought 2 decisions" in out and "ines 2" in out
     assert run(["merge", str(target), str(other)]) == 0
     assert "nothing new" in capsys.readouterr().out
+
+
+def test_a_copy_s_name_differing_only_in_case_is_pointed_out(base: Path, tmp_path: Path,
+                                                             capsys) -> None:
+    # a copy made before such names were refused: its 'Ines' is kept (the log is not rewritten)
+    # but the merge says that it and 'ines' now count as two reviewers
+    other = copy(base, tmp_path / "o.docket")
+    decide_some(other, [(1, "Ada", "match")])
+    conn = sqlite3.connect(other)  # as an older docket would have let it be typed
+    with conn:
+        conn.execute("UPDATE decisions SET reviewer = 'Ines' WHERE reviewer = 'Ada'")
+        conn.execute("UPDATE reviewers SET name = 'Ines' WHERE name = 'Ada'")
+    conn.close()
+    first, second = copy(base, tmp_path / "p.docket"), copy(base, tmp_path / "q.docket")
+    for target in (first, second):
+        decide_some(target, [(0, "ines", "match")])
+    with Project.open(first) as p:
+        result = merge(p, [other])
+    assert result.new_reviewers == ("Ines",) and result.alike_names == (("Ines", "ines"),)
+    assert run(["merge", str(second), str(other)]) == 0
+    assert ("note: Ines (from a copy) and ines differ only in letter case"
+            in capsys.readouterr().out)

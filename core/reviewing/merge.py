@@ -57,6 +57,9 @@ class MergeResult:
     pairs_touched: int
     new_reviewers: tuple[str, ...]
     unconfirmed_adjudicators: tuple[str, ...] = field(default=())
+    # (new name, name already here) equal but for letter case or Unicode form: a copy made
+    # before such names were refused; they count as two reviewers
+    alike_names: tuple[tuple[str, str], ...] = field(default=())
     role_changes: tuple[RoleChange, ...] = field(default=())
     roles_accepted: bool = False
 
@@ -224,4 +227,6 @@ def merge(project: ProjectFile, others: list[Path], accept_roles: bool = False) 
         pairs_touched=len({t[0] for t in touched}), new_reviewers=tuple(new_names),
         unconfirmed_adjudicators=tuple(sorted(n for n in adjudicating
                                               if roles_now.get(n) != "adjudicator")),
-        role_changes=tuple(changes), roles_accepted=bool(accept_roles and changes))
+        role_changes=tuple(changes), roles_accepted=bool(accept_roles and changes),
+        alike_names=tuple((n, here) for n in new_names
+                          if (here := roles.alike(n, sorted(present))) is not None))

@@ -64,6 +64,13 @@ def _folded(name: str) -> str:
     return unicodedata.normalize("NFC", unicodedata.normalize("NFC", name).casefold())
 
 
+def alike(name: str, known: list[str]) -> str | None:
+    """The first of ``known`` (another name) that ``name`` equals but for letter case or
+    Unicode form."""
+    folded = _folded(name)
+    return next((k for k in known if k != name and _folded(k) == folded), None)
+
+
 def as_kept(conn: sqlite3.Connection, name: str) -> str:
     """``name`` as the project keeps it: a known name differing only in Unicode form (a file
     written before names were normalised) is that name; a new name equal to a known one but
@@ -77,11 +84,10 @@ def as_kept(conn: sqlite3.Connection, name: str) -> str:
     same = [k for k in known if unicodedata.normalize("NFC", k) == name]
     if same:
         return same[0]
-    folded = _folded(name)
-    alike = [k for k in known if _folded(k) == folded]
-    if alike:
-        raise DocketError(f"reviewer {name!r} differs only in letter case from {alike[0]!r}, "
-                          f"who is in this project already; use {alike[0]!r}, or a name "
+    other = alike(name, known)
+    if other is not None:
+        raise DocketError(f"reviewer {name!r} differs only in letter case from {other!r}, "
+                          f"who is in this project already; use {other!r}, or a name "
                           "that differs in more than case")
     return name
 
