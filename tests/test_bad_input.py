@@ -174,3 +174,25 @@ def test_real_process_exit_code_and_no_traceback(tmp_path: Path) -> None:
                           text=True)
     assert done.returncode == 2
     assert "Traceback" not in done.stderr and len(done.stderr.strip().splitlines()) == 1
+
+
+def test_new_never_replaces_its_own_input_nor_a_file_that_is_no_project(
+        good: Path, tmp_path: Path, capsys) -> None:
+    # 'docket new good.csv --left good.csv --force' replaced the table of records by the project
+    before = good.read_bytes()
+    for force in ([], ["--force"]):
+        code, err = run(capsys, "new", str(good), "--left", str(good), "--id", "id",
+                        "--block", "town", *force)
+        assert_one_line_error(code, err, f"{good}: is a file this project is built from",
+                              "good.docket")
+    assert good.read_bytes() == before
+    notes = write(tmp_path / "notes.docket", "not a project\n")
+    code, err = run(capsys, "new", str(notes), "--left", str(good), "--id", "id", "--force")
+    assert_one_line_error(code, err, "is not a docket project", "--force replaces only")
+    assert notes.read_text(encoding="utf-8") == "not a project\n"
+    project = tmp_path / "p.docket"
+    project.write_bytes(b"")
+    for _ in range(2):  # an empty file, then a project: both replaced when asked
+        assert main(["new", str(project), "--left", str(good), "--id", "id", "--block", "town",
+                     "--force"]) == 0
+    capsys.readouterr()

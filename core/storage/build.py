@@ -88,11 +88,8 @@ class Built:
 
 
 def _check(spec: NewProject) -> None:
-    file_health.check_new(spec.path)
-    if spec.path.exists() and not spec.force:
-        raise DocketError(f"{spec.path}: already exists; pass --force to replace it")
-    if spec.path.exists() and spec.path.is_dir():
-        raise DocketError(f"{spec.path}: is a folder; give a file name for the project")
+    file_health.check_new(spec.path, spec.force,
+                          [Path(p) for p in (spec.left, spec.right, spec.pairs_file) if p])
     if not 0.0 <= spec.overlap <= 1.0:
         raise DocketError(f"--overlap {spec.overlap}: give a share between 0 and 1")
     if spec.overlap_reviewers < 2:

@@ -11,6 +11,7 @@ from __future__ import annotations
 import os
 import sqlite3
 import stat
+from collections.abc import Sequence
 from pathlib import Path
 
 from ..errors import DocketError
@@ -44,12 +45,44 @@ def _folder(path: Path) -> Path:
     return folder
 
 
-def check_new(path: Path) -> None:
-    """A project about to be built: its folder exists and can be written."""
+SQLITE_MAGIC = b"SQLite format 3\x00"  # the first 16 bytes of every SQLite database file
+
+
+def holds_database(path: Path) -> bool:
+    try:
+        with path.open("rb") as f:
+            return f.read(len(SQLITE_MAGIC)) == SQLITE_MAGIC
+    except OSError:
+        return False
+
+
+def _same(a: Path, b: Path) -> bool:
+    try:
+        return a.samefile(b)
+    except OSError:
+        return False
+
+
+def check_new(path: Path, force: bool = False, inputs: Sequence[Path] = ()) -> None:
+    """A project about to be built: its folder exists and can be written, and what ``path``
+    names already is replaced only when asked and only if it is a project (or empty): never a
+    file the build reads, nor, say, a table of records given the project's name."""
     folder = _folder(path)
     if not _marked_writable(folder):
         raise ProjectFileError(f"{path}: the folder {folder} is read-only; build the project "
                                "in a folder you can write to")
+    if not path.exists():
+        return
+    if path.is_dir():
+        raise DocketError(f"{path}: is a folder; give a file name for the project")
+    if any(_same(path, given) for given in inputs):
+        raise DocketError(f"{path}: is a file this project is built from; give the project "
+                          f"another name (for example {path.stem}.docket)")
+    if not force:
+        raise DocketError(f"{path}: already exists; pass --force to replace it")
+    if path.stat().st_size and not holds_database(path):
+        raise DocketError(f"{path}: is not a docket project, and --force replaces only a "
+                          "project; give the project another name")
 
 
 def check_place(path: Path, write: bool) -> None:
