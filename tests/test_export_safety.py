@@ -139,3 +139,21 @@ def test_an_export_into_a_missing_folder_names_the_folder(tmp_path: Path) -> Non
     with pytest.raises(DocketError, match=r"the folder .*absent does not exist"):
         atomic_write(target, lambda p: p.write_text("x", encoding="utf-8"))
     assert not (tmp_path / "absent").exists()
+
+
+def test_an_export_never_replaces_a_project(sample_project: Path, tmp_path: Path,
+                                            capsys) -> None:
+    # '-o vets.docket --format csv' wrote the gold labels over the project and its decisions
+    other = tmp_path / "other.docket"
+    other.write_bytes(sample_project.read_bytes())
+    for target, extra in ((sample_project, ["--format", "csv"]), (other, ["--format", "jsonl"]),
+                          (other, ["--for-lm", "--format", "jsonl"])):
+        before = target.read_bytes()
+        assert main(["export", str(sample_project), "--what", "gold", "-o", str(target),
+                     *extra]) == 2
+        err = capsys.readouterr().err.strip()
+        assert err == (f"docket: {target}: is an SQLite database (a docket project?), which an "
+                       "export never replaces; write the export to another file")
+        assert target.read_bytes() == before
+    with pytest.raises(DocketError, match="never replaces"):
+        atomic_write(other, lambda tmp: tmp.write_text("x", encoding="utf-8"))

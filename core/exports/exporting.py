@@ -16,6 +16,7 @@ import pandas as pd
 from ..errors import DocketError
 from ..matching.decision_rule import predicted
 from ..storage import store
+from ..storage.file_health import holds_database
 from ..storage.project_file import ProjectFile
 
 FORMATS = {".csv": "csv", ".parquet": "parquet", ".pq": "parquet", ".jsonl": "jsonl",
@@ -137,8 +138,12 @@ def atomic_write(path: Path, write: Callable[[Path], object]) -> None:
 
     The temporary has a name of its own (two exports to one path at once do not share it)
     and is created readable by the owner alone, like the project file: exports hold records.
-    The rename gives the export that mode whatever the file it replaces had.
+    The rename gives the export that mode whatever the file it replaces had. It never replaces
+    a database: '-o vets.docket --format csv' wrote the gold labels over the project itself.
     """
+    if holds_database(path):
+        raise DocketError(f"{path}: is an SQLite database (a docket project?), which an export "
+                          "never replaces; write the export to another file")
     try:
         fd, name = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".partial", dir=path.parent)
     except OSError as exc:
