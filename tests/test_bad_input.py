@@ -196,3 +196,12 @@ def test_new_never_replaces_its_own_input_nor_a_file_that_is_no_project(
         assert main(["new", str(project), "--left", str(good), "--id", "id", "--block", "town",
                      "--force"]) == 0
     capsys.readouterr()
+
+
+def test_one_table_given_as_both_sides_is_refused(good: Path, tmp_path: Path, capsys) -> None:
+    # linked with itself, every record was its own best candidate
+    project = tmp_path / "p.docket"
+    code, err = run(capsys, "new", str(project), "--left", str(good), "--right",
+                    str(tmp_path / "." / good.name), "--id", "id")
+    assert_one_line_error(code, err, "given as both --left and --right", "--left alone")
+    assert not project.exists()

@@ -28,6 +28,7 @@ from typing import Any
 from ..errors import DocketError
 from ..storage import decisions as log
 from ..storage import roles, store
+from ..storage.file_health import same_file
 from ..storage.fingerprint import records_fingerprint
 from ..storage.project_file import ProjectFile
 from .merge_checks import RoleChange, accepted_grants, check_copy, read_grants, role_changes
@@ -89,16 +90,9 @@ def _pairs_of(conn: sqlite3.Connection, ids: list[int]) -> dict[int, tuple[str, 
     return out
 
 
-def _same_file(a: Path, b: Path) -> bool:
-    try:
-        return a.exists() and b.exists() and a.samefile(b)
-    except OSError:
-        return False
-
-
 def _read(path: Path, project: ProjectFile) -> _Other:
     """Everything needed from one other file, opened read-only and checked."""
-    if _same_file(path, project.path):
+    if same_file(path, project.path):
         raise DocketError(f"{path}: is this project itself; give the copies other reviewers "
                           "worked in")
     if not path.is_file():

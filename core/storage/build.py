@@ -102,6 +102,9 @@ def _check(spec: NewProject) -> None:
         raise DocketError(f"--sample-above {spec.sample_above}: give 100 pairs or more")
     if spec.engine not in ("in-process", "dask"):
         raise DocketError(f"--engine {spec.engine}: use in-process or dask")
+    if spec.right is not None and file_health.same_file(Path(spec.left), Path(spec.right)):
+        raise DocketError(f"{spec.right}: given as both --left and --right; to find the "
+                          "duplicates within one table give it as --left alone")
     if spec.one_to_one and spec.right is None:
         raise DocketError("--one-to-one needs two tables (--left and --right)")
 

@@ -56,7 +56,7 @@ def holds_database(path: Path) -> bool:
         return False
 
 
-def _same(a: Path, b: Path) -> bool:
+def same_file(a: Path, b: Path) -> bool:
     try:
         return a.samefile(b)
     except OSError:
@@ -75,7 +75,7 @@ def check_new(path: Path, force: bool = False, inputs: Sequence[Path] = ()) -> N
         return
     if path.is_dir():
         raise DocketError(f"{path}: is a folder; give a file name for the project")
-    if any(_same(path, given) for given in inputs):
+    if any(same_file(path, given) for given in inputs):
         raise DocketError(f"{path}: is a file this project is built from; give the project "
                           f"another name (for example {path.stem}.docket)")
     if not force:
