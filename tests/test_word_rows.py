@@ -58,3 +58,13 @@ def test_any_values_give_scikit_learns_cosines(corpus: list[str], max_df: float 
             word_rows(corpus, max_df)
         return
     assert _ours(corpus, max_df) == pytest.approx(expected, abs=1e-6)
+
+
+def test_values_read_in_chunks_give_the_same_rows(monkeypatch: pytest.MonkeyPatch) -> None:
+    from docket.core.records import text_vectors
+
+    corpus = [f"record {i} of the {w} table" for i, w in enumerate("abcdefghij")] + ["", "—"]
+    whole = _ours(corpus)
+    monkeypatch.setattr(text_vectors, "CHUNK", 3)  # chunks end inside the corpus, one empty
+    assert _ours(corpus) == pytest.approx(whole, abs=1e-7)
+    assert whole == pytest.approx(_reference(corpus), abs=1e-6)

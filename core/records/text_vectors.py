@@ -19,6 +19,7 @@ from typing import Any
 import numpy as np
 
 WORD = re.compile(r"(?u)\b\w+\b")  # scikit-learn's token pattern, keeping one-letter words
+CHUNK = 20_000  # values whose words are held at once as strings (bounds word_rows' memory)
 NGRAM = (3, 3)  # character 3-grams inside word boundaries
 BLOCK = 20_000_000  # similarities held at once by the neighbour search (bounds its memory)
 
@@ -46,24 +47,37 @@ def word_rows(corpus: list[str], max_df: float | int = 1.0) -> Any:
     from scipy import sparse
 
     n = len(corpus)
-    words = [WORD.findall(v.lower()) for v in corpus]
-    flat = list(chain.from_iterable(words))
-    if not flat:
+    vocabulary: dict[str, int] = {}
+    cells_of = []
+    for start in range(0, n, CHUNK):  # a chunk's words at once, never the whole corpus's
+        words = [WORD.findall(v.lower()) for v in corpus[start:start + CHUNK]]
+        codes, terms = pd.factorize(pd.Series(list(chain.from_iterable(words)), dtype=object))
+        ids = np.array([vocabulary.setdefault(t, len(vocabulary)) for t in terms],
+                       dtype=np.int64)
+        doc = np.repeat(np.arange(start, start + len(words), dtype=np.int64),
+                        [len(w) for w in words])
+        # a value's words all lie in its chunk: the chunk's cells sorted are its CSR rows
+        cells, times = np.unique(doc << 32 | ids[codes], return_counts=True)
+        cells_of.append(((cells >> 32).astype(np.int32), (cells & 0xFFFFFFFF).astype(np.int32),
+                         times.astype(np.int32)))
+    if not vocabulary:
         raise ValueError("empty vocabulary")
-    col, terms = pd.factorize(pd.Series(flat, dtype=object))
-    doc = np.repeat(np.arange(n, dtype=np.int64), [len(w) for w in words])
-    cells, tf = np.unique(doc * len(terms) + col, return_counts=True)
-    row, col = cells // len(terms), cells % len(terms)
-    df = np.bincount(col, minlength=len(terms))
+    row, col, counts = (np.concatenate(part) for part in zip(*cells_of, strict=True))
+    del cells_of
+    df = np.bincount(col, minlength=len(vocabulary))
     kept = df <= (max_df if isinstance(max_df, int) else max_df * n)
     if not kept.any():
         raise ValueError("after pruning, no terms remain")
-    new_col = np.cumsum(kept) - 1
     keep = kept[col]
-    row, col, tf = row[keep], new_col[col[keep]], tf[keep]
-    val = (1.0 + np.log(tf)) * (np.log((1.0 + n) / (1.0 + df[kept])) + 1.0)[col]
-    val /= np.sqrt(np.bincount(row, weights=val * val, minlength=n))[row]
-    return sparse.csr_matrix((val.astype(np.float32), (row, col)), shape=(n, int(kept.sum())))
+    row, col, tf = row[keep], (np.cumsum(kept, dtype=np.int32) - 1)[col[keep]], counts[keep]
+    del counts, keep
+    idf = (np.log((1.0 + n) / (1.0 + df[kept])) + 1.0).astype(np.float32)
+    val = (np.float32(1.0) + np.log(tf.astype(np.float32))) * idf[col]
+    norm = np.sqrt(np.bincount(row, weights=val * val, minlength=n)).astype(np.float32)
+    val /= norm[row]
+    indptr = np.zeros(n + 1, dtype=np.int64)
+    np.cumsum(np.bincount(row, minlength=n), out=indptr[1:])
+    return sparse.csr_matrix((val, col, indptr), shape=(n, int(kept.sum())))
 
 
 def vectors(left: list[str], right: list[str], analyzer: str, max_share: float = 1.0
