@@ -63,8 +63,9 @@ def test_any_values_give_scikit_learns_cosines(corpus: list[str], max_df: float 
 def test_values_read_in_chunks_give_the_same_rows(monkeypatch: pytest.MonkeyPatch) -> None:
     from docket.core.records import text_vectors
 
-    corpus = [f"record {i} of the {w} table" for i, w in enumerate("abcdefghij")] + ["", "—"]
+    words = [f"record {i} of the {w} table" for i, w in enumerate("abcdefghij")]
+    corpus = [*words[:3], "", "—", "  ", *words[3:]]  # the second chunk holds no word at all
     whole = _ours(corpus)
-    monkeypatch.setattr(text_vectors, "CHUNK", 3)  # chunks end inside the corpus, one empty
+    monkeypatch.setattr(text_vectors, "CHUNK", 3)
     assert _ours(corpus) == pytest.approx(whole, abs=1e-7)
     assert whole == pytest.approx(_reference(corpus), abs=1e-6)
