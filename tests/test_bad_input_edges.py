@@ -60,6 +60,13 @@ CASES = {
                                         ["s.csv", "zip archive", "save the sheet as CSV"]),
     "bytes that are no text": (lambda d: _bytes(d / "b.csv", b"id,name\n1,\xff\x81\n"),
                                ["b.csv", "neither UTF-8 nor cp1252"]),
+    # pandas named a byte offset in the whole file, or ended in a TypeError traceback
+    "JSON lines, one broken": (lambda d: write(d / "b.jsonl", '{"id": 1}\n\n{"id": 2,\n'),
+                               ["b.jsonl: line 3 is not valid JSON", "one JSON object per line"]),
+    "JSON lines, one a number": (lambda d: write(d / "n.jsonl", '{"id": 1}\n5\n'),
+                                 ["n.jsonl: line 2 is a number, not an object"]),
+    "JSON lines, one an array": (lambda d: write(d / "a.jsonl", '{"id": 1}\n[1, 2]\n'),
+                                 ["a.jsonl: line 2 is an array, not an object"]),
     "a column named rowid": (lambda d: write(d / "rid.csv", "id,ROWID,town\n1,a,x\n2,b,x\n"),
                              ["rid.csv", "column 'ROWID'", "rename it"]),
 }

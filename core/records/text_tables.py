@@ -187,7 +187,13 @@ def read_json(path: Path) -> pd.DataFrame:
     encoding = bom_encoding(head) or "utf-8"
     first = head.decode(encoding, errors="ignore").lstrip("\ufeff \t\r\n")[:1]
     if first != "[":
-        return _flat(path, pd.read_json(path, lines=True, dtype=False, encoding=encoding))
+        try:
+            lines = pd.read_json(path, lines=True, dtype=False, encoding=encoding)
+        except UnicodeDecodeError:
+            raise DocketError(f"{path}: not {encoding} text; save it as UTF-8") from None
+        except (ValueError, TypeError):  # pandas names a byte offset, or fails on a non-object
+            raise DocketError(_bad_line(path, encoding)) from None
+        return _flat(path, lines)
     try:
         data = json.loads(path.read_text(encoding=encoding))
     except (json.JSONDecodeError, UnicodeDecodeError) as exc:
@@ -200,6 +206,23 @@ def read_json(path: Path) -> pd.DataFrame:
                           "object; give one object per "
                           'record, e.g. [{"id": 1, "name": "..."}]')
     return _flat(path, pd.DataFrame.from_records(data))
+
+
+def _bad_line(path: Path, encoding: str) -> str:
+    """The first line of a JSON-lines file that is not one JSON object, said in one line."""
+    with path.open(encoding=encoding, errors="replace") as f:
+        for n, line in enumerate(f, start=1):
+            if not line.strip():
+                continue
+            try:
+                value = json.loads(line)
+            except json.JSONDecodeError as exc:
+                return (f"{path}: line {n} is not valid JSON ({exc.msg}); give one JSON object "
+                        "per line")
+            if not isinstance(value, dict):
+                kind = JSON_KINDS.get(type(value), type(value).__name__)
+                return f"{path}: line {n} is {kind}, not an object; give one JSON object per line"
+    return f"{path}: cannot be read as JSON lines; give one JSON object per line"
 
 
 def _flat(path: Path, frame: pd.DataFrame) -> pd.DataFrame:
