@@ -96,3 +96,23 @@ def test_a_value_longer_than_the_csv_modules_limit_is_read_whole(
     with _build(tmp_path, left, capsys) as project:
         assert project.record("left", "4")["name"] == long
     assert csv.field_size_limit() == before  # the module's limit is as it was
+
+
+def test_two_tables_whose_columns_differ_only_in_case_are_compared_column_by_column(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # 'Name,Town' beside 'name,town' was "no columns in common"; a --map still goes first
+    left, right = tmp_path / "l.csv", tmp_path / "r.csv"
+    left.write_text(_csv(ROWS, "\n", "id,Name,TOWN"), encoding="utf-8")
+    right.write_text(_csv([(f"s{a}", b, c) for a, b, c in ROWS], "\n", "id,name,town"),
+                     encoding="utf-8")
+    path = tmp_path / "p.docket"
+    assert main(["new", str(path), "--left", str(left), "--right", str(right), "--id", "id",
+                 "--block", "*"]) == 0, capsys.readouterr().err
+    with Project.open(path, readonly=True) as project:
+        assert [(f.name, f.left_column, f.right_column) for f in project.fields] == [
+            ("Name", "Name", "name"), ("TOWN", "TOWN", "town")]
+    assert main(["new", str(path), "--left", str(left), "--right", str(right), "--id", "id",
+                 "--block", "*", "--map", "TOWN=name", "--force"]) == 0
+    with Project.open(path, readonly=True) as project:
+        assert [(f.left_column, f.right_column) for f in project.fields] == [("TOWN", "name")]
+    capsys.readouterr()

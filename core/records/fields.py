@@ -91,10 +91,19 @@ def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: st
             raise DocketError(f"{right_name or left_name}: --map names column '{rcol}', which it "
                               f"does not have (columns: {', '.join(right_frame.columns)})")
     pairs: list[tuple[str, str]] = []
+    # a column named alike but for letter case ('Name', 'name') is the same field: two exports
+    # of one register differ that way; an exact name or a --map pairing goes first
+    by_case = {str(c).lower(): c for c in right_frame.columns}
+    taken = set(mapping.values()) | (set(left.columns) & set(right_frame.columns))
     for lcol in left.columns:
         rcol = mapping.get(lcol, lcol)
+        if rcol not in right_frame.columns and lcol not in mapping:
+            rcol = by_case.get(str(lcol).lower(), rcol)
+            if rcol in taken:
+                continue
         if rcol in right_frame.columns:
             pairs.append((lcol, rcol))
+            taken.add(rcol)
     for col in kinds:
         if col not in {p[0] for p in pairs}:
             raise DocketError(f"--field {col}: no compared column of that name; compared "
