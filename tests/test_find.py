@@ -129,3 +129,14 @@ def test_text_of_control_characters_alone_matches_only_values_holding_them(
         total = p.connection.execute("SELECT count(*) FROM pairs").fetchone()[0]
         assert len(p.find("\x01q", limit=500)) == total
         assert p.find("\x02") == []
+
+
+def test_digits_that_are_no_pair_id_are_searched_as_text(tmp_path: Path) -> None:
+    # a number past SQLite's integers raised OverflowError, and "²" (a digit to str.isdigit)
+    # raised ValueError: the find screen fell over on either
+    path = _numeric_project(tmp_path)
+    with Project.open(path) as p:
+        assert p.find("9" * 30) == [] and p.find("9" * 5000) == []
+        assert p.find(str(2 ** 63)) == []
+        assert p.find("²") == [] and p.find("٣") == []
+        assert p.find("0004")[0] == 4  # leading zeros still name the pair

@@ -82,7 +82,9 @@ def find_pairs(conn: sqlite3.Connection, meta: dict, link: bool, text: str, limi
     if not text:
         return []
     found: list[int] = []
-    if text.isdigit():
+    # ASCII digits only ("²" is a digit to str.isdigit, not to int), and no more of them than
+    # a pair id can have: SQLite refused a longer number with an OverflowError
+    if text.isascii() and text.isdigit() and len(text) <= 19 and int(text) < 2 ** 63:
         found += [r[0] for r in conn.execute("SELECT pair_id FROM pairs WHERE pair_id = ?",
                                              (int(text),))]
     found += [r[0] for r in conn.execute(
