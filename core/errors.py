@@ -11,5 +11,9 @@ class NotAProject(DocketError):
     pass
 
 
+class Interrupted(KeyboardInterrupt):
+    """A Ctrl-C after work that stands: the message says what was kept and what was not."""
+
+
 class Cancelled(Exception):
     """Long work stopped because the caller set its cancel event."""

@@ -6,8 +6,10 @@ from __future__ import annotations
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
+from .errors import Interrupted
 from .results import AgreementReport
 from .storage.project_file import ProjectFile
+from .wording import many
 
 if TYPE_CHECKING:
     from .reviewing.merge import MergeResult
@@ -48,7 +50,7 @@ class TeamVerbs(ProjectFile):
         from .reviewing.bulk import apply_rows, read_rows
         rows = read_rows(self, Path(path))
         n = apply_rows(self, reviewer, rows)
-        return n, self.refit()
+        return n, self._refit_after(f"the {many(n, 'decision')} for {reviewer} are recorded")
 
     def label_once(self, name: str, path: str | Path, adjudicator: str | None = None) -> int:
         from .reviewing.bulk import label_once
@@ -59,7 +61,17 @@ class TeamVerbs(ProjectFile):
         """Decisions from offline copies; a refit when anything new came in."""
         from .reviewing.merge import merge
         result = merge(self, [Path(p) for p in others], accept_roles=accept_roles)
-        return result, (self.refit() if result.added else None)
+        return result, (self._refit_after(f"the {many(result.added, 'decision')} merged are "
+                                          "recorded") if result.added else None)
+
+    def _refit_after(self, kept: str) -> RefitResult:
+        # a Ctrl-C in the refit comes after the decisions were committed: "nothing was
+        # half-written" would send the user to record them all again
+        try:
+            return self.refit()
+        except KeyboardInterrupt:
+            raise Interrupted(f"{kept}; the refit was cut short, so the model stays as it "
+                              "was until the next one (a review or label refits it)") from None
 
     # -- adjudication ------------------------------------------------------------------------
     def require_adjudicator(self, name: str) -> str:

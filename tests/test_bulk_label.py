@@ -94,3 +94,22 @@ def test_a_label_file_headed_in_another_case_is_read(sample_project: Path, tmp_p
     with Project.open(sample_project) as p:
         (d,) = p.decisions()
     assert (d.pair_id, d.label, d.note) == (1, "match", "same phone")
+
+
+def test_ctrl_c_in_the_refit_after_label_says_the_decisions_stand(
+        sample_project: Path, tmp_path: Path, capsys, monkeypatch: pytest.MonkeyPatch) -> None:
+    # "interrupted; nothing was half-written" came after every decision was committed
+    rows = tmp_path / "labels.csv"
+    rows.write_text("pair_id,label\n1,match\n2,non-match\n", encoding="utf-8")
+
+    def cut(_self: object) -> None:
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(Project, "refit", cut)
+    assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(rows)]) == 130
+    assert capsys.readouterr().err.strip() == (
+        "docket: interrupted; the 2 decisions for maya are recorded; the refit was cut short, "
+        "so the model stays as it was until the next one (a review or label refits it)")
+    with Project.open(sample_project) as p:
+        assert sorted((d.pair_id, d.label) for d in p.decisions()) == [
+            (1, "match"), (2, "non-match")]

@@ -72,8 +72,9 @@ def _main(argv: list[str] | None) -> int:
         print(f"docket: {shown(file_trouble(exc, getattr(args, 'project', None) or 'project'))}",
               file=sys.stderr)
         return 2
-    except KeyboardInterrupt:
-        print("docket: interrupted; nothing was half-written", file=sys.stderr)
+    except KeyboardInterrupt as exc:  # what stands, when some of the work did
+        print(f"docket: interrupted; {shown(exc) or 'nothing was half-written'}",
+              file=sys.stderr)
         return 130
     except BrokenPipeError:
         os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
