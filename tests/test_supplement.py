@@ -159,7 +159,13 @@ def test_bad_supplement_requests_fail_with_one_line_and_change_nothing(
     before = sample_project.read_bytes()
     wide = tmp_path / "wide.csv"
     pd.read_csv(path).assign(score=lambda f: f.score * 10).to_csv(wide, index=False)
-    cases = [(["supplement", str(sample_project), "--predictions", str(wide)], "outside 0…1"),
+    empty = tmp_path / "empty.csv"  # was drawn on: every pair in one stratum, as absent
+    empty.write_text("left_id,right_id,score\n", encoding="utf-8")
+    cases = [(["supplement", str(sample_project), "--predictions", str(empty)],
+              "a header and no rows"),
+             (["evaluate", str(sample_project), "--predictions", str(empty)],
+              "a header and no rows"),
+             (["supplement", str(sample_project), "--predictions", str(wide)], "outside 0…1"),
              (["supplement", str(sample_project), "--predictions", str(path), "--size", "0"],
               "--size 0"),
              (["evaluate", str(sample_project), "--predictions", str(path), "--supplement"],

@@ -66,6 +66,9 @@ def read_predictions(project: ProjectFile, path: str | Path) -> tuple[pd.Series,
     if kind is None and label_col is None:
         raise DocketError(f"{path}: needs a score column ({' or '.join(SCORE_COLUMNS)}) or a "
                           f"label column ({' or '.join(LABEL_COLUMNS)})")
+    if not len(frame):  # every pair would be absent, read as a predicted non-match
+        raise DocketError(f"{path}: a header and no rows; give the matcher's output, one row "
+                          "per pair")
     for side in ("left", "right"):
         ids = frame[f"{side}_id"]
         if ids.isna().any():
