@@ -177,7 +177,14 @@ def test_policy_command_shows_and_sets_the_rules(project: Project, capsys) -> No
     assert main(["policy", path]) == 0
     assert "may settle a pair they reviewed" in capsys.readouterr().out
     assert main(["policy", path, "--independent-adjudication", "--min-reviews", "2"]) == 0
-    assert "may not settle a pair they decided as a reviewer" in capsys.readouterr().out
+    out = capsys.readouterr().out
+    assert "may not settle a pair they decided as a reviewer" in out and "note:" not in out
+    # more reviewers than the queue plans for any pair: said, since then nothing becomes gold
+    assert main(["policy", path, "--min-reviews", "3"]) == 0
+    assert ("note: the queue plans at most 2 reviewers for a pair"
+            in capsys.readouterr().out)
+    assert main(["policy", path, "--min-reviews", "2"]) == 0
+    capsys.readouterr()
     assert main(["policy", path, "--json"]) == 0
     assert '"independent_adjudication": true' in capsys.readouterr().out
     assert main(["status", path]) == 0

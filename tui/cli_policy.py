@@ -53,8 +53,12 @@ def policy(args: argparse.Namespace) -> int:
         changes["independent_adjudication"] = bool(args.independent)
     with open_project(args.project, readonly=not changes) as project:
         rules = project.set_gold_policy(**changes) if changes else project.gold_policy()
+        planned = int(project.meta.get("overlap_reviewers") or 2)
     if args.json:
         print(json_text(rules))
         return 0
     print(("gold policy now: " if changes else "gold policy: ") + "; ".join(policy_lines(rules)))
+    if rules["min_reviews"] > planned:  # a typo away from no gold label at all
+        print(f"note: the queue plans at most {planned} reviewers for a pair (its overlap "
+              f"pairs), so a pair becomes gold only once more reviewers than that decide it")
     return 0
