@@ -71,8 +71,8 @@ class QueueVerbs(ProjectFile, SplitFirst):
         it nothing is written.
         """
         if not claim:
-            with self._lock:
-                return self._next(reviewer, n, exclude)
+            with self._lock:  # looking only: the name is read as it would be registered
+                return self._next(roles.as_kept(self._conn, reviewer), n, exclude)
         with self.transaction() as conn:
             reviewer = roles.enter(conn, reviewer)
             items = self._next(reviewer, n, exclude)

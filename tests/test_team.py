@@ -279,3 +279,17 @@ def test_second_reviewer_file_is_what_its_generator_writes(sample_project_file: 
     assert out.read_bytes() == SECOND.read_bytes()
     wrong = sum(n for (_, outcome), n in tally.items() if outcome == "wrong")
     assert 0.03 <= wrong / sum(tally.values()) <= 0.07
+
+
+def test_next_without_claim_reads_the_name_as_the_project_keeps_it(tiny: Path, capsys) -> None:
+    with sqlite3.connect(tiny) as conn:  # an older file's name, as it was typed there
+        conn.execute("INSERT INTO reviewers (name, role, added_at) VALUES (?, 'reviewer', ?)",
+                     (NFD, "2026-01-01T00:00:00"))
+    first = pair_ids(tiny)[0]
+    with Project.open(tiny) as p:
+        p.decide(first, NFD, "match")
+        assert first not in [i.pair_id for i in p.next_pairs(NFC, 50)]  # their own work known
+        with pytest.raises(DocketError, match="letter case"):
+            p.next_pairs(NFC.upper(), 1)
+    assert run(["next", str(tiny), "--reviewer", "JOSÉ"]) == 2
+    assert "letter case" in capsys.readouterr().err
