@@ -116,3 +116,14 @@ def test_two_tables_whose_columns_differ_only_in_case_are_compared_column_by_col
     with Project.open(path, readonly=True) as project:
         assert [(f.left_column, f.right_column) for f in project.fields] == [("TOWN", "name")]
     capsys.readouterr()
+
+
+def test_a_second_header_from_files_joined_end_to_end_is_refused_by_its_line(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # it was read as a record whose id is "id"
+    left = tmp_path / "joined.csv"
+    left.write_bytes(b"\xef\xbb\xbf" + (_csv(ROWS[:2], "\r\n") + _csv(ROWS[2:], "\n")).encode())
+    project = tmp_path / "p.docket"
+    code, err = run(capsys, "new", str(project), "--left", str(left), "--id", "id")
+    assert_one_line_error(code, err, f"{left}: line 4 repeats the header", "remove that line")
+    assert not project.exists()

@@ -131,15 +131,21 @@ def plain_names(names: list[str], wanted: tuple[str, ...]) -> list[str]:
 
 
 def check_widths(path: Path, encoding: str, sep: str) -> None:
-    """Every row has as many fields as the header (a short row would pass silently)."""
+    """Every row has as many fields as the header (a short row would pass silently), and none
+    is the header again (it would be read as a record whose id is the id column's name)."""
     # the csv module refuses a value over 131,072 characters, which pandas reads: a long
     # text (an abstract, a note) is a record's value like any other
     limit = csv.field_size_limit(sys.maxsize)
     with path.open(encoding=encoding, newline="") as f:
         rows = csv.reader(f, delimiter=sep)
         try:
-            width = len(next(rows, []))
+            header = [c.strip() for c in next(rows, [])]
+            width = len(header)
             for row in rows:
+                if row and [c.strip() for c in row] == header:  # files joined end to end
+                    raise DocketError(
+                        f"{path}: line {rows.line_num} repeats the header (were two files "
+                        "joined?); remove that line, or read the files one at a time")
                 if row and len(row) != width:
                     raise DocketError(
                         f"{path}: line {rows.line_num} has {len(row)} of the header's {width} "
