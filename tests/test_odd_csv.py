@@ -127,3 +127,18 @@ def test_a_second_header_from_files_joined_end_to_end_is_refused_by_its_line(
     code, err = run(capsys, "new", str(project), "--left", str(left), "--id", "id")
     assert_one_line_error(code, err, f"{left}: line 4 repeats the header", "remove that line")
     assert not project.exists()
+
+
+def test_a_utf8_mark_over_other_bytes_is_named_with_the_line(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # it said "neither UTF-8 nor utf-8-sig text", naming a codec and no line
+    left = tmp_path / "marked.csv"
+    left.write_bytes(b"\xef\xbb\xbfid,name\n1,Tove\n2,Caf\xe9 Brenn\n")
+    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(left), "--id", "id")
+    assert_one_line_error(code, err, f"{left}: begins with a UTF-8 byte-order mark but is not "
+                          "UTF-8 text (line 3)", "save it as UTF-8")
+    other = tmp_path / "other.csv"
+    other.write_bytes(b"id,name\n1,Tove\n2,\xff\x81\n")
+    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(other), "--id",
+                    "id")
+    assert_one_line_error(code, err, "neither UTF-8 nor cp1252 text (line 3)")

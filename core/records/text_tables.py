@@ -158,6 +158,25 @@ def check_widths(path: Path, encoding: str, sep: str) -> None:
             csv.field_size_limit(limit)
 
 
+def _undecodable(path: Path, encoding: str, marked: str | None) -> str:
+    """Why the text cannot be read, with the first line that fails when lines can be told
+    apart in the bytes (UTF-8 and cp1252; not UTF-16 or UTF-32)."""
+    where = ""
+    if encoding in ("utf-8-sig", "cp1252"):
+        with path.open("rb") as f:
+            for n, line in enumerate(f, start=1):
+                try:
+                    line.decode(encoding)
+                except UnicodeDecodeError:
+                    where = f" (line {n})"
+                    break
+    if marked:  # the mark said one encoding and the bytes are another
+        name = "UTF-8" if marked == "utf-8-sig" else marked.upper()
+        return (f"{path}: begins with a {name} byte-order mark but is not {name} text{where}; "
+                "save it as UTF-8")
+    return f"{path}: neither UTF-8 nor {encoding} text{where}; save it as UTF-8"
+
+
 def read_delimited(path: Path, fmt: str) -> pd.DataFrame:
     """A CSV or TSV file as a frame of strings ("" where a field is empty)."""
     with path.open("rb") as f:
@@ -176,8 +195,7 @@ def read_delimited(path: Path, fmt: str) -> pd.DataFrame:
                 frame.columns = header
         except UnicodeDecodeError:
             if encoding != "utf-8":
-                raise DocketError(f"{path}: neither UTF-8 nor {encoding} text; save it as "
-                                  "UTF-8") from None
+                raise DocketError(_undecodable(path, encoding, bom_encoding(head))) from None
             continue
         if encoding == "cp1252":  # said once it is read, so a refusal stays one line
             warnings.warn(f"{path}: not valid UTF-8; read as cp1252 (Windows Latin-1) instead",
