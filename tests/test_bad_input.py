@@ -205,3 +205,23 @@ def test_one_table_given_as_both_sides_is_refused(good: Path, tmp_path: Path, ca
                     str(tmp_path / "." / good.name), "--id", "id")
     assert_one_line_error(code, err, "given as both --left and --right", "--left alone")
     assert not project.exists()
+
+
+def test_force_over_a_project_with_decisions_needs_discard_decisions(
+        good: Path, tmp_path: Path, capsys) -> None:
+    # --force rebuilt over the decisions silently: all of them lost
+    project = tmp_path / "p.docket"
+    argv = ["new", str(project), "--left", str(good), "--id", "id", "--block", "town"]
+    assert main(argv) == 0
+    with Project.open(project) as p:
+        p.decide(p.next_pairs("maya", 1)[0].pair_id, "maya", "match")
+    before = project.read_bytes()
+    capsys.readouterr()
+    code, err = run(capsys, *argv, "--force")
+    assert_one_line_error(code, err, f"{project} holds 1 decision by 1 reviewer that --force "
+                          "would discard", "--force --discard-decisions")
+    assert project.read_bytes() == before
+    assert main([*argv, "--force", "--discard-decisions"]) == 0
+    with Project.open(project) as p:
+        assert p.decisions() == []
+    capsys.readouterr()

@@ -48,3 +48,20 @@ def warn_line(message: Warning | str, category: type, *rest: Any, **kw: Any) -> 
 def open_project(path: str, readonly: bool = False) -> Any:
     from docket.core import Project
     return Project.open(path, readonly=readonly)
+
+
+def refuse_to_discard(path: str, option: str, keep: str = "") -> None:
+    """A rebuild over a project that holds people's decisions (any but ``keep``'s) needs
+    saying so with --discard-decisions; a file that is no project is left to the build."""
+    from docket.core import DocketError
+
+    from .figures import many
+    try:
+        with open_project(path, readonly=True) as project:
+            n, people = project.decisions_by_others(keep)
+    except DocketError:
+        return
+    if n:
+        raise DocketError(f"{path} holds {many(n, 'decision')} by {many(people, 'reviewer')} "
+                          f"that {option} would discard; copy the file to keep them, then pass "
+                          f"{option} --discard-decisions")

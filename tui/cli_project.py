@@ -8,7 +8,7 @@ import shlex
 from pathlib import Path
 from typing import Any
 
-from .cli_base import command, default_reviewer, open_project
+from .cli_base import command, default_reviewer, open_project, refuse_to_discard
 from .cli_checks import MOST_LISTED, MOST_WORKERS, at_least, check_engine, share
 from .figures import many, noun
 from .figures import ratio_text as _ratio
@@ -81,6 +81,8 @@ def new(args: argparse.Namespace) -> int:
         one_to_one=args.one_to_one, max_pairs=args.max_pairs, threshold=args.threshold,
         seed=args.seed, force=args.force, sample_above=args.sample_above, engine=args.engine,
         workers=args.workers, scheduler=args.scheduler)
+    if args.force and not args.discard_decisions and spec.path.is_file():
+        refuse_to_discard(str(spec.path), "--force")
     with progress_bar() as update:
         built = Project.create(spec, progress=update)
     print_built(built)
@@ -187,6 +189,8 @@ def register(sub: argparse._SubParsersAction) -> None:
                    help="dask: an existing scheduler (for example tcp://10.0.0.5:8786) "
                         "instead of a local cluster")
     p.add_argument("--force", action="store_true", help="replace an existing project file")
+    p.add_argument("--discard-decisions", action="store_true",
+                   help="with --force: replace it even though the decisions made in it are lost")
 
     p = command(sub, "status", "Show a project's records, pairs, decisions and model.", "",
                  "docket status vets.docket --json", status)

@@ -12,7 +12,7 @@ from importlib import resources
 from pathlib import Path
 from typing import Any
 
-from .cli_base import command, default_reviewer, open_project
+from .cli_base import command, default_reviewer, open_project, refuse_to_discard
 from .cli_project import print_built, status
 from .figures import many
 
@@ -107,17 +107,6 @@ def demo_spec(folder: Path) -> Any:
                       name="vet-clients", force=True)
 
 
-def _refuse_to_discard(path: Path) -> None:
-    """--fresh over a demo that holds the user's own decisions needs saying so."""
-    from docket.core import DocketError
-    with open_project(str(path), readonly=True) as project:
-        n, people = project.decisions_by_others(DEMO_SECOND_REVIEWER)
-    if n:
-        raise DocketError(f"{path} holds {many(n, 'decision')} by {many(people, 'reviewer')} that "
-                          "--fresh would discard; copy the file to keep them, then pass "
-                          "--fresh --discard-decisions")
-
-
 def demo(args: argparse.Namespace) -> int:
     from docket.core import DocketError, Project
 
@@ -140,7 +129,7 @@ def demo(args: argparse.Namespace) -> int:
         print(f"using the existing demo project {spec.path} (pass --fresh to rebuild it)")
     else:
         if spec.path.exists() and not args.discard_decisions:
-            _refuse_to_discard(spec.path)
+            refuse_to_discard(str(spec.path), "--fresh", keep=DEMO_SECOND_REVIEWER)
         with progress_bar() as update:
             built = Project.create(spec, progress=update)
         print_built(built)
