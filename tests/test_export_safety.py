@@ -157,3 +157,7 @@ def test_an_export_never_replaces_a_project(sample_project: Path, tmp_path: Path
         assert target.read_bytes() == before
     with pytest.raises(DocketError, match="never replaces"):
         atomic_write(other, lambda tmp: tmp.write_text("x", encoding="utf-8"))
+    cut = tmp_path / "cut.docket"  # a damaged project is a project still
+    cut.write_bytes(sample_project.read_bytes()[:50_000])
+    with pytest.raises(DocketError, match="never replaces"):
+        atomic_write(cut, lambda tmp: tmp.write_text("x", encoding="utf-8"))

@@ -45,15 +45,23 @@ def _folder(path: Path) -> Path:
     return folder
 
 
-SQLITE_MAGIC = b"SQLite format 3\x00"  # the first 16 bytes of every SQLite database file
-
-
 def holds_database(path: Path) -> bool:
+    """Whether ``path`` is an SQLite database (a damaged one too). Asked through SQLite, never
+    with open(): closing another handle on a file this process has open in SQLite would drop
+    the process's locks on it (POSIX advisory locks are per process)."""
     try:
-        with path.open("rb") as f:
-            return f.read(len(SQLITE_MAGIC)) == SQLITE_MAGIC
-    except OSError:
+        if not path.is_file() or path.stat().st_size == 0:
+            return False
+        probe = sqlite3.connect(f"{path.resolve().as_uri()}?mode=ro", uri=True)
+    except (OSError, sqlite3.Error):
         return False
+    try:  # SQLite reads a file of a few bytes as an empty database: no page, no database
+        return int(probe.execute("PRAGMA page_count").fetchone()[0]) > 0
+    except sqlite3.DatabaseError as exc:
+        name = getattr(exc, "sqlite_errorname", "") or ""
+        return not (name == "SQLITE_NOTADB" or "not a database" in str(exc))
+    finally:
+        probe.close()
 
 
 def same_file(a: Path, b: Path) -> bool:
