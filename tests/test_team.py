@@ -293,3 +293,9 @@ def test_next_without_claim_reads_the_name_as_the_project_keeps_it(tiny: Path, c
             p.next_pairs(NFC.upper(), 1)
     assert run(["next", str(tiny), "--reviewer", "JOSÉ"]) == 2
     assert "letter case" in capsys.readouterr().err
+
+
+def test_next_with_n_0_does_not_call_the_queue_empty(tiny: Path, capsys) -> None:
+    assert run(["next", str(tiny), "--reviewer", "otto", "-n", "0"]) == 0
+    out = capsys.readouterr().out
+    assert "(-n 0: no pair asked for)" in out and "empty" not in out

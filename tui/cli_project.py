@@ -118,7 +118,8 @@ def next_pairs(args: argparse.Namespace) -> int:
               f"{i.probability:>11.4f}  "
               f"{i.reason}")
     if not items:
-        print("(the queue is empty for this reviewer)")
+        print("(the queue is empty for this reviewer)" if args.n > 0
+              else "(-n 0: no pair asked for)")
     return 0
 
 
