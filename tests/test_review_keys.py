@@ -278,3 +278,33 @@ def test_keymap_file_forms_and_problems(tmp_path):
     assert load_keymap(ids, tmp_path / "absent.toml").problems == []
     assert keymap_path({"XDG_CONFIG_HOME": "/x"}) == Path("/x/docket/keymap.toml")
     assert keymap_path({"HOME": "/home/u"}) == Path("/home/u/.config/docket/keymap.toml")
+
+
+def test_keymap_keys_no_press_is_named_are_refused_and_the_default_stays(tmp_path):
+    ids = ["match", "non-match", "find", "help"]
+    path = tmp_path / "keymap.toml"
+    path.write_text('match = "??"\nfind = "ctrl+"\nnon-match = " , "\nhelp = "crtl+h"\n')
+    loaded = load_keymap(ids, path)
+    assert loaded.keymap == {}
+    assert any("'match' = '??' is no key's name" in p for p in loaded.problems)
+    assert any("'find' = 'ctrl+'" in p for p in loaded.problems)
+    assert any("'help' = 'crtl+h'" in p for p in loaded.problems)
+    assert any("'non-match' needs a key name" in p for p in loaded.problems)
+    path.write_text('match = "f2,f2"\nfind = "comma, ctrl+shift+f"\nhelp = "!"\n'
+                    'non-match = "é"\n')
+    named = load_keymap(ids, path)
+    assert named.problems == []  # one key named twice is no clash with itself
+    assert named.keymap == {"match": "f2", "find": "comma,ctrl+shift+f", "help": "!",
+                            "non-match": "é"}
+
+
+@pilot_test
+async def test_a_keymap_key_no_press_is_named_leaves_the_decision_key_working(
+        review_sample, review_app, tmp_path):
+    keymap = tmp_path / "keymap.toml"
+    keymap.write_text('match = "??"\n')
+    app = review_app(review_sample, keymap_file=keymap)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await press(pilot, "s")
+    assert log(review_sample)[0][2] == "match"

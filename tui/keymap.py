@@ -21,6 +21,8 @@ from collections.abc import Iterable
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from textual.keys import ASCII_KEY_NAMES, KEY_NAME_REPLACEMENTS, Keys, key_to_character
+
 FILE_NAME = "keymap.toml"
 
 
@@ -42,13 +44,29 @@ def keymap_path(environ: dict[str, str] | None = None) -> Path:
     return config_dir(environ) / FILE_NAME
 
 
+_MODIFIERS = frozenset({"ctrl", "shift", "alt", "meta", "super", "hyper"})
+# Names Textual gives key presses that are not one printable character.
+_NAMED = ({k.value.rpartition("+")[2] for k in Keys} | set(KEY_NAME_REPLACEMENTS.values())
+          | set(ASCII_KEY_NAMES.values()))
+
+
+def namable(key: str) -> bool:
+    """Whether some key press carries this name: a binding to any other name (``"??"``,
+    ``"ctrl+"``, a typo) is accepted by Textual and then never fires."""
+    *modifiers, last = key.split("+")
+    if not last or any(m not in _MODIFIERS for m in modifiers):
+        return False
+    return len(last) == 1 or last in _NAMED or key_to_character(last) is not None
+
+
 def _keys(value: object) -> str | None:
-    if isinstance(value, str) and value.strip():
-        return ",".join(k.strip() for k in value.split(",") if k.strip())
-    if isinstance(value, list) and value and all(isinstance(v, str) and v.strip()
-                                                  for v in value):
-        return ",".join(v.strip() for v in value)
-    return None
+    if isinstance(value, str):
+        value = value.split(",")
+    if not isinstance(value, list) or not all(isinstance(v, str) for v in value):
+        return None
+    # One key named twice for a binding is one key.
+    keys = dict.fromkeys(v.strip() for v in value if v.strip())
+    return ",".join(keys) or None
 
 
 def load_keymap(known_ids: Iterable[str], path: Path | None = None) -> LoadedKeymap:
@@ -73,6 +91,12 @@ def load_keymap(known_ids: Iterable[str], path: Path | None = None) -> LoadedKey
         if keys is None:
             loaded.problems.append(f"{path}: '{binding_id}' needs a key name such as \"m\" "
                                    f"or \"ctrl+f\", not {value!r}")
+            continue
+        unnamed = [k for k in keys.split(",") if not namable(k)]
+        if unnamed:
+            loaded.problems.append(f"{path}: '{binding_id}' = '{unnamed[0]}' is no key's name "
+                                   "(a key is one character, or a name such as \"f2\", "
+                                   "\"comma\" or \"ctrl+f\"); its default key stays")
             continue
         loaded.keymap[binding_id] = keys
     clashes = _clashes(loaded.keymap)
