@@ -108,6 +108,27 @@ def check_place(path: Path, write: bool) -> None:
                                "folder you can write to")
 
 
+def identity(path: Path) -> tuple[int, int] | None:
+    """Which file ``path`` names now (device and inode), or None when it names none."""
+    try:
+        st = path.stat()
+    except OSError:
+        return None
+    return st.st_dev, st.st_ino
+
+
+def check_still_writable(path: Path, opened: tuple[int, int] | None) -> None:
+    """Before a write: an open connection keeps writing to a file that another process has
+    deleted or replaced, and every decision would then vanish when the screen closes."""
+    if opened is not None and identity(path) != opened:
+        raise ProjectFileError(f"{path}: the project file was deleted, moved or replaced "
+                               "while it was open; nothing was written; put it back (or open "
+                               "the project again) and decide again")
+    if opened is not None and not _marked_writable(path):
+        raise ProjectFileError(f"{path}: the project file was made read-only while it was "
+                               "open; nothing was written; ask for write access and try again")
+
+
 def check_integrity(conn: sqlite3.Connection, path: Path) -> None:
     """Refuse a damaged file: the whole file when small enough, else the written tables."""
     try:

@@ -19,7 +19,7 @@ from ..errors import DocketError
 from ..types import LABELS, Decision, FieldSpec
 from . import claims, drafts, roles, store
 from . import decisions as log
-from .file_health import ProjectFileError, explain
+from .file_health import ProjectFileError, check_still_writable, explain, identity
 
 
 class ProjectFile:
@@ -28,6 +28,7 @@ class ProjectFile:
     def __init__(self, path: Path, conn: sqlite3.Connection) -> None:
         self.path = path
         self._conn = conn
+        self._identity = identity(path)
         self._lock = threading.RLock()
         self.meta: dict[str, Any] = store.get_meta(conn)
         self.fields = [FieldSpec(**f) for f in self.meta["fields"]]
@@ -77,6 +78,7 @@ class ProjectFile:
         a ``ProjectFileError`` whose message says what happened to the file and what to do.
         """
         with self._lock:
+            check_still_writable(self.path, self._identity)
             try:
                 self._begin()
             except sqlite3.Error as exc:
