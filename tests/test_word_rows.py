@@ -69,3 +69,16 @@ def test_values_read_in_chunks_give_the_same_rows(monkeypatch: pytest.MonkeyPatc
     monkeypatch.setattr(text_vectors, "CHUNK", 3)
     assert _ours(corpus) == pytest.approx(whole, abs=1e-7)
     assert whole == pytest.approx(_reference(corpus), abs=1e-6)
+
+
+@settings(max_examples=80, deadline=None)
+@given(st.lists(st.text(alphabet=st.sampled_from("aB éZ\t-.ß_1²İ&;"), max_size=14), min_size=1,
+                max_size=8, unique=True))
+def test_normalised_values_split_as_the_token_pattern_reads_them(raw: list[str]) -> None:
+    # Values as normalise.words leaves them are read the same by a plain split.
+    from docket.core.records.normalise import words
+
+    corpus = list(dict.fromkeys(w for w in (words(v) for v in raw) if w))
+    if not corpus:
+        return
+    assert (word_rows(corpus, spaced=True) != word_rows(corpus)).nnz == 0

@@ -200,8 +200,10 @@ class TextRows:
     ib: np.ndarray
 
     @classmethod
-    def of(cls, a: list, b: list, ia: np.ndarray, ib: np.ndarray) -> TextRows:
-        return cls(text_vectors.vectors(a, b, "word"), ia, ib)
+    def of(cls, a: list, b: list, ia: np.ndarray, ib: np.ndarray, spaced: bool = False
+           ) -> TextRows:
+        """``spaced``: the values are normalised words (see ``text_vectors.word_rows``)."""
+        return cls(text_vectors.vectors(a, b, "word", spaced=spaced), ia, ib)
 
 
 def compare_values(kind: str, a: np.ndarray, b: np.ndarray, text: TextRows | None = None
@@ -256,7 +258,7 @@ def prepare(kind: str, left_norm: np.ndarray, right_norm: np.ndarray) -> Prepare
     text = None
     if kind == "longtext":
         text = TextRows.of(lu_a.tolist(), ru_a.tolist(), np.zeros(0, np.int64),
-                           np.zeros(0, np.int64))
+                           np.zeros(0, np.int64), spaced=True)
     return Prepared(lcodes, rcodes, lu_a, ru_a, text)
 
 

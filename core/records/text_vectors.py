@@ -39,10 +39,14 @@ def _char_vectorizer(max_df: float | int) -> Any:
                            dtype=np.float32, max_df=max_df)
 
 
-def word_rows(corpus: list[str], max_df: float | int = 1.0) -> Any:
+def word_rows(corpus: list[str], max_df: float | int = 1.0, spaced: bool = False) -> Any:
     """What ``TfidfVectorizer(token_pattern=WORD, sublinear_tf=True, max_df=max_df)`` gives
     (lower case; smooth idf ln((1 + n) / (1 + df)) + 1; 1 + ln tf; unit rows), with the
-    columns in another order. Raises ValueError when no term is left, as it does."""
+    columns in another order. Raises ValueError when no term is left, as it does.
+
+    ``spaced``: the values are already lower-case words one space apart (what
+    ``normalise.words`` gives), so splitting them finds the same words four times faster.
+    """
     import pandas as pd
     from scipy import sparse
 
@@ -50,7 +54,8 @@ def word_rows(corpus: list[str], max_df: float | int = 1.0) -> Any:
     vocabulary: dict[str, int] = {}
     cells_of = []
     for start in range(0, n, CHUNK):  # a chunk's words at once, never the whole corpus's
-        words = [WORD.findall(v.lower()) for v in corpus[start:start + CHUNK]]
+        part = corpus[start:start + CHUNK]
+        words = [v.split() for v in part] if spaced else [WORD.findall(v.lower()) for v in part]
         codes, terms = pd.factorize(pd.Series(list(chain.from_iterable(words)), dtype=object))
         ids = np.array([vocabulary.setdefault(t, len(vocabulary)) for t in terms],
                        dtype=np.int64)
@@ -80,10 +85,10 @@ def word_rows(corpus: list[str], max_df: float | int = 1.0) -> Any:
     return sparse.csr_matrix((val, col, indptr), shape=(n, int(kept.sum())))
 
 
-def vectors(left: list[str], right: list[str], analyzer: str, max_share: float = 1.0
-            ) -> Vectors:
+def vectors(left: list[str], right: list[str], analyzer: str, max_share: float = 1.0,
+            spaced: bool = False) -> Vectors:
     """TF-IDF rows for each side's distinct values ("word" or "char" analyzer); terms held by
-    more than ``max_share`` of the values are left out."""
+    more than ``max_share`` of the values are left out. ``spaced`` as for :func:`word_rows`."""
     from scipy import sparse
 
     corpus = list(dict.fromkeys([*left, *right]))
@@ -93,7 +98,7 @@ def vectors(left: list[str], right: list[str], analyzer: str, max_share: float =
     try:
         # A small corpus keeps every term: in ten values, each is held by a tenth of them.
         max_df = 1.0 if max_share >= 1.0 else max(10, int(max_share * len(corpus)))
-        rows = (word_rows(corpus, max_df) if analyzer == "word" else
+        rows = (word_rows(corpus, max_df, spaced) if analyzer == "word" else
                 _char_vectorizer(max_df).fit_transform(corpus).tocsr())
     except ValueError:  # nothing but stop characters: no vocabulary at all
         rows = sparse.csr_matrix((len(corpus), 1), dtype=np.float32)
