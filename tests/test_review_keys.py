@@ -111,6 +111,21 @@ async def test_a_note_on_an_undecided_pair_survives_quit_and_reopen(review_sampl
 
 
 @pilot_test
+async def test_undo_keeps_the_note_for_the_next_decision_on_the_pair(review_sample, review_app):
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        first = review(app).item.pair_id
+        await press(pilot, "e", *"same owner, new pet", "enter", "s", "z")
+        assert review(app).item.pair_id == first
+        assert review(app).pending_note == "same owner, new pet"
+        await press(pilot, "d")
+    assert [r[2:4] for r in log(review_sample)] == [
+        ("match", "same owner, new pet"), (None, ""), ("non-match", "same owner, new pet")]
+    assert rows(review_sample, "SELECT count(*) FROM drafts") == [(0,)]
+
+
+@pilot_test
 async def test_note_on_a_decided_pair_appends_a_decision_with_the_same_label(review_sample,
                                                                             review_app):
     app = review_app(review_sample)

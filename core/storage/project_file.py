@@ -150,4 +150,8 @@ class ProjectFile:
                            last.role)
                 # Open again: no one else in the same role is given it meanwhile.
                 claims.claim(conn, reviewer, [last.pair_id], keep=True, role=last.role)
+                # Undo takes back a key pressed in haste, not the note written with it: the
+                # note waits as a draft for the pair's next decision (shown, and editable, on e).
+                if last.note and log.current_of(conn, last.pair_id, reviewer, last.role) is None:
+                    drafts.save(conn, last.pair_id, reviewer, last.note, last.role)
         return last
