@@ -142,3 +142,14 @@ def test_a_utf8_mark_over_other_bytes_is_named_with_the_line(
     code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(other), "--id",
                     "id")
     assert_one_line_error(code, err, "neither UTF-8 nor cp1252 text (line 3)")
+
+
+@pytest.mark.parametrize("encoding", ["utf-8", "utf-16"])
+def test_a_value_holding_a_nul_is_read_whole(tmp_path: Path, encoding: str,
+                                             capsys: pytest.CaptureFixture[str]) -> None:
+    # pandas' C reader before 3.0 ended the value at the NUL ('Vi\x00k' became 'Vi')
+    left = tmp_path / "nul.csv"
+    left.write_text(_csv([*ROWS[:3], ("4", "Ivo\x00Bren", "Vik")], "\n"), encoding=encoding)
+    with _build(tmp_path, left, capsys) as project:
+        assert project.record("left", "4")["name"] == "Ivo\x00Bren"
+        assert project.record("left", "3")["name"] == "Ivo Brenn"

@@ -177,6 +177,21 @@ def _undecodable(path: Path, encoding: str, marked: str | None) -> str:
     return f"{path}: neither UTF-8 nor {encoding} text{where}; save it as UTF-8"
 
 
+def holds_nul(path: Path, encoding: str) -> bool:
+    """Whether the text holds a NUL character anywhere (read a block at a time)."""
+    if encoding.startswith(("utf-16", "utf-32")):  # their NUL bytes are parts of characters
+        with path.open(encoding=encoding, newline="") as text:
+            while chars := text.read(1 << 20):
+                if "\x00" in chars:
+                    return True
+        return False
+    with path.open("rb") as raw:
+        while block := raw.read(1 << 20):
+            if b"\x00" in block:
+                return True
+    return False
+
+
 def read_delimited(path: Path, fmt: str) -> pd.DataFrame:
     """A CSV or TSV file as a frame of strings ("" where a field is empty)."""
     with path.open("rb") as f:
@@ -189,8 +204,11 @@ def read_delimited(path: Path, fmt: str) -> pd.DataFrame:
             header = _header(head_text, sep)
             check_names(path, header)
             check_widths(path, encoding, sep)
+            # pandas' C reader before 3.0 ends a value at a NUL ('n\x00q' became 'n'): a file
+            # holding one is read by its Python reader, slower and exact
+            engine = "python" if holds_nul(path, encoding) else "c"
             frame = pd.read_csv(path, sep=sep, dtype=str, keep_default_na=False,
-                                encoding=encoding)
+                                encoding=encoding, engine=engine)
             if len(header) == frame.shape[1]:  # the names as written, not pandas' "Unnamed: 2"
                 frame.columns = header
         except UnicodeDecodeError:
@@ -215,7 +233,9 @@ def read_json(path: Path) -> pd.DataFrame:
             lines = pd.read_json(path, lines=True, dtype=False, encoding=encoding)
         except UnicodeDecodeError:
             raise DocketError(f"{path}: not {encoding} text; save it as UTF-8") from None
-        except (ValueError, TypeError):  # pandas names a byte offset, or fails on a non-object
+        except (ValueError, TypeError, AttributeError):
+            # pandas names a byte offset, or fails on a line that is no object (a TypeError
+            # from 3.0, an AttributeError from 2.2)
             raise DocketError(_bad_line(path, encoding)) from None
         return _flat(path, lines)
     try:
