@@ -234,3 +234,30 @@ def test_an_export_of_no_rows_as_json_lines_holds_no_line(sample_project: Path, 
     assert [json.loads(line) for line in out.read_text(encoding="utf-8").splitlines()] == [
         {"a": "x"}]
     assert out.read_text(encoding="utf-8").endswith("\n")
+
+
+
+@pytest.mark.parametrize("what", ["gold", "training", "clusters", "conflicts"])
+def test_parquet_exports_keep_their_types_with_no_value_in_a_column(
+        tiny_file: Path, tiny: Project, tmp_path: Path, what: str) -> None:
+    # A column with no value (no adjudication yet; no rows at all) was Arrow's null type, and
+    # such a file could not be read beside a later one holding values: "Unsupported cast
+    # from string to null". The same project before any decision, then with tiny's.
+    import pyarrow.dataset as ds
+    source = tiny_file.parent
+    undecided = tmp_path / "undecided.docket"
+    Project.create(NewProject(path=undecided, left=source / "left.csv",
+                              right=source / "right.csv", id_column="id",
+                              pairs_file=source / "pairs.csv", audit=4,
+                              kinds={"name": "name", "town": "name", "note": "skip"}))
+    make = {"gold": ge.gold_frame, "training": ge.training_frame,
+            "clusters": ge.clusters_frame, "conflicts": ge.conflicts_frame}[what]
+    folder = tmp_path / what
+    folder.mkdir()
+    with Project.open(undecided) as empty:
+        write_frame(make(empty), str(folder / "a_empty.parquet"))
+    write_frame(make(tiny), str(folder / "b_later.parquet"))
+    first, later = (pq.read_schema(folder / n) for n in ("a_empty.parquet", "b_later.parquet"))
+    assert [(f.name, str(f.type)) for f in first] == [(f.name, str(f.type)) for f in later]
+    assert "null" not in {str(f.type) for f in first}
+    assert ds.dataset(folder).to_table().num_rows == len(make(tiny))

@@ -94,12 +94,18 @@ def to_stdout(text: str | bytes) -> None:
 
 def write_parquet(frame: pd.DataFrame, target: Any) -> None:
     """Parquet with text as Arrow ``string`` whichever pandas wrote it (pandas 3 would make it
-    ``large_string``, pandas 2 ``string``), so a file's schema does not depend on the install."""
+    ``large_string``, pandas 2 ``string``), so a file's schema does not depend on the install.
+
+    A text column that holds no value (no adjudication yet, an export of no rows) would be
+    Arrow's ``null`` type: such a file and a later one holding values could not be read as
+    one dataset ("Unsupported cast from string to null"), so it is ``string`` too.
+    """
     import pyarrow as pa
     import pyarrow.parquet as pq
 
     table = pa.Table.from_pandas(frame, preserve_index=False)
-    schema = pa.schema([pa.field(f.name, pa.string()) if pa.types.is_large_string(f.type)
+    schema = pa.schema([pa.field(f.name, pa.string())
+                        if pa.types.is_large_string(f.type) or pa.types.is_null(f.type)
                         else f for f in table.schema], metadata=table.schema.metadata)
     pq.write_table(table.cast(schema), target)
 

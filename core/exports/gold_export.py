@@ -136,7 +136,9 @@ def training_frame(project: ProjectFile, test_share: float = 0.2, seed: int = 0,
     sims = pd.read_sql_query(
         f"SELECT pair_id, {', '.join(store.similarity_column(f.name) for f in project.fields)} "
         "FROM pairs WHERE pair_id IN (SELECT pair_id FROM current)", project.connection)
-    sims = sims.astype({c: "float64" for c in sim_names})
+    # typed even when empty: read_sql_query gives an empty result object columns, and the
+    # merge would carry that to pair_id
+    sims = sims.astype({"pair_id": "int64", **{c: "float64" for c in sim_names}})
     out = gold.merge(sims, on="pair_id", how="left")
     taken = set(out.columns)
     for side in ("left", "right"):
