@@ -21,7 +21,7 @@ from .reviewing.gold import Gold, gold_labels
 from .reviewing.missed import MissedMatch
 from .storage import decisions as log
 from .storage import roles, search, store
-from .storage.refit import RefitResult, refit
+from .storage.refit import RefitResult, decision_mark, refit
 from .team_verbs import TeamVerbs
 from .types import ROLES, Decision, FieldComparison, PairCard, QueueItem
 
@@ -171,8 +171,10 @@ class Project(TeamVerbs, ReportVerbs, MatcherVerbs, QueueVerbs):
     # -- model -------------------------------------------------------------------------------
     def refit(self) -> RefitResult:
         with self._lock:
-            result = refit(self._conn, gold.fitting_labels(self._conn))
-            store.set_meta(self._conn, refit_at=log.stamp())
+            mark = decision_mark(self._conn)
+            result = refit(self._conn, gold.fitting_labels(self._conn), mark)
+            if not result.superseded:
+                store.set_meta(self._conn, refit_at=log.stamp())
             self.meta = store.get_meta(self._conn)
         return result
 

@@ -113,3 +113,34 @@ def test_ctrl_c_in_the_refit_after_label_says_the_decisions_stand(
     with Project.open(sample_project) as p:
         assert sorted((d.pair_id, d.label) for d in p.decisions()) == [
             (1, "match"), (2, "non-match")]
+
+
+def test_a_refit_that_read_its_labels_first_never_overwrites_a_later_one(
+        sample_project: Path, tmp_path: Path, capsys, monkeypatch: pytest.MonkeyPatch) -> None:
+    # Two label commands at once: the one that read its labels first finished its fit last
+    # and wrote a model of fewer labels over the other's, saying nothing.
+    import docket.core.project as facade
+    from docket.core.storage import refit as refitting
+    rows = tmp_path / "labels.csv"
+    rows.write_text("pair_id,label\n1,match\n2,non-match\n", encoding="utf-8")
+    later = [(pid, "match" if pid % 3 else "non-match") for pid in range(3, 40)]
+
+    def meanwhile(conn: sqlite3.Connection, labels: dict[int, int], mark: int) -> object:
+        monkeypatch.setattr(facade, "refit", refitting.refit)  # only this call interleaves
+        with Project.open(sample_project) as other:  # another process, while this one fits
+            for pid, label in later:
+                other.decide(pid, "ola", label)
+            other.refit()
+            theirs = other.meta["ranker_note"]
+        result = refitting.refit(conn, labels, mark)
+        with Project.open(sample_project) as after:
+            assert after.meta["ranker_note"] == theirs  # the model of more labels stands
+        return result
+
+    monkeypatch.setattr(facade, "refit", meanwhile)
+    assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(rows)]) == 0
+    assert capsys.readouterr().out.strip() == (
+        "recorded 2 decisions for maya; refit: not written, as another process had meanwhile "
+        "refit the model on later decisions; that model stands")
+    with Project.open(sample_project) as p:  # the next refit is written
+        assert not p.refit().superseded

@@ -12,6 +12,8 @@ import sys
 from collections.abc import Callable
 from typing import Any
 
+from .figures import many
+
 
 class Formatter(argparse.RawDescriptionHelpFormatter):
     def __init__(self, prog: str) -> None:
@@ -55,7 +57,6 @@ def refuse_to_discard(path: str, option: str, keep: str = "") -> None:
     saying so with --discard-decisions; a file that is no project is left to the build."""
     from docket.core import DocketError
 
-    from .figures import many
     try:
         with open_project(path, readonly=True) as project:
             n, people = project.decisions_by_others(keep)
@@ -65,3 +66,11 @@ def refuse_to_discard(path: str, option: str, keep: str = "") -> None:
         raise DocketError(f"{path} holds {many(n, 'decision')} by {many(people, 'reviewer')} "
                           f"that {option} would discard; copy the file to keep them, then pass "
                           f"{option} --discard-decisions")
+
+
+def refit_words(result: Any) -> str:
+    """What a refit after label or merge did, for its line of output."""
+    if result.superseded:
+        return ("refit: not written, as another process had meanwhile refit the model on "
+                "later decisions; that model stands")
+    return f"refit: ranker {result.ranker}, {many(result.labels, 'labelled pair')} used"

@@ -8,7 +8,7 @@ import shlex
 from pathlib import Path
 from typing import Any
 
-from .cli_base import command, default_reviewer, open_project, refuse_to_discard
+from .cli_base import command, default_reviewer, open_project, refit_words, refuse_to_discard
 from .cli_checks import MOST_LISTED, MOST_WORKERS, at_least, check_engine, share
 from .figures import many, noun
 from .figures import ratio_text as _ratio
@@ -129,8 +129,8 @@ def label(args: argparse.Namespace) -> int:
         n, result = project.label_from(Path(args.source), reviewer)
     aside = (f"; {result.set_aside:,} set aside (audit pairs, judged apart, and pairs still "
              "waiting for another reviewer)" if result.set_aside else "")
-    print(f"recorded {many(n, 'decision')} for {reviewer}; refit: ranker {result.ranker}, "
-          f"{many(result.labels, 'labelled pair')} used{aside}")
+    print(f"recorded {many(n, 'decision')} for {reviewer}; {refit_words(result)}"
+          f"{'' if result.superseded else aside}")
     return 0
 
 

@@ -10,7 +10,7 @@ import argparse
 from pathlib import Path
 
 from .agreement_lines import agreement_lines
-from .cli_base import command, default_reviewer, open_project
+from .cli_base import command, default_reviewer, open_project, refit_words
 from .figures import many
 from .terminal import json_text, shown
 
@@ -142,5 +142,5 @@ def merge(args: argparse.Namespace) -> int:
         print(f"note: {name} adjudicated in a copy but is not an adjudicator here; confirm with "
               f"'docket reviewers {args.project} add {name} --role adjudicator'")
     if refit is not None:
-        print(f"refit: ranker {refit.ranker}, {refit.labels:,} labelled pairs used")
+        print(refit_words(refit))
     return 0

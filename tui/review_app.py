@@ -88,6 +88,8 @@ class ReviewApp(App[None]):
         result = self.background().refit()
         count = self.recount(counted_at)
         return Recount(count.decided, count.remaining, counted_at,
+                       "model refit: another process refit on later decisions; theirs stands"
+                       if result.superseded else
                        f"model refit: {result.labels} labels, {result.ranker}")
 
     def on_mount(self) -> None:

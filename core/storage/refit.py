@@ -36,6 +36,7 @@ class RefitResult:
     logistic_loss: float | None
     iterations: int
     set_aside: int = 0  # labels not used: audit slice, or pairs still open for others
+    superseded: bool = False  # not written: a refit on later decisions had already been
 
     def to_dict(self) -> dict:
         return self.__dict__.copy()
@@ -72,9 +73,21 @@ def _fold_losses(x: np.ndarray, fs_fit, lab_pat: np.ndarray, lab_y: np.ndarray,
     return _log_loss(fs_pred, lab_y, ones), _log_loss(lr_pred, lab_y, ones)
 
 
-def refit(conn: sqlite3.Connection, labels: dict[int, int]) -> RefitResult:
+def decision_mark(conn: sqlite3.Connection) -> int:
+    """How far the decision log goes: it is only appended to, so a later state has a higher
+    mark. Read before the labels, a refit's mark is at most the log those labels came from."""
+    return int(conn.execute("SELECT coalesce(max(rowid), 0) FROM decisions").fetchone()[0])
+
+
+def refit(conn: sqlite3.Connection, labels: dict[int, int], mark: int | None = None
+          ) -> RefitResult:
     """Refit from ``labels`` (pair_id -> 1 match / 0 non-match, the fitting rule of
-    ``reviewing.labels``) and rewrite every pattern's probability and priority."""
+    ``reviewing.labels``) and rewrite every pattern's probability and priority.
+
+    ``mark`` (``decision_mark`` read before the labels): two processes refit at once (two
+    label commands, a review screen beside a merge), and the one that read its labels first
+    may finish last; it then writes nothing, so the model stays the one fitted on more.
+    """
     meta = store.get_meta(conn)
     base = FSModel.from_dict(meta["fs_model"])
     patterns, counts = _load(conn)
@@ -135,6 +148,11 @@ def refit(conn: sqlite3.Connection, labels: dict[int, int]) -> RefitResult:
     prio = queue.priority(prob, float(meta["threshold"]))
     conn.execute("BEGIN IMMEDIATE")
     try:
+        standing = store.get_meta(conn).get("refit_mark")
+        if mark is not None and standing is not None and int(standing) > mark:
+            conn.execute("ROLLBACK")
+            return RefitResult(table.model, len(lab_y), n_match, fs_loss, lr_loss,
+                               fs.iterations, len(held), superseded=True)
         conn.executemany(
             "UPDATE patterns SET weight = ?, fs_probability = ?, probability = ?, priority = ? "
             "WHERE pattern_id = ?",
@@ -149,7 +167,8 @@ def refit(conn: sqlite3.Connection, labels: dict[int, int]) -> RefitResult:
                      "ranker")
         store.set_meta(conn, fs_model=fs.to_dict(), ranker=table.model, ranker_note=note,
                        explain=table.to_dict(), audit_scores=crossed,
-                       refits=int(meta.get("refits", 0)) + 1)
+                       refits=int(meta.get("refits", 0)) + 1,
+                       **({} if mark is None else {"refit_mark": mark}))
         conn.execute("COMMIT")
     except BaseException:
         conn.execute("ROLLBACK")
