@@ -67,3 +67,20 @@ def test_sample_values_normalise_alike() -> None:
 def test_other_normalisers_and_mixed_values_take_the_value_path() -> None:
     assert apply(np.array(["2020-01-02"], dtype=object), normalise.number) is None
     assert apply(np.array(["a", 1], dtype=object), normalise.words) is None
+
+
+def _fold_by_definition(value: str) -> str:
+    """Every character of nonzero combining class dropped after NFKD, then case-folded."""
+    import unicodedata
+
+    decomposed = unicodedata.normalize("NFKD", value)
+    return "".join(ch for ch in decomposed if not unicodedata.combining(ch)).casefold()
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.one_of(st.text(max_size=12),
+                 st.text(st.sampled_from(list("aeoAZ ßøŁ\u0301\u0308\u034f\u0489\u05b0\u1dc0"
+                                              "éÅñçǅﬁ")), max_size=12)))
+def test_fold_strips_exactly_the_combining_marks(value: str) -> None:
+    # The fast removal of U+0300-U+036F (U+034F kept) must change nothing but speed.
+    assert normalise.fold(value) == _fold_by_definition(value)

@@ -23,17 +23,24 @@ _ISO = re.compile(r"^(\d{4})-(\d{1,2})-(\d{1,2})")
 _DMY = re.compile(r"^(\d{1,2})[/.\-](\d{1,2})[/.\-](\d{4})$")
 
 
+# The combining diacritical marks block but U+034F (a joiner of combining class 0): the marks
+# that accented Latin letters decompose into, each of nonzero combining class.
+_DIACRITICS = re.compile("[\u0300-\u034e\u0350-\u036f]")
+
+
 def fold(value: str) -> str:
-    """Case-fold and strip diacritics, so that 'Zoë' and 'ZOE' compare equal."""
+    """Case-fold and strip diacritics (characters of nonzero combining class after NFKD), so
+    that 'Zoë' and 'ZOE' compare equal."""
     if value.isascii():  # nothing to decompose: the common case, many times faster
         return value.lower()
-    decomposed = unicodedata.normalize("NFKD", value)
-    stripped = "".join(ch for ch in decomposed if not unicodedata.combining(ch))
-    return stripped.casefold()
+    decomposed = _DIACRITICS.sub("", unicodedata.normalize("NFKD", value))
+    if not decomposed.isascii():  # marks outside that block may remain: look at each character
+        decomposed = "".join(ch for ch in decomposed if not unicodedata.combining(ch))
+    return decomposed.casefold()
 
 
 def words(value: str) -> str | None:
-    text = _NON_WORD.sub(" ", fold(html.unescape(value))).strip()
+    text = _NON_WORD.sub(" ", fold(html.unescape(value) if "&" in value else value)).strip()
     return " ".join(text.split()) or None
 
 
