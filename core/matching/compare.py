@@ -9,6 +9,7 @@ from __future__ import annotations
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 import pandas as pd
@@ -87,9 +88,12 @@ def level_names(kind: str) -> tuple[str, ...]:
     return (*KINDS[kind].levels, MISSING)
 
 
-def _string_levels(kind: str, sim: np.ndarray, a: list, b: list) -> np.ndarray:
+def _string_levels(kind: str, sim: np.ndarray, a: list, b: list,
+                   same: np.ndarray | None = None) -> np.ndarray:
+    """``same``: which pairs hold equal values, when the caller knows it already."""
     rule = KINDS[kind]
-    exact = np.asarray(np.array(a, dtype=object) == np.array(b, dtype=object), dtype=bool)
+    exact = (np.asarray(np.array(a, dtype=object) == np.array(b, dtype=object), dtype=bool)
+             if same is None else same)
     last = len(rule.levels) - 1
     lv = np.full(len(sim), last, dtype=np.int8)
     for i, cut in reversed(list(enumerate(rule.cuts, start=1))):
@@ -185,8 +189,8 @@ def _text_similarity(kind: str, a: list, b: list, text: TextRows | None) -> np.n
     if kind != "longtext":
         return SCORERS[kind](a, b)
     if text is None:  # values without a corpus: the vectors come from these values alone
-        text = TextRows.of(a, b, np.arange(len(a)), np.arange(len(b)))
-    words = text_vectors.row_cosine(text.words.left, text.words.right, text.ia, text.ib)
+        text = TextRows.of(a, b)
+    words = text_vectors.row_cosine(text.rows, text.rows, text.ia, text.ib)
     tokens = SCORERS[kind](a, b)
     return ((words + tokens) / np.float32(2.0)).astype(np.float32)
 
@@ -195,28 +199,37 @@ def _text_similarity(kind: str, a: list, b: list, text: TextRows | None) -> np.n
 class TextRows:
     """TF-IDF rows of a field's distinct values, and which row each compared value is."""
 
-    words: text_vectors.Vectors
+    rows: Any  # scipy CSR, one L2-normalised row per distinct value
     ia: np.ndarray
     ib: np.ndarray
 
     @classmethod
-    def of(cls, a: list, b: list, ia: np.ndarray, ib: np.ndarray, spaced: bool = False
-           ) -> TextRows:
-        """``spaced``: the values are normalised words (see ``text_vectors.word_rows``)."""
-        return cls(text_vectors.vectors(a, b, "word", spaced=spaced), ia, ib)
+    def of(cls, a: list, b: list) -> TextRows:
+        """Rows for the values ``a`` and ``b`` alone, their own corpus."""
+        corpus = list(dict.fromkeys([*a, *b]))
+        at = {v: i for i, v in enumerate(corpus)}
+        return cls(text_vectors.corpus_rows(corpus, "word"),
+                   np.array([at[v] for v in a], dtype=np.int64),
+                   np.array([at[v] for v in b], dtype=np.int64))
 
 
-def compare_values(kind: str, a: np.ndarray, b: np.ndarray, text: TextRows | None = None
+def compare_values(kind: str, a: np.ndarray, b: np.ndarray, text: TextRows | None = None,
+                   codes: tuple[np.ndarray, np.ndarray] | None = None
                    ) -> tuple[np.ndarray, np.ndarray]:
     """Similarity (float32, NaN when missing) and level (int8) for aligned value arrays.
 
     ``text`` (long text only) holds the TF-IDF rows of the field's whole corpus and the row of
-    each of ``a`` and ``b``; without it the corpus is ``a`` and ``b`` themselves.
+    each of ``a`` and ``b``; without it the corpus is ``a`` and ``b`` themselves. ``codes``: each
+    value's position in one list of distinct values shared by both sides (-1 when missing), so
+    that presence and exact agreement are integer comparisons.
     """
     n = len(a)
     sim = np.full(n, np.nan, dtype=np.float32)
     lv = np.full(n, len(KINDS[kind].levels), dtype=np.int8)  # the missing level
-    present = np.asarray((a != None) & (b != None), dtype=bool)  # noqa: E711 - elementwise
+    if codes is None:
+        present = np.asarray((a != None) & (b != None), dtype=bool)  # noqa: E711 - elementwise
+    else:
+        present = (codes[0] >= 0) & (codes[1] >= 0)
     if not present.any():
         return sim, lv
     pa, pb = a[present], b[present]
@@ -226,10 +239,11 @@ def compare_values(kind: str, a: np.ndarray, b: np.ndarray, text: TextRows | Non
         s, lvl = _date(pa, pb)
     else:
         la, lb = pa.tolist(), pb.tolist()
-        rows = None if text is None else TextRows(text.words, text.ia[present],
+        rows = None if text is None else TextRows(text.rows, text.ia[present],
                                                   text.ib[present])
         s = _text_similarity(kind, la, lb, rows)
-        lvl = _string_levels(kind, s, la, lb)
+        same = None if codes is None else codes[0][present] == codes[1][present]
+        lvl = _string_levels(kind, s, la, lb, same)
         s = np.where(lvl == 0, np.float32(1.0), np.minimum(s, np.float32(0.999)))
     sim[present] = s
     lv[present] = lvl
@@ -238,28 +252,25 @@ def compare_values(kind: str, a: np.ndarray, b: np.ndarray, text: TextRows | Non
 
 @dataclass
 class Prepared:
-    """One field's values made ready once for all chunks of pairs: codes of distinct values
-    per record and, for long text, their TF-IDF rows."""
+    """One field's values made ready once for all chunks of pairs: each record's code in one
+    list of the distinct values of both sides (-1 when missing) and, for long text, the TF-IDF
+    rows of those values."""
 
     lcodes: np.ndarray
     rcodes: np.ndarray
-    lu: np.ndarray
-    ru: np.ndarray
-    text: TextRows | None
+    values: np.ndarray  # object: the distinct values, then None (what code -1 picks)
+    text: Any  # scipy CSR row per distinct value (long text), else None
 
 
 def prepare(kind: str, left_norm: np.ndarray, right_norm: np.ndarray) -> Prepared:
-    lcodes, lu = pd.factorize(pd.Series(left_norm, dtype=object), use_na_sentinel=True)
-    if right_norm is left_norm:
-        rcodes, ru = lcodes, lu
-    else:
-        rcodes, ru = pd.factorize(pd.Series(right_norm, dtype=object), use_na_sentinel=True)
-    lu_a, ru_a = np.asarray(lu, dtype=object), np.asarray(ru, dtype=object)
-    text = None
-    if kind == "longtext":
-        text = TextRows.of(lu_a.tolist(), ru_a.tolist(), np.zeros(0, np.int64),
-                           np.zeros(0, np.int64), spaced=True)
-    return Prepared(lcodes, rcodes, lu_a, ru_a, text)
+    both = left_norm if right_norm is left_norm else np.concatenate([left_norm, right_norm])
+    codes, uniques = pd.factorize(pd.Series(both, dtype=object), use_na_sentinel=True)
+    codes = codes.astype(np.int64)
+    lcodes, rcodes = codes[:len(left_norm)], codes[len(both) - len(right_norm):]
+    distinct = np.asarray(uniques, dtype=object).tolist()
+    values = np.array([*distinct, None], dtype=object)
+    text = text_vectors.corpus_rows(distinct, "word", spaced=True) if kind == "longtext" else None
+    return Prepared(lcodes, rcodes, values, text)
 
 
 def compare_field(kind: str, left_norm: np.ndarray, right_norm: np.ndarray,
@@ -272,17 +283,13 @@ def compare_field(kind: str, left_norm: np.ndarray, right_norm: np.ndarray,
     (from :func:`prepare`) saves redoing the per-record work for every chunk of pairs.
     """
     prep = prepared or prepare(kind, left_norm, right_norm)
-    pl = prep.lcodes[li].astype(np.int64)
-    pr = prep.rcodes[ri].astype(np.int64)
-    width = len(prep.ru) + 1
-    combo = (pl + 1) * width + (pr + 1)
-    uniq, inverse = np.unique(combo, return_inverse=True)
+    width = len(prep.values)  # codes + 1 run from 0 (missing) to len(values) - 1
+    combo = (prep.lcodes[li] + 1) * width + (prep.rcodes[ri] + 1)
+    inverse, uniq = pd.factorize(combo)  # hashing: several times faster than sorting here
     ul = uniq // width - 1
     ur = uniq % width - 1
-    lvals = np.array([*prep.lu, None], dtype=object)[ul]  # -1 picks the trailing None
-    rvals = np.array([*prep.ru, None], dtype=object)[ur]
     text = None
     if prep.text is not None:
-        text = TextRows(prep.text.words, np.maximum(ul, 0), np.maximum(ur, 0))
-    sim, lv = compare_values(kind, lvals, rvals, text)
-    return sim[inverse].reshape(-1), lv[inverse].reshape(-1)
+        text = TextRows(prep.text, np.maximum(ul, 0), np.maximum(ur, 0))
+    sim, lv = compare_values(kind, prep.values[ul], prep.values[ur], text, (ul, ur))
+    return sim[inverse], lv[inverse]

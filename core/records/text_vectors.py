@@ -39,15 +39,40 @@ def _char_vectorizer(max_df: float | int) -> Any:
                            dtype=np.float32, max_df=max_df)
 
 
+def _found_words(values: list[str]) -> tuple[np.ndarray, list[str], np.ndarray]:
+    """Each word found in the values: its code in the list of distinct words (in order of first
+    appearance), that list, and the value it came from."""
+    import pandas as pd
+
+    words = [WORD.findall(v.lower()) for v in values]
+    codes, terms = pd.factorize(pd.Series(list(chain.from_iterable(words)), dtype=object))
+    doc = np.repeat(np.arange(len(words), dtype=np.int64), [len(w) for w in words])
+    return codes, list(terms), doc
+
+
+def _spaced_words(values: list[str]) -> tuple[np.ndarray, list[str], np.ndarray]:
+    """:func:`_found_words` for words one space apart, split and counted by Arrow without
+    making a Python string of each word (three times faster on titles)."""
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
+    parts = pc.split_pattern(pa.array(values, type=pa.large_string()), " ")
+    flat = pc.list_flatten(parts)
+    doc = pc.list_parent_indices(parts)
+    kept = pc.not_equal(flat, "")  # str.split() finds no word in an empty value
+    encoded = pc.dictionary_encode(flat.filter(kept))
+    return (encoded.indices.to_numpy().astype(np.int64), encoded.dictionary.to_pylist(),
+            doc.filter(kept).to_numpy().astype(np.int64))
+
+
 def word_rows(corpus: list[str], max_df: float | int = 1.0, spaced: bool = False) -> Any:
     """What ``TfidfVectorizer(token_pattern=WORD, sublinear_tf=True, max_df=max_df)`` gives
     (lower case; smooth idf ln((1 + n) / (1 + df)) + 1; 1 + ln tf; unit rows), with the
     columns in another order. Raises ValueError when no term is left, as it does.
 
     ``spaced``: the values are already lower-case words one space apart (what
-    ``normalise.words`` gives), so splitting them finds the same words four times faster.
+    ``normalise.words`` gives), so Arrow splits and counts them (see :func:`_spaced_words`).
     """
-    import pandas as pd
     from scipy import sparse
 
     n = len(corpus)
@@ -55,12 +80,10 @@ def word_rows(corpus: list[str], max_df: float | int = 1.0, spaced: bool = False
     cells_of = []
     for start in range(0, n, CHUNK):  # a chunk's words at once, never the whole corpus's
         part = corpus[start:start + CHUNK]
-        words = [v.split() for v in part] if spaced else [WORD.findall(v.lower()) for v in part]
-        codes, terms = pd.factorize(pd.Series(list(chain.from_iterable(words)), dtype=object))
+        codes, terms, doc = (_spaced_words(part) if spaced else _found_words(part))
         ids = np.array([vocabulary.setdefault(t, len(vocabulary)) for t in terms],
                        dtype=np.int64)
-        doc = np.repeat(np.arange(start, start + len(words), dtype=np.int64),
-                        [len(w) for w in words])
+        doc += start
         # a value's words all lie in its chunk: the chunk's cells sorted are its CSR rows
         cells, times = np.unique(doc << 32 | ids[codes], return_counts=True)
         cells_of.append(((cells >> 32).astype(np.int32), (cells & 0xFFFFFFFF).astype(np.int32),
@@ -85,23 +108,32 @@ def word_rows(corpus: list[str], max_df: float | int = 1.0, spaced: bool = False
     return sparse.csr_matrix((val, col, indptr), shape=(n, int(kept.sum())))
 
 
-def vectors(left: list[str], right: list[str], analyzer: str, max_share: float = 1.0,
-            spaced: bool = False) -> Vectors:
-    """TF-IDF rows for each side's distinct values ("word" or "char" analyzer); terms held by
-    more than ``max_share`` of the values are left out. ``spaced`` as for :func:`word_rows`."""
+def corpus_rows(corpus: list[str], analyzer: str, max_share: float = 1.0,
+                spaced: bool = False) -> Any:
+    """TF-IDF rows of distinct values, row ``i`` for ``corpus[i]`` ("word" or "char" analyzer);
+    terms held by more than ``max_share`` of the values are left out. ``spaced`` as for
+    :func:`word_rows`."""
     from scipy import sparse
 
-    corpus = list(dict.fromkeys([*left, *right]))
     if not corpus:
-        empty = sparse.csr_matrix((0, 1), dtype=np.float32)
-        return Vectors(empty, empty)
+        return sparse.csr_matrix((0, 1), dtype=np.float32)
     try:
         # A small corpus keeps every term: in ten values, each is held by a tenth of them.
         max_df = 1.0 if max_share >= 1.0 else max(10, int(max_share * len(corpus)))
-        rows = (word_rows(corpus, max_df, spaced) if analyzer == "word" else
+        return (word_rows(corpus, max_df, spaced) if analyzer == "word" else
                 _char_vectorizer(max_df).fit_transform(corpus).tocsr())
     except ValueError:  # nothing but stop characters: no vocabulary at all
-        rows = sparse.csr_matrix((len(corpus), 1), dtype=np.float32)
+        return sparse.csr_matrix((len(corpus), 1), dtype=np.float32)
+
+
+def vectors(left: list[str], right: list[str], analyzer: str, max_share: float = 1.0,
+            spaced: bool = False) -> Vectors:
+    """TF-IDF rows for each side's distinct values over one shared vocabulary (see
+    :func:`corpus_rows`)."""
+    corpus = list(dict.fromkeys([*left, *right]))
+    rows = corpus_rows(corpus, analyzer, max_share, spaced)
+    if not corpus:
+        return Vectors(rows, rows)
     at = {v: i for i, v in enumerate(corpus)}
     return Vectors(rows[[at[v] for v in left]], rows[[at[v] for v in right]])
 
