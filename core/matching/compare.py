@@ -88,22 +88,37 @@ def level_names(kind: str) -> tuple[str, ...]:
     return (*KINDS[kind].levels, MISSING)
 
 
-def _string_levels(kind: str, sim: np.ndarray, a: list, b: list,
-                   same: np.ndarray | None = None) -> np.ndarray:
-    """``same``: which pairs hold equal values, when the caller knows it already."""
+def _string_levels(kind: str, sim: np.ndarray, a: list, b: list) -> np.ndarray:
+    """Levels of pairs of unequal values (equal ones are level 0 without being scored)."""
     rule = KINDS[kind]
-    exact = (np.asarray(np.array(a, dtype=object) == np.array(b, dtype=object), dtype=bool)
-             if same is None else same)
-    last = len(rule.levels) - 1
-    lv = np.full(len(sim), last, dtype=np.int8)
+    lv = np.full(len(sim), len(rule.levels) - 1, dtype=np.int8)
     for i, cut in reversed(list(enumerate(rule.cuts, start=1))):
         lv[sim >= cut] = i
     if kind == "code":
         dist = (process.cpdist(a, b, scorer=OSA.distance, workers=_THREADS["workers"])
                 if a else np.zeros(0))
         lv[dist <= 1] = 1
-    lv[exact] = 0
     return lv
+
+
+def _compare_strings(kind: str, a: np.ndarray, b: np.ndarray, text: TextRows | None,
+                     same: np.ndarray | None) -> tuple[np.ndarray, np.ndarray]:
+    """Similarity and level of present string values. Equal values are level 0 at 1.0 without
+    being scored: a table's exact duplicates cost nothing."""
+    if kind == "longtext" and text is None:  # the corpus is every value, equal ones included
+        text = TextRows.of(a.tolist(), b.tolist())
+    if same is None:
+        same = np.asarray(a == b, dtype=bool)
+    sim = np.ones(len(a), dtype=np.float32)
+    lv = np.zeros(len(a), dtype=np.int8)
+    d = np.flatnonzero(~same)
+    if len(d):
+        la, lb = a[d].tolist(), b[d].tolist()
+        rows = None if text is None else TextRows(text.rows, text.ia[d], text.ib[d])
+        sd = _text_similarity(kind, la, lb, rows)
+        lv[d] = _string_levels(kind, sd, la, lb)
+        sim[d] = np.minimum(sd, np.float32(0.999))  # unequal values are never shown as 1.00
+    return sim, lv
 
 
 def _number(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -238,13 +253,10 @@ def compare_values(kind: str, a: np.ndarray, b: np.ndarray, text: TextRows | Non
     elif kind == "date":
         s, lvl = _date(pa, pb)
     else:
-        la, lb = pa.tolist(), pb.tolist()
         rows = None if text is None else TextRows(text.rows, text.ia[present],
                                                   text.ib[present])
-        s = _text_similarity(kind, la, lb, rows)
         same = None if codes is None else codes[0][present] == codes[1][present]
-        lvl = _string_levels(kind, s, la, lb, same)
-        s = np.where(lvl == 0, np.float32(1.0), np.minimum(s, np.float32(0.999)))
+        s, lvl = _compare_strings(kind, pa, pb, rows, same)
     sim[present] = s
     lv[present] = lvl
     return sim, lv
