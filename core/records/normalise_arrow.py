@@ -20,7 +20,6 @@ from . import normalise
 # Python's \s over ASCII (str.isspace: tab to carriage return, the four separators, space)
 _ASCII_BLANK = "\t\n\x0b\x0c\r\x1c\x1d\x1e\x1f "
 _ASCII_SPACE = r"\t\n\x0b\x0c\r\x1c-\x1f "  # the same characters, as a regular expression
-_NOT_WORD = r"[^0-9a-z_]+"  # after lower case: the ASCII characters \w leaves out
 _SEPARATORS = rf"[{_ASCII_SPACE}\-./()_]+"
 _PHONE = r"^\+?[0-9]{7,}$"
 
@@ -37,10 +36,28 @@ def _none_if_empty(values: pa.Array) -> np.ndarray:
         zero_copy_only=False)
 
 
+# Byte by byte, ASCII letters to lower case, digits and '_' kept, the rest (what \w leaves out)
+# to a space: one translation of the array's whole data buffer, lengths and offsets unchanged.
+_WORD_BYTES = bytes(b + 32 if 65 <= b <= 90 else
+                    b if 48 <= b <= 57 or 97 <= b <= 122 or b == 95 else 32 for b in range(256))
+
+
 def _words(values: pa.Array) -> pa.Array:
-    """:func:`normalise.words` with "" where nothing is left."""
-    spaced = pc.replace_substring_regex(pc.ascii_lower(values), _NOT_WORD, " ")
-    return pc.utf8_trim(spaced, " ")
+    """:func:`normalise.words` of ASCII values (none missing), "" where nothing is left: words one
+    space apart (twice as fast as replacing a pattern, for titles)."""
+    validity, offsets, data = values.buffers()
+    text = b"" if data is None else data.to_pybytes().translate(_WORD_BYTES)
+    spaced = pa.LargeStringArray.from_buffers(len(values), offsets, pa.py_buffer(text),
+                                              validity, values.null_count, values.offset)
+    parts = pc.split_pattern(spaced, " ")
+    flat = pc.list_flatten(parts)
+    kept = pc.not_equal(flat, "")  # runs of spaces and the ends give empty pieces
+    counts = np.bincount(pc.list_parent_indices(parts).filter(kept).to_numpy(),
+                         minlength=len(values))
+    ends = np.zeros(len(values) + 1, dtype=np.int64)
+    np.cumsum(counts, out=ends[1:])
+    words = pa.LargeListArray.from_arrays(pa.array(ends), flat.filter(kept))
+    return pc.binary_join(words, pa.scalar(" ", pa.large_string()))
 
 
 def words_many(values: pa.Array) -> np.ndarray:
