@@ -24,6 +24,29 @@ def test_every_command_has_help_with_an_example(capsys) -> None:
         assert "example:" in out and f"docket {name}" in out, name
 
 
+def test_help_fits_an_80_column_terminal_and_wraps_at_word_ends(
+        capsys, monkeypatch: pytest.MonkeyPatch) -> None:
+    # descriptions were printed as written, one paragraph a line, and options wrapped at 100
+    # columns, so an 80-column terminal cut words in two ("a ran|ge of thresholds")
+    monkeypatch.setenv("COLUMNS", "80")
+    parser = build_parser()
+    sub = next(a for a in parser._actions if a.dest == "command")
+    for name in ["", *sub.choices]:
+        with pytest.raises(SystemExit):
+            main([name, "--help"] if name else ["--help"])
+        lines = capsys.readouterr().out.splitlines()
+        example = lines.index("example:") if "example:" in lines else len(lines)
+        usage_end = next(i for i, line in enumerate(lines) if not line.strip())
+        wide = [line for line in lines[usage_end:example] if len(line) > 80]
+        assert wide == [], name  # (usage's choices and the example command stay whole)
+        if name == "evaluate":
+            assert "a range of thresholds" in " ".join(line.strip() for line in lines)
+    monkeypatch.setenv("COLUMNS", "200")
+    with pytest.raises(SystemExit):
+        main(["evaluate", "--help"])
+    assert max(len(line) for line in capsys.readouterr().out.splitlines()) <= 100
+
+
 def test_link_project_from_start_to_export(tiny_tables, tmp_path: Path, capsys) -> None:
     left, right = tiny_tables
     project = tmp_path / "t.docket"

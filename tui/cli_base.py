@@ -8,7 +8,9 @@ from __future__ import annotations
 import argparse
 import getpass
 import os
+import shutil
 import sys
+import textwrap
 from collections.abc import Callable
 from typing import Any
 
@@ -16,8 +18,27 @@ from .figures import many
 
 
 class Formatter(argparse.RawDescriptionHelpFormatter):
+    """Help at most 100 columns wide, and no wider than the terminal.
+
+    Descriptions are written one paragraph to a line; each is wrapped at word ends here (a
+    terminal of 80 columns cut them mid-word), while indented lines, such as a command to
+    type, stay as written.
+    """
+
     def __init__(self, prog: str) -> None:
-        super().__init__(prog, max_help_position=32, width=100)
+        columns = shutil.get_terminal_size((102, 24)).columns  # piped: as wide as it may be
+        super().__init__(prog, max_help_position=32, width=max(40, min(100, columns - 2)))
+
+    def _fill_text(self, text: str, width: int, indent: str) -> str:
+        out = []
+        for line in text.splitlines():
+            if not line.strip() or line[:1].isspace():
+                out.append(indent + line)
+            else:
+                out.append(textwrap.fill(line, width, initial_indent=indent,
+                                         subsequent_indent=indent, break_long_words=False,
+                                         break_on_hyphens=False))
+        return "\n".join(out) + ("\n" if text.endswith("\n") else "")
 
 
 def command(sub: argparse._SubParsersAction, name: str, summary: str, description: str,
