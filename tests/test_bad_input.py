@@ -53,6 +53,9 @@ CASES = {
     "one record": (lambda d: write(d / "one.csv", "id,name\n1,a\n"),
                    ["one.csv", "one record, so no pair", "--right"]),
     "empty file": (lambda d: write(d / "blank.csv", ""), ["blank.csv", "empty"]),
+    "no value to compare": (lambda d: write(d / "hollow.csv", "id,email,phone\n1,,\n2, ,\n"),
+                            ["hollow.csv", "no column to compare holds values",
+                             "email, phone hold none"]),
 }
 
 

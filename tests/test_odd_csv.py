@@ -1,5 +1,6 @@
 """CSV files as spreadsheets and other programs write them: any line end, a byte-order mark,
-values across lines, names that clash only in letter case, blank header cells, long values.
+values across lines, names that clash only in letter case, blank header cells, long values,
+columns that hold no value.
 Each is read as meant or refused in one line naming the file and what to change."""
 
 from __future__ import annotations
@@ -153,3 +154,26 @@ def test_a_value_holding_a_nul_is_read_whole(tmp_path: Path, encoding: str,
     with _build(tmp_path, left, capsys) as project:
         assert project.record("left", "4")["name"] == "Ivo\x00Bren"
         assert project.record("left", "3")["name"] == "Ivo Brenn"
+
+
+def test_a_column_without_values_is_left_out_and_said(tmp_path: Path, capsys) -> None:
+    # it was compared: every pair 'missing' there, yet status weighed its 'exact' level
+    # (x7.7) and the screens showed it on every pair
+    (tmp_path / "l.csv").write_text("id,name,email,fax\n1,Ana Berg,,\n2,Bo Lind,,\n"
+                                    "3,Cy Dahl,,\n", encoding="utf-8")
+    (tmp_path / "r.csv").write_text("id,name,email,fax\n1,Ana Berg,a@b.no,\n2,Bo Lindh,,\n"
+                                    "3,Cy Dal,,\n", encoding="utf-8")
+    project = tmp_path / "p.docket"
+    assert main(["new", str(project), "--left", str(tmp_path / "l.csv"), "--right",
+                 str(tmp_path / "r.csv"), "--block", "*"]) == 0
+    out, err = capsys.readouterr()
+    assert "fields compared: name (name)\n" in out
+    assert err.splitlines() == [
+        f"docket: warning: column 'email' holds no value in {tmp_path / 'l.csv'}; not "
+        "compared (give --field email:KIND to compare it anyway)",
+        f"docket: warning: column 'fax' holds no value in {tmp_path / 'l.csv'} or in "
+        f"{tmp_path / 'r.csv'}; not compared (give --field fax:KIND to compare it anyway)"]
+    assert main(["new", str(tmp_path / "q.docket"), "--left", str(tmp_path / "l.csv"),
+                 "--right", str(tmp_path / "r.csv"), "--block", "*",
+                 "--field", "email:code"]) == 0  # asked for: compared
+    assert "fields compared: name (name), email (code)" in capsys.readouterr().out

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import re
+import warnings
 
 import pandas as pd
 
@@ -109,16 +110,48 @@ def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: st
             raise DocketError(f"--field {col}: no compared column of that name; compared "
                               f"columns are {', '.join(p[0] for p in pairs) or '(none)'}")
     fields = []
+    left_out: dict[str, str] = {}  # column -> why it holds nothing to compare
     for lcol, rcol in pairs:
         kind = kinds.get(lcol)
         if kind == "skip":
             continue
         if kind is None:
+            empty = _without_values(left, right, lcol, rcol, left_name, right_name)
+            if empty:
+                # every pair would be 'missing' there: a field of no evidence, whose levels
+                # the model would still weigh and the screens show on every pair
+                left_out[lcol] = empty
+                continue
             both = left[lcol] if right is None else pd.concat([left[lcol], right_frame[rcol]])
             kind = detect_kind(lcol, both)
         fields.append(FieldSpec(name=lcol, left_column=lcol, right_column=rcol, kind=kind))
     if not fields:
         where = left_name if right is None else f"{left_name} and {right_name}"
+        if left_out:
+            raise DocketError(f"{where}: no column to compare holds values ("
+                              f"{', '.join(left_out)} {'holds' if len(left_out) == 1 else 'hold'}"
+                              " none); give tables with values in the columns to compare")
         raise DocketError(f"{where}: no columns in common to compare; "
                           "name them alike or pair them with --map LEFT=RIGHT")
+    for col, why in left_out.items():
+        warnings.warn(f"{why}; not compared (give --field {col}:KIND to compare it anyway)",
+                      stacklevel=2)
     return fields
+
+
+def _has_values(values: pd.Series) -> bool:
+    present = values.dropna()
+    return bool(len(present)) and bool(present.astype(str).str.strip().ne("").any())
+
+
+def _without_values(left: pd.DataFrame, right: pd.DataFrame | None, lcol: str, rcol: str,
+                    left_name: str, right_name: str | None) -> str | None:
+    """Why a column cannot be compared for want of values, or None when both sides have some."""
+    if right is None:
+        return None if _has_values(left[lcol]) else f"{left_name}: column '{lcol}' holds no value"
+    sides = ((left, lcol, left_name), (right, rcol, right_name or "the right table"))
+    missing = [name if col == lcol else f"{name} (as '{col}')" for frame, col, name in sides
+               if not _has_values(frame[col])]
+    if not missing:
+        return None
+    return f"column '{lcol}' holds no value in {' or in '.join(missing)}"
