@@ -94,3 +94,14 @@ async def test_other_candidates_can_be_opened(review_sample, review_app):
         assert opened.pair_id != card.pair_id
         assert card.left_id in (opened.left_id, opened.right_id) or \
             card.right_id in (opened.left_id, opened.right_id)
+
+
+@pilot_test
+async def test_a_key_with_nothing_to_do_shows_its_toast_once(review_sample, review_app):
+    # Pressed again and again, ']' at the newest pair stacked one toast per press.
+    app = review_app(review_sample)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await press(pilot, *["right_square_bracket"] * 5)
+        shown = [n.message for n in app._notifications]
+        assert shown == ["You are at the newest pair."]

@@ -14,7 +14,6 @@ import time
 from collections.abc import Callable, Sequence
 from pathlib import Path
 
-from textual.app import App
 from textual.binding import Binding
 from textual.driver import Driver
 
@@ -27,11 +26,12 @@ from .keymap import LoadedKeymap, load_keymap
 from .masking import Mask, expand_mask
 from .screen_exit import clearing
 from .screens.review import ReviewScreen, binding_ids
+from .toasts import OneToastEach
 
 Clock = Callable[[], float]
 
 
-class ReviewApp(App[None]):
+class ReviewApp(OneToastEach):
     """One reviewer, one project, one pair at a time."""
 
     CSS_PATH = "review.tcss"

@@ -18,7 +18,6 @@ from contextlib import contextmanager
 from pathlib import Path, PurePath
 from typing import ClassVar, Literal
 
-from textual.app import App
 from textual.binding import Binding
 from textual.driver import Driver
 from textual.screen import Screen
@@ -28,6 +27,7 @@ from docket.core.project import Project
 from .keymap import LoadedKeymap, load_keymap
 from .masking import Mask, expand_mask
 from .screen_exit import clearing
+from .toasts import OneToastEach
 
 Clock = Callable[[], float]
 Start = Literal["adjudicate", "agreement", "quality", "matchers"]
@@ -50,7 +50,7 @@ def binding_ids() -> list[str]:
     return list(dict.fromkeys(ids))
 
 
-class TeamApp(App[None]):
+class TeamApp(OneToastEach):
     """Adjudication, agreement and quality for one project; ``start`` says which comes first."""
 
     CSS_PATH: ClassVar[list[str | PurePath]] = ["review.tcss", "screens.tcss"]
