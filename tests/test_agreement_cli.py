@@ -97,3 +97,26 @@ def test_holds_are_left_out_by_default_and_counted_on_request(
     (pair,) = json.loads(capsys.readouterr().out)["reviewer_pairs"]
     assert pair["n"] == 51 and pair["confusion"]["categories"] == ["match", "non-match", "hold"]
     assert pair["confusion"]["table"] == [[20, 5, 0], [10, 15, 0], [1, 0, 0]]
+
+
+def test_too_few_pairs_for_fleiss_kappa_carries_no_band(sample_project: Path, tmp_path: Path,
+                                                        capsys) -> None:
+    # "Fleiss' kappa too few pairs to say (n 6; needs 10) (Poor)": a band the count cannot carry
+    from docket.core import Project
+    from docket.core.results import AgreementReport
+    from docket.tui.screens.agreement_text import overall_text
+    for name, label in (("ana", "match"), ("ben", "non-match")):
+        source = tmp_path / f"{name}.csv"
+        source.write_text("pair_id,label\n" + "".join(f"{p},{label}\n" for p in range(1, 7)),
+                          encoding="utf-8")
+        assert run(["label", str(sample_project), "--reviewer", name, "--from", str(source)]) == 0
+    capsys.readouterr()
+    assert run(["agreement", str(sample_project)]) == 0
+    (line,) = [x for x in capsys.readouterr().out.splitlines() if "Fleiss' kappa" in x]
+    assert line == ("  Fleiss' kappa too few pairs to say (n 6; needs 10) on pairs with 2 "
+                    "ratings each")
+    with Project.open(sample_project) as project:
+        report = project.agreement()
+    assert isinstance(report, AgreementReport)
+    shown = overall_text(report, {}).plain
+    assert "needs 10), 2 ratings each" in shown and "(Poor)" not in shown

@@ -7,7 +7,7 @@ from typing import Any
 
 from docket.core.results import AgreementReport
 
-from .figures import TOO_FEW, counted, interval, many, number, percent
+from .figures import TOO_FEW, counted, counted_band, interval, many, number, percent
 
 
 def _pair_lines(r: dict[str, Any], floor: int, out: list[str]) -> None:
@@ -77,9 +77,9 @@ def agreement_lines(report: AgreementReport) -> list[str]:
     o = report.overall
     out.append("\nall reviewers")
     if o["fleiss_units"]:
-        fleiss = counted(o["fleiss_kappa"], o["fleiss_low"], o["fleiss_high"],
-                         o["fleiss_units"], floor)
-        out.append(f"  Fleiss' kappa {fleiss} ({o['fleiss_band']}) on pairs with "
+        fleiss = counted_band(o["fleiss_kappa"], o["fleiss_low"], o["fleiss_high"],
+                              o["fleiss_units"], floor, o["fleiss_band"])
+        out.append(f"  Fleiss' kappa {fleiss} on pairs with "
                    f"{o['fleiss_raters']} ratings each")
     else:
         out.append("  Fleiss' kappa — (no pair has two ratings yet)")

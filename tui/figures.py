@@ -48,6 +48,14 @@ def counted(value: float | None, low: float | None, high: float | None, n: int,
     return f"{interval(value, low, high, digits)} (n {n:,})"
 
 
+def counted_band(value: float | None, low: float | None, high: float | None, n: int,
+                 floor: int, band: str) -> str:
+    """``counted`` with its band beside it, but none beside "too few pairs to say": a band
+    there ("(Poor)") would claim what the count cannot carry."""
+    text = counted(value, low, high, n, floor)
+    return text if n < floor else f"{text} ({band})"
+
+
 def bounds(b: Mapping[str, Any] | None, digits: int = 3) -> str:
     """Hold bounds: the interval from all held pairs wrong to all of them right."""
     if not b or b.get("low") is None:

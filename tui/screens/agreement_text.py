@@ -13,7 +13,7 @@ from docket.core.results import AgreementReport
 
 from .. import literal
 from ..diff import PLAIN, Palette
-from ..figures import TOO_FEW, counted, interval, many, number, percent
+from ..figures import TOO_FEW, counted, counted_band, interval, many, number, percent
 
 NAME_WIDTH = 18
 
@@ -73,9 +73,9 @@ def overall_text(report: AgreementReport, shown: dict[str, str],
     text = Text("all reviewers  ", p.muted)
     floor = report.min_pairs
     if o["fleiss_units"]:
-        fleiss = counted(o["fleiss_kappa"], o["fleiss_low"], o["fleiss_high"],
-                         o["fleiss_units"], floor)
-        text.append(f"Fleiss' kappa {fleiss} ({o['fleiss_band']}), {o['fleiss_raters']} "
+        fleiss = counted_band(o["fleiss_kappa"], o["fleiss_low"], o["fleiss_high"],
+                              o["fleiss_units"], floor, o["fleiss_band"])
+        text.append(f"Fleiss' kappa {fleiss}, {o['fleiss_raters']} "
                     "ratings each")
     else:
         text.append("Fleiss' kappa — (no pair has two ratings yet)")
