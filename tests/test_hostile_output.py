@@ -132,3 +132,19 @@ def test_a_newline_in_a_name_or_id_forges_no_line(hostile: Path,
     assert main(["next", str(hostile), "--reviewer", "new", "-n", "50"]) == 0
     out = capsys.readouterr().out
     assert all(line.lstrip()[:1].isdigit() for line in out.splitlines()[1:]), out
+
+
+def test_parquet_is_not_written_to_a_terminal(hostile: Path, capfdbinary,
+                                              monkeypatch: pytest.MonkeyPatch) -> None:
+    # Parquet on standard output went to the terminal as raw bytes, record values in it as
+    # they are: the ids' OSC 52 and screen clear reached the terminal
+    assert main(["export", str(hostile), "--format", "parquet", "-o", "-"]) == 0
+    piped = capfdbinary.readouterr().out
+    assert piped.startswith(b"PAR1") and OSC52.encode() in piped  # a pipe gets the exact file
+    monkeypatch.setattr("sys.stdout.isatty", lambda: True, raising=False)
+    assert main(["export", str(hostile), "--format", "parquet", "-o", "-"]) == 2
+    out = capfdbinary.readouterr()
+    assert out.out == b""
+    assert out.err.decode().splitlines() == [
+        "docket: --format parquet -o -: Parquet is binary, not for a terminal; write it to a "
+        "file (-o FILE.parquet) or pipe it"]

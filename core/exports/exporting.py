@@ -119,6 +119,9 @@ def write_frame(frame: pd.DataFrame, target: str, fmt: str | None = None,
     kind = output_format(target, fmt)
     if target == "-":
         if kind == "parquet":
+            if sys.stdout.isatty():  # binary, record values in it raw: a terminal would act
+                raise DocketError("--format parquet -o -: Parquet is binary, not for a "
+                                  "terminal; write it to a file (-o FILE.parquet) or pipe it")
             buf = io.BytesIO()
             write_parquet(frame, buf)
             to_stdout(buf.getvalue())
