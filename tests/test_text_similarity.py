@@ -92,7 +92,7 @@ def test_word_best_match_is_symmetric_monge_elkan_with_jaro_winkler() -> None:
     # of the other; made symmetric by averaging both directions. Inner measure from jellyfish.
     import jellyfish
 
-    from docket.core.matching.compare import word_best_match
+    from docket.core.matching.word_match import word_best_match
 
     def reference(a: str, b: str) -> float:
         wa, wb = a.split(), b.split()

@@ -17,6 +17,7 @@ from rapidfuzz import fuzz, process
 from rapidfuzz.distance import OSA, JaroWinkler, Levenshtein
 
 from ..records import text_vectors
+from . import word_match
 
 MISSING = "missing"
 
@@ -88,25 +89,33 @@ def level_names(kind: str) -> tuple[str, ...]:
     return (*KINDS[kind].levels, MISSING)
 
 
-def _string_levels(kind: str, sim: np.ndarray, a: list, b: list) -> np.ndarray:
-    """Levels of pairs of unequal values (equal ones are level 0 without being scored)."""
+def _string_levels(kind: str, sim: np.ndarray, dist: np.ndarray | None) -> np.ndarray:
+    """Levels of pairs of unequal values (equal ones are level 0 without being scored);
+    ``dist``: the edit distance of codes."""
     rule = KINDS[kind]
     lv = np.full(len(sim), len(rule.levels) - 1, dtype=np.int8)
     for i, cut in reversed(list(enumerate(rule.cuts, start=1))):
         lv[sim >= cut] = i
-    if kind == "code":
-        dist = (process.cpdist(a, b, scorer=OSA.distance, workers=_THREADS["workers"])
-                if a else np.zeros(0))
+    if dist is not None:
         lv[dist <= 1] = 1
     return lv
 
 
-def _compare_strings(kind: str, a: np.ndarray, b: np.ndarray, text: TextRows | None,
+def _code_similarity(a: list, b: list) -> tuple[np.ndarray, np.ndarray]:
+    """OSA distance and normalised similarity (1 - distance / longer length, as rapidfuzz's
+    ``normalized_similarity`` works it out) from one pass of rapidfuzz instead of two."""
+    dist = process.cpdist(a, b, scorer=OSA.distance, workers=_THREADS["workers"])
+    longer = np.maximum(np.fromiter(map(len, a), np.int64, len(a)),
+                        np.fromiter(map(len, b), np.int64, len(b)))
+    return (1.0 - dist / np.maximum(longer, 1)).astype(np.float32), dist
+
+
+def _compare_strings(kind: str, a: np.ndarray, b: np.ndarray, extra: Indexed | None,
                      same: np.ndarray | None) -> tuple[np.ndarray, np.ndarray]:
     """Similarity and level of present string values. Equal values are level 0 at 1.0 without
     being scored: a table's exact duplicates cost nothing."""
-    if kind == "longtext" and text is None:  # the corpus is every value, equal ones included
-        text = TextRows.of(a.tolist(), b.tolist())
+    if extra is None and kind in PER_VALUE:  # the corpus is every value, equal ones included
+        extra = Indexed.of(kind, a.tolist(), b.tolist())
     if same is None:
         same = np.asarray(a == b, dtype=bool)
     sim = np.ones(len(a), dtype=np.float32)
@@ -114,9 +123,12 @@ def _compare_strings(kind: str, a: np.ndarray, b: np.ndarray, text: TextRows | N
     d = np.flatnonzero(~same)
     if len(d):
         la, lb = a[d].tolist(), b[d].tolist()
-        rows = None if text is None else TextRows(text.rows, text.ia[d], text.ib[d])
-        sd = _text_similarity(kind, la, lb, rows)
-        lv[d] = _string_levels(kind, sd, la, lb)
+        dist = None
+        if kind == "code":
+            sd, dist = _code_similarity(la, lb)
+        else:
+            sd = _text_similarity(kind, la, lb, None if extra is None else extra.take(d))
+        lv[d] = _string_levels(kind, sd, dist)
         sim[d] = np.minimum(sd, np.float32(0.999))  # unequal values are never shown as 1.00
     return sim, lv
 
@@ -159,82 +171,62 @@ def _date(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return sim, lv
 
 
-def word_best_match(a: list, b: list) -> np.ndarray:
-    """Symmetric Monge–Elkan over words with Jaro–Winkler inside: each word of one name scored
-    by its best counterpart in the other, averaged, then both directions averaged.
-
-    Sorting the words makes 'Nowak, Kasia' equal 'Kasia Nowak', but one typo in a first letter
-    can move a word to the other end ('Alan Blake' and 'Clan Blake' sort differently), which
-    costs whole-string Jaro–Winkler a lot; word by word it costs one letter of one word. All
-    word pairs go through rapidfuzz in one call."""
-    sa = [x.split() for x in a]
-    sb = [x.split() for x in b]
-    na = np.fromiter((len(x) for x in sa), np.int64, len(sa))
-    nb = np.fromiter((len(x) for x in sb), np.int64, len(sb))
-    cells = na * nb
-    wa = [w for x, y in zip(sa, sb, strict=True) for w in x for _ in y]
-    wb = [w for x, y in zip(sa, sb, strict=True) for _ in x for w in y]
-    sim = process.cpdist(wa, wb, scorer=JaroWinkler.normalized_similarity,
-                         workers=_THREADS["workers"], dtype=np.float32)
-    if not len(a):
-        return np.zeros(0, dtype=np.float32)
-    # Pair i's cells are its na x nb grid, row after row, from offset[i] on.
-    offset = np.concatenate([[0], np.cumsum(cells)[:-1]])
-    owner = np.repeat(np.arange(len(a)), cells)
-    local = np.arange(len(sim)) - offset[owner]
-    by_column = np.empty_like(sim)
-    by_column[offset[owner] + (local % nb[owner]) * na[owner] + local // nb[owner]] = sim
-    return (_mean_of_best(sim, na, nb) + _mean_of_best(by_column, nb, na)) / np.float32(2.0)
-
-
-def _mean_of_best(grid: np.ndarray, rows: np.ndarray, width: np.ndarray) -> np.ndarray:
-    """Per pair, the mean over its ``rows`` of each row's maximum (rows laid end to end)."""
-    row_len = np.repeat(width, rows)
-    best = np.maximum.reduceat(grid, np.concatenate([[0], np.cumsum(row_len)[:-1]]))
-    per_pair = np.add.reduceat(best, np.concatenate([[0], np.cumsum(rows)[:-1]]))
-    return (per_pair / rows).astype(np.float32)
-
-
-def _text_similarity(kind: str, a: list, b: list, text: TextRows | None) -> np.ndarray:
+def _text_similarity(kind: str, a: list, b: list, extra: Indexed | None) -> np.ndarray:
     """Long text: the mean of TF-IDF cosine over words and the token set ratio, so that rare
     shared words weigh more than common ones and a typo costs only its word. Names: the better
     of Jaro–Winkler on the sorted words and the word-by-word best match."""
-    if kind == "name":
-        return np.maximum(SCORERS[kind](a, b), word_best_match(a, b)).astype(np.float32)
-    if kind != "longtext":
+    if extra is None:
         return SCORERS[kind](a, b)
-    if text is None:  # values without a corpus: the vectors come from these values alone
-        text = TextRows.of(a, b)
-    words = text_vectors.row_cosine(text.rows, text.rows, text.ia, text.ib)
+    if kind == "name":
+        words = word_match.best_match(extra.data, extra.ia, extra.ib, _THREADS["workers"])
+        return np.maximum(SCORERS[kind](a, b), words).astype(np.float32)
+    cosine = text_vectors.row_cosine(extra.data, extra.data, extra.ia, extra.ib)
     tokens = SCORERS[kind](a, b)
-    return ((words + tokens) / np.float32(2.0)).astype(np.float32)
+    return ((cosine + tokens) / np.float32(2.0)).astype(np.float32)
+
+
+def per_value(kind: str, distinct: list, spaced: bool = False) -> Any:
+    """What a kind works out once per distinct value: long text its TF-IDF row, a name its
+    words; None for other kinds. ``spaced``: the values are normalised (words one space apart).
+    """
+    if kind == "longtext":
+        return text_vectors.corpus_rows(distinct, "word", spaced=spaced)
+    if kind == "name":
+        return word_match.name_words(distinct, spaced=spaced)
+    return None
+
+
+PER_VALUE = ("longtext", "name")
 
 
 @dataclass
-class TextRows:
-    """TF-IDF rows of a field's distinct values, and which row each compared value is."""
+class Indexed:
+    """A field's :func:`per_value` data, and which distinct value each compared value is."""
 
-    rows: Any  # scipy CSR, one L2-normalised row per distinct value
+    data: Any
     ia: np.ndarray
     ib: np.ndarray
 
+    def take(self, ix: np.ndarray) -> Indexed:
+        return Indexed(self.data, self.ia[ix], self.ib[ix])
+
     @classmethod
-    def of(cls, a: list, b: list) -> TextRows:
-        """Rows for the values ``a`` and ``b`` alone, their own corpus."""
+    def of(cls, kind: str, a: list, b: list) -> Indexed:
+        """The data of the values ``a`` and ``b`` alone, their own corpus."""
         corpus = list(dict.fromkeys([*a, *b]))
         at = {v: i for i, v in enumerate(corpus)}
-        return cls(text_vectors.corpus_rows(corpus, "word"),
-                   np.array([at[v] for v in a], dtype=np.int64),
+        return cls(per_value(kind, corpus), np.array([at[v] for v in a], dtype=np.int64),
                    np.array([at[v] for v in b], dtype=np.int64))
 
 
-def compare_values(kind: str, a: np.ndarray, b: np.ndarray, text: TextRows | None = None,
+def compare_values(kind: str, a: np.ndarray, b: np.ndarray, extra: Indexed | None = None,
                    codes: tuple[np.ndarray, np.ndarray] | None = None
                    ) -> tuple[np.ndarray, np.ndarray]:
     """Similarity (float32, NaN when missing) and level (int8) for aligned value arrays.
 
-    ``text`` (long text only) holds the TF-IDF rows of the field's whole corpus and the row of
-    each of ``a`` and ``b``; without it the corpus is ``a`` and ``b`` themselves. ``codes``: each
+    ``extra`` (long text and names) holds the :func:`per_value` data of the field's distinct
+    values and the entry of each of ``a`` and ``b``; without it the corpus is ``a`` and ``b``
+    themselves. ``codes``: each
     value's position in one list of distinct values shared by both sides (-1 when missing), so
     that presence and exact agreement are integer comparisons.
     """
@@ -253,10 +245,9 @@ def compare_values(kind: str, a: np.ndarray, b: np.ndarray, text: TextRows | Non
     elif kind == "date":
         s, lvl = _date(pa, pb)
     else:
-        rows = None if text is None else TextRows(text.rows, text.ia[present],
-                                                  text.ib[present])
         same = None if codes is None else codes[0][present] == codes[1][present]
-        s, lvl = _compare_strings(kind, pa, pb, rows, same)
+        s, lvl = _compare_strings(kind, pa, pb, None if extra is None else extra.take(present),
+                                  same)
     sim[present] = s
     lv[present] = lvl
     return sim, lv
@@ -265,13 +256,13 @@ def compare_values(kind: str, a: np.ndarray, b: np.ndarray, text: TextRows | Non
 @dataclass
 class Prepared:
     """One field's values made ready once for all chunks of pairs: each record's code in one
-    list of the distinct values of both sides (-1 when missing) and, for long text, the TF-IDF
-    rows of those values."""
+    list of the distinct values of both sides (-1 when missing), and the :func:`per_value`
+    data of those values."""
 
     lcodes: np.ndarray
     rcodes: np.ndarray
     values: np.ndarray  # object: the distinct values, then None (what code -1 picks)
-    text: Any  # scipy CSR row per distinct value (long text), else None
+    data: Any
 
 
 def prepare(kind: str, left_norm: np.ndarray, right_norm: np.ndarray) -> Prepared:
@@ -281,8 +272,7 @@ def prepare(kind: str, left_norm: np.ndarray, right_norm: np.ndarray) -> Prepare
     lcodes, rcodes = codes[:len(left_norm)], codes[len(both) - len(right_norm):]
     distinct = np.asarray(uniques, dtype=object).tolist()
     values = np.array([*distinct, None], dtype=object)
-    text = text_vectors.corpus_rows(distinct, "word", spaced=True) if kind == "longtext" else None
-    return Prepared(lcodes, rcodes, values, text)
+    return Prepared(lcodes, rcodes, values, per_value(kind, distinct, spaced=True))
 
 
 def compare_field(kind: str, left_norm: np.ndarray, right_norm: np.ndarray,
@@ -300,8 +290,8 @@ def compare_field(kind: str, left_norm: np.ndarray, right_norm: np.ndarray,
     inverse, uniq = pd.factorize(combo)  # hashing: several times faster than sorting here
     ul = uniq // width - 1
     ur = uniq % width - 1
-    text = None
-    if prep.text is not None:
-        text = TextRows(prep.text, np.maximum(ul, 0), np.maximum(ur, 0))
-    sim, lv = compare_values(kind, prep.values[ul], prep.values[ur], text, (ul, ur))
+    extra = None
+    if prep.data is not None:
+        extra = Indexed(prep.data, np.maximum(ul, 0), np.maximum(ur, 0))
+    sim, lv = compare_values(kind, prep.values[ul], prep.values[ur], extra, (ul, ur))
     return sim[inverse], lv[inverse]
