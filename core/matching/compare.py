@@ -178,8 +178,14 @@ def _text_similarity(kind: str, a: list, b: list, extra: Indexed | None) -> np.n
     if extra is None:
         return SCORERS[kind](a, b)
     if kind == "name":
-        words = word_match.best_match(extra.data, extra.ia, extra.ib, _THREADS["workers"])
-        return np.maximum(SCORERS[kind](a, b), words).astype(np.float32)
+        whole = SCORERS[kind](a, b)
+        # Two one-word names: word by word is the whole-string measure again.
+        count = extra.data.count
+        several = np.flatnonzero((count[extra.ia] > 1) | (count[extra.ib] > 1))
+        words = word_match.best_match(extra.data, extra.ia[several], extra.ib[several],
+                                      _THREADS["workers"])
+        whole[several] = np.maximum(whole[several], words)
+        return whole
     cosine = text_vectors.row_cosine(extra.data, extra.data, extra.ia, extra.ib)
     tokens = SCORERS[kind](a, b)
     return ((cosine + tokens) / np.float32(2.0)).astype(np.float32)
