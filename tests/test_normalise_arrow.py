@@ -84,3 +84,14 @@ def _fold_by_definition(value: str) -> str:
 def test_fold_strips_exactly_the_combining_marks(value: str) -> None:
     # The fast removal of U+0300-U+036F (U+034F kept) must change nothing but speed.
     assert normalise.fold(value) == _fold_by_definition(value)
+
+
+def test_a_column_of_few_values_normalises_as_a_column_of_many() -> None:
+    # Below distinct.SMALL values the per-value path runs instead of Arrow: same answer.
+    from docket.core.records import distinct
+
+    few = ["Zoë  Ångström", "A-B/C", "x", None, "&amp;Co", "Kasia Nowak", "12.5"]
+    many = few + [f"filler {i}" for i in range(distinct.SMALL)]
+    for func in FUNCS:
+        assert distinct.per_distinct(few, func).tolist() == \
+            distinct.per_distinct(many, func)[:len(few)].tolist(), func.__name__

@@ -10,11 +10,15 @@ import pandas as pd
 
 from .normalise_arrow import apply
 
+SMALL = 100
+
 
 def per_distinct(values: pd.Series | list, func: Callable[[str], object]) -> np.ndarray:
     """Apply ``func`` to each distinct non-missing value once; missing stays None."""
     codes, uniques = pd.factorize(pd.Series(values, dtype=object), use_na_sentinel=True)
     uniques = np.asarray(uniques, dtype=object)
-    many = apply(uniques, func)  # Arrow over many values where it is the same answer
+    # Arrow over many values where it is the same answer; below SMALL values its fixed cost
+    # per call is more than normalising them one by one.
+    many = apply(uniques, func) if len(uniques) >= SMALL else None
     done = np.array([*(many if many is not None else map(func, uniques)), None], dtype=object)
     return done[codes]  # code -1 (missing) picks the trailing None
