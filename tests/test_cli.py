@@ -155,6 +155,7 @@ def test_review_and_adjudicate_reach_their_screens(tiny_tables, tmp_path: Path,
     opened: list[str] = []
     monkeypatch.setattr(review_app, "run_review", lambda *a: opened.append("review"))
     monkeypatch.setattr(team_app, "run_adjudicate", lambda *a: opened.append("adjudicate"))
+    as_terminal(monkeypatch)
     left, right = tiny_tables
     project = tmp_path / "t.docket"
     assert main(["new", str(project), "--left", str(left), "--right", str(right), "--id", "id",
@@ -163,6 +164,36 @@ def test_review_and_adjudicate_reach_their_screens(tiny_tables, tmp_path: Path,
     assert main(["reviewers", str(project), "add", "lee", "--role", "adjudicator"]) == 0
     assert main(["adjudicate", str(project), "--reviewer", "lee"]) == 0
     assert opened == ["review", "adjudicate"]
+
+
+def as_terminal(monkeypatch: pytest.MonkeyPatch, answer: bool = True) -> None:
+    import sys
+    monkeypatch.setattr(sys.stdin, "isatty", lambda: answer, raising=False)
+    monkeypatch.setattr(sys.stdout, "isatty", lambda: answer, raising=False)
+
+
+@pytest.mark.parametrize("argv", [["review", "--reviewer", "zed"],
+                                  ["adjudicate", "--reviewer", "lee"],
+                                  ["agreement", "--screen"], ["evaluate", "--screen"],
+                                  ["evaluate", "--matchers", "--screen"]])
+def test_a_screen_without_a_terminal_is_refused_in_one_line(
+        argv: list[str], tiny_tables, tmp_path: Path, capsys,
+        monkeypatch: pytest.MonkeyPatch) -> None:
+    # from a pipe or /dev/null the screen got no key, never ended and spun a core meanwhile
+    left, right = tiny_tables
+    project = tmp_path / "t.docket"
+    assert main(["new", str(project), "--left", str(left), "--right", str(right), "--id", "id",
+                 "--block", "town"]) == 0
+    assert main(["reviewers", str(project), "add", "lee", "--role", "adjudicator"]) == 0
+    capsys.readouterr()
+    as_terminal(monkeypatch, False)
+    assert main([argv[0], str(project), *argv[1:]]) == 2
+    err = capsys.readouterr().err.splitlines()
+    assert len(err) == 1 and "opens a screen, which needs a terminal" in err[0], err
+    with Project.open(project) as opened:  # zed is not registered
+        assert [r["name"] for r in opened.reviewers()] == ["lee"]
+    assert main(["demo", "--dir", str(tmp_path / "demo")]) == 2  # before building anything
+    assert "needs a terminal" in capsys.readouterr().err and not (tmp_path / "demo").exists()
 
 
 def test_ctrl_c_while_new_writes_leaves_the_old_project_and_says_one_line(

@@ -15,6 +15,7 @@ from typing import Any
 from .cli_base import command, default_reviewer, open_project, refuse_to_discard
 from .cli_project import print_built, status
 from .figures import many
+from .terminal import need_terminal
 
 DEMO_SECOND_REVIEWER = "ines"
 
@@ -90,6 +91,7 @@ def review(args: argparse.Namespace) -> int:
     mask = parse_mask(args.mask)
     with open_project(args.project) as project:  # fails cleanly before the screen starts
         expand_mask(project, mask)
+        need_terminal("review")  # before the reviewer is registered
         reviewer = project.ensure_reviewer(default_reviewer(args.reviewer))
     return _run_review(Path(args.project), reviewer, mask)
 
@@ -111,6 +113,8 @@ def demo(args: argparse.Namespace) -> int:
     from docket.core import DocketError, Project
 
     from .progress import progress_bar
+    if not args.no_open:
+        need_terminal("demo")  # (before the build: --no-open builds without a screen)
     if default_reviewer(args.reviewer).strip().casefold() == DEMO_SECOND_REVIEWER:
         # reviewing as the invented second reviewer would show their labels as one's own
         raise DocketError(f"{DEMO_SECOND_REVIEWER} is the demo's invented second reviewer; "

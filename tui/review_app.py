@@ -26,6 +26,7 @@ from .keymap import LoadedKeymap, load_keymap
 from .masking import Mask, expand_mask
 from .screen_exit import clearing
 from .screens.review import ReviewScreen, binding_ids
+from .terminal import need_terminal
 from .toasts import OneToastEach
 
 Clock = Callable[[], float]
@@ -138,6 +139,7 @@ def make_app(path: Path | str, reviewer: str, mask: Sequence[str] = (), *,
 
 def run_review(path: Path, reviewer: str, mask: list[str]) -> None:
     """Open the review screen on ``reviewer``'s queue in ``path`` until they quit."""
+    need_terminal("review")  # before make_app registers the reviewer
     app = make_app(path, reviewer, mask)
     try:
         app.run()

@@ -27,6 +27,7 @@ from docket.core.project import Project
 from .keymap import LoadedKeymap, load_keymap
 from .masking import Mask, expand_mask
 from .screen_exit import clearing
+from .terminal import need_terminal
 from .toasts import OneToastEach
 
 Clock = Callable[[], float]
@@ -136,8 +137,9 @@ def make_team_app(path: Path | str, adjudicator: str = "", *, start: Start = "ad
                    clock=clock or time.monotonic, keymap_file=keymap_file)
 
 
-def _run(app: TeamApp) -> None:
+def _run(app: TeamApp, command: str) -> None:
     try:
+        need_terminal(command)  # after the checks that name a bad project, name or mask
         app.run()
     finally:
         app.project.close()
@@ -149,19 +151,20 @@ def run_adjudicate(path: Path, adjudicator: str, blind: bool = False,
 
     Raises ``DocketError`` before the screen opens when they are not an adjudicator.
     """
-    _run(make_team_app(path, adjudicator, start="adjudicate", blind=blind, mask=mask))
+    _run(make_team_app(path, adjudicator, start="adjudicate", blind=blind, mask=mask),
+         "adjudicate")
 
 
 def run_agreement(path: Path, mask: Sequence[str] = ()) -> None:
     """Open the agreement screen on its own until the user quits; it writes nothing."""
-    _run(make_team_app(path, start="agreement", mask=mask))
+    _run(make_team_app(path, start="agreement", mask=mask), "agreement --screen")
 
 
 def run_quality(path: Path, mask: Sequence[str] = ()) -> None:
     """Open the quality screen on its own until the user quits; it writes nothing."""
-    _run(make_team_app(path, start="quality", mask=mask))
+    _run(make_team_app(path, start="quality", mask=mask), "evaluate --screen")
 
 
 def run_matchers(path: Path, mask: Sequence[str] = ()) -> None:
     """Open the matchers screen on its own until the user quits; it writes nothing."""
-    _run(make_team_app(path, start="matchers", mask=mask))
+    _run(make_team_app(path, start="matchers", mask=mask), "evaluate --matchers --screen")

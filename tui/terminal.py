@@ -107,3 +107,14 @@ def json_text(value: Any, indent: int | None = 2) -> str:
     if text.replace("\n", "").isprintable():
         return text
     return "".join(_json_escape(c) if c != "\n" and stand_in(c) else c for c in text)
+
+
+def need_terminal(command: str) -> None:
+    """Refuse to open a screen without a terminal on standard input and output: from a pipe,
+    /dev/null or a job with no terminal, the screen got no key, so it never ended, and spun a
+    core meanwhile. Checked before anything is written."""
+    if not (sys.stdin is not None and sys.stdin.isatty() and sys.stdout.isatty()):
+        from docket.core import DocketError
+        raise DocketError(f"{command} opens a screen, which needs a terminal for its "
+                          "keys and display (standard input and output are not one); run it "
+                          "in a terminal, or script with docket next, label and export")
