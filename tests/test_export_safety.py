@@ -161,3 +161,43 @@ def test_an_export_never_replaces_a_project(sample_project: Path, tmp_path: Path
     cut.write_bytes(sample_project.read_bytes()[:50_000])
     with pytest.raises(DocketError, match="never replaces"):
         atomic_write(cut, lambda tmp: tmp.write_text("x", encoding="utf-8"))
+
+
+def test_an_export_writes_into_a_pipe_or_device_and_keeps_a_link(project: Path,
+                                                                  tmp_path: Path) -> None:
+    # '-o /dev/null' renamed a temporary over /dev/null (as root: the device was gone), and a
+    # named pipe or a symbolic link was replaced by a plain file the same way
+    import threading
+    pipe = tmp_path / "pipe"
+    os.mkfifo(pipe)
+    for fmt in ("csv", "parquet"):
+        got: list[bytes] = []
+        reader = threading.Thread(target=lambda got=got: got.append(pipe.read_bytes()))
+        reader.start()
+        assert main(["export", str(project), "--format", fmt, "-o", str(pipe)]) == 0
+        reader.join(timeout=30)
+        assert stat.S_ISFIFO(pipe.stat().st_mode), fmt  # still the pipe
+        (tmp_path / f"read.{fmt}").write_bytes(got[0])
+    assert len(pd.read_parquet(tmp_path / "read.parquet")) == len(_read(tmp_path / "read.csv"))
+    real = tmp_path / "real.csv"
+    real.write_text("old\n", encoding="utf-8")
+    (tmp_path / "link.csv").symlink_to(real.name)
+    assert main(["export", str(project), "-o", str(tmp_path / "link.csv")]) == 0
+    assert (tmp_path / "link.csv").is_symlink() and real.read_text().startswith("pair_id,")
+
+
+def test_an_export_to_a_terminal_device_or_a_project_on_a_pipe_is_refused(
+        project: Path, tmp_path: Path, capsys) -> None:
+    main_end, tty_end = os.openpty()
+    try:
+        assert main(["export", str(project), "--format", "csv", "-o", os.ttyname(tty_end)]) == 2
+        assert "is a terminal; show the export there with -o -" in capsys.readouterr().err
+    finally:
+        os.close(main_end)
+        os.close(tty_end)
+    pipe = tmp_path / "pipe"
+    os.mkfifo(pipe)
+    left = tmp_path / "l.jsonl"
+    assert main(["new", str(pipe), "--left", str(left), "--id", "id", "--force"]) == 2
+    assert "is a device, pipe or socket, not a file" in capsys.readouterr().err
+    assert stat.S_ISFIFO(pipe.stat().st_mode)

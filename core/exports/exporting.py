@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import io
 import os
+import shutil
 import sys
 import tempfile
 from collections.abc import Callable
@@ -16,7 +17,7 @@ import pandas as pd
 from ..errors import DocketError
 from ..matching.decision_rule import predicted
 from ..storage import store
-from ..storage.file_health import holds_database
+from ..storage.file_health import holds_database, special_file
 from ..storage.project_file import ProjectFile
 
 FORMATS = {".csv": "csv", ".parquet": "parquet", ".pq": "parquet", ".jsonl": "jsonl",
@@ -153,6 +154,11 @@ def atomic_write(path: Path, write: Callable[[Path], object]) -> None:
     if holds_database(path):
         raise DocketError(f"{path}: is an SQLite database (a docket project?), which an export "
                           "never replaces; write the export to another file")
+    if special_file(path):
+        _write_through(path, write)
+        return
+    if path.is_symlink():  # the link stays; the file it names is replaced
+        path = Path(os.path.realpath(path))
     try:
         fd, name = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".partial", dir=path.parent)
     except OSError as exc:
@@ -171,3 +177,28 @@ def atomic_write(path: Path, write: Callable[[Path], object]) -> None:
         if isinstance(exc, OSError):
             raise DocketError(f"{path}: cannot write ({exc.strerror or exc})") from None
         raise
+
+
+
+def _write_through(path: Path, write: Callable[[Path], object]) -> None:
+    """Write into a device, pipe or socket itself ('-o /dev/stdout', a named pipe): renaming a
+    temporary over it replaced /dev/null with a file. The export is made in a private
+    temporary (a Parquet writer seeks), then copied in through one descriptor; a terminal is
+    refused, as '-o -' prints record values inert there."""
+    try:
+        fd = os.open(path, os.O_WRONLY)
+    except OSError as exc:
+        raise DocketError(f"{path}: cannot write ({exc.strerror or exc})") from None
+    try:
+        if os.isatty(fd):
+            raise DocketError(f"{path}: is a terminal; show the export there with -o -, which "
+                              "prints record values inert")
+        with tempfile.TemporaryDirectory(prefix="docket-export-") as folder:
+            made = Path(folder) / path.name
+            write(made)
+            with open(fd, "wb", closefd=False) as out, made.open("rb") as source:
+                shutil.copyfileobj(source, out)
+    except OSError as exc:
+        raise DocketError(f"{path}: cannot write ({exc.strerror or exc})") from None
+    finally:
+        os.close(fd)

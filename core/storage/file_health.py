@@ -71,6 +71,16 @@ def same_file(a: Path, b: Path) -> bool:
         return False
 
 
+def special_file(path: Path) -> bool:
+    """Whether ``path`` names a device, pipe or socket (what a symbolic link leads to counts):
+    something to write into, never to replace."""
+    try:
+        mode = path.stat().st_mode
+    except OSError:
+        return False
+    return not (stat.S_ISREG(mode) or stat.S_ISDIR(mode))
+
+
 def check_new(path: Path, force: bool = False, inputs: Sequence[Path] = ()) -> None:
     """A project about to be built: its folder exists and can be written, and what ``path``
     names already is replaced only when asked and only if it is a project (or empty): never a
@@ -83,6 +93,9 @@ def check_new(path: Path, force: bool = False, inputs: Sequence[Path] = ()) -> N
         return
     if path.is_dir():
         raise DocketError(f"{path}: is a folder; give a file name for the project")
+    if special_file(path):  # --force replaced /dev/null itself with the project
+        raise DocketError(f"{path}: is a device, pipe or socket, not a file; give a file name "
+                          "for the project")
     if any(same_file(path, given) for given in inputs):
         raise DocketError(f"{path}: is a file this project is built from; give the project "
                           f"another name (for example {path.stem}.docket)")
