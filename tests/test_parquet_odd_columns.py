@@ -47,3 +47,16 @@ def test_a_parquet_file_names_the_record_not_a_header_row(tmp_path: Path) -> Non
     pq.write_table(pa.table({"id": pa.array(["1", None, "3"]), "name": ["a", "b", "c"]}), path)
     with pytest.raises(DocketError, match=r"gap.parquet: column 'id' is empty on record 2; "):
         load_table(path, "id")
+
+
+def test_two_columns_of_one_name_are_named_as_such(tmp_path: Path) -> None:
+    # a valid file, yet refused as "cannot read it as parquet (Multiple matches for
+    # FieldRef.Name(name) ...); check the file type", as if it were damaged
+    path = tmp_path / "twice.parquet"
+    pq.write_table(pa.Table.from_arrays([pa.array(["1", "2"]), pa.array(["Ana", "Bo"]),
+                                         pa.array(["x", "y"])], names=["id", "name", "name"]),
+                   path)
+    with pytest.raises(DocketError) as refused:
+        load_table(path, "id")
+    assert str(refused.value) == (f"{path}: columns 2 and 3 are both named 'name' (spaces at "
+                                  "the ends do not count); rename one")

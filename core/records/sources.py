@@ -52,6 +52,14 @@ def _read_text(path: Path, fmt: str) -> pd.DataFrame:
     return read_json(path) if fmt == "jsonl" else read_delimited(path, fmt)
 
 
+def _read_parquet(path: Path) -> pd.DataFrame:
+    # names first: two columns of one name are a valid Parquet file, which pandas refused
+    # as "Multiple matches for FieldRef.Name(name)", read as a damaged file
+    import pyarrow.parquet as pq
+    check_names(path, pq.read_schema(path).names)
+    return pd.read_parquet(path)
+
+
 def read_frame(path: Path) -> pd.DataFrame:
     """Read any supported file into a frame of strings, with missing values as None."""
     if not path.exists():
@@ -60,7 +68,7 @@ def read_frame(path: Path) -> pd.DataFrame:
         raise DocketError(f"{path}: is a folder, not a file of records")
     fmt = detect_format(path)
     try:
-        frame = pd.read_parquet(path) if fmt == "parquet" else _read_text(path, fmt)
+        frame = _read_parquet(path) if fmt == "parquet" else _read_text(path, fmt)
     except DocketError:
         raise
     except pd.errors.EmptyDataError:
