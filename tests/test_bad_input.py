@@ -86,6 +86,23 @@ def test_no_columns_in_common(tmp_path: Path, good: Path, capsys) -> None:
     assert not (tmp_path / "p.docket").exists()
 
 
+@pytest.mark.parametrize(("extra", "needles"), [
+    (["--map", "id=ref"], ["--map id=ref: names an id column", "not compared"]),
+    (["--map", "name=ref"], ["--map name=ref: names an id column"]),  # (said it had no 'id')
+    (["--map", "name=full", "--map", "name=town"],  # the last one won, unsaid
+     ["--map pairs left column 'name' with 'full' and with 'town'; keep one"]),
+    (["--map", "name=full", "--field", "name:skip", "--field", "town:skip"],  # said "no columns
+     ["--field ...:skip leaves no column to compare (skipped: name, town)"]),  # in common"
+])
+def test_a_map_or_skip_that_leaves_nothing_sensible_says_what(
+        extra: list[str], needles: list[str], tmp_path: Path, good: Path, capsys) -> None:
+    other = write(tmp_path / "other.csv", "ref,full,town\n9,Anna,Oslo\n8,Jon,Bergen\n")
+    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(good),
+                    "--right", str(other), "--left-id", "id", "--right-id", "ref", *extra)
+    assert_one_line_error(code, err, *needles)
+    assert not (tmp_path / "p.docket").exists()
+
+
 def test_unknown_ids_in_pairs_file(tmp_path: Path, good: Path, capsys) -> None:
     pairs = write(tmp_path / "pairs.csv", "left_id,right_id\n1,2\n1,77\n99,3\n")
     code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(good), "--id", "id",

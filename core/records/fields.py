@@ -57,6 +57,9 @@ def parse_map(items: list[str] | None) -> dict[str, str]:
         left, sep, right = item.partition("=")
         if not sep or not left.strip() or not right.strip():
             raise DocketError(f"--map {item!r}: write it as LEFT_COLUMN=RIGHT_COLUMN")
+        if out.get(left.strip(), right.strip()) != right.strip():  # the last one won, unsaid
+            raise DocketError(f"--map pairs left column '{left.strip()}' with "
+                              f"'{out[left.strip()]}' and with '{right.strip()}'; keep one")
         out[left.strip()] = right.strip()
     return out
 
@@ -85,6 +88,9 @@ def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: st
     """The compared fields: common columns (after the map), each with a detected kind."""
     right_frame = left if right is None else right
     for lcol, rcol in mapping.items():
+        if lcol == left.index.name or rcol == right_frame.index.name:
+            raise DocketError(f"--map {lcol}={rcol}: names an id column, which identifies "
+                              "records and is not compared; map the columns to compare")
         if lcol not in left.columns:
             raise DocketError(f"{left_name}: --map names column '{lcol}', which it does not have "
                               f"(columns: {', '.join(left.columns)})")
@@ -127,6 +133,10 @@ def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: st
         fields.append(FieldSpec(name=lcol, left_column=lcol, right_column=rcol, kind=kind))
     if not fields:
         where = left_name if right is None else f"{left_name} and {right_name}"
+        skipped = [c for c, k in kinds.items() if k == "skip"]
+        if skipped and not left_out:
+            raise DocketError(f"{where}: --field ...:skip leaves no column to compare (skipped: "
+                              f"{', '.join(skipped)}); leave one to compare")
         if left_out:
             raise DocketError(f"{where}: no column to compare holds values ("
                               f"{', '.join(left_out)} {'holds' if len(left_out) == 1 else 'hold'}"
