@@ -4,6 +4,7 @@ project file left behind (or the existing one unchanged)."""
 from __future__ import annotations
 
 import hashlib
+import os
 import sqlite3
 import subprocess
 import sys
@@ -150,6 +151,17 @@ def test_not_a_project_and_newer_version(tmp_path: Path, capsys) -> None:
     sqlite3.connect(other).execute("CREATE TABLE t (x)").connection.close()
     code, err = run(capsys, "status", str(other))
     assert_one_line_error(code, err, "not a docket project")
+
+
+def test_a_pipe_or_device_is_called_so_not_missing_or_empty(sample_project: Path,
+                                                             tmp_path: Path, capsys) -> None:
+    # status said "an empty file" and merge "no such file" of /dev/null and named pipes
+    pipe = tmp_path / "pipe.docket"
+    os.mkfifo(pipe)
+    for argv in (["status", str(pipe)], ["merge", str(sample_project), str(pipe)],
+                 ["merge", str(sample_project), os.devnull]):
+        code, err = run(capsys, *argv)
+        assert_one_line_error(code, err, "a device, pipe or socket", "not")
 
 
 @pytest.mark.parametrize("size, said", [(0, "an empty file"), (50, "only 50 bytes: not")])

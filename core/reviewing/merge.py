@@ -96,7 +96,9 @@ def _read(path: Path, project: ProjectFile) -> _Other:
         raise DocketError(f"{path}: is this project itself; give the copies other reviewers "
                           "worked in")
     if not path.is_file():
-        raise DocketError(f"{path}: no such file; give the path of a copy of this project")
+        what = ("a folder" if path.is_dir() else "a device, pipe or socket, not a file"
+                if path.exists() else "no such file")  # not 'no such file' for /dev/null
+        raise DocketError(f"{path}: {what}; give the path of a copy of this project")
     conn = store.open_file(path, readonly=True)  # never written to, nor upgraded
     try:
         meta = store.get_meta(conn)

@@ -138,6 +138,9 @@ def open_file(path: Path, readonly: bool = False, check: bool = True) -> sqlite3
         raise DocketError(f"{path}: no such project; create it with 'docket new {path} ...'")
     if path.is_dir():
         raise NotAProject(f"{path}: a folder, not a docket project; check the path")
+    if file_health.special_file(path):
+        raise NotAProject(f"{path}: a device, pipe or socket, not a docket project; check the "
+                          "path")
     if path.stat().st_size == 0:
         raise NotAProject(f"{path}: an empty file, not a docket project; check the path, or "
                           "restore the project from a backup if it was cut short")
