@@ -243,6 +243,10 @@ def test_bad_prediction_files_fail_with_one_clear_message(answered: Project,
         "a,b,score\nN-00001,S-10321,1\n": "needs columns left_id and right_id",
         "left_id,right_id,label\nN-00001,S-10321,perhaps\n": "not understood: 'perhaps'",
         "left_id,right_id,score\nN-00001,S-10321,high\n": "row 2 has 'high'",
+        # an empty cell was "row 2 has None", and an empty label "not understood: 'None'"
+        "left_id,right_id,score\nN-00001,S-10336,0.2\nN-00001,S-10321,\n": "row 3 has no value$",
+        "left_id,right_id,label\nN-00001,S-10321,\n": "label needs match or non-match on every "
+                                                     "row; row 2 has no value$",
         "left_id,right_id,score\nN-00001,S-10321,1\nN-00001,S-10321,0.5\n": "more than once",
         "left_id,right_id,score\nN-00001,S-10321,7\n": "give --threshold",
     }

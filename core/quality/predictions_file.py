@@ -23,6 +23,10 @@ FALSE_WORDS = {"non-match", "nonmatch", "non_match", "0", "false", "no", "n", "f
 
 def _flag(values: pd.Series, path: Path) -> np.ndarray:
     text = values.map(lambda v: None if v is None else str(v).strip().lower())
+    empty = text[text.isna() | text.eq("")]
+    if len(empty):  # was "label value not understood: 'None'"
+        raise DocketError(f"{path}: column label needs match or non-match on every row; row "
+                          f"{int(empty.index[0]) + 2} has no value")
     bad = sorted({v for v in text if v not in TRUE_WORDS and v not in FALSE_WORDS}, key=str)
     if bad:
         raise DocketError(f"{path}: {many(len(bad), 'label value')} not understood: "
@@ -34,8 +38,11 @@ def _numbers(values: pd.Series, column: str, path: Path) -> np.ndarray:
     num = pd.to_numeric(values, errors="coerce")
     bad = values[num.isna() | ~np.isfinite(num.fillna(0.0))]
     if len(bad):
+        first = bad.iloc[0]
+        said = ("no value" if first is None or not str(first).strip()  # not "has None"
+                else repr(first))
         raise DocketError(f"{path}: column {column} needs a number on every row; row "
-                          f"{int(bad.index[0]) + 2} has {bad.iloc[0]!r}")
+                          f"{int(bad.index[0]) + 2} has {said}")
     return num.to_numpy(dtype=float)
 
 
