@@ -104,6 +104,18 @@ def test_a_map_or_skip_that_leaves_nothing_sensible_says_what(
     assert not (tmp_path / "p.docket").exists()
 
 
+@pytest.mark.parametrize(("rule", "said"), [
+    ("name&name", "the key name is given twice"),  # was a KeyError traceback
+    ("tokens(name) & town & tokens( name )", "the key tokens(name) is given twice"),
+])
+def test_a_blocking_rule_with_a_key_twice(
+        rule: str, said: str, tmp_path: Path, good: Path, capsys) -> None:
+    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(good),
+                    "--block", rule)
+    assert_one_line_error(code, err, f"--block {rule!r}: {said}")
+    assert not (tmp_path / "p.docket").exists()
+
+
 def test_unknown_ids_in_pairs_file(tmp_path: Path, good: Path, capsys) -> None:
     pairs = write(tmp_path / "pairs.csv", "left_id,right_id\n1,2\n1,77\n99,3\n")
     code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(good), "--id", "id",

@@ -94,12 +94,11 @@ def parse_rule(text: str, fields: list[FieldSpec]) -> Rule:
         if column not in names:
             raise DocketError(f"--block {text!r}: no compared field '{column}'; "
                               f"fields are {', '.join(sorted(names))}")
-        if func:
-            keys.append(Key(func, column))
-        elif length:
-            keys.append(Key("prefix", column, int(length)))
-        else:
-            keys.append(Key("value", column))
+        key = (Key(func, column) if func else Key("prefix", column, int(length)) if length
+               else Key("value", column))
+        if key in keys:  # a traceback (KeyError) while joining on it
+            raise DocketError(f"--block {text!r}: the key {key} is given twice; give it once")
+        keys.append(key)
     if len(keys) > 1 and any(k.func == "near" for k in keys):
         raise DocketError(f"--block {text!r}: near(...) stands alone; give it as a rule of its "
                           "own, for example --block 'near(title)'")
