@@ -104,6 +104,19 @@ def test_a_map_or_skip_that_leaves_nothing_sensible_says_what(
     assert not (tmp_path / "p.docket").exists()
 
 
+@pytest.mark.parametrize(("extra", "said"), [
+    (["--field", "name:name", "--field", "name:text"],  # the last one won, unsaid
+     "--field gives column 'name' two kinds, name and text; keep one"),
+    (["--right-id", "id"],  # ignored, and the id column guessed
+     "--right-id id: names the id column of --right, and no --right table is given"),
+])
+def test_options_that_were_silently_overruled_or_ignored(
+        extra: list[str], said: str, tmp_path: Path, good: Path, capsys) -> None:
+    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(good), *extra)
+    assert_one_line_error(code, err, said)
+    assert not (tmp_path / "p.docket").exists()
+
+
 @pytest.mark.parametrize(("rule", "said"), [
     ("name&name", "the key name is given twice"),  # was a KeyError traceback
     ("tokens(name) & town & tokens( name )", "the key tokens(name) is given twice"),

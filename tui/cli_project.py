@@ -70,6 +70,10 @@ def new(args: argparse.Namespace) -> int:
     if args.id_column and (args.left_id or args.right_id):
         from docket.core import DocketError
         raise DocketError("give --id, or --left-id and --right-id, not both")
+    if args.right_id and not args.right:  # it was ignored, and the id column guessed
+        from docket.core import DocketError
+        raise DocketError(f"--right-id {args.right_id}: names the id column of --right, and "
+                          "no --right table is given; for one table use --id")
     check_engine(args)
     spec = NewProject(
         path=Path(args.project), left=Path(args.left),

@@ -72,12 +72,12 @@ def parse_kinds(items: list[str] | None) -> dict[str, str]:
         if not sep or not col.strip():
             raise DocketError(f"--field {item!r}: write it as COLUMN:KIND, "
                               f"with KIND one of {', '.join(KINDS)}")
-        if kind == "skip":
-            out[col.strip()] = "skip"
-            continue
-        if kind not in KINDS:
+        if kind != "skip" and kind not in KINDS:
             raise DocketError(f"--field {item!r}: unknown kind '{kind}'; "
                               f"use one of {', '.join(KINDS)} (or skip)")
+        if out.get(col.strip(), kind) != kind:  # the last one won, unsaid
+            raise DocketError(f"--field gives column '{col.strip()}' two kinds, "
+                              f"{out[col.strip()]} and {kind}; keep one")
         out[col.strip()] = kind
     return out
 
