@@ -105,6 +105,28 @@ def test_score_refuses_an_existing_output(sample_project_file: Path, tmp_path: P
     assert not (tmp_path / "new").exists()
 
 
+def test_score_tables_that_do_not_fit_the_project_say_what_to_do(
+        sample_project_file: Path, tmp_path: Path, capsys) -> None:
+    pairs = tmp_path / "pairs.csv"
+    pairs.write_text("left_id,right_id\nN-00001,S-00001\n", encoding="utf-8")
+    other = tmp_path / "other.csv"
+    other.write_text("key,owner\nN-00001,Ana\n", encoding="utf-8")
+    code, err = run(capsys, "score", str(sample_project_file), "--pairs", str(pairs), "-o",
+                    str(tmp_path / "a"), "--left", str(other))  # said "pass ... --id", no such
+    assert_one_line_error(code, err, "no column 'client_id'", "have their ids in 'client_id'; "
+                          "give --left a table with that column")
+    records = tmp_path / "r.csv"
+    records.write_text("id,name\n1,Ana Berg\n2,Ana Berg\n3,Bo Lind\n", encoding="utf-8")
+    one = tmp_path / "one.docket"
+    assert main(["new", str(one), "--left", str(records), "--block", "*"]) == 0
+    pairs.write_text("left_id,right_id\n1,2\n", encoding="utf-8")
+    code, err = run(capsys, "score", str(one), "--pairs", str(pairs), "-o", str(tmp_path / "b"),
+                    "--right", str(records))  # was ignored, unsaid
+    assert_one_line_error(code, err, "one.docket deduplicates one table; give its records "
+                          "with --left alone")
+    assert not (tmp_path / "a").exists() and not (tmp_path / "b").exists()
+
+
 def test_score_into_a_folder_it_cannot_write_is_one_line(sample_project_file: Path,
                                                           tmp_path: Path, capsys,
                                                           monkeypatch: pytest.MonkeyPatch

@@ -64,10 +64,18 @@ def stored_tables(project: ProjectFile, left: Path | None, right: Path | None
                      "full table)")
         return Table(where, key, frame)
 
-    lt = load_table(left, meta["left_id_column"]) if left else stored("left")
+    def given(path: Path, side: str) -> Table:
+        key = meta[f"{side}_id_column"]  # score has no --id: the project's column is the one
+        return load_table(path, key, f"the project's {side} records have their ids in "
+                          f"'{key}'; give --{side} a table with that column")
+
+    if meta["mode"] != "link" and right:  # it was ignored, unsaid
+        raise DocketError(f"--right {right}: {project.path.name} deduplicates one table; give "
+                          "its records with --left alone")
+    lt = given(left, "left") if left else stored("left")
     if meta["mode"] != "link":
         return lt, None
-    return lt, load_table(right, meta["right_id_column"]) if right else stored("right")
+    return lt, given(right, "right") if right else stored("right")
 
 
 def _has_columns(model: ScoringModel, table: Table, side: str) -> None:

@@ -183,8 +183,10 @@ def _bytes_text(v: bytes) -> str:
         return "0x" + v.hex()
 
 
-def load_table(path: str | Path, id_column: str | None) -> Table:
-    """Read a file of records and check its id column: present, non-empty, unique."""
+def load_table(path: str | Path, id_column: str | None,
+               fix: str = "pass the right one with --id") -> Table:
+    """Read a file of records and check its id column: present, non-empty, unique. ``fix``
+    says what to do when the column is absent."""
     path = Path(path)
     frame = read_frame(path)
     if len(frame) == 0:
@@ -201,7 +203,7 @@ def load_table(path: str | Path, id_column: str | None) -> Table:
                               f"pass --id COLUMN (columns: {', '.join(frame.columns)})")
     if id_column not in frame.columns:
         raise DocketError(f"{path}: no column '{id_column}'; columns are "
-                          f"{', '.join(frame.columns)}; pass the right one with --id")
+                          f"{', '.join(frame.columns)}; {fix}")
     ids = frame[id_column]
     empty = ids.isna().to_numpy()
     if empty.any():
