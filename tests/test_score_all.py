@@ -124,7 +124,11 @@ def test_score_tables_that_do_not_fit_the_project_say_what_to_do(
                     "--right", str(records))  # was ignored, unsaid
     assert_one_line_error(code, err, "one.docket deduplicates one table; give its records "
                           "with --left alone")
-    assert not (tmp_path / "a").exists() and not (tmp_path / "b").exists()
+    code, err = run(capsys, "score", str(one), "--pairs", str(pairs), "-o", str(tmp_path / "c"),
+                    "--workers", "3")  # without --engine dask it was ignored, unsaid
+    assert_one_line_error(code, err, "--workers 3: workers of a local Dask cluster; add "
+                          "--engine dask")
+    assert not any((tmp_path / n).exists() for n in "abc")
 
 
 def test_score_into_a_folder_it_cannot_write_is_one_line(sample_project_file: Path,

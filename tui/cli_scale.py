@@ -36,7 +36,7 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--right", metavar="FILE", help="the right table of records (link mode)")
     p.add_argument("--engine", choices=["in-process", "dask"], default="in-process",
                    help="where scoring runs (dask needs: pip install 'docket[dask]')")
-    p.add_argument("--workers", type=at_least(1, MOST_WORKERS), default=2, metavar="N",
+    p.add_argument("--workers", type=at_least(1, MOST_WORKERS), default=None, metavar="N",
                    help="dask: workers of the local cluster (default 2)")
     p.add_argument("--scheduler", metavar="ADDRESS", help="dask: an existing scheduler")
 
@@ -46,12 +46,16 @@ def score(args: argparse.Namespace) -> int:
 
     from .progress import progress_bar
     check_engine(args)
+    if args.workers is not None and args.engine != "dask":  # in process it was ignored, unsaid
+        from docket.core import DocketError
+        raise DocketError(f"--workers {args.workers}: workers of a local Dask cluster; add "
+                          "--engine dask (in process, score runs as one process)")
     with Project.open(args.project, readonly=True) as project:
         job = project.scoring_job(args.pairs, args.model, args.left, args.right)
     model = job.model
     with progress_bar() as update:
         rows = score_to_parts(job, Path(args.pairs), Path(args.output), args.engine,
-                              args.workers, args.scheduler,
+                              args.workers or 2, args.scheduler,
                               lambda d, t: update("scoring pairs", d, t))
     print(f"scored {many(rows, 'pair')} into {args.output} (ranker {model.ranker}, threshold "
           f"{model.threshold:g})", file=sys.stderr)
