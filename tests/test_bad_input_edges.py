@@ -190,6 +190,10 @@ OPTION_CASES = {
     "negative seed": (["new", "P", "--left", "L", "--seed", "-5"], ["--seed", "0 or more"]),
     "workers by the thousand": (["new", "P", "--left", "L", "--workers", "100000"],
                                 ["--workers", "at most 256"]),
+    # float() reads these, and the table then fell over formatting them (a traceback)
+    "thresholds not a number": (["evaluate", "P", "--thresholds", "0.5,nan"],
+                                ["--thresholds", "'0.5,nan': give numbers"]),
+    "thresholds infinite": (["evaluate", "P", "--thresholds", "inf"], ["'inf': give numbers"]),
 }
 
 

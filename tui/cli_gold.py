@@ -7,6 +7,7 @@ Argument parsing and printing only: the figures and the frames come from the fac
 from __future__ import annotations
 
 import argparse
+import math
 import sys
 from typing import Any
 
@@ -19,10 +20,13 @@ from .terminal import json_text
 
 def _shares(text: str) -> list[float]:
     try:
-        return [float(t) for t in text.split(",") if t.strip()]
+        values = [float(t) for t in text.split(",") if t.strip()]
     except ValueError:
+        values = [math.nan]
+    if not all(math.isfinite(v) for v in values):  # nan ended in a traceback
         raise argparse.ArgumentTypeError(f"{text!r}: give numbers separated by commas, "
-                                         "e.g. 0.5,0.9,0.99") from None
+                                         "e.g. 0.5,0.9,0.99")
+    return values
 
 
 def register(sub: argparse._SubParsersAction) -> None:
