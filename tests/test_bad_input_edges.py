@@ -194,6 +194,8 @@ OPTION_CASES = {
     "thresholds not a number": (["evaluate", "P", "--thresholds", "0.5,nan"],
                                 ["--thresholds", "'0.5,nan': give numbers"]),
     "thresholds infinite": (["evaluate", "P", "--thresholds", "inf"], ["'inf': give numbers"]),
+    "predictions threshold nan": (["evaluate", "P", "--predictions", "x.csv", "--threshold",
+                                   "nan"], ["--threshold", "'nan' is not a number"]),
 }
 
 

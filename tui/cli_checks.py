@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import argparse
 import difflib
+import math
 import re
 from collections.abc import Callable, Sequence
 from typing import NoReturn
@@ -31,6 +32,17 @@ def share(text: str) -> float:
 LARGEST = 2**63 - 1  # the largest whole number SQLite and numpy's int64 hold
 MOST_WORKERS = 256  # processes on one machine; a typo of many digits must not fork them all
 MOST_LISTED = 10**9  # pairs one 'next' lists; the queue reads a pool beyond it in one query
+
+
+def finite(text: str) -> float:
+    """Any number but nan and the infinities, which float() reads and the figures cannot use."""
+    try:
+        value = float(text)
+    except ValueError:
+        value = math.nan
+    if not math.isfinite(value):
+        raise argparse.ArgumentTypeError(f"{text!r} is not a number; give one, e.g. 0.5")
+    return value
 
 
 def at_least(low: int, high: int = LARGEST) -> Callable[[str], int]:

@@ -12,7 +12,7 @@ import sys
 from typing import Any
 
 from .cli_base import command, open_project
-from .cli_checks import at_least, share
+from .cli_checks import at_least, finite, share
 from .evaluation_text import evaluation_lines
 from .figures import many
 from .terminal import json_text
@@ -53,7 +53,7 @@ def register(sub: argparse._SubParsersAction) -> None:
                         "kappa, paired differences, variants, teacher and student")
     p.add_argument("--predictions", metavar="FILE",
                    help="a matcher's output to evaluate (CSV, Parquet, JSONL)")
-    p.add_argument("--threshold", type=float, metavar="T",
+    p.add_argument("--threshold", type=finite, metavar="T",
                    help="with --predictions: the score at which a pair is a predicted match "
                         "(default: the project's threshold)")
     p.add_argument("--supplement", action="store_true", help="with --predictions: judge it "
