@@ -148,3 +148,18 @@ def test_parquet_is_not_written_to_a_terminal(hostile: Path, capfdbinary,
     assert out.err.decode().splitlines() == [
         "docket: --format parquet -o -: Parquet is binary, not for a terminal; write it to a "
         "file (-o FILE.parquet) or pipe it"]
+
+
+def test_a_newline_in_a_column_name_forges_no_line(tmp_path: Path,
+                                                   capsys: pytest.CaptureFixture[str]) -> None:
+    # new and status printed column names raw: a name 'x\ny' began a line of its own
+    rows = [{"id": str(k), "name": n, "x\ny": t} for k, (n, t) in
+            enumerate([("Anna Berg", "Oslo"), ("Anna Berg", "Oslo"), ("Jon Dahl", "Moss")])]
+    table = tmp_path / "t.jsonl"
+    table.write_text("".join(json.dumps(r) + "\n" for r in rows), encoding="utf-8")
+    project = tmp_path / "p.docket"
+    assert main(["new", str(project), "--left", str(table), "--block", "x\ny"]) == 0
+    assert main(["status", str(project)]) == 0
+    out = capsys.readouterr().out
+    assert "x\\ny" in out
+    assert not [line for line in out.splitlines() if line.startswith("y")], out

@@ -22,10 +22,10 @@ def print_built(built: Any) -> None:
           f"{many(built.n_right, 'right record')}" if built.mode == "link" else
           f"created {built.path} (dedupe mode): {many(built.n_left, 'record')}")
     print(_ids_line(built))
-    print("fields compared: " + ", ".join(f"{f.name} ({f.kind})" for f in built.fields))
+    print("fields compared: " + ", ".join(f"{shown(f.name)} ({f.kind})" for f in built.fields))
     print(f"blocking rules ({how}):")
     for rule, n in r.per_rule.items():
-        print(f"  {rule:<40} {n:>10,} {noun(n, 'pair')}")
+        print(f"  {shown(rule):<40} {n:>10,} {noun(n, 'pair')}")
     print(f"candidate pairs: {r.pairs:,} of {r.possible:,} possible "
           f"(reduction ratio {_ratio(r.reduction_ratio)}; "
           f"{100 * r.pairs / max(1, r.possible):.3g} % of all pairs)")

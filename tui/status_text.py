@@ -26,7 +26,7 @@ def status_lines(info: StatusReport) -> list[str]:
         out.append(f"sampled      {s['kept_pairs']:,} of {s['population_pairs']:,} candidate "
                    f"pairs kept (--sample-above {s['sample_above']:,}); kept/all per stratum "
                    f"{strata}; estimates weigh to all pairs")
-    out.append(f"blocking     {'; '.join(info.blocking['rules'])} "
+    out.append(f"blocking     {'; '.join(shown(r) for r in info.blocking['rules'])} "
                f"(reduction ratio {ratio_text(info.blocking['reduction_ratio'])})")
     out.append(f"decisions    {many(dec['current_labels'], 'standing label')} on "
                f"{many(dec['pairs_decided'], 'pair')} "
@@ -38,7 +38,7 @@ def status_lines(info: StatusReport) -> list[str]:
     out.append(f"model        {MODEL_NAMES.get(model['ranker'], model['ranker'])} ranks the "
                f"queue ({model['ranker_note']}); threshold {model['threshold']}"
                + ("; one-to-one" if model["one_to_one"] else ""))
-    out += [f"  {line}" for line in model["how_fitted"]]
+    out += [f"  {shown(line)}" for line in model["how_fitted"]]  # they name the columns
     if model.get("one_to_one_suggested"):
         out.append(f"  suggestion: {model['one_to_one_suggested']}")
     out.append(f"odds before the fields {odds_text(math.log(model['odds_before_fields']))}; "
@@ -46,7 +46,7 @@ def status_lines(info: StatusReport) -> list[str]:
     for f in model["fields"]:
         levels = " · ".join(f"{lv['level']} {factor_text(math.log(lv['odds_factor']))}"
                             for lv in f["levels"])
-        out.append(f"  {f['field']:<14} {levels}")
+        out.append(f"  {shown(f['field']):<14} {levels}")
     pol = info.gold_policy
     out.append(f"gold labels  {info.gold_labels:,} (policy: at least {pol['min_reviews']} "
                f"{'review' if pol['min_reviews'] == 1 else 'reviews'}; {pol['rules']})")
