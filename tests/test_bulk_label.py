@@ -144,3 +144,25 @@ def test_a_refit_that_read_its_labels_first_never_overwrites_a_later_one(
         "refit the model on later decisions; that model stands")
     with Project.open(sample_project) as p:  # the next refit is written
         assert not p.refit().superseded
+
+
+def test_pair_ids_that_name_other_pairs_than_the_ids_beside_them_are_refused(
+        sample_project: Path, tmp_path: Path, capsys) -> None:
+    # pair ids belong to one build: from another copy they named other pairs, and the record
+    # ids beside them were ignored, so the labels went to the wrong pairs
+    with Project.open(sample_project) as p:
+        (a1, b1), (a2, b2) = (p.connection.execute(
+            "SELECT left_id, right_id FROM pairs WHERE pair_id = ?", (k,)).fetchone()
+            for k in (1, 2))
+    rows = tmp_path / "labels.csv"
+    rows.write_text(f"pair_id,left_id,right_id,label\n1,{a1},{b1},match\n"
+                    f"2,{a1},{b1},non-match\n", encoding="utf-8")
+    assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(rows)]) == 2
+    assert capsys.readouterr().err.strip() == (
+        f"docket: {rows}: row 3: pair 2 is {a2} and {b2}, but the row names {a1} and {b1}; give "
+        "the pair ids of this project (docket next or the scores export), or leave the "
+        "pair_id column out; nothing was written")
+    with Project.open(sample_project) as p:
+        assert p.decisions() == []
+    rows.write_text(f"pair_id,left_id,right_id,label\n2,{a2},{b2},match\n", encoding="utf-8")
+    assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(rows)]) == 0

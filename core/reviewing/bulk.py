@@ -39,6 +39,23 @@ class BulkRow:
     note: str
 
 
+def _check_ids_agree(project: ProjectFile, path: Path, frame: pd.DataFrame,
+                     pair_ids: list[int]) -> None:
+    """Rows that give a pair id and record ids name one pair both ways. Pair ids belong to one
+    build: from another copy or an edited file they named other pairs, and the ids beside
+    them were ignored, so the labels went to the wrong pairs, unsaid."""
+    ends = {p: (a, b) for p, a, b in project.connection.execute(
+        "SELECT pair_id, left_id, right_id FROM pairs")}
+    for i, (pid, a, b) in enumerate(zip(pair_ids, frame["left_id"], frame["right_id"],
+                                        strict=True)):
+        pair = ends[pid]
+        if (a, b) != pair and (project.link or (b, a) != pair):
+            raise DocketError(f"{path}: row {i + 2}: pair {pid} is {pair[0]} and {pair[1]}, "
+                              f"but the row names {a} and {b}; give the pair ids of this "
+                              "project (docket next or the scores export), or leave the "
+                              "pair_id column out; nothing was written")
+
+
 def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
     frame = read_frame(path)
     frame.columns = plain_names(list(frame.columns),
@@ -66,6 +83,8 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
         if unknown:
             raise DocketError(f"{path}: {many(len(unknown), 'unknown pair id')}: "
                               f"{', '.join(unknown[:5])}; nothing was written")
+        if {"left_id", "right_id"} <= cols:
+            _check_ids_agree(project, path, frame, pair_ids)
     elif {"left_id", "right_id"} <= cols:
         lookup = {(a, b): p for p, a, b in project.connection.execute(
             "SELECT pair_id, left_id, right_id FROM pairs")}
