@@ -166,3 +166,18 @@ def test_pair_ids_that_name_other_pairs_than_the_ids_beside_them_are_refused(
         assert p.decisions() == []
     rows.write_text(f"pair_id,left_id,right_id,label\n2,{a2},{b2},match\n", encoding="utf-8")
     assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(rows)]) == 0
+
+
+def test_a_json_label_row_with_a_key_twice_is_refused(sample_project: Path, tmp_path: Path,
+                                                      capsys) -> None:
+    # the reader kept the last 'label' silently, where a CSV header with a column twice is
+    # refused
+    rows = tmp_path / "labels.jsonl"
+    rows.write_text('{"pair_id": 1, "label": "match"}\n'
+                    '{"pair_id": 2, "label": "match", "label": "non-match"}\n', encoding="utf-8")
+    assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(rows)]) == 2
+    assert capsys.readouterr().err.strip() == (
+        f"docket: {rows}: line 2 gives the key 'label' twice, and which one is meant cannot be "
+        "told; give each key once")
+    with Project.open(sample_project) as p:
+        assert p.decisions() == []

@@ -10,6 +10,7 @@ label is as it was; the log keeps both, as it keeps every undo.
 
 from __future__ import annotations
 
+import json
 import time
 from dataclasses import dataclass
 from pathlib import Path
@@ -18,7 +19,7 @@ import pandas as pd
 
 from ..errors import DocketError
 from ..records.sources import read_frame
-from ..records.text_tables import plain_names
+from ..records.text_tables import bom_encoding, plain_names
 from ..storage import claims, roles
 from ..storage import decisions as log
 from ..storage.project_file import ProjectFile
@@ -56,8 +57,41 @@ def _check_ids_agree(project: ProjectFile, path: Path, frame: pd.DataFrame,
                               "pair_id column out; nothing was written")
 
 
+class _Twice(Exception):
+    pass
+
+
+def _no_key_twice(pairs: list[tuple[str, object]]) -> dict[str, object]:
+    seen: dict[str, object] = {}
+    for key, value in pairs:
+        if key in seen:
+            raise _Twice(key)
+        seen[key] = value
+    return seen
+
+
+def _check_json_keys(path: Path) -> None:
+    """A JSON object that gives a key twice ({"label": "match", "label": "non-match"}): the
+    reader kept the last silently, where a CSV header with a column twice is refused."""
+    if path.suffix.lower() not in (".jsonl", ".ndjson", ".json"):
+        return
+    encoding = bom_encoding(path.read_bytes()[:4]) or "utf-8"
+    text = path.read_text(encoding=encoding, errors="replace").lstrip("\ufeff")
+    chunks = [text] if text.lstrip()[:1] == "[" else text.splitlines()
+    for n, chunk in enumerate(chunks, start=1):
+        try:
+            json.loads(chunk, object_pairs_hook=_no_key_twice)
+        except _Twice as twice:
+            where = "an object" if len(chunks) == 1 and chunk is text else f"line {n}"
+            raise DocketError(f"{path}: {where} gives the key '{twice}' twice, and which one "
+                              "is meant cannot be told; give each key once") from None
+        except ValueError:
+            continue  # (blank lines; anything else the reader has already refused)
+
+
 def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
     frame = read_frame(path)
+    _check_json_keys(path)
     frame.columns = plain_names(list(frame.columns),
                                 ("pair_id", "label", "note", "left_id", "right_id"))
     cols = set(frame.columns)
