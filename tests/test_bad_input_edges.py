@@ -53,6 +53,9 @@ CASES = {
     "JSON object of records": (lambda d: write(d / "wrap.json", json.dumps(
         {"records": [{"id": 1, "name": "a"}, {"id": 2, "name": "b"}]})),
         ["wrap.json", "record 1, 'records' holds a list", "flat object"]),
+    "JSON lines with a nested object": (lambda d: write(d / "nest.jsonl", '{"id": 1, "at": '
+                                                        '{"town": "Oslo"}}\n{"id": 2}\n'),
+                                        ["nest.jsonl", "record 1, 'at' holds an object"]),
     "UTF-16 without a mark": (_utf16_no_bom, ["nobom.csv", "byte-order mark", "UTF-8"]),
     "gzip under a .csv name": (lambda d: _bytes(d / "gz.csv", gzip.compress(b"id,name\n1,a\n")),
                                ["gz.csv", "gzip-compressed", "unpack it"]),

@@ -276,7 +276,7 @@ def _flat(path: Path, frame: pd.DataFrame) -> pd.DataFrame:
             nested = frame[col].map(lambda v: isinstance(v, (list, dict))).to_numpy()
             if nested.any():
                 i = int(nested.nonzero()[0][0])
-                kind = "list" if isinstance(frame[col].iloc[i], list) else "object"
-                raise DocketError(f"{path}: record {i + 1}, '{col}' holds a {kind}; give one "
+                kind = "a list" if isinstance(frame[col].iloc[i], list) else "an object"
+                raise DocketError(f"{path}: record {i + 1}, '{col}' holds {kind}; give one "
                                   "flat object per record (values text, numbers or null)")
     return frame
