@@ -120,6 +120,7 @@ def test_options_that_were_silently_overruled_or_ignored(
 @pytest.mark.parametrize(("rule", "said"), [
     ("name&name", "the key name is given twice"),  # was a KeyError traceback
     ("tokens(name) & town & tokens( name )", "the key tokens(name) is given twice"),
+    ("name[:0]", "name[:0] is the same key for every record"),  # paired every record
 ])
 def test_a_blocking_rule_with_a_key_twice(
         rule: str, said: str, tmp_path: Path, good: Path, capsys) -> None:
@@ -137,9 +138,10 @@ def test_unknown_ids_in_pairs_file(tmp_path: Path, good: Path, capsys) -> None:
     assert not (tmp_path / "p.docket").exists()
 
 
-def test_rule_over_the_cap_suggests_a_tighter_rule(tmp_path: Path, good: Path, capsys) -> None:
-    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(good), "--id", "id",
-                    "--block", "town[:0]", "--max-pairs", "1")
+def test_rule_over_the_cap_suggests_a_tighter_rule(tmp_path: Path, capsys) -> None:
+    oslo = write(tmp_path / "oslo.csv", "id,name,town\n1,Anna,Oslo\n2,Jon,Oslo\n3,Anne,Oslo\n")
+    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(oslo), "--id", "id",
+                    "--block", "town", "--max-pairs", "1")
     assert_one_line_error(code, err, "over the cap", "&")
 
 

@@ -94,6 +94,9 @@ def parse_rule(text: str, fields: list[FieldSpec]) -> Rule:
         if column not in names:
             raise DocketError(f"--block {text!r}: no compared field '{column}'; "
                               f"fields are {', '.join(sorted(names))}")
+        if length is not None and int(length) == 0:  # every value's first 0 characters: one key
+            raise DocketError(f"--block {text!r}: {column}[:0] is the same key for every record; "
+                              f"give at least one character, for example {column}[:3]")
         key = (Key(func, column) if func else Key("prefix", column, int(length)) if length
                else Key("value", column))
         if key in keys:  # a traceback (KeyError) while joining on it
