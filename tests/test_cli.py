@@ -120,6 +120,15 @@ def test_demo_refuses_the_invented_second_reviewer_s_name(tmp_path: Path, capsys
     assert not (tmp_path / "d").exists()
 
 
+def test_demo_into_no_folder_name_is_one_line(tmp_path: Path, capsys,
+                                             monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.chdir(tmp_path)  # --dir '' built the demo in the current folder
+    assert main(["demo", "--dir", "", "--no-open"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert "--dir '': give the demo a folder" in err and "\n" not in err, err
+    assert not list(tmp_path.iterdir())
+
+
 def test_demo_into_a_file_is_one_line(tmp_path: Path, capsys) -> None:
     (tmp_path / "taken").write_text("notes")
     assert main(["demo", "--dir", str(tmp_path / "taken"), "--no-open"]) == 2

@@ -119,6 +119,9 @@ def demo(args: argparse.Namespace) -> int:
         # reviewing as the invented second reviewer would show their labels as one's own
         raise DocketError(f"{DEMO_SECOND_REVIEWER} is the demo's invented second reviewer; "
                           "pass --reviewer NAME with another name")
+    if not args.dir.strip():  # Path("") is the current folder: the demo would land there unasked
+        raise DocketError("--dir '': give the demo a folder (default ./docket-demo; '.' for the "
+                          "current one)")
     folder = Path(args.dir)
     if folder.exists() and not folder.is_dir():
         raise DocketError(f"{folder}: a file, not a folder; give --dir a folder (it is made "
