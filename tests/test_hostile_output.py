@@ -163,3 +163,16 @@ def test_a_newline_in_a_column_name_forges_no_line(tmp_path: Path,
     out = capsys.readouterr().out
     assert "x\\ny" in out
     assert not [line for line in out.splitlines() if line.startswith("y")], out
+
+
+def test_a_newline_in_a_column_name_forges_no_warning_line(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # the warning about a column without values printed its name raw: 'x\ny' began a line
+    rows = [{"id": str(k), "name": n, "x\ny": None} for k, n in
+            enumerate(["Anna Berg", "Anna Berg", "Jon Dahl"])]
+    table = tmp_path / "t.jsonl"
+    table.write_text("".join(json.dumps(r) + "\n" for r in rows), encoding="utf-8")
+    assert main(["new", str(tmp_path / "p.docket"), "--left", str(table), "--block", "*"]) == 0
+    err = capsys.readouterr().err
+    assert "column 'x\\ny' holds no value" in err, err
+    assert not [line for line in err.splitlines() if line.startswith("y")], err
