@@ -181,3 +181,21 @@ def test_a_json_label_row_with_a_key_twice_is_refused(sample_project: Path, tmp_
         "told; give each key once")
     with Project.open(sample_project) as p:
         assert p.decisions() == []
+
+
+def test_label_says_which_labels_the_refit_set_aside(sample_project: Path, tmp_path: Path,
+                                                     capsys) -> None:
+    # It said '(audit pairs, judged apart, and pairs still waiting for another reviewer)',
+    # yet counted only the pairs still open for another reviewer; audit pairs are fitted on.
+    with Project.open(sample_project) as p:
+        overlap = [r[0] for r in p.connection.execute(
+            "SELECT pair_id FROM pairs WHERE overlap = 1 ORDER BY pair_id LIMIT 3")]
+        audit = [r[0] for r in p.connection.execute(
+            "SELECT pair_id FROM pairs WHERE overlap = 0 AND audit = 1 ORDER BY pair_id LIMIT 2")]
+    rows = tmp_path / "labels.csv"
+    rows.write_text("pair_id,label\n" + "".join(f"{i},non-match\n" for i in overlap + audit),
+                    encoding="utf-8")
+    assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(rows)]) == 0
+    out = capsys.readouterr().out
+    assert "2 labelled pairs used; 3 set aside until another reviewer has labelled them" in out
+    assert "audit" not in out

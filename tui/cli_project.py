@@ -131,8 +131,10 @@ def label(args: argparse.Namespace) -> int:
     reviewer = default_reviewer(args.reviewer)
     with open_project(args.project) as project:  # registers the reviewer only if it records
         n, result = project.label_from(Path(args.source), reviewer)
-    aside = (f"; {result.set_aside:,} set aside (audit pairs, judged apart, and pairs still "
-             "waiting for another reviewer)" if result.set_aside else "")
+    # Audit pairs are not among them: they are fitted on, and judged by a model fitted
+    # without them (cross-fitting).
+    aside = (f"; {result.set_aside:,} set aside until another reviewer has labelled "
+             f"{'it' if result.set_aside == 1 else 'them'}" if result.set_aside else "")
     print(f"recorded {many(n, 'decision')} for {reviewer}; {refit_words(result)}"
           f"{'' if result.superseded else aside}")
     return 0
