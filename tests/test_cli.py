@@ -232,3 +232,22 @@ def test_ctrl_c_while_new_writes_leaves_the_old_project_and_says_one_line(
     assert sorted(p.name for p in tmp_path.iterdir()
                   if not p.name.endswith(("-wal", "-shm"))) == sorted(
         [left.name, right.name, path.name])
+
+
+def test_next_writes_a_probability_as_the_screen_does(tiny_tables, tmp_path: Path, capsys,
+                                                      monkeypatch: pytest.MonkeyPatch) -> None:
+    # next printed four decimals: 0.99996 read "1.0000" and 3e-9 "0.0000", certainties the
+    # model never gave, beside a screen that shows 0.99996 for the same pair
+    from docket.core.types import QueueItem
+
+    left, right = tiny_tables
+    project = tmp_path / "t.docket"
+    assert main(["new", str(project), "--left", str(left), "--right", str(right), "--id", "id",
+                 "--block", "town"]) == 0
+    items = [QueueItem(1, "1", "a", 0.99996, "likely match"),
+             QueueItem(2, "2", "b", 3e-9, "audit"), QueueItem(3, "3", "c", 0.25, "uncertain")]
+    monkeypatch.setattr(Project, "next_pairs", lambda self, reviewer, n, claim=False: items)
+    capsys.readouterr()
+    assert main(["next", str(project), "--reviewer", "maya"]) == 0
+    rows = capsys.readouterr().out.splitlines()[1:]
+    assert [r.split("  ")[-2].strip() for r in rows] == ["0.99996", "< 0.000001", "0.250"]

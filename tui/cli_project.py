@@ -10,7 +10,7 @@ from typing import Any
 
 from .cli_base import command, default_reviewer, open_project, refit_words, refuse_to_discard
 from .cli_checks import MOST_LISTED, MOST_WORKERS, at_least, check_engine, share
-from .figures import many, noun
+from .figures import many, noun, probability_text
 from .figures import ratio_text as _ratio
 from .terminal import json_text, shown
 
@@ -119,8 +119,7 @@ def next_pairs(args: argparse.Namespace) -> int:
     print(f"{'pair_id':>8}  {'left_id':<22} {'right_id':<22} {'probability':>11}  why")
     for i in items:
         print(f"{i.pair_id:>8}  {shown(i.left_id):<22} {shown(i.right_id):<22} "
-              f"{i.probability:>11.4f}  "
-              f"{i.reason}")
+              f"{probability_text(i.probability):>11}  {i.reason}")
     if not items:
         print("(the queue is empty for this reviewer)" if args.n > 0
               else "(-n 0: no pair asked for)")

@@ -6,6 +6,7 @@ number, with the count beside it.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping
 from typing import Any
 
@@ -15,6 +16,23 @@ from docket.core import noun as noun
 
 DASH = "—"
 TOO_FEW = "too few pairs to say"
+
+
+def probability_text(prob: float) -> str:
+    """Three decimals; towards 0 or 1, the digits it takes to show the distance to the end.
+
+    0.9994, not "1 - 6e-04": read left to right like any other probability, at most ten
+    characters wide, and never a bare 1 or 0 the model did not give.
+    """
+    if 0.001 <= prob <= 0.999:
+        return f"{prob:.3f}"
+    if prob <= 0.0 or prob >= 1.0:
+        return "0" if prob <= 0.0 else "1"
+    gap = min(prob, 1.0 - prob)
+    if gap < 1e-6:
+        return "< 0.000001" if prob < 0.5 else "> 0.999999"
+    digits = max(4, -math.floor(math.log10(gap)))
+    return f"{prob:.{digits}f}"
 
 
 def number(value: float | None, digits: int = 3) -> str:

@@ -16,9 +16,8 @@ from textual.widgets.option_list import Option
 from docket.core.project import Project
 
 from .. import literal
-from ..figures import many
+from ..figures import many, probability_text
 from ..masking import Mask, masked
-from ..widgets.evidence import probability_text
 
 LIMIT = 50
 

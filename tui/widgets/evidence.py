@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 from rich.text import Text
@@ -13,6 +12,7 @@ from docket.core.types import PairCard
 
 from .. import literal
 from ..diff import PLAIN, Palette
+from ..figures import probability_text
 
 REASONS = {
     "uncertain": "uncertain (hardest first)",
@@ -34,23 +34,6 @@ class YourSide:
     label: str | None = None  # their current label, when the pair was decided before
     note: str = ""  # the note saved with it, or the note waiting for the decision
     note_pending: bool = False
-
-
-def probability_text(prob: float) -> str:
-    """Three decimals; towards 0 or 1, the digits it takes to show the distance to the end.
-
-    0.9994, not "1 - 6e-04": read left to right like any other probability, at most ten
-    characters wide, and never a bare 1 or 0 the model did not give.
-    """
-    if 0.001 <= prob <= 0.999:
-        return f"{prob:.3f}"
-    if prob <= 0.0 or prob >= 1.0:
-        return "0" if prob <= 0.0 else "1"
-    gap = min(prob, 1.0 - prob)
-    if gap < 1e-6:
-        return "< 0.000001" if prob < 0.5 else "> 0.999999"
-    digits = max(4, -math.floor(math.log10(gap)))
-    return f"{prob:.{digits}f}"
 
 
 def _row(text: Text, name: str, value: Text, width: int = 13) -> None:

@@ -23,7 +23,7 @@ from docket.core.types import PairCard, Review
 
 from .. import literal
 from ..diff import PLAIN, Palette
-from .evidence import probability_text
+from ..figures import probability_text
 from .status_line import clock_text
 
 WHY = {  # each short enough for one line of the panel
