@@ -45,6 +45,25 @@ def test_a_label_file_that_says_nothing_clear_writes_nothing(
     assert sample_project.read_bytes() == before
 
 
+@pytest.mark.parametrize("command, name, body, needle", [
+    ("label", "labels.jsonl", '{"pair_id": 1, "label": "match"}\n'
+     '{"pair_id": 2, "label": "yes"}\n', "record 2: label 'yes'"),
+    ("label", "labels.jsonl", '{"pair_id": 1, "label": "match"}\n'
+     '{"pair_id": 1, "label": "non-match"}\n', "records 1 and 2 label pair 1"),
+    ("evaluate", "scores.jsonl", '{"left_id": "N-00001", "right_id": "S-10001", "score": 0.5}\n'
+     '{"left_id": "N-00002", "right_id": "S-10002", "score": "x"}\n', "record 2 has 'x'"),
+])
+def test_a_json_lines_file_names_its_lines_as_they_are_counted(
+        command: str, name: str, body: str, needle: str, sample_project: Path, tmp_path: Path,
+        capsys) -> None:
+    # a JSON-lines file has no header, yet its second line was named "row 3", as in a CSV
+    rows = tmp_path / name
+    rows.write_text(body, encoding="utf-8")
+    args = ["--reviewer", "newbie", "--from"] if command == "label" else ["--predictions"]
+    assert main([command, str(sample_project), *args, str(rows)]) == 2
+    assert needle in capsys.readouterr().err
+
+
 def test_rows_go_in_batches_each_its_own_transaction(sample_project: Path) -> None:
     with Project.open(sample_project) as p:
         ids = [i.pair_id for i in p.next_pairs("ana", 7)]

@@ -12,17 +12,14 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from ..errors import DocketError
+from ..records.sources import row_named
 from ..storage import store
 from ..storage.project_file import ProjectFile
 from .pair_keys import PairKeys, lookup_many
 
 
-def row_number(position: int) -> int:
-    return position + 2  # the header is line 1
-
-
 def fail(path: Path, position: int, what: str) -> DocketError:
-    return DocketError(f"{path}: row {row_number(position)}: {what}")
+    return DocketError(f"{path}: {row_named(path, position)}: {what}")
 
 
 def first(mask: pa.Array | np.ndarray) -> int | None:

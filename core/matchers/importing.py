@@ -20,12 +20,12 @@ import pyarrow.compute as pc
 import pyarrow.parquet as pq
 
 from ..errors import DocketError
-from ..records.sources import detect_format, read_frame
+from ..records.sources import detect_format, read_frame, row_named
 from ..records.text_tables import plain_names
 from ..storage import store
 from ..storage.project_file import ProjectFile
 from . import catalogue
-from .file_rows import Reader, check_ids, fail, first, row_number
+from .file_rows import Reader, check_ids, fail, first
 from .pair_keys import pair_keys
 
 SCORE = "score"
@@ -131,8 +131,8 @@ def _one(name: str, kind: str, values: np.ndarray, pos: np.ndarray, rows: np.nda
     if repeated.any():
         first = at[repeated][0]
         where = rows[inside][at == first][:2]
-        raise fail(path, int(where[1]), f"matcher {name!r} already gave this pair on row "
-                    f"{row_number(int(where[0]))}; give one row per matcher and pair")
+        raise fail(path, int(where[1]), f"matcher {name!r} already gave this pair on "
+                    f"{row_named(path, int(where[0]))}; give one row per matcher and pair")
     scores = np.full(n_pairs, np.nan)
     scores[at] = values[inside]
     out_rows = rows[~inside]

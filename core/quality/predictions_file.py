@@ -9,7 +9,7 @@ import numpy as np
 import pandas as pd
 
 from ..errors import DocketError
-from ..records.sources import read_frame
+from ..records.sources import read_frame, row_named
 from ..records.text_tables import plain_names
 from ..storage import store
 from ..storage.project_file import ProjectFile
@@ -25,8 +25,8 @@ def _flag(values: pd.Series, path: Path) -> np.ndarray:
     text = values.map(lambda v: None if v is None else str(v).strip().lower())
     empty = text[text.isna() | text.eq("")]
     if len(empty):  # was "label value not understood: 'None'"
-        raise DocketError(f"{path}: column label needs match or non-match on every row; row "
-                          f"{int(empty.index[0]) + 2} has no value")
+        raise DocketError(f"{path}: column label needs match or non-match on every row; "
+                          f"{row_named(path, int(empty.index[0]))} has no value")
     bad = sorted({v for v in text if v not in TRUE_WORDS and v not in FALSE_WORDS}, key=str)
     if bad:
         raise DocketError(f"{path}: {many(len(bad), 'label value')} not understood: "
@@ -41,8 +41,8 @@ def _numbers(values: pd.Series, column: str, path: Path) -> np.ndarray:
         first = bad.iloc[0]
         said = ("no value" if first is None or not str(first).strip()  # not "has None"
                 else repr(first))
-        raise DocketError(f"{path}: column {column} needs a number on every row; row "
-                          f"{int(bad.index[0]) + 2} has {said}")
+        raise DocketError(f"{path}: column {column} needs a number on every row; "
+                          f"{row_named(path, int(bad.index[0]))} has {said}")
     return num.to_numpy(dtype=float)
 
 
@@ -79,8 +79,8 @@ def read_predictions(project: ProjectFile, path: str | Path) -> tuple[pd.Series,
     for side in ("left", "right"):
         ids = frame[f"{side}_id"]
         if ids.isna().any():
-            row = int(np.flatnonzero(ids.isna().to_numpy())[0]) + 2
-            raise DocketError(f"{path}: row {row} has no {side}_id")
+            row = row_named(path, int(np.flatnonzero(ids.isna().to_numpy())[0]))
+            raise DocketError(f"{path}: {row} has no {side}_id")
         unknown = sorted(set(ids) - _known_ids(project, side))
         if unknown:
             raise DocketError(f"{path}: {many(len(unknown), side + ' id')} "

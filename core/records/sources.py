@@ -209,11 +209,12 @@ def load_table(path: str | Path, id_column: str | None,
     if empty.any():
         more = "…" if empty.sum() > 5 else ""
         raise DocketError(f"{path}: column '{id_column}' is empty on "
-                          f"{_rows(path, empty.nonzero()[0][:5])}{more}; every record needs an id")
+                          f"{rows_named(path, empty.nonzero()[0][:5])}{more}; every record "
+                          "needs an id")
     dup = ids[ids.duplicated(keep=False)]
     if len(dup):
         first = list(dict.fromkeys(dup.tolist()))[:5]
-        rows = _rows(path, np.flatnonzero((ids == first[0]).to_numpy())[:3])
+        rows = rows_named(path, np.flatnonzero((ids == first[0]).to_numpy())[:3])
         raise DocketError(f"{path}: column '{id_column}' has duplicate ids "
                           f"({', '.join(map(str, first))}{'…' if dup.nunique() > 5 else ''}; "
                           f"'{first[0]}' on {rows}); ids must be unique")
@@ -234,20 +235,31 @@ def _check_edge_spaces(path: Path, id_column: str, ids: pd.Series) -> None:
     clash = trimmed.duplicated(keep=False).to_numpy()
     if clash.any():
         first = trimmed[clash].iloc[0]
-        rows = _rows(path, np.flatnonzero(clash & (trimmed == first).to_numpy())[:5])
+        rows = rows_named(path, np.flatnonzero(clash & (trimmed == first).to_numpy())[:5])
         shown = ", ".join(repr(v) for v in ids[clash & (trimmed == first).to_numpy()][:5])
         raise DocketError(f"{path}: column '{id_column}' holds ids that differ only in spaces "
                           f"at their ends ({shown} on {rows}); trim them so "
                           "each record has one id")
 
 
-def _rows(path: Path, positions: Sequence[int] | np.ndarray) -> str:
-    """Where records sit, as a person finds them: a text table's rows with its header as row 1
-    (the row an editor or spreadsheet shows), or a Parquet or JSON file's records from 1."""
-    if detect_format(path) in ("csv", "tsv"):
-        return (f"{noun(len(positions), 'row')} {', '.join(str(i + 2) for i in positions)} "
-                "(counting the header as row 1)")
-    return f"{noun(len(positions), 'record')} {', '.join(str(i + 1) for i in positions)}"
+def row_word(path: Path) -> tuple[str, int]:
+    """How a file's rows are counted, as a person finds them: a text table's "row" with its
+    header as row 1 (the row an editor or spreadsheet shows), a Parquet or JSON file's
+    "record" from 1, since it has no header (its second line was named "row 3"). The word and
+    what to add to a position from 0."""
+    return ("row", 2) if detect_format(path) in ("csv", "tsv") else ("record", 1)
+
+
+def row_named(path: Path, position: int) -> str:
+    word, first = row_word(path)
+    return f"{word} {position + first}"
+
+
+def rows_named(path: Path, positions: Sequence[int] | np.ndarray) -> str:
+    """Several rows, counted as :func:`row_word` says."""
+    word, first = row_word(path)
+    named = f"{noun(len(positions), word)} {', '.join(str(i + first) for i in positions)}"
+    return named + (" (counting the header as row 1)" if word == "row" else "")
 
 
 def id_like(frame: pd.DataFrame) -> list[str]:

@@ -18,7 +18,7 @@ from pathlib import Path
 import pandas as pd
 
 from ..errors import DocketError
-from ..records.sources import read_frame
+from ..records.sources import read_frame, row_named, row_word
 from ..records.text_tables import bom_encoding, plain_names
 from ..storage import claims, roles
 from ..storage import decisions as log
@@ -51,9 +51,9 @@ def _check_ids_agree(project: ProjectFile, path: Path, frame: pd.DataFrame,
                                         strict=True)):
         pair = ends[pid]
         if (a, b) != pair and (project.link or (b, a) != pair):
-            raise DocketError(f"{path}: row {i + 2}: pair {pid} is {pair[0]} and {pair[1]}, "
-                              f"but the row names {a} and {b}; give the pair ids of this "
-                              "project (docket next or the scores export), or leave the "
+            raise DocketError(f"{path}: {row_named(path, i)}: pair {pid} is {pair[0]} and "
+                              f"{pair[1]}, but the row names {a} and {b}; give the pair ids "
+                              "of this project (docket next or the scores export), or leave the "
                               "pair_id column out; nothing was written")
 
 
@@ -102,11 +102,11 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
         raise DocketError(f"{path}: a header and no rows; give one decision per row")
     if "pair_id" in cols:
         ids = pd.to_numeric(frame["pair_id"], errors="coerce")
-        bad_rows = [i + 2 for i in range(len(ids))
+        bad_rows = [i for i in range(len(ids))
                     if pd.isna(ids.iloc[i]) or not float(ids.iloc[i]).is_integer()]
         if bad_rows:
-            raise DocketError(f"{path}: row {bad_rows[0]}: pair_id "
-                              f"{frame['pair_id'].iloc[bad_rows[0] - 2]!r} must be a whole "
+            raise DocketError(f"{path}: {row_named(path, bad_rows[0])}: pair_id "
+                              f"{frame['pair_id'].iloc[bad_rows[0]]!r} must be a whole "
                               "number (the pair_id column of 'docket next' or the scores "
                               "export)")
         known = {r[0] for r in project.connection.execute("SELECT pair_id FROM pairs")}
@@ -129,7 +129,7 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
             if p is None and not project.link:
                 p = lookup.get((b, a))
             if p is None:
-                missing.append(f"row {i + 2} ({a}, {b})")
+                missing.append(f"{row_named(path, i)} ({a}, {b})")
             else:
                 pair_ids.append(p)
         if missing:
@@ -145,10 +145,10 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
         lab = str(label or "").strip().lower()
         lab = ALIASES.get(lab, lab)
         if not lab:
-            raise DocketError(f"{path}: row {i + 2} has no label; give match, non-match or "
-                              "hold; nothing was written")
+            raise DocketError(f"{path}: {row_named(path, i)} has no label; give match, "
+                              "non-match or hold; nothing was written")
         if lab not in LABELS:
-            raise DocketError(f"{path}: row {i + 2}: label '{label}' is not one of "
+            raise DocketError(f"{path}: {row_named(path, i)}: label '{label}' is not one of "
                               f"{', '.join(LABELS)}; nothing was written")
         rows.append(BulkRow(int(pid), lab, "" if note is None or pd.isna(note) else str(note)))
     _refuse_contradictions(path, rows)
@@ -161,7 +161,8 @@ def _refuse_contradictions(path: Path, rows: list[BulkRow]) -> None:
     for i, r in enumerate(rows):
         j = first.setdefault(r.pair_id, i)
         if rows[j].label != r.label:
-            raise DocketError(f"{path}: rows {j + 2} and {i + 2} label pair {r.pair_id} "
+            word, at = row_word(path)
+            raise DocketError(f"{path}: {word}s {j + at} and {i + at} label pair {r.pair_id} "
                               f"{rows[j].label} and {r.label}; keep the one meant; nothing "
                               "was written")
 
