@@ -20,6 +20,7 @@ _ELSEWHERE = {
     "CAUTION": ("report", "CAUTION"),
     "one_to_one_suggestion": ("report", "one_to_one_suggestion"),
     "one_field_note": ("report", "one_field_note"),
+    "em_rounds": ("report", "em_rounds"),
     "MODEL_NAMES": ("matching.explain", "MODEL_NAMES"),
     "odds_text": ("matching.explain", "odds_text"),
     "factor_text": ("matching.explain", "factor_text"),

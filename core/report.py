@@ -7,6 +7,7 @@ from typing import Any
 
 from .matchers import catalogue
 from .matching.explain import explanation
+from .matching.model import EM_ROUNDS
 from .reviewing import gold, missed
 from .storage import store
 from .storage.project_file import ProjectFile
@@ -14,6 +15,15 @@ from .storage.project_file import ProjectFile
 CAUTION = ("Records may be personal data: keep the project file private (it is created readable "
            "by you alone), mask what reviewers need not see, and let people review before any "
            "merge. Follow your local data-protection law and your organisation's policy.")
+
+
+def em_rounds(rounds: int) -> str:
+    """EM's rounds, and whether they ran out: a fit stopped at its limit (on sparse fields, say)
+    was reported as "500 rounds" like one that had settled."""
+    told = f"{rounds:,} round{'' if rounds == 1 else 's'}"
+    if rounds < EM_ROUNDS:
+        return told
+    return f"{told}, its limit: stopped before it settled"
 
 
 def one_field_note(fields: int, labels_used: int) -> str | None:
@@ -36,7 +46,7 @@ def how_fitted(fs: dict) -> list[str]:
     else:
         out.append("chance agreement (u) estimated among the candidate pairs")
     rounds = fs.get("iterations", 0)
-    out.append(f"agreement among matches (m) by EM, {rounds} round{'' if rounds == 1 else 's'}"
+    out.append(f"agreement among matches (m) by EM, {em_rounds(rounds)}"
                + (f", {fs['labels_used']:,} labels held fixed" if fs.get("labels_used") else ""))
     pooled = [f"{f}: {g}" for f, groups in zip(fs["fields"], fs.get("pooled", []), strict=False)
               for g in groups]

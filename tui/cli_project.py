@@ -34,11 +34,11 @@ def print_built(built: Any) -> None:
         print(f"sampled: {s['kept_pairs']:,} of {s['population_pairs']:,} pairs kept "
               f"(--sample-above {s['sample_above']:,}); every pair's pattern is counted "
               "and estimates are weighted to all pairs")
-    from docket.core import CAUTION, odds_text, one_field_note, one_to_one_suggestion
+    from docket.core import CAUTION, em_rounds, odds_text, one_field_note, one_to_one_suggestion
     prior = min(max(built.model.prior, 1e-300), 1 - 1e-16)
     print(f"model: odds of a match before the fields "
           f"{odds_text(math.log(prior / (1 - prior)))} (fitted in "
-          f"{many(built.model.iterations, 'round')}); audit slice "
+          f"{em_rounds(built.model.iterations)}); audit slice "
           f"{many(built.audit_size, 'pair')}; overlap {many(built.overlap_pairs, 'pair')}")
     few = one_field_note(len(built.fields), 0)
     if few:

@@ -15,6 +15,8 @@ import numpy as np
 from .dependence import fit_shrink
 
 SMOOTH = 0.5  # pseudo-count per level, so no level has m or u of exactly zero
+EM_ROUNDS = 500  # at most; a fit that takes them all stops before it settles
+EM_TOL = 1e-7  # it settles when no parameter moves by more than this in a round
 
 
 @dataclass
@@ -91,7 +93,7 @@ def _level_counts(patterns: np.ndarray, weights: np.ndarray, n_levels: int, f: i
 
 def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]],
            fields: list[str], matches: np.ndarray | None = None,
-           non_matches: np.ndarray | None = None, max_iter: int = 500, tol: float = 1e-7,
+           non_matches: np.ndarray | None = None, max_iter: int = EM_ROUNDS, tol: float = EM_TOL,
            start: FSModel | None = None, u_random: list[np.ndarray] | None = None,
            population: float | None = None) -> FSModel:
     """EM over patterns; ``matches``/``non_matches`` count labelled pairs per pattern.
