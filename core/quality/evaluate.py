@@ -107,7 +107,9 @@ def _report(project: ProjectFile, scores: pd.Series, threshold: float,
     mark = NAIVE_WEIGHTS if set(gold) <= audit_ids else NAIVE_QUEUE
     naive = [_naive(g_s, g_y, t, confidence, mark) for t in ts]
     at = ts.index(round(float(threshold), 12))
-    defined = [r for r in rows if r["f1"]["value"] is not None]
+    # an F1 of 0 everywhere (no labelled match found at any threshold) has no best row: "the
+    # highest F1 0.000 at 0.1, optimistic, likely lower" named the first of equal rows
+    defined = [r for r in rows if r["f1"]["value"]]
     best = max(defined, key=lambda r: r["f1"]["value"]) if defined else None
     suggested = None
     if target_precision is not None or target_recall is not None:

@@ -1,0 +1,32 @@
+"""Evaluate after a few audit labels that are all of one class."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from docket.core import Project
+from docket.tui.cli import main
+
+
+def _label_audit(project: Path, label: str, n: int) -> None:
+    with Project.open(project) as p:
+        for (pid,) in p.connection.execute("SELECT pair_id FROM pairs WHERE audit = 1 "
+                                           f"ORDER BY audit_order LIMIT {n}").fetchall():
+            p.decide(pid, "ana", label)
+
+
+def test_no_labelled_match_names_no_best_f1(sample_project: Path, capsys) -> None:
+    # with every audit label a non-match, F1 is 0 at every threshold, and evaluate said "highest
+    # estimated F1 in the table: 0.000 at 0.1, optimistic: ... likely lower"
+    _label_audit(sample_project, "non-match", 8)
+    assert main(["evaluate", str(sample_project)]) == 0
+    out = capsys.readouterr().out
+    assert "highest estimated F1" not in out and "no labelled match" in out
+    with Project.open(sample_project, readonly=True) as p:
+        assert p.evaluate().best_f1 is None
+
+
+def test_labelled_matches_still_name_the_best_f1(sample_project: Path, capsys) -> None:
+    _label_audit(sample_project, "match", 8)
+    assert main(["evaluate", str(sample_project)]) == 0
+    assert "highest estimated F1 in the table" in capsys.readouterr().out
