@@ -1,7 +1,10 @@
-"""A small L2-regularised logistic regression on one-hot levels (Newton's method, numpy only).
+"""A small L2-regularised logistic regression on one-hot levels.
 
 Used to rank the queue once both classes have labels, when it measures better than the
-Fellegi–Sunter posterior: it does not assume fields are independent.
+Fellegi–Sunter posterior: it does not assume fields are independent. Its coefficients are kept
+in the order the levels are named (:func:`ordered_bounds`): labels drawn near the threshold
+are far from a random sample, and unbounded they taught it that agreeing on a town is evidence
+against a match (the sample after 400 queue-order labels: town exact ÷6.3, different ÷1.8).
 """
 
 from __future__ import annotations
@@ -40,6 +43,19 @@ def level_effects(block: np.ndarray) -> np.ndarray:
     return np.concatenate([cumulative, [0.0, missing]])
 
 
+def ordered_bounds(n_levels: list[int]) -> list[tuple[float | None, float | None]]:
+    """Bounds for the columns of :func:`one_hot` that keep every field's levels in order: the
+    Fellegi–Sunter log-odds and each step from one level to the next better one weigh at least
+    zero, so a better level never adds less than a worse one and exact agreement, whose part is
+    a positive share of its Fellegi–Sunter weight (never negative) plus steps, is never evidence
+    against a match. The bias and each field's missing column are free: missing is its own
+    state, neither agreement nor disagreement."""
+    bounds: list[tuple[float | None, float | None]] = [(None, None), (0.0, None)]
+    for k in n_levels:
+        bounds += [(0.0, None)] * (k - 2) + [(None, None)]
+    return bounds
+
+
 @dataclass
 class Logistic:
     coef: np.ndarray
@@ -49,12 +65,19 @@ class Logistic:
 
 
 def fit_logistic(x: np.ndarray, y: np.ndarray, weight: np.ndarray | None = None,
-                 l2: float = 1.0, iters: int = 50) -> Logistic:
-    """Weighted maximum likelihood with an L2 penalty (not on the bias); deterministic."""
+                 l2: float = 1.0, iters: int = 50,
+                 bounds: list[tuple[float | None, float | None]] | None = None) -> Logistic:
+    """Weighted maximum likelihood with an L2 penalty (not on the bias); deterministic.
+
+    ``bounds`` (one per column, as :func:`ordered_bounds` gives them): the same objective
+    minimised within them by scipy's L-BFGS-B, from the same start (zero, within every bound).
+    """
     w = np.ones(len(y)) if weight is None else np.asarray(weight, dtype=float)
     beta = np.zeros(x.shape[1])
     penalty = np.full(x.shape[1], l2)
     penalty[:2] = 1e-6  # bias and FS log-odds are not shrunk
+    if bounds is not None:
+        return Logistic(_bounded(x, np.asarray(y, dtype=float), w, penalty, bounds))
     for _ in range(iters):
         p = 1.0 / (1.0 + np.exp(-np.clip(x @ beta, -50, 50)))
         grad = x.T @ (w * (p - y)) + penalty * beta
@@ -64,3 +87,19 @@ def fit_logistic(x: np.ndarray, y: np.ndarray, weight: np.ndarray | None = None,
         if np.max(np.abs(step)) < 1e-8:
             break
     return Logistic(beta)
+
+
+def _bounded(x: np.ndarray, y: np.ndarray, w: np.ndarray, penalty: np.ndarray,
+             bounds: list[tuple[float | None, float | None]]) -> np.ndarray:
+    from scipy.optimize import minimize  # only fitting needs it
+
+    def loss(beta: np.ndarray) -> tuple[float, np.ndarray]:
+        z = x @ beta
+        # log(1 + e^z) without overflow; d/dz of the data term is sigmoid(z) - y
+        value = float(np.sum(w * (np.logaddexp(0.0, z) - y * z)) + 0.5 * penalty @ beta ** 2)
+        r = w * (1.0 / (1.0 + np.exp(-np.clip(z, -700, 700))) - y)
+        return value, x.T @ r + penalty * beta
+
+    fit = minimize(loss, np.zeros(x.shape[1]), jac=True, method="L-BFGS-B", bounds=bounds,
+                   options={"maxiter": 2000, "ftol": 1e-13, "gtol": 1e-9})
+    return np.asarray(fit.x, dtype=float)

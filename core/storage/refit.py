@@ -17,7 +17,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..matching.explain import LogOddsTable
-from ..matching.logistic import fit_logistic, one_hot
+from ..matching.logistic import fit_logistic, one_hot, ordered_bounds
 from ..matching.model import FSModel, fit_em
 from ..ordering import queue
 from . import store
@@ -57,7 +57,8 @@ def _log_loss(p: np.ndarray, y: np.ndarray, w: np.ndarray) -> float:
 
 
 def _fold_losses(x: np.ndarray, fs_fit, lab_pat: np.ndarray, lab_y: np.ndarray,
-                 lab_pairs: np.ndarray, patterns: np.ndarray) -> tuple[float, float]:
+                 lab_pairs: np.ndarray, patterns: np.ndarray, bounds: list
+                 ) -> tuple[float, float]:
     """Held-out log loss of each model, five folds by pair id, on the fitting labels."""
     fold = lab_pairs % FOLDS
     fs_pred = np.zeros(len(lab_y))
@@ -68,7 +69,7 @@ def _fold_losses(x: np.ndarray, fs_fit, lab_pat: np.ndarray, lab_y: np.ndarray,
         if not test.any():
             continue
         fs_pred[test] = fs_fit(~test).probability(patterns[lab_pat[test]])
-        lr_pred[test] = fit_logistic(x[lab_pat[~test]], lab_y[~test]).probability(
+        lr_pred[test] = fit_logistic(x[lab_pat[~test]], lab_y[~test], bounds=bounds).probability(
             x[lab_pat[test]])
     return _log_loss(fs_pred, lab_y, ones), _log_loss(lr_pred, lab_y, ones)
 
@@ -104,6 +105,7 @@ def refit(conn: sqlite3.Connection, labels: dict[int, int], mark: int | None = N
     half = lab_pairs % 2
     u_random = [np.asarray(u) for u in base.u] if base.u_source == "random pairs" else None
     n_levels = [len(x) for x in base.level_names]
+    bounds = ordered_bounds(n_levels)  # the ranker's levels kept in order, as the model's are
 
     def fs_fit(mask: np.ndarray) -> FSModel:
         m = np.bincount(lab_pat[mask], weights=lab_y[mask], minlength=len(counts))
@@ -120,7 +122,7 @@ def refit(conn: sqlite3.Connection, labels: dict[int, int], mark: int | None = N
         if ranker == "fellegi-sunter":
             return fs, fs_table
         x = one_hot(patterns, n_levels, fs_table.log_odds(patterns))
-        coef = fit_logistic(x[lab_pat[mask]], lab_y[mask]).coef
+        coef = fit_logistic(x[lab_pat[mask]], lab_y[mask], bounds=bounds).coef
         return fs, LogOddsTable.from_logistic(fs_table, coef, n_levels)
 
     everything = np.ones(len(lab_pairs), dtype=bool)
@@ -130,7 +132,8 @@ def refit(conn: sqlite3.Connection, labels: dict[int, int], mark: int | None = N
     if n_match >= MIN_PER_CLASS and len(lab_y) - n_match >= MIN_PER_CLASS:
         fs0 = LogOddsTable.from_fs(fs_fit(everything))
         x_all = one_hot(patterns, n_levels, fs0.log_odds(patterns))
-        fs_loss, lr_loss = _fold_losses(x_all, fs_fit, lab_pat, lab_y, lab_pairs, patterns)
+        fs_loss, lr_loss = _fold_losses(x_all, fs_fit, lab_pat, lab_y, lab_pairs, patterns,
+                                        bounds)
         if lr_loss < fs_loss:
             ranker = "logistic"
     fs, table = table_fit(everything, ranker)
