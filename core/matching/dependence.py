@@ -17,6 +17,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from .logistic import cross_entropy
+
 FLOOR = 0.05  # a factor near zero would say the fields tell nothing at all
 
 
@@ -32,11 +34,7 @@ def fit_shrink(field_log_odds: np.ndarray, base: float, target: np.ndarray,
     from scipy.optimize import minimize  # only fitting needs it
 
     def loss(theta: np.ndarray) -> tuple[float, np.ndarray]:
-        z = theta[0] + theta[1] * x
-        # log(1 + e^z) without overflow; d/dz of the loss is sigmoid(z) - t
-        soft = np.logaddexp(0.0, z)
-        value = float(np.sum(w * (soft - t * z)))
-        r = w * (1.0 / (1.0 + np.exp(-np.clip(z, -700, 700))) - t)
+        value, r = cross_entropy(theta[0] + theta[1] * x, t, w)
         return value, np.array([r.sum(), (r * x).sum()])
 
     fit = minimize(loss, np.array([base, 1.0]), jac=True, method="L-BFGS-B",

@@ -94,12 +94,16 @@ def _bounded(x: np.ndarray, y: np.ndarray, w: np.ndarray, penalty: np.ndarray,
     from scipy.optimize import minimize  # only fitting needs it
 
     def loss(beta: np.ndarray) -> tuple[float, np.ndarray]:
-        z = x @ beta
-        # log(1 + e^z) without overflow; d/dz of the data term is sigmoid(z) - y
-        value = float(np.sum(w * (np.logaddexp(0.0, z) - y * z)) + 0.5 * penalty @ beta ** 2)
-        r = w * (1.0 / (1.0 + np.exp(-np.clip(z, -700, 700))) - y)
-        return value, x.T @ r + penalty * beta
+        value, r = cross_entropy(x @ beta, y, w)
+        return value + 0.5 * float(penalty @ beta ** 2), x.T @ r + penalty * beta
 
     fit = minimize(loss, np.zeros(x.shape[1]), jac=True, method="L-BFGS-B", bounds=bounds,
                    options={"maxiter": 2000, "ftol": 1e-13, "gtol": 1e-9})
     return np.asarray(fit.x, dtype=float)
+
+
+def cross_entropy(z: np.ndarray, t: np.ndarray, w: np.ndarray) -> tuple[float, np.ndarray]:
+    """Weighted cross-entropy of targets ``t`` in [0, 1] against logistic(``z``), and its
+    derivative by each ``z``: log(1 + e^z) without overflow, sigmoid(z) - t."""
+    value = float(np.sum(w * (np.logaddexp(0.0, z) - t * z)))
+    return value, w * (1.0 / (1.0 + np.exp(-np.clip(z, -700, 700))) - t)
