@@ -142,3 +142,33 @@ def test_for_lm_on_the_command_line(tiny_file: Path, tmp_path: Path,
                  str(mine), "--split-by", "pair", "-o", "-"]) == 0
     lines = capsys.readouterr().out.splitlines()
     assert json.loads(lines[0])["prompt"].startswith("name: ") and " | name: " in lines[0]
+
+
+def test_a_training_export_with_one_side_empty_says_so(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # 80 gold pairs of one hub record form one group, which goes whole to one side: the file
+    # had no training row, and export said only "wrote 80 rows"
+    from docket.core import NewProject
+    from docket.tui.cli import main
+    from docket.tui.cli_gold import empty_side
+    (tmp_path / "l.csv").write_text("id,name\nh,Orla Venn\nk,Tam Brisk\n", encoding="utf-8")
+    (tmp_path / "r.csv").write_text("id,name\n" + "".join(
+        f"c{i},Orla Venn\n" for i in range(6)) + "d,Tam Brisk\n", encoding="utf-8")
+    path = tmp_path / "hub.docket"
+    Project.create(NewProject(path=path, left=tmp_path / "l.csv", right=tmp_path / "r.csv",
+                              id_column="id", rules=["*"], overlap=0.0, seed=0))
+    with Project.open(path) as p:
+        for pid, b in p.connection.execute("SELECT pair_id, right_id FROM pairs "
+                                           "WHERE left_id = 'h'").fetchall():
+            p.decide(pid, "ana", "match" if b.startswith("c") else "non-match")
+    capsys.readouterr()
+    assert main(["export", str(path), "--what", "training", "-o", str(tmp_path / "t.csv")]) == 0
+    err = capsys.readouterr().err
+    sides = pd.read_csv(tmp_path / "t.csv")["split"]
+    assert sides.nunique() == 1 and f"the {'train' if sides[0] == 'test' else 'test'} side " \
+        "is empty (train " in err and "--split-by pair" in err
+    assert main(["export", str(path), "--what", "training", "--test-share", "0",
+                 "-o", str(tmp_path / "t.csv")]) == 0
+    assert "note" not in capsys.readouterr().err  # all on train, as asked
+    assert empty_side(["train", "test"], 0.2, "record") is None
+    assert "none came out test" in (empty_side(["train"] * 3, 0.2, "pair") or "")

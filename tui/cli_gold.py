@@ -163,6 +163,10 @@ def export(args: argparse.Namespace) -> int:
             if args.what == "conflicts" else ""
         write_export(result, args.output, args.format,
                      guard=getattr(args, "formula_guard", True), none=none)
+        if args.what == "training" and "split" in getattr(result, "columns", ()):
+            note = empty_side(list(result["split"]), args.test_share, args.split_by)
+            if note:
+                print(f"note: {note}", file=sys.stderr)
         return 0
     from docket.core import write_rows
     with open_project(args.project, readonly=True) as project:
@@ -174,6 +178,25 @@ def export(args: argparse.Namespace) -> int:
 
 
 # -- exports ------------------------------------------------------------------------------------
+def empty_side(sides: list[str], test_share: float, split_by: str) -> str | None:
+    """Why a training export has nothing on one side, asked for or not: one group of records
+    joined by gold pairs goes whole to one side, so 80 pairs of one hub record all went to
+    test and the file had no training row, unsaid."""
+    n_test = sides.count("test")
+    empty = "test" if not n_test and test_share > 0 else \
+        "train" if n_test == len(sides) else None
+    if not sides or empty is None:
+        return None
+    counts = f"train {len(sides) - n_test:,}, test {n_test:,}"
+    if split_by == "pair":
+        return (f"the {empty} side is empty ({counts}): each pair's side is drawn from its id, "
+                f"and with {many(len(sides), 'gold pair')} none came out {empty}")
+    return (f"the {empty} side is empty ({counts}): gold pairs that share a record go to one "
+            "side together, and too few groups of records are joined by gold pairs to fill "
+            "both; --split-by pair splits the pairs themselves (a record may then sit on both "
+            "sides)")
+
+
 def export_other(project: Any, what: str, args: argparse.Namespace) -> Any:
     """The frame (or, with --for-lm, the list of records) that ``docket export --what``
     writes. ``args`` may carry ``test_share``, ``seed``, ``split_by``, ``for_lm``,
