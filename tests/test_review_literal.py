@@ -6,6 +6,7 @@ Also the character highlights (rapidfuzz opcodes) and masking, with hypothesis i
 from __future__ import annotations
 
 import io
+import math
 import unicodedata
 
 from hypothesis import given, settings
@@ -209,3 +210,13 @@ def test_equal_by_comparison_but_different_text_is_underlined_not_lit():
     assert marked == ["_"] and not any(s.style == PLAIN.differs for s in right.spans)
     left, right = paired("1963-10-03", "03/10/1963", "date", PLAIN, quiet=True)
     assert all(s.style == PLAIN.quiet for s in left.spans + right.spans)
+
+
+def test_a_missing_value_shows_the_factor_the_model_gives_it() -> None:
+    # The card showed '—' for every missing value, yet after a refit the ranker can weigh
+    # one (the sample: born missing x2), so the card's factors did not multiply out to the odds.
+    from docket.tui.widgets.pair_card import factor_cell
+
+    assert factor_cell(0.0, PLAIN, missing=True).plain == "—"  # Fellegi–Sunter: no evidence
+    assert factor_cell(math.log(2.0), PLAIN, missing=True).plain == "×2"
+    assert factor_cell(-math.log(3.0), PLAIN, missing=True).plain == "÷3"

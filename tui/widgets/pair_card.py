@@ -44,10 +44,12 @@ def similarity_bar(sim: float | None, cells: int = BAR_CELLS) -> str:
 
 
 def factor_cell(part: float, palette: Palette, missing: bool = False) -> Text:
-    """How much this field multiplies the odds ("×12", "÷3.5"); missing changes nothing."""
-    if missing:
-        return Text("—", palette.muted)
+    """How much this field multiplies the odds ("×12", "÷3.5"). A missing value is no
+    evidence to Fellegi–Sunter ("—"); the refit's ranker may weigh it by what labels showed,
+    and then its factor is shown, or the card's factors would not multiply out to the odds."""
     text = factor_text(part)
+    if missing and text == "×1":
+        return Text("—", palette.muted)
     if text == "×1":
         return Text(text, palette.muted)
     return Text(text, palette.positive if part > 0 else palette.negative)
