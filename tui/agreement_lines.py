@@ -8,6 +8,7 @@ from typing import Any
 from docket.core.results import AgreementReport
 
 from .figures import TOO_FEW, counted, counted_band, interval, many, number, percent
+from .terminal import padded
 
 
 def _pair_lines(r: dict[str, Any], floor: int, out: list[str]) -> None:
@@ -48,7 +49,8 @@ def _rate_lines(ds: dict[str, Any] | None, out: list[str]) -> None:
                + ("  holds (match / non-match)" if holds else ""))
     for v in ds["reviewers"]:
         sens, spec = v["sensitivity"], v["specificity"]
-        line = (f"  {v['name']:<18} {interval(sens['value'], sens['low'], sens['high']):>22} "
+        line = (f"  {padded(v['name'], 18)} "
+                f"{interval(sens['value'], sens['low'], sens['high']):>22} "
                 f"{interval(spec['value'], spec['low'], spec['high']):>22}")
         if holds:
             line += f"  {percent(v['hold_rate_match'])} / {percent(v['hold_rate_non_match'])}"

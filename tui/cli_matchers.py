@@ -10,7 +10,7 @@ import argparse
 from typing import Any
 
 from .figures import many
-from .terminal import json_text
+from .terminal import json_text, padded
 
 ACTIONS = ("import", "list", "mark", "remove", "ensemble", "queue")
 
@@ -161,7 +161,7 @@ def table_lines(rows: list[dict[str, Any]]) -> list[str]:
     out = [f"  {'matcher':<22}{'kind':<10}{'threshold':>9}  {'group':<14}{'role':<9}"
            f"{'given':>10}{'outside':>9}{'absent':>10}"]
     for m in rows:
-        out.append(f"  {plain(m['name']):<22}{m['kind']:<10}{m['threshold']:>9g}  "
-                   f"{plain(m['variant_group'] or '—'):<14}{m['role'] or '—':<9}"
+        out.append(f"  {padded(plain(m['name']), 22)}{m['kind']:<10}{m['threshold']:>9g}  "
+                   f"{padded(plain(m['variant_group'] or '—'), 14)}{m['role'] or '—':<9}"
                    f"{m['given']:>10,}{m['outside']:>9,}{m['absent']:>10,}")
     return out

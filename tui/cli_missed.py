@@ -11,7 +11,7 @@ import argparse
 import shlex
 
 from .cli_base import command, default_reviewer, open_project
-from .terminal import json_text
+from .terminal import json_text, padded
 
 
 def register(sub: argparse._SubParsersAction) -> None:
@@ -69,6 +69,6 @@ def missed(args: argparse.Namespace) -> int:
     if not found_all:
         print("(no missed matches recorded)")
     for m in found_all:
-        print(f"{(m.left_id):<22} {(m.right_id):<22} "
-              f"{(m.reviewer):<14} {m.recorded_at[:10]}  {(m.note)}")
+        print(f"{padded(m.left_id, 22)} {padded(m.right_id, 22)} "
+              f"{padded(m.reviewer, 14)} {m.recorded_at[:10]}  {m.note}")
     return 0

@@ -12,7 +12,7 @@ from .cli_base import command, default_reviewer, open_project, refit_words, refu
 from .cli_checks import MOST_LISTED, MOST_WORKERS, at_least, check_engine, share
 from .figures import many, noun, probability_text
 from .figures import ratio_text as _ratio
-from .terminal import json_text, shown
+from .terminal import json_text, padded, shown
 
 
 def print_built(built: Any) -> None:
@@ -25,7 +25,7 @@ def print_built(built: Any) -> None:
     print("fields compared: " + ", ".join(f"{shown(f.name)} ({f.kind})" for f in built.fields))
     print(f"blocking rules ({how}):")
     for rule, n in r.per_rule.items():
-        print(f"  {shown(rule):<40} {n:>10,} {noun(n, 'pair')}")
+        print(f"  {padded(rule, 40)} {n:>10,} {noun(n, 'pair')}")
     print(f"candidate pairs: {r.pairs:,} of {r.possible:,} possible "
           f"(reduction ratio {_ratio(r.reduction_ratio)}; "
           f"{100 * r.pairs / max(1, r.possible):.3g} % of all pairs)")
@@ -118,7 +118,7 @@ def next_pairs(args: argparse.Namespace) -> int:
         return 0
     print(f"{'pair_id':>8}  {'left_id':<22} {'right_id':<22} {'probability':>11}  why")
     for i in items:
-        print(f"{i.pair_id:>8}  {shown(i.left_id):<22} {shown(i.right_id):<22} "
+        print(f"{i.pair_id:>8}  {padded(i.left_id, 22)} {padded(i.right_id, 22)} "
               f"{probability_text(i.probability):>11}  {i.reason}")
     if not items:
         print("(the queue is empty for this reviewer)" if args.n > 0

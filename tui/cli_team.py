@@ -12,7 +12,7 @@ from pathlib import Path
 from .agreement_lines import agreement_lines
 from .cli_base import command, default_reviewer, open_project, refit_words
 from .figures import many
-from .terminal import json_text, shown
+from .terminal import json_text, padded
 
 
 def register(sub: argparse._SubParsersAction) -> None:
@@ -92,7 +92,7 @@ def reviewers(args: argparse.Namespace) -> int:
     print(f"{'name':<18} {'role':<12} {'labels':>7} {'holds':>6} {'adjudicated':>11} "
           f"{'time':>9}  added")
     for r in people:
-        print(f"{shown(r['name']):<18} {r['role']:<12} {r['labels']:>7,} {r['holds']:>6,} "
+        print(f"{padded(r['name'], 18)} {r['role']:<12} {r['labels']:>7,} {r['holds']:>6,} "
               f"{r['adjudications']:>11,} {_duration(r['seconds']):>9}  "
               f"{(r['added_at'] or '—')[:19].replace('T', ' ')}")
     return 0

@@ -9,6 +9,7 @@ from typing import Any
 from docket.core.results import Evaluation
 
 from .figures import bounds, estimate, interval, labelled_text, many, noun, number
+from .terminal import padded
 
 
 # -- text -------------------------------------------------------------------------------
@@ -82,7 +83,7 @@ def evaluation_lines(report: Evaluation, name: str) -> list[str]:
                    f"{b['possible_pairs']:,} possible (reduction ratio "
                    f"{b['reduction_ratio']:.4f})")
     for rule, k in b.get("pairs_per_rule", {}).items():
-        out.append(f"  {rule:<40} {k:>12,} {noun(k, 'pair')}")
+        out.append(f"  {padded(rule, 40)} {k:>12,} {noun(k, 'pair')}")
     if report.queue_order is not None:
         out.append(f"queue order: {report.queue_order['text']}")
     if report.machine_rater is not None:

@@ -9,7 +9,7 @@ from docket.core import MODEL_NAMES, factor_text, odds_text
 from docket.core.results import StatusReport
 
 from .figures import many, ratio_text
-from .terminal import shown
+from .terminal import padded, shown
 
 
 def status_lines(info: StatusReport) -> list[str]:
@@ -34,7 +34,7 @@ def status_lines(info: StatusReport) -> list[str]:
                f"{many(dec['retractions'], 'retraction')})")
     for name, c in dec["per_reviewer"].items():
         counts = ", ".join(f"{k} {v:,}" for k, v in c.items() if k != "role")
-        out.append(f"  {shown(name):<16} {c['role']:<12} {counts}")
+        out.append(f"  {padded(name, 16)} {c['role']:<12} {counts}")
     out.append(f"model        {MODEL_NAMES.get(model['ranker'], model['ranker'])} ranks the "
                f"queue ({model['ranker_note']}); threshold {model['threshold']}"
                + ("; one-to-one" if model["one_to_one"] else ""))
@@ -46,7 +46,7 @@ def status_lines(info: StatusReport) -> list[str]:
     for f in model["fields"]:
         levels = " · ".join(f"{lv['level']} {factor_text(math.log(lv['odds_factor']))}"
                             for lv in f["levels"])
-        out.append(f"  {shown(f['field']):<14} {levels}")
+        out.append(f"  {padded(f['field'], 14)} {levels}")
     pol = info.gold_policy
     out.append(f"gold labels  {info.gold_labels:,} (policy: at least {pol['min_reviews']} "
                f"{'review' if pol['min_reviews'] == 1 else 'reviews'}; {pol['rules']})")

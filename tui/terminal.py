@@ -31,6 +31,16 @@ def shown(value: object) -> str:
     return "".join(stand_in(c) or c for c in text)
 
 
+def padded(value: object, width: int) -> str:
+    """``shown(value)`` with spaces after it to ``width`` terminal cells. Padding counted
+    characters: a CJK id (two cells a character) or a Thai one (its vowel marks take none)
+    pushed every column after it out of line."""
+    from rich.cells import cell_len  # the width of each character as a terminal draws it
+
+    text = shown(value)
+    return text + " " * max(0, width - cell_len(text))
+
+
 def _line_safe(text: str) -> str:
     if text.replace("\n", "").isprintable():
         return text
