@@ -97,6 +97,10 @@ def test_holds_are_left_out_by_default_and_counted_on_request(
     (pair,) = json.loads(capsys.readouterr().out)["reviewer_pairs"]
     assert pair["n"] == 51 and pair["confusion"]["categories"] == ["match", "non-match", "hold"]
     assert pair["confusion"]["table"] == [[20, 5, 0], [10, 15, 0], [1, 0, 0]]
+    # a hold is counted among a reviewer's labels yet rates nothing: the heading says so
+    assert run(["agreement", str(sample_project)]) == 0
+    assert capsys.readouterr().out.splitlines()[0].endswith(
+        "ana 51 labels (1 of them a hold), ben 51 labels")
 
 
 def test_too_few_pairs_for_fleiss_kappa_carries_no_band(sample_project: Path, tmp_path: Path,

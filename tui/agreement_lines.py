@@ -68,8 +68,12 @@ def agreement_lines(report: AgreementReport) -> list[str]:
         out.append(f"agreement · {report.name} · no reviewer labels yet")
         return out
     floor = report.min_pairs
+    # holds are among the labels counted, yet rate nothing: "bob 8 labels" were 8 holds
     out.append(f"agreement · {report.name} · {many(len(names), 'reviewer')}: " + ", ".join(
-             f"{n} {many(v['labels'], 'label')}" for n, v in report.reviewers.items()))
+             f"{n} {many(v['labels'], 'label')}"
+             + (f" ({v['holds']:,} of them {'a hold' if v['holds'] == 1 else 'holds'})"
+                if v["holds"] else "")
+             for n, v in report.reviewers.items()))
     out.append(f"({report.conventions['holds']})")
     if not report.reviewer_pairs:
         out.append("\nno two reviewers have pairs in common yet")
