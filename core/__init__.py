@@ -21,6 +21,7 @@ _ELSEWHERE = {
     "one_to_one_suggestion": ("report", "one_to_one_suggestion"),
     "one_field_note": ("report", "one_field_note"),
     "em_rounds": ("report", "em_rounds"),
+    "flat_note": ("report", "flat_note"),
     "MODEL_NAMES": ("matching.explain", "MODEL_NAMES"),
     "odds_text": ("matching.explain", "odds_text"),
     "factor_text": ("matching.explain", "factor_text"),

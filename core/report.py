@@ -26,6 +26,22 @@ def em_rounds(rounds: int) -> str:
     return f"{told}, its limit: stopped before it settled"
 
 
+def flat_note(fs: dict) -> str | None:
+    """Why a model none of whose levels moves the odds much says nothing yet (None when some
+    level does, or labels are in): EM on a small table found no split, and status printed
+    "odds before the fields 1e6 to 1" and a ×1 beside every level, unexplained."""
+    if fs.get("labels_used") or len(fs["fields"]) == 1:  # one field: one_field_note says it
+        return None
+    shrink = fs.get("shrink", 1.0)
+    biggest = max((abs(shrink * math.log2(m / u)) for ms, us in zip(fs["m"], fs["u"], strict=True)
+                   for m, u in zip(ms, us, strict=True) if m > 0 and u > 0), default=0.0)
+    if biggest >= 1.0:  # some level doubles or halves the odds
+        return None
+    return ("no field's level moves the odds by as much as ×2 either way, so every pair has "
+            "about the odds before the fields: EM found nothing that tells matches apart, and "
+            "until pairs are labelled and refit these probabilities are no estimate")
+
+
 def one_field_note(fields: int, labels_used: int) -> str | None:
     """Why a one-field model says little before labels (None when it does not apply)."""
     if fields != 1 or labels_used:
@@ -60,9 +76,9 @@ def how_fitted(fs: dict) -> list[str]:
         out.append("frequent values get their own exact level: " + ", ".join(
             f"{f} ({len(v):,} value{'' if len(v) == 1 else 's'})"
             for f, v in fs["frequent"].items()))
-    note = one_field_note(len(fs["fields"]), fs.get("labels_used", 0))
-    if note:
-        out.append(note)
+    for note in (one_field_note(len(fs["fields"]), fs.get("labels_used", 0)), flat_note(fs)):
+        if note:
+            out.append(note)
     return out
 
 

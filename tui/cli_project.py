@@ -34,15 +34,22 @@ def print_built(built: Any) -> None:
         print(f"sampled: {s['kept_pairs']:,} of {s['population_pairs']:,} pairs kept "
               f"(--sample-above {s['sample_above']:,}); every pair's pattern is counted "
               "and estimates are weighted to all pairs")
-    from docket.core import CAUTION, em_rounds, odds_text, one_field_note, one_to_one_suggestion
+    from docket.core import (
+        CAUTION,
+        em_rounds,
+        flat_note,
+        odds_text,
+        one_field_note,
+        one_to_one_suggestion,
+    )
     prior = min(max(built.model.prior, 1e-300), 1 - 1e-16)
     print(f"model: odds of a match before the fields "
           f"{odds_text(math.log(prior / (1 - prior)))} (fitted in "
           f"{em_rounds(built.model.iterations)}); audit slice "
           f"{many(built.audit_size, 'pair')}; overlap {many(built.overlap_pairs, 'pair')}")
-    few = one_field_note(len(built.fields), 0)
-    if few:
-        print(f"note: {few}")
+    for few in (one_field_note(len(built.fields), 0), flat_note(built.model.to_dict())):
+        if few:
+            print(f"note: {few}")
     hint = built.one_to_one_hint
     if hint is not None and hint.suggest:
         print(f"suggestion: {one_to_one_suggestion({'one_to_one_hint': hint.to_dict()}, 0)}")
