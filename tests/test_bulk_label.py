@@ -218,3 +218,30 @@ def test_label_says_which_labels_the_refit_set_aside(sample_project: Path, tmp_p
     out = capsys.readouterr().out
     assert "2 labelled pairs used; 3 set aside until another reviewer has labelled them" in out
     assert "audit" not in out
+
+
+def test_ids_in_another_unicode_form_are_named_so(tmp_path: Path, capsys) -> None:
+    # a file saved with decomposed accents ('e' + U+0308) named no record, and the message
+    # showed ids that look like the records' own: "row 2 (Zoë-1, Zoë-2) is not a candidate"
+    import unicodedata
+
+    from docket.core import NewProject
+    table = tmp_path / "r.csv"
+    table.write_text("id,name\nZoë-1,Arlo Vesk\nZoë-2,Arlo Vesk\nBo-3,Cai Sint\n",
+                     encoding="utf-8")
+    project = tmp_path / "r.docket"
+    Project.create(NewProject(path=project, left=table, id_column="id", rules=["*"]))
+    nfd = [unicodedata.normalize("NFD", i) for i in ("Zoë-1", "Zoë-2")]
+    labels = tmp_path / "l.csv"
+    labels.write_text(f"left_id,right_id,label\n{nfd[0]},{nfd[1]},match\n", encoding="utf-8")
+    scores = tmp_path / "s.csv"
+    scores.write_text(f"left_id,right_id,score\n{nfd[0]},Bo-3,0.5\n", encoding="utf-8")
+    for argv in (["label", str(project), "--reviewer", "ana", "--from", str(labels)],
+                 ["evaluate", str(project), "--predictions", str(scores)],
+                 ["matchers", str(project), "import", str(scores)]):
+        assert main(argv) == 2
+        err = capsys.readouterr().err
+        assert "'Zoe\\u0308-1' is the record id 'Zo\\xeb-1' in another Unicode form" in err, err
+    labels.write_text("left_id,right_id,label\nZoë-1,Bo-9,match\n", encoding="utf-8")
+    assert main(["label", str(project), "--reviewer", "ana", "--from", str(labels)]) == 2
+    assert "Unicode" not in capsys.readouterr().err

@@ -12,8 +12,7 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from ..errors import DocketError
-from ..records.sources import row_named
-from ..storage import store
+from ..records.sources import form_hint, row_named
 from ..storage.project_file import ProjectFile
 from .pair_keys import PairKeys, lookup_many
 
@@ -25,12 +24,6 @@ def fail(path: Path, position: int, what: str) -> DocketError:
 def first(mask: pa.Array | np.ndarray) -> int | None:
     where = np.flatnonzero(np.asarray(mask, dtype=bool))
     return int(where[0]) if where.size else None
-
-
-def _known(project: ProjectFile, side: str) -> set[str]:
-    table = "right_records" if side == "right" and project.link else "left_records"
-    key = project.meta["right_id_column" if table == "right_records" else "left_id_column"]
-    return {r for (r,) in project.connection.execute(f"SELECT {store.quote(key)} FROM {table}")}
 
 
 def check_ids(table: pa.Table, path: Path) -> None:
@@ -83,10 +76,10 @@ class Reader:
             return
         for side, ids in (("left", a), ("right", b)):
             if side not in self.known:
-                self.known[side] = _known(self.project, side)
+                self.known[side] = self.project.record_ids(side)
             values = ids.take(pa.array(miss)).to_pylist()
             unknown = [i for i, v in zip(miss, values, strict=True) if v not in self.known[side]]
             if unknown:
                 raise fail(path, int(unknown[0]), f"{side}_id {ids[unknown[0]].as_py()!r} "
                             "names no record of the project; check the ids (or the file's "
-                            "sides)")
+                            "sides)" + form_hint([ids[unknown[0]].as_py()], self.known[side]))

@@ -9,9 +9,8 @@ import numpy as np
 import pandas as pd
 
 from ..errors import DocketError
-from ..records.sources import read_frame, row_named
+from ..records.sources import form_hint, read_frame, row_named
 from ..records.text_tables import plain_names
-from ..storage import store
 from ..storage.project_file import ProjectFile
 from ..wording import many, quoted
 
@@ -46,12 +45,6 @@ def _numbers(values: pd.Series, column: str, path: Path) -> np.ndarray:
     return num.to_numpy(dtype=float)
 
 
-def _known_ids(project: ProjectFile, side: str) -> set[str]:
-    table = "right_records" if side == "right" and project.link else "left_records"
-    key = project.meta["right_id_column" if table == "right_records" else "left_id_column"]
-    return {r for (r,) in project.connection.execute(f"SELECT {store.quote(key)} FROM {table}")}
-
-
 def read_predictions(project: ProjectFile, path: str | Path) -> tuple[pd.Series, dict[str, Any]]:
     """Scores per candidate pair id from a matcher's file, and what was read.
 
@@ -81,11 +74,13 @@ def read_predictions(project: ProjectFile, path: str | Path) -> tuple[pd.Series,
         if ids.isna().any():
             row = row_named(path, int(np.flatnonzero(ids.isna().to_numpy())[0]))
             raise DocketError(f"{path}: {row} has no {side}_id")
-        unknown = sorted(set(ids) - _known_ids(project, side))
+        known = project.record_ids(side)
+        unknown = sorted(set(ids) - known)
         if unknown:
             raise DocketError(f"{path}: {many(len(unknown), side + ' id')} "
                               f"{'names' if len(unknown) == 1 else 'name'} no record: "
-                              f"{quoted(unknown)}; give ids exactly as the records have them")
+                              f"{quoted(unknown)}; give ids exactly as the records have them"
+                              f"{form_hint(unknown, known)}")
     if kind is not None:
         score = _numbers(frame[kind], kind, path)
     else:

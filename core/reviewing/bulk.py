@@ -18,7 +18,7 @@ from pathlib import Path
 import pandas as pd
 
 from ..errors import DocketError
-from ..records.sources import read_frame, row_named, row_word
+from ..records.sources import form_hint, read_frame, row_named, row_word
 from ..records.text_tables import bom_encoding, plain_names
 from ..storage import claims, roles
 from ..storage import decisions as log
@@ -135,8 +135,10 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
         if missing:
             are = "1 pair is not a candidate pair" if len(missing) == 1 else \
                 f"{len(missing)} pairs are not candidate pairs"
-            raise DocketError(f"{path}: {are} of this project: {', '.join(missing[:3])}; "
-                              "nothing was written")
+            known = project.record_ids("left") | project.record_ids("right")
+            hint = form_hint([*frame["left_id"], *frame["right_id"]], known)
+            raise DocketError(f"{path}: {are} of this project: {', '.join(missing[:3])}"
+                              f"{hint}; nothing was written")
     else:
         raise DocketError(f"{path}: needs pair_id, or left_id and right_id, beside 'label'")
     rows = []

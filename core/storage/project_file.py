@@ -59,6 +59,13 @@ class ProjectFile:
     def threshold(self) -> float:
         return float(self.meta["threshold"])
 
+    def record_ids(self, side: str) -> set[str]:
+        """The ids of one side's records (``left`` in dedupe mode, whichever side is asked)."""
+        table = "right_records" if side == "right" and self.link else "left_records"
+        key = self.meta["right_id_column" if table == "right_records" else "left_id_column"]
+        return {r for (r,) in self.connection.execute(
+            f"SELECT {store.quote(key)} FROM {table}")}
+
     @property
     def connection(self) -> sqlite3.Connection:
         """For modules of the core that read the store directly (agreement, export)."""
