@@ -238,7 +238,8 @@ def test_ids_in_another_unicode_form_are_named_so(tmp_path: Path, capsys) -> Non
     scores.write_text(f"left_id,right_id,score\n{nfd[0]},Bo-3,0.5\n", encoding="utf-8")
     for argv in (["label", str(project), "--reviewer", "ana", "--from", str(labels)],
                  ["evaluate", str(project), "--predictions", str(scores)],
-                 ["matchers", str(project), "import", str(scores)]):
+                 ["matchers", str(project), "import", str(scores)],
+                 ["missed", str(project), "add", nfd[0], "Bo-3", "--reviewer", "ana"]):
         assert main(argv) == 2
         err = capsys.readouterr().err
         assert "'Zoe\\u0308-1' is the record id 'Zo\\xeb-1' in another Unicode form" in err, err

@@ -15,6 +15,7 @@ from dataclasses import asdict, dataclass
 from typing import Any
 
 from ..errors import DocketError
+from ..records.sources import form_hint
 from ..storage import store
 from ..storage.project_file import ProjectFile
 
@@ -56,7 +57,8 @@ def record(project: ProjectFile, left_id: str, right_id: str, reviewer: str,
             if not _exists(conn, project, side, rid):
                 where = f"the {side} table" if project.link else "the table"
                 raise DocketError(f"no record '{rid}' in {where} of {project.path}; check the "
-                                  "id (ids are matched exactly)")
+                                  "id (ids are matched exactly)"
+                                  + form_hint([rid], project.record_ids(side)))
         pair = conn.execute("SELECT pair_id FROM pairs WHERE left_id = ? AND right_id = ?",
                             (left_id, right_id)).fetchone()
         if pair is not None:
