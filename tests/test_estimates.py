@@ -70,7 +70,7 @@ def test_stratum_without_labels_is_left_out_and_named() -> None:
                     stratum_sizes={"hi": 10, "lo": 100}, drawn={"hi": 2, "lo": 4})
     e = estimate_at(s, 0.5)
     assert e.n_pairs == 10
-    assert "strata lo (100 pairs) have no labels" in " ".join(design_notes(s, 0.5))
+    assert "stratum lo (100 pairs) has no labels" in " ".join(design_notes(s, 0.5))
 
 
 def test_note_bounds_matches_that_may_hide_where_none_was_labelled() -> None:
@@ -80,7 +80,7 @@ def test_note_bounds_matches_that_may_hide_where_none_was_labelled() -> None:
                     drawn={"hi": 2, "lo": 2})
     note = " ".join(design_notes(s, 0.5))
     # Clopper–Pearson upper bound for 0 of 2 is 1 - 0.025 ** 0.5 = 0.842: 84 of 100 pairs
-    assert "no labelled match in strata lo" in note and "up to 84 could hide" in note
+    assert "no labelled match in stratum lo: its" in note and "up to 84 could hide" in note
 
 
 @pytest.mark.parametrize(

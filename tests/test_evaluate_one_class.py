@@ -1,4 +1,4 @@
-"""Evaluate after a few audit labels that are all of one class."""
+"""Evaluate after a few audit labels, or labels all of one class."""
 
 from __future__ import annotations
 
@@ -30,3 +30,13 @@ def test_labelled_matches_still_name_the_best_f1(sample_project: Path, capsys) -
     _label_audit(sample_project, "match", 8)
     assert main(["evaluate", str(sample_project)]) == 0
     assert "highest estimated F1 in the table" in capsys.readouterr().out
+
+
+def test_one_stratum_is_named_in_the_singular(sample_project: Path, capsys) -> None:
+    # "strata 5 have one label each" was said of a single stratum
+    _label_audit(sample_project, "match", 1)
+    assert main(["evaluate", str(sample_project)]) == 0
+    out = capsys.readouterr().out
+    assert "has one label: its variance is not estimated" in out
+    notes = [line for line in out.splitlines() if line.startswith("note at")]
+    assert notes and not any("strata" in line for line in notes if "one label" in line)

@@ -11,7 +11,9 @@ from .intervals import clopper_pearson
 
 
 def _strata(keys: list) -> str:
-    return ", ".join(str(k) for k in sorted(keys, key=str))
+    """"stratum 5" or "strata 0, 1": "strata 5 have one label each" was said of one."""
+    word = "stratum" if len(keys) == 1 else "strata"
+    return f"{word} " + ", ".join(str(k) for k in sorted(keys, key=str))
 
 
 def design_notes(sample: AuditSample, threshold: float, confidence: float = 0.95) -> list[str]:
@@ -20,8 +22,9 @@ def design_notes(sample: AuditSample, threshold: float, confidence: float = 0.95
     missing = [h for h, n in sample.stratum_sizes.items() if n and h not in labelled]
     if missing:
         left_out = sum(sample.stratum_sizes[h] for h in missing)
-        notes.append(f"strata {_strata(missing)} ({left_out:,} pairs) have no labels and are "
-                     "left out")
+        notes.append(f"{_strata(missing)} ({left_out:,} pairs) "
+                     + ("has no labels and is" if len(missing) == 1 else "have no labels and are")
+                     + " left out")
     held = sample.held_counts()
     drawn = sum(sample.drawn[h] for h in labelled)
     waiting = drawn - sample.n_labelled - sum(held.get(h, 0) for h in labelled)
@@ -36,8 +39,9 @@ def design_notes(sample: AuditSample, threshold: float, confidence: float = 0.95
                      "adjudicate them to narrow the bounds")
     single = [h for h, m in labelled.items() if m == 1 and sample.stratum_sizes[h] > 1]
     if single:
-        notes.append(f"strata {_strata(single)} have one label each: their variance is not "
-                     "estimated")
+        notes.append(f"{_strata(single)} " + ("has one label: its" if len(single) == 1 else
+                                                "have one label each: their")
+                     + " variance is not estimated")
     counts = sample.predicted_counts(threshold)
     pred = sample.score >= threshold
     if counts is not None:
@@ -45,7 +49,7 @@ def design_notes(sample: AuditSample, threshold: float, confidence: float = 0.95
                   not (pred & (sample.stratum == h)).any()]
         if unseen:
             k = sum(counts[h] for h in unseen)
-            notes.append(f"{k:,} predicted matches in strata {_strata(unseen)} have no labelled "
+            notes.append(f"{k:,} predicted matches in {_strata(unseen)} have no labelled "
                          "pair: the point counts them at the precision of the other strata; the "
                          "intervals are bounds, from all of them wrong to all of them right")
     no_match = [h for h, m in labelled.items() if sample.stratum_sizes[h] > m
@@ -53,7 +57,8 @@ def design_notes(sample: AuditSample, threshold: float, confidence: float = 0.95
     if no_match:
         hidden = sum(sample.stratum_sizes[h] * clopper_pearson(0, labelled[h], confidence)[1]
                      for h in no_match)
-        notes.append(f"no labelled match in strata {_strata(no_match)}: their matches count as "
+        their = "its" if len(no_match) == 1 else "their"
+        notes.append(f"no labelled match in {_strata(no_match)}: {their} matches count as "
                      f"0, though up to {hidden:,.0f} could hide there ({confidence:.0%} bound per "
                      "stratum), which the recall interval does not reflect")
     return notes
