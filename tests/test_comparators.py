@@ -128,6 +128,19 @@ def test_dates_far_ahead_and_in_the_us_order() -> None:
     assert compare.compare_values("date", far, far)[1][0] == 0
 
 
+def test_an_amount_with_a_decimal_comma_is_no_date() -> None:
+    # pandas read "2.132,07" as 0001-02-07, so a column of such amounts was compared as dates
+    # ("day/month swapped x27" on money)
+    import pandas as pd
+
+    from docket.core.records.fields import detect_kind
+    assert normalise.date("2.132,07") is None and normalise.date("9.000,10") is None
+    assert normalise.date("3 March 1990") == normalise.date("1990-03-03")
+    amounts = pd.Series([f"{k}.{k % 1000:03d},{k % 100:02d}" for k in range(1, 300)])
+    assert detect_kind("betrag", amounts) == "number"
+    assert detect_kind("datum", pd.Series(["04.12.2024", "31.01.2023"] * 50)) == "date"
+
+
 def test_patterns_with_many_levels_stay_distinct() -> None:
     from docket.core.matching.scoring import group_patterns
 

@@ -90,7 +90,7 @@ def date(value: str) -> float | None:
             ts = pd.Timestamp(text)
         except (ValueError, TypeError):
             return None
-        if pd.isna(ts):
+        if pd.isna(ts) or ts.year < 1000:  # a guess: "2.132,07" (an amount) read as 0001-02-07
             return None
         parts = (ts.year, ts.month, ts.day)
     try:
