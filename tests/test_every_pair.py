@@ -42,3 +42,22 @@ def test_small_table_without_keys_compares_every_pair(tmp_path: Path) -> None:
     with Project.open(path) as project:
         ids = project.connection.execute("SELECT left_id, right_id FROM pairs").fetchall()
     assert len(set(map(frozenset, ids))) == 1770
+
+
+def test_no_rule_says_why_and_names_a_field_of_the_table(tmp_path: Path) -> None:
+    # it said only "give one with --block (for example --block 'tokens(name)')", to tables
+    # without a name column and with every field mostly empty
+    rng = np.random.default_rng(5)
+    n = 1000
+    table = pd.DataFrame({"id": [str(i) for i in range(n)],
+                          "qty": np.where(rng.random(n) < 0.1, rng.integers(1, 9, n), -1),
+                          "day": np.where(rng.random(n) < 0.1, "2025-01-02", "")})
+    table["qty"] = table["qty"].astype(str).replace("-1", "")
+    table.to_csv(tmp_path / "rare.csv", index=False)
+    with pytest.raises(DocketError) as refused:
+        Project.create(NewProject(path=tmp_path / "rare.docket", left=tmp_path / "rare.csv",
+                                  id_column="id"))
+    said = str(refused.value)
+    assert "every compared field is empty in more than half of the records (qty " in said
+    assert "--block 'qty'" in said and "--block '*' to compare all 499,500 pairs" in said
+    assert "tokens(name)" not in said

@@ -144,9 +144,32 @@ def rules_for(spec_rules: list[str], left: Table, right: Table | None, fields: l
     rules = autoblock.choose_rules(left.frame, None if right is None else right.frame, fields,
                                    max_pairs)
     if not rules:
-        raise DocketError("no blocking rule could be chosen from the data; give one "
-                          "with --block (for example --block 'tokens(name)')")
+        raise DocketError(_no_rule(left, right, fields, max_pairs))
     return rules, True
+
+
+def _no_rule(left: Table, right: Table | None, fields: list[FieldSpec], max_pairs: int) -> str:
+    """Why no rule was chosen, with an example that names a field of these tables: the line
+    suggested 'tokens(name)' to a table of amounts and dates, and said nothing of why."""
+    def empty(f: FieldSpec) -> float:
+        shares = [left.frame[f.left_column].isna().mean()]
+        if right is not None:
+            shares.append(right.frame[f.right_column].isna().mean())
+        return float(max(shares))
+
+    first = fields[0]
+    example = f"tokens({first.name})" if first.kind in ("name", "text", "longtext") else \
+        first.name
+    out = "no blocking rule could be chosen from the data"
+    sparse = [(f.name, empty(f)) for f in fields]
+    if sparse and all(share > 0.5 for _, share in sparse):
+        out += (": every compared field is empty in more than half of the records ("
+                + ", ".join(f"{name} {share:.0%}" for name, share in sparse[:6])
+                + "), and a key must cover most of them")
+    possible = len(left) * (len(left) - 1) // 2 if right is None else len(left) * len(right)
+    every = f", or --block '*' to compare all {possible:,} pairs" if possible <= max_pairs \
+        else ""
+    return f"{out}; give one with --block (for example --block '{example}'){every}"
 
 
 def blocked_keys(rules: list[blocking.Rule], auto: bool, left: Table, right: Table | None,
