@@ -246,3 +246,21 @@ def test_ids_in_another_unicode_form_are_named_so(tmp_path: Path, capsys) -> Non
     labels.write_text("left_id,right_id,label\nZoë-1,Bo-9,match\n", encoding="utf-8")
     assert main(["label", str(project), "--reviewer", "ana", "--from", str(labels)]) == 2
     assert "Unicode" not in capsys.readouterr().err
+
+
+def test_ids_that_lost_their_leading_zeros_are_named_so(tmp_path: Path, capsys) -> None:
+    # a label file saved from a spreadsheet holds '7' for the record '000007'
+    from docket.core import NewProject
+    table = tmp_path / "r.csv"
+    table.write_text("id,name\n000007,Arlo Vesk\n000008,Arlo Vesk\n09,Bo Rask\n9,Bo Rask\n",
+                     encoding="utf-8")
+    project = tmp_path / "r.docket"
+    Project.create(NewProject(path=project, left=table, id_column="id", rules=["*"]))
+    labels = tmp_path / "l.csv"
+    for row, hint in (("7,000008", "'7' looks like the record id '000007' with its leading "
+                       "zeros dropped"), ("8,9", "'8' looks like the record id '000008'"),
+                      ("000007,10", "")):
+        labels.write_text(f"left_id,right_id,label\n{row},match\n", encoding="utf-8")
+        assert main(["label", str(project), "--reviewer", "ana", "--from", str(labels)]) == 2
+        err = capsys.readouterr().err
+        assert (hint in err) if hint else "leading zeros" not in err, err

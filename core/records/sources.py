@@ -280,6 +280,27 @@ def form_hint(given: Iterable[object], known: Collection[str]) -> str:
                     "(its accents stored as separate marks, or the other way round): save the "
                     "file with its characters as the records have them (composed, NFC, as most "
                     "systems write them)")
+    return _zeros_hint(given, known)
+
+
+def _zeros_hint(given: Iterable[object], known: Collection[str]) -> str:
+    """A hint for an id that is a record's id with its leading zeros dropped, as a spreadsheet
+    does to a column it takes for numbers: '7' for '000007' was refused as naming no pair."""
+    padded: dict[str, str | None] | None = None
+    for value in given:
+        text = str(value).strip()
+        if text in known or not text.isdigit():
+            continue
+        if padded is None:
+            padded = {}
+            for k in known:
+                if k.isdigit() and k.startswith("0"):
+                    short = k.lstrip("0")
+                    padded[short] = None if short in padded else k  # two: cannot tell which
+        twin = padded.get(text.lstrip("0"))
+        if twin is not None:
+            return (f"; '{text}' looks like the record id '{twin}' with its leading zeros "
+                    "dropped, as a spreadsheet does to numbers: keep the ids as text")
     return ""
 
 
