@@ -220,17 +220,22 @@ def test_label_says_which_labels_the_refit_set_aside(sample_project: Path, tmp_p
     assert "audit" not in out
 
 
+def _every_pair_of(tmp_path: Path, rows: str) -> Path:
+    """A project of the records ``rows`` (id,name lines), every pair a candidate."""
+    from docket.core import NewProject
+    table = tmp_path / "r.csv"
+    table.write_text("id,name\n" + rows, encoding="utf-8")
+    project = tmp_path / "r.docket"
+    Project.create(NewProject(path=project, left=table, id_column="id", rules=["*"]))
+    return project
+
+
 def test_ids_in_another_unicode_form_are_named_so(tmp_path: Path, capsys) -> None:
     # a file saved with decomposed accents ('e' + U+0308) named no record, and the message
     # showed ids that look like the records' own: "row 2 (Zoë-1, Zoë-2) is not a candidate"
     import unicodedata
 
-    from docket.core import NewProject
-    table = tmp_path / "r.csv"
-    table.write_text("id,name\nZoë-1,Arlo Vesk\nZoë-2,Arlo Vesk\nBo-3,Cai Sint\n",
-                     encoding="utf-8")
-    project = tmp_path / "r.docket"
-    Project.create(NewProject(path=project, left=table, id_column="id", rules=["*"]))
+    project = _every_pair_of(tmp_path, "Zoë-1,Arlo Vesk\nZoë-2,Arlo Vesk\nBo-3,Cai Sint\n")
     nfd = [unicodedata.normalize("NFD", i) for i in ("Zoë-1", "Zoë-2")]
     labels = tmp_path / "l.csv"
     labels.write_text(f"left_id,right_id,label\n{nfd[0]},{nfd[1]},match\n", encoding="utf-8")
@@ -250,12 +255,8 @@ def test_ids_in_another_unicode_form_are_named_so(tmp_path: Path, capsys) -> Non
 
 def test_ids_that_lost_their_leading_zeros_are_named_so(tmp_path: Path, capsys) -> None:
     # a label file saved from a spreadsheet holds '7' for the record '000007'
-    from docket.core import NewProject
-    table = tmp_path / "r.csv"
-    table.write_text("id,name\n000007,Arlo Vesk\n000008,Arlo Vesk\n09,Bo Rask\n9,Bo Rask\n",
-                     encoding="utf-8")
-    project = tmp_path / "r.docket"
-    Project.create(NewProject(path=project, left=table, id_column="id", rules=["*"]))
+    project = _every_pair_of(tmp_path, "000007,Arlo Vesk\n000008,Arlo Vesk\n09,Bo Rask\n"
+                                       "9,Bo Rask\n")
     labels = tmp_path / "l.csv"
     for row, hint in (("7,000008", "'7' looks like the record id '000007' with its leading "
                        "zeros dropped"), ("8,9", "'8' looks like the record id '000008'"),
