@@ -40,3 +40,15 @@ def test_one_stratum_is_named_in_the_singular(sample_project: Path, capsys) -> N
     assert "has one label: its variance is not estimated" in out
     notes = [line for line in out.splitlines() if line.startswith("note at")]
     assert notes and not any("strata" in line for line in notes if "one label" in line)
+
+
+def test_predicted_counts_say_they_cover_the_labelled_strata_only(sample_project: Path,
+                                                                  capsys) -> None:
+    # "predicted matches among 440 candidate pairs" of a project holding 2,690: the strata
+    # without labels are left out, which the count did not say
+    from docket.tui.screens.quality_table import notes_text
+    _label_audit(sample_project, "match", 1)
+    assert main(["evaluate", str(sample_project)]) == 0
+    assert "those of the strata with labels (" in capsys.readouterr().out
+    with Project.open(sample_project, readonly=True) as p:
+        assert "those of the strata with labels (" in notes_text(p.evaluate()).plain

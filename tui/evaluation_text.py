@@ -8,7 +8,7 @@ from typing import Any
 
 from docket.core.results import Evaluation
 
-from .figures import bounds, estimate, interval, labelled_text, many, noun, number
+from .figures import among_pairs, bounds, estimate, interval, labelled_text, many, noun, number
 from .terminal import padded
 
 
@@ -52,8 +52,8 @@ def evaluation_lines(report: Evaluation, name: str) -> list[str]:
     first = report.at_threshold
     out.append(f"  * decision threshold. Intervals: {first['precision']['method']} for "
                f"precision, recall and F1 (linearised variance, with an allowance for strata "
-               f"that show no error); predicted matches among "
-               f"{many(first['n_pairs'], 'candidate pair')}.")
+               f"that show no error); predicted matches "
+               f"{among_pairs(first['n_pairs'], a.get('strata', []))}.")
     bound = held_line(first)
     if bound:
         out.append(bound)

@@ -35,6 +35,17 @@ def probability_text(prob: float) -> str:
     return f"{prob:.{digits}f}"
 
 
+def among_pairs(n_pairs: int, strata: list[Mapping[str, Any]]) -> str:
+    """"among N candidate pairs", saying when N is only those of the strata with labels: after
+    a few labels evaluate said "among 440 candidate pairs" of a project that holds 2,690."""
+    total = sum(int(s.get("pairs", 0)) for s in strata)
+    text = f"among {many(n_pairs, 'candidate pair')}"
+    if 0 < n_pairs < total:
+        text += (f", those of the strata with labels ({total - n_pairs:,} of the {total:,} lie "
+                 "in strata with none)")
+    return text
+
+
 def number(value: float | None, digits: int = 3) -> str:
     return DASH if value is None else f"{value:.{digits}f}"
 

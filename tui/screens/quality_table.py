@@ -16,7 +16,7 @@ from docket.core import DEFAULT_THRESHOLDS
 from docket.core.results import Evaluation
 
 from ..diff import PLAIN, Palette
-from ..figures import bounds, many
+from ..figures import among_pairs, bounds, many
 
 NARROW_BELOW = 110  # screen widths below this get the narrow threshold table
 WIDE_LABELS = ("", "threshold", "precision [95 % CI]", "recall [95 % CI]", "F1 [95 % CI]",
@@ -87,7 +87,8 @@ def notes_text(report: Evaluation, palette: Palette = PLAIN) -> Text:
     at, naive = report.at_threshold, report.naive_at_threshold
     text = Text(f"* the project's decision threshold, {report.threshold:g}. Intervals: "
                 f"{at['precision']['method']} for precision, recall and F1. Predicted: "
-                f"matches predicted among {many(at['n_pairs'], 'candidate pair')}.\n", p.muted)
+                f"matches predicted {among_pairs(at['n_pairs'], report.audit.get('strata', []))}"
+                ".\n", p.muted)
     if at.get("held"):
         text.append(f"{many(at['held'], 'held audit pair')}, all wrong … all right: precision "
                     f"{bounds(at['precision_bounds'])}, recall {bounds(at['recall_bounds'])}, "
