@@ -52,3 +52,13 @@ def test_predicted_counts_say_they_cover_the_labelled_strata_only(sample_project
     assert "those of the strata with labels (" in capsys.readouterr().out
     with Project.open(sample_project, readonly=True) as p:
         assert "those of the strata with labels (" in notes_text(p.evaluate()).plain
+
+
+def test_a_recall_target_without_a_labelled_match_says_recall_is_undefined(
+        sample_project: Path, capsys) -> None:
+    # "no threshold reaches estimated recall 0.9", where no threshold has a recall at all
+    _label_audit(sample_project, "non-match", 8)
+    assert main(["evaluate", str(sample_project), "--target-recall", "0.9"]) == 0
+    assert "recall cannot be estimated at any threshold" in capsys.readouterr().out
+    assert main(["evaluate", str(sample_project), "--target-precision", "0.9"]) == 0
+    assert "no threshold reaches estimated precision 0.9" in capsys.readouterr().out

@@ -76,6 +76,14 @@ def _blocking(project: ProjectFile) -> dict[str, Any]:
             "reduction_ratio": b.get("reduction_ratio")}
 
 
+def _unreached(which: str, goal: float | None, sample: estimates.AuditSample) -> str:
+    # with no labelled match, recall is undefined at every threshold, not short of the goal
+    if which == "recall" and not sample.label.any():
+        return ("no audit pair is labelled a match yet, so recall cannot be estimated at any "
+                "threshold")
+    return f"no threshold reaches estimated {which} {goal}"
+
+
 def _check_target(name: str, value: float | None) -> None:
     if value is not None and not 0.0 < value <= 1.0:
         raise DocketError(f"--target-{name} {value}: give a share above 0, at most 1")
@@ -120,7 +128,7 @@ def _report(project: ProjectFile, scores: pd.Series, threshold: float,
             "target": which, "goal": goal, "threshold": t,
             "estimate": None if t is None else
             estimates.estimate_at(sample, t, confidence).to_dict(),
-            "note": (f"no threshold reaches estimated {which} {goal}" if t is None else
+            "note": (_unreached(which, goal, sample) if t is None else
                      "chosen on the point estimates of this sample: read the interval at it "
                      "before relying on it")}
     counts, held = sample.labelled_counts(), sample.held_counts()
