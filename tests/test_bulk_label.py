@@ -265,3 +265,20 @@ def test_ids_that_lost_their_leading_zeros_are_named_so(tmp_path: Path, capsys) 
         assert main(["label", str(project), "--reviewer", "ana", "--from", str(labels)]) == 2
         err = capsys.readouterr().err
         assert (hint in err) if hint else "leading zeros" not in err, err
+
+
+def test_a_link_row_with_its_ids_swapped_is_named_so(tiny_tables, tmp_path: Path,
+                                                      capsys) -> None:
+    # "(a, 1) is not a candidate pair", where (1, a) is one: the sides were swapped
+    left, right = tiny_tables
+    project = tmp_path / "t.docket"
+    assert main(["new", str(project), "--left", str(left), "--right", str(right), "--id", "id",
+                 "--block", "*"]) == 0
+    labels = tmp_path / "l.csv"
+    labels.write_text("left_id,right_id,label\na,1,match\n", encoding="utf-8")
+    capsys.readouterr()
+    assert main(["label", str(project), "--reviewer", "ana", "--from", str(labels)]) == 2
+    assert "1 of them is a pair with its ids the other way round" in capsys.readouterr().err
+    labels.write_text("left_id,right_id,label\n1,zz,match\n", encoding="utf-8")
+    assert main(["label", str(project), "--reviewer", "ana", "--from", str(labels)]) == 2
+    assert "other way round" not in capsys.readouterr().err

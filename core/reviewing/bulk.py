@@ -124,19 +124,24 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
             "SELECT pair_id, left_id, right_id FROM pairs")}
         pair_ids = []
         missing: list[str] = []
+        swapped = 0  # link rows naming a pair right id first
         for i, (a, b) in enumerate(zip(frame["left_id"], frame["right_id"], strict=True)):
             p = lookup.get((a, b))
             if p is None and not project.link:
                 p = lookup.get((b, a))
             if p is None:
                 missing.append(f"{row_named(path, i)} ({a}, {b})")
+                swapped += project.link and (b, a) in lookup
             else:
                 pair_ids.append(p)
         if missing:
             are = "1 pair is not a candidate pair" if len(missing) == 1 else \
                 f"{len(missing)} pairs are not candidate pairs"
             known = project.record_ids("left") | project.record_ids("right")
-            hint = form_hint([*frame["left_id"], *frame["right_id"]], known)
+            hint = form_hint([*frame["left_id"], *frame["right_id"]], known) or (
+                f"; {many(swapped, 'of them is', 'of them are')} a pair with its ids the other "
+                "way round: left_id takes the left table's id, right_id the right's"
+                if swapped else "")
             raise DocketError(f"{path}: {are} of this project: {', '.join(missing[:3])}"
                               f"{hint}; nothing was written")
     else:
