@@ -282,3 +282,8 @@ def test_a_link_row_with_its_ids_swapped_is_named_so(tiny_tables, tmp_path: Path
     labels.write_text("left_id,right_id,label\n1,zz,match\n", encoding="utf-8")
     assert main(["label", str(project), "--reviewer", "ana", "--from", str(labels)]) == 2
     assert "other way round" not in capsys.readouterr().err
+    scores = tmp_path / "s.csv"
+    scores.write_text("left_id,right_id,score\na,1,0.5\n", encoding="utf-8")
+    assert main(["evaluate", str(project), "--predictions", str(scores)]) == 2
+    assert "it is the right table's: left_id takes the left table's ids" in \
+        capsys.readouterr().err

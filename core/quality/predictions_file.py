@@ -45,6 +45,15 @@ def _numbers(values: pd.Series, column: str, path: Path) -> np.ndarray:
     return num.to_numpy(dtype=float)
 
 
+def _sides_hint(project: ProjectFile, side: str, unknown: list[str]) -> str:
+    """A link file whose columns hold the other side's ids, said as such."""
+    other = "right" if side == "left" else "left"
+    if not project.link or not set(unknown) <= project.record_ids(other):
+        return ""
+    return (f"; {'it is' if len(unknown) == 1 else 'they are'} the {other} table's: "
+            f"{side}_id takes the {side} table's ids")
+
+
 def read_predictions(project: ProjectFile, path: str | Path) -> tuple[pd.Series, dict[str, Any]]:
     """Scores per candidate pair id from a matcher's file, and what was read.
 
@@ -80,7 +89,7 @@ def read_predictions(project: ProjectFile, path: str | Path) -> tuple[pd.Series,
             raise DocketError(f"{path}: {many(len(unknown), side + ' id')} "
                               f"{'names' if len(unknown) == 1 else 'name'} no record: "
                               f"{quoted(unknown)}; give ids exactly as the records have them"
-                              f"{form_hint(unknown, known)}")
+                              f"{form_hint(unknown, known) or _sides_hint(project, side, unknown)}")
     if kind is not None:
         score = _numbers(frame[kind], kind, path)
     else:
