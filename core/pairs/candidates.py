@@ -166,7 +166,7 @@ def _no_rule(left: Table, right: Table | None, fields: list[FieldSpec], max_pair
         out += (": every compared field is empty in more than half of the records ("
                 + ", ".join(f"{name} {share:.0%}" for name, share in sparse[:6])
                 + "), and a key must cover most of them")
-    possible = len(left) * (len(left) - 1) // 2 if right is None else len(left) * len(right)
+    possible = possible_pairs(left, right)
     every = f", or --block '*' to compare all {possible:,} pairs" if possible <= max_pairs \
         else ""
     return f"{out}; give one with --block (for example --block '{example}'){every}"
