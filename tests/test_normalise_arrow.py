@@ -95,3 +95,15 @@ def test_a_column_of_few_values_normalises_as_a_column_of_many() -> None:
     for func in FUNCS:
         assert distinct.per_distinct(few, func).tolist() == \
             distinct.per_distinct(many, func)[:len(few)].tolist(), func.__name__
+
+
+def test_a_code_written_with_or_without_its_separator_is_one_word() -> None:
+    # worked by hand: a separator beside a digit inside a word is dropped ('DC-3716' is the
+    # code dc3716, as product codes and house numbers are written either way; common practice),
+    # a separator between letters ('Over-Ear') or standing alone keeps the words apart
+    values = ["Kamek Blender DC-3716", "KAMEK blender dc3716", "KDL-40V4100 Over-Ear",
+              "1.7L Kettle", "x - 3", "Jean-Luc", "a-1-b-2"]
+    got = [normalise.words(v) for v in values]
+    assert got == ["kamek blender dc3716", "kamek blender dc3716", "kdl40v4100 over ear",
+                   "17l kettle", "x 3", "jean luc", "a1b2"]
+    assert apply(np.array(values, dtype=object), normalise.words) == got

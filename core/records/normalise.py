@@ -17,6 +17,9 @@ import numpy as np
 import pandas as pd
 
 _NON_WORD = re.compile(r"[^\w]+", re.UNICODE)
+# A hyphen, dot or slash beside a digit inside a word ('DC-3716', 'KDL-40V4100', '1.7L') is
+# part of a code written one of several ways: drop it, so that 'DC-3716' and 'dc3716' meet.
+_CODE_JOIN = re.compile(r"(?<=\d)[-./](?=\w)|(?<=\w)[-./](?=\d)", re.UNICODE)
 _SEPARATORS = re.compile(r"[\s\-./()_]+")
 _PHONE = re.compile(r"^\+?\d{7,}$")
 _ISO = re.compile(r"^(\d{4})-(\d{1,2})-(\d{1,2})")
@@ -40,7 +43,8 @@ def fold(value: str) -> str:
 
 
 def words(value: str) -> str | None:
-    text = _NON_WORD.sub(" ", fold(html.unescape(value) if "&" in value else value)).strip()
+    text = fold(html.unescape(value) if "&" in value else value)
+    text = _NON_WORD.sub(" ", _CODE_JOIN.sub("", text)).strip()
     return " ".join(text.split()) or None
 
 

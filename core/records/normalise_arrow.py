@@ -22,11 +22,17 @@ _ASCII_BLANK = "\t\n\x0b\x0c\r\x1c\x1d\x1e\x1f "
 _ASCII_SPACE = r"\t\n\x0b\x0c\r\x1c-\x1f "  # the same characters, as a regular expression
 _SEPARATORS = rf"[{_ASCII_SPACE}\-./()_]+"
 _PHONE = r"^\+?[0-9]{7,}$"
+# where normalise.words drops a separator beside a digit ('DC-3716'): those values take the
+# per-value path, which is one pattern with look-arounds
+_CODE_JOINED = r"[0-9][-./][0-9A-Za-z_]|[0-9A-Za-z_][-./][0-9]"
 
 
-def _fast(values: pa.Array) -> np.ndarray:
-    """Which values the Arrow path may take: ASCII, and (for HTML entities) no '&'."""
+def _fast(values: pa.Array, worded: bool) -> np.ndarray:
+    """Which values the Arrow path may take: ASCII, (for HTML entities) no '&', and for words
+    no separator joining a code."""
     ok = pc.and_(pc.string_is_ascii(values), pc.invert(pc.match_substring(values, "&")))
+    if worded:
+        ok = pc.and_(ok, pc.invert(pc.match_substring_regex(values, _CODE_JOINED)))
     return ok.to_numpy(zero_copy_only=False)
 
 
@@ -128,7 +134,7 @@ def apply(uniques: np.ndarray, func: Callable[[str], object]) -> list[object] | 
         values = pa.array(uniques, type=pa.large_string())
     except (pa.ArrowInvalid, pa.ArrowTypeError, UnicodeEncodeError):
         return None
-    fast = _fast(values)
+    fast = _fast(values, many in (words_many, name_many))
     out = np.empty(len(uniques), dtype=object)
     ix = np.flatnonzero(fast)
     if len(ix):
