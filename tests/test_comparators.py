@@ -111,10 +111,21 @@ def test_every_kind_has_a_comparison_rule() -> None:
 def test_numbers_are_judged_pair_by_pair() -> None:
     # One non-integer elsewhere in the chunk must not turn 2000 vs 2019 (years: 19 apart, far
     # beyond one unit) into "within 1 %". Common practice: integers such as years differ by units.
+    names = compare.level_names("number")
     alone = compare.compare_values("number", np.array([2000.0]), np.array([2019.0]))[1]
     mixed = compare.compare_values("number", np.array([2000.0, 12.5]),
                                    np.array([2019.0, 12.5]))[1]
-    assert alone[0] == mixed[0] == 2
+    assert names[alone[0]] == names[mixed[0]] == "within 10 %"
+
+
+def test_numbers_a_few_percent_apart_have_a_level_of_their_own() -> None:
+    # Common practice: a price or weight taken at another time or shop differs by a few percent,
+    # which says more than a number of another size altogether. Worked by hand.
+    names = compare.level_names("number")
+    a = np.array([100.5, 100.5, 100.5, 100.5, 1299.0, 40.0])
+    b = np.array([100.5, 101.0, 108.0, 125.0, 1300.0, 4.0])
+    got = [names[x] for x in compare.compare_values("number", a, b)[1]]
+    assert got == ["exact", "near", "within 10 %", "different", "near", "different"]
 
 
 def test_dates_far_ahead_and_in_the_us_order() -> None:
@@ -139,6 +150,23 @@ def test_an_amount_with_a_decimal_comma_is_no_date() -> None:
     amounts = pd.Series([f"{k}.{k % 1000:03d},{k % 100:02d}" for k in range(1, 300)])
     assert detect_kind("betrag", amounts) == "number"
     assert detect_kind("datum", pd.Series(["04.12.2024", "31.01.2023"] * 50)) == "date"
+
+
+def test_amounts_written_the_ways_shops_write_them() -> None:
+    # Worked by hand. A decimal comma ('1.299,00', one or two digits after the comma) was read
+    # with its comma dropped (2.132,07 -> 2.13207), and a currency sign or code made the value
+    # no number at all, so one shop's '$1,299.00' never met another's '1299'.
+    import pandas as pd
+
+    from docket.core.records.fields import detect_kind
+    same = ["1299", "1,299.00", "1.299,00", "$1,299", "1 299,00 EUR", "EUR 1299.00", "€1.299,00"]
+    assert {normalise.number(v) for v in same} == {1299.0}
+    assert [normalise.number(v) for v in ("2.132,07", "12,5", "10,000", "£ 3", "-3.5")] == [
+        2132.07, 12.5, 10000.0, 3.0, -3.5]
+    # letters that are no currency keep a code a code
+    assert normalise.number("ABC123") is None and normalise.number("EUR") is None
+    prices = pd.Series([f"${k},{k % 1000:03d}.{k % 100:02d}" for k in range(1, 300)])
+    assert detect_kind("price", prices) == "number"
 
 
 def test_patterns_with_many_levels_stay_distinct() -> None:

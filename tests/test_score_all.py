@@ -187,3 +187,31 @@ def test_a_damaged_or_foreign_model_file_gets_one_line(sample_project_file: Path
                         "-o", str(tmp_path / f"out{i}"), "--model", str(bad))
         assert_one_line_error(code, err, needle)
         assert not (tmp_path / f"out{i}").exists()
+
+
+def test_a_project_from_before_numbers_had_four_levels_is_refused(tmp_path: Path,
+                                                                  capsys) -> None:
+    # A project built when a number had three levels (exact, near, different) and missing: its
+    # weights, read by today's levels, would give 'different' the weight of 'within 10 %' and
+    # 'missing' that of 'different'. Simulated by taking the 'within 10 %' weight out.
+    import sqlite3
+
+    records = tmp_path / "r.csv"
+    records.write_text("id,name,price\n1,Ana Berg,10.5\n2,Ana Berg,10.5\n3,Bo Lind,99.5\n",
+                       encoding="utf-8")
+    one = tmp_path / "one.docket"
+    assert main(["new", str(one), "--left", str(records), "--block", "*"]) == 0
+    with sqlite3.connect(one) as conn:
+        explain = json.loads(conn.execute("SELECT value FROM meta WHERE key = 'explain'"
+                                          ).fetchone()[0])
+        del explain["parts"][1][2]
+        conn.execute("UPDATE meta SET value = ? WHERE key = 'explain'", (json.dumps(explain),))
+    conn.close()
+    pairs = tmp_path / "pairs.csv"
+    pairs.write_text("left_id,right_id\n1,2\n", encoding="utf-8")
+    code, err = run(capsys, "score", str(one), "--pairs", str(pairs), "-o", str(tmp_path / "o"))
+    assert_one_line_error(code, err, "built by an older docket", "'price' (number) has 4 "
+                          "log-odds for 5 levels", "build it again")
+    code, err = run(capsys, "export", str(one), "--what", "model", "-o", str(tmp_path / "m"))
+    assert_one_line_error(code, err, "built by an older docket")
+    assert not (tmp_path / "o").exists() and not (tmp_path / "m").exists()

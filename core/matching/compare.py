@@ -72,7 +72,7 @@ KINDS: dict[str, KindRule] = {
     "text": KindRule(("exact", "close", "similar", "different"), (0.90, 0.70)),
     "longtext": KindRule(("exact", *_bands(LONG_CUTS), "different"), LONG_CUTS),
     "code": KindRule(("exact", "one edit", "different"), ()),
-    "number": KindRule(("exact", "near", "different"), ()),
+    "number": KindRule(("exact", "near", "within 10 %", "different"), ()),
     "date": KindRule(("exact", "day/month swapped", "within a month", "different"), ()),
 }
 
@@ -143,7 +143,9 @@ def _number(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     tol = np.where(integers, 1.0, 0.01 * np.maximum(np.abs(a), np.abs(b)))
     tol = np.where(tol == 0, 1e-9, tol)
     sim = (1.0 / (1.0 + diff / tol)).astype(np.float32)
-    lv = np.where(diff == 0, 0, np.where(diff <= tol, 1, 2)).astype(np.int8)
+    rough = 0.1 * np.maximum(np.abs(a), np.abs(b))
+    lv = np.where(diff == 0, 0, np.where(diff <= tol, 1, np.where(diff <= rough, 2, 3)))
+    lv = lv.astype(np.int8)
     return sim, lv
 
 

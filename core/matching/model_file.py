@@ -26,7 +26,7 @@ from .explain import LogOddsTable, explanation
 from .scoring import compare_pairs
 
 FORMAT = "docket-model"
-VERSION = 2
+VERSION = 3  # 3: numbers have a level 'within 10 %'
 HOW_TO = "export one with 'docket export PROJECT --what model -o FILE'"
 
 
@@ -102,9 +102,15 @@ class ScoringModel:
 
 def from_meta(meta: dict[str, Any]) -> ScoringModel:
     """The model a project scores with now, from its meta (read-only)."""
-    return ScoringModel([FieldSpec(**f) for f in meta["fields"]],
-                        dict(meta["fs_model"].get("frequent", {})), explanation(meta),
-                        float(meta["threshold"]))
+    model = ScoringModel([FieldSpec(**f) for f in meta["fields"]],
+                         dict(meta["fs_model"].get("frequent", {})), explanation(meta),
+                         float(meta["threshold"]))
+    problem = model.problem()
+    if problem:  # levels this docket no longer gives: scoring would read the wrong weights
+        raise DocketError(f"this project was built by an older docket ({problem}); build it "
+                          "again with 'docket new ... --force' to score pairs or export its "
+                          "model")
+    return model
 
 
 def score_pairs(model: ScoringModel, left_norm: dict[str, np.ndarray],

@@ -64,9 +64,24 @@ def code(value: str) -> str | None:
     return text
 
 
+# a currency sign or code before or after an amount ('$1,299.00', '12,50 EUR'): ISO 4217's
+# codes of the most traded currencies, so that a code such as 'ABC123' stays no number
+_MONEY = r"(?:USD|EUR|GBP|JPY|CNY|CHF|CAD|AUD|NZD|SEK|NOK|DKK|PLN|CZK|HUF|INR|BRL|ZAR|MXN)"
+_SIGN = "[$\u00a2-\u00a5\u20a0-\u20c0]"  # dollar, cent to yen, the currency symbols block
+_CURRENCY = re.compile(rf"^\s*(?:{_MONEY}\s?)?{_SIGN}?|{_SIGN}?(?:\s?{_MONEY})?\s*$")
+# a comma with one or two digits after it, ending the number: a decimal comma ('2.132,07')
+_DECIMAL_COMMA = re.compile(r"^[-+]?[\d.\s\u00a0']*\d,\d{1,2}$")
+
+
 def number(value: str) -> float | None:
+    """A number as written in most places: '1,299.00', '1.299,00', '$1,299', '12,5 EUR'."""
+    text = _CURRENCY.sub("", value).strip()
+    if _DECIMAL_COMMA.match(text):
+        text = re.sub(r"[.\s\u00a0']", "", text).replace(",", ".")
+    else:
+        text = text.replace(",", "")
     try:
-        x = float(value.replace(",", "").strip())
+        x = float(text)
     except ValueError:
         return None
     return x if np.isfinite(x) else None
