@@ -192,8 +192,8 @@ def test_a_damaged_or_foreign_model_file_gets_one_line(sample_project_file: Path
 def test_a_project_from_before_numbers_had_four_levels_is_refused(tmp_path: Path,
                                                                   capsys) -> None:
     # A project built when a number had three levels (exact, near, different) and missing: its
-    # weights, read by today's levels, would give 'different' the weight of 'within 10 %' and
-    # 'missing' that of 'different'. Simulated by taking the 'within 10 %' weight out.
+    # weights, read by today's levels, would give 'different' the weight of 'roughly' and
+    # 'missing' that of 'different'. Simulated by taking the 'roughly' weight out.
     import sqlite3
 
     records = tmp_path / "r.csv"

@@ -72,7 +72,7 @@ KINDS: dict[str, KindRule] = {
     "text": KindRule(("exact", "close", "similar", "different"), (0.90, 0.70)),
     "longtext": KindRule(("exact", *_bands(LONG_CUTS), "different"), LONG_CUTS),
     "code": KindRule(("exact", "one edit", "different"), ()),
-    "number": KindRule(("exact", "near", "within 10 %", "different"), ()),
+    "number": KindRule(("exact", "near", "roughly", "different"), ()),
     "date": KindRule(("exact", "day/month swapped", "within a month", "different"), ()),
 }
 
@@ -143,6 +143,8 @@ def _number(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     tol = np.where(integers, 1.0, 0.01 * np.maximum(np.abs(a), np.abs(b)))
     tol = np.where(tol == 0, 1e-9, tol)
     sim = (1.0 / (1.0 + diff / tol)).astype(np.float32)
+    # 'roughly': a price or weight taken at another time or in another shop is a few percent
+    # off, which says more than a number of another size altogether
     rough = 0.1 * np.maximum(np.abs(a), np.abs(b))
     lv = np.where(diff == 0, 0, np.where(diff <= tol, 1, np.where(diff <= rough, 2, 3)))
     lv = lv.astype(np.int8)

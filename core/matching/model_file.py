@@ -26,7 +26,7 @@ from .explain import LogOddsTable, explanation
 from .scoring import compare_pairs
 
 FORMAT = "docket-model"
-VERSION = 3  # 3: numbers have a level 'within 10 %'
+VERSION = 3  # 3: numbers have a level 'roughly' (within 10 %)
 HOW_TO = "export one with 'docket export PROJECT --what model -o FILE'"
 
 
