@@ -75,6 +75,11 @@ _DECIMAL_COMMA = re.compile(r"^[-+]?[\d.\s\u00a0']*\d,\d{1,2}$")
 
 def number(value: str) -> float | None:
     """A number as written in most places: '1,299.00', '1.299,00', '$1,299', '12,5 EUR'."""
+    try:  # a plain number, the common case: no pattern needed
+        x = float(value)
+        return x if np.isfinite(x) else None
+    except ValueError:
+        pass
     text = _CURRENCY.sub("", value).strip()
     if _DECIMAL_COMMA.match(text):
         text = re.sub(r"[.\s\u00a0']", "", text).replace(",", ".")
