@@ -8,6 +8,7 @@ prints what it returns.
 from __future__ import annotations
 
 import argparse
+import contextlib
 import os
 import sqlite3
 import sys
@@ -26,6 +27,7 @@ from . import (
 )
 from .cli_base import Formatter, version, warn_line
 from .cli_checks import Parser, parse
+from .stopping import exit_code, received, stop_signals
 from .terminal import safe_streams, shown
 
 
@@ -52,7 +54,8 @@ def main(argv: list[str] | None = None) -> int:
         for category in (DeprecationWarning, PendingDeprecationWarning, ResourceWarning):
             warnings.filterwarnings("ignore", category=category)
         warnings.showwarning = warn_line  # one line each, on standard error
-        return _main(argv)
+        with stop_signals():
+            return _main(argv)
 
 
 def _main(argv: list[str] | None) -> int:
@@ -73,9 +76,11 @@ def _main(argv: list[str] | None) -> int:
               file=sys.stderr)
         return 2
     except KeyboardInterrupt as exc:  # what stands, when some of the work did
-        print(f"docket: interrupted; {shown(exc) or 'nothing was half-written'}",
-              file=sys.stderr)
-        return 130
+        by = f" by {received()}" if received() else ""
+        with contextlib.suppress(OSError):  # after SIGHUP the terminal may be gone
+            print(f"docket: interrupted{by}; {shown(exc) or 'nothing was half-written'}",
+                  file=sys.stderr)
+        return exit_code()
     except BrokenPipeError:
         os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
         return 0

@@ -26,6 +26,7 @@ from .keymap import LoadedKeymap, load_keymap
 from .masking import Mask, expand_mask
 from .screen_exit import clearing
 from .screens.review import ReviewScreen, binding_ids
+from .stopping import quitting_screen
 from .terminal import need_terminal
 from .toasts import OneToastEach
 
@@ -142,6 +143,7 @@ def run_review(path: Path, reviewer: str, mask: list[str]) -> None:
     need_terminal("review")  # before make_app registers the reviewer
     app = make_app(path, reviewer, mask)
     try:
-        app.run()
+        with quitting_screen(app.exit):
+            app.run()
     finally:
         app.project.close()

@@ -27,6 +27,7 @@ from docket.core.project import Project
 from .keymap import LoadedKeymap, load_keymap
 from .masking import Mask, expand_mask
 from .screen_exit import clearing
+from .stopping import quitting_screen
 from .terminal import need_terminal
 from .toasts import OneToastEach
 
@@ -140,7 +141,8 @@ def make_team_app(path: Path | str, adjudicator: str = "", *, start: Start = "ad
 def _run(app: TeamApp, command: str) -> None:
     try:
         need_terminal(command)  # after the checks that name a bad project, name or mask
-        app.run()
+        with quitting_screen(app.exit):
+            app.run()
     finally:
         app.project.close()
 

@@ -70,6 +70,11 @@ _JOB: dict[str, Any] = {}  # the scorer and keys, set before the workers are for
 def _start_worker() -> None:
     # Ctrl-C is the build's to handle (it ends the pool); a worker would print a traceback
     signal.signal(signal.SIGINT, signal.SIG_IGN)
+    # the pool ends its workers with SIGTERM: the front end's handler, forked with them, would
+    # turn that into a KeyboardInterrupt and a traceback from each
+    for name in ("SIGTERM", "SIGHUP"):
+        if hasattr(signal, name):
+            signal.signal(getattr(signal, name), signal.SIG_DFL)
     compare.use_threads(1)  # the pool has a process per core already
 
 
