@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import shutil
 import sqlite3
 from pathlib import Path
 
@@ -11,6 +12,7 @@ from docket.core import DocketError, Project
 from docket.core.reviewing import bulk
 from docket.core.reviewing.bulk import BulkRow, apply_rows
 from docket.core.reviewing.team import list_reviewers
+from docket.core.storage import file_health
 from docket.tui.cli import main
 
 
@@ -287,3 +289,46 @@ def test_a_link_row_with_its_ids_swapped_is_named_so(tiny_tables, tmp_path: Path
     assert main(["evaluate", str(project), "--predictions", str(scores)]) == 2
     assert "it is the right table's: left_id takes the left table's ids" in \
         capsys.readouterr().err
+
+
+def test_a_label_file_the_disk_has_no_room_for_is_refused_before_writing(
+        sample_project: Path, tmp_path: Path, capsys, monkeypatch: pytest.MonkeyPatch) -> None:
+    # a disk that filled half way left 849 labels written that could not be taken back
+    rows = tmp_path / "labels.csv"
+    rows.write_text("pair_id,label,note\n1,match,same phone\n2,non-match,\n3,hold,\n",
+                    encoding="utf-8")
+    monkeypatch.setattr(file_health.shutil, "disk_usage",
+                        lambda _p: shutil._ntuple_diskusage(10**9, 10**9 - 5_000, 5_000))
+    assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(rows)]) == 2
+    err = capsys.readouterr().err
+    assert err.startswith(f"docket: {sample_project}: disk full: recording 3 decisions needs "
+                          "about 4.") and err.endswith(
+        " MB and 0.0 MB are free; free some space and try again; nothing was written\n")
+    with Project.open(sample_project) as p:
+        assert _standing(p) == {}
+
+
+def test_labels_that_a_full_disk_keeps_from_taking_back_are_said_to_stand(
+        sample_project: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    # the taking back needs room as well; "nothing was saved" was said of labels that stood
+    with Project.open(sample_project) as p:
+        ids = [i.pair_id for i in p.next_pairs("ana", 6)]
+        calls = {"n": 0}
+        real = bulk.log.append
+
+        def append(conn: sqlite3.Connection, *args: object) -> object:
+            calls["n"] += 1
+            if calls["n"] >= 5:  # the third batch of two, and every retraction after it
+                raise sqlite3.OperationalError("database or disk is full")
+            return real(conn, *args)  # type: ignore[arg-type]
+
+        monkeypatch.setattr(bulk.log, "append", append)
+        rows = [BulkRow(pid, "match", "") for pid in ids]
+        with pytest.raises(DocketError) as caught:
+            apply_rows(p, "ana", rows, batch=2, seconds=float('inf'), pause=0)
+        assert str(caught.value) == (
+            f"{p.path}: 4 decisions of the 6 for ana were recorded and could not be taken back, "
+            "as the disk is full: they stand; free some space, then run the same docket label "
+            "again to record the rest (rows recorded already are recorded again with the same "
+            "label)")
+        assert len(_standing(p)) == 4

@@ -10,7 +10,9 @@ label is as it was; the log keeps both, as it keeps every undo.
 
 from __future__ import annotations
 
+import contextlib
 import json
+import sqlite3
 import time
 from dataclasses import dataclass
 from pathlib import Path
@@ -20,7 +22,7 @@ import pandas as pd
 from ..errors import DocketError
 from ..records.sources import form_hint, read_frame, row_named, row_word
 from ..records.text_tables import bom_encoding, plain_names
-from ..storage import claims, roles
+from ..storage import claims, file_health, roles
 from ..storage import decisions as log
 from ..storage.project_file import ProjectFile
 from ..types import LABELS
@@ -29,6 +31,10 @@ from ..wording import many
 BATCH_ROWS = 500  # at most, per transaction
 BATCH_S = 0.02  # and a batch ends once it has written for this long
 PAUSE_S = 0.005  # between batches: a waiting writer asks every millisecond (ProjectFile)
+# Room a decision takes, measured: 510 bytes without a note (the log row, its indexes, the
+# current label); and the write-ahead log grows to SQLite's checkpoint size, 1,000 pages.
+DECISION_BYTES = 600
+LOG_BYTES = 1000 * 4096
 
 ALIASES = {"non_match": "non-match", "nonmatch": "non-match", "no-match": "non-match"}
 
@@ -181,6 +187,7 @@ def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: s
     reviewer = roles.plain_name(reviewer)
     with project.reading():
         reviewer = roles.as_kept(project.connection, reviewer)
+    _check_room(project, rows)
     written: list[tuple[int, str]] = []
     try:
         while len(written) < len(rows):
@@ -199,10 +206,23 @@ def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: s
                     claims.release(conn, reviewer, r.pair_id)
                     done.append((d.pair_id, d.decision_id))
             written += done  # committed: a failed batch was rolled back whole
-    except BaseException:
-        _retract(project, reviewer, role, written)
+    except BaseException as exc:
+        try:
+            _retract(project, reviewer, role, written)
+        except (DocketError, sqlite3.Error, KeyboardInterrupt) as again:
+            # "disk full; nothing was saved" was said of 849 labels that stood
+            raise DocketError(_left_standing(project, reviewer, len(written), len(rows), again)
+                              ) from exc
         raise
     return len(rows)
+
+
+def _check_room(project: ProjectFile, rows: list[BulkRow]) -> None:
+    # a disk that filled half way left the batches written, and had no room to take them back
+    wal = Path(f"{project.path}-wal")
+    log_room = max(0, LOG_BYTES - (wal.stat().st_size if wal.exists() else 0))
+    need = sum(DECISION_BYTES + len(r.note.encode()) for r in rows) + log_room
+    file_health.check_room(project.path, need, f"recording {many(len(rows), 'decision')}")
 
 
 def _retract(project: ProjectFile, reviewer: str, role: str, written: list[tuple[int, str]]
@@ -210,9 +230,35 @@ def _retract(project: ProjectFile, reviewer: str, role: str, written: list[tuple
     """Take back the committed decisions of a bulk run that did not finish, latest first."""
     if not written:
         return
+    try:
+        _append_retractions(project, reviewer, role, written)
+    except DocketError as exc:
+        if not file_health.disk_full(exc):
+            raise
+        # the disk filled: a checkpoint folds the write-ahead log into the file and lets the
+        # log start again from its beginning, which frees the room the failed batch took
+        with project.reading() as conn, contextlib.suppress(sqlite3.Error):
+            conn.execute("PRAGMA wal_checkpoint(TRUNCATE)")
+        _append_retractions(project, reviewer, role, written)
+
+
+def _append_retractions(project: ProjectFile, reviewer: str, role: str,
+                        written: list[tuple[int, str]]) -> None:
     with project.transaction() as conn:
         for pair_id, decision_id in reversed(written):
             log.append(conn, pair_id, reviewer, None, "", 0.0, decision_id, role)
+
+
+def _left_standing(project: ProjectFile, reviewer: str, n: int, total: int,
+                   exc: BaseException) -> str:
+    why = ("the disk is full" if file_health.disk_full(exc)
+           else "the command was interrupted" if isinstance(exc, KeyboardInterrupt)
+           else f"of an error ({exc})")
+    return (f"{project.path}: {many(n, 'decision')} of the {total:,} for {reviewer} were recorded "
+            f"and could not be taken back, as {why}: they stand; "
+            + ("free some space, then " if why == "the disk is full" else "")
+            + "run the same docket label again to record the rest (rows recorded already "
+            "are recorded again with the same label)")
 
 
 def label_once(project: ProjectFile, name: str, path: Path, adjudicator: str | None = None

@@ -9,6 +9,7 @@ could write regardless (root): a file marked read-only is treated as read-only.
 from __future__ import annotations
 
 import os
+import shutil
 import sqlite3
 import stat
 from collections.abc import Sequence
@@ -169,11 +170,33 @@ def damaged(path: Path, detail: str) -> str:
             "'docket merge'")
 
 
+def check_room(path: Path, need: int, work: str) -> None:
+    """Refuse, before anything is written, work the disk has no room for: a disk that fills
+    half way through leaves what was written, since taking it back needs room too."""
+    try:
+        free = shutil.disk_usage(path.resolve().parent).free
+    except OSError:  # nothing to go by: the work is tried, and a full disk met is reported
+        return
+    if free < need:
+        raise ProjectFileError(f"{path}: disk full: {work} needs about {need / 1e6:,.1f} MB "
+                               f"and {free / 1e6:,.1f} MB are free; free some space and try "
+                               "again; nothing was written")
+
+
+def disk_full(exc: BaseException) -> bool:
+    """Whether ``exc`` (an SQLite error, or the ``ProjectFileError`` made of one) is a full
+    disk."""
+    if isinstance(exc, ProjectFileError) and isinstance(exc.__cause__, sqlite3.Error):
+        exc = exc.__cause__
+    return isinstance(exc, sqlite3.Error) and (
+        getattr(exc, "sqlite_errorname", "") == "SQLITE_FULL" or "disk is full" in str(exc))
+
+
 def explain(exc: sqlite3.Error, path: Path | str) -> str:
     """One line for the user: what went wrong with the file, and what to do."""
     name = getattr(exc, "sqlite_errorname", "") or ""
     text = str(exc)
-    if name == "SQLITE_FULL" or "disk is full" in text:
+    if disk_full(exc):
         return f"{path}: disk full; nothing was saved; free some space and try again"
     if name.startswith("SQLITE_CORRUPT") or "malformed" in text:
         return damaged(Path(path), text)
