@@ -31,6 +31,7 @@ _ELSEWHERE = {
     "QUEUE_ORDERS": ("ordering.queue_order", "MODES"),
     "FailureGroup": ("matchers.failures", "FailureGroup"),
     "file_trouble": ("storage.file_health", "explain"),
+    "output_cut_short": ("storage.file_health", "output_cut_short"),
     "output_format": ("exports.exporting", "output_format"),
     "atomic_write": ("exports.exporting", "atomic_write"),
     "write_rows": ("exports.export_kinds", "write_rows"),

@@ -153,7 +153,8 @@ def test_score_into_a_folder_it_cannot_write_is_one_line(sample_project_file: Pa
     monkeypatch.setattr(pd.DataFrame, "to_parquet", full)  # the disk fills while writing
     code, err = run(capsys, "score", str(sample_project_file), "--pairs", str(pairs), "-o",
                     str(tmp_path / "out"))
-    assert_one_line_error(code, err, "No space left on device", "nothing was written")
+    assert_one_line_error(code, err, "disk full while writing the scored parts",
+                          "nothing was written")
     assert sorted(p.name for p in tmp_path.iterdir()) == ["file", "pairs.csv"]
 
 

@@ -66,9 +66,12 @@ def _main(argv: list[str] | None) -> int:
         return 0
     from docket.core.errors import DocketError
     try:
-        return int(args.func(args) or 0)
+        code = int(args.func(args) or 0)
+        sys.stdout.flush()  # a full disk met by the last lines is reported, not lost at exit
+        return code
     except DocketError as exc:
-        print(f"docket: {shown(exc)}", file=sys.stderr)
+        with contextlib.suppress(Exception):  # standard error itself may be what failed
+            print(f"docket: {shown(exc)}", file=sys.stderr)
         return exc.exit_code
     except sqlite3.Error as exc:  # the file met trouble mid-command (full disk, busy, damage)
         from docket.core import file_trouble

@@ -17,7 +17,7 @@ import io
 import json
 import sys
 from collections.abc import Iterator
-from contextlib import contextmanager
+from contextlib import contextmanager, suppress
 from typing import Any, TextIO
 
 from .characters import stand_in
@@ -50,16 +50,30 @@ def _line_safe(text: str) -> str:
 class SafeStream(io.TextIOBase):
     """A text stream that writes through ``_line_safe`` to the stream it wraps."""
 
-    def __init__(self, inner: TextIO) -> None:
+    def __init__(self, inner: TextIO, name: str = "standard output") -> None:
         super().__init__()
         self.inner = inner
+        self.name = name
 
     def write(self, text: str) -> int:
-        self.inner.write(_line_safe(text))
+        with self._reported():
+            self.inner.write(_line_safe(text))
         return len(text)
 
     def flush(self) -> None:
-        self.inner.flush()
+        with self._reported():
+            self.inner.flush()
+
+    @contextmanager
+    def _reported(self) -> Iterator[None]:
+        # 'docket status > file' on a full disk ended in a traceback
+        try:
+            yield
+        except BrokenPipeError:
+            raise  # the reader stopped reading: the command ends quietly
+        except OSError as exc:
+            from docket.core import DocketError, output_cut_short
+            raise DocketError(output_cut_short(exc, self.name)) from None
 
     def isatty(self) -> bool:
         return self.inner.isatty()
@@ -83,12 +97,14 @@ class SafeStream(io.TextIOBase):
 def safe_streams() -> Iterator[None]:
     """Put standard output and error behind ``SafeStream`` for the length of a command."""
     saved = sys.stdout, sys.stderr
-    sys.stdout, sys.stderr = SafeStream(saved[0]), SafeStream(saved[1])  # type: ignore[assignment]
+    sys.stdout, sys.stderr = (SafeStream(saved[0]),  # type: ignore[assignment]
+                              SafeStream(saved[1], "standard error"))
     try:
         yield
     finally:
         for stream in (sys.stdout, sys.stderr):
-            stream.flush()
+            with suppress(Exception):  # reported by the command, or nowhere left to say it
+                stream.flush()
         sys.stdout, sys.stderr = saved
 
 

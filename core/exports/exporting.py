@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import io
 import os
-import shutil
 import sys
 import tempfile
 from collections.abc import Callable
@@ -17,7 +16,7 @@ import pandas as pd
 from ..errors import DocketError
 from ..matching.decision_rule import predicted
 from ..storage import store
-from ..storage.file_health import holds_database, special_file
+from ..storage.file_health import holds_database, no_room, output_cut_short, special_file
 from ..storage.project_file import ProjectFile
 
 FORMATS = {".csv": "csv", ".parquet": "parquet", ".pq": "parquet", ".jsonl": "jsonl",
@@ -89,8 +88,22 @@ def to_stdout(text: str | bytes) -> None:
         sys.stdout.flush()
         return
     sys.stdout.flush()
-    sys.stdout.buffer.write(text.encode("utf-8") if isinstance(text, str) else text)
-    sys.stdout.buffer.flush()
+    try:
+        write_all(sys.stdout.buffer, text.encode("utf-8") if isinstance(text, str) else text)
+    except BrokenPipeError:
+        raise  # the reader stopped reading: the front end ends quietly
+    except OSError as exc:
+        raise DocketError(output_cut_short(exc)) from None
+
+
+def write_all(out: Any, data: bytes | memoryview) -> None:
+    """All of ``data`` to the binary stream ``out``, flushed. A write may take only part (a file
+    on a disk that fills): 98 KB of a 3.6 MB export went out, and the command said nothing and
+    ended with 0. Writing the rest raises the error instead."""
+    view = memoryview(data)
+    while view:
+        view = view[out.write(view):]
+    out.flush()
 
 
 def write_parquet(frame: pd.DataFrame, target: Any) -> None:
@@ -175,8 +188,17 @@ def atomic_write(path: Path, write: Callable[[Path], object]) -> None:
     except BaseException as exc:
         tmp.unlink(missing_ok=True)
         if isinstance(exc, OSError):
-            raise DocketError(f"{path}: cannot write ({exc.strerror or exc})") from None
+            raise cannot_write(path, exc) from None
         raise
+
+
+def cannot_write(path: Path, exc: OSError) -> DocketError:
+    """An export that could not be written, in one line; a full disk said as such (pyarrow
+    said 'Error writing bytes to file. Detail: [errno 28] No space left on device')."""
+    if no_room(exc):
+        return DocketError(f"{path}: disk full; nothing was written; free some space, or write "
+                           "the export elsewhere")
+    return DocketError(f"{path}: cannot write ({exc.strerror or exc})")
 
 
 
@@ -197,8 +219,9 @@ def _write_through(path: Path, write: Callable[[Path], object]) -> None:
             made = Path(folder) / path.name
             write(made)
             with open(fd, "wb", closefd=False) as out, made.open("rb") as source:
-                shutil.copyfileobj(source, out)
+                while chunk := source.read(1 << 20):
+                    write_all(out, chunk)
     except OSError as exc:
-        raise DocketError(f"{path}: cannot write ({exc.strerror or exc})") from None
+        raise cannot_write(path, exc) from None
     finally:
         os.close(fd)

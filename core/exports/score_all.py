@@ -24,6 +24,7 @@ from ..matching import scoring
 from ..matching.model_file import ScoringModel, score_pairs
 from ..pairs.pair_files import _text, id_batches, open_pairs, positions
 from ..records.sources import Table, load_table
+from ..storage.file_health import no_room
 from ..storage.project_file import ProjectFile
 
 
@@ -116,6 +117,10 @@ def _writing(out: Path) -> Iterator[None]:
     try:
         yield
     except OSError as exc:
+        if no_room(exc):
+            raise DocketError(f"{out}: disk full while writing the scored parts; nothing was "
+                              "written; free some space, or give a folder on another disk"
+                              ) from None
         raise DocketError(f"{out}: cannot write the scored parts in {out.parent} "
                           f"({exc.strerror or exc}); nothing was written; give a folder you "
                           "can write to") from None

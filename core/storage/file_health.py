@@ -8,6 +8,7 @@ could write regardless (root): a file marked read-only is treated as read-only.
 
 from __future__ import annotations
 
+import errno
 import os
 import shutil
 import sqlite3
@@ -181,6 +182,22 @@ def check_room(path: Path, need: int, work: str) -> None:
         raise ProjectFileError(f"{path}: disk full: {work} needs about {need / 1e6:,.1f} MB "
                                f"and {free / 1e6:,.1f} MB are free; free some space and try "
                                "again; nothing was written")
+
+
+def no_room(exc: OSError) -> bool:
+    """Whether writing a file failed for want of room (a full disk, or the user's quota).
+    pyarrow words it 'Error writing bytes to file. Detail: [errno 28] No space left on
+    device', with no errno of its own."""
+    return exc.errno in (errno.ENOSPC, errno.EDQUOT) or any(
+        f"[errno {n}]" in str(exc) for n in (errno.ENOSPC, errno.EDQUOT))
+
+
+def output_cut_short(exc: OSError, stream: str = "standard output") -> str:
+    """One line for output that could not all be written (standard output sent to a file on a
+    full disk): what did go out is cut short, which a reader of it must know."""
+    why = "disk full" if no_room(exc) else f"cannot write ({exc.strerror or exc})"
+    return (f"{stream}: {why}; what was written there is cut short; "
+            + ("free some space and " if no_room(exc) else "") + "run the command again")
 
 
 def disk_full(exc: BaseException) -> bool:
