@@ -156,6 +156,17 @@ def test_cp1252_file_is_read_with_a_warning(tmp_path: Path, capsys) -> None:
         assert project.record("left", "1")["name"] == "Zoë Ågren"
 
 
+def test_a_utf8_file_with_one_latin1_line_is_refused_naming_it(tmp_path: Path, capsys) -> None:
+    # read whole as cp1252, every UTF-8 name elsewhere became mojibake ('Zoë' as 'ZoÃ«')
+    path = tmp_path / "mixed.csv"
+    path.write_bytes("id,name,town\n1,Zoë Ågren,Oslo\n2,Per Moe,Bergen\n".encode()
+                     + "3,Per Moe,Tromsø\n".encode("latin-1") + b"4,Kari Lund,Oslo\n")
+    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(path), "--id", "id")
+    assert_one_line_error(code, err, "mixed.csv: line 4, column 'town', is not UTF-8, though the "
+                          "file's other lines are", "mixes two encodings")
+    assert not (tmp_path / "p.docket").exists()
+
+
 def test_refuses_to_overwrite_and_keeps_the_file(tmp_path: Path, good: Path, capsys) -> None:
     project = tmp_path / "p.docket"
     assert main(["new", str(project), "--left", str(good), "--id", "id", "--block", "town"]) == 0

@@ -20,6 +20,7 @@ from pathlib import Path
 import pandas as pd
 
 from ..errors import DocketError
+from .mixed_text import mixed_line
 
 HEAD_BYTES = 1 << 16
 BOMS = ((codecs.BOM_UTF32_LE, "utf-32"), (codecs.BOM_UTF32_BE, "utf-32"),
@@ -203,6 +204,8 @@ def read_delimited(path: Path, fmt: str) -> pd.DataFrame:
             sep = choose_separator(path, head_text, "\t" if fmt == "tsv" else ",")
             header = _header(head_text, sep)
             check_names(path, header)
+            if encoding == "cp1252" and (mixed := mixed_line(path, sep, header)):
+                raise DocketError(mixed)
             check_widths(path, encoding, sep)
             # pandas' C reader before 3.0 ends a value at a NUL ('n\x00q' became 'n'): a file
             # holding one is read by its Python reader, slower and exact
