@@ -42,8 +42,14 @@ def good(tmp_path: Path) -> Path:
 
 CASES = {
     "missing file": (lambda d: d / "nope.csv", ["nope.csv", "no such file"]),
-    "unreadable format": (lambda d: write(d / "data.xlsx", "x"),
-                          ["data.xlsx", "unknown file type"]),
+    "unreadable format": (lambda d: write(d / "data.xyz", "x"),
+                          ["data.xyz", "unknown file type"]),
+    "spreadsheet": (lambda d: write(d / "data.xlsx", "x"),
+                    ["data.xlsx: a spreadsheet; save the sheet as CSV"]),
+    "compressed": (lambda d: write(d / "data.csv.gz", "x"),
+                   ["data.csv.gz: a compressed file; unpack it first"]),
+    "folder": (lambda d: (d / "parts").mkdir() or d / "parts",
+               ["parts: is a folder, not a file of records", "join its parts into one"]),
     "garbled parquet": (lambda d: write(d / "bad.parquet", "not parquet"), ["bad.parquet"]),
     "id column missing": (lambda d: write(d / "noid.csv", "key,name\n1,a\n"), ["noid.csv", "'id'"]),
     "empty ids": (lambda d: write(d / "emptyid.csv", "id,name\n1,a\n,b\n"),

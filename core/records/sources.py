@@ -39,8 +39,19 @@ class Table:
         return len(self.frame)
 
 
+# suffixes a table of records is often given in, with what to do ('x.csv.gz' was 'unknown
+# file type .gz', leaving the user to guess that docket reads no compressed file)
+PACKED_SUFFIXES = {**dict.fromkeys((".gz", ".bz2", ".xz", ".zst", ".zip", ".7z"),
+                                   "a compressed file; unpack it first and give the table"),
+                   **dict.fromkeys((".xlsx", ".xlsm", ".xls", ".ods"),
+                                   "a spreadsheet; save the sheet as CSV and give that")}
+
+
 def detect_format(path: Path) -> str:
     fmt = FORMATS.get(path.suffix.lower())
+    if fmt is None and path.suffix.lower() in PACKED_SUFFIXES:
+        raise DocketError(f"{path}: {PACKED_SUFFIXES[path.suffix.lower()]} "
+                          "(CSV, TSV, Parquet or JSON lines)")
     if fmt is None:
         raise DocketError(
             f"{path}: unknown file type '{path.suffix or '(none)'}'; "
@@ -66,7 +77,9 @@ def read_frame(path: Path) -> pd.DataFrame:
     if not path.exists():
         raise DocketError(f"{path}: no such file; check the path")
     if path.is_dir():
-        raise DocketError(f"{path}: is a folder, not a file of records")
+        raise DocketError(f"{path}: is a folder, not a file of records; a table is read from "
+                          "one file, so join its parts into one (CSV, TSV, Parquet or JSON "
+                          "lines)")
     fmt = detect_format(path)
     try:
         frame = _read_parquet(path) if fmt == "parquet" else _read_text(path, fmt)
