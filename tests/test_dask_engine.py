@@ -81,3 +81,23 @@ def test_a_file_of_self_pairs_only_on_dask_is_named_so(tmp_path: Path, scheduler
     assert_one_line_error(code, err, f"{pairs}: holds no pair of two different records")
     assert "blocking" not in err
     assert [p.name for p in tmp_path.iterdir() if "docket" in p.name] == []
+
+
+def test_a_local_cluster_leaves_a_failed_task_to_the_commands_one_line(
+        monkeypatch: pytest.MonkeyPatch) -> None:
+    # the worker logged 'Compute Failed' and the task's traceback (8 lines) on standard error
+    # before docket's own line naming the ids a pairs part got wrong
+    import logging
+
+    from docket.core.storage import dask_engine
+    seen: dict[str, object] = {}
+
+    class Cluster:
+        def __init__(self, **options: object) -> None:
+            seen.update(options)
+
+    monkeypatch.setattr(distributed, "LocalCluster", Cluster)
+    monkeypatch.setattr(distributed, "Client", lambda cluster: "client")
+    client, _cluster = dask_engine.connect(2, None)
+    assert client == "client"
+    assert seen["silence_logs"] == logging.CRITICAL

@@ -53,8 +53,10 @@ def connect(workers: int, scheduler: str | None) -> tuple[Any, Any]:
                               "address and that the scheduler is running") from None
     if workers < 1:
         raise DocketError(f"--workers {workers}: give 1 or more")
+    # a task that fails comes back to the client as its exception, which the command words
+    # in one line; the worker's own ERROR log printed it first, with a traceback
     cluster = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
-                           dashboard_address=":0", silence_logs=logging.ERROR)
+                           dashboard_address=":0", silence_logs=logging.CRITICAL)
     return Client(cluster), cluster
 
 
