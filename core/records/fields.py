@@ -11,6 +11,7 @@ import pandas as pd
 from ..errors import DocketError
 from ..types import KINDS, FieldSpec
 from . import normalise
+from .unpaired import map_advice, unpaired_warning
 
 _CODE_HINT = re.compile(r"(post|zip|phone|tel|mobile|fax|e-?mail|code|iban|ssn|nhs|vat|isbn)",
                         re.I)
@@ -142,11 +143,17 @@ def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: st
             raise DocketError(f"{where}: no column to compare holds values ("
                               f"{', '.join(left_out)} {'holds' if len(left_out) == 1 else 'hold'}"
                               " none); give tables with values in the columns to compare")
-        raise DocketError(f"{where}: no columns in common to compare; "
-                          "name them alike or pair them with --map LEFT=RIGHT")
+        advice = "name them alike or pair them with --map LEFT=RIGHT" if right is None else \
+            map_advice(left, right, [str(c) for c in left.columns],
+                       [str(c) for c in right.columns])
+        raise DocketError(f"{where}: no columns in common to compare; {advice}")
     for col, why in left_out.items():
         warnings.warn(f"{why}; not compared (give --field {col}:KIND to compare it anyway)",
                       stacklevel=2)
+    unpaired = None if right is None else \
+        unpaired_warning(left, right, pairs, left_name, right_name or "the right table")
+    if unpaired:
+        warnings.warn(unpaired, stacklevel=2)
     return fields
 
 
