@@ -60,3 +60,20 @@ def test_no_column_in_common_offers_the_maps(tmp_path: Path, capsys) -> None:
     assert "no columns in common to compare" in err
     assert "--map title=name --map manufacturer=brand" in err
     assert not project.exists()
+
+
+def test_values_a_number_field_cannot_read_are_said_to_count_as_missing(
+        tmp_path: Path, capsys) -> None:
+    # One shop writes 'ca. 120': compared as numbers, every such price was missing, unsaid.
+    a, b = _shops(tmp_path)
+    right = pd.read_csv(b)
+    right["price"] = "ca. " + right["price"].astype(str)
+    right.to_csv(b, index=False)
+    assert main(["new", str(tmp_path / "s.docket"), "--left", str(a), "--right", str(b),
+                 "--id", "id", "--map", "title=name", "--map", "manufacturer=brand",
+                 "--field", "price:number"]) == 0
+    err = capsys.readouterr().err
+    assert "price, compared as number: in " in err and "60 of its 60 values read as no " \
+        "number (for example 'ca. " in err
+    assert "--field price:text" in err
+    assert "a.csv" not in err.split("price, compared as number: in ")[1].split(",")[0]

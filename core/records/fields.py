@@ -12,6 +12,7 @@ from ..errors import DocketError
 from ..types import KINDS, FieldSpec
 from . import normalise
 from .unpaired import map_advice, unpaired_warning
+from .unreadable import unreadable_warning
 
 _CODE_HINT = re.compile(r"(post|zip|phone|tel|mobile|fax|e-?mail|code|iban|ssn|nhs|vat|isbn)",
                         re.I)
@@ -154,6 +155,14 @@ def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: st
         unpaired_warning(left, right, pairs, left_name, right_name or "the right table")
     if unpaired:
         warnings.warn(unpaired, stacklevel=2)
+    for f in fields:
+        sides = [(left, f.left_column, left_name)] if right is None else [
+            (left, f.left_column, left_name),
+            (right, f.right_column, right_name or "the right table")]
+        for frame, col, table in sides:
+            line = unreadable_warning(f.name, f.kind, frame[col], table, col)
+            if line:
+                warnings.warn(line, stacklevel=2)
     return fields
 
 
