@@ -220,3 +220,23 @@ def test_a_missing_value_shows_the_factor_the_model_gives_it() -> None:
     assert factor_cell(0.0, PLAIN, missing=True).plain == "—"  # Fellegi–Sunter: no evidence
     assert factor_cell(math.log(2.0), PLAIN, missing=True).plain == "×2"
     assert factor_cell(-math.log(3.0), PLAIN, missing=True).plain == "÷3"
+
+
+def test_a_value_the_kind_cannot_read_is_named_not_called_missing() -> None:
+    # 'ca. 120' beside '120' in a number field: the level is 'missing', and the card showed
+    # both values with 'missing' under them, which the reviewer could not square.
+    from docket.core.types import FieldComparison, PairCard
+    from docket.tui.widgets.pair_card import CardOptions, card_text
+
+    def card(left: str | None) -> PairCard:
+        row = FieldComparison(field="price", kind="number", left=left, right="120",
+                              similarity=None, level=4, level_name="missing", contribution=0.0)
+        return PairCard(pair_id=1, left_id="a1", right_id="b1", probability=0.5, log_odds=0.0,
+                        base_log_odds=0.0, reason="uncertain", fields=(row,))
+
+    for stacked, width in ((True, 60), (False, 100)):
+        opts = CardOptions(stacked=stacked)
+        text, _ = card_text(card("ca. 120"), opts, width)
+        assert "no number" in text.plain and "missing" not in text.plain
+        text, _ = card_text(card(None), opts, width)
+        assert "no number" not in text.plain and "missing" in text.plain

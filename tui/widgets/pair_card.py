@@ -55,6 +55,19 @@ def factor_cell(part: float, palette: Palette, missing: bool = False) -> Text:
     return Text(text, palette.positive if part > 0 else palette.negative)
 
 
+UNREAD = {"number": "no number", "date": "no date"}
+
+
+def _level_text(row: FieldComparison) -> str:
+    """The level as the card names it. 'missing' where both sides hold text means a value the
+    field's kind cannot read ('ca. 120' as a number): it counts as missing, but the reviewer
+    sees two values under the word 'missing' and cannot tell why."""
+    both = bool((row.left or "").strip()) and bool((row.right or "").strip())
+    if row.level_name == "missing" and both:
+        return UNREAD.get(row.kind, "unread")
+    return SHORT_LEVELS.get(row.level_name, row.level_name)
+
+
 def _is_quiet(row: FieldComparison) -> bool:
     return (row.level_name.startswith("exact") and row.left is not None
             and row.right is not None)
@@ -97,13 +110,13 @@ def card_text(card: PairCard, opts: CardOptions, width: int,
         name = _name(row.field, quiet, p)
         sim = Text(similarity_bar(row.similarity, cells), p.quiet if quiet else p.muted)
         weight = factor_cell(row.contribution, p, missing)
-        level_name = "" if quiet else SHORT_LEVELS.get(row.level_name, row.level_name)
+        level_name = "" if quiet else _level_text(row)
         level = Text(level_name, p.muted)
         if cols.stacked:
             out.add(name, Text(marks[0], p.muted), [left], [sim], weight)
             out.add(None, Text(marks[1], p.muted), [right], [level] if level_name else [], None)
         else:
-            shown = [sim, level] if row.level_name not in ("different", "missing") and \
+            shown = [sim, level] if level_name not in ("different", "missing") and \
                 level_name else [sim]
             out.add(name, None, [left, right], shown, weight)
     if opts.show_extra:
