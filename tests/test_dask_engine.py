@@ -101,3 +101,52 @@ def test_a_local_cluster_leaves_a_failed_task_to_the_commands_one_line(
     client, _cluster = dask_engine.connect(2, None)
     assert client == "client"
     assert seen["silence_logs"] == logging.CRITICAL
+
+
+def test_the_local_clusters_workers_start_with_ctrl_c_ignored(
+        monkeypatch: pytest.MonkeyPatch) -> None:
+    # the terminal sends Ctrl-C to every process of the command: each worker printed
+    # tracebacks (99 lines) before docket's 'interrupted'
+    import signal
+
+    from docket.core.storage import dask_engine
+    during: list[object] = []
+
+    class Cluster:
+        def __init__(self, **_options: object) -> None:
+            during.append(signal.getsignal(signal.SIGINT))  # what a spawned worker inherits
+
+    monkeypatch.setattr(distributed, "LocalCluster", Cluster)
+    monkeypatch.setattr(distributed, "Client", lambda cluster: "client")
+    before = signal.getsignal(signal.SIGINT)
+    dask_engine.connect(2, None)
+    assert during == [signal.SIG_IGN]
+    assert signal.getsignal(signal.SIGINT) is before
+
+
+def test_a_cluster_cut_short_in_its_start_is_not_closed_again_at_exit(
+        monkeypatch: pytest.MonkeyPatch) -> None:
+    # distributed's exit hook failed on the half-made cluster: 'AssertionError: Status.init'
+    # and its traceback after 'interrupted by SIGTERM'
+    from distributed.deploy.spec import SpecCluster
+
+    from docket.core.storage import dask_engine
+    made: list[object] = []
+
+    class Cluster:
+        shutdown_on_close = True
+
+        def __init__(self, **_options: object) -> None:
+            made.append(self)
+            SpecCluster._instances.add(self)  # type: ignore[arg-type]
+            raise KeyboardInterrupt  # the signal, half way through the start
+
+        def close(self, timeout: float | None = None) -> None:
+            raise AssertionError("Status.init")
+
+    monkeypatch.setattr(distributed, "LocalCluster", Cluster)
+    with pytest.raises(KeyboardInterrupt):
+        dask_engine.connect(2, None)
+    (cluster,) = made
+    assert cluster.shutdown_on_close is False  # type: ignore[attr-defined]
+    SpecCluster._instances.discard(cluster)  # type: ignore[arg-type]

@@ -11,7 +11,10 @@ Dask and distributed are an optional extra: ``pip install 'docket[dask]'``.
 from __future__ import annotations
 
 import logging
-from collections.abc import Callable
+import signal
+import threading
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager, suppress
 from typing import Any
 
 import numpy as np
@@ -55,9 +58,45 @@ def connect(workers: int, scheduler: str | None) -> tuple[Any, Any]:
         raise DocketError(f"--workers {workers}: give 1 or more")
     # a task that fails comes back to the client as its exception, which the command words
     # in one line; the worker's own ERROR log printed it first, with a traceback
-    cluster = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
-                           dashboard_address=":0", silence_logs=logging.CRITICAL)
+    try:
+        with _workers_leave_ctrl_c():
+            cluster = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
+                                   dashboard_address=":0", silence_logs=logging.CRITICAL)
+    except BaseException:
+        _drop_half_started()
+        raise
+    # a Ctrl-C ends the client's pending gathers, and asyncio logs each with a traceback
+    # ('Task exception was never retrieved ... AllExit') before the command's one line
+    logging.getLogger("asyncio").setLevel(logging.CRITICAL)
     return Client(cluster), cluster
+
+
+@contextmanager
+def _workers_leave_ctrl_c() -> Iterator[None]:
+    """Start the worker processes with Ctrl-C ignored, which they inherit and keep: the
+    terminal sends it to every process of the command, and each worker printed two or more
+    tracebacks (a mask of blocked signals did not reach them). This process ignores it for the
+    start alone (a second or two); after that it gets it and closes the cluster, which ends
+    the workers."""
+    if threading.current_thread() is not threading.main_thread():
+        yield  # signal handlers can only be set from the main thread
+        return
+    previous = signal.signal(signal.SIGINT, signal.SIG_IGN)
+    try:
+        yield
+    finally:
+        signal.signal(signal.SIGINT, previous)
+
+
+def _drop_half_started() -> None:
+    # a stop signal during the start left a cluster half made (never handed back to be
+    # closed), which distributed's exit hook then failed to close, with a traceback
+    # ('AssertionError: Status.init') after the command's line
+    from distributed.deploy.spec import SpecCluster
+    for cluster in list(SpecCluster._instances):
+        with suppress(Exception):
+            cluster.close(timeout=5)
+        cluster.shutdown_on_close = False
 
 
 # -- per-partition functions (module level: the workers import them) -------------------------
