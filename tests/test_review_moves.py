@@ -105,3 +105,17 @@ async def test_a_key_with_nothing_to_do_shows_its_toast_once(review_sample, revi
         await press(pilot, *["right_square_bracket"] * 5)
         shown = [n.message for n in app._notifications]
         assert shown == ["You are at the newest pair."]
+
+
+@pilot_test
+async def test_the_candidates_list_gives_values_the_room_the_box_has(review_sample, review_app):
+    # Values were cut at 18 cells at any width: product titles all read 'Ashgrove silent f…'
+    # on a 120-column terminal, 40 cells of each line left empty.
+    for size, room in (((80, 24), 18), ((120, 40), 22)):
+        app = review_app(review_sample)
+        async with app.run_test(size=size) as pilot:
+            await settle(pilot)
+            await press(pilot, "c")
+            assert isinstance(app.screen, PairPicker)
+            # 50 cells of pair id, record ids and probability; the box is 108 wide at 120, 94 inside
+            assert app.screen._value_cells(50) == room

@@ -20,6 +20,9 @@ from ..figures import many, probability_text
 from ..masking import Mask, masked
 
 LIMIT = 50
+VALUE_CELLS = 18  # the least room for each of the two values on a line
+BOX_MAX, BOX_SHARE, BOX_INNER = 110, 0.9, 14  # review.tcss #picker-box; borders, padding,
+# the list's own border and scroll bar, and a few cells spare (a line that overflows wraps)
 
 
 @dataclass(frozen=True)
@@ -95,13 +98,21 @@ class PairPicker(ModalScreen[int | None]):
         if card.fields:
             first = card.fields[0]
             hide = bool(self.mask) and self.mask.applies(first.field)
+            cells = self._value_cells(text.cell_len + 3 + (22 if mine is not None else 0))
             for value, end in ((first.left, " / "), (first.right, "")):
                 shown = value if value is None or not hide else masked(value)
-                text.append_text(literal.one_line(shown, 18))
+                text.append_text(literal.one_line(shown, cells))
                 text.append(end)
         if mine is not None:
             text.append(f"  your label: {mine.label}", "italic")
         return text
+
+    def _value_cells(self, used: int) -> int:
+        """Room for each value: what the box leaves beside the rest of the line. Product
+        titles cut at 18 cells all read 'Ashgrove silent f…' on a 120-column terminal with 40
+        cells of the line empty, and a found word was seldom in sight."""
+        box = min(BOX_MAX, int(self.app.size.width * BOX_SHARE)) - BOX_INNER
+        return max(VALUE_CELLS, (box - used) // 2)
 
     def on_option_list_option_selected(self, event: OptionList.OptionSelected) -> None:
         event.stop()
