@@ -69,6 +69,9 @@ async def test_deciding_asks_for_a_reason_and_stores_an_adjudication(team, team_
         app.clock.advance(4.5)
         await press(pilot, "s")
         assert isinstance(app.screen, ReasonScreen)
+        # the example names this project's own fields, not one data set's
+        assert app.screen.query_one("#reason-input").placeholder.startswith(
+            "why this label, e.g. what in owner, ")
         await pilot.press(*"same pet", "enter")
         await settle(pilot)
         assert screen(app).pair_id != first

@@ -180,7 +180,8 @@ class AdjudicateScreen(AdjudicationQueue, Screen[None]):
             self.notify("Nothing to decide: the adjudication queue is empty.",
                         severity="warning")
             return
-        self.app.push_screen(ReasonScreen(self.pair_id, label),
+        fields = () if self.card is None else tuple(f.field for f in self.card.fields)
+        self.app.push_screen(ReasonScreen(self.pair_id, label, fields),
                              partial(self._save, self.pair_id, label))
 
     def _save(self, pair_id: int, label: str, reason: str | None) -> None:
