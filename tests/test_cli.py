@@ -251,3 +251,23 @@ def test_next_writes_a_probability_as_the_screen_does(tiny_tables, tmp_path: Pat
     assert main(["next", str(project), "--reviewer", "maya"]) == 0
     rows = capsys.readouterr().out.splitlines()[1:]
     assert [r.split("  ")[-2].strip() for r in rows] == ["0.99996", "< 0.000001", "0.250"]
+
+
+def test_dasks_advice_on_large_graphs_is_not_shown(sample_project: Path, capsys,
+                                                   monkeypatch: pytest.MonkeyPatch) -> None:
+    # 'docket new --engine dask' on 200,000 records printed 'warning: Sending large graph of
+    # size 9.54 MiB.\nThis may cause some slowdown.\nConsider loading the data with Dask
+    # directly ...', advice to the graph's author that the user cannot act on
+    import warnings
+
+    from docket.core import Project
+    real = Project.status
+
+    def status(self: Project) -> object:
+        warnings.warn("Sending large graph of size 9.54 MiB.\nThis may cause some slowdown.",
+                      UserWarning, stacklevel=1)
+        return real(self)
+
+    monkeypatch.setattr(Project, "status", status)
+    assert main(["status", str(sample_project)]) == 0
+    assert capsys.readouterr().err == ""

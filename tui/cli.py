@@ -49,6 +49,9 @@ def main(argv: list[str] | None = None) -> int:
     with safe_streams(), warnings.catch_warnings():  # every line printed reaches it inert
         warnings.simplefilter("default")  # each distinct message once
         warnings.filterwarnings("ignore", message="DataFrame is highly fragmented")
+        # Dask's advice to whoever wrote the graph (docket --engine dask ships the records'
+        # keys in it), which the user of the command cannot act on
+        warnings.filterwarnings("ignore", message="Sending large graph of size")
         # warnings for developers, not users: a library's deprecations, and a file left open
         # by an import that a Ctrl-C cut short ("unclosed file ... .pyc") before 'interrupted'
         for category in (DeprecationWarning, PendingDeprecationWarning, ResourceWarning):
