@@ -49,6 +49,11 @@ def test_status_and_export_count_them_apart(sample_project: Path, tmp_path: Path
         pid = p.next_pairs("maya", 1)[0].pair_id
         p.decide(pid, "maya", "match")
     path = str(sample_project)
+    out = tmp_path / "missed.csv"
+    assert main(["export", path, "--what", "missed", "-o", str(out)]) == 0
+    assert capsys.readouterr().err.strip() == (  # none yet: how to record one
+        f"wrote 0 rows to {out}: no missed match recorded (docket missed {path} add LEFT RIGHT "
+        "records a true match that no candidate pair holds)")
     assert main(["missed", path, "add", a, b, "--reviewer", "maya", "--note", "twins"]) == 0
     assert "1 in all" in capsys.readouterr().out
     assert main(["status", path, "--json"]) == 0
@@ -57,7 +62,6 @@ def test_status_and_export_count_them_apart(sample_project: Path, tmp_path: Path
     assert info["missed_matches"]["reach"] == pytest.approx(0.5)  # 1 gold match, 1 missed
     assert main(["status", path]) == 0
     assert "the candidates hold 50.0% of the 2 matches known" in capsys.readouterr().out
-    out = tmp_path / "missed.csv"
     assert main(["export", path, "--what", "missed", "-o", str(out)]) == 0
     back = pd.read_csv(out, dtype=str, keep_default_na=False)
     assert back[["left_id", "right_id", "reviewer", "note"]].values.tolist() == [

@@ -159,8 +159,12 @@ def export(args: argparse.Namespace) -> int:
     if args.what != "scores" or args.for_lm or args.lm_template:
         with open_project(args.project, readonly=True) as project:
             result = export_other(project, args.what, args)
-        none = ": no conflicts, no gold non-match falls inside a cluster" \
-            if args.what == "conflicts" else ""
+        none = {"conflicts": ": no conflicts, no gold non-match falls inside a cluster",
+                # the export is the only mention of missed matches a reader of the
+                # README meets; an empty file said nothing of how one is recorded
+                "missed": f": no missed match recorded (docket missed {args.project} add "
+                          "LEFT RIGHT records a true match that no candidate pair holds)"
+                }.get(args.what, "")
         write_export(result, args.output, args.format,
                      guard=getattr(args, "formula_guard", True), none=none)
         if args.what == "training" and "split" in getattr(result, "columns", ()):
