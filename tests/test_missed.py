@@ -48,8 +48,14 @@ def test_status_and_export_count_them_apart(sample_project: Path, tmp_path: Path
         a, b = not_a_candidate(p)
         pid = p.next_pairs("maya", 1)[0].pair_id
         p.decide(pid, "maya", "match")
+        audit = next(i for i in p.next_pairs("maya", 10) if i.reason == "audit")
+        p.decide(audit.pair_id, "maya", "non-match")  # so that evaluate has a labelled slice
     path = str(sample_project)
     out = tmp_path / "missed.csv"
+    assert main(["evaluate", path]) == 0
+    assert (f"blocking reach (the share of true matches that are candidates) is not measured: "
+            f"record matches blocking left out with docket missed {path} add") in \
+        capsys.readouterr().out
     assert main(["export", path, "--what", "missed", "-o", str(out)]) == 0
     assert capsys.readouterr().err.strip() == (  # none yet: how to record one
         f"wrote 0 rows to {out}: no missed match recorded (docket missed {path} add LEFT RIGHT "
@@ -58,10 +64,16 @@ def test_status_and_export_count_them_apart(sample_project: Path, tmp_path: Path
     assert "1 in all" in capsys.readouterr().out
     assert main(["status", path, "--json"]) == 0
     info = json.loads(capsys.readouterr().out)
-    assert info["missed_matches"]["count"] == 1 and info["gold_labels"] == 1
+    assert info["missed_matches"]["count"] == 1 and info["gold_labels"] == 2
     assert info["missed_matches"]["reach"] == pytest.approx(0.5)  # 1 gold match, 1 missed
     assert main(["status", path]) == 0
     assert "the candidates hold 50.0% of the 2 matches known" in capsys.readouterr().out
+    # evaluate gave 'blocking reach:' and the reduction ratio only, which is no reach
+    assert main(["evaluate", path]) == 0
+    assert ("blocking reach: the candidates hold 50.0% of the 2 matches known (1 recorded with "
+            "docket missed") in capsys.readouterr().out
+    assert main(["evaluate", path, "--json"]) == 0
+    assert json.loads(capsys.readouterr().out)["scope"]["blocking"]["missed"]["count"] == 1
     assert main(["export", path, "--what", "missed", "-o", str(out)]) == 0
     back = pd.read_csv(out, dtype=str, keep_default_na=False)
     assert back[["left_id", "right_id", "reviewer", "note"]].values.tolist() == [

@@ -79,16 +79,29 @@ def evaluation_lines(report: Evaluation, name: str) -> list[str]:
     b = sc["blocking"]
     out += ["", f"{sc['note']}."]
     if b.get("candidate_pairs") is not None:
-        out.append(f"blocking reach: {many(b['candidate_pairs'], 'candidate pair')} of "
+        out.append(f"blocking: {many(b['candidate_pairs'], 'candidate pair')} of "
                    f"{b['possible_pairs']:,} possible (reduction ratio "
                    f"{b['reduction_ratio']:.4f})")
     for rule, k in b.get("pairs_per_rule", {}).items():
         out.append(f"  {padded(rule, 40)} {k:>12,} {noun(k, 'pair')}")
+    if b.get("candidate_pairs") is not None:
+        out.append(blocking_reach(b.get("missed"), report.project))
     if report.queue_order is not None:
         out.append(f"queue order: {report.queue_order['text']}")
     if report.machine_rater is not None:
         out += ["", *_machine_lines(report)]
     return out
+
+
+def blocking_reach(m: dict | None, project: str) -> str:
+    """The blocking rules' reach as far as it is known: the line was headed 'blocking reach'
+    and gave the reduction ratio, which says nothing of the matches left out."""
+    if not m or not m["count"]:
+        return ("blocking reach (the share of true matches that are candidates) is not measured: "
+                f"record matches blocking left out with docket missed {project} add LEFT RIGHT")
+    return (f"blocking reach: the candidates hold {m['reach']:.1%} of the "
+            f"{many(m['gold_matches'] + m['count'], 'match')} known ({m['count']:,} recorded "
+            "with docket missed; rough, and if anything too high)")
 
 
 def _machine_lines(report: Evaluation) -> list[str]:

@@ -21,6 +21,7 @@ import pandas as pd
 from ..errors import DocketError
 from ..ordering.queue_order import describe
 from ..ordering.sampling import sampling_note
+from ..reviewing import missed
 from ..reviewing.agreement import json_ready
 from ..storage.project_file import ProjectFile
 from . import estimates
@@ -69,11 +70,16 @@ def _naive(scores: np.ndarray, y: np.ndarray, t: float, confidence: float,
     return d
 
 
-def _blocking(project: ProjectFile) -> dict[str, Any]:
+def _blocking(project: ProjectFile, gold: Mapping[int, int]) -> dict[str, Any]:
     b = project.meta.get("blocking", {})
+    # the only reach docket can give: gold matches against those recorded as missed
+    found = len(missed.listing(project.connection))
+    matches = sum(gold.values())
     return {"rules": b.get("rules", []), "pairs_per_rule": b.get("per_rule", {}),
             "candidate_pairs": b.get("pairs"), "possible_pairs": b.get("possible"),
-            "reduction_ratio": b.get("reduction_ratio")}
+            "reduction_ratio": b.get("reduction_ratio"),
+            "missed": {"count": found, "gold_matches": matches,
+                       "reach": missed.reach(matches, found)}}
 
 
 def _unreached(which: str, goal: float | None, sample: estimates.AuditSample) -> str:
@@ -149,7 +155,7 @@ def _report(project: ProjectFile, scores: pd.Series, threshold: float,
                                               "f1": best["f1"]["value"], "note": OPTIMISTIC},
         "suggested": suggested,
         "scope": {"recall_within": "candidate pairs", "note": WITHIN_CANDIDATES,
-                  "blocking": _blocking(project)},
+                  "blocking": _blocking(project, gold)},
         "methods": METHODS,
         "gold_labels": len(gold),
         "sampling": sampling_note(project.meta.get("sampling")),
