@@ -265,3 +265,9 @@ def test_the_model_is_not_written_in_another_format(sample_project: Path, tmp_pa
                     "--format", "parquet")
     assert_one_line_error(code, err, "--format parquet", "always a JSON file")
     assert not out.exists()
+    # named like a table, it was written as JSON all the same, unsaid
+    out = tmp_path / "model.csv"
+    code, err = run(capsys, "export", str(sample_project), "--what", "model", "-o", str(out))
+    assert_one_line_error(code, err, "model.csv: the model is a JSON file, not a table",
+                          f"name it {tmp_path / 'model.json'}")
+    assert not out.exists()

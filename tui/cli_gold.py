@@ -146,10 +146,16 @@ def evaluate(args: argparse.Namespace) -> int:
 def export(args: argparse.Namespace) -> int:
     from docket.core import output_format
     if args.what == "model":
+        from pathlib import Path
+
+        from docket.core import DocketError
         if args.format:
-            from docket.core import DocketError
             raise DocketError(f"--format {args.format}: the model is always a JSON file; "
                               "leave --format out")
+        if Path(args.output).suffix.lower() in (".csv", ".tsv", ".parquet", ".jsonl"):
+            # 'model.csv' was written as JSON, unsaid, for a table reader to choke on
+            raise DocketError(f"-o {args.output}: the model is a JSON file, not a table; "
+                              f"name it {Path(args.output).with_suffix('.json')}")
         from .cli_scale import export_model
         with open_project(args.project, readonly=True) as project:
             export_model(project, args.output)
