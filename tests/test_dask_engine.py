@@ -103,25 +103,32 @@ def test_a_local_cluster_leaves_a_failed_task_to_the_commands_one_line(
     assert seen["silence_logs"] == logging.CRITICAL
 
 
-def test_the_local_clusters_workers_start_with_ctrl_c_ignored(
+def test_the_local_clusters_workers_start_writing_nowhere_and_no_gc_callback_is_left(
         monkeypatch: pytest.MonkeyPatch) -> None:
     # the terminal sends Ctrl-C to every process of the command: each worker printed
-    # tracebacks (99 lines) before docket's 'interrupted'
-    import signal
+    # tracebacks (up to 99 lines) before docket's 'interrupted'; and the scheduler's garbage
+    # collection callback swallowed a KeyboardInterrupt raised in it, so a 'new --force' went
+    # on and replaced the project
+    import os
+
+    from distributed import gc as dask_gc
 
     from docket.core.storage import dask_engine
-    during: list[object] = []
+    during: list[bool] = []
 
     class Cluster:
         def __init__(self, **_options: object) -> None:
-            during.append(signal.getsignal(signal.SIGINT))  # what a spawned worker inherits
+            # what a spawned worker inherits as its standard error
+            during.append(os.path.samestat(os.fstat(2), os.stat(os.devnull)))
+            dask_gc.enable_gc_diagnosis()  # as the scheduler does when it starts
 
     monkeypatch.setattr(distributed, "LocalCluster", Cluster)
     monkeypatch.setattr(distributed, "Client", lambda cluster: "client")
-    before = signal.getsignal(signal.SIGINT)
+    before = os.fstat(2)
     dask_engine.connect(2, None)
-    assert during == [signal.SIG_IGN]
-    assert signal.getsignal(signal.SIGINT) is before
+    assert during == [True]
+    assert os.path.samestat(os.fstat(2), before)
+    assert not dask_gc._gc_diagnosis.enabled
 
 
 def test_a_cluster_cut_short_in_its_start_is_not_closed_again_at_exit(

@@ -11,8 +11,8 @@ Dask and distributed are an optional extra: ``pip install 'docket[dask]'``.
 from __future__ import annotations
 
 import logging
-import signal
-import threading
+import os
+import sys
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager, suppress
 from typing import Any
@@ -59,7 +59,7 @@ def connect(workers: int, scheduler: str | None) -> tuple[Any, Any]:
     # a task that fails comes back to the client as its exception, which the command words
     # in one line; the worker's own ERROR log printed it first, with a traceback
     try:
-        with _workers_leave_ctrl_c():
+        with _workers_write_nowhere():
             cluster = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
                                    dashboard_address=":0", silence_logs=logging.CRITICAL)
     except BaseException:
@@ -68,24 +68,32 @@ def connect(workers: int, scheduler: str | None) -> tuple[Any, Any]:
     # a Ctrl-C ends the client's pending gathers, and asyncio logs each with a traceback
     # ('Task exception was never retrieved ... AllExit') before the command's one line
     logging.getLogger("asyncio").setLevel(logging.CRITICAL)
+    # the scheduler, here in this process, times every garbage collection from a callback,
+    # which swallows a KeyboardInterrupt raised in it ('Exception ignored in ... GCDiagnosis');
+    # a Ctrl-C or SIGTERM was lost so, and a 'new --force' went on to replace the project.
+    # Its only use is a log line, silenced above.
+    from distributed.gc import disable_gc_diagnosis
+    disable_gc_diagnosis(force=True)
     return Client(cluster), cluster
 
 
 @contextmanager
-def _workers_leave_ctrl_c() -> Iterator[None]:
-    """Start the worker processes with Ctrl-C ignored, which they inherit and keep: the
-    terminal sends it to every process of the command, and each worker printed two or more
-    tracebacks (a mask of blocked signals did not reach them). This process ignores it for the
-    start alone (a second or two); after that it gets it and closes the cluster, which ends
-    the workers."""
-    if threading.current_thread() is not threading.main_thread():
-        yield  # signal handlers can only be set from the main thread
-        return
-    previous = signal.signal(signal.SIGINT, signal.SIG_IGN)
+def _workers_write_nowhere() -> Iterator[None]:
+    """Start the worker processes with standard error sent to the null device, which they
+    inherit and keep. The terminal sends Ctrl-C to every process of the command, and each
+    worker printed its tracebacks (up to 99 lines) before docket's own line; their logs are
+    silenced already, and a task's failure comes back to this process as its exception.
+    (Ignoring Ctrl-C while they started dropped a Ctrl-C pressed meanwhile: a 'new --force'
+    then went on and replaced the project.)"""
+    sys.stderr.flush()
+    saved, nowhere = os.dup(2), os.open(os.devnull, os.O_WRONLY)
     try:
+        os.dup2(nowhere, 2)
         yield
     finally:
-        signal.signal(signal.SIGINT, previous)
+        os.dup2(saved, 2)
+        os.close(saved)
+        os.close(nowhere)
 
 
 def _drop_half_started() -> None:
