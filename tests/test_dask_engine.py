@@ -66,7 +66,8 @@ def test_unknown_id_in_a_part_on_dask(tmp_path: Path, scheduler: str, capsys) ->
     code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left",
                     str(sample / "practice_north.csv"), "--right",
                     str(sample / "practice_south.csv"), "--left-id", "client_id",
-                    "--right-id", "ref", "--pairs", str(folder), "--engine", "dask",
+                    "--right-id", "ref", "--map", "owner=owner_name", "--map",
+                    "born=date_of_birth", "--pairs", str(folder), "--engine", "dask",
                     "--scheduler", scheduler)
     assert_one_line_error(code, err, "N-nope")
     assert [p.name for p in tmp_path.iterdir() if "docket" in p.name] == []
