@@ -77,3 +77,13 @@ def test_values_a_number_field_cannot_read_are_said_to_count_as_missing(
         "number (for example 'ca. " in err
     assert "--field price:text" in err
     assert "a.csv" not in err.split("price, compared as number: in ")[1].split(",")[0]
+
+
+def test_a_map_the_wrong_way_round_says_so(tmp_path: Path, capsys) -> None:
+    a, b = _shops(tmp_path)
+    project = tmp_path / "s.docket"
+    assert main(["new", str(project), "--left", str(a), "--right", str(b), "--id", "id",
+                 "--map", "name=title"]) == 2
+    err = capsys.readouterr().err
+    assert "--map name=title is the wrong way round" in err and "--map title=name" in err
+    assert len(err.strip().splitlines()) == 1 and not project.exists()

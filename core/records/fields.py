@@ -94,6 +94,11 @@ def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: st
         if lcol == left.index.name or rcol == right_frame.index.name:
             raise DocketError(f"--map {lcol}={rcol}: names an id column, which identifies "
                               "records and is not compared; map the columns to compare")
+        if lcol not in left.columns and right is not None and lcol in right.columns and \
+                rcol in left.columns:
+            raise DocketError(f"--map {lcol}={rcol} is the wrong way round: '{lcol}' is a column "
+                              f"of {right_name} and '{rcol}' of {left_name}; the left table's "
+                              f"column comes first: --map {rcol}={lcol}")
         if lcol not in left.columns:
             raise DocketError(f"{left_name}: --map names column '{lcol}', which it does not have "
                               f"(columns: {', '.join(left.columns)})")
