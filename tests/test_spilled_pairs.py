@@ -10,7 +10,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from docket.core import Project
+from docket.core import DocketError, Project
 from docket.core.storage import build, spilled
 from tests.test_stream_pairs import _pairs, _parts, _spec
 
@@ -62,6 +62,24 @@ def test_a_bad_part_leaves_no_buckets_behind(tmp_path: Path,
     monkeypatch.setattr(spilled, "BUCKET", 97)
     with pytest.raises(Exception, match="no-such-client"):
         Project.create(_spec(tmp_path / "s.docket", folder, sample_above=KEEP, workers=1))
+    assert not list(tmp_path.glob(".*")) and not (tmp_path / "s.docket").exists()
+
+
+def test_buckets_on_a_full_disk_are_one_line_and_leave_nothing(
+        tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    # numpy's 'OSError: 118591 requested and 68608 written' ended the build in a traceback
+    folder = _parts(_pairs(60), tmp_path / "pairs", 5)
+    monkeypatch.setattr(spilled, "BUCKET", 97)
+
+    def short_write(*_a: object) -> None:
+        raise OSError("118591 requested and 68608 written")
+
+    monkeypatch.setattr(spilled, "first_seen", short_write)
+    with pytest.raises(DocketError) as caught:
+        Project.create(_spec(tmp_path / "s.docket", folder, sample_above=KEEP, workers=1))
+    assert str(caught.value) == (
+        f"{tmp_path}: cannot set the pairs aside beside the project (the disk is full; they "
+        "take 16 bytes a pair while read); nothing was saved; free some space and try again")
     assert not list(tmp_path.glob(".*")) and not (tmp_path / "s.docket").exists()
 
 

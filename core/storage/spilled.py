@@ -15,17 +15,19 @@ from __future__ import annotations
 
 import os
 import shutil
-from collections.abc import Callable
-from contextlib import ExitStack
+from collections.abc import Callable, Iterator
+from contextlib import ExitStack, contextmanager
 from pathlib import Path
 
 import numpy as np
 
+from ..errors import DocketError
 from ..ordering.queue import unit_hash
 from ..ordering.sampling import Held, SamplePlan, held_for, pick
 from ..pairs.candidates import GivenReader, Step, first_seen
 from ..pairs.pair_files import PairSource
 from ..records.sources import Table
+from .file_health import no_room
 from .pair_stream import ChunkScorer, Kept, held_or_compared, order_kept
 from .score_pool import score_all, workers_for
 
@@ -57,8 +59,9 @@ class Spilled:
         self.folder.mkdir(mode=0o700)  # pairs of personal records: the owner's alone
         try:
             self.n_buckets = max(1, -(-reader.source.rows // (bucket or BUCKET)))
-            self._spread(reader, step)
-            self.n = self._dedupe(reader)
+            with self._room():
+                self._spread(reader, step)
+                self.n = self._dedupe(reader)
         except BaseException:
             self.close()
             raise
@@ -67,6 +70,18 @@ class Spilled:
         self.workers = workers_for(self.n, workers)
         self.held_keys = np.zeros(0, dtype=np.int64)
         self.held_sims: np.ndarray | None = None
+
+    @contextmanager
+    def _room(self) -> Iterator[None]:
+        # numpy's 'OSError: 118591 requested and 68608 written' ended a build in a traceback
+        try:
+            yield
+        except OSError as exc:
+            why = ("the disk is full" if no_room(exc) or "requested and" in str(exc)
+                   else f"{exc.strerror or exc}")
+            raise DocketError(f"{self.folder.parent}: cannot set the pairs aside beside the "
+                              f"project ({why}; they take 16 bytes a pair while read); nothing "
+                              "was saved; free some space and try again") from None
 
     def _file(self, b: int, what: str) -> Path:
         return self.folder / f"{b}.{what}"
@@ -127,7 +142,8 @@ class Spilled:
                 codes[part.start:part.start + len(part.codes)] = part.codes
                 held_keys.append(keys[part.start + part.held])
                 held_sims.append(part.sims)
-            codes.tofile(self._file(b, "codes"))
+            with self._room():
+                codes.tofile(self._file(b, "codes"))
             for c, k in zip(*np.unique(codes, return_counts=True), strict=True):
                 found[int(c)] = found.get(int(c), 0) + int(k)
             done += len(keys)
