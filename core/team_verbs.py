@@ -6,8 +6,10 @@ from __future__ import annotations
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
-from .errors import Interrupted
+from .errors import DocketError, Interrupted
 from .results import AgreementReport
+from .storage import file_health
+from .storage.file_health import ProjectFileError
 from .storage.project_file import ProjectFile
 from .wording import many
 
@@ -72,6 +74,14 @@ class TeamVerbs(ProjectFile):
         except KeyboardInterrupt:
             raise Interrupted(f"{kept}; the refit was cut short, so the model stays as it "
                               "was until the next one (a review or label refits it)") from None
+        except ProjectFileError as exc:
+            # a full disk in the refit said 'disk full; nothing was saved' of decisions that
+            # were all recorded
+            why = ("the disk is full; free some space" if file_health.disk_full(exc)
+                   else str(exc))
+            raise DocketError(f"{self.path}: {kept}; the refit could not be written ({why}), "
+                              "so the model stays as it was until the next one (a review or "
+                              "label refits it)") from None
 
     # -- adjudication ------------------------------------------------------------------------
     def require_adjudicator(self, name: str) -> str:

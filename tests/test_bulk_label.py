@@ -332,3 +332,24 @@ def test_labels_that_a_full_disk_keeps_from_taking_back_are_said_to_stand(
             "again to record the rest (rows recorded already are recorded again with the same "
             "label)")
         assert len(_standing(p)) == 4
+
+
+def test_a_full_disk_in_the_refit_after_label_says_the_decisions_stand(
+        sample_project: Path, tmp_path: Path, capsys, monkeypatch: pytest.MonkeyPatch) -> None:
+    # 'disk full; nothing was saved' was said after every decision had been committed
+    rows = tmp_path / "labels.csv"
+    rows.write_text("pair_id,label\n1,match\n2,non-match\n", encoding="utf-8")
+
+    def full(self: Project) -> None:  # as a transaction reports it
+        cause = sqlite3.OperationalError("database or disk is full")
+        raise file_health.ProjectFileError(file_health.explain(cause, self.path)) from cause
+
+    monkeypatch.setattr(Project, "refit", full)
+    assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(rows)]) == 2
+    assert capsys.readouterr().err == (
+        f"docket: {sample_project}: the 2 decisions for maya are recorded; the refit could not "
+        "be written (the disk is full; free some space), so the model stays as it was until "
+        "the next one (a review or label refits it)\n")
+    with Project.open(sample_project) as p:
+        assert sorted((d.pair_id, d.label) for d in p.decisions()) == [
+            (1, "match"), (2, "non-match")]
