@@ -152,9 +152,20 @@ def test_a_cluster_cut_short_in_its_start_is_not_closed_again_at_exit(
         def close(self, timeout: float | None = None) -> None:
             raise AssertionError("Status.init")
 
+    class Theirs:  # a cluster the process held before: closing it broke the suite's own
+        shutdown_on_close = True
+        closed = False
+
+        def close(self, timeout: float | None = None) -> None:
+            self.closed = True
+
+    theirs = Theirs()
+    SpecCluster._instances.add(theirs)  # type: ignore[arg-type]
     monkeypatch.setattr(distributed, "LocalCluster", Cluster)
     with pytest.raises(KeyboardInterrupt):
         dask_engine.connect(2, None)
     (cluster,) = made
     assert cluster.shutdown_on_close is False  # type: ignore[attr-defined]
+    assert not theirs.closed and theirs.shutdown_on_close
     SpecCluster._instances.discard(cluster)  # type: ignore[arg-type]
+    SpecCluster._instances.discard(theirs)  # type: ignore[arg-type]

@@ -58,12 +58,14 @@ def connect(workers: int, scheduler: str | None) -> tuple[Any, Any]:
         raise DocketError(f"--workers {workers}: give 1 or more")
     # a task that fails comes back to the client as its exception, which the command words
     # in one line; the worker's own ERROR log printed it first, with a traceback
+    from distributed.deploy.spec import SpecCluster
+    before = set(SpecCluster._instances)
     try:
         with _workers_write_nowhere():
             cluster = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
                                    dashboard_address=":0", silence_logs=logging.CRITICAL)
     except BaseException:
-        _drop_half_started()
+        _drop_half_started(before)
         raise
     # a Ctrl-C ends the client's pending gathers, and asyncio logs each with a traceback
     # ('Task exception was never retrieved ... AllExit') before the command's one line
@@ -96,12 +98,13 @@ def _workers_write_nowhere() -> Iterator[None]:
         os.close(nowhere)
 
 
-def _drop_half_started() -> None:
+def _drop_half_started(before: set) -> None:
     # a stop signal during the start left a cluster half made (never handed back to be
     # closed), which distributed's exit hook then failed to close, with a traceback
-    # ('AssertionError: Status.init') after the command's line
+    # ('AssertionError: Status.init') after the command's line. Only the one begun here:
+    # closing every cluster of the process also closed a caller's own
     from distributed.deploy.spec import SpecCluster
-    for cluster in list(SpecCluster._instances):
+    for cluster in set(SpecCluster._instances) - before:
         with suppress(Exception):
             cluster.close(timeout=5)
         cluster.shutdown_on_close = False
