@@ -12,7 +12,8 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from ..errors import DocketError
-from ..records.sources import form_hint, row_named
+from ..records.id_hints import form_hint
+from ..records.sources import row_named
 from ..storage.project_file import ProjectFile
 from .pair_keys import PairKeys, lookup_many
 

@@ -9,7 +9,8 @@ import numpy as np
 import pandas as pd
 
 from ..errors import DocketError
-from ..records.sources import form_hint, read_frame, row_named
+from ..records.id_hints import form_hint
+from ..records.sources import read_frame, row_named
 from ..records.text_tables import plain_names
 from ..storage.project_file import ProjectFile
 from ..wording import many, quoted

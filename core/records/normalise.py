@@ -71,6 +71,7 @@ _SIGN = "[$\u00a2-\u00a5\u20a0-\u20c0]"  # dollar, cent to yen, the currency sym
 _CURRENCY = re.compile(rf"^\s*(?:{_MONEY}\s?)?{_SIGN}?|{_SIGN}?(?:\s?{_MONEY})?\s*$")
 # a comma with one or two digits after it, ending the number: a decimal comma ('2.132,07')
 _DECIMAL_COMMA = re.compile(r"^[-+]?[\d.\s\u00a0']*\d,\d{1,2}$")
+_THOUSANDS = re.compile(r"[.\s\u00a0']")  # what groups thousands beside a decimal comma
 
 
 def number(value: str) -> float | None:
@@ -82,7 +83,7 @@ def number(value: str) -> float | None:
         pass
     text = _CURRENCY.sub("", value).strip()
     if _DECIMAL_COMMA.match(text):
-        text = re.sub(r"[.\s\u00a0']", "", text).replace(",", ".")
+        text = _THOUSANDS.sub("", text).replace(",", ".")
     else:
         text = text.replace(",", "")
     try:

@@ -3,8 +3,7 @@
 from __future__ import annotations
 
 import json
-import unicodedata
-from collections.abc import Collection, Iterable, Sequence
+from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -274,47 +273,6 @@ def rows_named(path: Path, positions: Sequence[int] | np.ndarray) -> str:
     word, first = row_word(path)
     named = f"{noun(len(positions), word)} {', '.join(str(i + first) for i in positions)}"
     return named + (" (counting the header as row 1)" if word == "row" else "")
-
-
-def form_hint(given: Iterable[object], known: Collection[str]) -> str:
-    """A hint for ids that name records but in another Unicode form: a file saved with each
-    accent as a separate mark (NFD: 'e' + U+0308 for 'ë') names no record whose id composes it
-    (NFC), and the message showed two ids that look the same. "" when no id is such a twin."""
-    composed: dict[str, str] | None = None
-    for value in given:
-        text = str(value)
-        if text in known or text.isascii():
-            continue
-        if composed is None:
-            composed = {unicodedata.normalize("NFC", k): k for k in known}
-        twin = composed.get(unicodedata.normalize("NFC", text))
-        if twin is not None:
-            return (f"; {text!a} is the record id {twin!a} in another Unicode form "
-                    "(its accents stored as separate marks, or the other way round): save the "
-                    "file with its characters as the records have them (composed, NFC, as most "
-                    "systems write them)")
-    return _zeros_hint(given, known)
-
-
-def _zeros_hint(given: Iterable[object], known: Collection[str]) -> str:
-    """A hint for an id that is a record's id with its leading zeros dropped, as a spreadsheet
-    does to a column it takes for numbers: '7' for '000007' was refused as naming no pair."""
-    padded: dict[str, str | None] | None = None
-    for value in given:
-        text = str(value).strip()
-        if text in known or not text.isdigit():
-            continue
-        if padded is None:
-            padded = {}
-            for k in known:
-                if k.isdigit() and k.startswith("0"):
-                    short = k.lstrip("0")
-                    padded[short] = None if short in padded else k  # two: cannot tell which
-        twin = padded.get(text.lstrip("0"))
-        if twin is not None:
-            return (f"; '{text}' looks like the record id '{twin}' with its leading zeros "
-                    "dropped, as a spreadsheet does to numbers: keep the ids as text")
-    return ""
 
 
 def id_like(frame: pd.DataFrame) -> list[str]:

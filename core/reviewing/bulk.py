@@ -20,7 +20,8 @@ from pathlib import Path
 import pandas as pd
 
 from ..errors import DocketError
-from ..records.sources import form_hint, read_frame, row_named, row_word
+from ..records.id_hints import form_hint
+from ..records.sources import read_frame, row_named, row_word
 from ..records.text_tables import bom_encoding, plain_names
 from ..storage import claims, file_health, roles
 from ..storage import decisions as log

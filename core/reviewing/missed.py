@@ -15,7 +15,7 @@ from dataclasses import asdict, dataclass
 from typing import Any
 
 from ..errors import DocketError
-from ..records.sources import form_hint
+from ..records.id_hints import form_hint
 from ..storage import store
 from ..storage.project_file import ProjectFile
 
