@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from rich.cells import cell_len
 from rich.text import Text
 from textual.widgets import Static
 
@@ -24,6 +25,8 @@ REASONS = {
     "candidate": "opened from another record's candidates",
 }
 SHOWN = 3  # fields listed one by one in the odds steps; the rest share one line
+NAME_CELLS = 10  # short names keep one column for the factors, as wide as this
+PANEL_TEXT = 26  # cells of text in the panel at its wide width (30, less border and padding)
 SHORT_MODEL = {"fellegi-sunter": "Fellegi–Sunter", "logistic": "logistic, from labels"}
 
 
@@ -57,8 +60,21 @@ def odds_steps(card: PairCard) -> list[tuple[str, float]]:
     return shown
 
 
+def step_lines(steps: list[tuple[str, float]], width: int) -> list[tuple[str, int, str]]:
+    """Each step as (name, cells kept of it, factor), the factors in one column within ``width``.
+
+    The names get what the widest factor leaves, so a field name is cut only when the panel is
+    too narrow for it and the factor beside it, never while room is left empty.
+    """
+    factors = [factor_text(part) for _, part in steps]
+    widest = max((len(f) for f in factors), default=0)
+    room = max(4, width - 3 - widest)  # two cells of indent, one between name and factor
+    keep = min(room, max([NAME_CELLS] + [cell_len(n) for n, _ in steps]))
+    return [(name, keep, f) for (name, _), f in zip(steps, factors, strict=True)]
+
+
 def evidence_text(card: PairCard, palette: Palette, you: YourSide = YourSide(),
-                  model_note: str = "") -> Text:
+                  model_note: str = "", width: int = PANEL_TEXT) -> Text:
     p = palette
     text = Text()
     # labels as narrow as they go: "1 to 3.7k" must fit beside "odds" in a 20-column panel
@@ -67,11 +83,13 @@ def evidence_text(card: PairCard, palette: Palette, you: YourSide = YourSide(),
                             p.positive if card.log_odds > 0 else p.negative), 8)
     text.append("from the start\n", p.muted)
     _row(text, "  ", Text(odds_text(card.base_log_odds), p.muted), 2)
-    for name, part in odds_steps(card):
+    steps = odds_steps(card)
+    for (name, keep, factor), (_, part) in zip(step_lines(steps, width), steps, strict=True):
         text.append("  ")
-        text.append_text(literal.one_line(name, 10, p.escape))
-        text.append(" " * max(1, 11 - min(len(name), 10)))
-        text.append(factor_text(part) + "\n", p.positive if part > 0 else
+        shown = literal.one_line(name, keep, p.escape)
+        text.append_text(shown)
+        text.append(" " * (1 + keep - shown.cell_len))
+        text.append(factor + "\n", p.positive if part > 0 else
                     p.negative if part < 0 else p.muted)
     text.append("model   ", p.muted)
     text.append(SHORT_MODEL.get(card.model, card.model) + "\n")
@@ -99,11 +117,19 @@ class EvidencePanel(Static):
     """Shows :func:`evidence_text` for the pair on screen."""
 
     BORDER_TITLE = "evidence"
+    _shown: tuple[PairCard | None, Palette, YourSide, str] | None = None
 
     def show(self, card: PairCard | None, palette: Palette = PLAIN, you: YourSide = YourSide(),
              model_note: str = "") -> None:
+        self._shown = (card, palette, you, model_note)
         # The panel's size comes from the layout, not from its text: no layout pass needed.
         if card is None:
             self.update(Text(model_note, palette.muted), layout=False)
             return
-        self.update(evidence_text(card, palette, you, model_note), layout=False)
+        width = self.content_size.width or PANEL_TEXT  # before the first layout: the wide size
+        self.update(evidence_text(card, palette, you, model_note, width), layout=False)
+
+    def on_resize(self) -> None:
+        # the names' room follows the panel's width (narrower below 110 columns)
+        if self._shown is not None:
+            self.show(*self._shown)

@@ -1,0 +1,106 @@
+"""The evidence panel names each field in the odds steps as fully as the panel's width allows.
+
+The names were cut at 10 cells at any width, so 'description' read 'descripti…' on a
+120-column screen with half the panel's line empty.
+"""
+
+from __future__ import annotations
+
+import math
+
+import pytest
+
+from docket.core import NewProject, Project, factor_text
+from docket.core.types import FieldComparison, PairCard
+from docket.tui.diff import PLAIN
+from docket.tui.widgets.evidence import PANEL_TEXT, evidence_text, odds_steps
+from tests.fixtures_review import pilot_test
+from tests.screens_support import settle
+
+NARROW_TEXT = 20  # the panel at 64-109 columns: 24 cells less border and padding
+
+
+def _card(names: dict[str, float]) -> PairCard:
+    fields = tuple(FieldComparison(field=n, kind="text", left="a", right="b", similarity=0.5,
+                                   level=1, level_name="similar", contribution=c)
+                   for n, c in names.items())
+    total = -8.0 + sum(names.values())
+    return PairCard(pair_id=1, left_id="p1", right_id="p2",
+                    probability=1 / (1 + math.exp(-total)), log_odds=total,
+                    base_log_odds=-8.0, reason="uncertain", fields=fields)
+
+
+PRODUCTS = {"description": -2.16, "price": 2.15, "manufacturer": 1.81, "title": -0.41}
+
+
+def _step_lines(text: str) -> list[str]:
+    lines = text.splitlines()
+    start = lines.index("from the start") + 2
+    return lines[start:start + len(odds_steps(_card(PRODUCTS)))]
+
+
+def test_names_are_whole_at_both_widths_and_factors_line_up() -> None:
+    card = _card(PRODUCTS)
+    for width in (PANEL_TEXT, NARROW_TEXT):
+        steps = _step_lines(evidence_text(card, PLAIN, width=width).plain)
+        names = [line.split()[0] for line in steps[:3]]
+        assert names == ["description", "price", "manufacturer"], (width, steps)
+        assert steps[3].split()[:2] == ["1", "more"]
+        assert all(len(line) <= width for line in steps), steps
+        assert len({line.rindex(" ") for line in steps}) == 1, steps  # one column of factors
+        shown = [line.split()[-1] for line in steps]
+        assert shown == [factor_text(p) for _, p in odds_steps(card)]
+
+
+def test_a_name_too_long_for_the_panel_is_cut_and_its_factor_kept() -> None:
+    card = _card({"manufacturer_country_of_origin": 3.0, "price": -1.0})
+    for width in (PANEL_TEXT, NARROW_TEXT):
+        steps = _step_lines(evidence_text(card, PLAIN, width=width).plain)[:2]
+        assert all(len(line) <= width for line in steps), steps
+        assert steps[0].split()[0].endswith("…") and steps[0].split()[-1] == "×20"
+        assert steps[0].startswith("  manufacturer")
+
+
+def test_the_steps_still_multiply_out_to_the_odds() -> None:
+    # what is listed (each field, then the rest in one step) adds up to the card's log-odds
+    card = _card(PRODUCTS)
+    total = card.base_log_odds + sum(p for _, p in odds_steps(card))
+    assert total == pytest.approx(card.log_odds)
+
+
+def _products(folder) -> Project:
+    rows = [("p1", "Venka blender C925", "Venka blender C925 with steel body", "Venka Works",
+             "166.46"),
+            ("p2", "Venka blender K526", "Venka blender K526 with quiet motor", "Venka Works",
+             "164.99"),
+            ("p3", "Torlum kettle A120", "Torlum kettle A120 cordless", "Torlum", "30.00"),
+            ("p4", "Torlum kettle a120", "Torlum kettle A120 w/ cordless", "Torlum Works",
+             "30.90")]
+    (folder / "products.csv").write_text(
+        "id,title,description,manufacturer,price\n"
+        + "".join(",".join(r) + "\n" for r in rows), encoding="utf-8")
+    (folder / "pairs.csv").write_text("left_id,right_id\np1,p2\np3,p4\np1,p3\n")
+    path = folder / "products.docket"
+    Project.create(NewProject(path=path, left=folder / "products.csv", id_column="id",
+                              pairs_file=folder / "pairs.csv", seed=0))
+    return path
+
+
+def _names_whole(app) -> None:
+    rendered = app.screen.query_one("#evidence").render().plain
+    for name, _ in odds_steps(app.screen.card)[:3]:
+        assert f"  {name} " in rendered, (app.size, rendered)
+    assert "…" not in rendered, rendered
+
+
+@pilot_test
+async def test_the_panel_names_the_fields_at_120x40_and_80x24(tmp_path, review_app) -> None:
+    path = _products(tmp_path)
+    for size, then in (((120, 40), (80, 24)), ((80, 24), (120, 40))):
+        app = review_app(path)
+        async with app.run_test(size=size) as pilot:
+            await settle(pilot)
+            _names_whole(app)
+            await pilot.resize_terminal(*then)  # the panel narrows or widens: drawn again
+            await settle(pilot)
+            _names_whole(app)
