@@ -13,7 +13,7 @@ Label = Literal["match", "non-match", "hold"]
 LABELS: tuple[str, ...] = ("match", "non-match", "hold")
 ROLES: tuple[str, ...] = ("reviewer", "adjudicator")
 KINDS: tuple[str, ...] = ("name", "text", "longtext", "code", "number", "date")
-Reason = Literal["uncertain", "audit", "overlap", "disagreement"]
+Reason = Literal["uncertain", "audit", "overlap", "audit, overlap", "disagreement"]
 
 
 @dataclass(frozen=True)

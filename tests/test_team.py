@@ -299,3 +299,26 @@ def test_next_with_n_0_does_not_call_the_queue_empty(tiny: Path, capsys) -> None
     assert run(["next", str(tiny), "--reviewer", "otto", "-n", "0"]) == 0
     out = capsys.readouterr().out
     assert "(-n 0: no pair asked for)" in out and "empty" not in out
+
+
+def test_next_names_both_reasons_of_an_audit_pair_waiting_for_a_second_reviewer(
+        tiny: Path, capsys) -> None:
+    # It was listed as 'audit' only, so a reviewer could not tell that a colleague's label on
+    # it waits for theirs (the agreement figures count it too).
+    with sqlite3.connect(tiny) as conn:
+        (both,) = conn.execute("SELECT pair_id FROM pairs WHERE audit = 1 AND overlap = 1"
+                               " ORDER BY pair_id LIMIT 1").fetchone()
+        alone = conn.execute("SELECT pair_id FROM pairs WHERE audit = 1 AND overlap = 0"
+                             " ORDER BY pair_id LIMIT 1").fetchone()[0]
+    with Project.open(tiny) as p:
+        p.decide(both, "ines", "match")
+        reasons = {q.pair_id: q.reason for q in p.next_pairs("maya", 8)}
+        card = p.card(both, reasons[both])
+    assert reasons[both] == "audit, overlap" and reasons[alone] == "audit"
+    assert run(["next", str(tiny), "--reviewer", "maya", "-n", "8"]) == 0
+    line = next(r for r in capsys.readouterr().out.splitlines() if r.split()[0] == str(both))
+    assert line.endswith("  audit, overlap")
+    from docket.tui.diff import PLAIN
+    from docket.tui.widgets.evidence import evidence_text
+    panel = evidence_text(card, PLAIN).plain
+    assert "queued  audit sample and overlap (a second reviewer sees it too)" in panel

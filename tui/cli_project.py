@@ -212,7 +212,8 @@ def register(sub: argparse._SubParsersAction) -> None:
 
     p = command(sub, "next", "List the next pairs a reviewer's queue would show.",
                  "Each pair with its probability and why it is queued: uncertain (near the "
-                 "threshold), audit (from the audit slice) or overlap (a second reviewer needed)."
+                 "threshold), audit (from the audit slice), overlap (a second reviewer needed), "
+                 "or audit, overlap (both)."
                  "\nPairs that other reviewers hold claims on are left out. Without --claim this "
                  "only looks: nothing is written and no one is registered. With --claim the "
                  "pairs are held for this reviewer for 15 minutes, or until decided or others "

@@ -16,14 +16,19 @@ AUDIT_EVERY = 5  # every fifth pair a reviewer is shown comes from the audit sli
 MIN_PER_STRATUM = 5
 
 
+AUDIT_AND_OVERLAP = "audit, overlap"
 UNCERTAIN_BAND = 0.35  # |p - threshold| below this is called "uncertain"
 
 
 def reason_for(probability: float, threshold: float, audit: bool, second_look: bool,
                split: bool = False) -> str:
-    """Why a pair is offered: named for what it is, "uncertain" only near the boundary."""
+    """Why a pair is offered: named for what it is, "uncertain" only near the boundary.
+
+    An audit pair that waits for a second reviewer is both, and is named so: the reviewer's
+    label counts twice over (the estimates and the agreement figures).
+    """
     if audit:
-        return "audit"
+        return AUDIT_AND_OVERLAP if second_look else "audit"
     if second_look:
         return "overlap"
     if split:  # machine raters disagree on it (the disagreement-first order)

@@ -21,6 +21,7 @@ REASONS = {
     "likely non-match": "likely non-match (to confirm)",
     "audit": "audit sample (keeps estimates honest)",
     "overlap": "overlap (a second reviewer sees it too)",
+    "audit, overlap": "audit sample and overlap (a second reviewer sees it too)",
     "disagreement": "machine raters disagree (shown first)",
     "candidate": "opened from another record's candidates",
 }
