@@ -4,19 +4,22 @@ labels, and blocking reach for free text.
 Targets: DBLP-ACM link with no labels (no --one-to-one) F1 ≥ 0.90; after 200 queue-order
 labels ≥ 0.98; DBLP-ACM titles as one table: reach ≥ 0.995 in ≤ 50,000 candidates and F1 ≥ 0.80
 after 300 labels; the sample F1 ≥ 0.98 after 200 labels. Answers come from the truth files.
-Two invented scenarios nothing was tuned on (bench/invented_tables.py: products, suppliers)
-are printed beside them, with no target.
-Rerun: python bench/model_quality.py [link titles sample products suppliers]
+Invented scenarios nothing was tuned on (bench/invented_tables.py: products, suppliers;
+bench/invented_people.py: people to deduplicate, two registers of people to link) are printed
+beside them, with no target.
+Rerun: python bench/model_quality.py [link titles sample products suppliers people registers]
 """
 
 from __future__ import annotations
 
 import sys
 import tempfile
+from collections.abc import Callable
 from pathlib import Path
 
 import pandas as pd
 from _common import REPO, data_dir
+from invented_people import people, registers
 from invented_tables import products, suppliers
 
 from docket.core import NewProject, Project
@@ -69,9 +72,14 @@ def _run(name: str, spec: NewProject, truth: set, n: int) -> None:
         _line(f"{name}, {n} labels", how(project, truth))
 
 
+# each makes its tables (one: deduplicate, two: link) and the true pairs in a folder
+INVENTED: dict[str, Callable[[Path], tuple]] = {
+    "products": products, "suppliers": suppliers, "people": people, "registers": registers}
+
+
 def main() -> None:
     folder = data_dir()
-    which = set(sys.argv[1:]) or {"link", "titles", "sample", "products", "suppliers"}
+    which = set(sys.argv[1:]) or {"link", "titles", "sample", *INVENTED}
     with tempfile.TemporaryDirectory() as tmp_name:
         tmp = Path(tmp_name)
         if "link" in which:
@@ -85,14 +93,12 @@ def main() -> None:
         if "sample" in which:
             _run("sample", sample_spec(tmp / "sample.docket"),
                  load_truth(REPO / "sample" / "truth.csv", "left_id", "right_id"), 200)
-        if "products" in which:
-            csv, ptruth = products(tmp)
-            _run("products (invented)", NewProject(path=tmp / "products.docket", left=csv,
-                                                   id_column="id"), ptruth, 200)
-        if "suppliers" in which:
-            left, right, rtruth = suppliers(tmp)
-            _run("suppliers (invented)", NewProject(path=tmp / "suppliers.docket", left=left,
-                                                    right=right, id_column="id"), rtruth, 200)
+        for key, make in INVENTED.items():
+            if key in which:
+                *tables, truth = make(tmp)
+                _run(f"{key} (invented)", NewProject(
+                    path=tmp / f"{key}.docket", left=tables[0],
+                    right=tables[1] if len(tables) > 1 else None, id_column="id"), truth, 200)
 
 
 if __name__ == "__main__":
