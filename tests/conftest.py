@@ -83,6 +83,24 @@ def dblp_project_file(dblp_acm: Path, tmp_path_factory: pytest.TempPathFactory) 
 
 
 @pytest.fixture(scope="session")
+def dblp11_project_file(dblp_acm: Path, tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """DBLP-ACM built once with --one-to-one; tests open it read-only or copy it."""
+    path = tmp_path_factory.mktemp("dblp11") / "dblp11.docket"
+    Project.create(NewProject(path=path, left=dblp_acm / "dblp.csv", right=dblp_acm / "acm.csv",
+                              id_column="id", one_to_one=True))
+    return path
+
+
+@pytest.fixture
+def dblp_project(dblp_project_file: Path, tmp_path: Path) -> Path:
+    """A private copy of the DBLP-ACM project that a test may change (a build takes seconds;
+    a copy, milliseconds)."""
+    copy = tmp_path / "dblp.docket"
+    shutil.copy(dblp_project_file, copy)
+    return copy
+
+
+@pytest.fixture(scope="session")
 def dask_scheduler() -> Iterator[str]:
     """One 2-worker local Dask cluster for the session, reached as an existing scheduler."""
     import logging

@@ -45,10 +45,11 @@ def label_file(path: Path, frame: pd.DataFrame, labels: dict[str, np.ndarray]) -
 
 
 def dblp_arrays(source: Path, path: Path) -> tuple[np.ndarray, np.ndarray]:
-    """Build the DBLP-ACM project at ``path``: (model probability, is a true match) per
-    candidate pair, in pair-id order."""
-    Project.create(NewProject(path=path, left=source / "dblp.csv", right=source / "acm.csv",
-                              id_column="id"))
+    """(model probability, is a true match) per candidate pair of the DBLP-ACM project at
+    ``path``, in pair-id order; built there with the defaults unless it exists."""
+    if not path.exists():
+        Project.create(NewProject(path=path, left=source / "dblp.csv",
+                                  right=source / "acm.csv", id_column="id"))
     truth = load_truth(source / "matches.csv", "dblp_id", "acm_id")
     with Project.open(path, readonly=True) as p:
         frame = candidates(p)

@@ -10,7 +10,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from docket.core import DocketError, NewProject, Project
+from docket.core import DocketError, Project
 from docket.core.exports.exporting import scores_frame
 from docket.core.ordering import queue
 from docket.core.quality.estimates import threshold_table
@@ -78,19 +78,13 @@ def dblp_truth(dblp_acm: Path) -> set[tuple[str, str]]:
     return load_truth(dblp_acm / "matches.csv", "dblp_id", "acm_id")
 
 
-def build_dblp(folder: Path, path: Path, one_to_one: bool = False) -> Project:
-    Project.create(NewProject(path=path, left=folder / "dblp.csv", right=folder / "acm.csv",
-                              id_column="id", one_to_one=one_to_one))
-    return Project.open(path)
-
-
 @pytest.mark.outside
-def test_audit_intervals_cover_the_truth_on_dblp_acm(dblp_acm: Path, dblp_truth, tmp_path,
+def test_audit_intervals_cover_the_truth_on_dblp_acm(dblp_project: Path, dblp_truth,
                                                      capsys) -> None:
     # Outside check: DBLP-ACM benchmark, Köpcke, Thor & Rahm PVLDB 2010
     # (../shared/data/dblp-acm); truth is its matches.csv. Nominal 95 %, asked: >= 90 %.
     # Measured with seeds 1..50: precision 46/50, recall 50/50 (300 repetitions: 94.7 %, 100 %).
-    with build_dblp(dblp_acm, tmp_path / "dblp.docket") as project:
+    with Project.open(dblp_project) as project:
         cov_p, cov_r = coverage(project, dblp_truth)
         with capsys.disabled():
             print(f"\nDBLP-ACM coverage of 95% intervals at threshold {project.threshold}: "
@@ -109,14 +103,14 @@ def test_audit_intervals_cover_the_truth_on_dblp_acm(dblp_acm: Path, dblp_truth,
 
 
 @pytest.mark.outside
-def test_audit_intervals_cover_the_truth_one_to_one(dblp_acm: Path, dblp_truth, tmp_path,
+def test_audit_intervals_cover_the_truth_one_to_one(dblp11_project_file: Path, dblp_truth,
                                                     capsys) -> None:
     # Outside check: DBLP-ACM benchmark, Köpcke, Thor & Rahm PVLDB 2010
     # (../shared/data/dblp-acm). Errors are rare here (about 1 % false positives and missed
     # matches), so most strata show none in a slice; the zero-count allowance in
     # core.quality.estimates keeps them adding variance. Measured with seeds 1..50: precision 50/50,
     # recall 50/50 (300 repetitions: 98.7 %, 99.7 %); without the allowance 40/50 and 42/50.
-    with build_dblp(dblp_acm, tmp_path / "dblp11.docket", one_to_one=True) as project:
+    with Project.open(dblp11_project_file, readonly=True) as project:
         cov_p, cov_r = coverage(project, dblp_truth)
     with capsys.disabled():
         print(f"\nDBLP-ACM one-to-one coverage of 95% intervals: precision {cov_p:.0%}, "

@@ -78,9 +78,9 @@ def test_evaluate_matchers_command_human_and_json(judged_sample: Project, capsys
 
 # -- outside check: DBLP-ACM ------------------------------------------------------------------
 @pytest.fixture(scope="module")
-def dblp(dblp_acm: Path, tmp_path_factory: pytest.TempPathFactory) -> tuple:
+def dblp(dblp_acm: Path, dblp_project_file: Path) -> tuple:
     """(model probability, is a true match) per DBLP-ACM candidate pair, in pair-id order."""
-    return dblp_arrays(dblp_acm, tmp_path_factory.mktemp("dblp") / "dblp.docket")
+    return dblp_arrays(dblp_acm, dblp_project_file)
 
 
 def _true(pred: np.ndarray, y: np.ndarray) -> dict[str, float]:

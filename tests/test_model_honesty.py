@@ -12,7 +12,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from docket.core import NewProject, Project
+from docket.core import Project
 from docket.core.matching.decision_rule import one_to_one_hint
 from docket.core.matching.explain import LogOddsTable, factor_text, odds_text, probability_of
 from docket.core.matching.model import monotone_m
@@ -41,12 +41,9 @@ def test_levels_in_order_on_the_sample(sample_project_file: Path) -> None:
 
 
 @pytest.mark.outside
-def test_levels_in_order_on_dblp_acm(dblp_acm: Path, tmp_path: Path) -> None:
+def test_levels_in_order_on_dblp_acm(dblp_project_file: Path) -> None:
     # DBLP-ACM (Köpcke, Thor & Rahm, PVLDB 3(1), 2010): title, authors, venue, year.
-    path = tmp_path / "d.docket"
-    Project.create(NewProject(path=path, left=dblp_acm / "dblp.csv",
-                              right=dblp_acm / "acm.csv", id_column="id"))
-    with Project.open(path) as project:
+    with Project.open(dblp_project_file, readonly=True) as project:
         assert_ordered(project)
 
 

@@ -9,7 +9,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from docket.core import NewProject, Project
+from docket.core import Project
 from docket.core.matching.logistic import fit_logistic, ordered_bounds
 from tests.conftest import SAMPLE
 from tests.quality import answer_in_queue_order, load_truth
@@ -39,13 +39,10 @@ def test_ranker_levels_in_order_after_queue_labels_on_the_sample(sample_project:
 
 @pytest.mark.outside
 def test_ranker_levels_in_order_after_queue_labels_on_dblp_acm(dblp_acm: Path,
-                                                               tmp_path: Path) -> None:
+                                                               dblp_project: Path) -> None:
     # DBLP-ACM (Köpcke, Thor & Rahm, PVLDB 3(1), 2010), truth from its matches.csv
-    path = tmp_path / "d.docket"
-    Project.create(NewProject(path=path, left=dblp_acm / "dblp.csv",
-                              right=dblp_acm / "acm.csv", id_column="id"))
     truth = load_truth(dblp_acm / "matches.csv", "dblp_id", "acm_id")
-    with Project.open(path) as project:
+    with Project.open(dblp_project) as project:
         answer_in_queue_order(project, truth, 200, refit_every=100)
         assert_ranker_ordered(project)
 
