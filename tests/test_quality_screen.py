@@ -111,3 +111,27 @@ def test_narrow_intervals_leave_out_what_only_takes_room() -> None:
     assert interval({"value": 1.0, "low": 0.995, "high": 1.0}, True).plain == "1.00 [.99–1]"
     assert interval({"value": 0.82, "low": 0.472, "high": 0.9991}, True).plain == "0.82 [.47–1]"
     assert interval({"value": 0.97, "low": 0.82, "high": 1.0}).plain == "0.970 [0.820, 1.000]"
+
+
+def test_blocking_reach_reads_as_docket_evaluate_says_it(team) -> None:
+    # The screen headed the reduction ratio 'Blocking reach:', which says nothing of the matches
+    # blocking left out; it now gives the reach as evaluate does, or says it is unmeasured.
+    from docket.tui.evaluation_text import evaluation_lines
+    from docket.tui.screens.quality_table import notes_text
+    from tests.test_missed import not_a_candidate
+
+    path, _ = team
+    for measured in (False, True):
+        with Project.open(path) as project:
+            if measured:
+                project.record_missed(*not_a_candidate(project), "maya")
+            report = project.evaluate()
+        cli = next(x for x in evaluation_lines(report, str(path))
+                   if x.startswith("blocking reach"))
+        screen = " ".join(notes_text(report).plain.split())
+        assert f"Blocking reach{cli[len('blocking reach'):]}." in screen
+        assert ("Blocking: " in screen and "(reduction ratio " in screen
+                and "Blocking reach: " + f"{report.scope['blocking']['candidate_pairs']:,}"
+                not in screen)
+        assert ("is not measured" in screen) != measured
+        assert ("1 recorded with docket missed" in screen) == measured

@@ -79,9 +79,7 @@ def evaluation_lines(report: Evaluation, name: str) -> list[str]:
     b = sc["blocking"]
     out += ["", f"{sc['note']}."]
     if b.get("candidate_pairs") is not None:
-        out.append(f"blocking: {many(b['candidate_pairs'], 'candidate pair')} of "
-                   f"{b['possible_pairs']:,} possible (reduction ratio "
-                   f"{b['reduction_ratio']:.4f})")
+        out.append(f"blocking: {blocking_size(b)}")
     for rule, k in b.get("pairs_per_rule", {}).items():
         out.append(f"  {padded(rule, 40)} {k:>12,} {noun(k, 'pair')}")
     if b.get("candidate_pairs") is not None:
@@ -91,6 +89,12 @@ def evaluation_lines(report: Evaluation, name: str) -> list[str]:
     if report.machine_rater is not None:
         out += ["", *_machine_lines(report)]
     return out
+
+
+def blocking_size(b: dict) -> str:
+    """How far the blocking rules narrowed the pairs (which is not their reach)."""
+    return (f"{many(b['candidate_pairs'], 'candidate pair')} of {b['possible_pairs']:,} "
+            f"possible (reduction ratio {b['reduction_ratio']:.4f})")
 
 
 def blocking_reach(m: dict | None, project: str) -> str:

@@ -16,6 +16,7 @@ from docket.core import DEFAULT_THRESHOLDS
 from docket.core.results import Evaluation
 
 from ..diff import PLAIN, Palette
+from ..evaluation_text import blocking_reach, blocking_size
 from ..figures import among_pairs, bounds, many
 
 NARROW_BELOW = 110  # screen widths below this get the narrow threshold table
@@ -108,10 +109,9 @@ def notes_text(report: Evaluation, palette: Palette = PLAIN) -> Text:
     scope = report.scope
     text.append(scope["note"].capitalize() + ".", p.heading)
     b = scope["blocking"]
-    if b.get("candidate_pairs") is not None:
-        text.append(f" Blocking reach: {many(b['candidate_pairs'], 'candidate pair')} of "
-                    f"{b['possible_pairs']:,} possible (reduction ratio "
-                    f"{b['reduction_ratio']:.4f}).", p.muted)
+    if b.get("candidate_pairs") is not None:  # in the words of docket evaluate
+        reach = blocking_reach(b.get("missed"), report.project)
+        text.append(f" Blocking: {blocking_size(b)}. {reach[0].upper()}{reach[1:]}.", p.muted)
     for note in (n for n in at["note"].split("; ") if n):
         text.append(f"\nat {at['threshold']:g}: {note}", p.muted)
     return text
