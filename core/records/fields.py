@@ -18,6 +18,7 @@ _CODE_HINT = re.compile(r"(post|zip|phone|tel|mobile|fax|e-?mail|code|iban|ssn|n
                         re.I)
 _NAME_HINT = re.compile(r"(name|owner|surname|forename|given|first|last|pet)", re.I)
 _DATE_HINT = re.compile(r"(date|dob|born|birth)", re.I)
+_GROUPING = re.compile(r"[\s\-./]+")  # how an identifier's digits are grouped: 'QX 12 34 56 C'
 
 
 def detect_kind(column: str, values: pd.Series) -> str:
@@ -39,7 +40,8 @@ def detect_kind(column: str, values: pd.Series) -> str:
     leading_zero = texts.str.match(r"^0\d").mean() > 0.05
     if share(normalise.number) > 0.95 and not leading_zero and not _CODE_HINT.search(column):
         return "number"
-    if _CODE_HINT.search(column) or (texts.str.contains("@").mean() > 0.5):
+    if _CODE_HINT.search(column) or (texts.str.contains("@").mean() > 0.5) or \
+            _identifiers(texts) > 0.9:
         return "code"
     if mean_tokens >= 5 or mean_len >= 40:
         return "longtext"
@@ -52,6 +54,17 @@ def detect_kind(column: str, values: pd.Series) -> str:
     if texts.str.contains(" ").mean() < 0.05 and texts.str.contains(r"\d").mean() > 0.8:
         return "code"
     return "text"
+
+
+def _identifiers(texts: pd.Series) -> float:
+    """Share of values that are one run of letters and digits, mostly digits (at least four),
+    once the spaces, hyphens, dots and slashes that group them go: a national number or phone
+    written 'QX 12 34 56 C' in one register and 'QX123456C' in another. As text the two forms
+    differ in five characters; as a code they are one value."""
+    bare = texts.str.replace(_GROUPING, "", regex=True)
+    digits = bare.str.count(r"\d")
+    return float((bare.str.fullmatch(r"[A-Za-z0-9]{5,}") & (digits >= 4) &
+                  (2 * digits >= bare.str.len())).mean())
 
 
 def parse_map(items: list[str] | None) -> dict[str, str]:

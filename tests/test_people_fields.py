@@ -1,0 +1,46 @@
+"""Registers of people: the fields they hold are read as the kinds that compare them well."""
+
+from __future__ import annotations
+
+import random
+
+import pandas as pd
+
+from docket.core.records import normalise
+from docket.core.records.fields import detect_kind
+
+
+def _ids(rng: random.Random, n: int) -> list[str]:
+    return [f"Q{rng.choice('ABCX')}{rng.randint(0, 999999):06d}{rng.choice('ABCD')}"
+            for _ in range(n)]
+
+
+def test_an_identifier_written_with_or_without_spaces_is_a_code() -> None:
+    # An invented national number, plain in one register and grouped in pairs in the other. It
+    # was read as text (or, grouped alone, as long text: five words), where 'QX 12 34 56 C'
+    # and 'QX123456C' are 'different'; as a code they are one value.
+    rng = random.Random(3)
+    plain = _ids(rng, 300)
+    spaced = [f"{v[:2]} {v[2:4]} {v[4:6]} {v[6:8]} {v[8]}" for v in plain]
+    assert detect_kind("national_id", pd.Series(plain[:150] + spaced[150:])) == "code"
+    assert detect_kind("national_id", pd.Series(spaced)) == "code"
+    assert detect_kind("ref", pd.Series([v.replace(" ", "-") for v in spaced])) == "code"
+    assert normalise.code(spaced[0]) == normalise.code(plain[0])
+    # a phone in a column whose name says nothing of phones
+    assert detect_kind("contact", pd.Series([f"0{rng.randint(1000, 7999)} "
+                                             f"{rng.randint(100000, 999999)}"
+                                             for _ in range(300)])) == "code"
+
+
+def test_addresses_names_and_postcodes_stay_what_they_were() -> None:
+    rng = random.Random(4)
+    streets = pd.Series([f"{rng.randint(1, 240)} {rng.choice(['Brolen', 'Kethmar', 'Sel'])} "
+                         f"{rng.choice(['Lane', 'Road', 'Row'])}" for _ in range(300)])
+    assert detect_kind("address", streets) == "text"
+    # letters and digits, but fewer digits than letters: an area code, not an identifier
+    areas = pd.Series([f"{rng.choice(['WL', 'KT', 'BA'])}{rng.randint(1, 29)} "
+                       f"{rng.randint(1, 9)}{rng.choice(['ZY', 'AB', 'EE'])}"
+                       for _ in range(300)])
+    assert detect_kind("area", areas) == "text"
+    assert detect_kind("given_name", pd.Series(["Torvena", "Brisel", "K.", "Polan"] * 80)) == \
+        "name"
