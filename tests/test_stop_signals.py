@@ -123,3 +123,61 @@ def test_pool_workers_end_on_the_pools_sigterm(monkeypatch: pytest.MonkeyPatch) 
     finally:
         for number, handler in handlers.items():
             signal.signal(number, handler)
+
+
+def test_a_sigterm_after_the_result_is_printed_leaves_the_commands_own_code(
+        sample_project: Path, capsys: pytest.CaptureFixture[str],
+        monkeypatch: pytest.MonkeyPatch) -> None:
+    # the work was complete, yet the command ended 'interrupted' (or, a moment later, killed
+    # with 143 and no line): the result stands, and so does its code
+    from docket.tui import cli
+    real = cli.work_done
+
+    def done(code: int) -> None:
+        real(code)
+        signal.raise_signal(signal.SIGTERM)
+
+    monkeypatch.setattr(cli, "work_done", done)
+    assert main(["status", str(sample_project)]) == 0
+    out, err = capsys.readouterr()
+    assert "pairs" in out and err == ""
+    assert main(["status", str(sample_project / "nope.docket")]) == 2  # an error's code too
+    assert capsys.readouterr().err.startswith("docket: ")
+    assert signal.getsignal(signal.SIGTERM) is signal.SIG_DFL  # given back after the command
+
+
+_INSTALLED = """
+import atexit, os, signal, sys
+from docket.tui import cli
+real = cli.main
+def main(*args, **kw):
+    # runs at exit before docket's own last hook, as a library's clean-up would
+    atexit.register(lambda: os.kill(os.getpid(), signal.SIGTERM))
+    return real(*args, **kw)
+class Late:  # dropped as the interpreter clears this module, after every exit hook
+    def __del__(self, kill=os.kill, pid=os.getpid(), term=signal.SIGTERM):
+        kill(pid, term)
+if sys.argv[1] == "teardown":
+    late = Late()
+else:
+    cli.main = main
+sys.argv = ["docket", *sys.argv[2:]]
+cli.run()
+"""
+
+
+@pytest.mark.parametrize("when", ["exit", "teardown"])
+def test_the_installed_command_ends_with_its_code_when_a_sigterm_comes_at_exit(
+        sample_project_file: Path, tmp_path: Path, when: str) -> None:
+    # at exit, or in the interpreter's own clean-up (where Python has set its handlers back to
+    # the default), a signal ended a finished command as killed (-15: the shell's 143), with
+    # nothing said
+    import subprocess
+    import sys
+    for args, code in ((["status", str(sample_project_file)], 0),
+                       (["status", str(tmp_path / "nope.docket")], 2)):
+        done = subprocess.run([sys.executable, "-c", _INSTALLED, when, *args],
+                              capture_output=True, text=True, timeout=120)
+        assert done.returncode == code, done.stderr
+        assert (code == 0) == ("pairs" in done.stdout)
+        assert "interrupted" not in done.stderr and "Traceback" not in done.stderr

@@ -8,6 +8,7 @@ prints what it returns.
 from __future__ import annotations
 
 import argparse
+import atexit
 import contextlib
 import os
 import sqlite3
@@ -27,7 +28,7 @@ from . import (
 )
 from .cli_base import Formatter, version, warn_line
 from .cli_checks import Parser, parse
-from .stopping import exit_code, received, stop_signals
+from .stopping import at_the_last, exit_code, received, stop_signals, work_done
 from .terminal import safe_streams, shown
 
 
@@ -45,7 +46,14 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
-def main(argv: list[str] | None = None) -> int:
+def run() -> None:
+    """The installed ``docket`` command: :func:`main`, then the process ends with its code (a
+    stop signal during the interpreter's exit, after the work, ends it with that code too)."""
+    atexit.register(at_the_last)  # registered first, so that it runs after every other
+    sys.exit(main(to_the_end=True))
+
+
+def main(argv: list[str] | None = None, to_the_end: bool = False) -> int:
     with safe_streams(), warnings.catch_warnings():  # every line printed reaches it inert
         warnings.simplefilter("default")  # each distinct message once
         warnings.filterwarnings("ignore", message="DataFrame is highly fragmented")
@@ -57,8 +65,10 @@ def main(argv: list[str] | None = None) -> int:
         for category in (DeprecationWarning, PendingDeprecationWarning, ResourceWarning):
             warnings.filterwarnings("ignore", category=category)
         warnings.showwarning = warn_line  # one line each, on standard error
-        with stop_signals():
-            return _main(argv)
+        with stop_signals(to_the_end):
+            code = _main(argv)
+            work_done(code)  # what went wrong, too, was said: the code stands
+            return code
 
 
 def _main(argv: list[str] | None) -> int:
@@ -71,6 +81,7 @@ def _main(argv: list[str] | None) -> int:
     try:
         code = int(args.func(args) or 0)
         sys.stdout.flush()  # a full disk met by the last lines is reported, not lost at exit
+        work_done(code)  # a stop signal from now on changes nothing: the result stands
         return code
     except DocketError as exc:
         with contextlib.suppress(Exception):  # standard error itself may be what failed
@@ -93,4 +104,4 @@ def _main(argv: list[str] | None) -> int:
 
 
 if __name__ == "__main__":  # pragma: no cover
-    sys.exit(main())
+    run()

@@ -6,14 +6,22 @@ or an export left its hidden temporary beside the target, a screen left the term
 the mouse with the cursor hidden, and nothing was said. Raised as ``KeyboardInterrupt``, the
 signal runs the roll-backs and clean-ups Ctrl-C runs. A screen is asked to quit instead, as
 ``q`` does (its decisions are saved as they are made), so the terminal is given back.
+
+Once the command's work is complete and its result printed (:func:`work_done`), a stop signal
+no longer interrupts anything: the command ends with its own exit code, as it would have a
+moment later. Left to the default, a signal in those last moments (the interpreter's exit
+takes a tenth of a second) ended a finished command with 143 and no line, which read as work
+lost when none was.
 """
 
 from __future__ import annotations
 
 import asyncio
+import os
 import signal
+import sys
 from collections.abc import Callable, Iterator
-from contextlib import contextmanager
+from contextlib import contextmanager, suppress
 from types import FrameType
 
 from docket.core.errors import Interrupted
@@ -23,11 +31,18 @@ INTERRUPT_EXIT = 130  # 128 + SIGINT, as a shell reports Ctrl-C
 
 _received: list[int] = []
 _quit_screen: list[Callable[[], None]] = []
+_done: list[int] = []  # the command's own exit code, once its work is complete
+_late: list[int] = []  # the signals that end a finished command with its own code
 
 
 @contextmanager
-def stop_signals() -> Iterator[None]:
-    """While the command runs, a stop signal raises ``KeyboardInterrupt`` (or quits a screen)."""
+def stop_signals(to_the_end: bool = False) -> Iterator[None]:
+    """While the command runs, a stop signal raises ``KeyboardInterrupt`` (or quits a screen).
+
+    With ``to_the_end`` (the installed command, whose process ends after it), a command whose
+    work is done keeps a handler through the interpreter's exit that ends the process with the
+    command's own code; otherwise the previous handlers are given back.
+    """
     previous = {}
     for name in STOPS:
         number = getattr(signal, name, None)
@@ -38,12 +53,40 @@ def stop_signals() -> Iterator[None]:
     try:
         yield
     finally:
+        late = _done[0] if _done and to_the_end else None
         for number, handler in previous.items():
-            signal.signal(number, handler)
+            signal.signal(number, handler if late is None else _finished(late))
+        _late[:] = list(previous) if late is not None else []
         _received.clear()
+        _done.clear()
+
+
+def work_done(code: int) -> None:
+    """The command has done its work and printed its result: it ends with ``code`` whatever
+    stop signal comes now."""
+    _done[:] = [code]
+
+
+def _finished(code: int) -> Callable[[int, FrameType | None], None]:
+    def end(_number: int, _frame: FrameType | None) -> None:
+        for stream in (sys.stdout, sys.stderr):  # what the command printed is already out
+            with suppress(OSError, ValueError):  # a closed pipe or stream: nothing to give
+                stream.flush()
+        os._exit(code)  # the exit's own clean-up is what the signal asks to skip
+    return end
+
+
+def at_the_last() -> None:
+    """Run last at exit: the interpreter then sets a Python handler back to the default (the
+    signal would end the process as killed), but leaves an ignored signal ignored, for the
+    tenth of a second its own clean-up takes, where nothing is left that could hang."""
+    for number in _late:
+        signal.signal(number, signal.SIG_IGN)
 
 
 def _stop(number: int, _frame: FrameType | None) -> None:
+    if _done:  # the work is complete: the command returns its own code a moment later
+        return
     first = not _received
     _received.append(number)
     loop = _screen_loop()
