@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import datetime as dt
 import random
 
 import pandas as pd
@@ -44,3 +45,22 @@ def test_addresses_names_and_postcodes_stay_what_they_were() -> None:
     assert detect_kind("area", areas) == "text"
     assert detect_kind("given_name", pd.Series(["Torvena", "Brisel", "K.", "Polan"] * 80)) == \
         "name"
+
+
+def test_a_two_digit_year_keeps_the_day_first_and_lies_in_the_past() -> None:
+    # '07/03/84' went to the general parser, which reads the US order: 3 July, where
+    # '07/03/1984' in the same column is 7 March; and it put '12/05/40' in 2040, so a birth
+    # written short never met the other register's '1940-05-12'.
+    assert normalise.date("07/03/84") == normalise.date("07/03/1984") == \
+        normalise.date("1984-03-07")
+    assert normalise.date("7.3.84") == normalise.date("07/03/84")
+    assert normalise.date("03/13/84") == normalise.date("13/03/84")  # 13 cannot be a month
+    assert normalise.date("31/02/84") is None
+    assert normalise.date("12/05/40") == normalise.date("1940-05-12")
+    # the century is the latest not after this year, in any year the test runs
+    this = dt.date.today().year
+    for year in (this, this - 99):
+        assert normalise.date(f"01/01/{year % 100:02d}") == normalise.date(f"{year}-01-01")
+    short = pd.Series([f"{d:02d}/{m:02d}/{y:02d}" for d, m, y in
+                       zip(range(1, 29), [1, 5, 9, 12] * 7, range(40, 96, 2), strict=True)] * 4)
+    assert detect_kind("dob", short) == "date"

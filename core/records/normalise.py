@@ -23,7 +23,7 @@ _CODE_JOIN = re.compile(r"(?<=\d)[-./](?=\w)|(?<=\w)[-./](?=\d)", re.UNICODE)
 _SEPARATORS = re.compile(r"[\s\-./()_]+")
 _PHONE = re.compile(r"^\+?\d{7,}$")
 _ISO = re.compile(r"^(\d{4})-(\d{1,2})-(\d{1,2})")
-_DMY = re.compile(r"^(\d{1,2})[/.\-](\d{1,2})[/.\-](\d{4})$")
+_DMY = re.compile(r"^(\d{1,2})[/.\-](\d{1,2})[/.\-](\d{4}|\d{2})$")
 
 
 # The combining diacritical marks block but U+034F (a joiner of combining class 0): the marks
@@ -104,7 +104,10 @@ def date(value: str) -> float | None:
     else:
         m = _DMY.match(text)
         if m:
-            day, month, year = int(m[1]), int(m[2]), int(m[3])
+            # two digits of a year too: '07/03/84' went to the parser below, which reads the US
+            # order, so it was 3 July where '07/03/1984' in the same column is 7 March
+            day, month = int(m[1]), int(m[2])
+            year = int(m[3]) if len(m[3]) == 4 else _full_year(int(m[3]))
             # day/month/year unless the month cannot be one and the day can: then the US order
             # (12/31/1990), which is unambiguous there
             parts = (year, day, month) if month > 12 >= day else (year, month, day)
@@ -122,6 +125,16 @@ def date(value: str) -> float | None:
         return float(dt.date(*parts).toordinal() - 719163)
     except ValueError:
         return None
+
+
+def _full_year(two_digits: int) -> int:
+    """A two-digit year as the latest such year not after this one: '40' is 1940. The parser
+    pandas uses puts it within 50 years of this year, so a birth in 1940 written '12/05/40'
+    was 2040 beside the other register's '1940-05-12'. A date written short in records of
+    people is nearly always past; a short year meant to lie ahead is read a century early."""
+    now = dt.date.today().year
+    year = two_digits + now // 100 * 100
+    return year - 100 if year > now else year
 
 
 NORMALISERS: dict[str, Callable[[str], object]] = {
