@@ -110,9 +110,17 @@ class FieldSpec:
     left_column: str
     right_column: str
     kind: str
+    # values as written ('N/A', 'XX1 1XX') compared as missing: placeholders, not agreement
+    missing: tuple[str, ...] = ()
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "missing", tuple(self.missing))  # a list from JSON
 
     def to_dict(self) -> dict[str, Any]:
-        return asdict(self)
+        d = asdict(self)
+        if not self.missing:  # as projects and model files without placeholders always were
+            del d["missing"]
+        return d
 
 
 @dataclass(frozen=True)

@@ -86,7 +86,8 @@ def new(args: argparse.Namespace) -> int:
         path=Path(args.project), left=Path(args.left),
         right=Path(args.right) if args.right else None, id_column=args.id_column,
         left_id=args.left_id, right_id=args.right_id, column_map=parse_map(args.map),
-        kinds=parse_kinds(args.field), pairs_file=Path(args.pairs) if args.pairs else None,
+        kinds=parse_kinds(args.field), keep_placeholders=args.keep_placeholders,
+        pairs_file=Path(args.pairs) if args.pairs else None,
         rules=args.block or [], audit=args.audit, overlap=args.overlap,
         overlap_reviewers=args.overlap_reviewers,
         one_to_one=args.one_to_one, max_pairs=args.max_pairs, threshold=args.threshold,
@@ -170,6 +171,9 @@ def register(sub: argparse._SubParsersAction) -> None:
                    help="compare left column L with right column R (repeatable)")
     p.add_argument("--field", action="append", metavar="COL:KIND",
                    help="set a field's kind instead of the detected one (repeatable)")
+    p.add_argument("--keep-placeholders", action="store_true",
+                   help="compare values such as 'N/A', 'unknown', '-' or 'XX1 1XX' as written "
+                        "(by default, one that fills 1%% or more of a column is missing)")
     p.add_argument("--pairs", metavar="PATH",
                    help="candidate pairs from elsewhere: left id, right id (CSV, Parquet, or "
                         "a folder of Parquet parts of any size, read in batches)")

@@ -23,6 +23,7 @@ from ..errors import DocketError
 from ..matching import scoring
 from ..matching.model_file import ScoringModel, score_pairs
 from ..pairs.pair_files import _text, id_batches, open_pairs, positions
+from ..records.fields import masked
 from ..records.sources import Table, load_table
 from ..storage.file_health import no_room
 from ..storage.project_file import ProjectFile
@@ -93,8 +94,9 @@ def make_job(model: ScoringModel, left: Table, right: Table | None, where: str) 
     _has_columns(model, left, "left")
     if right is not None:
         _has_columns(model, right, "right")
-    lnorm = scoring.normalised(model.fields, left.frame, "left")
-    rnorm = lnorm if right is None else scoring.normalised(model.fields, right.frame, "right")
+    lnorm = scoring.normalised(model.fields, masked(left.frame, model.fields, "left"), "left")
+    rnorm = lnorm if right is None else scoring.normalised(
+        model.fields, masked(right.frame, model.fields, "right"), "right")
     return ScoreJob(model, lnorm, rnorm, pd.Index(left.frame.index),
                     pd.Index(other.frame.index), (left.path.name, other.path.name), where)
 

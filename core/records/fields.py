@@ -10,7 +10,7 @@ import pandas as pd
 
 from ..errors import DocketError
 from ..types import KINDS, FieldSpec
-from . import normalise
+from . import normalise, placeholders
 from .unpaired import map_advice, unpaired_warning
 from .unreadable import unreadable_warning
 
@@ -100,8 +100,9 @@ def parse_kinds(items: list[str] | None) -> dict[str, str]:
 
 def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: str,
                    right_name: str | None, mapping: dict[str, str],
-                   kinds: dict[str, str]) -> list[FieldSpec]:
-    """The compared fields: common columns (after the map), each with a detected kind."""
+                   kinds: dict[str, str], keep_placeholders: bool = False) -> list[FieldSpec]:
+    """The compared fields: common columns (after the map), each with a detected kind and
+    the placeholders it reads as missing (none with ``keep_placeholders``)."""
     right_frame = left if right is None else right
     for lcol, rcol in mapping.items():
         if lcol == left.index.name or rcol == right_frame.index.name:
@@ -138,6 +139,7 @@ def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: st
                               f"columns are {', '.join(p[0] for p in pairs) or '(none)'}")
     fields = []
     left_out: dict[str, str] = {}  # column -> why it holds nothing to compare
+    said: list[str] = []  # the placeholder warnings, said once the fields stand
     for lcol, rcol in pairs:
         kind = kinds.get(lcol)
         if kind == "skip":
@@ -149,9 +151,28 @@ def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: st
                 # the model would still weigh and the screens show on every pair
                 left_out[lcol] = empty
                 continue
-            both = left[lcol] if right is None else pd.concat([left[lcol], right_frame[rcol]])
-            kind = detect_kind(lcol, both)
-        fields.append(FieldSpec(name=lcol, left_column=lcol, right_column=rcol, kind=kind))
+        sides = [(left, lcol, left_name)] if right is None else [
+            (left, lcol, left_name), (right, rcol, right_name or "the right table")]
+        found = [{} if keep_placeholders else placeholders.found(frame[col])
+                 for frame, col, _ in sides]
+        if kind is None:
+            # on the values without placeholders: 30 % 'unknown' hides a column of dates
+            every = sorted({v for shares in found for v in shares})
+            kind = detect_kind(lcol, pd.concat([placeholders.without(frame[col], every)
+                                                for frame, col, _ in sides]))
+        found = [placeholders.for_kind(shares, kind) for shares in found]
+        only = [table for (frame, col, table), shares in zip(sides, found, strict=True)
+                if shares and placeholders.only_placeholders(frame[col], kind)]
+        if only and lcol not in kinds:
+            left_out[lcol] = (f"column '{lcol}' holds only placeholders ("
+                              f"{', '.join(repr(v) for v in found[0] or found[-1])}) in "
+                              f"{' and in '.join(only)}")
+            continue
+        for (_, col, table), shares in zip(sides, found, strict=True):
+            if shares:
+                said.append(placeholders.warning(lcol, table, col, shares))
+        fields.append(FieldSpec(name=lcol, left_column=lcol, right_column=rcol, kind=kind,
+                                missing=tuple(sorted({v for shares in found for v in shares}))))
     if not fields:
         where = left_name if right is None else f"{left_name} and {right_name}"
         skipped = [c for c, k in kinds.items() if k == "skip"]
@@ -173,15 +194,31 @@ def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: st
         unpaired_warning(left, right, pairs, left_name, right_name or "the right table")
     if unpaired:
         warnings.warn(unpaired, stacklevel=2)
+    for said_line in said:
+        warnings.warn(said_line, stacklevel=2)
     for f in fields:
         sides = [(left, f.left_column, left_name)] if right is None else [
             (left, f.left_column, left_name),
             (right, f.right_column, right_name or "the right table")]
         for frame, col, table in sides:
-            line = unreadable_warning(f.name, f.kind, frame[col], table, col)
+            line = unreadable_warning(f.name, f.kind, placeholders.without(frame[col], f.missing),
+                                      table, col)
             if line:
                 warnings.warn(line, stacklevel=2)
     return fields
+
+
+def masked(frame: pd.DataFrame, fields: list[FieldSpec], side: str) -> pd.DataFrame:
+    """The records as compared: each field's placeholders missing (the frame itself when no
+    field has any; else a shallow copy with those columns replaced)."""
+    out = frame
+    for f in fields:
+        column = f.left_column if side == "left" else f.right_column
+        if f.missing and column in frame.columns:
+            if out is frame:
+                out = frame.copy(deep=False)
+            out[column] = placeholders.without(frame[column], f.missing)
+    return out
 
 
 def _has_values(values: pd.Series) -> bool:

@@ -50,6 +50,7 @@ class NewProject:
     right_id: str | None = None
     column_map: dict[str, str] = field(default_factory=dict)
     kinds: dict[str, str] = field(default_factory=dict)
+    keep_placeholders: bool = False  # compare 'N/A', 'XX1 1XX' as written, not as missing
     pairs_file: Path | None = None
     rules: list[str] = field(default_factory=list)
     audit: int | None = None
@@ -148,12 +149,15 @@ def build(spec: NewProject, progress: Progress | None = None,
     step("reading records", 2, 2)
     fields = fieldmod.resolve_fields(left.frame, None if right is None else right.frame,
                                      str(left.path), None if right is None else str(right.path),
-                                     spec.column_map, spec.kinds)
+                                     spec.column_map, spec.kinds, spec.keep_placeholders)
     if len(fields) > MAX_FIELDS:
         raise DocketError(f"{left.path}: {len(fields):,} fields to compare, more than the "
                           f"{MAX_FIELDS:,} a project can hold; skip some with --field COL:skip "
                           "or keep only the columns worth comparing")
-    engine = open_engine(spec, left, right, fields, step)
+    # compared with placeholders missing; the file keeps each value as written, for reviewers
+    seen_left = _as_compared(left, fields, "left")
+    seen_right = None if right is None else _as_compared(right, fields, "right")
+    engine = open_engine(spec, seen_left, seen_right, fields, step)
     try:
         if len(engine) == 0 and spec.pairs_file is not None:  # Dask: self pairs dropped there
             raise DocketError(f"{spec.pairs_file}: holds no pair of two different records; "
@@ -162,8 +166,9 @@ def build(spec: NewProject, progress: Progress | None = None,
             raise DocketError("no candidate pairs: the blocking rules matched no records; "
                               "try a looser rule with --block")
         step("comparing", 0, 1)
-        lnorm = scoring.normalised(fields, left.frame, "left")
-        rnorm = lnorm if right is None else scoring.normalised(fields, right.frame, "right")
+        lnorm = scoring.normalised(fields, seen_left.frame, "left")
+        rnorm = lnorm if seen_right is None else scoring.normalised(fields, seen_right.frame,
+                                                                    "right")
         step("measuring chance agreement")
         n_l, width = len(left), width_of(left, right)
         prepared = scoring.prepare(fields, lnorm, rnorm)
@@ -273,6 +278,10 @@ def open_engine(spec: NewProject, left: Table, right: Table | None, fields: list
         engine.report, engine.rule_names = report, rule_names
     engine.n_left, engine.n_right = len(left), width_of(left, right)
     return engine
+
+
+def _as_compared(table: Table, fields: list[FieldSpec], side: str) -> Table:
+    return Table(table.path, table.id_column, fieldmod.masked(table.frame, fields, side))
 
 
 def _named_records(left: Table, right: Table | None, li: np.ndarray, ri: np.ndarray
