@@ -117,7 +117,7 @@ def _read(path: Path, project: ProjectFile) -> _Other:
         raise DocketError(f"{path}: cannot be read as a project ({exc}); nothing was "
                           "merged") from None
     finally:
-        conn.close()
+        store.close_reader(conn, path)
     check_copy(path, rows, reviewers, grants)
     return _Other(path, rows, reviewers, pairs, grants)
 

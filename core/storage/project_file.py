@@ -39,11 +39,18 @@ class ProjectFile:
     def open(cls, path: str | Path, readonly: bool = False, check: bool = True) -> Self:
         """``check=False``: skip the damage check (a second connection to a checked file)."""
         path = Path(path)
-        return cls(path, store.open_file(path, readonly=readonly, check=check))
+        project = cls(path, store.open_file(path, readonly=readonly, check=check))
+        project._readonly = readonly
+        return project
+
+    _readonly = False
 
     def close(self) -> None:
         with self._lock:
-            self._conn.close()
+            if self._readonly:  # a look leaves no -wal or -shm beside the file
+                store.close_reader(self._conn, self.path)
+            else:
+                self._conn.close()
 
     def __enter__(self) -> Self:
         return self
