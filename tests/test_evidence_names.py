@@ -104,3 +104,13 @@ async def test_the_panel_names_the_fields_at_120x40_and_80x24(tmp_path, review_a
             await pilot.resize_terminal(*then)  # the panel narrows or widens: drawn again
             await settle(pilot)
             _names_whole(app)
+
+
+def test_the_model_is_named_on_its_line_at_80_columns() -> None:
+    # 'model   Fellegi–Sunter' is 22 cells: in the 20-cell panel 'model' stood alone on its
+    # line and the model's name under it
+    card = _card(PRODUCTS)
+    lines = evidence_text(card, PLAIN, width=NARROW_TEXT).plain.splitlines()
+    assert "model Fellegi–Sunter" in lines
+    lines = evidence_text(card, PLAIN, width=PANEL_TEXT).plain.splitlines()
+    assert "model   Fellegi–Sunter" in lines  # lined up with 'queued  ' where there is room

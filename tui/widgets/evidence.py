@@ -46,6 +46,15 @@ def _row(text: Text, name: str, value: Text, width: int = 13) -> None:
     text.append("\n")
 
 
+def _line(text: Text, label: str, value: str, p: Palette, width: int) -> None:
+    """``label`` and its value, the values lined up, closer only where that keeps the value
+    on the line: 'model   Fellegi–Sunter' (22 cells) in a 20-cell panel left 'model' alone on
+    its line, its value under it."""
+    one_space = 8 + cell_len(value) > width >= len(label) + 1 + cell_len(value)
+    text.append(f"{label} " if one_space else f"{label:<8}", p.muted)
+    text.append(value + "\n")
+
+
 def odds_steps(card: PairCard) -> list[tuple[str, float]]:
     """The fields that changed the odds most, strongest first, the rest folded into one step.
 
@@ -92,10 +101,8 @@ def evidence_text(card: PairCard, palette: Palette, you: YourSide = YourSide(),
         text.append(" " * (1 + keep - shown.cell_len))
         text.append(factor + "\n", p.positive if part > 0 else
                     p.negative if part < 0 else p.muted)
-    text.append("model   ", p.muted)
-    text.append(SHORT_MODEL.get(card.model, card.model) + "\n")
-    text.append("queued  ", p.muted)
-    text.append(REASONS.get(card.reason, card.reason) + "\n")
+    _line(text, "model", SHORT_MODEL.get(card.model, card.model), p, width)
+    _line(text, "queued", REASONS.get(card.reason, card.reason), p, width)
     text.append("other candidates\n", p.muted)
     first, second = card.sides
     text.append(f"  {first} {card.left_candidates:,} · {second} {card.right_candidates:,}\n")
