@@ -4,6 +4,9 @@ candidates; deciding a pair opened aside returns to the queue."""
 
 from __future__ import annotations
 
+from rich.cells import cell_len
+from textual.widgets import OptionList
+
 from docket.core import Project
 from docket.tui.screens import PairPicker
 from tests.fixtures_review import (
@@ -111,7 +114,7 @@ async def test_a_key_with_nothing_to_do_shows_its_toast_once(review_sample, revi
 async def test_the_candidates_list_gives_values_the_room_the_box_has(review_sample, review_app):
     # Values were cut at 18 cells at any width: product titles all read 'Ashgrove silent f…'
     # on a 120-column terminal, 40 cells of each line left empty.
-    for size, room in (((80, 24), 18), ((120, 40), 22)):
+    for size, room, lines in (((80, 24), 4, 2), ((120, 40), 22, 1)):
         app = review_app(review_sample)
         async with app.run_test(size=size) as pilot:
             await settle(pilot)
@@ -119,3 +122,10 @@ async def test_the_candidates_list_gives_values_the_room_the_box_has(review_samp
             assert isinstance(app.screen, PairPicker)
             # 50 cells of pair id, record ids and probability; the box is 108 wide at 120, 94 inside
             assert app.screen._value_cells(50) == room
+            # At 80 columns the values wrapped mid-line, the second under the pair id: there
+            # they take a line of their own, under the ids
+            results = app.screen.query_one(OptionList)
+            prompts = [o.prompt for o in results._options if not o.disabled]
+            assert prompts and all(len(p.plain.splitlines()) == lines for p in prompts)
+            box = results.scrollable_content_region.width
+            assert all(cell_len(line) <= box for p in prompts for line in p.plain.splitlines())

@@ -20,7 +20,8 @@ from ..figures import many, probability_text
 from ..masking import Mask, masked
 
 LIMIT = 50
-VALUE_CELLS = 18  # the least room for each of the two values on a line
+VALUE_CELLS = 18  # the least room for each of the two values beside the ids; with less,
+INDENT = 9  # they take a line of their own, under the ids
 BOX_MAX, BOX_SHARE, BOX_INNER = 110, 0.9, 14  # review.tcss #picker-box; borders, padding,
 # the list's own border and scroll bar, and a few cells spare (a line that overflows wraps)
 
@@ -98,7 +99,12 @@ class PairPicker(ModalScreen[int | None]):
         if card.fields:
             first = card.fields[0]
             hide = bool(self.mask) and self.mask.applies(first.field)
-            cells = self._value_cells(text.cell_len + 3 + (22 if mine is not None else 0))
+            label = 22 if mine is not None else 0
+            cells = self._value_cells(text.cell_len + 3 + label)
+            if cells < VALUE_CELLS:  # beside the ids they would wrap mid-line at 80 columns:
+                text.rstrip()        # a line of their own, under the ids
+                text.append("\n" + " " * INDENT)
+                cells = max(VALUE_CELLS // 3, self._value_cells(INDENT + 3 + label))
             for value, end in ((first.left, " / "), (first.right, "")):
                 shown = value if value is None or not hide else masked(value)
                 text.append_text(literal.one_line(shown, cells))
@@ -108,11 +114,11 @@ class PairPicker(ModalScreen[int | None]):
         return text
 
     def _value_cells(self, used: int) -> int:
-        """Room for each value: what the box leaves beside the rest of the line. Product
+        """Room for each value: what the box leaves beside ``used`` cells. Product
         titles cut at 18 cells all read 'Ashgrove silent f…' on a 120-column terminal with 40
         cells of the line empty, and a found word was seldom in sight."""
         box = min(BOX_MAX, int(self.app.size.width * BOX_SHARE)) - BOX_INNER
-        return max(VALUE_CELLS, (box - used) // 2)
+        return (box - used) // 2
 
     def on_option_list_option_selected(self, event: OptionList.OptionSelected) -> None:
         event.stop()
