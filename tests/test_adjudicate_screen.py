@@ -248,7 +248,8 @@ def test_notes_and_names_are_shown_literally_and_blind_names_are_stand_ins():
                Review("lead", "non-match", "why", 2.0, "", False, "adjudicator"))
     standing = PairStanding("hold", reviews)
     text = reviews_text(card, standing, "lead", blind=False).plain
-    assert "[bold]eve[/]" in text and "[red]x[/] \\x1b[2J⟨U+202E⟩" in text
+    assert "[bold]eve[/]" in text and "[red]x[/]" in text  # a long note wraps, indented
+    assert "    \\x1b[2J⟨U+202E⟩" in text
     assert "\x1b" not in text and "you" in text and "▲ your own earlier label" in text
     blind = reviews_text(card, standing, "lead", blind=True).plain
     assert "eve" not in blind and " bo " not in blind
@@ -256,3 +257,18 @@ def test_notes_and_names_are_shown_literally_and_blind_names_are_stand_ins():
     aliases = blind_aliases(["maya", "ines", "lead"])
     assert sorted(aliases.values()) == ["reviewer A", "reviewer B", "reviewer C"]
     assert aliases == blind_aliases(["lead", "maya", "ines"])  # the order given is no clue
+
+
+def test_a_long_note_wraps_under_its_reviewer():
+    # the panel wrapped a note to its left edge, where its second line read as the start of
+    # the next entry
+    from rich.text import Text
+
+    from docket.tui.widgets.reviews import hanging
+
+    note = "same address, different birth year? and a much longer note that goes on"
+    lines = hanging(Text("  note " + note), 28).plain.splitlines()
+    assert lines[0] == "  note same address,"
+    assert all(line.startswith("    ") and len(line) <= 28 for line in lines[1:])
+    assert " ".join(" ".join(lines).split()) == "note " + note
+    assert hanging(Text("  note same pet and phone"), 28).plain == "  note same pet and phone\n"

@@ -14,6 +14,7 @@ import textwrap
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
 
+from rich.console import Console
 from rich.style import Style
 from rich.text import Text
 from textual.widgets import Static
@@ -126,10 +127,34 @@ def _review_lines(text: Text, reviews: Sequence[Review], names: Sequence[str], m
         if review.own:
             text.append("  ▲ your own earlier label\n", p.escape)
         if review.note:
-            text.append(f"  {note_word} ", p.muted)
-            text.append_text(literal.literal_text(review.note, escape_style=p.escape,
+            note = Text()  # the label muted, the note itself not
+            note.append(f"  {note_word} ", p.muted)
+            note.append_text(literal.literal_text(review.note, escape_style=p.escape,
                                                   cap=NOTE_CAP))
-            text.append("\n")
+            text.append_text(hanging(note, width + ROW_REST))
+
+
+def hanging(note: Text, width: int, indent: int = 4) -> Text:
+    """``note`` wrapped to ``width`` with its later lines indented, so that a long note reads
+    as one under its reviewer: the panel wrapped it to the left edge, where it looked like
+    the start of the next entry."""
+    first = note.wrap(_MEASURE, max(8, width))[0]  # the first line has the whole width
+    rest = note[len(first):]
+    out = Text()
+    first.rstrip()
+    out.append_text(first)
+    out.append("\n")
+    rest = rest[len(rest.plain) - len(rest.plain.lstrip()):]
+    if rest.plain:
+        for line in rest.wrap(_MEASURE, max(8, width - indent)):
+            line.rstrip()
+            out.append(" " * indent)
+            out.append_text(line)
+            out.append("\n")
+    return out
+
+
+_MEASURE = Console(width=200, no_color=True)  # wrap() asks a console for tab size only
 
 
 def reviews_text(card: PairCard, standing: PairStanding, adjudicator: str, blind: bool,
