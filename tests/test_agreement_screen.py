@@ -115,3 +115,17 @@ def test_agreement_120x40(snap_compare, team, team_app):
     path, _ = team
     assert snap_compare(team_app(path, start="agreement"), terminal_size=SIZE,
                         run_before=settle)
+
+
+@pilot_test
+async def test_with_one_reviewer_the_hint_names_no_cell_to_move_to(sample_project, team_app):
+    # 'Move to a cell of two reviewers' was shown with no such cell in the matrix
+    with Project.open(sample_project) as p:
+        p.decide(p.next_pairs("ines", 1)[0].pair_id, "ines", "match")
+    app = team_app(sample_project, start="agreement")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        text = " ".join(screen_text(app).split())
+        assert "No two reviewers have pairs in common yet" in text
+        assert "Move to a cell" not in text
+        assert "Once two reviewers have decided the same pairs" in text

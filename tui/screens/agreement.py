@@ -147,9 +147,12 @@ class AgreementScreen(TeamScreen):
     def _detail_at(self, row: int, column: int) -> None:
         found = self._pair_at(row, column)
         detail = self.query_one("#agree-detail", Static)
-        if found is None:
-            detail.update(Text("Move to a cell of two reviewers to see every figure; Enter "
-                               "lists their disagreements.", self.palette.muted))
+        if found is None:  # with no pairs in common there is no such cell to move to
+            hint = ("Move to a cell of two reviewers to see every figure; Enter lists their "
+                    "disagreements." if self.entries else
+                    "Once two reviewers have decided the same pairs, their cell here shows "
+                    "every figure, and Enter lists their disagreements.")
+            detail.update(Text(hint, self.palette.muted))
             return
         detail.update(detail_text(self.entries[found], self.shown, self.palette))
 
