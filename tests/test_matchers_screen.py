@@ -88,3 +88,22 @@ def test_the_screen_refuses_an_unknown_mask_column_before_opening(rated: Path, c
     assert main(["evaluate", str(rated), "--matchers", "--screen", "--mask", "emial"]) == 2
     err = capsys.readouterr().err.strip()
     assert len(err.splitlines()) == 1 and "emial" in err, err
+
+
+@pilot_test
+async def test_the_table_keeps_every_figure_at_80x24(rated, team_app):
+    # the F1 column was cut and kappa and the audit pairs were out of sight to the right
+    app = team_app(rated, start="matchers")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        table = app.screen.query_one("#matchers-table")
+        width = sum(col.get_render_width(table) for col in table.columns.values())
+        assert width <= table.region.width and table.region.right <= 80
+        labels = [c.label.plain for c in table.columns.values()]
+        assert labels == ["matcher", "thr", "precision", "recall", "F1", "κ gold", "audit"]
+        row = [c.plain for c in table.get_row("exact")]
+        assert row[2].startswith("1.00 [") and "–" in row[2] and row[5] == "1.000"
+        await pilot.resize_terminal(120, 40)
+        await settle(pilot)
+        row = [c.plain for c in table.get_row("exact")]
+        assert row[1] == "label" and row[3].startswith("1.000 [")  # wide: as before

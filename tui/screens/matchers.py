@@ -23,7 +23,10 @@ from ..characters import visible
 from ..diff import PLAIN, Palette
 from ..figures import labelled_text
 from ..matchers_report import HEADERS, distillation_lines, matcher_rows
+from .quality_table import NARROW_BELOW, interval
 from .team_base import TeamScreen
+
+INTERVALS = (3, 4, 5)  # the cells of precision, recall and F1 in a matcher's row
 
 HELP = (
     "Every machine rater stored in the project, judged on the audit slice like the model: "
@@ -102,13 +105,32 @@ class MatchersScreen(TeamScreen):
         head = Text(f"matchers · {self.team_app.project_name} · ", "bold")
         head.append(f"audit slice: {labelled_text(a)}; {report['confidence']:.0%} intervals")
         self.query_one("#matchers-head", Static).update(head)
+        self._table(report)
+        self.query_one("#matchers-notes", Static).update(notes_text(report, p))
+
+    def _table(self, report: dict[str, Any]) -> None:
+        # Below 110 columns the F1 column was cut and kappa and the audit pairs sat out of
+        # sight: intervals as the quality screen's narrow table gives them, and no 'kind'
+        narrow = (self.size.width or self.app.size.width) < NARROW_BELOW
+        self._narrow = narrow
         table = self.query_one("#matchers-table", DataTable)
         table.clear(columns=True)
-        for label in HEADERS:
-            table.add_column(Text(label, p.muted))
+        keep = [i for i, h in enumerate(HEADERS) if not (narrow and h == "kind")]
+        for i in keep:
+            table.add_column(Text(HEADERS[i], self.palette.muted))
         for m, cells in zip(report["matchers"], matcher_rows(report), strict=True):
-            table.add_row(*(Text(c) for c in cells), key=m["name"])
-        self.query_one("#matchers-notes", Static).update(notes_text(report, p))
+            shown = [Text(c) for c in cells]
+            if narrow:
+                for i, k in zip(INTERVALS, ("precision", "recall", "f1"), strict=True):
+                    shown[i] = interval(m[k], True)
+            table.add_row(*(shown[i] for i in keep), key=m["name"])
+
+    _narrow: bool | None = None
+
+    def on_resize(self) -> None:
+        narrow = (self.size.width or self.app.size.width) < NARROW_BELOW
+        if self.report is not None and narrow != self._narrow:
+            self._table(self.report)
 
     def action_reload(self) -> None:
         self._load()
