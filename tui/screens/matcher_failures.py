@@ -118,9 +118,10 @@ class MatcherFailuresScreen(TeamScreen):
         for label in ("pair", "error", "left", "right", "differing values"):
             table.add_column(Text(label, p.muted))
         for group in listed.groups:
-            table.add_row(Text(f"{len(group.failures):,}", p.heading), Text(""),
-                          Text(group.label, p.heading), Text(""), Text(""),
-                          key=f"group:{group.label}")
+            # the heading in the last column: in 'left' it made that column as wide as the
+            # longest list of fields, pushing the right ids and the values out of sight
+            table.add_row(Text(f"{len(group.failures):,}", p.heading), Text(""), Text(""),
+                          Text(""), Text(group.label, p.heading), key=f"group:{group.label}")
             for f in group.failures:
                 if f.pair_id not in listed.values:
                     continue
