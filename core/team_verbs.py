@@ -3,6 +3,7 @@ merged, adjudication. ``Project`` inherits them, so front ends never import ``re
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
@@ -46,13 +47,23 @@ class TeamVerbs(ProjectFile):
         return disagreements(self, a, b)
 
     # -- labels from elsewhere ---------------------------------------------------------------
-    def label_from(self, path: str | Path, reviewer: str) -> tuple[int, RefitResult]:
+    def label_from(self, path: str | Path, reviewer: str,
+                   progress: Callable[[str, int, int], None] | None = None
+                   ) -> tuple[int, RefitResult]:
         """Every row of a labels file for ``reviewer`` (all checked before any is written),
-        then a refit; (decisions recorded, the refit)."""
+        then a refit; (decisions recorded, the refit). ``progress(step, done, total)`` hears
+        of each step and of each batch of rows written."""
         from .reviewing.bulk import apply_rows, read_rows
+        say = progress or (lambda step, done, total: None)
+        say("checking the rows", 0, 1)
         rows = read_rows(self, Path(path))
-        n = apply_rows(self, reviewer, rows)
-        return n, self._refit_after(f"the {many(n, 'decision')} for {reviewer} are recorded")
+        say("checking the rows", 1, 1)
+        n = apply_rows(self, reviewer, rows,
+                       progress=lambda done: say("recording decisions", done, len(rows)))
+        say("refitting the model", 0, 1)
+        result = self._refit_after(f"the {many(n, 'decision')} for {reviewer} are recorded")
+        say("refitting the model", 1, 1)
+        return n, result
 
     def label_once(self, name: str, path: str | Path, adjudicator: str | None = None) -> int:
         from .reviewing.bulk import label_once

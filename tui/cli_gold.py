@@ -123,7 +123,8 @@ def evaluate(args: argparse.Namespace) -> int:
     if args.matchers:
         from .matchers_report import evaluate_matchers
         return evaluate_matchers(args)
-    with Project.open(args.project, readonly=True) as project:
+    from .progress import working
+    with working("evaluating"), Project.open(args.project, readonly=True) as project:
         if args.predictions:
             report = project.evaluate_predictions(args.predictions, args.threshold,
                                                   args.thresholds, args.target_precision,
@@ -163,7 +164,9 @@ def export(args: argparse.Namespace) -> int:
     if not (args.for_lm and args.output == "-"):
         output_format(args.output, args.format)  # a bad target fails before any work
     if args.what != "scores" or args.for_lm or args.lm_template:
-        with open_project(args.project, readonly=True) as project:
+        from .progress import working
+        with working(f"exporting {args.what}", args.output != "-"), \
+                open_project(args.project, readonly=True) as project:
             result = export_other(project, args.what, args)
         none = {"conflicts": ": no conflicts, no gold non-match falls inside a cluster",
                 # the export is the only mention of missed matches a reader of the
@@ -179,9 +182,12 @@ def export(args: argparse.Namespace) -> int:
                 print(f"note: {note}", file=sys.stderr)
         return 0
     from docket.core import write_rows
-    with open_project(args.project, readonly=True) as project:
-        frame = project.scores_frame()
-    write_rows(frame, args.output, args.format, guard=getattr(args, "formula_guard", True))
+
+    from .progress import working
+    with working("exporting the scores", args.output != "-"):  # '-': the rows are the output
+        with open_project(args.project, readonly=True) as project:
+            frame = project.scores_frame()
+        write_rows(frame, args.output, args.format, guard=getattr(args, "formula_guard", True))
     if args.output != "-":
         print(f"wrote {many(len(frame), 'pair')} to {args.output}", file=sys.stderr)
     return 0

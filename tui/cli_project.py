@@ -136,8 +136,10 @@ def next_pairs(args: argparse.Namespace) -> int:
 
 def label(args: argparse.Namespace) -> int:
     reviewer = default_reviewer(args.reviewer)
-    with open_project(args.project) as project:  # registers the reviewer only if it records
-        n, result = project.label_from(Path(args.source), reviewer)
+    from .progress import progress_bar
+    with open_project(args.project) as project, progress_bar() as update:
+        # registers the reviewer only if it records
+        n, result = project.label_from(Path(args.source), reviewer, update)
     # Audit pairs are not among them: they are fitted on, and judged by a model fitted
     # without them (cross-fitting).
     aside = (f"; {result.set_aside:,} set aside until another reviewer has labelled "

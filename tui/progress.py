@@ -39,3 +39,40 @@ def progress_bar(enabled: bool = True) -> Iterator[Any]:
     finally:
         if bars.live.is_started:
             bars.stop()
+
+
+@contextmanager
+def working(step: str, enabled: bool = True) -> Iterator[None]:
+    """One bar that pulses with the time spent, for work that has no count to show (a query, a
+    file written in one call): on a terminal only, and only once it has lasted 0.3 s."""
+    if not enabled or not sys.stderr.isatty():
+        yield
+        return
+    import threading
+
+    from rich.console import Console
+    from rich.progress import BarColumn, Progress, TextColumn, TimeElapsedColumn
+
+    bars = Progress(TextColumn("{task.description:<24}"), BarColumn(), TimeElapsedColumn(),
+                    console=Console(file=unwrapped(sys.stderr)), transient=True,
+                    redirect_stdout=False, redirect_stderr=False)
+    bars.add_task(step, total=None)
+    lock = threading.Lock()
+    done = False
+
+    def show() -> None:
+        with lock:
+            if not done:
+                bars.start()
+
+    timer = threading.Timer(0.3, show)
+    timer.daemon = True
+    timer.start()
+    try:
+        yield
+    finally:
+        timer.cancel()
+        with lock:
+            done = True
+            if bars.live.is_started:
+                bars.stop()

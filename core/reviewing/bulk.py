@@ -14,6 +14,7 @@ import contextlib
 import json
 import sqlite3
 import time
+from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -182,9 +183,11 @@ def _refuse_contradictions(path: Path, rows: list[BulkRow]) -> None:
 
 
 def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: str = "reviewer",
-               batch: int = BATCH_ROWS, seconds: float = BATCH_S, pause: float = PAUSE_S) -> int:
+               batch: int = BATCH_ROWS, seconds: float = BATCH_S, pause: float = PAUSE_S,
+               progress: Callable[[int], None] | None = None) -> int:
     """Record ``rows`` for ``reviewer`` in batches of at most ``batch`` rows and about
-    ``seconds`` of writing each, ``pause`` apart; on any failure, none of them stands."""
+    ``seconds`` of writing each, ``pause`` apart; on any failure, none of them stands.
+    ``progress`` hears the rows written after each batch."""
     reviewer = roles.plain_name(reviewer)
     with project.reading():
         reviewer = roles.as_kept(project.connection, reviewer)
@@ -207,6 +210,8 @@ def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: s
                     claims.release(conn, reviewer, r.pair_id)
                     done.append((d.pair_id, d.decision_id))
             written += done  # committed: a failed batch was rolled back whole
+            if progress:
+                progress(len(written))
     except BaseException as exc:
         try:
             _retract(project, reviewer, role, written)
