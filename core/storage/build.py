@@ -26,6 +26,7 @@ from ..pairs import blocking, candidates
 from ..pairs.candidates import possible_pairs, width_of
 from ..pairs.pair_files import open_pairs
 from ..records import fields as fieldmod
+from ..records.same_records import copy_warning
 from ..records.sources import Table, load_table, read_frame
 from ..types import FieldSpec
 from . import file_health, spilled, store
@@ -120,6 +121,9 @@ def _tables(spec: NewProject) -> tuple[Table, Table | None]:
     right = load_table(spec.right, spec.right_id or spec.id_column or
                        (left.id_column if left.id_column in read_frame(spec.right).columns
                         else None))
+    copy = copy_warning(left, right)
+    if copy:
+        warnings.warn(copy, UserWarning, stacklevel=3)
     return left, right
 
 
