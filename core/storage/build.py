@@ -32,6 +32,7 @@ from ..types import FieldSpec
 from . import file_health, spilled, store
 from .build_files import remove_stale_builds, replace_project_file
 from .pair_stream import ChunkScorer, InProcess, levels_of, similarities
+from .pattern_room import check_room
 
 Progress = Callable[[str, int, int], None]
 
@@ -179,6 +180,7 @@ def build(spec: NewProject, progress: Progress | None = None,
         base = random_pairs.baseline(fields, lnorm, rnorm, n_l, width, right is None,
                                      spec.seed + 7, prepared=prepared)
         scorer = ChunkScorer(fields, lnorm, rnorm, width, base.frequent, prepared)
+        check_room([f.name for f in fields], scorer.radix, str(left.path))
         codes, counts = engine.score(scorer, lambda d, t: step("comparing", d, t))
         step("fitting the model")
         patterns = levels_of(codes, scorer.radix)
