@@ -50,3 +50,11 @@ def test_piped_label_export_and_evaluate_print_no_bar(sample_project: Path, tmp_
     main(["evaluate", str(sample_project)])  # no audit labels yet: one line, exit 2
     out = capsys.readouterr()
     assert "━" not in out.err and "━" not in out.out
+
+
+def test_piped_merge_prints_no_bar(sample_project: Path, tmp_path: Path, capsys) -> None:
+    copy = tmp_path / "copy.docket"
+    copy.write_bytes(sample_project.read_bytes())
+    assert main(["merge", str(sample_project), str(copy)]) == 0
+    out = capsys.readouterr()
+    assert "nothing new" in out.out and "━" not in out.err

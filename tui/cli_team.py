@@ -116,7 +116,8 @@ def agreement(args: argparse.Namespace) -> int:
 
 # -- merge ---------------------------------------------------------------------------------
 def merge(args: argparse.Namespace) -> int:
-    with open_project(args.project) as project:
+    from .progress import working
+    with working("merging, then refitting"), open_project(args.project) as project:
         result, refit = project.merge([Path(p) for p in args.others],
                                       accept_roles=args.accept_roles)
     for f in result.files:
