@@ -149,6 +149,7 @@ def test_rule_over_the_cap_suggests_a_tighter_rule(tmp_path: Path, capsys) -> No
     code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(oslo), "--id", "id",
                     "--block", "town", "--max-pairs", "1")
     assert_one_line_error(code, err, "over the cap", "&")
+    assert "the key 'oslo' alone is held by 3 records" in err  # the block that costs
 
 
 def test_cp1252_file_is_read_with_a_warning(tmp_path: Path, capsys) -> None:

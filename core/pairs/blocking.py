@@ -200,8 +200,13 @@ def rule_keys(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
     lk, rk = _drop_common_tokens(rule, lk, rk, token_share)
     expected = estimate_pairs(lk, rk)
     if expected > max_pairs:
+        # one common value ('Quillsby' in a fifth of the towns) is often most of them
+        sizes = lk["key"].value_counts() + (0 if rk is None else rk["key"].value_counts()
+                                            .reindex(lk["key"].unique(), fill_value=0))
+        top = sizes.idxmax()
         raise DocketError(f"--block {str(rule)!r} would make about {expected:,} pairs, over the "
-                          f"cap of {max_pairs:,}; add a key with & (for example "
+                          f"cap of {max_pairs:,} (the key {str(top)!r} alone is held by "
+                          f"{int(sizes.max()):,} records); add a key with & (for example "
                           f"'{rule} & {fields[0].name}[:2]') or raise --max-pairs")
     return lk, rk
 
