@@ -172,3 +172,17 @@ def test_a_training_export_with_one_side_empty_says_so(
     assert "note" not in capsys.readouterr().err  # all on train, as asked
     assert empty_side(["train", "test"], 0.2, "record") is None
     assert "none came out test" in (empty_side(["train"] * 3, 0.2, "pair") or "")
+
+
+def test_each_prompt_holds_its_own_pairs_records(sample_project: Path) -> None:
+    # the records are taken per side in pair order: each prompt must show its own pair's
+    with Project.open(sample_project, readonly=True) as p:
+        rows = lm_records(p, "scores")
+        template = LmTemplate.load(None)
+        names = [f.name for f in p.fields]
+        for row in rows[::997]:
+            card = p.card(row["pair_id"])
+            assert (card.left_id, card.right_id) == (row["left_id"], row["right_id"])
+            expected = template.fill(names, [f.left for f in card.fields],
+                                     [f.right for f in card.fields])
+            assert row["prompt"] == expected

@@ -52,11 +52,21 @@ def lm_records(project: ProjectFile, what: str = "training", template: LmTemplat
     else:
         extra = {"label": table["label"].tolist(),
                  "split": list(gold_split(project, table, test_share, seed, split_by))}
+    # each side's values in pair order, one array per side: a lookup per pair and field
+    # (DataFrame.at) was four fifths of a 60,000-pair export's 35 s
+    firsts = _in_pair_order(left, table["left_id"], [f.left_column for f in project.fields])
+    seconds = _in_pair_order(right, table["right_id"], [f.right_column for f in project.fields])
     out = []
-    for i, row in enumerate(table[["pair_id", "left_id", "right_id"]].itertuples(index=False)):
-        a = [left.at[row.left_id, f.left_column] for f in project.fields]
-        b = [right.at[row.right_id, f.right_column] for f in project.fields]
-        out.append({"pair_id": int(row.pair_id), "left_id": row.left_id,
-                    "right_id": row.right_id, "prompt": template.fill(names, a, b),
+    for i, (pair_id, left_id, right_id) in enumerate(zip(
+            table["pair_id"].tolist(), table["left_id"].tolist(), table["right_id"].tolist(),
+            strict=True)):
+        out.append({"pair_id": int(pair_id), "left_id": left_id, "right_id": right_id,
+                    "prompt": template.fill(names, firsts[i], seconds[i]),
                     **{k: v[i] for k, v in extra.items()}})
     return out
+
+
+def _in_pair_order(records: pd.DataFrame, ids: pd.Series, columns: list[str]) -> list[list[Any]]:
+    """The ``columns`` of the record each id names, one list per pair."""
+    rows = records.index.get_indexer(ids)
+    return records[columns].to_numpy(dtype=object)[rows].tolist()
