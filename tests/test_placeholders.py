@@ -18,15 +18,22 @@ FILLERS = ["N/A", "unknown", "-", "0"]
 
 
 @pytest.mark.parametrize("value", ["N/A", "n/a", "#N/A", "Unknown", "NULL", "-", "?", "0",
-                                   "0000", "9999999", "XX1 1XX", "x0x 0x0", "tbc", "XX"])
+                                   "0000", "9999999", "XX1 1XX", "x0x 0x0", "tbc", "XX",
+                                   "1900-01-01", "01/01/1900", "9999-12-31"])
 def test_what_looks_like_a_placeholder(value: str) -> None:
     assert placeholders.looks_like_placeholder(value)
 
 
-@pytest.mark.parametrize("value", ["1", "12", "X", "M", "Brantovel", "1900-01-01", "AB1 2CD",
-                                   "07123456789"])
+@pytest.mark.parametrize("value", ["1", "12", "X", "M", "Brantovel", "1900-01-02", "AB1 2CD",
+                                   "07123456789", "1984-03-07", "1900"])
 def test_what_does_not(value: str) -> None:
     assert not placeholders.looks_like_placeholder(value)
+
+
+def test_a_date_for_none_in_a_column_of_births() -> None:
+    births = pd.Series([f"19{40 + i % 50}-0{1 + i % 9}-1{i % 10}" for i in range(190)] +
+                       ["1900-01-01"] * 10)
+    assert placeholders.for_kind(placeholders.found(births), "date") == {"1900-01-01": 0.05}
 
 
 def test_kind_keeps_its_own_values() -> None:

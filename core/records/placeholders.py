@@ -16,7 +16,7 @@ import shlex
 
 import pandas as pd
 
-from .normalise import fold
+from .normalise import date, fold
 
 MIN_SHARE = 0.01  # of a side's values in the column: below this a placeholder does no harm
 MIN_COUNT = 2  # two records at least: one cannot agree with itself
@@ -26,16 +26,22 @@ WORDS = frozenset({
     "notapplicable", "notgiven", "notstated", "notrecorded", "notspecified", "unspecified",
     "missing", "tbc", "tba", "tbd", "nodata", "noinfo", "undefined", "blank", "empty", "void"})
 _NOT_ALNUM = re.compile(r"[^0-9a-z]+")
+# dates that forms and databases write for 'not known': 1 January 1900 (and the day before, a
+# spreadsheet's day 0), 1 January 1800, 31 December 9999; days since 1970-01-01
+SENTINEL_DAYS = frozenset({-25567.0, -25568.0, -62091.0, 2932896.0})
 
 
 def looks_like_placeholder(value: str) -> bool:
-    """Punctuation alone ('-', '?'), a word for 'no value' ('N/A', 'Unknown', 'NULL'), or a
-    filler of zeros, nines, one repeated digit, or x's ('0', '0000', '9999999', 'XX1 1XX')."""
+    """Punctuation alone ('-', '?'), a word for 'no value' ('N/A', 'Unknown', 'NULL'), a date
+    that stands for none ('1900-01-01'), or a filler of zeros, nines, one repeated digit, or
+    x's ('0', '0000', '9999999', 'XX1 1XX')."""
     text = _NOT_ALNUM.sub("", fold(value))
     if not text:
         return True
     if text in WORDS:
         return True
+    if len(text) >= 6 and text.isdigit() and date(value) in SENTINEL_DAYS:
+        return True  # '1900-01-01', '01/01/1900', '9999-12-31'
     letters = {ch for ch in text if not ch.isdigit()}
     digits = {ch for ch in text if ch.isdigit()}
     if letters - {"x"} or len(digits) > 1:
