@@ -128,3 +128,22 @@ def test_a_column_of_only_placeholders_is_left_out(tmp_path: Path, capsys) -> No
     assert "column 'email' holds only placeholders" in err and "not compared" in err
     with Project.open(tmp_path / "t.docket") as project:
         assert [f.name for f in project.fields] == ["name"]
+
+
+def test_a_link_says_each_field_once_with_both_sides_shares(tmp_path: Path, capsys) -> None:
+    left = pd.DataFrame({"ref": [f"q{i}" for i in range(50)],
+                         "name": [f"Ilvan Drevan{i}" for i in range(50)],
+                         "phone": ["N/A" if i % 5 == 0 else f"0712{i:06d}" for i in range(50)]})
+    right = pd.DataFrame({"pid": [f"p{i}" for i in range(80)],
+                          "name": [f"Ilvan Drevan{i}" for i in range(80)],
+                          "tel": ["N/A" if i % 4 == 0 else "-" if i % 4 == 1 else
+                                  f"0712{i:06d}" for i in range(80)]})
+    left.to_csv(tmp_path / "l.csv", index=False)
+    right.to_csv(tmp_path / "r.csv", index=False)
+    assert main(["new", str(tmp_path / "k.docket"), "--left", str(tmp_path / "l.csv"),
+                 "--right", str(tmp_path / "r.csv"), "--left-id", "ref", "--right-id", "pid",
+                 "--map", "phone=tel", "--block", "tokens(name)"]) == 0
+    lines = [line for line in capsys.readouterr().err.splitlines() if "no value" in line]
+    assert len(lines) == 1
+    assert "l.csv, column 'phone' and " in lines[0] and "r.csv, column 'tel'" in lines[0]
+    assert "'N/A' (20.0% and 25.0%)" in lines[0] and "'-' (none in " in lines[0]

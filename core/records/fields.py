@@ -168,9 +168,9 @@ def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: st
                               f"{', '.join(repr(v) for v in found[0] or found[-1])}) in "
                               f"{' and in '.join(only)}")
             continue
-        for (_, col, table), shares in zip(sides, found, strict=True):
-            if shares:
-                said.append(placeholders.warning(lcol, table, col, shares))
+        if any(found):
+            said.append(placeholders.warning(lcol, [(table, col, shares) for (_, col, table),
+                                                    shares in zip(sides, found, strict=True)]))
         fields.append(FieldSpec(name=lcol, left_column=lcol, right_column=rcol, kind=kind,
                                 missing=tuple(sorted({v for shares in found for v in shares}))))
     if not fields:

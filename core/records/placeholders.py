@@ -104,10 +104,23 @@ def without(values: pd.Series, placeholders: tuple[str, ...] | list[str]) -> pd.
     return values.mask(pd.Series(hit, index=values.index))
 
 
-def warning(field: str, table: str, column: str, shares: dict[str, float]) -> str:
-    where = f"{table}, column '{column}'" + ("" if column == field else f" (field '{field}')")
-    shown = ", ".join(f"{v!r} ({s:.1%})" for v, s in shares.items())  # repr: no raw controls
-    one = len(shares) == 1
+def warning(field: str, sides: list[tuple[str, str, dict[str, float]]]) -> str:
+    """One line for a field: each side's (table, column, placeholders with their shares)."""
+    sides = [side for side in sides if side[2]]
+    columns = {column for _, column, _ in sides}
+    where = (f"{' and '.join(table for table, _, _ in sides)}, column '{columns.pop()}'"
+             if len(columns) == 1 else
+             " and ".join(f"{table}, column '{column}'" for table, column, _ in sides))
+    where += "" if all(column == field for _, column, _ in sides) else f" (field '{field}')"
+    values = list(dict.fromkeys(v for _, _, shares in sides for v in shares))
+
+    def share(v: str) -> str:
+        if len(sides) == 1:
+            return f"{sides[0][2][v]:.1%}"
+        return " and ".join(f"{shares[v]:.1%}" if v in shares else f"none in {table}"
+                            for table, _, shares in sides)
+    shown = ", ".join(f"{v!r} ({share(v)})" for v in values)  # repr: no raw controls
+    one = len(values) == 1
     return (f"{where}: {shown} {'stands' if one else 'stand'} for no value, so "
             f"{'it is' if one else 'they are'} compared as missing, not as agreement (give "
             f"--keep-placeholders to compare {'it' if one else 'them'} as written, or --field "
