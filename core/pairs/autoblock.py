@@ -11,8 +11,8 @@ from .blocking import (
     EVERY,
     Rule,
     _drop_common_tokens,
-    _exploded,
     estimate_pairs,
+    exploded,
     parse_rule,
     rule_pairs,
 )
@@ -60,11 +60,7 @@ def choose_rules(left: pd.DataFrame, right: pd.DataFrame | None, fields: list[Fi
         else:
             text, bucket = f"tokens({f.name})", tokens
         rule = parse_rule(text, fields)
-        kind_of = {g.name: g.kind for g in fields}
-        lk = _exploded(rule, left, {g.name: g.left_column for g in fields}, kind_of)
-        rk = None if right is None else _exploded(rule, right,
-                                                  {g.name: g.right_column for g in fields},
-                                                  kind_of)
+        lk, rk = exploded(rule, left, right, fields)
         lk, rk = _drop_common_tokens(rule, lk, rk, 0.01)
         covered = lk["pos"].nunique() / max(1, len(left))
         words_fit = covered >= 0.5 and estimate_pairs(lk, rk) <= max_pairs

@@ -6,6 +6,7 @@ rules are OR-ed. Keys:
   ``col``           the normalised value
   ``col[:N]``       its first N characters
   ``tokens(col)``   any one shared word (words held by too many records are skipped)
+                    or code split by spaces ('kx 450 b' meets 'KX-450B')
   ``digits(col)``   only its digits
   ``year(col)``     the year of a date
   ``near(col)``     each record's nearest records by TF-IDF similarity (a rule of its own, not
@@ -26,6 +27,7 @@ import pandas as pd
 from ..errors import DocketError
 from ..records import distinct, normalise
 from ..types import FieldSpec
+from .word_keys import Lists, known_runs, word_keys
 
 _KEY = re.compile(r"^\s*(?:(tokens|digits|year|near)\s*\(\s*([^()]+?)\s*\)|([^\[\]()&]+?)"
                   r"(?:\[\s*:\s*(\d+)\s*\])?)\s*$")
@@ -108,8 +110,11 @@ def parse_rule(text: str, fields: list[FieldSpec]) -> Rule:
     return Rule(tuple(keys))
 
 
-def _key_values(key: Key, values: pd.Series, kind: str) -> list[list[str]]:
-    """Each record's key strings (a list, because tokens give several)."""
+
+
+def _key_values(key: Key, values: pd.Series, kind: str) -> tuple[Lists, Lists]:
+    """Each record's key strings (a list, because tokens give several), and for tokens the
+    runs that become keys where another record holds them as a word."""
     norm: Callable[[str], object]
     if key.func == "digits":
         def norm(v: str) -> object:
@@ -127,25 +132,27 @@ def _key_values(key: Key, values: pd.Series, kind: str) -> list[list[str]]:
     else:
         norm = normalise.words
     done = distinct.per_distinct(values, norm)
-    out: list[list[str]] = []
+    out: Lists = []
+    runs: Lists = []
     for v in done:
         if v is None:
             out.append([])
+            runs.append([])
         elif key.func == "tokens":
-            out.append(sorted({t for t in str(v).split() if len(t) > 1}))
+            keys, joined = word_keys(str(v))
+            out.append(keys)
+            runs.append(joined)
         elif key.func == "prefix":
             out.append([str(v)[: key.length]])
         else:
             out.append([str(v)])
-    return out
+    return out, runs
 
 
-def _exploded(rule: Rule, frame: pd.DataFrame, column_of: dict[str, str],
-              kind_of: dict[str, str]) -> pd.DataFrame:
+def _frame(rule: Rule, per_key: list[Lists]) -> pd.DataFrame:
     """Frame of (pos, key) with one row per record and combined key."""
     result: pd.DataFrame | None = None
-    for key in rule.keys:
-        lists = _key_values(key, frame[column_of[key.column]], kind_of[key.column])
+    for key, lists in zip(rule.keys, per_key, strict=True):
         pos = np.repeat(np.arange(len(lists)), [len(x) for x in lists])
         flat = [k for x in lists for k in x]
         part = pd.DataFrame({"pos": pos, str(key): flat})
@@ -156,6 +163,23 @@ def _exploded(rule: Rule, frame: pd.DataFrame, column_of: dict[str, str],
     for c in cols[1:]:
         key = key + "\x1f" + result[c].astype(str)
     return pd.DataFrame({"pos": result["pos"].to_numpy(), "key": key.to_numpy()})
+
+
+def exploded(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
+             fields: list[FieldSpec]) -> tuple[pd.DataFrame, pd.DataFrame | None]:
+    """(pos, key) frames of each side under one rule, before common words are dropped."""
+    kind_of = {f.name: f.kind for f in fields}
+    frames = [(left, {f.name: f.left_column for f in fields})]
+    if right is not None:
+        frames.append((right, {f.name: f.right_column for f in fields}))
+    per_side: list[list[Lists]] = [[] for _ in frames]
+    for key in rule.keys:
+        sides = [_key_values(key, frame[cols[key.column]], kind_of[key.column])
+                 for frame, cols in frames]
+        for i, lists in enumerate(known_runs(sides)):
+            per_side[i].append(lists)
+    lk = _frame(rule, per_side[0])
+    return lk, (None if right is None else _frame(rule, per_side[1]))
 
 
 def _drop_common_tokens(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
@@ -193,10 +217,7 @@ def rule_keys(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
     if rule.keys[0].func in ("near", "every"):  # no key: nothing to join on
         raise DocketError(f"--block {str(rule)!r} runs in this process only; use it without "
                           "--engine dask, or give a word key such as tokens(...)")
-    kind_of = {f.name: f.kind for f in fields}
-    lk = _exploded(rule, left, {f.name: f.left_column for f in fields}, kind_of)
-    rk = None if right is None else _exploded(rule, right,
-                                              {f.name: f.right_column for f in fields}, kind_of)
+    lk, rk = exploded(rule, left, right, fields)
     lk, rk = _drop_common_tokens(rule, lk, rk, token_share)
     expected = estimate_pairs(lk, rk)
     if expected > max_pairs:
