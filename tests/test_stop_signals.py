@@ -6,6 +6,7 @@ from __future__ import annotations
 
 import asyncio
 import signal
+import threading
 from pathlib import Path
 
 import pytest
@@ -108,6 +109,46 @@ def test_a_screen_is_asked_to_quit_then_the_command_ends_interrupted() -> None:
         assert stopping.received() == "SIGTERM" and stopping.exit_code() == 143
     assert quits == ["after the signal", "quit"]
     assert stopping.received() is None
+
+
+def test_a_screen_whose_quit_hangs_is_ended_with_the_signals_code(
+        monkeypatch: pytest.MonkeyPatch) -> None:
+    # Seen in tmux: kill-session (SIGHUP) left a review screen alive for good, Textual's quit
+    # waiting on a writer thread that had died on the closed terminal. The hang is played
+    # here by a screen that waits; the watchdog is given no grace.
+    ended = threading.Event()
+    codes: list[int] = []
+
+    def hard_exit(code: int) -> None:
+        codes.append(code)
+        ended.set()
+
+    monkeypatch.setattr(stopping, "GRACE", 0.0)
+    monkeypatch.setattr(stopping, "_hard_exit", hard_exit)
+
+    async def hanging_screen() -> None:
+        signal.raise_signal(signal.SIGHUP)
+        await asyncio.get_running_loop().run_in_executor(None, ended.wait, 10)
+
+    with stopping.stop_signals():
+        with pytest.raises(Interrupted), stopping.quitting_screen(lambda: None):
+            asyncio.run(hanging_screen())
+    assert codes == [129]  # 128 + SIGHUP, as a shell reports it
+
+
+def test_a_screen_that_quits_is_not_ended_by_the_watchdog(
+        monkeypatch: pytest.MonkeyPatch) -> None:
+    codes: list[int] = []
+    monkeypatch.setattr(stopping, "_hard_exit", codes.append)
+
+    async def screen() -> None:
+        signal.raise_signal(signal.SIGTERM)
+        await asyncio.sleep(0)
+
+    with stopping.stop_signals():
+        with pytest.raises(Interrupted), stopping.quitting_screen(lambda: None):
+            asyncio.run(screen())
+    assert stopping._watchdog == [] and codes == []  # the timer was cancelled with the screen
 
 
 def test_pool_workers_end_on_the_pools_sigterm(monkeypatch: pytest.MonkeyPatch) -> None:

@@ -20,6 +20,7 @@ import asyncio
 import os
 import signal
 import sys
+import threading
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager, suppress
 from types import FrameType
@@ -33,6 +34,8 @@ _received: list[int] = []
 _quit_screen: list[Callable[[], None]] = []
 _done: list[int] = []  # the command's own exit code, once its work is complete
 _late: list[int] = []  # the signals that end a finished command with its own code
+_watchdog: list[threading.Timer] = []  # ends a screen whose quit hangs (_watch_the_quit)
+GRACE = 5.0  # seconds a screen has to quit after a stop signal; it takes well under one
 
 
 @contextmanager
@@ -93,11 +96,35 @@ def _stop(number: int, _frame: FrameType | None) -> None:
     if loop is not None:
         if first:  # the screen quits between two of its own steps, never inside a write
             loop.call_soon_threadsafe(_quit_screen[-1])
+            _watch_the_quit()
             return
         raise KeyboardInterrupt  # a second signal: the screen did not quit
     if first:
         raise KeyboardInterrupt
     # a second signal while the first one's roll-back runs would cut the roll-back short
+
+
+def _watch_the_quit() -> None:
+    """If the screen has not quit after ``GRACE`` seconds, end the process there.
+
+    With its terminal gone (SIGHUP when a terminal window or tmux session is closed), Textual's
+    writer thread can die on the closed terminal and its quit then waits forever on a full
+    queue: the process stayed alive with nobody to see it. Every decision is its own committed
+    transaction, so ending the process loses none, and a refit cut short is rolled back by
+    SQLite when the file is next opened."""
+    timer = threading.Timer(GRACE, _give_up)
+    timer.daemon = True
+    _watchdog[:] = [timer]
+    timer.start()
+
+
+def _give_up() -> None:
+    if _quit_screen:  # still on the screen: its quit hangs
+        _hard_exit(exit_code())
+
+
+def _hard_exit(code: int) -> None:
+    os._exit(code)
 
 
 def _screen_loop() -> asyncio.AbstractEventLoop | None:
@@ -128,5 +155,8 @@ def quitting_screen(quit_screen: Callable[[], None]) -> Iterator[None]:
         yield
     finally:
         _quit_screen.pop()
+        for timer in _watchdog:
+            timer.cancel()
+        _watchdog.clear()
     if _received:
         raise Interrupted("the screen was closed; every decision made on it is saved")
