@@ -130,9 +130,9 @@ def test_a_screen_whose_quit_hangs_is_ended_with_the_signals_code(
         signal.raise_signal(signal.SIGHUP)
         await asyncio.get_running_loop().run_in_executor(None, ended.wait, 10)
 
-    with stopping.stop_signals():
-        with pytest.raises(Interrupted), stopping.quitting_screen(lambda: None):
-            asyncio.run(hanging_screen())
+    with stopping.stop_signals(), pytest.raises(Interrupted), \
+            stopping.quitting_screen(lambda: None):
+        asyncio.run(hanging_screen())
     assert codes == [129]  # 128 + SIGHUP, as a shell reports it
 
 
@@ -145,9 +145,9 @@ def test_a_screen_that_quits_is_not_ended_by_the_watchdog(
         signal.raise_signal(signal.SIGTERM)
         await asyncio.sleep(0)
 
-    with stopping.stop_signals():
-        with pytest.raises(Interrupted), stopping.quitting_screen(lambda: None):
-            asyncio.run(screen())
+    with stopping.stop_signals(), pytest.raises(Interrupted), \
+            stopping.quitting_screen(lambda: None):
+        asyncio.run(screen())
     assert stopping._watchdog == [] and codes == []  # the timer was cancelled with the screen
 
 
