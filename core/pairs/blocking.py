@@ -27,7 +27,7 @@ import pandas as pd
 from ..errors import DocketError
 from ..records import distinct, normalise
 from ..types import FieldSpec
-from .word_keys import Lists, known_runs, word_keys
+from .word_keys import Lists, known_runs, token_lists
 
 _KEY = re.compile(r"^\s*(?:(tokens|digits|year|near)\s*\(\s*([^()]+?)\s*\)|([^\[\]()&]+?)"
                   r"(?:\[\s*:\s*(\d+)\s*\])?)\s*$")
@@ -110,8 +110,6 @@ def parse_rule(text: str, fields: list[FieldSpec]) -> Rule:
     return Rule(tuple(keys))
 
 
-
-
 def _key_values(key: Key, values: pd.Series, kind: str) -> tuple[Lists, Lists]:
     """Each record's key strings (a list, because tokens give several), and for tokens the
     runs that become keys where another record holds them as a word."""
@@ -132,21 +130,17 @@ def _key_values(key: Key, values: pd.Series, kind: str) -> tuple[Lists, Lists]:
     else:
         norm = normalise.words
     done = distinct.per_distinct(values, norm)
+    if key.func == "tokens":
+        return token_lists(done)
     out: Lists = []
-    runs: Lists = []
     for v in done:
         if v is None:
             out.append([])
-            runs.append([])
-        elif key.func == "tokens":
-            keys, joined = word_keys(str(v))
-            out.append(keys)
-            runs.append(joined)
         elif key.func == "prefix":
             out.append([str(v)[: key.length]])
         else:
             out.append([str(v)])
-    return out, runs
+    return out, [[] for _ in out]  # only words make runs
 
 
 def _frame(rule: Rule, per_key: list[Lists]) -> pd.DataFrame:
@@ -176,7 +170,8 @@ def exploded(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,
     for key in rule.keys:
         sides = [_key_values(key, frame[cols[key.column]], kind_of[key.column])
                  for frame, cols in frames]
-        for i, lists in enumerate(known_runs(sides)):
+        kept = known_runs(sides) if key.func == "tokens" else [keys for keys, _ in sides]
+        for i, lists in enumerate(kept):
             per_side[i].append(lists)
     lk = _frame(rule, per_side[0])
     return lk, (None if right is None else _frame(rule, per_side[1]))

@@ -8,6 +8,7 @@ second also offers its joined runs, which become keys where some record holds th
 from __future__ import annotations
 
 import re
+from collections.abc import Iterable
 
 _DIGIT = re.compile(r"\d")
 _RUN_WORD = 4  # the longest word that a run of code parts may hold ('2000' in 'kx 2000 b')
@@ -38,6 +39,18 @@ def word_keys(words: str) -> tuple[list[str], list[str]]:
             if i + 2 < n and seam[i + 1]:
                 runs.add(parts[i] + parts[i + 1] + parts[i + 2])
     return keys, sorted(runs)
+
+
+def token_lists(values: Iterable[object]) -> tuple[Lists, Lists]:
+    """Each record's keys and runs (``word_keys``) from its normalised words (None: none)."""
+    seen: dict[object, tuple[list[str], list[str]]] = {}  # records repeat their values
+    keys: Lists = []
+    runs: Lists = []
+    for v in values:
+        k, r = ([], []) if v is None else seen.get(v) or seen.setdefault(v, word_keys(str(v)))
+        keys.append(k)
+        runs.append(r)
+    return keys, runs
 
 
 def known_runs(sides: list[tuple[Lists, Lists]]) -> list[Lists]:
