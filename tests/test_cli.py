@@ -234,22 +234,32 @@ def test_ctrl_c_while_new_writes_leaves_the_old_project_and_says_one_line(
         [left.name, right.name, path.name])
 
 
+def _next_printed(tiny_tables, tmp_path: Path, capsys, monkeypatch: pytest.MonkeyPatch,
+                  lists: list) -> list[str]:
+    """What ``docket next`` prints when the queue holds each of ``lists`` in turn."""
+    left, right = tiny_tables
+    project = tmp_path / "t.docket"
+    assert main(["new", str(project), "--left", str(left), "--right", str(right), "--id", "id",
+                 "--block", "town"]) == 0
+    out = []
+    for items in lists:
+        monkeypatch.setattr(Project, "next_pairs", lambda self, r, n, claim=False, i=items: i)
+        capsys.readouterr()
+        assert main(["next", str(project), "--reviewer", "maya"]) == 0
+        out.append(capsys.readouterr().out)
+    return out
+
+
 def test_next_writes_a_probability_as_the_screen_does(tiny_tables, tmp_path: Path, capsys,
                                                       monkeypatch: pytest.MonkeyPatch) -> None:
     # next printed four decimals: 0.99996 read "1.0000" and 3e-9 "0.0000", certainties the
     # model never gave, beside a screen that shows 0.99996 for the same pair
     from docket.core.types import QueueItem
 
-    left, right = tiny_tables
-    project = tmp_path / "t.docket"
-    assert main(["new", str(project), "--left", str(left), "--right", str(right), "--id", "id",
-                 "--block", "town"]) == 0
     items = [QueueItem(1, "1", "a", 0.99996, "likely match"),
              QueueItem(2, "2", "b", 3e-9, "audit"), QueueItem(3, "3", "c", 0.25, "uncertain")]
-    monkeypatch.setattr(Project, "next_pairs", lambda self, reviewer, n, claim=False: items)
-    capsys.readouterr()
-    assert main(["next", str(project), "--reviewer", "maya"]) == 0
-    rows = capsys.readouterr().out.splitlines()[1:]
+    out, = _next_printed(tiny_tables, tmp_path, capsys, monkeypatch, [items])
+    rows = out.splitlines()[1:]
     assert [r.split("  ")[-2].strip() for r in rows] == ["0.99996", "< 0.000001", "0.250"]
 
 
@@ -271,3 +281,23 @@ def test_dasks_advice_on_large_graphs_is_not_shown(sample_project: Path, capsys,
     monkeypatch.setattr(Project, "status", status)
     assert main(["status", str(sample_project)]) == 0
     assert capsys.readouterr().err == ""
+
+
+def test_next_fits_80_columns_and_keeps_every_id_whole(tmp_path: Path, capsys, tiny_tables,
+                                                       monkeypatch: pytest.MonkeyPatch) -> None:
+    # 'likely non-match' after two 22-cell id columns made 85-cell rows at 80 columns
+    from rich.cells import cell_len
+
+    from docket.core.types import QueueItem
+
+    short = [QueueItem(16558, "N-01083", "S-11704", 0.139, "likely non-match"),
+             QueueItem(21878, "N-01946", "S-10239", 0.173, "audit, overlap")]
+    uuids = [QueueItem(7, "6f1c2a3e-0d4b-4c1e-9a57-2b8e5d1f0c33",
+                       "0b3e9f8a-7c6d-4e5f-8a9b-1c2d3e4f5a6b", 0.2, "likely non-match")]
+    printed = _next_printed(tiny_tables, tmp_path, capsys, monkeypatch, [short, uuids])
+    for out, items, lines in zip(printed, (short, uuids), (3, 4), strict=True):
+        rows = out.splitlines()
+        assert len(rows) == lines and max(cell_len(r) for r in rows) <= 80
+        for item in items:
+            assert item.left_id in out and item.right_id in out and item.reason in out
+    assert rows[2].startswith("       7  6f1c2a3e-") and rows[3].strip() == uuids[0].right_id

@@ -10,7 +10,7 @@ from typing import Any
 
 from .cli_base import command, default_reviewer, open_project, refit_words, refuse_to_discard
 from .cli_checks import MOST_LISTED, MOST_WORKERS, at_least, check_engine, share
-from .figures import many, noun, probability_text
+from .figures import many, noun
 from .figures import ratio_text as _ratio
 from .terminal import json_text, padded, shown
 
@@ -124,10 +124,8 @@ def next_pairs(args: argparse.Namespace) -> int:
     if args.json:
         print(json_text([i.to_dict() for i in items]))
         return 0
-    print(f"{'pair_id':>8}  {'left_id':<22} {'right_id':<22} {'probability':>11}  why")
-    for i in items:
-        print(f"{i.pair_id:>8}  {padded(i.left_id, 22)} {padded(i.right_id, 22)} "
-              f"{probability_text(i.probability):>11}  {i.reason}")
+    from .queue_table import queue_lines
+    print("\n".join(queue_lines(items)))
     if not items:
         print("(the queue is empty for this reviewer)" if args.n > 0
               else "(-n 0: no pair asked for)")
