@@ -114,3 +114,21 @@ def test_the_model_is_named_on_its_line_at_80_columns() -> None:
     assert "model Fellegi–Sunter" in lines
     lines = evidence_text(card, PLAIN, width=PANEL_TEXT).plain.splitlines()
     assert "model   Fellegi–Sunter" in lines  # lined up with 'queued  ' where there is room
+
+
+def test_the_other_candidates_counts_fit_the_narrow_panel() -> None:
+    # 'first 34 · second 36' (one table deduplicated) took 22 cells of the 20-cell panel at
+    # 80 columns, 'second 36' wrapping to a line of its own
+    from dataclasses import replace
+
+    def counts(card: PairCard, width: int) -> list[str]:
+        lines = evidence_text(card, PLAIN, width=width).plain.splitlines()
+        at = lines.index("other candidates") + 1
+        return lines[at:lines.index("  c: look at them")]
+
+    dedupe = replace(_card(PRODUCTS), link=False, left_candidates=34, right_candidates=36)
+    assert counts(dedupe, PANEL_TEXT) == ["  first 34 · second 36"]
+    assert counts(dedupe, NARROW_TEXT) == ["  first   34", "  second  36"]
+    link = replace(dedupe, link=True, left_candidates=15, right_candidates=1234)
+    assert counts(link, NARROW_TEXT) == ["  left      15", "  right  1,234"]
+    assert counts(replace(link, right_candidates=34), NARROW_TEXT) == ["  left 15 · right 34"]

@@ -83,6 +83,20 @@ def step_lines(steps: list[tuple[str, float]], width: int) -> list[tuple[str, in
     return [(name, keep, f) for (name, _), f in zip(steps, factors, strict=True)]
 
 
+def candidate_lines(card: PairCard, width: int) -> list[str]:
+    """How many other candidate pairs name each record: one line where it fits in ``width``
+    cells, else one line a side, the counts lined up ('first 34 · second 36' wrapped in the
+    20-cell panel at 80 columns, its second count alone on the next line)."""
+    sides = tuple(zip(card.sides, (f"{card.left_candidates:,}", f"{card.right_candidates:,}"),
+                      strict=True))
+    one = " · ".join(f"{side} {n}" for side, n in sides)
+    if cell_len(one) <= width:
+        return [one]
+    name = max(len(side) for side, _ in sides)
+    count = max(len(n) for _, n in sides)
+    return [f"{side:<{name}}  {n:>{count}}" for side, n in sides]
+
+
 def evidence_text(card: PairCard, palette: Palette, you: YourSide = YourSide(),
                   model_note: str = "", width: int = PANEL_TEXT) -> Text:
     p = palette
@@ -104,8 +118,7 @@ def evidence_text(card: PairCard, palette: Palette, you: YourSide = YourSide(),
     _line(text, "model", SHORT_MODEL.get(card.model, card.model), p, width)
     _line(text, "queued", REASONS.get(card.reason, card.reason), p, width)
     text.append("other candidates\n", p.muted)
-    first, second = card.sides
-    text.append(f"  {first} {card.left_candidates:,} · {second} {card.right_candidates:,}\n")
+    text.append("".join(f"  {line}\n" for line in candidate_lines(card, width - 2)))
     if card.left_candidates or card.right_candidates:
         text.append("  c: look at them\n", p.muted)
     if you.label is not None:
