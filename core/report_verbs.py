@@ -69,8 +69,8 @@ class ReportVerbs(ProjectFile):
                     split_by: str = "record", all_records: bool = False,
                     for_lm: bool = False, lm_template: str | None = None) -> Any:
         """The rows of ``docket export --what`` (gold, training, clusters, conflicts,
-        missed): a frame, or with ``for_lm`` a list of records; write them with
-        ``docket.core.write_rows``."""
+        missed): a frame, or with ``for_lm`` the records to be made a chunk at a time
+        (``records()`` gives them all at once); write them with ``docket.core.write_rows``."""
         from .exports.export_kinds import export_rows
         return export_rows(self, what, test_share=test_share, seed=seed, split_by=split_by,
                            all_records=all_records, for_lm=for_lm, lm_template=lm_template)

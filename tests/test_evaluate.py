@@ -282,13 +282,14 @@ def test_export_other_and_write_export(answered: Project, tmp_path: Path, capsys
     assert {"split", "left_owner", "right_owner_name", "sim_owner"} <= set(training.columns)
     lm = cli_gold.export_other(answered, "training",
                                argparse.Namespace(test_share=0.25, seed=1, for_lm=True))
-    assert isinstance(lm, list) and len(lm) == len(gold)
+    assert len(lm.records()) == len(gold)  # made as written: no list is held
     with pytest.raises(DocketError, match="JSON lines"):
         cli_gold.write_export(lm, str(tmp_path / "lm.csv"), None)
     with pytest.raises(DocketError, match="--for-lm writes pairs"):
         cli_gold.export_other(answered, "clusters", argparse.Namespace(for_lm=True))
     cli_gold.write_export(lm, "-", None)
-    assert json.loads(capsys.readouterr().out.splitlines()[0])["pair_id"] == lm[0]["pair_id"]
+    first = json.loads(capsys.readouterr().out.splitlines()[0])
+    assert first["pair_id"] == lm.records()[0]["pair_id"]
 
 
 def test_predicted_counts_are_exact_and_shown_whole(answered: Project) -> None:

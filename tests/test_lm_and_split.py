@@ -2,8 +2,10 @@
 
 from __future__ import annotations
 
+import errno
 import json
 import re
+from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
@@ -14,7 +16,8 @@ from hypothesis import strategies as st
 
 from docket.core import DocketError, Project
 from docket.core.exports import gold_export as ge
-from docket.core.exports.lm_export import lm_records
+from docket.core.exports.exporting import write_jsonl_parts
+from docket.core.exports.lm_export import CHUNK, FOR_LM, LmRows, lm_records, lm_rows
 from docket.core.exports.lm_text import DEFAULT_TEMPLATE, LmTemplate
 from docket.core.exports.split import record_split
 from tests.gold_fixtures import check_golden, pair_ids
@@ -186,3 +189,68 @@ def test_each_prompt_holds_its_own_pairs_records(sample_project: Path) -> None:
             expected = template.fill(names, [f.left for f in card.fields],
                                      [f.right for f in card.fields])
             assert row["prompt"] == expected
+
+
+# -- written a chunk of pairs at a time ---------------------------------------------------------
+def _whole(records: list[dict]) -> str:
+    """The file as it was written before chunks: every record held, then joined at once."""
+    return "".join(json.dumps(r, ensure_ascii=False) + "\n" for r in records)
+
+
+def test_an_export_in_chunks_is_the_whole_file_byte_for_byte(tiny: Project,
+                                                             tmp_path: Path) -> None:
+    for what in FOR_LM:
+        whole = _whole(replace(lm_rows(tiny, what, test_share=0.5, seed=3), size=10**9)
+                       .records())
+        for size in (1, 2, 3):
+            rows = replace(lm_rows(tiny, what, test_share=0.5, seed=3), size=size)
+            assert max(len(c) for c in rows.chunks()) == size
+            target = tmp_path / f"{what}-{size}.jsonl"
+            assert write_jsonl_parts(rows.chunks(), str(target)) == len(rows.records())
+            assert target.read_bytes() == whole.encode("utf-8"), (what, size)
+    check_golden("for_lm.jsonl", (tmp_path / "training-2.jsonl").read_text(encoding="utf-8"))
+
+
+def test_the_demo_export_in_chunks_is_the_whole_file(sample_project: Path, tmp_path: Path,
+                                                     capsys: pytest.CaptureFixture[str]) -> None:
+    from docket.tui.cli import main
+    with Project.open(sample_project, readonly=True) as p:
+        rows = lm_rows(p, "scores")
+        n_pairs = p.connection.execute("SELECT count(*) FROM pairs").fetchone()[0]
+        assert rows.size == CHUNK and n_pairs > 2 * CHUNK  # three chunks at least
+        whole = _whole(replace(rows, size=10**9).records())
+    out = tmp_path / "scores.jsonl"
+    assert main(["export", str(sample_project), "--what", "scores", "--for-lm",
+                 "-o", str(out)]) == 0
+    assert out.read_bytes() == whole.encode("utf-8")
+    capsys.readouterr()
+    assert main(["export", str(sample_project), "--what", "scores", "--for-lm", "-o", "-"]) == 0
+    assert capsys.readouterr().out == whole
+
+
+def test_an_export_that_fails_part_way_leaves_no_half_written_file(
+        sample_project: Path, tmp_path: Path, monkeypatch: pytest.MonkeyPatch,
+        capsys: pytest.CaptureFixture[str]) -> None:
+    from docket.tui.cli import main
+    target = tmp_path / "out" / "scores.jsonl"
+    target.parent.mkdir()
+    target.write_text("the export before\n", encoding="utf-8")
+    made = LmRows._made
+    calls: list[int] = []
+
+    def failing(self: LmRows, *args: object) -> list[dict]:
+        calls.append(1)
+        if len(calls) == 2:  # the first chunk is in the temporary by now: the disk fills
+            partial = [f for f in target.parent.iterdir() if f.name.endswith(".partial")]
+            assert len(partial) == 1 and partial[0].stat().st_size > 0
+            raise OSError(errno.ENOSPC, "No space left on device")
+        return made(self, *args)  # type: ignore[arg-type]
+
+    monkeypatch.setattr(LmRows, "_made", failing)
+    capsys.readouterr()
+    assert main(["export", str(sample_project), "--what", "scores", "--for-lm",
+                 "-o", str(target)]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "disk full; nothing was written" in err[0], err
+    assert target.read_text(encoding="utf-8") == "the export before\n"
+    assert [f.name for f in target.parent.iterdir()] == ["scores.jsonl"]

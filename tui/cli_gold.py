@@ -164,18 +164,22 @@ def export(args: argparse.Namespace) -> int:
     if not (args.for_lm and args.output == "-"):
         output_format(args.output, args.format)  # a bad target fails before any work
     if args.what != "scores" or args.for_lm or args.lm_template:
+        from docket.core import write_rows
+
         from .progress import working
         with working(f"exporting {args.what}", args.output != "-"), \
                 open_project(args.project, readonly=True) as project:
             result = export_other(project, args.what, args)
+            # inside: --for-lm records are made from the open project as they are written
+            n = write_rows(result, args.output, args.format,
+                           guard=getattr(args, "formula_guard", True))
         none = {"conflicts": ": no conflicts, no gold non-match falls inside a cluster",
                 # the export is the only mention of missed matches a reader of the
                 # README meets; an empty file said nothing of how one is recorded
                 "missed": f": no missed match recorded (docket missed {args.project} add "
                           "LEFT RIGHT records a true match that no candidate pair holds)"
                 }.get(args.what, "")
-        write_export(result, args.output, args.format,
-                     guard=getattr(args, "formula_guard", True), none=none)
+        said_written(n, args.output, none)
         if args.what == "training" and "split" in getattr(result, "columns", ()):
             note = empty_side(list(result["split"]), args.test_share, args.split_by)
             if note:
@@ -214,7 +218,7 @@ def empty_side(sides: list[str], test_share: float, split_by: str) -> str | None
 
 
 def export_other(project: Any, what: str, args: argparse.Namespace) -> Any:
-    """The frame (or, with --for-lm, the list of records) that ``docket export --what``
+    """The frame (or, with --for-lm, the records to be made) that ``docket export --what``
     writes. ``args`` may carry ``test_share``, ``seed``, ``split_by``, ``for_lm``,
     ``lm_template`` and ``all_records``."""
     share = getattr(args, "test_share", None)
@@ -233,6 +237,10 @@ def write_export(result: Any, target: str, fmt: str | None, guard: bool = True,
     ends the line said when there are no rows (what their absence means)."""
     from docket.core import write_rows
     n = write_rows(result, target, fmt, guard)
+    said_written(n, target, none)
+    return n
+
+
+def said_written(n: int, target: str, none: str = "") -> None:
     if target != "-":
         print(f"wrote {many(n, 'row')} to {target}{none if not n else ''}", file=sys.stderr)
-    return n

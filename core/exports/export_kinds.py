@@ -1,6 +1,7 @@
 """``docket export --what``: from a kind of export to the rows written, and the writing.
 
-The rows are a data frame, or, for ``--for-lm``, a list of JSON-ready records (one per pair).
+The rows are a data frame, or, for ``--for-lm``, ``LmRows``: JSON-ready records (one per pair)
+made a chunk at a time as they are written.
 """
 
 from __future__ import annotations
@@ -16,15 +17,14 @@ EXPORTS = ("gold", "training", "clusters", "conflicts", "missed")
 def export_rows(project: ProjectFile, what: str, *, test_share: float = 0.2, seed: int = 0,
                 split_by: str = "record", all_records: bool = False, for_lm: bool = False,
                 lm_template: str | None = None) -> Any:
-    """The frame (or, with ``for_lm``, the list of records) of the ``what`` export."""
+    """The frame (or, with ``for_lm``, the ``LmRows``) of the ``what`` export."""
     from . import gold_export as ge
     if lm_template and not for_lm:
         raise DocketError("--lm-template shapes the --for-lm text: add --for-lm")
     if for_lm:
-        from .lm_export import lm_records
+        from .lm_export import lm_rows
         from .lm_text import LmTemplate
-        return lm_records(project, what, LmTemplate.load(lm_template), test_share, seed,
-                          split_by)
+        return lm_rows(project, what, LmTemplate.load(lm_template), test_share, seed, split_by)
     if what == "gold":
         return ge.gold_frame(project)
     if what == "training":
@@ -42,14 +42,13 @@ def export_rows(project: ProjectFile, what: str, *, test_share: float = 0.2, see
 
 def write_rows(rows: Any, target: str, fmt: str | None, guard: bool = True) -> int:
     """Write what ``export_rows`` (or ``scores_frame``) returned; the number of rows."""
-    from .exporting import output_format, write_frame
-    from .gold_export import write_jsonl
-    if isinstance(rows, list):
+    from .exporting import output_format, write_frame, write_jsonl_parts
+    from .lm_export import LmRows
+    if isinstance(rows, LmRows | list):
         kind = fmt or ("jsonl" if target == "-" else output_format(target, None))
         if kind != "jsonl":
             raise DocketError("--for-lm writes JSON lines: give a .jsonl file, or "
                               "--format jsonl")
-        write_jsonl(rows, target)
-    else:
-        write_frame(rows, target, fmt, guard)
+        return write_jsonl_parts(rows.chunks() if isinstance(rows, LmRows) else [rows], target)
+    write_frame(rows, target, fmt, guard)
     return len(rows)

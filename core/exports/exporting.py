@@ -3,10 +3,11 @@
 from __future__ import annotations
 
 import io
+import json
 import os
 import sys
 import tempfile
-from collections.abc import Callable
+from collections.abc import Callable, Iterable
 from pathlib import Path
 from typing import Any
 
@@ -79,6 +80,31 @@ def jsonl_text(frame: pd.DataFrame) -> str:
         return ""
     text = frame.to_json(orient="records", lines=True, force_ascii=False)
     return text if text.endswith("\n") else text + "\n"
+
+
+def write_jsonl_parts(parts: Iterable[list[dict[str, Any]]], target: str) -> int:
+    """JSON lines, one part of the records after another, to a file (atomically, via a
+    temporary beside it) or '-' for stdout; the number of records. A part is written before
+    the next is asked for, so only one is held at a time."""
+    n = 0
+
+    def lines(part: list[dict[str, Any]]) -> str:
+        nonlocal n
+        n += len(part)
+        return "".join(json.dumps(r, ensure_ascii=False) + "\n" for r in part)
+
+    if target == "-":
+        for part in parts:
+            to_stdout(lines(part))
+        return n
+
+    def write(tmp: Path) -> None:
+        with tmp.open("w", encoding="utf-8") as out:
+            for part in parts:
+                out.write(lines(part))
+
+    atomic_write(Path(target), write)
+    return n
 
 
 def to_stdout(text: str | bytes) -> None:

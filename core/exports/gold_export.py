@@ -9,11 +9,9 @@ keeps each record on one side by default (``split``).
 
 from __future__ import annotations
 
-import json
 from collections import Counter
 from collections.abc import Iterable
 from dataclasses import dataclass
-from pathlib import Path
 from typing import Any
 
 import numpy as np
@@ -24,7 +22,7 @@ from ..storage import store
 from ..storage.project_file import ProjectFile
 from ..types import ClusterConflict
 from . import clusters as clustering
-from .exporting import atomic_write, to_stdout
+from .exporting import write_jsonl_parts
 from .gold_detail import DETAIL_COLUMNS, details
 from .gold_supplement import supplement_entries
 from .split import split, split_of
@@ -151,11 +149,7 @@ def training_frame(project: ProjectFile, test_share: float = 0.2, seed: int = 0,
 # -- JSON lines ---------------------------------------------------------------------------------
 def write_jsonl(records: list[dict[str, Any]], target: str) -> None:
     """JSON lines to a file (atomically, via a temporary beside it) or '-' for stdout."""
-    lines = "".join(json.dumps(r, ensure_ascii=False) + "\n" for r in records)
-    if target == "-":
-        to_stdout(lines)
-        return
-    atomic_write(Path(target), lambda tmp: tmp.write_text(lines, encoding="utf-8"))
+    write_jsonl_parts([records], target)
 
 
 # -- clusters and conflicts ---------------------------------------------------------------------
