@@ -129,3 +129,5 @@ async def test_the_candidates_list_gives_values_the_room_the_box_has(review_samp
             assert prompts and all(len(p.plain.splitlines()) == lines for p in prompts)
             box = results.scrollable_content_region.width
             assert all(cell_len(line) <= box for p in prompts for line in p.plain.splitlines())
+            # more than the owner's name, which many candidates of one person share
+            assert all(p.plain.count(" · ") >= 2 for p in prompts)

@@ -106,9 +106,10 @@ def literal_text(value: str | None, style: StyleType = "", escape_style: StyleTy
     return text
 
 
-def one_line(value: str | None, width: int, escape_style: StyleType = "bold") -> Text:
+def one_line(value: str | None, width: int, escape_style: StyleType = "bold",
+             missing: str = "— missing —") -> Text:
     """A value squeezed onto one line of at most ``width`` cells (for lists and titles)."""
-    text = literal_text(value, escape_style=escape_style, cap=max(width * 2, 8))
+    text = literal_text(value, escape_style=escape_style, cap=max(width * 2, 8), missing=missing)
     text.no_wrap = True
     text.truncate(width, overflow="ellipsis")
     return text

@@ -18,6 +18,7 @@ from docket.core.project import Project
 from .. import literal
 from ..figures import many, probability_text
 from ..masking import Mask, masked
+from . import candidate_lines
 
 LIMIT = 50
 VALUE_CELLS = 18  # the least room for each of the two values beside the ids; with less,
@@ -32,6 +33,7 @@ class Group:
 
     heading: str
     pair_ids: tuple[int, ...]
+    record: str | None = None  # the record every pair of the group names, if one does
 
 
 class PairPicker(ModalScreen[int | None]):
@@ -81,12 +83,32 @@ class PairPicker(ModalScreen[int | None]):
         results.clear_options()
         options: list[Option] = []
         for group in groups:
+            if group.record is not None:
+                options += self._record_group(group, group.record)
+                continue
             options.append(Option(Text(group.heading, "bold"), disabled=True))
             options += [Option(self._line(pid), id=str(pid)) for pid in group.pair_ids[:LIMIT]]
         results.add_options(options)
         first = next((i for i, o in enumerate(options) if not o.disabled), None)
         if first is not None:
             results.highlighted = first
+
+    def _record_group(self, group: Group, record: str) -> list[Option]:
+        """One record's candidates: that record's values under the heading, and each other
+        record's values at the same column."""
+        cards = [self.project.card(pid) for pid in group.pair_ids[:LIMIT]]
+        if not cards:
+            return [Option(Text(group.heading, "bold"), disabled=True)]
+        at = candidate_lines.layout([c.right_id if c.left_id == record else c.left_id
+                                     for c in cards], self._room(0))
+        out = [Option(candidate_lines.record_line(group.heading, cards[0], record, at,
+                                                  self.mask), disabled=True)]
+        for card in cards:
+            mine = self.project.current_label(card.pair_id, self.reviewer)
+            out.append(Option(candidate_lines.other_line(
+                card, record, at, self.mask, None if mine is None else mine.label),
+                id=str(card.pair_id)))
+        return out
 
     def _line(self, pair_id: int) -> Text:
         card = self.project.card(pair_id)
@@ -113,12 +135,15 @@ class PairPicker(ModalScreen[int | None]):
             text.append(f"  your label: {mine.label}", "italic")
         return text
 
+    def _room(self, used: int) -> int:
+        """What the box leaves beside ``used`` cells of a line."""
+        return min(BOX_MAX, int(self.app.size.width * BOX_SHARE)) - BOX_INNER - used
+
     def _value_cells(self, used: int) -> int:
         """Room for each value: what the box leaves beside ``used`` cells. Product
         titles cut at 18 cells all read 'Ashgrove silent f…' on a 120-column terminal with 40
         cells of the line empty, and a found word was seldom in sight."""
-        box = min(BOX_MAX, int(self.app.size.width * BOX_SHARE)) - BOX_INNER
-        return (box - used) // 2
+        return self._room(used) // 2
 
     def on_option_list_option_selected(self, event: OptionList.OptionSelected) -> None:
         event.stop()

@@ -70,7 +70,7 @@ class ReviewMoves:
             others = tuple(q.pair_id for q in app.project.candidates_of(side, rid)
                            if q.pair_id != self.card.pair_id)
             groups.append(Group(f"{name} record: {many(len(others), 'other candidate')}",
-                                others))
+                                others, rid))
         self.app.push_screen(PairPicker(app.project, app.reviewer, app.mask,
                                         title="other candidates", search=False,
                                         groups=tuple(groups)), self._open_aside)
