@@ -1,8 +1,11 @@
-"""Helpers for the team tests: a tiny project, and the CLI."""
+"""Helpers for the team tests: a tiny project (and its fixtures), and the CLI."""
 
 from __future__ import annotations
 
+import sqlite3
 from pathlib import Path
+
+import pytest
 
 from docket.core import NewProject, Project
 from docket.tui import cli
@@ -37,3 +40,20 @@ def tiny_project(folder: Path, name: str = "tiny.docket", left: str = LEFT,
 def run(argv: list[str]) -> int:
     """``docket ARGV`` as the installed command runs it."""
     return cli.main(argv)
+
+
+@pytest.fixture(scope="module")
+def tiny_file(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    return tiny_project(tmp_path_factory.mktemp("tiny"))
+
+
+@pytest.fixture
+def tiny(tiny_file: Path, tmp_path: Path) -> Path:
+    copy = tmp_path / "t.docket"
+    copy.write_bytes(tiny_file.read_bytes())
+    return copy
+
+
+def pair_ids(path: Path) -> list[int]:
+    with sqlite3.connect(path) as conn:
+        return [r[0] for r in conn.execute("SELECT pair_id FROM pairs ORDER BY pair_id")]

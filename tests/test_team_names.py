@@ -1,0 +1,119 @@
+"""One name per person: a name with control characters refused by every command that
+registers one, either Unicode form (NFC, NFD) one reviewer, a known name in another letter
+case refused naming the known one, and an older file's names kept as they were stored."""
+
+from __future__ import annotations
+
+import sqlite3
+import unicodedata
+from pathlib import Path
+
+import pytest
+
+from docket.core import DocketError, Project
+from docket.core.reviewing.team import add_reviewer, list_reviewers
+from docket.tui.review_app import make_app
+
+from . import team_support
+from .team_support import pair_ids, run
+
+# the tiny project's fixtures (team_support.py), under the names the tests ask for
+tiny_file, tiny = team_support.tiny_file, team_support.tiny
+
+NFC = unicodedata.normalize("NFC", "José")
+NFD = unicodedata.normalize("NFD", "José")
+
+
+@pytest.mark.parametrize("name", ["ines\x1b[31m", "a\nb", "rtl\u202e"])
+def test_every_command_that_registers_a_name_refuses_control_characters(
+        name: str, tiny: Path, tmp_path: Path, capsys) -> None:
+    labels = tmp_path / "labels.csv"
+    labels.write_text(f"pair_id,label\n{pair_ids(tiny)[0]},match\n", encoding="utf-8")
+    before = tiny.read_bytes()
+    for argv in (["next", str(tiny), "--reviewer", name, "--claim"],
+                 ["label", str(tiny), "--reviewer", name, "--from", str(labels)],
+                 ["reviewers", str(tiny), "add", name]):
+        assert run(argv) == 2
+        err = capsys.readouterr().err.strip()
+        assert "holds control characters" in err and "\n" not in err, err
+    assert tiny.read_bytes() == before
+
+
+def _names(path: Path) -> list[str]:
+    with Project.open(path) as p:
+        return [r["name"] for r in list_reviewers(p)]
+
+
+def test_a_name_in_another_case_is_refused_by_every_command_naming_the_known_one(
+        tiny: Path, tmp_path: Path, capsys) -> None:
+    assert run(["reviewers", str(tiny), "add", "Ana"]) == 0
+    capsys.readouterr()
+    labels = tmp_path / "labels.csv"
+    labels.write_text(f"pair_id,label\n{pair_ids(tiny)[0]},match\n", encoding="utf-8")
+    before = tiny.read_bytes()
+    for argv in (["next", str(tiny), "--reviewer", "ana", "--claim"],
+                 ["label", str(tiny), "--reviewer", "ANA", "--from", str(labels)],
+                 ["reviewers", str(tiny), "add", "ana", "--role", "adjudicator"]):
+        assert run(argv) == 2, argv
+        err = capsys.readouterr().err.strip()
+        assert "differs only in letter case from 'Ana'" in err and "use 'Ana'" in err, err
+        assert "\n" not in err and "Traceback" not in err
+    assert tiny.read_bytes() == before
+    with Project.open(tiny) as p:
+        with pytest.raises(DocketError, match="'Ana'"):
+            p.decide(pair_ids(tiny)[0], "aNa", "match")
+        with pytest.raises(DocketError, match="'Ana'"):
+            make_app(tiny, "ana")
+    assert _names(tiny) == ["Ana"]
+
+
+def test_names_in_either_unicode_form_are_one_reviewer(tiny: Path) -> None:
+    assert NFC != NFD
+    with Project.open(tiny) as p:
+        assert add_reviewer(p, NFD).name == NFC
+        assert p.ensure_reviewer(NFC) == NFC
+        assert p.decide(pair_ids(tiny)[0], NFD, "match").reviewer == NFC
+        assert p.current_label(pair_ids(tiny)[0], NFC) is not None
+    assert _names(tiny) == [NFC]
+
+
+def test_a_file_written_before_names_were_normalised_keeps_its_names(tiny: Path) -> None:
+    # an older file holds a name as it was typed (here NFD) and both "Ana" and "ana"
+    with sqlite3.connect(tiny) as conn:
+        conn.executemany("INSERT INTO reviewers (name, role, added_at) VALUES (?, ?, ?)",
+                         [(NFD, "adjudicator", "2026-01-01T00:00:00"),
+                          ("Ana", "reviewer", "2026-01-01T00:00:00"),
+                          ("ana", "reviewer", "2026-01-01T00:00:00")])
+    first, second = pair_ids(tiny)[:2]
+    with Project.open(tiny) as p:
+        assert p.ensure_reviewer(NFC) == NFD  # typed either way, it is the stored name
+        assert p.decide(first, NFC, "match").reviewer == NFD
+        assert p.require_adjudicator(NFC) == NFD
+        assert p.decide(second, "Ana", "match").reviewer == "Ana"  # an exact name is taken
+        assert p.decide(second, "ana", "non-match").reviewer == "ana"
+        with pytest.raises(DocketError, match="letter case"):
+            p.ensure_reviewer("ANA")
+    assert sorted(_names(tiny)) == sorted([NFD, "Ana", "ana"])
+
+
+def test_adjudicate_under_another_case_names_the_adjudicator(tiny: Path, capsys) -> None:
+    assert run(["reviewers", str(tiny), "add", "Ines", "--role", "adjudicator"]) == 0
+    capsys.readouterr()
+    with Project.open(tiny) as p:
+        assert p.require_adjudicator(" Ines ") == "Ines"
+        with pytest.raises(DocketError, match="use 'Ines'"):
+            p.require_adjudicator("ines")
+
+
+def test_next_without_claim_reads_the_name_as_the_project_keeps_it(tiny: Path, capsys) -> None:
+    with sqlite3.connect(tiny) as conn:  # an older file's name, as it was typed there
+        conn.execute("INSERT INTO reviewers (name, role, added_at) VALUES (?, 'reviewer', ?)",
+                     (NFD, "2026-01-01T00:00:00"))
+    first = pair_ids(tiny)[0]
+    with Project.open(tiny) as p:
+        p.decide(first, NFD, "match")
+        assert first not in [i.pair_id for i in p.next_pairs(NFC, 50)]  # their own work known
+        with pytest.raises(DocketError, match="letter case"):
+            p.next_pairs(NFC.upper(), 1)
+    assert run(["next", str(tiny), "--reviewer", "JOSÉ"]) == 2
+    assert "letter case" in capsys.readouterr().err
