@@ -135,3 +135,43 @@ def test_blocking_reach_reads_as_docket_evaluate_says_it(team) -> None:
                 not in screen)
         assert ("is not measured" in screen) != measured
         assert ("1 recorded with docket missed" in screen) == measured
+
+
+@pilot_test
+async def test_plot_legends_sit_under_the_plots_not_over_the_data(team, team_app):
+    # the plotting library drew each legend in the plot's top-left corner: over the tallest
+    # bar, and at 80 columns over the precision-recall curves where precision is high
+    from rich.cells import cell_len
+    from textual_plotext import PlotextPlot
+
+    from docket.tui.widgets.plot_legend import PlotLegend
+
+    path, _ = team
+    for size in ((80, 24), SIZE):
+        app = team_app(path, start="quality")
+        async with app.run_test(size=size) as pilot:
+            await settle(pilot)
+            await press(pilot, "1")
+            for name, labels in (("score", ("gold non-match (", "gold match (")),
+                                 ("pr", ("design-based", "naive (biased)", "threshold "))):
+                plot = quality(app).query_one(f"#{name}-plot", PlotextPlot)
+                legend = quality(app).query_one(f"#{name}-legend", PlotLegend)
+                drawn = plot.render().plain
+                shown = legend.render().plain
+                assert all(label not in drawn and label in shown for label in labels), size
+                assert legend.region.y >= plot.region.bottom and legend.region.height >= 1
+                assert all(cell_len(line) <= legend.content_size.width
+                           for line in shown.splitlines()), (size, shown)
+
+
+def test_a_legend_wraps_between_series_never_inside_one() -> None:
+    from docket.tui.widgets.plot_legend import Series, legend_lines
+
+    series = [Series("design-based", (0, 0, 0), "⠒⠒"), Series("naive (biased)", (0, 0, 0), "••"),
+              Series("threshold 0.5", (0, 0, 0), "x")]
+    assert legend_lines(series, 80).plain == \
+        "⠒⠒ design-based   •• naive (biased)   x threshold 0.5"
+    assert legend_lines(series, 36).plain.splitlines() == \
+        ["⠒⠒ design-based   •• naive (biased)", "x threshold 0.5"]
+    assert legend_lines(series, 10).plain.splitlines() == \
+        ["⠒⠒ design-based", "•• naive (biased)", "x threshold 0.5"]

@@ -14,7 +14,7 @@ from typing import ClassVar
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
-from textual.containers import Horizontal, VerticalScroll
+from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.coordinate import Coordinate
 from textual.widgets import DataTable, Static, TabbedContent, TabPane
 from textual.worker import Worker, WorkerState
@@ -24,6 +24,7 @@ from .. import literal
 from ..diff import PLAIN, Palette
 from ..figures import labelled_text, many
 from ..widgets.key_bar import KeyBar
+from ..widgets.plot_legend import PlotLegend, Series
 from .conflict import ConflictScreen
 from .quality_data import QualityData, load_quality
 from .quality_table import NARROW_BELOW, fill_threshold_table, notes_text
@@ -31,6 +32,12 @@ from .team_base import TeamScreen
 from .team_help import QUALITY
 
 BINS = 20
+# each series: its colour, the plot's marker for it, and that marker as the legend shows it;
+# the marks differ as well as the colours, so that the legend reads without colour
+HISTOGRAMS = {"non-match": ((0, 130, 200), "sd", "██"), "match": ((230, 25, 75), "▒", "▒▒")}
+CURVES = {"design-based": ((0, 130, 200), "braille", "⠒⠒"),
+          "naive (biased)": ((245, 130, 48), "dot", "••"),
+          "threshold": ((230, 25, 75), "x", "x")}
 
 
 class QualityScreen(TeamScreen):
@@ -65,8 +72,12 @@ class QualityScreen(TeamScreen):
         yield Static(id="quality-head")
         with TabbedContent(id="quality-tabs", initial="tab-thresholds"):
             with TabPane("plots", id="tab-plots"), Horizontal(id="quality-plots"):
-                yield PlotextPlot(id="score-plot")
-                yield PlotextPlot(id="pr-plot")
+                with Vertical(classes="quality-plot"):
+                    yield PlotextPlot(id="score-plot")
+                    yield PlotLegend(id="score-legend", classes="plot-legend")
+                with Vertical(classes="quality-plot"):
+                    yield PlotextPlot(id="pr-plot")
+                    yield PlotLegend(id="pr-legend", classes="plot-legend")
             with TabPane("thresholds", id="tab-thresholds"), VerticalScroll():
                 yield DataTable(id="threshold-table", cursor_type="row", zebra_stripes=True)
                 yield Static(id="threshold-notes")
@@ -143,12 +154,15 @@ class QualityScreen(TeamScreen):
         plt.title("score of gold-labelled pairs, by gold label")
         plt.xlabel("model score (match probability)")
         plt.ylabel("gold-labelled pairs")
-        for label in ("non-match", "match"):
+        shown = []
+        for label, (color, marker, mark) in HISTOGRAMS.items():
             values = data.scores.get(label, [])
             if values:
-                plt.hist(values, bins=BINS, label=f"gold {label} ({len(values):,})")
+                plt.hist(values, bins=BINS, marker=marker, color=color)
+                shown.append(Series(f"gold {label} ({len(values):,})", color, mark))
         plt.xlim(0, 1)
         scores.refresh()
+        self.query_one("#score-legend", PlotLegend).show(shown)
         pr = self.query_one("#pr-plot", PlotextPlot)
         plt = pr.plt
         plt.clear_figure()
@@ -159,6 +173,7 @@ class QualityScreen(TeamScreen):
         plt.ylim(0, 1)
         plt.xticks(ticks)
         plt.yticks(ticks)
+        shown = []
         if data.curve is None:
             plt.title("precision-recall: no estimates yet")
         else:
@@ -169,13 +184,18 @@ class QualityScreen(TeamScreen):
                           if r["recall"]["value"] is not None and
                           r["precision"]["value"] is not None]
                 if points:
-                    plt.plot([x for x, _ in points], [y for _, y in points], label=name,
-                             marker="braille")
+                    color, marker, mark = CURVES[name]
+                    plt.plot([x for x, _ in points], [y for _, y in points], marker=marker,
+                             color=color)
+                    shown.append(Series(name, color, mark))
             at = data.report.at_threshold if data.report else None
             if at and at["recall"]["value"] is not None and at["precision"]["value"] is not None:
-                plt.scatter([at["recall"]["value"]], [at["precision"]["value"]], marker="x",
-                            label=f"threshold {at['threshold']:g}")
+                color, marker, mark = CURVES["threshold"]
+                plt.scatter([at["recall"]["value"]], [at["precision"]["value"]], marker=marker,
+                            color=color)
+                shown.append(Series(f"threshold {at['threshold']:g}", color, mark))
         pr.refresh()
+        self.query_one("#pr-legend", PlotLegend).show(shown)
 
     def _clusters(self, data: QualityData) -> None:
         p = self.palette
