@@ -33,7 +33,9 @@ def flat_note(fs: dict) -> str | None:
     if fs.get("labels_used") or len(fs["fields"]) == 1:  # one field: one_field_note says it
         return None
     shrink = fs.get("shrink", 1.0)
-    biggest = max((abs(shrink * math.log2(m / u)) for ms, us in zip(fs["m"], fs["u"], strict=True)
+    factors = fs.get("factors") or [1.0] * len(fs["m"])
+    biggest = max((abs(shrink * c * math.log2(m / u))
+                   for ms, us, c in zip(fs["m"], fs["u"], factors, strict=True)
                    for m, u in zip(ms, us, strict=True) if m > 0 and u > 0), default=0.0)
     if biggest >= 1.0:  # some level doubles or halves the odds
         return None
@@ -72,6 +74,11 @@ def how_fitted(fs: dict) -> list[str]:
         out.append(f"field weights times {fs['shrink']:.2f}, fitted to EM's view of the "
                    "candidates: fields that agree together among non-matches are not counted "
                    "as independent evidence")
+    read_together = [c for c in fs.get("factors", []) if c < 1.0]
+    if fs.get("together") and read_together:
+        out.append(f"{', '.join(fs['together'])} read together, as one home: their weights "
+                   f"times {min(read_together):.2f}, so that agreeing on all of them counts as "
+                   "agreeing on one home (--together names others, or none)")
     if fs.get("frequent"):
         out.append("frequent values get their own exact level: " + ", ".join(
             f"{f} ({len(v):,} value{'' if len(v) == 1 else 's'})"

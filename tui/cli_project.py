@@ -15,6 +15,13 @@ from .figures import ratio_text as _ratio
 from .terminal import json_text, padded, shown
 
 
+def parse_together(value: str | None) -> list[str] | None:
+    """``--together a,b,c`` as a list of field names (None: let docket find them)."""
+    if value is None:
+        return None
+    return [name.strip() for name in value.split(",") if name.strip()]
+
+
 def print_built(built: Any) -> None:
     r = built.blocking
     how = "chosen from the data" if r.auto else "given"
@@ -87,6 +94,7 @@ def new(args: argparse.Namespace) -> int:
         right=Path(args.right) if args.right else None, id_column=args.id_column,
         left_id=args.left_id, right_id=args.right_id, column_map=parse_map(args.map),
         kinds=parse_kinds(args.field), keep_placeholders=args.keep_placeholders,
+        together=parse_together(args.together),
         pairs_file=Path(args.pairs) if args.pairs else None,
         rules=args.block or [], audit=args.audit, overlap=args.overlap,
         overlap_reviewers=args.overlap_reviewers,
@@ -174,6 +182,10 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--keep-placeholders", action="store_true",
                    help="compare values such as 'N/A', 'unknown', '-' or 'XX1 1XX' as written "
                         "(by default, one that fills 1%% or more of a column is missing)")
+    p.add_argument("--together", metavar="COLS",
+                   help="fields that say where a record lives, read as one so that one home "
+                        "counts once: comma-separated, or 'none' (by default the address, "
+                        "town, postcode and phone columns, found by name)")
     p.add_argument("--pairs", metavar="PATH",
                    help="candidate pairs from elsewhere: left id, right id (CSV, Parquet, or "
                         "a folder of Parquet parts of any size, read in batches)")

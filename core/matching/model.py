@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from . import together as together_mod
 from .dependence import fit_shrink
 
 SMOOTH = 0.5  # pseudo-count per level, so no level has m or u of exactly zero
@@ -36,6 +37,9 @@ class FSModel:
     frequent: dict[str, list] = field(default_factory=dict)  # field -> values "exact, common"
     population: int = 0  # all possible record pairs (the prior is a share of these)
     shrink: float = 1.0  # every field's weight is log2(m/u) times this (see dependence.py)
+    together: list[str] = field(default_factory=list)  # fields read as one (together.py)
+    joint_u: float = 0.0  # chance that random records agree on all of ``together``
+    factors: list[float] = field(default_factory=list)  # per field (together.py); [] = all 1
 
     def log_odds_table(self) -> tuple[float, list[np.ndarray]]:
         """Natural log-odds before the fields, and each field's contribution per level."""
@@ -45,8 +49,9 @@ class FSModel:
     def weights(self) -> list[np.ndarray]:
         """log2(m/u) per field and level, times the shrink factor; the missing level weighs 0."""
         out = []
-        for m, u in zip(self.m, self.u, strict=True):
-            w = self.shrink * np.log2(np.asarray(m) / np.asarray(u))
+        factors = self.factors or [1.0] * len(self.m)
+        for m, u, c in zip(self.m, self.u, factors, strict=True):
+            w = self.shrink * c * np.log2(np.asarray(m) / np.asarray(u))
             out.append(np.append(w, 0.0))
         return out
 
@@ -70,7 +75,8 @@ class FSModel:
                 "labels_used": self.labels_used, "u_source": self.u_source,
                 "pooled": self.pooled, "sampled_pairs": self.sampled_pairs,
                 "frequent": self.frequent, "population": self.population,
-                "shrink": self.shrink}
+                "shrink": self.shrink, "together": self.together, "joint_u": self.joint_u,
+                "factors": self.factors}
 
     @classmethod
     def from_dict(cls, d: dict) -> FSModel:
@@ -78,7 +84,8 @@ class FSModel:
                    d.get("iterations", 0), d.get("labels_used", 0),
                    d.get("u_source", "candidates"), d.get("pooled", []),
                    d.get("sampled_pairs", 0), d.get("frequent", {}), d.get("population", 0),
-                   d.get("shrink", 1.0))
+                   d.get("shrink", 1.0), list(d.get("together", [])),
+                   float(d.get("joint_u", 0.0)), list(d.get("factors", [])))
 
 
 def posterior(weight: np.ndarray | float, prior: float) -> np.ndarray:
@@ -95,7 +102,8 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
            fields: list[str], matches: np.ndarray | None = None,
            non_matches: np.ndarray | None = None, max_iter: int = EM_ROUNDS, tol: float = EM_TOL,
            start: FSModel | None = None, u_random: list[np.ndarray] | None = None,
-           population: float | None = None) -> FSModel:
+           population: float | None = None, together: list[str] | None = None,
+           joint_u: float = 0.0) -> FSModel:
     """EM over patterns; ``matches``/``non_matches`` count labelled pairs per pattern.
 
     Labelled pairs keep their class in every E-step (semi-supervised EM). EM over candidates
@@ -106,8 +114,10 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
     that agreement on a blocked field counts as the evidence it is; the summed weights are then
     shrunk by one factor fitted to EM's own view of the candidates (:mod:`dependence`). Levels
     are kept in order (a better level never weighs less than a worse one: pool adjacent
-    violators). The fit is a pure function of its inputs, so a refit on the same data gives the
-    same parameters.
+    violators). With ``together`` (fields that say where a record lives) and ``joint_u`` (the
+    chance of agreeing on all of them), EM reads those fields as one column and their weights
+    are scaled so that one home counts once (:mod:`together`). The fit is a pure function of
+    its inputs, so a refit on the same data gives the same parameters.
     """
     patterns = np.asarray(patterns, dtype=np.int64)
     counts = np.asarray(counts, dtype=float)
@@ -115,11 +125,18 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
     lab_n = np.zeros(len(counts)) if non_matches is None else np.asarray(non_matches, dtype=float)
     free = counts - lab_m - lab_n
     n_lv = [len(names) - 1 for names in level_names]
+    # EM reads the fields of one home as one column, or its classes become "same home" and
+    # "not": housemates agree on four fields and disagree on two (together.py)
+    members = [fields.index(n) for n in (together or []) if n in fields]
+    seen, seen_names = patterns, level_names
+    if len(members) >= 2 and start is None:
+        seen, seen_names = together_mod.composite(patterns, level_names, members)
+    seen_lv = [len(names) - 1 for names in seen_names]
     if start is None:
-        m = [_initial_m(k) for k in n_lv]
+        m = [_initial_m(k) for k in seen_lv]
         u = []
-        for f, k in enumerate(n_lv):
-            c = _level_counts(patterns, counts, k, f) + SMOOTH
+        for f, k in enumerate(seen_lv):
+            c = _level_counts(seen, counts, k, f) + SMOOTH
             u.append(c / c.sum())
         prior = 0.1
     else:
@@ -128,23 +145,20 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
         prior = start.prior
     it = 0
     for it in range(1, max_iter + 1):  # noqa: B007 - the count is reported
-        model = FSModel(fields, level_names, [list(x) for x in m], [list(x) for x in u], prior)
-        g = model.probability(patterns)
-        wm = free * g + lab_m
-        wu = free * (1.0 - g) + lab_n
-        new_m, new_u = [], []
-        for f, k in enumerate(n_lv):
-            cm = _level_counts(patterns, wm, k, f) + SMOOTH
-            cu = _level_counts(patterns, wu, k, f) + SMOOTH
-            new_m.append(cm / cm.sum())
-            new_u.append(cu / cu.sum())
-        new_prior = float(np.clip(wm.sum() / counts.sum(), 1e-6, 1 - 1e-6))
+        g = FSModel(fields, seen_names, [list(x) for x in m], [list(x) for x in u],
+                    prior).probability(seen)
+        new_m, new_u, new_prior = _m_step(seen, seen_lv, free * g + lab_m,
+                                          free * (1.0 - g) + lab_n)
         delta = max(abs(new_prior - prior),
                     *(float(np.max(np.abs(a - b))) for a, b in zip(new_m, m, strict=True)),
                     *(float(np.max(np.abs(a - b))) for a, b in zip(new_u, u, strict=True)))
         m, u, prior = new_m, new_u, new_prior
         if delta < tol:
             break
+    if seen is not patterns:  # every field's own m and u, from EM's view of each pattern
+        g = FSModel(fields, seen_names, [list(x) for x in m], [list(x) for x in u],
+                    prior).probability(seen)
+        m, u, prior = _m_step(patterns, n_lv, free * g + lab_m, free * (1.0 - g) + lab_n)
     model = _oriented(FSModel(fields, level_names, [list(x) for x in m], [list(x) for x in u],
                               prior, it, int(lab_m.sum() + lab_n.sum())))
     m = [np.asarray(x) for x in model.m]
@@ -160,6 +174,9 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
     out = FSModel(fields, level_names, [list(map(float, x)) for x in m],
                   [list(map(float, x)) for x in u], prior, it, model.labels_used, source,
                   pooled)
+    if source == "random pairs" and together:
+        out.together, out.joint_u = list(together), float(joint_u)
+        out.factors = together_mod.factors(fields, level_names, m, u, out.together, joint_u)
     if source == "random pairs":
         # EM's share of matches per pattern among the candidates, labels as they are
         share = (free * model.probability(patterns) + lab_m) / np.maximum(counts, 1e-12)
@@ -168,6 +185,19 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
         out.shrink, base = fit_shrink(fields_sum, base, share, counts)
         out.prior = float(np.clip(1.0 / (1.0 + math.exp(-base)), 1e-12, 1 - 1e-6))
     return out
+
+
+def _m_step(patterns: np.ndarray, n_lv: list[int], wm: np.ndarray, wu: np.ndarray
+            ) -> tuple[list[np.ndarray], list[np.ndarray], float]:
+    """m and u per field from pairs weighted by how much each is a match (or not)."""
+    new_m, new_u = [], []
+    for f, k in enumerate(n_lv):
+        cm = _level_counts(patterns, wm, k, f) + SMOOTH
+        cu = _level_counts(patterns, wu, k, f) + SMOOTH
+        new_m.append(cm / cm.sum())
+        new_u.append(cu / cu.sum())
+    total = wm.sum() + wu.sum()
+    return new_m, new_u, float(np.clip(wm.sum() / max(total, 1e-300), 1e-6, 1 - 1e-6))
 
 
 def monotone_m(m: np.ndarray, u: np.ndarray) -> np.ndarray:
@@ -216,4 +246,5 @@ def _oriented(model: FSModel) -> FSModel:
         return model
     return FSModel(model.fields, model.level_names, model.u, model.m, 1.0 - model.prior,
                    model.iterations, model.labels_used, model.u_source, model.pooled,
-                   model.sampled_pairs, model.frequent, model.population, model.shrink)
+                   model.sampled_pairs, model.frequent, model.population, model.shrink,
+                   model.together, model.joint_u, model.factors)

@@ -13,7 +13,7 @@ field's average become the level "exact, common"; the others "exact, rare".
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
@@ -21,6 +21,7 @@ import pandas as pd
 from ..types import FieldSpec
 from . import compare, scoring
 from .compare import MISSING, level_names
+from .together import joint_key
 
 SAMPLE_PAIRS = 100_000
 SMOOTH = 0.5
@@ -37,6 +38,8 @@ class Baseline:
     level_names: list[list[str]]
     frequent: dict[str, list]
     sampled: int
+    together: list[str] = field(default_factory=list)  # fields read as one (together.py)
+    joint_u: float = 0.0  # P(two random records agree on every field of ``together``)
 
 
 def sample_pairs(n_left: int, n_right: int, dedupe: bool, n: int, seed: int
@@ -51,7 +54,7 @@ def sample_pairs(n_left: int, n_right: int, dedupe: bool, n: int, seed: int
     return np.minimum(li, ri), np.maximum(li, ri)
 
 
-def _chance_agreement(left: np.ndarray, right: np.ndarray, dedupe: bool) -> pd.Series:
+def _chance_agreement(left: np.ndarray, right: np.ndarray | None, dedupe: bool) -> pd.Series:
     """P(two random records, one from each side, both hold value v), per value."""
     lc = pd.Series(left, dtype=object).dropna().value_counts()
     if dedupe:
@@ -100,8 +103,10 @@ def names_with_frequent(fields: list[FieldSpec], frequent: dict[str, list]) -> l
 def baseline(fields: list[FieldSpec], lnorm: dict[str, np.ndarray],
              rnorm: dict[str, np.ndarray], n_left: int, n_right: int, dedupe: bool,
              seed: int, n: int = SAMPLE_PAIRS,
-             prepared: dict[str, compare.Prepared] | None = None) -> Baseline:
-    """Measure u on a random sample of all pairs; exact levels from value frequencies."""
+             prepared: dict[str, compare.Prepared] | None = None,
+             together: list[str] | None = None) -> Baseline:
+    """Measure u on a random sample of all pairs; exact levels from value frequencies, and
+    the chance of agreeing on every field of ``together`` at once."""
     # counted once per field: the value counts were a fifth of a large build's fixed cost
     chances = {f.name: _chance_agreement(lnorm[f.name], rnorm[f.name], dedupe) for f in fields}
     frequent = frequent_values(fields, lnorm, rnorm, dedupe, chances)
@@ -127,4 +132,8 @@ def baseline(fields: list[FieldSpec], lnorm: dict[str, np.ndarray],
         floor = SMOOTH / max(1.0, float(possible))
         u.append(np.concatenate([np.maximum(exact, floor), rest]))
         u[-1] = u[-1] / u[-1].sum()
-    return Baseline(u, names, frequent, len(li))
+    joint = 0.0
+    if together:
+        right = None if dedupe else joint_key(rnorm, together)  # one table: one side
+        joint = float(_chance_agreement(joint_key(lnorm, together), right, dedupe).sum())
+    return Baseline(u, names, frequent, len(li), list(together or []), joint)

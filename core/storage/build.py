@@ -18,7 +18,7 @@ from typing import Any
 import numpy as np
 
 from ..errors import Cancelled, DocketError
-from ..matching import decision_rule, random_pairs, scoring
+from ..matching import decision_rule, random_pairs, scoring, together
 from ..matching.explain import LogOddsTable
 from ..matching.model import FSModel, fit_em
 from ..ordering import queue, sampling
@@ -53,6 +53,7 @@ class NewProject:
     column_map: dict[str, str] = field(default_factory=dict)
     kinds: dict[str, str] = field(default_factory=dict)
     keep_placeholders: bool = False  # compare 'N/A', 'XX1 1XX' as written, not as missing
+    together: list[str] | None = None  # fields read as one home (None: found by name; ["none"])
     pairs_file: Path | None = None
     rules: list[str] = field(default_factory=list)
     audit: int | None = None
@@ -178,7 +179,8 @@ def build(spec: NewProject, progress: Progress | None = None,
         n_l, width = len(left), width_of(left, right)
         prepared = scoring.prepare(fields, lnorm, rnorm)
         base = random_pairs.baseline(fields, lnorm, rnorm, n_l, width, right is None,
-                                     spec.seed + 7, prepared=prepared)
+                                     spec.seed + 7, prepared=prepared,
+                                     together=together.choose_group(fields, spec.together))
         scorer = ChunkScorer(fields, lnorm, rnorm, width, base.frequent, prepared)
         check_room([f.name for f in fields], scorer.radix, str(left.path))
         codes, counts = engine.score(scorer, lambda d, t: step("comparing", d, t))
@@ -186,7 +188,8 @@ def build(spec: NewProject, progress: Progress | None = None,
         patterns = levels_of(codes, scorer.radix)
         possible = possible_pairs(left, right)
         model = fit_em(patterns, counts, base.level_names, [f.name for f in fields],
-                       u_random=base.u, population=possible)
+                       u_random=base.u, population=possible, together=base.together,
+                       joint_u=base.joint_u)
         model.population = possible
         model.sampled_pairs = base.sampled
         model.frequent = base.frequent

@@ -111,7 +111,8 @@ def refit(conn: sqlite3.Connection, labels: dict[int, int], mark: int | None = N
         m = np.bincount(lab_pat[mask], weights=lab_y[mask], minlength=len(counts))
         n = np.bincount(lab_pat[mask], weights=1 - lab_y[mask], minlength=len(counts))
         fitted = fit_em(patterns, counts, base.level_names, base.fields, m, n,
-                        u_random=u_random, population=base.population)
+                        u_random=u_random, population=base.population,
+                        together=base.together, joint_u=base.joint_u)
         fitted.sampled_pairs, fitted.frequent = base.sampled_pairs, base.frequent
         fitted.population = base.population
         return fitted

@@ -1,0 +1,155 @@
+"""Fields that say where a record lives are read together: one home counts once."""
+
+from __future__ import annotations
+
+import itertools
+import math
+import random
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from docket.core import DocketError, NewProject, Project
+from docket.core.matching import random_pairs, together
+from docket.core.matching.explain import LogOddsTable
+from docket.core.matching.model import FSModel
+from docket.core.types import FieldSpec
+
+SYLLABLES = ["ka", "lo", "mi", "ren", "tho", "vex", "bri", "sul", "dar", "nem", "pol", "zit"]
+
+
+def _spec(name: str, kind: str = "text") -> FieldSpec:
+    return FieldSpec(name, name, name, kind)
+
+
+def test_the_group_is_found_by_name_and_can_be_named_or_turned_off() -> None:
+    fields = [_spec("given_name", "name"), _spec("family_name", "name"), _spec("dob", "date"),
+              _spec("street"), _spec("Town"), _spec("post_code", "code"),
+              _spec("home_phone", "code"), _spec("mobile", "code"), _spec("email", "code")]
+    assert together.choose_group(fields, None) == ["street", "Town", "post_code", "home_phone"]
+    assert together.choose_group(fields, ["none"]) == []
+    assert together.choose_group(fields, ["street"]) == []  # one field is no group
+    assert together.choose_group(fields, ["street", "mobile", "street"]) == ["street", "mobile"]
+    with pytest.raises(DocketError, match="--together adress: no compared field"):
+        together.choose_group(fields, ["adress", "Town"])
+    # no field of a catalogue or a bibliography says where anyone lives
+    assert together.choose_group([_spec("title", "longtext"), _spec("authors"),
+                                  _spec("venue"), _spec("year", "number")], None) == []
+
+
+def test_the_joint_chance_is_the_share_of_all_record_pairs_agreeing_on_every_member() -> None:
+    # Against counting every pair of records by hand (common practice: the definition).
+    rng = random.Random(5)
+    n = 60
+    street = [rng.choice(["1 Kalo Row", "2 Kalo Row", "9 Mire Lane", None]) for _ in range(n)]
+    town = [rng.choice(["Vexby", "Sulton"]) for _ in range(n)]
+    norm = {"street": np.array(street, dtype=object), "town": np.array(town, dtype=object)}
+    key = together.joint_key(norm, ["street", "town"])
+    got = float(random_pairs._chance_agreement(key, None, True).sum())
+    both = [i for i in range(n) if street[i] is not None]
+    agree = sum(street[i] == street[j] and town[i] == town[j]
+                for i, j in itertools.combinations(both, 2))
+    assert got == pytest.approx(agree / math.comb(len(both), 2))
+
+
+def _model(factors: list[float]) -> FSModel:
+    names = [["exact", "close", "different", "missing"]] * 3
+    return FSModel(["given", "street", "town"], names,
+                   [[0.9, 0.06, 0.04], [0.85, 0.1, 0.05], [0.95, 0.03, 0.02]],
+                   [[0.001, 0.01, 0.989], [0.0005, 0.002, 0.9975], [0.05, 0.05, 0.9]],
+                   1e-4, together=["street", "town"], joint_u=0.0004, factors=factors)
+
+
+def test_all_members_agreeing_weigh_as_the_one_home_they_describe() -> None:
+    m, u = _model([]).m, _model([]).u
+    factors = together.factors(["given", "street", "town"], _model([]).level_names,
+                               [np.array(x) for x in m], [np.array(x) for x in u],
+                               ["street", "town"], 0.0004)
+    assert factors[0] == 1.0 and factors[1] == factors[2] < 1.0
+    model = _model(factors)
+    w = model.weights()
+    # ln(min m / joint u): the weight of one composite field agreeing exactly (Fellegi-Sunter)
+    assert (w[1][0] + w[2][0]) * math.log(2) == pytest.approx(math.log(0.85 / 0.0004))
+    for field_weights in w:  # order and signs as they were
+        assert field_weights[0] >= field_weights[1] >= field_weights[2] and field_weights[0] > 0
+    # the explanation still adds up to the probability shown
+    table = LogOddsTable.from_fs(model)
+    patterns = np.array(list(itertools.product(range(4), repeat=3)))
+    logit = np.log(model.probability(patterns)) - np.log1p(-model.probability(patterns))
+    assert np.allclose(table.log_odds(patterns), logit, atol=1e-9)
+    again = FSModel.from_dict(model.to_dict())
+    assert again.factors == model.factors and again.together == ["street", "town"]
+
+
+def _people(path: Path, seed: int = 11) -> tuple[Path, list[tuple[str, str]],
+                                                list[tuple[str, str]]]:
+    """Invented households: members share a family name, a home and its phone; some people
+    have a second record with a typo. Returns the table, true pairs and housemate pairs."""
+    rng = random.Random(seed)
+    rows, truth, housemates = [], [], []
+
+    def word() -> str:
+        return "".join(rng.choice(SYLLABLES) for _ in range(2)).title()
+
+    for h in range(160):
+        family, street = word(), f"{rng.randint(1, 99)} {word()} Row"
+        town, post = rng.choice(["Vexby", "Sulton", "Darmouth"]), f"Q{h:03d} {rng.randint(1, 9)}X"
+        phone = f"0161 {rng.randint(100000, 999999)}"
+        members = []
+        for _ in range(rng.choice([1, 2, 2, 3])):
+            given = word()
+            dob = f"19{rng.randint(40, 99)}-{rng.randint(1, 12):02d}-{rng.randint(1, 28):02d}"
+            rid = f"r{len(rows)}"
+            rows.append([rid, given, family, dob, street, town, post, phone])
+            members.append(rid)
+            if rng.random() < 0.5:
+                copy = given[:-1] + rng.choice("aeiou") if rng.random() < 0.5 else given
+                rows.append([f"r{len(rows)}", copy, family, dob, street, town, post, phone])
+                truth.append((rid, f"r{len(rows) - 1}"))
+        housemates += list(itertools.combinations(members, 2))
+    frame = pd.DataFrame(rows, columns=["id", "given_name", "family_name", "dob", "address",
+                                        "town", "postcode", "phone"])
+    frame.to_csv(path, index=False)
+    return path, truth, housemates
+
+
+def _probabilities(project_path: Path) -> dict[frozenset, float]:
+    from docket.core.exports.exporting import scores_frame
+
+    with Project.open(project_path) as project:
+        s = scores_frame(project)
+    return {frozenset(p): float(x) for p, x in
+            zip(zip(s.left_id, s.right_id, strict=True), s.probability, strict=True)}
+
+
+def test_housemates_are_not_called_matches_for_sharing_one_home(tmp_path: Path) -> None:
+    table, truth, housemates = _people(tmp_path / "people.csv")
+    Project.create(NewProject(path=tmp_path / "one.docket", left=table, id_column="id"))
+    Project.create(NewProject(path=tmp_path / "apart.docket", left=table, id_column="id",
+                              together=["none"]))
+    with Project.open(tmp_path / "one.docket") as project:
+        told = " ".join(project.status().model["how_fitted"])
+    assert "address, town, postcode, phone read together, as one home" in told
+    read = _probabilities(tmp_path / "one.docket")
+    apart = _probabilities(tmp_path / "apart.docket")
+    mates = [frozenset(p) for p in housemates if frozenset(p) in read]
+    assert len(mates) > 50
+    called = sum(read[p] >= 0.5 for p in mates)
+    called_apart = sum(apart[p] >= 0.5 for p in mates)
+    assert called < called_apart / 2, (called, called_apart)
+    true = [frozenset(p) for p in truth if frozenset(p) in read]
+    assert sum(read[p] >= 0.5 for p in true) >= 0.95 * len(true)
+
+
+def test_a_misnamed_field_is_one_line_and_no_project(tmp_path: Path, capsys) -> None:
+    from docket.tui.cli import main
+
+    table, _, _ = _people(tmp_path / "people.csv")
+    project = tmp_path / "p.docket"
+    code = main(["new", str(project), "--left", str(table), "--id", "id",
+                 "--together", "adress,town"])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert code == 2 and not project.exists()
+    assert len(err) == 1 and "--together adress: no compared field" in err[0]
