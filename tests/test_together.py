@@ -39,6 +39,14 @@ def test_the_group_is_found_by_name_and_can_be_named_or_turned_off() -> None:
                                   _spec("venue"), _spec("year", "number")], None) == []
 
 
+def _joint(left: dict, right: dict | None) -> float:
+    from docket.core.matching.compare import prepare
+
+    ready = {k: prepare("text", left[k], left[k] if right is None else right[k]) for k in left}
+    return together.joint_chance([ready[k].lcodes for k in left],
+                                 None if right is None else [ready[k].rcodes for k in left])
+
+
 def test_the_joint_chance_is_the_share_of_all_record_pairs_agreeing_on_every_member() -> None:
     # Against counting every pair of records by hand (common practice: the definition).
     rng = random.Random(5)
@@ -46,12 +54,24 @@ def test_the_joint_chance_is_the_share_of_all_record_pairs_agreeing_on_every_mem
     street = [rng.choice(["1 Kalo Row", "2 Kalo Row", "9 Mire Lane", None]) for _ in range(n)]
     town = [rng.choice(["Vexby", "Sulton"]) for _ in range(n)]
     norm = {"street": np.array(street, dtype=object), "town": np.array(town, dtype=object)}
-    key = together.joint_key(norm, ["street", "town"])
-    got = float(random_pairs._chance_agreement(key, None, True).sum())
+    got = _joint(norm, None)
     both = [i for i in range(n) if street[i] is not None]
     agree = sum(street[i] == street[j] and town[i] == town[j]
                 for i, j in itertools.combinations(both, 2))
     assert got == pytest.approx(agree / math.comb(len(both), 2))
+    # two tables: the share of left-right pairs agreeing on both, all present on each side
+    left = {k: v[:25] for k, v in norm.items()}
+    right = {k: v[25:] for k, v in norm.items()}
+    lp = [i for i in range(25) if street[i] is not None]
+    rp = [i for i in range(25, n) if street[i] is not None]
+    agree = sum(street[i] == street[j] and town[i] == town[j] for i in lp for j in rp)
+    assert _joint(left, right) == \
+        pytest.approx(agree / (len(lp) * len(rp)))
+    # the same as the chance one field's exact level is measured by, on a joined value
+    joined = np.array([None if a is None else f"{a}|{b}" for a, b in zip(street, town,
+                                                                          strict=True)])
+    assert got == pytest.approx(float(random_pairs._chance_agreement(joined, joined,
+                                                                     True).sum()))
 
 
 def _model(factors: list[float]) -> FSModel:

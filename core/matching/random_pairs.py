@@ -21,7 +21,7 @@ import pandas as pd
 from ..types import FieldSpec
 from . import compare, scoring
 from .compare import MISSING, level_names
-from .together import joint_key
+from .together import joint_chance
 
 SAMPLE_PAIRS = 100_000
 SMOOTH = 0.5
@@ -54,7 +54,7 @@ def sample_pairs(n_left: int, n_right: int, dedupe: bool, n: int, seed: int
     return np.minimum(li, ri), np.maximum(li, ri)
 
 
-def _chance_agreement(left: np.ndarray, right: np.ndarray | None, dedupe: bool) -> pd.Series:
+def _chance_agreement(left: np.ndarray, right: np.ndarray, dedupe: bool) -> pd.Series:
     """P(two random records, one from each side, both hold value v), per value."""
     lc = pd.Series(left, dtype=object).dropna().value_counts()
     if dedupe:
@@ -134,6 +134,9 @@ def baseline(fields: list[FieldSpec], lnorm: dict[str, np.ndarray],
         u[-1] = u[-1] / u[-1].sum()
     joint = 0.0
     if together:
-        right = None if dedupe else joint_key(rnorm, together)  # one table: one side
-        joint = float(_chance_agreement(joint_key(lnorm, together), right, dedupe).sum())
+        ready = prepared or {}
+        codes = {n: ready[n] if n in ready else compare.prepare("code", lnorm[n], rnorm[n])
+                 for n in together}
+        joint = joint_chance([codes[n].lcodes for n in together],
+                             None if dedupe else [codes[n].rcodes for n in together])
     return Baseline(u, names, frequent, len(li), list(together or []), joint)

@@ -63,14 +63,26 @@ def choose_group(fields: list[FieldSpec], named: list[str] | None) -> list[str]:
     return group if len(group) >= 2 else []
 
 
-def joint_key(norm: dict[str, np.ndarray], group: list[str]) -> np.ndarray:
-    """One value per record holding all the group's values, None where any is missing."""
-    parts = [pd.Series(norm[name], dtype=object) for name in group]
-    present = np.logical_and.reduce([p.notna().to_numpy() for p in parts])
-    key = parts[0].astype(str)
-    for p in parts[1:]:
-        key = key + "\x1f" + p.astype(str)
-    return key.where(present, None).to_numpy(dtype=object)
+def joint_chance(left: list[np.ndarray], right: list[np.ndarray] | None) -> float:
+    """P(two random records agree on every field of a group, all present), from each member's
+    value codes per record (one numbering over both sides, -1 missing: ``compare.Prepared``);
+    ``right`` None for one table. Codes, not joined strings: those took 4.8 s at 1,000,000
+    records."""
+    n_left = len(left[0])
+    key = np.zeros(n_left + (0 if right is None else len(right[0])), dtype=np.int64)
+    for f, codes in enumerate(left):
+        both = codes if right is None else np.concatenate([codes, right[f]])
+        missing = (both < 0) | (key < 0)
+        key, _ = pd.factorize(key * (int(both.max(initial=0)) + 2) + both)
+        key = np.where(missing, -1, key).astype(np.int64)
+    lcount = np.bincount(key[:n_left][key[:n_left] >= 0], minlength=1)
+    if right is None:
+        n = lcount.sum()
+        return float((lcount * (lcount - 1.0)).sum() / max(1.0, n * (n - 1.0)))
+    rkeys = key[n_left:]
+    rcount = np.bincount(rkeys[rkeys >= 0], minlength=len(lcount))
+    lcount = np.pad(lcount, (0, len(rcount) - len(lcount)))
+    return float((lcount / max(1, lcount.sum()) * (rcount / max(1, rcount.sum()))).sum())
 
 
 def factors(fields: list[str], level_names: list[list[str]], m: list[np.ndarray],
