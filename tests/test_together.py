@@ -30,7 +30,9 @@ def test_the_group_is_found_by_name_and_can_be_named_or_turned_off() -> None:
               _spec("home_phone", "code"), _spec("mobile", "code"), _spec("email", "code")]
     assert together.choose_group(fields, None) == ["street", "Town", "post_code", "home_phone"]
     assert together.choose_group(fields, ["none"]) == []
-    assert together.choose_group(fields, ["street"]) == []  # one field is no group
+    with pytest.raises(DocketError, match="--together street: one field is no group"):
+        together.choose_group(fields, ["street"])
+    assert together.choose_group(fields, []) == []  # '--together ""': none
     assert together.choose_group(fields, ["street", "mobile", "street"]) == ["street", "mobile"]
     with pytest.raises(DocketError, match="--together adress: no compared field"):
         together.choose_group(fields, ["adress", "Town"])

@@ -58,6 +58,9 @@ def choose_group(fields: list[FieldSpec], named: list[str] | None) -> list[str]:
             if name not in known:
                 raise DocketError(f"--together {name}: no compared field of that name; "
                                   f"the fields are {', '.join(known)}")
+        if len(group) == 1:
+            raise DocketError(f"--together {group[0]}: one field is no group; name two or "
+                              "more, comma-separated, or 'none'")
     else:
         group = place_fields(fields)
     return group if len(group) >= 2 else []
