@@ -17,7 +17,7 @@ from docket.core.project import Project
 
 from .. import literal
 from ..figures import many, probability_text
-from ..masking import Mask, masked
+from ..masking import Mask
 from . import candidate_lines
 
 LIMIT = 50
@@ -119,17 +119,17 @@ class PairPicker(ModalScreen[int | None]):
         text.append_text(literal.one_line(card.right_id, 14))
         text.append(f"  p {probability_text(card.probability)}  ")
         if card.fields:
-            first = card.fields[0]
-            hide = bool(self.mask) and self.mask.applies(first.field)
             label = 22 if mine is not None else 0
             cells = self._value_cells(text.cell_len + 3 + label)
             if cells < VALUE_CELLS:  # beside the ids they would wrap mid-line at 80 columns:
                 text.rstrip()        # a line of their own, under the ids
                 text.append("\n" + " " * INDENT)
                 cells = max(VALUE_CELLS // 3, self._value_cells(INDENT + 3 + label))
-            for value, end in ((first.left, " / "), (first.right, "")):
-                shown = value if value is None or not hide else masked(value)
-                text.append_text(literal.one_line(shown, cells))
+            # each side's first values, as many as fit: the first field alone read one
+            # name for five different people
+            for left, end in ((True, " / "), (False, "")):
+                text.append_text(candidate_lines.summary(
+                    candidate_lines.side_values(card, left, self.mask), cells))
                 text.append(end)
         if mine is not None:
             text.append(f"  your label: {mine.label}", "italic")
