@@ -75,7 +75,7 @@ def how_fitted(fs: dict) -> list[str]:
                    "candidates: fields that agree together among non-matches are not counted "
                    "as independent evidence")
     read_together = [c for c in fs.get("factors", []) if c < 1.0]
-    if fs.get("together") and read_together:
+    if read_together:  # factors below 1 come only from a group
         out.append(f"{', '.join(fs['together'])} read together, as one home: their weights "
                    f"times {min(read_together):.2f}, so that agreeing on all of them counts as "
                    "agreeing on one home (--together names others, or none)")

@@ -26,7 +26,7 @@ from tests.gold_fixtures import check_golden, pair_ids
 def test_for_lm_golden_and_serialisation(tiny: Project, tmp_path: Path) -> None:
     records = lm_records(tiny, "training", test_share=0.5, seed=3)
     target = tmp_path / "lm.jsonl"
-    ge.write_jsonl(records, str(target))
+    write_jsonl_parts([records], str(target))
     text = target.read_text(encoding="utf-8")
     check_golden("for_lm.jsonl", text)
     back = [json.loads(line) for line in text.splitlines()]

@@ -12,7 +12,6 @@ from __future__ import annotations
 from collections import Counter
 from collections.abc import Iterable
 from dataclasses import dataclass
-from typing import Any
 
 import numpy as np
 import pandas as pd
@@ -22,7 +21,6 @@ from ..storage import store
 from ..storage.project_file import ProjectFile
 from ..types import ClusterConflict
 from . import clusters as clustering
-from .exporting import write_jsonl_parts
 from .gold_detail import DETAIL_COLUMNS, details
 from .gold_supplement import supplement_entries
 from .split import split, split_of
@@ -144,12 +142,6 @@ def training_frame(project: ProjectFile, test_share: float = 0.2, seed: int = 0,
         recs = _prefixed(recs, f"{side}_", taken)
         out = out.join(recs, on=f"{side}_id")
     return out.reset_index(drop=True)
-
-
-# -- JSON lines ---------------------------------------------------------------------------------
-def write_jsonl(records: list[dict[str, Any]], target: str) -> None:
-    """JSON lines to a file (atomically, via a temporary beside it) or '-' for stdout."""
-    write_jsonl_parts([records], target)
 
 
 # -- clusters and conflicts ---------------------------------------------------------------------

@@ -174,10 +174,11 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
     out = FSModel(fields, level_names, [list(map(float, x)) for x in m],
                   [list(map(float, x)) for x in u], prior, it, model.labels_used, source,
                   pooled)
-    if source == "random pairs" and together:
-        out.together, out.joint_u = list(together), float(joint_u)
-        out.factors = together_mod.factors(fields, level_names, m, u, out.together, joint_u)
     if source == "random pairs":
+        if together:
+            out.together, out.joint_u = list(together), float(joint_u)
+            out.factors = together_mod.factors(fields, level_names, m, u, out.together,
+                                               joint_u)
         # EM's share of matches per pattern among the candidates, labels as they are
         share = (free * model.probability(patterns) + lab_m) / np.maximum(counts, 1e-12)
         base = math.log(out.prior / (1.0 - out.prior))

@@ -88,6 +88,12 @@ def joint_chance(left: list[np.ndarray], right: list[np.ndarray] | None) -> floa
     return float((lcount / max(1, lcount.sum()) * (rcount / max(1, rcount.sum()))).sum())
 
 
+def _exact_levels(names: list[str]) -> int:
+    """How many of a field's levels are exact agreement: they come first, one of them, or
+    'exact, rare' and 'exact, common'."""
+    return max(1, sum(1 for name in names if name.startswith("exact")))
+
+
 def factors(fields: list[str], level_names: list[list[str]], m: list[np.ndarray],
             u: list[np.ndarray], group: list[str], joint_u: float) -> list[float]:
     """Per field, the factor its weights are multiplied by (1 outside the group)."""
@@ -97,9 +103,7 @@ def factors(fields: list[str], level_names: list[list[str]], m: list[np.ndarray]
         return out
 
     def exact(values: np.ndarray, f: int) -> float:
-        # the exact levels come first: one, or 'exact, rare' and 'exact, common'
-        n_exact = sum(1 for name in level_names[f] if name.startswith("exact"))
-        return float(np.sum(np.asarray(values)[:max(1, n_exact)]))
+        return float(np.sum(np.asarray(values)[:_exact_levels(level_names[f])]))
 
     m_top = [exact(m[f], f) for f in members]
     u_top = [exact(u[f], f) for f in members]
@@ -120,9 +124,8 @@ def composite(patterns: np.ndarray, level_names: list[list[str]], members: list[
     exact = np.zeros(len(patterns), dtype=np.int64)
     present = np.zeros(len(patterns), dtype=np.int64)
     for f in members:
-        n_exact = max(1, sum(1 for name in level_names[f] if name.startswith("exact")))
         missing = len(level_names[f]) - 1
-        exact += patterns[:, f] < n_exact
+        exact += patterns[:, f] < _exact_levels(level_names[f])
         present += patterns[:, f] != missing
     column = np.where(present == 0, 3, np.where(exact == present, 0, np.where(exact > 0, 1, 2)))
     rest = [f for f in range(patterns.shape[1]) if f not in members]
