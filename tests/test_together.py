@@ -92,7 +92,8 @@ def test_all_members_agreeing_weigh_as_the_one_home_they_describe() -> None:
     assert factors[0] == 1.0 and factors[1] == factors[2] < 1.0
     model = _model(factors)
     w = model.weights()
-    # ln(min m / joint u): the weight of one composite field agreeing exactly (Fellegi-Sunter)
+    # ln(min m / joint u): the weight of one composite field agreeing exactly, log(m/u) as in
+    # Fellegi & Sunter, JASA 64 (1969) (from memory); m of the composite is the smallest m
     assert (w[1][0] + w[2][0]) * math.log(2) == pytest.approx(math.log(0.85 / 0.0004))
     for field_weights in w:  # order and signs as they were
         assert field_weights[0] >= field_weights[1] >= field_weights[2] and field_weights[0] > 0
