@@ -203,3 +203,19 @@ async def test_each_plot_says_what_it_shows_at_80_and_at_120_columns(team, team_
             assert heading.region.height == 1 and heading.region.bottom == plot.region.y
 
     await on_the_plots_tab(team[0], team_app, check)
+
+
+@pilot_test
+async def test_each_plot_names_its_x_axis_at_80_and_at_120_columns(team, team_app):
+    # the library writes the y label on the x label's row and leaves out an x label that would
+    # touch it: 'model score (match probability)' was missing even at 120 columns, and both x
+    # labels at 80
+    from textual_plotext import PlotextPlot
+
+    def check(screen: QualityScreen, size: tuple) -> None:
+        for name, x in (("score", "model score (match probability)"),
+                        ("pr", "recall (within the candidate pairs)")):
+            drawn = screen.query_one(f"#{name}-plot", PlotextPlot).render().plain
+            assert x in drawn.splitlines()[-1], (size, name)
+
+    await on_the_plots_tab(team[0], team_app, check)

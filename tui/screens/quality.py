@@ -159,8 +159,10 @@ class QualityScreen(TeamScreen):
         scores = self.query_one("#score-plot", PlotextPlot)
         plt = scores.plt
         plt.clear_figure()
+        # no y label: the library writes it on the x label's row, from the left edge, and
+        # leaves out an x label that would touch it ("gold-labelled pairs" hid this one even at
+        # 120 columns); the title above says what the bars count
         plt.xlabel("model score (match probability)")
-        plt.ylabel("gold-labelled pairs")
         shown = []
         for label, (color, marker, mark) in HISTOGRAMS.items():
             values = data.scores.get(label, [])
@@ -173,8 +175,7 @@ class QualityScreen(TeamScreen):
         pr = self.query_one("#pr-plot", PlotextPlot)
         plt = pr.plt
         plt.clear_figure()
-        plt.xlabel("recall (within the candidate pairs)")
-        plt.ylabel("precision")
+        plt.xlabel("recall (within the candidate pairs)")  # and the title names the y axis
         ticks = [0.0, 0.25, 0.5, 0.75, 1.0]
         plt.xlim(0, 1)
         plt.ylim(0, 1)
