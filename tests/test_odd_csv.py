@@ -5,8 +5,11 @@ Each is read as meant or refused in one line naming the file and what to change.
 
 from __future__ import annotations
 
+import json
 from pathlib import Path
 
+import pyarrow as pa
+import pyarrow.parquet as pq
 import pytest
 
 from docket.core import Project
@@ -177,3 +180,24 @@ def test_a_column_without_values_is_left_out_and_said(tmp_path: Path, capsys) ->
                  "--right", str(tmp_path / "r.csv"), "--block", "*",
                  "--field", "email:code"]) == 0  # asked for: compared
     assert "fields compared: name (name), email (code)" in capsys.readouterr().out
+
+
+@pytest.mark.parametrize("suffix", [".csv", ".jsonl", ".parquet"])
+def test_a_column_name_holding_a_nul_is_refused_by_its_position(
+        suffix: str, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # the build ended in a traceback: "ValueError: embedded null character" from SQLite
+    left = tmp_path / f"nul{suffix}"
+    if suffix == ".csv":
+        left.write_text(_csv([(*r, "x") for r in ROWS], "\n", "id,name,town,no\x00te"),
+                        encoding="utf-8")
+    elif suffix == ".jsonl":
+        left.write_text("".join(json.dumps({"id": i, "name": n, "town": t, "no\x00te": "x"})
+                                + "\n" for i, n, t in ROWS), encoding="utf-8")
+    else:
+        pq.write_table(pa.table({"id": [r[0] for r in ROWS], "name": [r[1] for r in ROWS],
+                                 "town": [r[2] for r in ROWS], "no\x00te": ["x"] * 4}), left)
+    project = tmp_path / "p.docket"
+    code, err = run(capsys, "new", str(project), "--left", str(left), "--id", "id")
+    assert_one_line_error(code, err, f"{left}: column 4's name 'no\\x00te' holds a NUL",
+                          "rename the column")
+    assert sorted(p.name for p in tmp_path.iterdir()) == [left.name]

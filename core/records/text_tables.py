@@ -104,12 +104,15 @@ def _ascii_lower(name: str) -> str:
 
 def check_names(path: Path, names: list[str]) -> None:
     """Column names must stay distinct once spaces at their ends are trimmed, and in the
-    project file, where 'Name' and 'name' are one column."""
+    project file, where 'Name' and 'name' are one column; none may hold a NUL."""
     seen: dict[str, tuple[int, str]] = {}
     for position, raw in enumerate(names, start=1):
         name = str(raw).strip()
         if not name:
             continue  # a blank header cell: see sources.read_frame
+        if "\x00" in name:  # SQLite's statements end at a NUL: the build ended in a traceback
+            raise DocketError(f"{path}: column {position}'s name '{name}' holds a NUL character "
+                              "(\\x00), which the project file cannot keep; rename the column")
         key = _ascii_lower(name)
         if key in seen:
             first, other = seen[key]
