@@ -125,3 +125,28 @@ def test_new_into_a_missing_or_read_only_folder(tmp_path: Path, capsys) -> None:
     finally:
         os.chmod(folder, stat.S_IRWXU)
     assert list(folder.iterdir()) == [] and not (tmp_path / "nowhere").exists()
+
+
+def test_a_refused_file_is_left_without_a_journal_beside_it(sample_project: Path,
+                                                            tmp_path: Path, capsys) -> None:
+    # Refusing one still opened it read-only, which leaves -wal and -shm beside a WAL file:
+    # another program's database, a newer docket's project, or the project that a --force
+    # build then refused for its input
+    other = tmp_path / "notes.db"
+    conn = sqlite3.connect(other)
+    conn.execute("PRAGMA journal_mode = WAL")
+    conn.execute("CREATE TABLE note (body TEXT)")
+    conn.close()
+    newer = tmp_path / "newer.docket"
+    newer.write_bytes(sample_project.read_bytes())
+    conn = sqlite3.connect(newer)
+    conn.execute("PRAGMA user_version = 99")
+    conn.close()
+    bad = tmp_path / "bad.csv"
+    bad.write_text("id,name\n1,Tove\n1,Ivo\n", encoding="utf-8")
+    for argv in (["status", str(other)], ["status", str(newer)],
+                 ["new", str(sample_project), "--force", "--left", str(bad), "--id", "id"]):
+        assert main(argv) == 2
+        _one_line(capsys)
+        assert sorted(p.name for p in tmp_path.iterdir()) == \
+            ["bad.csv", "newer.docket", "notes.db", "vet.docket"], argv

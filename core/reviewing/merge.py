@@ -28,7 +28,7 @@ from typing import Any
 from ..errors import DocketError
 from ..storage import decisions as log
 from ..storage import roles, store
-from ..storage.file_health import same_file
+from ..storage.file_health import close_reader, same_file
 from ..storage.fingerprint import records_fingerprint
 from ..storage.project_file import ProjectFile
 from .merge_checks import RoleChange, accepted_grants, check_copy, read_grants, role_changes
@@ -117,7 +117,7 @@ def _read(path: Path, project: ProjectFile) -> _Other:
         raise DocketError(f"{path}: cannot be read as a project ({exc}); nothing was "
                           "merged") from None
     finally:
-        store.close_reader(conn, path)
+        close_reader(conn, path)
     check_copy(path, rows, reviewers, grants)
     return _Other(path, rows, reviewers, pairs, grants)
 

@@ -62,8 +62,40 @@ def holds_database(path: Path) -> bool:
     except sqlite3.DatabaseError as exc:
         name = getattr(exc, "sqlite_errorname", "") or ""
         return not (name == "SQLITE_NOTADB" or "not a database" in str(exc))
+    finally:  # --force over a project that the build then refused left both beside it
+        close_reader(probe, path)
+
+
+def close_reader(conn: sqlite3.Connection, path: Path) -> None:
+    """Close a read-only connection without leaving ``-wal`` and ``-shm`` beside the file.
+
+    A read-only connection to a WAL file makes both (it cannot read without them) but may not
+    remove them on closing last, as any other connection does. A plain connection that only
+    reads, closed after it, removes them, and safely: SQLite does so only as the file's last
+    connection in any process, under an exclusive lock, so a writer at work keeps them. Only an
+    empty ``-wal`` is tidied so: frames in it are a writer's, to be checkpointed by writers,
+    and a command that reads writes nothing into the file.
+    """
+    conn.close()
+    wal, shm = Path(f"{path}-wal"), Path(f"{path}-shm")
+    try:
+        if wal.stat().st_size > 0:
+            return
+    except FileNotFoundError:
+        if not shm.exists():
+            return  # nothing was left
+    except OSError:
+        return
+    try:
+        tidy = sqlite3.connect(f"file:{path}?mode=rw", uri=True, isolation_level=None)
+    except sqlite3.Error:
+        return  # a file this user may only read: the files stay, as they must
+    try:
+        tidy.execute("SELECT count(*) FROM sqlite_master").fetchone()
+    except sqlite3.Error:
+        pass  # tidying only: whatever stands in its way is left as it was
     finally:
-        probe.close()
+        tidy.close()
 
 
 def same_file(a: Path, b: Path) -> bool:

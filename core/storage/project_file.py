@@ -19,7 +19,7 @@ from ..errors import DocketError
 from ..types import LABELS, Decision, FieldSpec
 from . import claims, drafts, roles, store
 from . import decisions as log
-from .file_health import ProjectFileError, check_still_writable, explain, identity
+from .file_health import ProjectFileError, check_still_writable, close_reader, explain, identity
 
 
 class ProjectFile:
@@ -48,7 +48,7 @@ class ProjectFile:
     def close(self) -> None:
         with self._lock:
             if self._readonly:  # a look leaves no -wal or -shm beside the file
-                store.close_reader(self._conn, self.path)
+                close_reader(self._conn, self.path)
             else:
                 self._conn.close()
 

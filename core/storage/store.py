@@ -154,8 +154,8 @@ def open_file(path: Path, readonly: bool = False, check: bool = True) -> sqlite3
             file_health.check_integrity(probe, path)  # before any command writes
     except sqlite3.DatabaseError as exc:
         raise NotAProject(file_health.explain(exc, path)) from None
-    finally:
-        probe.close()
+    finally:  # a file refused here (another program's, a newer docket's) is left as it was
+        file_health.close_reader(probe, path)
     if app_id != APPLICATION_ID:
         size = path.stat().st_size
         if size < 512:  # SQLite's smallest page: a database with a table is at least this long
@@ -174,38 +174,6 @@ def open_file(path: Path, readonly: bool = False, check: bool = True) -> sqlite3
         _configure(conn)
         migrate(conn, version, SCHEMA_VERSION)
     return conn
-
-
-def close_reader(conn: sqlite3.Connection, path: Path) -> None:
-    """Close a read-only connection without leaving ``-wal`` and ``-shm`` beside the file.
-
-    A read-only connection to a WAL file makes both (it cannot read without them) but may not
-    remove them on closing last, as any other connection does. A plain connection that only
-    reads, closed after it, removes them, and safely: SQLite does so only as the file's last
-    connection in any process, under an exclusive lock, so a writer at work keeps them. Only an
-    empty ``-wal`` is tidied so: frames in it are a writer's, to be checkpointed by writers,
-    and a command that reads writes nothing into the file.
-    """
-    conn.close()
-    wal, shm = Path(f"{path}-wal"), Path(f"{path}-shm")
-    try:
-        if wal.stat().st_size > 0:
-            return
-    except FileNotFoundError:
-        if not shm.exists():
-            return  # nothing was left
-    except OSError:
-        return
-    try:
-        tidy = sqlite3.connect(f"file:{path}?mode=rw", uri=True, isolation_level=None)
-    except sqlite3.Error:
-        return  # a file this user may only read: the files stay, as they must
-    try:
-        tidy.execute("SELECT count(*) FROM sqlite_master").fetchone()
-    except sqlite3.Error:
-        pass  # tidying only: whatever stands in its way is left as it was
-    finally:
-        tidy.close()
 
 
 def get_meta(conn: sqlite3.Connection) -> dict[str, Any]:
