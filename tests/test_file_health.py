@@ -150,3 +150,23 @@ def test_a_refused_file_is_left_without_a_journal_beside_it(sample_project: Path
         _one_line(capsys)
         assert sorted(p.name for p in tmp_path.iterdir()) == \
             ["bad.csv", "newer.docket", "notes.db", "vet.docket"], argv
+
+
+@pytest.mark.parametrize("name", ["a#1.docket", "b?x=1.docket", "c%20d.docket"])
+def test_a_project_named_with_uri_characters_opens(name: str, tmp_path: Path, capsys) -> None:
+    # the file was built, then each command opened the name cut at '#' or '?' (an empty file
+    # it made, read as "not a docket project") or with '%20' read as a space
+    left = tmp_path / "t.csv"
+    left.write_text("id,name,town\n1,Tove Marsk,Oslo\n2,Tove Mask,Oslo\n", encoding="utf-8")
+    project = tmp_path / name
+    assert main(["new", str(project), "--left", str(left), "--id", "id"]) == 0
+    copy = tmp_path / f"copy#{name}"
+    copy.write_bytes(project.read_bytes())
+    for argv in (["status", str(project)], ["reviewers", str(project), "add", "bo"],
+                 ["next", str(project), "--reviewer", "bo", "--claim"],
+                 ["merge", str(project), str(copy)]):
+        assert main(argv) == 0, capsys.readouterr().err
+    capsys.readouterr()
+    with Project.open(project, readonly=True) as opened:
+        assert opened.record("left", "2") == {"name": "Tove Mask", "town": "Oslo"}
+    assert sorted(p.name for p in tmp_path.iterdir()) == sorted([copy.name, name, "t.csv"])

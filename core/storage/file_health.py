@@ -47,6 +47,13 @@ def _folder(path: Path) -> Path:
     return folder
 
 
+def uri(path: Path, mode: str | None = None) -> str:
+    """``path`` as an SQLite URI, with ``?mode=`` when given. A '#', '?' or '%' in the name is
+    written out: 'a#1.docket' was built, then every command opened 'a' (an empty file it made)."""
+    named = Path(os.path.abspath(path)).as_uri()  # abspath: a link stays a link, as SQLite sees it
+    return f"{named}?mode={mode}" if mode else named
+
+
 def holds_database(path: Path) -> bool:
     """Whether ``path`` is an SQLite database (a damaged one too). Asked through SQLite, never
     with open(): closing another handle on a file this process has open in SQLite would drop
@@ -54,7 +61,7 @@ def holds_database(path: Path) -> bool:
     try:
         if not path.is_file() or path.stat().st_size == 0:
             return False
-        probe = sqlite3.connect(f"{path.resolve().as_uri()}?mode=ro", uri=True)
+        probe = sqlite3.connect(uri(path, "ro"), uri=True)
     except (OSError, sqlite3.Error):
         return False
     try:  # SQLite reads a file of a few bytes as an empty database: no page, no database
@@ -87,7 +94,7 @@ def close_reader(conn: sqlite3.Connection, path: Path) -> None:
     except OSError:
         return
     try:
-        tidy = sqlite3.connect(f"file:{path}?mode=rw", uri=True, isolation_level=None)
+        tidy = sqlite3.connect(uri(path, "rw"), uri=True, isolation_level=None)
     except sqlite3.Error:
         return  # a file this user may only read: the files stay, as they must
     try:

@@ -146,7 +146,7 @@ def open_file(path: Path, readonly: bool = False, check: bool = True) -> sqlite3
                           "restore the project from a backup if it was cut short")
     # The header is read through SQLite, never with open(): closing any other handle on the
     # file would drop this process's SQLite locks on it (POSIX advisory locks are per process).
-    probe = sqlite3.connect(f"file:{path}?mode=ro", uri=True)
+    probe = sqlite3.connect(file_health.uri(path, "ro"), uri=True)
     try:
         app_id = probe.execute("PRAGMA application_id").fetchone()[0]
         version = probe.execute("PRAGMA user_version").fetchone()[0]
@@ -166,8 +166,8 @@ def open_file(path: Path, readonly: bool = False, check: bool = True) -> sqlite3
     if version > SCHEMA_VERSION:
         raise DocketError(f"{path}: written by a newer docket (schema {version}, this one "
                           f"reads up to {SCHEMA_VERSION}); upgrade docket to open it")
-    uri = f"file:{path}?mode=ro" if readonly else f"file:{path}"
-    conn = sqlite3.connect(uri, uri=True, isolation_level=None, check_same_thread=False)
+    conn = sqlite3.connect(file_health.uri(path, "ro" if readonly else None), uri=True,
+                           isolation_level=None, check_same_thread=False)
     if readonly:
         conn.execute(f"PRAGMA busy_timeout = {BUSY_TIMEOUT_MS}")
     else:
