@@ -7,6 +7,7 @@ The names were cut at 10 cells at any width, so 'description' read 'descripti…
 from __future__ import annotations
 
 import math
+from pathlib import Path
 
 import pytest
 
@@ -68,7 +69,7 @@ def test_the_steps_still_multiply_out_to_the_odds() -> None:
     assert total == pytest.approx(card.log_odds)
 
 
-def _products(folder) -> Project:
+def _products(folder, audit: int | None = None) -> Path:
     rows = [("p1", "Venka blender C925", "Venka blender C925 with steel body", "Venka Works",
              "166.46"),
             ("p2", "Venka blender K526", "Venka blender K526 with quiet motor", "Venka Works",
@@ -82,7 +83,7 @@ def _products(folder) -> Project:
     (folder / "pairs.csv").write_text("left_id,right_id\np1,p2\np3,p4\np1,p3\n")
     path = folder / "products.docket"
     Project.create(NewProject(path=path, left=folder / "products.csv", id_column="id",
-                              pairs_file=folder / "pairs.csv", seed=0))
+                              pairs_file=folder / "pairs.csv", seed=0, audit=audit))
     return path
 
 
@@ -132,3 +133,29 @@ def test_the_other_candidates_counts_fit_the_narrow_panel() -> None:
     link = replace(dedupe, link=True, left_candidates=15, right_candidates=1234)
     assert counts(link, NARROW_TEXT) == ["  left      15", "  right  1,234"]
     assert counts(replace(link, right_candidates=34), NARROW_TEXT) == ["  left 15 · right 34"]
+
+
+def _panel_lines(app) -> list[str]:
+    """The evidence panel's lines as drawn (wrapped at its width), border and padding off."""
+    from textual.geometry import Region
+
+    panel = app.screen.query_one("#evidence")
+    strips = panel.render_lines(Region(0, 0, *panel.outer_size))
+    return [strip.text.strip("│ ").rstrip() for strip in strips]
+
+
+@pilot_test
+async def test_why_the_pair_is_queued_takes_two_lines_at_most(tmp_path, review_app) -> None:
+    # 'queued  likely non-match (to confirm)' wrapped over three lines of the 20-cell panel at
+    # 80 columns ('queued  likely' / 'non-match (to' / 'confirm)')
+    path = _products(tmp_path, audit=0)  # no audit slice: three clear non-matches
+    for size in ((80, 24), (120, 40)):
+        app = review_app(path)
+        async with app.run_test(size=size) as pilot:
+            await settle(pilot)
+            assert app.screen.card.reason == "likely non-match"
+            lines = _panel_lines(app)
+            start = next(i for i, x in enumerate(lines) if x.startswith("queued"))
+            end = lines.index("other candidates")
+            assert 1 <= end - start <= 2, (size, lines[start:end])
+            assert " ".join(lines[start:end]) == "queued  likely non-match (to check)", size

@@ -15,10 +15,12 @@ from .. import literal
 from ..diff import PLAIN, Palette
 from ..figures import probability_text
 
+# why the pair is queued, after 'queued  ': 'likely non-match (to confirm)' took three lines of
+# the 20-cell panel at 80 columns; '(to check)' keeps 'non-match (to check)' to the second
 REASONS = {
     "uncertain": "uncertain (hardest first)",
-    "likely match": "likely match (to confirm)",
-    "likely non-match": "likely non-match (to confirm)",
+    "likely match": "likely match (to check)",
+    "likely non-match": "likely non-match (to check)",
     "audit": "audit sample (keeps estimates honest)",
     "overlap": "overlap (a second reviewer sees it too)",
     "audit, overlap": "audit sample and overlap (a second reviewer sees it too)",
