@@ -301,3 +301,32 @@ def test_next_fits_80_columns_and_keeps_every_id_whole(tmp_path: Path, capsys, t
         for item in items:
             assert item.left_id in out and item.right_id in out and item.reason in out
     assert rows[2].startswith("       7  6f1c2a3e-") and rows[3].strip() == uuids[0].right_id
+
+
+def test_next_fits_80_columns_with_ids_too_long_to_share_a_row(tmp_path: Path,
+                                                               capsys) -> None:
+    # the left id went beside the pair id, probability and reason whatever its width: an id of
+    # more than about 39 cells ran the row past 80 columns
+    import json
+
+    from rich.cells import cell_len
+
+    long_id = "registry-north/clients/" + "7f3a" * 8  # 55 cells: a line of its own, whole
+    too_long = "registry-north/clients/archived/" + "c0ffee" * 12  # 104 cells: cut
+    left, right = tmp_path / "left.csv", tmp_path / "right.csv"
+    left.write_text(f"id,name,town\n{long_id},Anna Berg,Oslo\n{too_long},Jon Dahl,Bergen\n",
+                    encoding="utf-8")
+    right.write_text("id,name,town\nS-1,Anna Berg,Oslo\nS-2,Jon Dal,Bergen\n", encoding="utf-8")
+    project = tmp_path / "t.docket"
+    assert main(["new", str(project), "--left", str(left), "--right", str(right), "--id", "id",
+                 "--block", "town"]) == 0
+    capsys.readouterr()
+    assert main(["next", str(project), "--reviewer", "maya"]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    assert max(cell_len(x) for x in lines) <= 80, lines
+    assert f"          {long_id}" in lines and "          S-1" in lines
+    cut = next(x for x in lines if x.strip().startswith("registry-north/clients/archived/"))
+    assert cut.endswith("…") and cell_len(cut) == 80
+    assert "--json" in lines[-1]
+    assert main(["next", str(project), "--reviewer", "maya", "--json"]) == 0
+    assert too_long in {i["left_id"] for i in json.loads(capsys.readouterr().out)}
