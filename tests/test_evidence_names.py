@@ -159,3 +159,24 @@ async def test_why_the_pair_is_queued_takes_two_lines_at_most(tmp_path, review_a
             end = lines.index("other candidates")
             assert 1 <= end - start <= 2, (size, lines[start:end])
             assert " ".join(lines[start:end]) == "queued  likely non-match (to check)", size
+
+
+def test_every_reason_for_queueing_takes_two_lines_at_most_at_80_and_120_columns() -> None:
+    # 'audit sample and overlap (a second reviewer sees it too)' took four lines of the 20-cell
+    # panel, the audit, overlap, disagreement and candidate reasons three
+    from dataclasses import replace
+
+    from rich.console import Console
+
+    from docket.tui.widgets.evidence import REASONS
+
+    for reason, words in REASONS.items():
+        card = replace(_card(PRODUCTS), reason=reason)
+        for width in (NARROW_TEXT, PANEL_TEXT):
+            text = evidence_text(card, PLAIN, width=width)
+            lines = [x.plain.rstrip() for x in text.wrap(Console(width=width), width)]
+            start = next(i for i, x in enumerate(lines) if x.startswith("queued"))
+            shown = lines[start:lines.index("other candidates")]
+            most = 3 if reason == "audit, overlap" and width == NARROW_TEXT else 2
+            assert len(shown) <= most, (width, shown)
+            assert " ".join(shown) == f"queued  {words}", (width, shown)

@@ -209,4 +209,4 @@ def test_next_names_both_reasons_of_an_audit_pair_waiting_for_a_second_reviewer(
     from docket.tui.diff import PLAIN
     from docket.tui.widgets.evidence import evidence_text
     panel = evidence_text(card, PLAIN).plain
-    assert "queued  audit sample and overlap (a second reviewer sees it too)" in panel
+    assert "queued  audit and overlap (a second reviewer too)" in panel

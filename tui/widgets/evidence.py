@@ -16,16 +16,17 @@ from ..diff import PLAIN, Palette
 from ..figures import probability_text
 
 # why the pair is queued, after 'queued  ': 'likely non-match (to confirm)' took three lines of
-# the 20-cell panel at 80 columns; '(to check)' keeps 'non-match (to check)' to the second
+# the 20-cell panel at 80 columns; '(to check)' keeps 'non-match (to check)' to the second.
+# Each takes two lines at most there (audit and overlap at once, three), and at 120 columns.
 REASONS = {
     "uncertain": "uncertain (hardest first)",
     "likely match": "likely match (to check)",
     "likely non-match": "likely non-match (to check)",
-    "audit": "audit sample (keeps estimates honest)",
-    "overlap": "overlap (a second reviewer sees it too)",
-    "audit, overlap": "audit sample and overlap (a second reviewer sees it too)",
-    "disagreement": "machine raters disagree (shown first)",
-    "candidate": "opened from another record's candidates",
+    "audit": "audit (keeps estimates honest)",
+    "overlap": "overlap (a second reviewer too)",
+    "audit, overlap": "audit and overlap (a second reviewer too)",
+    "disagreement": "matchers differ (shown first)",
+    "candidate": "from another record's candidates",
 }
 SHOWN = 3  # fields listed one by one in the odds steps; the rest share one line
 NAME_CELLS = 10  # short names keep one column for the factors, as wide as this
