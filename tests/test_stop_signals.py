@@ -222,3 +222,29 @@ def test_the_installed_command_ends_with_its_code_when_a_sigterm_comes_at_exit(
         assert done.returncode == code, done.stderr
         assert (code == 0) == ("pairs" in done.stdout)
         assert "interrupted" not in done.stderr and "Traceback" not in done.stderr
+
+
+_STARTING = """
+import importlib, sys
+class Pressed:  # Ctrl-C while the command line is still loading its libraries
+    def find_spec(self, name, path=None, target=None):
+        if name == "pandas":
+            raise KeyboardInterrupt
+sys.meta_path.insert(0, Pressed())
+module, function = sys.argv[1].split(":")
+sys.argv = ["docket", "status", "nope.docket"]
+getattr(importlib.import_module(module), function)()
+"""
+
+
+def test_ctrl_c_while_the_command_is_starting_is_one_line(tmp_path: Path) -> None:
+    # the first half second of any command (importing pandas and numpy) ended in a traceback
+    import subprocess
+    import sys
+    import tomllib
+    pyproject = Path(__file__).parent.parent / "pyproject.toml"
+    entry = tomllib.loads(pyproject.read_text())["project"]["scripts"]["docket"]
+    done = subprocess.run([sys.executable, "-c", _STARTING, entry], capture_output=True,
+                          text=True, timeout=120, cwd=tmp_path)
+    assert done.returncode == 130, done.stderr
+    assert done.stderr == "docket: interrupted while starting; nothing was done\n"

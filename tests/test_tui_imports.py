@@ -31,8 +31,10 @@ def test_screens_and_widgets_never_import_an_app_or_a_command() -> None:
 
 
 def test_command_modules_share_only_the_base() -> None:
-    # cli.py gathers the command modules; they import the base, never cli.py itself
-    bad = [f"{m} imports {t}" for m, p in MODULES.items() if m != "docket.tui.cli"
+    # cli.py gathers the command modules; they import the base, never cli.py itself (only the
+    # entry point above it, launch.py, loads cli.py)
+    bad = [f"{m} imports {t}" for m, p in MODULES.items()
+           if m not in ("docket.tui.cli", "docket.tui.launch")
            for _, t in imports(m, p, MODULES) if t == "docket.tui.cli"]
     assert not bad, "\n".join(bad)
 
