@@ -302,3 +302,21 @@ def test_force_over_a_project_with_decisions_needs_discard_decisions(
     with Project.open(project) as p:
         assert p.decisions() == []
     capsys.readouterr()
+
+
+@pytest.mark.parametrize("argv", [
+    ["label", "{p}", "--reviewer", "", "--from", "{labels}"],
+    ["next", "{p}", "--reviewer", "", "--claim"],
+    ["next", "{p}", "--reviewer", ""],
+    ["missed", "{p}", "add", "N-00001", "S-10001", "--reviewer", ""],
+    ["reviewers", "{p}", "add", "ines", "--by", ""],
+])
+def test_a_reviewer_given_empty_is_refused(argv: list[str], sample_project: Path,
+                                           tmp_path: Path, capsys) -> None:
+    # '--reviewer "$WHO"' with $WHO unset recorded a file of labels as the user's own name
+    labels = write(tmp_path / "labels.csv", "pair_id,label\n1,match\n")
+    before = hashlib.sha256(sample_project.read_bytes()).hexdigest()
+    code, err = run(capsys, *[a.format(p=sample_project, labels=labels) for a in argv])
+    option = "--by" if "--by" in argv else "--reviewer"
+    assert_one_line_error(code, err, f"{option} '': a reviewer needs a name")
+    assert hashlib.sha256(sample_project.read_bytes()).hexdigest() == before

@@ -59,7 +59,13 @@ def version() -> str:
         return "0+unknown"
 
 
-def default_reviewer(given: str | None) -> str:
+def default_reviewer(given: str | None, option: str = "--reviewer") -> str:
+    """The name given, else $DOCKET_REVIEWER, else the user's. A name given empty is refused:
+    '--reviewer "$WHO"' with $WHO unset recorded a whole file of labels as the user's own."""
+    if given is not None and not given.strip():
+        from docket.core import DocketError
+        raise DocketError(f"{option} {given!r}: a reviewer needs a name; give one, or leave "
+                          f"{option} out for $DOCKET_REVIEWER or your user name")
     name = given or os.environ.get("DOCKET_REVIEWER") or getpass.getuser()
     return name.strip()
 

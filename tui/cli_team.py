@@ -78,7 +78,7 @@ def reviewers(args: argparse.Namespace) -> int:
     if args.action == "add":
         with open_project(args.project) as project:
             change = project.add_reviewer(args.name, args.role,
-                                          granted_by=default_reviewer(args.by))
+                                          granted_by=default_reviewer(args.by, "--by"))
         print(change.message)
         return 0
     with open_project(args.project, readonly=True) as project:
