@@ -320,3 +320,20 @@ def test_a_reviewer_given_empty_is_refused(argv: list[str], sample_project: Path
     option = "--by" if "--by" in argv else "--reviewer"
     assert_one_line_error(code, err, f"{option} '': a reviewer needs a name")
     assert hashlib.sha256(sample_project.read_bytes()).hexdigest() == before
+
+
+def test_a_closed_standard_output_is_refused_before_any_work(
+        sample_project: Path, tmp_path: Path, capsys, monkeypatch: pytest.MonkeyPatch) -> None:
+    # 'docket label ... >&-' recorded the labels, then ended in a traceback printing the line
+    # that said so (Python gives a closed stream as None)
+    labels = write(tmp_path / "labels.csv", "pair_id,label\n1,match\n")
+    before = hashlib.sha256(sample_project.read_bytes()).hexdigest()
+    monkeypatch.setattr(sys, "stdout", None)
+    code, err = run(capsys, "label", str(sample_project), "--reviewer", "ana", "--from",
+                    str(labels))
+    assert_one_line_error(code, err, "standard output is closed", ">/dev/null")
+    assert hashlib.sha256(sample_project.read_bytes()).hexdigest() == before
+    monkeypatch.undo()
+    monkeypatch.setattr(sys, "stderr", None)  # '2>&-': nowhere to say it, the code stands
+    assert main(["status", str(tmp_path / "nope.docket")]) == 2
+    assert main(["status", str(sample_project)]) == 0

@@ -29,7 +29,7 @@ from . import (
 from .cli_base import Formatter, version, warn_line
 from .cli_checks import Parser, parse
 from .stopping import at_the_last, exit_code, received, stop_signals, work_done
-from .terminal import safe_streams, shown
+from .terminal import output_closed, safe_streams, shown
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -54,6 +54,11 @@ def run() -> None:
 
 
 def main(argv: list[str] | None = None, to_the_end: bool = False) -> int:
+    if output_closed():  # refused before any work: what it did could not be said
+        if sys.stderr is not None:
+            print("docket: standard output is closed; give the command somewhere to write "
+                  "(>/dev/null to drop what it prints)", file=sys.stderr)
+        return 2
     with safe_streams(), warnings.catch_warnings():  # every line printed reaches it inert
         warnings.simplefilter("default")  # each distinct message once
         warnings.filterwarnings("ignore", message="DataFrame is highly fragmented")

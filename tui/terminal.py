@@ -97,8 +97,10 @@ class SafeStream(io.TextIOBase):
 def safe_streams() -> Iterator[None]:
     """Put standard output and error behind ``SafeStream`` for the length of a command."""
     saved = sys.stdout, sys.stderr
+    # a closed standard error ('2>&-') is None: its few lines are kept nowhere, the exit
+    # code stands
     sys.stdout, sys.stderr = (SafeStream(saved[0]),  # type: ignore[assignment]
-                              SafeStream(saved[1], "standard error"))
+                              SafeStream(saved[1] or io.StringIO(), "standard error"))
     try:
         yield
     finally:
@@ -106,6 +108,12 @@ def safe_streams() -> Iterator[None]:
             with suppress(Exception):  # reported by the command, or nowhere left to say it
                 stream.flush()
         sys.stdout, sys.stderr = saved
+
+
+def output_closed() -> bool:
+    """Whether standard output is closed ('docket status >&-'), which Python gives as None:
+    every print then ended in a traceback, after the command's work was done."""
+    return sys.stdout is None
 
 
 def unwrapped(stream: Any) -> Any:
