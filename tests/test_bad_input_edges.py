@@ -199,6 +199,13 @@ OPTION_CASES = {
     "thresholds infinite": (["evaluate", "P", "--thresholds", "inf"], ["'inf': give numbers"]),
     "predictions threshold nan": (["evaluate", "P", "--predictions", "x.csv", "--threshold",
                                    "nan"], ["--threshold", "'nan' is not a number"]),
+    # an unset shell variable: read as '.' ("a folder"), or an option left out altogether
+    "empty predictions": (["evaluate", "P", "--predictions", ""],
+                          ["argument --predictions: an empty path"]),
+    "empty pairs": (["new", "P", "--left", "L", "--pairs", ""], ["argument --pairs: an empty"]),
+    "empty project": (["reviewers", "", "list"], ["argument project: an empty path"]),
+    "empty output": (["export", "P", "-o", " "], ["argument -o/--output: an empty path"]),
+    "empty copy": (["merge", "P", "P", ""], ["argument OTHER: an empty path"]),
 }
 
 

@@ -96,15 +96,21 @@ def _options(parser: argparse.ArgumentParser) -> list[str]:
 def chosen_parser(parser: argparse.ArgumentParser, args: argparse.Namespace
                   ) -> argparse.ArgumentParser:
     """The (sub-)parser of the command that ``args`` names, e.g. that of ``reviewers add``."""
-    current = parser
+    return _parsers(parser, args)[-1]
+
+
+def _parsers(parser: argparse.ArgumentParser, args: argparse.Namespace
+             ) -> list[argparse.ArgumentParser]:
+    """The parsers from the top to the command's own: docket, reviewers, reviewers add."""
+    chain = [parser]
     for dest in ("command", "action"):
-        sub = next((a for a in current._actions if isinstance(a, argparse._SubParsersAction)),
+        sub = next((a for a in chain[-1]._actions if isinstance(a, argparse._SubParsersAction)),
                    None)
         name = getattr(args, dest, None)
         if sub is None or name not in sub.choices:
             break
-        current = sub.choices[name]
-    return current
+        chain.append(sub.choices[name])
+    return chain
 
 
 def _rest_of_a_list(command: argparse.ArgumentParser, args: argparse.Namespace,
@@ -122,9 +128,28 @@ def _rest_of_a_list(command: argparse.ArgumentParser, args: argparse.Namespace,
     return []
 
 
+PATHS = {"FILE", "PATH", "FOLDER", "FILE|-", "OTHER", "FILE|NAME"}  # the metavars of paths
+
+
+def _no_empty_path(parser: argparse.ArgumentParser, args: argparse.Namespace) -> None:
+    """An empty path ('--predictions ""', as an unset shell variable gives) is refused. It read
+    as '.', "a folder", and where the option is optional as not given at all: evaluate ran
+    without the predictions asked for, new blocked instead of reading --pairs."""
+    for command in _parsers(parser, args):
+        for action in command._actions:
+            if action.metavar not in PATHS and action.dest != "project":
+                continue
+            value = getattr(args, action.dest, None)
+            if any(isinstance(v, str) and not v.strip()
+                   for v in (value if isinstance(value, list) else [value])):
+                name = "/".join(action.option_strings) or action.metavar or action.dest
+                command.error(f"argument {name}: an empty path; give a file or folder name")
+
+
 def parse(parser: argparse.ArgumentParser, argv: list[str] | None) -> argparse.Namespace:
     """Parse ``argv``; an unknown option is refused with the nearest option of its command."""
     args, extra = parser.parse_known_args(argv)
+    _no_empty_path(parser, args)
     if extra:
         command = chosen_parser(parser, args)
         extra = _rest_of_a_list(command, args, extra)
