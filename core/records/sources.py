@@ -20,6 +20,10 @@ from .text_tables import check_names, read_delimited, read_json
 FORMATS = {".csv": "csv", ".tsv": "tsv", ".tab": "tsv", ".parquet": "parquet", ".pq": "parquet",
            ".jsonl": "jsonl", ".ndjson": "jsonl", ".json": "jsonl"}
 MAX_COLUMNS = 999  # sqlite-utils writes a record as one statement of at most 999 values
+NULLABLE_INTEGERS = {pa.int8(): pd.Int8Dtype(), pa.int16(): pd.Int16Dtype(),
+                     pa.int32(): pd.Int32Dtype(), pa.int64(): pd.Int64Dtype(),
+                     pa.uint8(): pd.UInt8Dtype(), pa.uint16(): pd.UInt16Dtype(),
+                     pa.uint32(): pd.UInt32Dtype(), pa.uint64(): pd.UInt64Dtype()}
 
 
 @dataclass
@@ -68,7 +72,9 @@ def _read_parquet(path: Path) -> pd.DataFrame:
     # as "Multiple matches for FieldRef.Name(name)", read as a damaged file
     import pyarrow.parquet as pq
     check_names(path, pq.read_schema(path).names)
-    return pd.read_parquet(path)
+    # integers stay integers where a value is missing: pandas' default took the column through
+    # a float, and 12345678901234567 was read as ...568
+    return pq.read_table(path).to_pandas(types_mapper=NULLABLE_INTEGERS.get)
 
 
 def read_frame(path: Path) -> pd.DataFrame:

@@ -229,24 +229,23 @@ def read_delimited(path: Path, fmt: str) -> pd.DataFrame:
 
 
 def read_json(path: Path) -> pd.DataFrame:
-    """JSON lines, or one JSON array of objects (one object per record)."""
+    """JSON lines, or one JSON array of objects (one object per record).
+
+    Parsed by Python's json, values kept as parsed: pandas' reader took every number of a
+    column with a gap through a float, so 12345678901234567 was read as ...568 (two records
+    then agreed on a number neither holds), and refused an integer past 64 bits as no JSON.
+    """
     with path.open("rb") as f:
         head = f.read(HEAD_BYTES)
     encoding = bom_encoding(head) or "utf-8"
     first = head.decode(encoding, errors="ignore").lstrip("\ufeff \t\r\n")[:1]
-    if first != "[":
-        try:
-            lines = pd.read_json(path, lines=True, dtype=False, encoding=encoding)
-        except UnicodeDecodeError:
-            raise DocketError(f"{path}: not {encoding} text; save it as UTF-8") from None
-        except (ValueError, TypeError, AttributeError):
-            # pandas names a byte offset, or fails on a line that is no object (a TypeError
-            # from 3.0, an AttributeError from 2.2)
-            raise DocketError(_bad_line(path, encoding)) from None
-        return _flat(path, lines)
     try:
+        if first != "[":
+            return _flat(path, pd.DataFrame(_json_lines(path, encoding), dtype=object))
         data = json.loads(path.read_text(encoding=encoding))
-    except (json.JSONDecodeError, UnicodeDecodeError) as exc:
+    except UnicodeDecodeError:
+        raise DocketError(f"{path}: not {encoding} text; save it as UTF-8") from None
+    except json.JSONDecodeError as exc:
         raise DocketError(f"{path}: not valid JSON ({exc}); give one array of objects or "
                           "JSON lines") from None
     odd = next((i for i, v in enumerate(data) if not isinstance(v, dict)), None)
@@ -255,24 +254,27 @@ def read_json(path: Path) -> pd.DataFrame:
         raise DocketError(f"{path}: item {odd + 1} of the JSON array is {kind}, not an "
                           "object; give one object per "
                           'record, e.g. [{"id": 1, "name": "..."}]')
-    return _flat(path, pd.DataFrame.from_records(data))
+    return _flat(path, pd.DataFrame(data, dtype=object))
 
 
-def _bad_line(path: Path, encoding: str) -> str:
-    """The first line of a JSON-lines file that is not one JSON object, said in one line."""
-    with path.open(encoding=encoding, errors="replace") as f:
+def _json_lines(path: Path, encoding: str) -> list[dict[str, object]]:
+    """Each line that is not blank, as one JSON object; the first that is none is named."""
+    rows = []
+    with path.open(encoding=encoding) as f:  # lines end at LF, CRLF or CR alike
         for n, line in enumerate(f, start=1):
             if not line.strip():
                 continue
             try:
                 value = json.loads(line)
             except json.JSONDecodeError as exc:
-                return (f"{path}: line {n} is not valid JSON ({exc.msg}); give one JSON object "
-                        "per line")
+                raise DocketError(f"{path}: line {n} is not valid JSON ({exc.msg}); give one "
+                                  "JSON object per line") from None
             if not isinstance(value, dict):
                 kind = JSON_KINDS.get(type(value), type(value).__name__)
-                return f"{path}: line {n} is {kind}, not an object; give one JSON object per line"
-    return f"{path}: cannot be read as JSON lines; give one JSON object per line"
+                raise DocketError(f"{path}: line {n} is {kind}, not an object; give one JSON "
+                                  "object per line")
+            rows.append(value)
+    return rows
 
 
 def _flat(path: Path, frame: pd.DataFrame) -> pd.DataFrame:
