@@ -8,6 +8,7 @@ import decimal
 import json
 from pathlib import Path
 
+import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 import pytest
@@ -97,3 +98,16 @@ def test_json_numbers_keep_every_digit(tmp_path: Path) -> None:
     path.write_text('{"id": 1, "x": 0.26633056045725956}\n{"id": 2, "x": 1.5}\n',
                     encoding="utf-8")
     assert load_table(path, "id").frame["x"].tolist() == ["0.26633056045725956", "1.5"]
+
+
+def test_an_id_that_pandas_wrote_as_the_index_is_a_column(tmp_path: Path) -> None:
+    # df.set_index('id').to_parquet(...) was refused: "no column 'id'; columns are name"
+    path = tmp_path / "indexed.parquet"
+    pd.DataFrame({"id": ["a1", "b2"], "name": ["Tove", "Ivo"]}).set_index("id").to_parquet(path)
+    table = load_table(path, "id")
+    assert table.frame.index.tolist() == ["a1", "b2"]
+    assert table.frame["name"].tolist() == ["Tove", "Ivo"]
+    unnamed = tmp_path / "filtered.parquet"  # an unnamed index stays out of the columns
+    pd.DataFrame({"id": ["a1", "b2", "c3"], "name": ["Tove", "Ivo", "Siv"]}).iloc[[0, 2]] \
+        .to_parquet(unnamed)
+    assert load_table(unnamed, "id").columns == ["name"]

@@ -74,7 +74,11 @@ def _read_parquet(path: Path) -> pd.DataFrame:
     check_names(path, pq.read_schema(path).names)
     # integers stay integers where a value is missing: pandas' default took the column through
     # a float, and 12345678901234567 was read as ...568
-    return pq.read_table(path).to_pandas(types_mapper=NULLABLE_INTEGERS.get)
+    frame = pq.read_table(path).to_pandas(types_mapper=NULLABLE_INTEGERS.get)
+    # a table pandas wrote with set_index('id') keeps its id as the frame's index: a column of
+    # the file like any other ("no column 'id'; columns are name, town"), unlike an unnamed one
+    named = [n for n in frame.index.names if n is not None]
+    return frame.reset_index(level=named) if named else frame
 
 
 def read_frame(path: Path) -> pd.DataFrame:
