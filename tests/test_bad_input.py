@@ -337,3 +337,23 @@ def test_a_closed_standard_output_is_refused_before_any_work(
     monkeypatch.setattr(sys, "stderr", None)  # '2>&-': nowhere to say it, the code stands
     assert main(["status", str(tmp_path / "nope.docket")]) == 2
     assert main(["status", str(sample_project)]) == 0
+
+
+def test_a_huge_value_in_an_error_is_cut_to_its_start_and_length(tmp_path: Path,
+                                                                 capsys) -> None:
+    # the line quoted both 1 MB ids whole: one line of two megabytes
+    big = "Z" * 1_000_000
+    dup = write(tmp_path / "dup.csv", f"id,name\n{big},a\n{big},b\n3,c\n")
+    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(dup), "--id", "id")
+    assert_one_line_error(code, err, f"{dup}: column 'id' has duplicate ids (ZZZZ",
+                          "…(1,000,002 characters)", "on rows 2, 3", "ids must be unique")
+    assert len(err) < 1000
+
+
+def test_a_long_message_keeps_its_start_and_its_end() -> None:
+    from docket.tui.terminal import said
+    path = "/data/" + "a" * 150 + ".csv"  # a long path is shown whole
+    assert said(f"{path}: bad") == f"{path}: bad"
+    text = said("start " + "word " * 100_000 + "what to do")
+    assert text.startswith("start word") and text.endswith("word what to do")
+    assert "…(498,016 characters)…" in text and len(text) < 2100

@@ -29,7 +29,7 @@ from . import (
 from .cli_base import Formatter, version, warn_line
 from .cli_checks import Parser, parse
 from .stopping import at_the_last, exit_code, received, stop_signals, work_done
-from .terminal import output_closed, safe_streams, shown
+from .terminal import output_closed, safe_streams, said
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -90,17 +90,17 @@ def _main(argv: list[str] | None) -> int:
         return code
     except DocketError as exc:
         with contextlib.suppress(Exception):  # standard error itself may be what failed
-            print(f"docket: {shown(exc)}", file=sys.stderr)
+            print(f"docket: {said(exc)}", file=sys.stderr)
         return exc.exit_code
     except sqlite3.Error as exc:  # the file met trouble mid-command (full disk, busy, damage)
         from docket.core import file_trouble
-        print(f"docket: {shown(file_trouble(exc, getattr(args, 'project', None) or 'project'))}",
+        print(f"docket: {said(file_trouble(exc, getattr(args, 'project', None) or 'project'))}",
               file=sys.stderr)
         return 2
     except KeyboardInterrupt as exc:  # what stands, when some of the work did
         by = f" by {received()}" if received() else ""
         with contextlib.suppress(OSError):  # after SIGHUP the terminal may be gone
-            print(f"docket: interrupted{by}; {shown(exc) or 'nothing was half-written'}",
+            print(f"docket: interrupted{by}; {said(exc) or 'nothing was half-written'}",
                   file=sys.stderr)
         return exit_code()
     except BrokenPipeError:

@@ -15,7 +15,7 @@ from collections.abc import Callable
 from typing import Any
 
 from .figures import many
-from .terminal import shown
+from .terminal import said
 
 
 class Formatter(argparse.RawDescriptionHelpFormatter):
@@ -72,8 +72,8 @@ def default_reviewer(given: str | None, option: str = "--reviewer") -> str:
 
 def warn_line(message: Warning | str, category: type, *rest: Any, **kw: Any) -> None:
     """How the command line shows a warning: one line, no source excerpt."""
-    # shown: a value inside (a column name) may hold a newline, which would forge a line
-    print(f"docket: warning: {shown(message)}", file=sys.stderr)
+    # said: a value inside (a column name) may hold a newline, which would forge a line
+    print(f"docket: warning: {said(message)}", file=sys.stderr)
 
 
 def open_project(path: str, readonly: bool = False) -> Any:

@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import io
 import json
+import re
 import sys
 from collections.abc import Iterator
 from contextlib import contextmanager, suppress
@@ -29,6 +30,25 @@ def shown(value: object) -> str:
     if text.isprintable():
         return text
     return "".join(stand_in(c) or c for c in text)
+
+
+LONGEST_WORD = 200  # characters without a space that a message shows whole (a long path fits)
+LONGEST_MESSAGE = 2000
+
+
+def said(value: object) -> str:
+    """An error or warning as one line a person can read: ``shown``, with a value of more than
+    ``LONGEST_WORD`` characters without a space cut to its start and its length, and a longer
+    line to its start and its end, which say where and what to do. A 1 MB cell in a refused
+    file was quoted whole: one line of two megabytes."""
+    text = re.sub(rf"\S{{{LONGEST_WORD + 1},}}",
+                  lambda m: f"{m[0][:LONGEST_WORD // 2]}…({len(m[0]):,} characters)",
+                  shown(value))
+    if len(text) <= LONGEST_MESSAGE:
+        return text
+    cut = len(text) - LONGEST_MESSAGE
+    return f"{text[:LONGEST_MESSAGE * 2 // 3]} …({cut:,} characters)… " \
+           f"{text[-(LONGEST_MESSAGE // 3):]}"
 
 
 def padded(value: object, width: int) -> str:
