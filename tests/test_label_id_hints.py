@@ -76,3 +76,30 @@ def test_a_link_row_with_its_ids_swapped_is_named_so(tiny_tables, tmp_path: Path
     assert main(["evaluate", str(project), "--predictions", str(scores)]) == 2
     assert "it is the right table's: left_id takes the left table's ids" in \
         capsys.readouterr().err
+
+
+def test_ids_with_spaces_at_their_ends_or_in_other_case_are_named_so(tmp_path: Path,
+                                                                     capsys) -> None:
+    # the message quoted 'Bo-3 ' beside the pair and left the user to spot the space
+    project = _every_pair_of(tmp_path, "Ay-1,Arlo Vesk\nAy-2,Arlo Vesk\nBo-3,Cai Sint\n"
+                                       "Kit-4,Dag Lunn\nKIT-4,Dag Lunn\n")
+    cases = [("Bo-3 ", "'Bo-3 ' has spaces at its ends, and the record id is 'Bo-3'"),
+             ("bo-3", "'bo-3' is the record id 'Bo-3' in other letter case")]
+    for given, said in cases:
+        labels = tmp_path / "l.csv"
+        labels.write_text(f"left_id,right_id,label\nAy-1,{given},match\n", encoding="utf-8")
+        scores = tmp_path / "s.csv"
+        scores.write_text(f"left_id,right_id,score\n{given},Ay-2,0.5\n", encoding="utf-8")
+        commands = [["label", str(project), "--reviewer", "ana", "--from", str(labels)],
+                    ["evaluate", str(project), "--predictions", str(scores)],
+                    ["matchers", str(project), "import", str(scores)]]
+        if given == given.strip():  # missed trims the ids it is given
+            commands.append(["missed", str(project), "add", given, "Ay-2", "--reviewer", "ana"])
+        for argv in commands:
+            assert main(argv) == 2
+            err = capsys.readouterr().err
+            assert said in err and len(err.splitlines()) == 1, err
+    # two records one but for letter case (Kit-4, KIT-4): no guess between them
+    labels.write_text("left_id,right_id,label\nAy-1,kit-4,match\n", encoding="utf-8")
+    assert main(["label", str(project), "--reviewer", "ana", "--from", str(labels)]) == 2
+    assert "letter case" not in capsys.readouterr().err

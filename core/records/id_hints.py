@@ -1,5 +1,6 @@
 """Hints for ids in a label, predictions, matcher or missed-match file that name no record but
-nearly do: the same id in another Unicode form, or with its leading zeros dropped."""
+nearly do: the same id in another Unicode form, with its leading zeros dropped, with spaces at
+its ends or in other letter case."""
 
 from __future__ import annotations
 
@@ -24,7 +25,7 @@ def form_hint(given: Iterable[object], known: Collection[str]) -> str:
                     "(its accents stored as separate marks, or the other way round): save the "
                     "file with its characters as the records have them (composed, NFC, as most "
                     "systems write them)")
-    return _zeros_hint(given, known)
+    return _zeros_hint(given, known) or _written_hint(given, known)
 
 
 def _zeros_hint(given: Iterable[object], known: Collection[str]) -> str:
@@ -45,4 +46,27 @@ def _zeros_hint(given: Iterable[object], known: Collection[str]) -> str:
         if twin is not None:
             return (f"; '{text}' looks like the record id '{twin}' with its leading zeros "
                     "dropped, as a spreadsheet does to numbers: keep the ids as text")
+    return ""
+
+
+def _written_hint(given: Iterable[object], known: Collection[str]) -> str:
+    """A hint for an id that is a record's id but for spaces at its ends or letter case ('N-7 ',
+    'n-7' for 'N-7'): the message quoted it beside the pair and left the user to spot it."""
+    folded: dict[str, str | None] | None = None
+    for value in given:
+        text = str(value)
+        if text in known:
+            continue
+        if text.strip() in known:
+            return (f"; '{text}' has spaces at its ends, and the record id is "
+                    f"'{text.strip()}': trim the file's ids")
+        if folded is None:
+            folded = {}
+            for k in known:
+                key = k.casefold()
+                folded[key] = None if key in folded else k  # two: cannot tell which
+        twin = folded.get(text.strip().casefold())
+        if twin is not None:
+            return (f"; '{text}' is the record id '{twin}' in other letter case: write it as "
+                    "the records have it")
     return ""
