@@ -133,6 +133,19 @@ def test_a_second_header_from_files_joined_end_to_end_is_refused_by_its_line(
     assert not project.exists()
 
 
+@pytest.mark.parametrize("second", ["\ufeffid,name,town", "ID,Name,Town", " id ,NAME, town"])
+def test_a_second_header_with_its_own_mark_or_other_case_is_refused(
+        second: str, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # two exports joined, each with a byte-order mark, gave a record whose id was '\ufeffid'
+    left = tmp_path / "joined.csv"
+    left.write_text("\ufeff" + _csv(ROWS[:2], "\n") + _csv(ROWS[2:], "\n", second),
+                    encoding="utf-8")
+    project = tmp_path / "p.docket"
+    code, err = run(capsys, "new", str(project), "--left", str(left), "--id", "id")
+    assert_one_line_error(code, err, f"{left}: line 4 repeats the header", "remove that line")
+    assert not project.exists()
+
+
 def test_a_utf8_mark_over_other_bytes_is_named_with_the_line(
         tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
     # it said "neither UTF-8 nor utf-8-sig text", naming a codec and no line

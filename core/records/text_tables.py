@@ -143,10 +143,10 @@ def check_widths(path: Path, encoding: str, sep: str) -> None:
     with path.open(encoding=encoding, newline="") as f:
         rows = csv.reader(f, delimiter=sep)
         try:
-            header = [c.strip() for c in next(rows, [])]
+            header = _header_key(next(rows, []))
             width = len(header)
             for row in rows:
-                if row and [c.strip() for c in row] == header:  # files joined end to end
+                if row and _header_key(row) == header:  # files joined end to end
                     raise DocketError(
                         f"{path}: line {rows.line_num} repeats the header (were two files "
                         "joined?); remove that line, or read the files one at a time")
@@ -160,6 +160,13 @@ def check_widths(path: Path, encoding: str, sep: str) -> None:
                               "contents") from None
         finally:
             csv.field_size_limit(limit)
+
+
+def _header_key(row: list[str]) -> list[str]:
+    """A row as a header is recognised again: each name trimmed, in ASCII lower case (one column
+    to the project file), without a byte-order mark. Files joined end to end whose second kept
+    its mark, or wrote 'ID,Name', were read with a record whose id was '\ufeffid' or 'ID'."""
+    return [_ascii_lower(c.strip().lstrip("\ufeff").strip()) for c in row]
 
 
 def _undecodable(path: Path, encoding: str, marked: str | None) -> str:
