@@ -48,6 +48,14 @@ CASES = {
                   ["short.csv", "line 3", "3 of the header's 8"]),
     "long row": (lambda d: write(d / "long.csv", "id,a\n1,2\n2,3,4,5\n"),
                  ["long.csv", "line 3", "4 of the header's 2"]),
+    # pandas said "EOF inside string starting at row 1"; a row that swallowed lines was
+    # named by its last line, far from the quote
+    "quote left open": (lambda d: write(d / "open.tsv", 'id\tname\n1\t"Ann\n2\tBo\n3\tCy\n'),
+                        ["open.tsv: line 2: a value opens a quote that never closes"]),
+    "quote closed late": (lambda d: write(d / "late.csv",
+                                          'id,name,town\n1,"Ann,Oslo\n2,Bo,Oslo\n3,Cy",x,y\n'),
+                          ["late.csv: line 2 has 4 of the header's 3 fields (a value there "
+                           "opens a quote that closes only on line 4"]),
     "JSON array of numbers": (lambda d: write(d / "nums.json", json.dumps(list(range(305)))),
                               ["nums.json", "item 1", "is a number, not an object"]),
     "JSON object of records": (lambda d: write(d / "wrap.json", json.dumps(

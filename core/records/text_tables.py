@@ -12,6 +12,7 @@ from __future__ import annotations
 import codecs
 import csv
 import io
+import itertools
 import json
 import sys
 import warnings
@@ -145,6 +146,8 @@ def check_widths(path: Path, encoding: str, sep: str) -> None:
         try:
             header = _header_key(next(rows, []))
             width = len(header)
+            start = rows.line_num + 1
+            last = (start, start)  # the lines of the last row read
             for row in rows:
                 if row and _header_key(row) == header:  # files joined end to end
                     raise DocketError(
@@ -152,14 +155,43 @@ def check_widths(path: Path, encoding: str, sep: str) -> None:
                         "joined?); remove that line, or read the files one at a time")
                 if row and len(row) != width:
                     raise DocketError(
-                        f"{path}: line {rows.line_num} has {len(row)} of the header's {width} "
-                        "fields; give every row one value per column (empty ones too), and "
-                        f"quote values that hold {sep!r}")
+                        f"{path}: line {start} has {len(row)} of the header's {width} fields"
+                        f"{_quote_runs_on(start, rows.line_num)}; give every row one value per "
+                        f"column (empty ones too), and quote values that hold {sep!r}")
+                if row:
+                    last = (start, rows.line_num)
+                start = rows.line_num + 1
+            if last[1] > last[0]:  # the last row ran over lines: to the end, unclosed?
+                _check_closed(path, encoding, sep, last[0])
         except csv.Error as exc:
             raise DocketError(f"{path}: line {rows.line_num + 1}: {exc}; check the file's "
                               "contents") from None
         finally:
             csv.field_size_limit(limit)
+
+
+def _quote_runs_on(start: int, end: int) -> str:
+    """Why a row read as one runs over several lines: a quote opened and not closed on its
+    line. The refusal named the last line it swallowed, not the one holding the quote."""
+    if end == start:
+        return ""
+    return (f" (a value there opens a quote that closes only on line {end}, or never: close "
+            "it, or double a quote meant as a character)")
+
+
+def _check_closed(path: Path, encoding: str, sep: str, start: int) -> None:
+    """Refuse a quote opened on line ``start`` that the file never closes: read leniently, the
+    rest of the file became one value, or pandas said "EOF inside string starting at row 1"."""
+    with path.open(encoding=encoding, newline="") as f:
+        rest = itertools.islice(f, start - 1, None)
+        try:
+            for _ in csv.reader(rest, delimiter=sep, strict=True):
+                pass
+        except csv.Error as exc:
+            if "unexpected end of data" in str(exc):
+                raise DocketError(f"{path}: line {start}: a value opens a quote that never "
+                                  "closes; close it, or double a quote meant as a "
+                                  "character") from None
 
 
 def _header_key(row: list[str]) -> list[str]:
