@@ -214,3 +214,18 @@ def test_a_column_name_holding_a_nul_is_refused_by_its_position(
     assert_one_line_error(code, err, f"{left}: column 4's name 'no\\x00te' holds a NUL",
                           "rename the column")
     assert sorted(p.name for p in tmp_path.iterdir()) == [left.name]
+
+
+@pytest.mark.parametrize("suffix", [".csv", ".tsv"])
+def test_a_value_that_goes_on_after_its_closing_quote_is_refused(
+        suffix: str, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # '"Bob" Smith' was read as 'Bob Smith': the record changed without a word
+    sep = "," if suffix == ".csv" else "\t"
+    left = tmp_path / f"q{suffix}"
+    left.write_text(sep.join(["id", "name", "town"]) + "\n" + sep.join(["1", "Ivo", "Vik"])
+                    + "\n" + sep.join(["2", '"Bob" Smith', "Vik"]) + "\n", encoding="utf-8")
+    project = tmp_path / "p.docket"
+    code, err = run(capsys, "new", str(project), "--left", str(left), "--id", "id")
+    assert_one_line_error(code, err, f"{left}: line 3: a value goes on after its closing quote",
+                          '"""Bob"" Smith"')
+    assert not project.exists()

@@ -12,7 +12,6 @@ from __future__ import annotations
 import codecs
 import csv
 import io
-import itertools
 import json
 import sys
 import warnings
@@ -142,12 +141,13 @@ def check_widths(path: Path, encoding: str, sep: str) -> None:
     # text (an abstract, a note) is a record's value like any other
     limit = csv.field_size_limit(sys.maxsize)
     with path.open(encoding=encoding, newline="") as f:
-        rows = csv.reader(f, delimiter=sep)
+        # strict: a value with text after its closing quote ('"Bob" Smith') was read as
+        # 'Bob Smith', and a quote never closed made the rest of the file one value
+        rows = csv.reader(f, delimiter=sep, strict=True)
         try:
             header = _header_key(next(rows, []))
             width = len(header)
-            start = rows.line_num + 1
-            last = (start, start)  # the lines of the last row read
+            start = rows.line_num + 1  # the line the next row begins on
             for row in rows:
                 if row and _header_key(row) == header:  # files joined end to end
                     raise DocketError(
@@ -158,40 +158,32 @@ def check_widths(path: Path, encoding: str, sep: str) -> None:
                         f"{path}: line {start} has {len(row)} of the header's {width} fields"
                         f"{_quote_runs_on(start, rows.line_num)}; give every row one value per "
                         f"column (empty ones too), and quote values that hold {sep!r}")
-                if row:
-                    last = (start, rows.line_num)
                 start = rows.line_num + 1
-            if last[1] > last[0]:  # the last row ran over lines: to the end, unclosed?
-                _check_closed(path, encoding, sep, last[0])
         except csv.Error as exc:
-            raise DocketError(f"{path}: line {rows.line_num + 1}: {exc}; check the file's "
-                              "contents") from None
+            raise DocketError(_quoting(path, exc, start, rows.line_num)) from None
         finally:
             csv.field_size_limit(limit)
 
 
 def _quote_runs_on(start: int, end: int) -> str:
-    """Why a row read as one runs over several lines: a quote opened and not closed on its
-    line. The refusal named the last line it swallowed, not the one holding the quote."""
+    """Why a row read as one runs over several lines: a quote opened and closed lines later.
+    The refusal named the last line it swallowed, not the one holding the quote."""
     if end == start:
         return ""
-    return (f" (a value there opens a quote that closes only on line {end}, or never: close "
-            "it, or double a quote meant as a character)")
+    return (f" (a value there opens a quote that closes only on line {end}: close it on its "
+            "line, or double a quote meant as a character)")
 
 
-def _check_closed(path: Path, encoding: str, sep: str, start: int) -> None:
-    """Refuse a quote opened on line ``start`` that the file never closes: read leniently, the
-    rest of the file became one value, or pandas said "EOF inside string starting at row 1"."""
-    with path.open(encoding=encoding, newline="") as f:
-        rest = itertools.islice(f, start - 1, None)
-        try:
-            for _ in csv.reader(rest, delimiter=sep, strict=True):
-                pass
-        except csv.Error as exc:
-            if "unexpected end of data" in str(exc):
-                raise DocketError(f"{path}: line {start}: a value opens a quote that never "
-                                  "closes; close it, or double a quote meant as a "
-                                  "character") from None
+def _quoting(path: Path, exc: csv.Error, start: int, line: int) -> str:
+    """What a strict reading of the rows met, named by its line."""
+    if "unexpected end of data" in str(exc):
+        return (f"{path}: line {start}: a value opens a quote that never closes; close it, or "
+                "double a quote meant as a character")
+    if "expected after" in str(exc):
+        return (f"{path}: line {line}: a value goes on after its closing quote (as in "
+                '"Bob" Smith); quote the whole value and double the quotes inside it '
+                '("""Bob"" Smith"), or leave its quotes out')
+    return f"{path}: line {line}: {exc}; check the file's contents"
 
 
 def _header_key(row: list[str]) -> list[str]:
