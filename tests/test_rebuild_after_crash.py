@@ -9,6 +9,8 @@ import subprocess
 import sys
 from pathlib import Path
 
+import pytest
+
 from docket.core import Project
 from docket.core.quality.intervals import clopper_pearson
 from tests.conftest import sample_spec
@@ -81,3 +83,25 @@ def test_sqlite_sees_no_wal_of_the_old_file(tmp_path: Path) -> None:
     conn = sqlite3.connect(path)
     assert conn.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
     conn.close()
+
+
+def test_a_project_another_process_is_writing_to_is_not_replaced(
+        tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    # --force renamed the new file over it and removed its -wal: what the writer was saving
+    # (a label file's batches) went into a file no longer there
+    from docket.core import DocketError
+    monkeypatch.setattr("docket.core.storage.build_files.WAIT_S", 0.05)
+    path = tmp_path / "p.docket"
+    Project.create(sample_spec(path, audit=50))
+    writer = sqlite3.connect(path, isolation_level=None)
+    writer.execute("BEGIN IMMEDIATE")
+    writer.execute("INSERT INTO meta VALUES ('saving', '\"1\"')")
+    with pytest.raises(DocketError, match=r"another docket kept the project locked .* it was "
+                                          "not replaced"):
+        Project.create(sample_spec(path, audit=60, force=True))
+    writer.execute("COMMIT")
+    writer.close()
+    with Project.open(path, readonly=True) as project:  # the writer's work stands
+        assert project.connection.execute(
+            "SELECT value FROM meta WHERE key = 'saving'").fetchone() == ('"1"',)
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["p.docket"]

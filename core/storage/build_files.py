@@ -5,7 +5,13 @@ from __future__ import annotations
 
 import os
 import shutil
+import sqlite3
 from pathlib import Path
+
+from .file_health import ProjectFileError, holds_database, uri
+from .store import BUSY_TIMEOUT_MS
+
+WAIT_S = BUSY_TIMEOUT_MS / 1000  # as long as any command waits for the project's lock
 
 
 def replace_project_file(new: Path, target: Path) -> None:
@@ -15,6 +21,7 @@ def replace_project_file(new: Path, target: Path) -> None:
     malformed"), so the old file is moved aside first and its side files removed before the new
     one takes its name.
     """
+    _not_being_written(target)
     if target.exists():
         aside = target.with_name(f".{target.name}.{os.getpid()}.replaced")
         os.replace(target, aside)
@@ -23,6 +30,29 @@ def replace_project_file(new: Path, target: Path) -> None:
     for extra in ("-wal", "-shm", "-journal"):
         Path(f"{target}{extra}").unlink(missing_ok=True)
     os.replace(new, target)
+
+
+def _not_being_written(target: Path) -> None:
+    """Refuse to replace a project while another process holds its write lock: the rename
+    went ahead and removed that process's -wal, so what it was saving (a label file's
+    batches, a merge) was committed into a file no longer there."""
+    if not holds_database(target):
+        return
+    try:
+        conn = sqlite3.connect(uri(target, "rw"), uri=True, isolation_level=None,
+                               timeout=WAIT_S)
+    except sqlite3.Error:
+        return  # a file this user may not write: nobody else is writing through us either
+    try:
+        conn.execute("BEGIN IMMEDIATE")
+        conn.execute("ROLLBACK")
+    except sqlite3.OperationalError as exc:
+        if "locked" in str(exc) or "busy" in str(exc):
+            raise ProjectFileError(f"{target}: another docket kept the project locked for "
+                                   f"more than {WAIT_S:g} s, writing to it; it was not "
+                                   "replaced; try again when that command is done") from None
+    finally:
+        conn.close()
 
 
 def remove_stale_builds(target: Path) -> None:
