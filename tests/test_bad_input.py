@@ -98,6 +98,8 @@ def test_no_columns_in_common(tmp_path: Path, good: Path, capsys) -> None:
     (["--map", "name=ref"], ["--map name=ref: names an id column"]),  # (said it had no 'id')
     (["--map", "name=full", "--map", "name=town"],  # the last one won, unsaid
      ["--map pairs left column 'name' with 'full' and with 'town'; keep one"]),
+    (["--map", "name=full", "--map", "town=full"],  # one right column compared twice, unsaid
+     ["--map pairs right column 'full' with 'name' and with 'town'; keep one"]),
     (["--map", "name=full", "--field", "name:skip", "--field", "town:skip"],  # said "no columns
      ["--field ...:skip leaves no column to compare (skipped: name, town)"]),  # in common"
 ])

@@ -76,6 +76,11 @@ def parse_map(items: list[str] | None) -> dict[str, str]:
         if out.get(left.strip(), right.strip()) != right.strip():  # the last one won, unsaid
             raise DocketError(f"--map pairs left column '{left.strip()}' with "
                               f"'{out[left.strip()]}' and with '{right.strip()}'; keep one")
+        taken = next((k for k, v in out.items() if v == right.strip() and k != left.strip()),
+                     None)
+        if taken is not None:  # one right column read as two fields counts its evidence twice
+            raise DocketError(f"--map pairs right column '{right.strip()}' with '{taken}' and "
+                              f"with '{left.strip()}'; keep one")
         out[left.strip()] = right.strip()
     return out
 
