@@ -359,3 +359,19 @@ def test_a_long_message_keeps_its_start_and_its_end() -> None:
     text = said("start " + "word " * 100_000 + "what to do")
     assert text.startswith("start word") and text.endswith("word what to do")
     assert "…(498,016 characters)…" in text and len(text) < 2100
+
+
+def test_force_never_replaces_another_programs_database(good: Path, tmp_path: Path,
+                                                         capsys) -> None:
+    # it was replaced by the project: any SQLite file passed as one
+    other = tmp_path / "notes.db"
+    conn = sqlite3.connect(other)
+    conn.execute("CREATE TABLE note (body TEXT)")
+    conn.commit()
+    conn.close()
+    before = other.read_bytes()
+    code, err = run(capsys, "new", str(other), "--left", str(good), "--id", "id", "--force")
+    assert_one_line_error(code, err, f"{other}: is an SQLite database of another program",
+                          "--force replaces only a project")
+    assert other.read_bytes() == before
+

@@ -93,7 +93,8 @@ class Built:
 
 def _check(spec: NewProject) -> None:
     file_health.check_new(spec.path, spec.force,
-                          [Path(p) for p in (spec.left, spec.right, spec.pairs_file) if p])
+                          [Path(p) for p in (spec.left, spec.right, spec.pairs_file) if p],
+                          ours=store.APPLICATION_ID)
     if not 0.0 <= spec.overlap <= 1.0:
         raise DocketError(f"--overlap {spec.overlap}: give a share between 0 and 1")
     if spec.overlap_reviewers < 2:

@@ -122,10 +122,27 @@ def special_file(path: Path) -> bool:
     return not (stat.S_ISREG(mode) or stat.S_ISDIR(mode))
 
 
-def check_new(path: Path, force: bool = False, inputs: Sequence[Path] = ()) -> None:
+def application_id(path: Path) -> int | None:
+    """The application id in the header of the SQLite database ``path`` (0 for most
+    programs' files), or None when it cannot be read."""
+    try:
+        probe = sqlite3.connect(uri(path, "ro"), uri=True)
+    except sqlite3.Error:
+        return None
+    try:
+        return int(probe.execute("PRAGMA application_id").fetchone()[0])
+    except sqlite3.Error:
+        return None
+    finally:
+        close_reader(probe, path)
+
+
+def check_new(path: Path, force: bool = False, inputs: Sequence[Path] = (),
+              ours: int | None = None) -> None:
     """A project about to be built: its folder exists and can be written, and what ``path``
-    names already is replaced only when asked and only if it is a project (or empty): never a
-    file the build reads, nor, say, a table of records given the project's name."""
+    names already is replaced only when asked and only if it is a project (its application id
+    ``ours``) or empty: never a file the build reads, nor, say, a table of records given the
+    project's name, nor another program's database."""
     folder = _folder(path)
     if not _marked_writable(folder):
         raise ProjectFileError(f"{path}: the folder {folder} is read-only; build the project "
@@ -145,6 +162,11 @@ def check_new(path: Path, force: bool = False, inputs: Sequence[Path] = ()) -> N
     if path.stat().st_size and not holds_database(path):
         raise DocketError(f"{path}: is not a docket project, and --force replaces only a "
                           "project; give the project another name")
+    if path.stat().st_size and ours is not None and application_id(path) not in (None, ours):
+        # another program's database, which --force replaced with the project
+        raise DocketError(f"{path}: is an SQLite database of another program, not a docket "
+                          "project, and --force replaces only a project; give the project "
+                          "another name")
 
 
 def check_place(path: Path, write: bool) -> None:
