@@ -375,3 +375,22 @@ def test_force_never_replaces_another_programs_database(good: Path, tmp_path: Pa
                           "--force replaces only a project")
     assert other.read_bytes() == before
 
+
+def test_force_never_replaces_decisions_it_cannot_count(sample_project: Path, good: Path,
+                                                       capsys) -> None:
+    # a newer docket's project was replaced with its decisions, uncounted, so
+    # --discard-decisions was not asked for
+    with Project.open(sample_project) as project:
+        item = project.next_pairs("ana", 1)[0]
+        project.decide(item.pair_id, "ana", "match")
+    conn = sqlite3.connect(sample_project)
+    conn.execute("PRAGMA user_version = 99")
+    conn.close()
+    before = hashlib.sha256(sample_project.read_bytes()).hexdigest()
+    code, err = run(capsys, "new", str(sample_project), "--left", str(good), "--id", "id",
+                    "--force")
+    assert_one_line_error(code, err, "written by a newer docket", "cannot tell what decisions",
+                          "--force --discard-decisions")
+    assert hashlib.sha256(sample_project.read_bytes()).hexdigest() == before
+    assert main(["new", str(sample_project), "--left", str(good), "--id", "id", "--force",
+                 "--discard-decisions"]) == 0  # said: replaced

@@ -82,15 +82,21 @@ def open_project(path: str, readonly: bool = False) -> Any:
 
 
 def refuse_to_discard(path: str, option: str, keep: str = "") -> None:
-    """A rebuild over a project that holds people's decisions (any but ``keep``'s) needs
-    saying so with --discard-decisions; a file that is no project is left to the build."""
+    """A rebuild over a project that holds people's decisions (any but ``keep``'s), or that
+    cannot be read to count them, needs saying so with --discard-decisions; a file that is no
+    project is left to the build."""
     from docket.core import DocketError
+    from docket.core.errors import NotAProject
 
     try:
         with open_project(path, readonly=True) as project:
             n, people = project.decisions_by_others(keep)
-    except DocketError:
+    except NotAProject:
         return
+    except DocketError as exc:  # a newer docket's project, a damaged one: it was replaced
+        raise DocketError(f"{str(exc).rstrip('.')}; so {option} cannot tell what decisions it "
+                          f"holds: copy the file to keep them, then pass {option} "
+                          "--discard-decisions") from None
     if n:
         raise DocketError(f"{path} holds {many(n, 'decision')} by {many(people, 'reviewer')} "
                           f"that {option} would discard; copy the file to keep them, then pass "
