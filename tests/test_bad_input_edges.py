@@ -67,6 +67,12 @@ CASES = {
     "UTF-16 without a mark": (_utf16_no_bom, ["nobom.csv", "byte-order mark", "UTF-8"]),
     "gzip under a .csv name": (lambda d: _bytes(d / "gz.csv", gzip.compress(b"id,name\n1,a\n")),
                                ["gz.csv", "gzip-compressed", "unpack it"]),
+    # each was "not utf-8 text; save it as UTF-8"
+    "gzip under a .jsonl name": (lambda d: _bytes(d / "gz.jsonl", gzip.compress(b'{"id": 1}\n')),
+                                 ["gz.jsonl", "gzip-compressed", "unpack it"]),
+    "Parquet under a .jsonl name": (lambda d: _bytes(d / "pq.jsonl", b"PAR1" + b"\0" * 40
+                                                     + b"PAR1"),
+                                    ["pq.jsonl: a Parquet file; name it .parquet"]),
     "a spreadsheet under a .csv name": (lambda d: _bytes(d / "s.csv", b"PK\x03\x04" + b"\0" * 40),
                                         ["s.csv", "zip archive", "save the sheet as CSV"]),
     "bytes that are no text": (lambda d: _bytes(d / "b.csv", b"id,name\n1,\xff\x81\n"),

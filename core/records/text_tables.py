@@ -43,8 +43,8 @@ def bom_encoding(head: bytes) -> str | None:
     return None
 
 
-# The first bytes of files that are often given a .csv name by mistake (common practice: each
-# format's magic number, from its specification)
+# The first bytes of files that are often given a .csv or .jsonl name by mistake (common
+# practice: each format's magic number, from its specification)
 PACKED = ((b"\x1f\x8b", "a gzip-compressed file; unpack it first"),
           (b"PK\x03\x04", "a zip archive (or a spreadsheet, which is one); unpack it, or "
                           "save the sheet as CSV"),
@@ -64,10 +64,14 @@ def _packed(path: Path, head: bytes) -> str | None:
     return found
 
 
-def _encodings(path: Path, head: bytes) -> list[str]:
+def _refuse_packed(path: Path, head: bytes) -> None:
     packed = _packed(path, head)
     if packed:
         raise DocketError(f"{path}: {packed}")
+
+
+def _encodings(path: Path, head: bytes) -> list[str]:
+    _refuse_packed(path, head)
     named = bom_encoding(head)
     if named:
         return [named]
@@ -268,6 +272,7 @@ def read_json(path: Path) -> pd.DataFrame:
     """
     with path.open("rb") as f:
         head = f.read(HEAD_BYTES)
+    _refuse_packed(path, head)  # a Parquet or gzip file named .jsonl was "not utf-8 text"
     encoding = bom_encoding(head) or "utf-8"
     first = head.decode(encoding, errors="ignore").lstrip("\ufeff \t\r\n")[:1]
     try:
