@@ -19,8 +19,9 @@ composite's weight, and a move (all disagreeing) counts about once too. A positi
 keeps each field's levels in order and every sign, and the explanation still adds up: each
 field's part is its weight times the factor.
 
-The group is found by column name (English words for address parts and a phone), the way the
-kind of a field is guessed; ``docket new --together`` names it instead, or turns it off.
+The group is found by column name (words for address parts and a phone in English and five
+other European languages), the way the kind of a field is guessed; ``docket new --together``
+names it instead, or turns it off.
 """
 
 from __future__ import annotations
@@ -35,10 +36,23 @@ from ..errors import DocketError
 from ..types import FieldSpec
 
 FLOOR = 0.05  # the same floor as the shrink of dependence.py: a group never says nothing
-# address parts and a phone line; 'mobile' is left out: a mobile belongs to a person
-_PLACE = re.compile(r"(addr|street|road|house|flat|apartment|town|city|village|county|"
-                    r"district|province|region|country|post|zip|phone|tel(?!l)|landline)", re.I)
-_NOT_PLACE = re.compile(r"(e-?mail|mobile|cell|name|date|birth|born)", re.I)
+
+
+def _words(*words: str) -> str:
+    """Words matched only whole: 'state' not in 'estate', 'ort' not in 'report'."""
+    return "|".join(rf"(?<![a-z]){w}(?![a-z])" for w in words)
+
+
+# Address parts and a phone line, in English and in the languages of the nearest registers
+# (German, French, Spanish, Italian, Dutch); 'mobile' is left out: a mobile belongs to a person.
+_PLACE = re.compile(r"(addr|adr|street|road|house|flat|apartment|suburb|locality|town|city|"
+                    r"village|county|district|provinc|region|country|post|zip|phone|tel(?!l)|"
+                    r"landline|stra(ss|ß)e|straat|stadt|wohnort|gemeinde|plaats|gemeente|"
+                    r"ville|commune|calle|ciudad|direcci|municip|indirizzo|citt|comune|"
+                    + _words("state", "ort", "plz", "rue", "via", "cap", "cp", "huis") + ")",
+                    re.I)
+_NOT_PLACE = re.compile(r"(e-?mail|mobile|cell|handy|portable|movil|móvil|mobiel|name|date|"
+                        r"birth|born|geburt|naissance|nacimiento|nascita|geboorte)", re.I)
 OFF = "none"  # ``--together none``: every field counts on its own
 
 
