@@ -150,6 +150,11 @@ def test_an_amount_with_a_decimal_comma_is_no_date() -> None:
     amounts = pd.Series([f"{k}.{k % 1000:03d},{k % 100:02d}" for k in range(1, 300)])
     assert detect_kind("betrag", amounts) == "number"
     assert detect_kind("datum", pd.Series(["04.12.2024", "31.01.2023"] * 50)) == "date"
+    # a column whose name says nothing is a date by the shape of its values, months in words
+    # too (one register writes '3 Mar 1980', another 1980-03-03; common practice)
+    mixed = pd.Series(["3 Mar 1980", "1980-03-03", "03/03/1980", "March 3, 1980"] * 30)
+    assert detect_kind("c3", mixed) == "date"
+    assert detect_kind("c5", pd.Series(["12 Mill Lane", "4 Marsh Road"] * 60)) != "date"
 
 
 def test_amounts_written_the_ways_shops_write_them() -> None:

@@ -14,10 +14,16 @@ from . import normalise, placeholders
 from .unpaired import map_advice, unpaired_warning
 from .unreadable import unreadable_warning
 
-_CODE_HINT = re.compile(r"(post|zip|phone|tel|mobile|fax|e-?mail|code|iban|ssn|nhs|vat|isbn)",
+_CODE_HINT = re.compile(r"(post|zip|plz|phone|tel|mobile|fax|e-?mail|code|iban|ssn|nhs|vat|isbn)",
                         re.I)
 _NAME_HINT = re.compile(r"(name|owner|surname|forename|given|first|last|pet)", re.I)
 _DATE_HINT = re.compile(r"(date|dob|born|birth)", re.I)
+# a date by the shape of its values, for columns whose name says nothing ('c3', 'geburtsdatum'):
+# digits split by '-', '/' or '.', or a day and a year around a month in words ('3 Mar 1980',
+# 'March 3, 1980')
+_MONTH = r"(?:jan|feb|mar|apr|may|jun|jul|aug|sep|oct|nov|dec)[a-z]*\.?"
+_DATE_SHAPE = re.compile(rf"(?:\d[-/.]\d|\b\d{{1,2}}\s+{_MONTH}\s+\d{{2,4}}\b|"
+                         rf"\b{_MONTH}\s+\d{{1,2}},?\s+\d{{2,4}}\b)", re.I)
 _GROUPING = re.compile(r"[\s\-./]+")  # how an identifier's digits are grouped: 'QX 12 34 56 C'
 
 
@@ -34,7 +40,7 @@ def detect_kind(column: str, values: pd.Series) -> str:
         return float(texts.map(lambda v: func(v) is not None).mean())
     mean_len = float(texts.str.len().mean())
     mean_tokens = float(texts.str.split().str.len().mean())
-    if (_DATE_HINT.search(column) or texts.str.contains(r"\d[-/.]\d").mean() > 0.9) and \
+    if (_DATE_HINT.search(column) or texts.str.contains(_DATE_SHAPE).mean() > 0.9) and \
             share(normalise.date) > 0.9 and mean_len <= 30:
         return "date"
     leading_zero = texts.str.match(r"^0\d").mean() > 0.05
