@@ -189,6 +189,8 @@ def _text_similarity(kind: str, a: list, b: list, extra: Indexed | None) -> np.n
         words = word_match.best_match(extra.data, extra.ia[several], extra.ib[several],
                                       _THREADS["workers"])
         whole[several] = np.maximum(whole[several], words)
+        initial = np.flatnonzero(word_match.initials(extra.data, extra.ia, extra.ib))
+        whole[initial] = np.maximum(whole[initial], word_match.INITIAL)
         return whole
     cosine = text_vectors.row_cosine(extra.data, extra.data, extra.ia, extra.ib)
     tokens = SCORERS[kind](a, b)

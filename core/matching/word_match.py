@@ -26,6 +26,13 @@ class NameWords:
     start: np.ndarray
     code: np.ndarray
     vocab: np.ndarray  # object: each distinct word once
+    length: np.ndarray  # per word of ``vocab``: its length in characters
+    first: np.ndarray  # per word of ``vocab``: a code of its first character
+
+
+# An initial and a name it could stand for ('j', 'jana') are 'similar' (between the name cuts
+# 0.80 and 0.92): Jaro–Winkler gives them 0.775, below one with a letter in three changed.
+INITIAL = np.float32(0.82)
 
 
 def name_words(values: list[str], spaced: bool = False) -> NameWords:
@@ -41,15 +48,34 @@ def name_words(values: list[str], spaced: bool = False) -> NameWords:
         encoded = pc.dictionary_encode(pc.list_flatten(parts))
         code = encoded.indices.to_numpy().astype(np.int64)
         vocab = np.asarray(encoded.dictionary.to_pylist(), dtype=object)
+        length = pc.utf8_length(encoded.dictionary).to_numpy(zero_copy_only=False)
+        first = pc.dictionary_encode(pc.utf8_slice_codeunits(encoded.dictionary, 0, 1))
+        first_code = first.indices.to_numpy(zero_copy_only=False)
     else:
         split = [v.split() for v in values]
         count = np.fromiter((len(w) for w in split), np.int64, len(split))
         code, words = pd.factorize(pd.Series(list(chain.from_iterable(split)), dtype=object))
         code = code.astype(np.int64)
         vocab = np.asarray(words, dtype=object)
+        length = np.fromiter(map(len, vocab), np.int64, len(vocab))
+        first_code = pd.factorize(pd.Series([w[:1] for w in vocab], dtype=object))[0]
     start = np.zeros(len(count), dtype=np.int64)
     np.cumsum(count[:-1], out=start[1:])
-    return NameWords(count, start, code, vocab)
+    return NameWords(count, start, code, vocab, np.asarray(length, dtype=np.int64),
+                     np.asarray(first_code, dtype=np.int64))
+
+
+def initials(words: NameWords, ia: np.ndarray, ib: np.ndarray) -> np.ndarray:
+    """Whether names ``ia[k]`` and ``ib[k]`` are one word each, one of them a single letter
+    that begins the other: 'j' and 'jana', not 'j' and 'kai' nor 'j' and 'j'."""
+    one = (words.count[ia] == 1) & (words.count[ib] == 1)
+    if not one.any():
+        return one
+    wa = words.code[np.where(one, words.start[ia], 0)]
+    wb = words.code[np.where(one, words.start[ib], 0)]
+    la, lb = words.length[wa], words.length[wb]
+    return one & (words.first[wa] == words.first[wb]) & (np.minimum(la, lb) == 1) & \
+        (np.maximum(la, lb) > 1)
 
 
 def best_match(words: NameWords, ia: np.ndarray, ib: np.ndarray, workers: int = -1
