@@ -144,3 +144,20 @@ def test_an_initial_is_similar_to_the_names_it_could_stand_for() -> None:
     assert jellyfish.jaro_winkler_similarity("j", "jana") == pytest.approx(0.775)
     assert sim[0] == pytest.approx(0.82) and sim[2] == 0.0
     assert sim[5] == pytest.approx(jellyfish.jaro_winkler_similarity("jana", "jan"), abs=1e-6)
+
+
+def test_names_of_two_generations_are_different_names() -> None:
+    # A parent and a child of one name in one home differ by a generational suffix only: that
+    # they are two people is common practice in person matching. On invented people
+    # (bench/invented_people.py) 77 of 497 false matches with no labels had two suffixes that
+    # differ; no true pair did. One suffix alone is no evidence: clerks drop it.
+    from docket.core.records import normalise
+
+    pairs = [("Hale Sr", "Hale Jr"), ("Hale III", "Hale II"), ("Hale Jr", "Hale Junior"),
+             ("Hale", "Hale Sr"), ("Hale Jr", "Jr Hale")]
+    a = np.array([normalise.name(x) for x, _ in pairs], dtype=object)
+    b = np.array([normalise.name(y) for _, y in pairs], dtype=object)
+    sim, lv = compare.compare_values("name", a, b)
+    names = compare.level_names("name")
+    assert [names[v] for v in lv] == ["different", "different", "close", "similar", "exact"]
+    assert sim[0] == 0.0 and sim[2] > 0.92

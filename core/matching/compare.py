@@ -191,6 +191,7 @@ def _text_similarity(kind: str, a: list, b: list, extra: Indexed | None) -> np.n
         whole[several] = np.maximum(whole[several], words)
         initial = np.flatnonzero(word_match.initials(extra.data, extra.ia, extra.ib))
         whole[initial] = np.maximum(whole[initial], word_match.INITIAL)
+        whole[word_match.generations_apart(extra.data, extra.ia, extra.ib)] = 0.0
         return whole
     cosine = text_vectors.row_cosine(extra.data, extra.data, extra.ia, extra.ib)
     tokens = SCORERS[kind](a, b)
