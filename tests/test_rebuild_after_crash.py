@@ -105,3 +105,32 @@ def test_a_project_another_process_is_writing_to_is_not_replaced(
         assert project.connection.execute(
             "SELECT value FROM meta WHERE key = 'saving'").fetchone() == ('"1"',)
     assert sorted(p.name for p in tmp_path.iterdir()) == ["p.docket"]
+
+
+@pytest.mark.skipif(not sys.platform.startswith("linux"), reason="the -shm lock is read on Linux")
+def test_a_project_another_process_has_open_is_not_replaced(tmp_path: Path) -> None:
+    # A review screen left open holds no write lock between decisions: --force replaced the
+    # file under it, and the reviewer's next decisions went into a file no longer there.
+    from docket.core import DocketError
+    path = tmp_path / "p.docket"
+    Project.create(sample_spec(path, audit=50))
+    holder = subprocess.Popen(
+        [sys.executable, "-c", "import sqlite3, sys; c = sqlite3.connect(sys.argv[1]); "
+         "c.execute('SELECT count(*) FROM meta').fetchone(); print('open', flush=True); "
+         "sys.stdin.read()", str(path)],
+        stdin=subprocess.PIPE, stdout=subprocess.PIPE, text=True)
+    try:
+        assert holder.stdout is not None and holder.stdout.readline().strip() == "open"
+        before = path.read_bytes()
+        with pytest.raises(DocketError, match=r"another process has the project open .* it was "
+                                              "not replaced"):
+            Project.create(sample_spec(path, audit=60, force=True))
+        assert path.read_bytes() == before
+    finally:
+        assert holder.stdin is not None
+        holder.stdin.close()
+        holder.wait()
+    Project.create(sample_spec(path, audit=60, force=True))  # closed: replaced as asked
+    with Project.open(path, readonly=True) as project:
+        assert project.connection.execute(
+            "SELECT count(*) FROM pairs WHERE audit = 1").fetchone()[0] == 60

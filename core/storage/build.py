@@ -30,7 +30,7 @@ from ..records.same_records import copy_warning
 from ..records.sources import Table, load_table, read_frame
 from ..types import FieldSpec
 from . import file_health, spilled, store
-from .build_files import remove_stale_builds, replace_project_file
+from .build_files import refuse_if_in_use, remove_stale_builds, replace_project_file
 from .pair_stream import ChunkScorer, InProcess, levels_of, similarities
 from .pattern_room import check_room
 
@@ -95,6 +95,8 @@ def _check(spec: NewProject) -> None:
     file_health.check_new(spec.path, spec.force,
                           [Path(p) for p in (spec.left, spec.right, spec.pairs_file) if p],
                           ours=store.APPLICATION_ID)
+    if spec.force:  # asked now, before the build, and again when its file takes the place
+        refuse_if_in_use(spec.path)
     if not 0.0 <= spec.overlap <= 1.0:
         raise DocketError(f"--overlap {spec.overlap}: give a share between 0 and 1")
     if spec.overlap_reviewers < 2:

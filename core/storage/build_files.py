@@ -6,6 +6,8 @@ from __future__ import annotations
 import os
 import shutil
 import sqlite3
+import struct
+import sys
 from pathlib import Path
 
 from .file_health import ProjectFileError, holds_database, uri
@@ -21,7 +23,7 @@ def replace_project_file(new: Path, target: Path) -> None:
     malformed"), so the old file is moved aside first and its side files removed before the new
     one takes its name.
     """
-    _not_being_written(target)
+    refuse_if_in_use(target)
     if target.exists():
         aside = target.with_name(f".{target.name}.{os.getpid()}.replaced")
         os.replace(target, aside)
@@ -32,12 +34,18 @@ def replace_project_file(new: Path, target: Path) -> None:
     os.replace(new, target)
 
 
-def _not_being_written(target: Path) -> None:
-    """Refuse to replace a project while another process holds its write lock: the rename
-    went ahead and removed that process's -wal, so what it was saving (a label file's
-    batches, a merge) was committed into a file no longer there."""
+def refuse_if_in_use(target: Path) -> None:
+    """Refuse to replace a project while another process has it open or holds its write
+    lock: the rename went ahead and removed that process's -wal, so what it was saving (a label
+    file's batches, a merge, a reviewer's next decision) was committed into a file no longer
+    there."""
     if not holds_database(target):
         return
+    if open_elsewhere(target):
+        raise ProjectFileError(f"{target}: another process has the project open (a review "
+                               "screen left open, perhaps); it was not replaced, since what "
+                               "that process saves next would go into a file no longer there; "
+                               "close it and try again")
     try:
         conn = sqlite3.connect(uri(target, "rw"), uri=True, isolation_level=None,
                                timeout=WAIT_S)
@@ -53,6 +61,35 @@ def _not_being_written(target: Path) -> None:
                                    "replaced; try again when that command is done") from None
     finally:
         conn.close()
+
+
+# SQLite keeps a read lock on this byte of the -shm file for as long as a connection has a
+# database in WAL mode open (the unix VFS's "dead man switch", UNIX_SHM_DMS = 128 in os_unix.c).
+_SHM_DMS = 128
+_FLOCK = "hhqqi4x"  # struct flock on Linux: l_type, l_whence, l_start, l_len, l_pid
+
+
+def open_elsewhere(target: Path) -> bool:
+    """Whether another process has the project open: an idle review screen holds no write
+    lock, so only the -shm lock shows it. The lock is queried, never taken (F_GETLK), so it
+    cannot disturb that process; locks of this process are not reported. Linux only, where
+    the layout of ``struct flock`` is known; elsewhere False."""
+    if not sys.platform.startswith("linux"):
+        return False
+    import fcntl
+
+    try:
+        fd = os.open(f"{target}-shm", os.O_RDONLY)
+    except OSError:
+        return False  # no -shm: no connection in WAL mode
+    try:
+        query = struct.pack(_FLOCK, fcntl.F_WRLCK, os.SEEK_SET, _SHM_DMS, 1, 0)
+        answer = fcntl.fcntl(fd, fcntl.F_GETLK, query)
+        return struct.unpack(_FLOCK, answer)[0] != fcntl.F_UNLCK
+    except OSError:
+        return False
+    finally:
+        os.close(fd)  # this process holds no connection to a project it is about to replace
 
 
 def remove_stale_builds(target: Path) -> None:
