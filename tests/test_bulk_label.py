@@ -117,6 +117,30 @@ def test_a_label_file_headed_in_another_case_is_read(sample_project: Path, tmp_p
     assert (d.pair_id, d.label, d.note) == (1, "match", "same phone")
 
 
+def test_a_row_given_twice_is_one_decision_and_said(sample_project: Path, tmp_path: Path,
+                                                   capsys) -> None:
+    # Pasted twice, the second time spelled otherwise (Match, non_match): it made four log
+    # entries for two pairs, and maya's count doubled.
+    with Project.open(sample_project) as p:
+        (a, b), (c, d) = p.connection.execute(
+            "SELECT left_id, right_id FROM pairs WHERE pair_id IN (1, 2) ORDER BY pair_id")
+    rows = tmp_path / "labels.csv"
+    rows.write_text(f"left_id,right_id,label\n{a},{b},match\n{c},{d},non-match\n"
+                    f"{a},{b},Match\n{c},{d},non_match\n", encoding="utf-8")
+    assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(rows)]) == 0
+    out, err = capsys.readouterr()
+    assert "recorded 2 decisions for maya" in out
+    assert err.count("\n") == 1 and "2 rows repeat an earlier row" in err, err
+    with Project.open(sample_project) as p:
+        assert sorted((x.pair_id, x.label) for x in p.decisions()) == [(1, "match"),
+                                                                      (2, "non-match")]
+    rows.write_text("pair_id,label,note\n3,match,same phone\n3,match,\n", encoding="utf-8")
+    before = sample_project.read_bytes()
+    assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(rows)]) == 2
+    assert "rows 2 and 3 give pair 3 the notes 'same phone' and ''" in capsys.readouterr().err
+    assert sample_project.read_bytes() == before
+
+
 def test_ctrl_c_in_the_refit_after_label_says_the_decisions_stand(
         sample_project: Path, tmp_path: Path, capsys, monkeypatch: pytest.MonkeyPatch) -> None:
     # "interrupted; nothing was half-written" came after every decision was committed

@@ -14,6 +14,7 @@ import contextlib
 import json
 import sqlite3
 import time
+import warnings
 from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
@@ -166,20 +167,33 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
             raise DocketError(f"{path}: {row_named(path, i)}: label '{label}' is not one of "
                               f"{', '.join(LABELS)}; nothing was written")
         rows.append(BulkRow(int(pid), lab, "" if note is None or pd.isna(note) else str(note)))
-    _refuse_contradictions(path, rows)
-    return rows
+    return _one_row_per_pair(path, rows)
 
 
-def _refuse_contradictions(path: Path, rows: list[BulkRow]) -> None:
-    """One file giving one pair two labels: which the reviewer meant cannot be told."""
+def _one_row_per_pair(path: Path, rows: list[BulkRow]) -> list[BulkRow]:
+    """A row given twice (a file pasted into itself, two exports joined) is one decision: it
+    was logged twice, and the reviewer's count doubled. One file giving one pair two labels,
+    or one label with two notes, is refused: which the reviewer meant cannot be told."""
     first: dict[int, int] = {}
+    kept: list[BulkRow] = []
     for i, r in enumerate(rows):
         j = first.setdefault(r.pair_id, i)
-        if rows[j].label != r.label:
+        if j == i:
+            kept.append(r)
+            continue
+        said = (f"label pair {r.pair_id} {rows[j].label} and {r.label}"
+                if rows[j].label != r.label else
+                f"give pair {r.pair_id} the notes {rows[j].note!r} and {r.note!r}"
+                if rows[j].note != r.note else "")
+        if said:
             word, at = row_word(path)
-            raise DocketError(f"{path}: {word}s {j + at} and {i + at} label pair {r.pair_id} "
-                              f"{rows[j].label} and {r.label}; keep the one meant; nothing "
-                              "was written")
+            raise DocketError(f"{path}: {word}s {j + at} and {i + at} {said}; keep the one "
+                              "meant; nothing was written")
+    if len(kept) < len(rows):
+        repeats = len(rows) - len(kept)
+        warnings.warn(f"{path}: {many(repeats, 'row repeats', 'rows repeat')} an earlier row "
+                      "for the same pair and label; each pair was read once", stacklevel=2)
+    return kept
 
 
 def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: str = "reviewer",
