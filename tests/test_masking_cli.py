@@ -1,4 +1,5 @@
-"""``--mask``: either side's column names, unknown names refused, masked columns never searched."""
+"""``--mask``: either side's column names, unknown names refused, masked columns never searched,
+names with a comma given whole."""
 
 from __future__ import annotations
 
@@ -8,8 +9,8 @@ from pathlib import Path
 import pytest
 
 from docket.core import Project
-from docket.tui.cli import main
-from docket.tui.masking import Mask, expand_mask
+from docket.tui.cli import build_parser, main
+from docket.tui.masking import Mask, expand_mask, parse_mask
 
 
 def test_find_does_not_search_masked_columns(sample_project: Path) -> None:
@@ -51,3 +52,28 @@ def test_unknown_mask_column_is_an_error_with_a_suggestion(
     assert sample_project.read_bytes() == before
     with sqlite3.connect(sample_project) as conn:
         assert [r[0] for r in conn.execute("SELECT name FROM reviewers")] == ["ines"]
+
+
+def test_a_column_whose_name_holds_a_comma_can_be_masked(tmp_path: Path, capsys) -> None:
+    # '--mask "last, first"' was split into 'last' and 'first', and refused: no way to mask it
+    table = ('id,"last, first",email\n1,"Berg, Anna",anna@example.org\n'
+             '2,"Dahl, Jon",jon@example.org\n3,"Lund, Kari",kari@example.org\n')
+    for side in ("left", "right"):
+        (tmp_path / f"{side}.csv").write_text(table, encoding="utf-8")
+    project = tmp_path / "comma.docket"
+    assert main(["new", str(project), "--left", str(tmp_path / "left.csv"), "--right",
+                 str(tmp_path / "right.csv"), "--id", "id", "--block", "*"]) == 0
+    args = build_parser().parse_args(["review", str(project), "--mask", "Last, First ",
+                                      "--mask", "email,id"])
+    with Project.open(project) as p:
+        mask = Mask.of(expand_mask(p, parse_mask(args.mask)))
+    assert mask.applies("last, first") and mask.applies("email") and mask.applies("id")
+    assert not mask.applies("last")
+    capsys.readouterr()
+    before = project.read_bytes()
+    assert main(["review", str(project), "--reviewer", "ines", "--mask", "last,first"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert err == ("docket: --mask last (in 'last,first'): no such column; a name that holds a "
+                   "comma goes whole in a --mask of its own; columns are 'id', 'last, first', "
+                   "'email'"), err
+    assert project.read_bytes() == before

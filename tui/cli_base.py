@@ -70,6 +70,10 @@ def default_reviewer(given: str | None, option: str = "--reviewer") -> str:
     return name.strip()
 
 
+MASK_HELP = ("show these columns partly masked; repeatable, and a column whose name holds a "
+             "comma goes whole in one --mask")
+
+
 def warn_line(message: Warning | str, category: type, *rest: Any, **kw: Any) -> None:
     """How the command line shows a warning: one line, no source excerpt."""
     # said: a value inside (a column name) may hold a newline, which would forge a line

@@ -11,7 +11,7 @@ import math
 import sys
 from typing import Any
 
-from .cli_base import command, open_project
+from .cli_base import MASK_HELP, command, open_project
 from .cli_checks import at_least, finite, share
 from .evaluation_text import evaluation_lines
 from .figures import many
@@ -46,8 +46,8 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--screen", action="store_true",
                    help="open the quality screen (plots, threshold table, clusters) instead; with "
                         "--matchers, the matchers screen")
-    p.add_argument("--mask", metavar="COL,...",
-                   help="with --screen: show these columns partly masked")
+    p.add_argument("--mask", action="append", metavar="COL,...",
+                   help="with --screen: " + MASK_HELP)
     p.add_argument("--matchers", action="store_true",
                    help="every matcher stored with 'docket matchers' side by side: figures, "
                         "kappa, paired differences, variants, teacher and student")

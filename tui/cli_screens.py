@@ -12,7 +12,7 @@ from importlib import resources
 from pathlib import Path
 from typing import Any
 
-from .cli_base import command, default_reviewer, open_project, refuse_to_discard
+from .cli_base import MASK_HELP, command, default_reviewer, open_project, refuse_to_discard
 from .cli_project import print_built, status
 from .figures import many
 from .terminal import need_terminal
@@ -29,7 +29,7 @@ def register(sub: argparse._SubParsersAction) -> None:
     p.add_argument("project", help="the project file (made by docket new)")
     p.add_argument("--reviewer", metavar="NAME",
                    help="defaults to $DOCKET_REVIEWER, then your user name")
-    p.add_argument("--mask", metavar="COL,...", help="show these columns partly masked")
+    p.add_argument("--mask", action="append", metavar="COL,...", help=MASK_HELP)
 
     p = command(sub, "demo", "Build the demo project from the bundled invented sample.",
                  "Two invented veterinary practices merging their client registers. The project "
@@ -60,7 +60,7 @@ def register(sub: argparse._SubParsersAction) -> None:
                    help="the adjudicator; defaults to $DOCKET_REVIEWER, then your user name")
     p.add_argument("--blind", action="store_true",
                    help="hide reviewers' names: show reviewer 1, reviewer 2... instead")
-    p.add_argument("--mask", metavar="COL,...", help="show these columns partly masked")
+    p.add_argument("--mask", action="append", metavar="COL,...", help=MASK_HELP)
 
 
 def adjudicate(args: argparse.Namespace) -> int:

@@ -1,4 +1,4 @@
-"""``--mask COL,...``: hide the middle of sensitive values on screen, keep their shape.
+"""``--mask COL,...`` (repeatable): hide the middle of sensitive values on screen, keep their shape.
 
 Masking decides, per character, whether it is shown or replaced by ``•``. It is applied after
 the differences have been worked out on the real values, so a masked character that differs
@@ -45,35 +45,53 @@ def record_columns(project: Any) -> list[str]:
     return list(project.record_columns())
 
 
-def expand_mask(project: Any, names: Sequence[str]) -> list[str]:
-    """``--mask`` names checked against the project, each widened to both sides of its field.
+def expand_mask(project: Any, values: Sequence[str]) -> list[str]:
+    """``--mask`` values checked against the project, each name widened to both sides of its
+    field.
 
-    A name may be a field, or a column of either table: ``--mask owner_name`` masks the field
-    compared with it, whichever side it came from. An unknown name is an error (a typo must
-    not leave a column silently unmasked), with the nearest column suggested.
+    A value is one column's whole name if there is such a column (a name may hold a comma:
+    ``--mask "last, first"``), else names joined by commas. A name may be a field, or a column
+    of either table: ``--mask owner_name`` masks the field compared with it, whichever side it
+    came from. An unknown name is an error (a typo must not leave a column silently
+    unmasked), with the nearest column suggested.
     """
     columns = record_columns(project)
     known = {c.casefold(): c for c in columns}
     sides = [(f.name, f.left_column, f.right_column) for f in project.fields]
     known.update({f[0].casefold(): f[0] for f in sides})
     out: list[str] = []
-    for name in names:
-        if name.strip().casefold() not in known:
-            near = difflib.get_close_matches(name.casefold(), list(known), n=1, cutoff=0.6)
-            hint = f"did you mean '{known[near[0]]}'? " if near else ""
-            raise DocketError(f"--mask {name}: no such column; {hint}columns are "
-                              f"{', '.join(columns)}")
-        key = name.strip().casefold()
-        out.append(name.strip())
-        for group in sides:
-            if key in (g.casefold() for g in group):
-                out += group
+    for value in values:
+        whole = value.strip().casefold() in known
+        for name in [value] if whole else value.split(","):
+            if not name.strip():
+                continue
+            if name.strip().casefold() not in known:
+                raise DocketError(_unknown(name, value, known, columns))
+            key = name.strip().casefold()
+            out.append(name.strip())
+            for group in sides:
+                if key in (g.casefold() for g in group):
+                    out += group
     return list(dict.fromkeys(out))
 
 
-def parse_mask(option: str | None) -> list[str]:
-    """``"email, phone"`` → ``["email", "phone"]`` (for the CLI's ``--mask``)."""
-    return [part.strip() for part in (option or "").split(",") if part.strip()]
+def _unknown(name: str, value: str, known: dict[str, str], columns: list[str]) -> str:
+    near = difflib.get_close_matches(name.strip().casefold(), list(known), n=1, cutoff=0.6)
+    hint = f"did you mean '{known[near[0]]}'? " if near else ""
+    if any("," in c for c in columns):  # listed as written, so no comma reads as a separator
+        listed = ", ".join(f"'{c}'" for c in columns)
+        hint += "a name that holds a comma goes whole in a --mask of its own; "
+    else:
+        listed = ", ".join(columns)
+    given = f" (in '{value.strip()}')" if name.strip() != value.strip() and "," in value else ""
+    return f"--mask {name.strip()}{given}: no such column; {hint}columns are {listed}"
+
+
+def parse_mask(option: str | Sequence[str] | None) -> list[str]:
+    """The ``--mask`` values as given, every time the option is (``expand_mask`` splits them
+    at commas, knowing the columns)."""
+    values = [option] if isinstance(option, str) else list(option or [])
+    return [v for v in values if v.strip()]
 
 
 def _email(value: str, at: int) -> list[bool]:
