@@ -20,7 +20,8 @@ keeps each field's levels in order and every sign, and the explanation still add
 field's part is its weight times the factor.
 
 The group is found by column name (words for address parts and a phone in English and five
-other European languages), the way the kind of a field is guessed; ``docket new --together``
+other European languages), the way the kind of a field is guessed, or by the shape of the
+values where no column's name says anything (:mod:`home_shapes`); ``docket new --together``
 names it instead, or turns it off.
 """
 
@@ -34,6 +35,7 @@ import pandas as pd
 
 from ..errors import DocketError
 from ..types import FieldSpec
+from . import home_shapes
 
 FLOOR = 0.05  # the same floor as the shrink of dependence.py: a group never says nothing
 
@@ -62,9 +64,11 @@ def place_fields(fields: list[FieldSpec]) -> list[str]:
             if f.kind != "date" and _PLACE.search(f.name) and not _NOT_PLACE.search(f.name)]
 
 
-def choose_group(fields: list[FieldSpec], named: list[str] | None) -> list[str]:
-    """The group read together: the fields ``named`` (``[OFF]`` for none), else found by name;
-    a group of one field is no group."""
+def choose_group(fields: list[FieldSpec], named: list[str] | None,
+                 values: dict[str, np.ndarray] | None = None) -> list[str]:
+    """The group read together: the fields ``named`` (``[OFF]`` for none), else found by name,
+    or, where no column's name says anything, by the shape of ``values`` (one normalised value
+    per record and field: :mod:`home_shapes`); a group of one field is no group."""
     if named is not None:
         group = [] if [n.lower() for n in named] == [OFF] else list(dict.fromkeys(named))
         known = [f.name for f in fields]
@@ -77,6 +81,8 @@ def choose_group(fields: list[FieldSpec], named: list[str] | None) -> list[str]:
                               "more, comma-separated, or 'none'")
     else:
         group = place_fields(fields)
+        if len(group) < 2 and values is not None and home_shapes.blank_names(fields):
+            group = home_shapes.shape_fields(fields, values)
     return group if len(group) >= 2 else []
 
 

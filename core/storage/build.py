@@ -183,7 +183,7 @@ def build(spec: NewProject, progress: Progress | None = None,
         prepared = scoring.prepare(fields, lnorm, rnorm)
         base = random_pairs.baseline(fields, lnorm, rnorm, n_l, width, right is None,
                                      spec.seed + 7, prepared=prepared,
-                                     together=together.choose_group(fields, spec.together))
+                                     together=together.choose_group(fields, spec.together, lnorm))
         scorer = ChunkScorer(fields, lnorm, rnorm, width, base.frequent, prepared)
         check_room([f.name for f in fields], scorer.radix, str(left.path))
         codes, counts = engine.score(scorer, lambda d, t: step("comparing", d, t))
