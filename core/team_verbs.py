@@ -56,7 +56,7 @@ class TeamVerbs(ProjectFile):
         from .reviewing.bulk import apply_rows, read_rows
         say = progress or (lambda step, done, total: None)
         say("checking the rows", 0, 1)
-        rows = read_rows(self, Path(path))
+        rows = read_rows(self, Path(path), reviewer)
         say("checking the rows", 1, 1)
         n = apply_rows(self, reviewer, rows,
                        progress=lambda done: say("recording decisions", done, len(rows)))

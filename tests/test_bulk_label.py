@@ -308,3 +308,20 @@ def test_a_full_disk_in_the_refit_after_label_says_the_decisions_stand(
     with Project.open(sample_project) as p:
         assert sorted((d.pair_id, d.label) for d in p.decisions()) == [
             (1, "match"), (2, "non-match")]
+
+
+def test_columns_label_does_not_read_are_said_and_other_reviewers_refused(
+        sample_project: Path, tmp_path: Path, capsys) -> None:
+    # Both were dropped unsaid: the notes were lost, and bob's label was recorded as maya's.
+    rows = tmp_path / "labels.csv"
+    rows.write_text("pair_id,label,notes,Reviewer\n1,match,same phone, Maya \n", encoding="utf-8")
+    assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(rows)]) == 0
+    err = capsys.readouterr().err
+    assert err == (f"docket: warning: {rows}: 1 column not read: 'notes' (did you mean "
+                   "'note'?); docket label reads pair_id, label, note, left_id, right_id\n")
+    rows.write_text("pair_id,label,reviewer\n2,match,maya\n3,match,bob\n", encoding="utf-8")
+    before = sample_project.read_bytes()
+    assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(rows)]) == 2
+    assert "column 'reviewer' names reviewer bob, but every row would be recorded for maya" \
+        in capsys.readouterr().err
+    assert sample_project.read_bytes() == before

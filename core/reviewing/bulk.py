@@ -30,6 +30,7 @@ from ..storage import decisions as log
 from ..storage.project_file import ProjectFile
 from ..types import LABELS
 from ..wording import many
+from .label_columns import check_columns
 
 BATCH_ROWS = 500  # at most, per transaction
 BATCH_S = 0.02  # and a batch ends once it has written for this long
@@ -98,7 +99,9 @@ def _check_json_keys(path: Path) -> None:
             continue  # (blank lines; anything else the reader has already refused)
 
 
-def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
+def read_rows(project: ProjectFile, path: Path, reviewer: str | None = None) -> list[BulkRow]:
+    """The rows of a label file, every one checked; ``reviewer`` (whom they are for) is
+    checked against a column naming reviewers."""
     frame = read_frame(path)
     _check_json_keys(path)
     frame.columns = plain_names(list(frame.columns),
@@ -167,6 +170,7 @@ def read_rows(project: ProjectFile, path: Path) -> list[BulkRow]:
             raise DocketError(f"{path}: {row_named(path, i)}: label '{label}' is not one of "
                               f"{', '.join(LABELS)}; nothing was written")
         rows.append(BulkRow(int(pid), lab, "" if note is None or pd.isna(note) else str(note)))
+    check_columns(path, frame, reviewer)  # last: a warning, then a refusal, was two lines
     return _one_row_per_pair(path, rows)
 
 
@@ -293,4 +297,4 @@ def label_once(project: ProjectFile, name: str, path: Path, adjudicator: str | N
         if conn.execute("SELECT 1 FROM decisions WHERE reviewer = ? LIMIT 1",
                         (name,)).fetchone():
             return 0
-    return apply_rows(project, name, read_rows(project, path))
+    return apply_rows(project, name, read_rows(project, path, name))

@@ -1,0 +1,49 @@
+"""The columns of a label file that ``docket label`` does not read.
+
+A column it does not know was dropped unsaid: a 'notes' column lost every note, and a
+'reviewer' column naming someone else had that person's labels recorded as the --reviewer's,
+which makes two people one in every agreement figure.
+"""
+
+from __future__ import annotations
+
+import difflib
+import unicodedata
+import warnings
+from pathlib import Path
+
+import pandas as pd
+
+from ..errors import DocketError
+from ..wording import many, noun
+
+READ = ("pair_id", "label", "note", "left_id", "right_id")
+# columns that say whose decision a row is; docket label gives every row to one reviewer
+WHO = ("reviewer", "reviewer_name", "rater", "annotator", "labeller", "labeler", "user")
+
+
+def _folded(name: object) -> str:
+    return unicodedata.normalize("NFC", str(name).strip()).casefold()
+
+
+def check_columns(path: Path, frame: pd.DataFrame, reviewer: str | None) -> None:
+    """Refuse a column naming other reviewers than ``reviewer``; warn of the other columns
+    not read, with the column meant where one is near."""
+    unread = [c for c in frame.columns if c not in READ]
+    for column in unread:
+        if _folded(column) not in WHO or reviewer is None:
+            continue
+        names = frame[column].dropna().map(lambda v: str(v).strip())
+        others = sorted({n for n in names if n and _folded(n) != _folded(reviewer)})
+        if others:
+            shown = ", ".join(others[:3]) + ("…" if len(others) > 3 else "")
+            raise DocketError(f"{path}: column '{column}' names {noun(len(others), 'reviewer')} "
+                              f"{shown}, but every row would be recorded for {reviewer}; give "
+                              "each reviewer's rows in a file of their own with --reviewer, or "
+                              "drop the column; nothing was written")
+    unread = [c for c in unread if _folded(c) not in WHO]
+    if unread:
+        near = [f"'{c}' (did you mean '{m[0]}'?)" if (m := difflib.get_close_matches(
+            str(c).strip().lower(), READ, n=1, cutoff=0.75)) else f"'{c}'" for c in unread]
+        warnings.warn(f"{path}: {many(len(unread), 'column')} not read: {', '.join(near)}; "
+                      f"docket label reads {', '.join(READ)}", stacklevel=3)
