@@ -24,9 +24,13 @@ NFC = unicodedata.normalize("NFC", "José")
 NFD = unicodedata.normalize("NFD", "José")
 
 
-@pytest.mark.parametrize("name", ["ines\x1b[31m", "a\nb", "rtl\u202e"])
-def test_every_command_that_registers_a_name_refuses_control_characters(
-        name: str, tiny: Path, tmp_path: Path, capsys) -> None:
+@pytest.mark.parametrize("name, said", [
+    ("ines\x1b[31m", "holds control characters"), ("a\nb", "holds control characters"),
+    ("rtl\u202e", "holds control characters"),
+    # a file's text given as the name was accepted, and widened every list of reviewers
+    ("x" * 5000, "reviewer name 'xxxxxxxxxxxxxxxxxxxx…' is 5,000 characters long")])
+def test_every_command_that_registers_a_name_refuses_control_characters_or_a_text(
+        name: str, said: str, tiny: Path, tmp_path: Path, capsys) -> None:
     labels = tmp_path / "labels.csv"
     labels.write_text(f"pair_id,label\n{pair_ids(tiny)[0]},match\n", encoding="utf-8")
     before = tiny.read_bytes()
@@ -35,7 +39,7 @@ def test_every_command_that_registers_a_name_refuses_control_characters(
                  ["reviewers", str(tiny), "add", name]):
         assert run(argv) == 2
         err = capsys.readouterr().err.strip()
-        assert "holds control characters" in err and "\n" not in err, err
+        assert said in err and "\n" not in err, err
     assert tiny.read_bytes() == before
 
 

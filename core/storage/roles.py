@@ -71,6 +71,9 @@ def alike(name: str, known: list[str]) -> str | None:
     return next((k for k in known if k != name and _folded(k) == folded), None)
 
 
+MAX_NAME = 100  # characters, for a new name; names kept already stay usable
+
+
 def as_kept(conn: sqlite3.Connection, name: str) -> str:
     """``name`` as the project keeps it: a known name differing only in Unicode form (a file
     written before names were normalised) is that name; a new name equal to a known one but
@@ -89,6 +92,9 @@ def as_kept(conn: sqlite3.Connection, name: str) -> str:
         raise DocketError(f"reviewer {name!r} differs only in letter case from {other!r}, "
                           f"who is in this project already; use {other!r}, or a name "
                           "that differs in more than case")
+    if len(name) > MAX_NAME:  # a file's text given as the name ("$(cat notes)") widened every list
+        raise DocketError(f"reviewer name '{name[:20]}…' is {len(name):,} characters long; a "
+                          f"name is at most {MAX_NAME}: give a shorter one")
     return name
 
 
