@@ -34,6 +34,7 @@ def test_a_failed_label_registers_no_one(sample_project: Path, tmp_path: Path, c
     ("1,match\n2,non-match\n1,non-match\n", ["rows 2 and 4 label pair 1 match and non-match"]),
     ("", ["a header and no rows"]),
     ("1,\n", ["row 2 has no label"]),
+    ("1,match\n ,match\n", ["row 3 has no pair_id;"]),  # was "pair_id None must be a whole..."
     ("1e23,match\n", ["1 unknown pair id: 1e23;"]),
 ])
 def test_a_label_file_that_says_nothing_clear_writes_nothing(
@@ -52,6 +53,9 @@ def test_a_label_file_that_says_nothing_clear_writes_nothing(
      '{"pair_id": 2, "label": "yes"}\n', "record 2: label 'yes'"),
     ("label", "labels.jsonl", '{"pair_id": 1, "label": "match"}\n'
      '{"pair_id": 1, "label": "non-match"}\n', "records 1 and 2 label pair 1"),
+    # was "not a candidate pair of this project: record 1 (None, S-10001)"
+    ("label", "labels.jsonl", '{"left_id": null, "right_id": "S-10001", "label": "match"}\n',
+     "record 1 has no left_id;"),
     ("evaluate", "scores.jsonl", '{"left_id": "N-00001", "right_id": "S-10001", "score": 0.5}\n'
      '{"left_id": "N-00002", "right_id": "S-10002", "score": "x"}\n', "record 2 has 'x'"),
 ])

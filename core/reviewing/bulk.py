@@ -30,7 +30,7 @@ from ..storage import decisions as log
 from ..storage.project_file import ProjectFile
 from ..types import LABELS
 from ..wording import many
-from .label_columns import check_columns
+from .label_columns import check_columns, check_ids_given
 
 BATCH_ROWS = 500  # at most, per transaction
 BATCH_S = 0.02  # and a batch ends once it has written for this long
@@ -112,6 +112,7 @@ def read_rows(project: ProjectFile, path: Path, reviewer: str | None = None) -> 
                           "right_id)")
     if not len(frame):
         raise DocketError(f"{path}: a header and no rows; give one decision per row")
+    check_ids_given(path, frame)
     if "pair_id" in cols:
         ids = pd.to_numeric(frame["pair_id"], errors="coerce")
         bad_rows = [i for i in range(len(ids))

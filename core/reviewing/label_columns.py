@@ -15,6 +15,7 @@ from pathlib import Path
 import pandas as pd
 
 from ..errors import DocketError
+from ..records.sources import row_named
 from ..wording import many, noun
 
 READ = ("pair_id", "label", "note", "left_id", "right_id")
@@ -47,3 +48,16 @@ def check_columns(path: Path, frame: pd.DataFrame, reviewer: str | None) -> None
             str(c).strip().lower(), READ, n=1, cutoff=0.75)) else f"'{c}'" for c in unread]
         warnings.warn(f"{path}: {many(len(unread), 'column')} not read: {', '.join(near)}; "
                       f"docket label reads {', '.join(READ)}", stacklevel=3)
+
+
+def check_ids_given(path: Path, frame: pd.DataFrame) -> None:
+    """A row with an id left empty was read as naming the pair (N-00005, None), and refused
+    as no candidate pair, or its pair_id None as not a whole number."""
+    for column in ("pair_id", "left_id", "right_id"):
+        if column not in frame.columns:
+            continue
+        empty = frame[column].map(lambda v: v is None or pd.isna(v) or not str(v).strip())
+        if empty.any():
+            at = int(empty.to_numpy().argmax())
+            raise DocketError(f"{path}: {row_named(path, at)} has no {column}; give the ids of "
+                              "every row; nothing was written")
