@@ -103,3 +103,13 @@ def test_ids_with_spaces_at_their_ends_or_in_other_case_are_named_so(tmp_path: P
     labels.write_text("left_id,right_id,label\nAy-1,kit-4,match\n", encoding="utf-8")
     assert main(["label", str(project), "--reviewer", "ana", "--from", str(labels)]) == 2
     assert "letter case" not in capsys.readouterr().err
+
+
+def test_ids_with_invisible_characters_are_named_so(tmp_path: Path, capsys) -> None:
+    # an id copied from a web page kept a zero-width space: 'N-7' and 'N-7\u200b' look alike
+    project = _every_pair_of(tmp_path, "N-7,Arlo Vesk\nN-8,Arlo Vesk\n")
+    labels = tmp_path / "l.csv"
+    labels.write_text("left_id,right_id,label\nN-7\u200b,N-8,match\n", encoding="utf-8")
+    assert main(["label", str(project), "--reviewer", "ana", "--from", str(labels)]) == 2
+    err = capsys.readouterr().err
+    assert "'N-7\\u200b' is the record id 'N-7' with invisible characters in it" in err, err

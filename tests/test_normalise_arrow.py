@@ -70,11 +70,31 @@ def test_other_normalisers_and_mixed_values_take_the_value_path() -> None:
 
 
 def _fold_by_definition(value: str) -> str:
-    """Every character of nonzero combining class dropped after NFKD, then case-folded."""
+    """Invisible format characters dropped (tested on their own below), then every character
+    of nonzero combining class after NFKD, then case-folded."""
     import unicodedata
 
-    decomposed = unicodedata.normalize("NFKD", value)
+    decomposed = unicodedata.normalize("NFKD", normalise.visible(value))
     return "".join(ch for ch in decomposed if not unicodedata.combining(ch)).casefold()
+
+
+def test_invisible_format_characters_are_dropped_before_comparing() -> None:
+    # Copying from web pages and documents leaves characters a reviewer cannot see: 'QX1234'
+    # and 'QX12<zero-width space>34' looked equal on the card and compared as two codes. Each
+    # below is a default-ignorable code point of Unicode's DerivedCoreProperties.txt and of
+    # category Cf (format), checked against unicodedata.
+    import unicodedata
+
+    invisible = ["\u00ad", "\u200b", "\u200c", "\u200d", "\u200e", "\u200f", "\u202a",
+                 "\u2060", "\ufeff", "\U000e0041"]
+    assert all(unicodedata.category(ch) == "Cf" for ch in invisible)
+    for ch in invisible:
+        assert normalise.code(f"QX12{ch}34") == "qx1234"
+        assert normalise.words(f"Ann{ch}a Smith") == "anna smith"
+        assert normalise.number(f"1{ch}299") == 1299.0
+        assert normalise.date(f"{ch}2001-02-03") == normalise.date("2001-02-03")
+    # what shows stays: letters of other scripts, the combining grapheme joiner (kept by fold)
+    assert normalise.words("Zoë \u0645\u0631\u0648\u0629") == "zoe \u0645\u0631\u0648\u0629"
 
 
 @settings(max_examples=300, deadline=None)

@@ -1,11 +1,13 @@
 """Hints for ids in a label, predictions, matcher or missed-match file that name no record but
-nearly do: the same id in another Unicode form, with its leading zeros dropped, with spaces at
-its ends or in other letter case."""
+nearly do: the same id in another Unicode form or with invisible characters in it, with its
+leading zeros dropped, with spaces at its ends or in other letter case."""
 
 from __future__ import annotations
 
 import unicodedata
 from collections.abc import Collection, Iterable
+
+from .normalise import visible
 
 
 def form_hint(given: Iterable[object], known: Collection[str]) -> str:
@@ -25,6 +27,10 @@ def form_hint(given: Iterable[object], known: Collection[str]) -> str:
                     "(its accents stored as separate marks, or the other way round): save the "
                     "file with its characters as the records have them (composed, NFC, as most "
                     "systems write them)")
+        seen = visible(text)
+        if seen != text and seen in known:
+            return (f"; {text!a} is the record id {seen!a} with invisible characters in it "
+                    "(copied from a web page or a document, perhaps): remove them from the file")
     return _zeros_hint(given, known) or _written_hint(given, known)
 
 

@@ -31,12 +31,25 @@ _DMY = re.compile(r"^(\d{1,2})[/.\-](\d{1,2})[/.\-](\d{4}|\d{2})$")
 _DIACRITICS = re.compile("[\u0300-\u034e\u0350-\u036f]")
 
 
+# Invisible format characters that copying from web pages, PDFs and word processors leaves in
+# values: soft hyphen, zero-width space and joiners, direction marks, word joiner, byte-order
+# mark. Unicode calls them default ignorable (UAX #44); a reviewer cannot see them, so they
+# are dropped before comparing ('QX12\u200b34' is 'QX1234', 'Ann\u00ada' is 'Anna').
+_INVISIBLE = re.compile("[\u00ad\u061c\u180e\u200b-\u200f\u202a-\u202e\u2060-\u2064"
+                        "\u2066-\u206f\ufeff\U000e0000-\U000e007f]")
+
+
+def visible(value: str) -> str:
+    """The value without its invisible format characters."""
+    return value if value.isascii() else _INVISIBLE.sub("", value)
+
+
 def fold(value: str) -> str:
-    """Case-fold and strip diacritics (characters of nonzero combining class after NFKD), so
-    that 'Zoë' and 'ZOE' compare equal."""
+    """Case-fold and strip diacritics (characters of nonzero combining class after NFKD) and
+    invisible format characters, so that 'Zoë' and 'ZOE' compare equal."""
     if value.isascii():  # nothing to decompose: the common case, many times faster
         return value.lower()
-    decomposed = _DIACRITICS.sub("", unicodedata.normalize("NFKD", value))
+    decomposed = _DIACRITICS.sub("", unicodedata.normalize("NFKD", _INVISIBLE.sub("", value)))
     if not decomposed.isascii():  # marks outside that block may remain: look at each character
         decomposed = "".join(ch for ch in decomposed if not unicodedata.combining(ch))
     return decomposed.casefold()
@@ -81,7 +94,7 @@ def number(value: str) -> float | None:
         return x if np.isfinite(x) else None
     except ValueError:
         pass
-    text = _CURRENCY.sub("", value).strip()
+    text = _CURRENCY.sub("", visible(value)).strip()
     if _DECIMAL_COMMA.match(text):
         text = _THOUSANDS.sub("", text).replace(",", ".")
     else:
@@ -96,7 +109,7 @@ def number(value: str) -> float | None:
 def date(value: str) -> float | None:
     """Days since 1970-01-01. ISO first, then day/month/year (the usual order outside the US),
     read as month/day/year only where the middle number cannot be a month; None for words."""
-    text = value.strip()
+    text = visible(value).strip()
     m = _ISO.match(text)
     parts: tuple[int, int, int] | None = None
     if m:
