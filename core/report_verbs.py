@@ -61,6 +61,11 @@ class ReportVerbs(ProjectFile):
         from .exports.gold_export import clusters_frame
         return clusters_frame(self, all_records)
 
+    def refuse_over_sources(self, target: str) -> None:
+        """Refuse an export ``target`` that is a table this project was built from."""
+        from .exports.over_sources import refuse_over_sources
+        refuse_over_sources(self.meta, target)
+
     def scores_frame(self) -> pd.DataFrame:
         from .exports.exporting import scores_frame
         return scores_frame(self)

@@ -201,3 +201,24 @@ def test_an_export_to_a_terminal_device_or_a_project_on_a_pipe_is_refused(
     assert main(["new", str(pipe), "--left", str(left), "--id", "id", "--force"]) == 2
     assert "is a device, pipe or socket, not a file" in capsys.readouterr().err
     assert stat.S_ISFIFO(pipe.stat().st_mode)
+
+
+def test_an_export_never_replaces_a_table_the_project_was_built_from(
+        tiny_tables: tuple[Path, Path], tmp_path: Path, capsys) -> None:
+    # '-o left.csv' (a slip of tab completion) wrote the scores over the left table's records
+    left, right = tiny_tables
+    project = tmp_path / "tiny.docket"
+    assert main(["new", str(project), "--left", str(left), "--right", str(right), "--id", "id",
+                 "--block", "*"]) == 0
+    tables = left.read_bytes(), right.read_bytes()
+    capsys.readouterr()
+    for what, target in (("scores", left), ("gold", right)):
+        assert main(["export", str(project), "--what", what, "-o", str(target)]) == 2
+        err = capsys.readouterr().err
+        assert f"{target}: is the " in err and "which an export never replaces" in err, err
+    assert (left.read_bytes(), right.read_bytes()) == tables
+    # a file of that name elsewhere that does not hold the table's id column is replaced
+    elsewhere = tmp_path / "other" / left.name
+    elsewhere.parent.mkdir()
+    elsewhere.write_text("pair_id,label\n", encoding="utf-8")
+    assert main(["export", str(project), "--what", "scores", "-o", str(elsewhere)]) == 0

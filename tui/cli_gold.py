@@ -159,6 +159,7 @@ def export(args: argparse.Namespace) -> int:
                               f"name it {Path(args.output).with_suffix('.json')}")
         from .cli_scale import export_model
         with open_project(args.project, readonly=True) as project:
+            project.refuse_over_sources(args.output)
             export_model(project, args.output)
         return 0
     if not (args.for_lm and args.output == "-"):
@@ -169,6 +170,7 @@ def export(args: argparse.Namespace) -> int:
         from .progress import working
         with working(f"exporting {args.what}", args.output != "-"), \
                 open_project(args.project, readonly=True) as project:
+            project.refuse_over_sources(args.output)
             result = export_other(project, args.what, args)
             # inside: --for-lm records are made from the open project as they are written
             n = write_rows(result, args.output, args.format,
@@ -190,6 +192,7 @@ def export(args: argparse.Namespace) -> int:
     from .progress import working
     with working("exporting the scores", args.output != "-"):  # '-': the rows are the output
         with open_project(args.project, readonly=True) as project:
+            project.refuse_over_sources(args.output)
             frame = project.scores_frame()
         write_rows(frame, args.output, args.format, guard=getattr(args, "formula_guard", True))
     if args.output != "-":
