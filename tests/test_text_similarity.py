@@ -7,6 +7,8 @@ import math
 import numpy as np
 import pandas as pd
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from docket.core.matching import compare
 from docket.core.pairs import blocking
@@ -161,3 +163,26 @@ def test_names_of_two_generations_are_different_names() -> None:
     names = compare.level_names("name")
     assert [names[v] for v in lv] == ["different", "different", "close", "similar", "exact"]
     assert sim[0] == 0.0 and sim[2] > 0.92
+
+
+NAME_WORDS = ["j", "jana", "k", "kai", "hale", "sr", "jr", "iii", "ii", "junior", "nowak", "x"]
+
+
+@settings(max_examples=200, deadline=None)
+@given(st.lists(st.lists(st.sampled_from(NAME_WORDS), min_size=1, max_size=3), min_size=2,
+                max_size=12))
+def test_name_similarity_is_symmetric_and_in_range(names: list[list[str]]) -> None:
+    # Whatever the initial and suffix rules add, comparing a with b is comparing b with a,
+    # equal names are exact, and every similarity lies in [0, 1] (common practice for a
+    # similarity measure).
+    from docket.core.records import normalise
+
+    values = [normalise.name(" ".join(words)) for words in names]
+    a = np.array(values[:-1], dtype=object)
+    b = np.array(values[1:], dtype=object)
+    s_ab, l_ab = compare.compare_values("name", a, b)
+    s_ba, l_ba = compare.compare_values("name", b, a)
+    assert np.allclose(s_ab, s_ba, atol=1e-6) and (l_ab == l_ba).all()
+    assert ((s_ab >= 0) & (s_ab <= 1)).all()
+    same = a == b
+    assert (l_ab[same] == 0).all()
