@@ -182,3 +182,10 @@ def test_patterns_with_many_levels_stay_distinct() -> None:
         patterns, index, _ = group_patterns(levels.astype(np.int8))
         assert len(patterns) == len(np.unique(levels, axis=0))
         assert (patterns[index] == levels).all()
+
+
+
+def test_a_huge_value_is_no_date_and_is_read_at_once() -> None:
+    # the date parser took 110 s over a value of 2,000,000 digits, and a build read it twice
+    assert normalise.date("1" * 2_000_000) is None
+    assert normalise.date(" 12 September 2024 ") == normalise.date("2024-09-12")
