@@ -189,3 +189,16 @@ def test_a_huge_value_is_no_date_and_is_read_at_once() -> None:
     # the date parser took 110 s over a value of 2,000,000 digits, and a build read it twice
     assert normalise.date("1" * 2_000_000) is None
     assert normalise.date(" 12 September 2024 ") == normalise.date("2024-09-12")
+
+
+def test_one_huge_value_does_not_change_a_columns_kind() -> None:
+    # a value of 2,000,000 characters among 2,000 names raised their mean length past a long
+    # text's: the column was compared as longtext
+    import pandas as pd
+
+    from docket.core.records.fields import detect_kind
+    names = [f"{first} {last}" for first in ("Anna", "Jon", "Kari", "Per", "Ola")
+             for last in ("Berg", "Dahl", "Lund", "Moe", "Nilsen", "Haugen", "Bakke", "Lie")]
+    column = pd.Series([*(names * 50)[:1999], "x" * 2_000_000])
+    assert detect_kind("owner", column) == "name"
+    assert detect_kind("born", pd.Series([*["1980-03-03"] * 1999, "1" * 2_000_000])) == "date"

@@ -24,6 +24,7 @@ _DATE_HINT = re.compile(r"(date|dob|born|birth)", re.I)
 _MONTH = r"(?:jan|feb|mar|apr|may|jun|jul|aug|sep|oct|nov|dec)[a-z]*\.?"
 _DATE_SHAPE = re.compile(rf"(?:\d[-/.]\d|\b\d{{1,2}}\s+{_MONTH}\s+\d{{2,4}}\b|"
                          rf"\b{_MONTH}\s+\d{{1,2}},?\s+\d{{2,4}}\b)", re.I)
+LONG_CHARS, LONG_WORDS = 400, 60  # a long value, as far as a column's kind goes
 _GROUPING = re.compile(r"[\s\-./]+")  # how an identifier's digits are grouped: 'QX 12 34 56 C'
 
 
@@ -38,8 +39,10 @@ def detect_kind(column: str, values: pd.Series) -> str:
     texts = sample.astype(str)
     def share(func) -> float:
         return float(texts.map(lambda v: func(v) is not None).mean())
-    mean_len = float(texts.str.len().mean())
-    mean_tokens = float(texts.str.split().str.len().mean())
+    # each value counted up to a long text's length: one stray value of 2,000,000 characters
+    # (a file pasted into a cell) made a column of 2,000 names 'longtext'
+    mean_len = float(texts.str.len().clip(upper=LONG_CHARS).mean())
+    mean_tokens = float(texts.str.split().str.len().clip(upper=LONG_WORDS).mean())
     if (_DATE_HINT.search(column) or texts.str.contains(_DATE_SHAPE).mean() > 0.9) and \
             share(normalise.date) > 0.9 and mean_len <= 30:
         return "date"
