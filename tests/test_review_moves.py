@@ -4,6 +4,8 @@ candidates; deciding a pair opened aside returns to the queue."""
 
 from __future__ import annotations
 
+import re
+
 from rich.cells import cell_len
 from textual.widgets import OptionList
 
@@ -134,3 +136,24 @@ async def test_the_candidates_list_gives_values_the_room_the_box_has(review_samp
             assert all(cell_len(line) <= box for p in prompts for line in p.plain.splitlines())
             # more than the owner's name, which many candidates of one person share
             assert all(p.plain.count(" · ") >= 2 for p in prompts)
+
+
+@pilot_test
+async def test_found_pairs_line_up_and_the_heading_says_more_may_match(review_sample,
+                                                                     review_app):
+    # 'p 0.00002' and 'p 0.0004' lines began their values a cell apart, and a search cut at
+    # its limit was headed '50 pairs (first 50)'.
+    app = review_app(review_sample)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        await press(pilot, "slash", *"Hofmann", "enter")
+        results = app.screen.query_one(OptionList)
+        heading = results._options[0].prompt.plain
+        lines = [o.prompt.plain for o in results._options if not o.disabled]
+        assert len(lines) == 50 and heading.startswith("the first 50 pairs found; more may")
+        assert len({line.index("  p ") for line in lines}) == 1
+        starts = {re.match(r".*?  p \S+\s+", line).end() for line in lines}  # type: ignore[union-attr]
+        assert len(starts) == 1, "every line's values start at one column"
+        await press(pilot, "escape", "slash", *"zzzqqq", "enter")
+        heading = app.screen.query_one(OptionList)._options[0].prompt.plain
+        assert heading.startswith("no pair found")

@@ -14,6 +14,7 @@ from textual.widgets import Input, OptionList, Static
 from textual.widgets.option_list import Option
 
 from docket.core.project import Project
+from docket.core.types import PairCard
 
 from .. import literal
 from ..figures import many, probability_text
@@ -34,6 +35,21 @@ class Group:
     heading: str
     pair_ids: tuple[int, ...]
     record: str | None = None  # the record every pair of the group names, if one does
+
+
+def _line_layout(cards: list[PairCard]) -> tuple[int, int, int]:
+    """Cells of the widest left id, right id and probability among ``cards``: each line's
+    values start at one column. The values of 'p 0.00002' and 'p 0.0004' lines began a cell
+    apart, so the found names zig-zagged down the list."""
+    def widest(values: list[str], cells: int) -> int:
+        return max([1, *(literal.one_line(v, cells).cell_len for v in values)])
+    return (widest([c.left_id for c in cards], candidate_lines.ID_CELLS),
+            widest([c.right_id for c in cards], candidate_lines.ID_CELLS),
+            widest([probability_text(c.probability) for c in cards], 12))
+
+
+def _pad(text: Text, cells: int) -> None:
+    text.append(" " * max(0, cells - text.cell_len))
 
 
 class PairPicker(ModalScreen[int | None]):
@@ -71,8 +87,15 @@ class PairPicker(ModalScreen[int | None]):
     def on_input_submitted(self, event: Input.Submitted) -> None:
         event.stop()
         found = self.project.find(event.value, limit=LIMIT, skip=self.mask.columns)
-        heading = (many(len(found), "pair")
-                   + (f" (first {LIMIT})" if len(found) >= LIMIT else ""))
+        # "50 pairs (first 50)" read as a contradiction; the search stops at LIMIT, so say
+        # that more may match and how to narrow it
+        if len(found) >= LIMIT:
+            heading = f"the first {LIMIT} pairs found; more may match: add words to narrow"
+        elif found:
+            heading = many(len(found), "pair") + " found"
+        else:
+            heading = ("no pair found: try a pair id, a record id, or the start of a word "
+                       "of a value")
         self._fill((Group(heading, tuple(found)),))
         results = self.query_one(OptionList)
         if found:
@@ -87,7 +110,9 @@ class PairPicker(ModalScreen[int | None]):
                 options += self._record_group(group, group.record)
                 continue
             options.append(Option(Text(group.heading, "bold"), disabled=True))
-            options += [Option(self._line(pid), id=str(pid)) for pid in group.pair_ids[:LIMIT]]
+            cards = [self.project.card(pid) for pid in group.pair_ids[:LIMIT]]
+            at = _line_layout(cards)
+            options += [Option(self._line(card, at), id=str(card.pair_id)) for card in cards]
         results.add_options(options)
         first = next((i for i, o in enumerate(options) if not o.disabled), None)
         if first is not None:
@@ -110,14 +135,16 @@ class PairPicker(ModalScreen[int | None]):
                 id=str(card.pair_id)))
         return out
 
-    def _line(self, pair_id: int) -> Text:
-        card = self.project.card(pair_id)
-        mine = self.project.current_label(pair_id, self.reviewer)
-        text = Text(f"{pair_id:>7}  ", no_wrap=True, overflow="ellipsis")
-        text.append_text(literal.one_line(card.left_id, 14))
+    def _line(self, card: PairCard, at: tuple[int, int, int]) -> Text:
+        mine = self.project.current_label(card.pair_id, self.reviewer)
+        text = Text(f"{card.pair_id:>7}  ", no_wrap=True, overflow="ellipsis")
+        left_cells, right_cells, prob_cells = at
+        text.append_text(literal.one_line(card.left_id, candidate_lines.ID_CELLS))
+        _pad(text, 9 + left_cells)
         text.append(" ↔ ")
-        text.append_text(literal.one_line(card.right_id, 14))
-        text.append(f"  p {probability_text(card.probability)}  ")
+        text.append_text(literal.one_line(card.right_id, candidate_lines.ID_CELLS))
+        _pad(text, 9 + left_cells + 3 + right_cells)
+        text.append(f"  p {probability_text(card.probability):<{prob_cells}}  ")
         if card.fields:
             label = 22 if mine is not None else 0
             cells = self._value_cells(text.cell_len + 3 + label)
