@@ -27,6 +27,7 @@ import pandas as pd
 from ..errors import DocketError
 from ..records import distinct, normalise
 from ..types import FieldSpec
+from .rule_keys import key_parts
 from .word_keys import Lists, known_runs, token_lists
 
 _KEY = re.compile(r"^\s*(?:(tokens|digits|year|near)\s*\(\s*([^()]+?)\s*\)|([^\[\]()&]+?)"
@@ -85,13 +86,14 @@ def parse_rule(text: str, fields: list[FieldSpec]) -> Rule:
                           f"--block '{EVERY}'")
     names = {f.name for f in fields}
     keys = []
-    for part in text.split("&"):
-        m = _KEY.match(part)
-        if not m:
+    for part, known in key_parts(text, names):
+        m = None if known else _KEY.match(part)
+        groups = known or (m.groups() if m else None)
+        if groups is None:
             raise DocketError(f"--block {text!r}: cannot read '{part.strip()}'; write keys like "
                               "postcode, owner[:3], tokens(title), digits(phone), year(born), "
                               "joined by &")
-        func, inner, col, length = m.groups()
+        func, inner, col, length = groups
         column = (inner or col).strip()
         if column not in names:
             raise DocketError(f"--block {text!r}: no compared field '{column}'; "
