@@ -219,3 +219,29 @@ async def test_each_plot_names_its_x_axis_at_80_and_at_120_columns(team, team_ap
             assert x in drawn.splitlines()[-1], (size, name)
 
     await on_the_plots_tab(team[0], team_app, check)
+
+
+@pilot_test
+async def test_the_score_plot_counts_pairs_in_whole_numbers(team, team_app):
+    # the library's own ticks put counts of pairs at '248.0, 206.7, 165.3'
+    from textual_plotext import PlotextPlot
+
+    def check(screen: QualityScreen, size: tuple) -> None:
+        drawn = screen.query_one("#score-plot", PlotextPlot).render().plain
+        ticks = [line.split("┤")[0].strip() for line in drawn.splitlines() if "┤" in line]
+        assert len(ticks) >= 2 and all(t.replace(",", "").isdigit() for t in ticks), ticks
+        assert ticks[-1] == "0"
+
+    await on_the_plots_tab(team[0], team_app, check)
+
+
+def test_count_ticks_are_whole_steps_of_one_two_or_five() -> None:
+    from docket.tui.figures import count_ticks, tallest_bin
+
+    assert count_ticks(248) == [0, 50, 100, 150, 200]
+    assert count_ticks(4) == [0, 1, 2, 3, 4]
+    assert count_ticks(9) == [0, 2, 4, 6, 8]
+    assert count_ticks(0) == [0]
+    # the library's binning: equal bins from the least value to the largest, which goes last
+    assert tallest_bin([0.0, 0.1, 0.5, 1.0, 1.0], 20) == 2
+    assert tallest_bin([0.3], 20) == 1

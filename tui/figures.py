@@ -106,3 +106,35 @@ def labelled_text(audit: Mapping[str, Any], held: str = "") -> str:
     have = "has" if audit["labelled"] == 1 else "have"
     return (f"{audit['labelled']:,} of {many(audit['drawn'], 'drawn pair')} {have} gold labels "
             f"({many(audit['matches'], 'match')}{held})")
+
+
+def tallest_bin(values: list[float], bins: int) -> int:
+    """The count of the fullest of ``bins`` equal bins from min(values) to max(values), the
+    binning of the plotting library's histogram (the largest value in the last bin)."""
+    if not values:
+        return 0
+    low, high = min(values), max(values)
+    counts = [0] * bins
+    for v in values:
+        i = bins - 1 if v == high or high == low else int((v - low) / (high - low) * bins)
+        counts[min(i, bins - 1)] += 1
+    return max(counts)
+
+
+def count_ticks(top: int, most: int = 5) -> list[int]:
+    """Whole-number axis ticks from 0 to at most ``top``, at a step of 1, 2 or 5 times a power
+    of ten, no more than ``most`` of them: the plotting library put counts of pairs at
+    '248.0, 206.7, 165.3'."""
+    if top <= 0:
+        return [0]
+    step = 1
+    while top // step + 1 > most:
+        step = _next_step(step)
+    return list(range(0, top + 1, step))
+
+
+def _next_step(step: int) -> int:
+    """1, 2, 5, 10, 20, 50, ..."""
+    digits = str(step)
+    lead, zeros = int(digits[0]), len(digits) - 1
+    return (2 if lead == 1 else 5 if lead == 2 else 10) * 10 ** zeros

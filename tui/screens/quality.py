@@ -22,7 +22,7 @@ from textual_plotext import PlotextPlot
 
 from .. import literal
 from ..diff import PLAIN, Palette
-from ..figures import labelled_text, many
+from ..figures import count_ticks, labelled_text, many, tallest_bin
 from ..widgets.key_bar import KeyBar
 from ..widgets.plot_legend import PlotLegend, Series
 from .conflict import ConflictScreen
@@ -164,11 +164,16 @@ class QualityScreen(TeamScreen):
         # 120 columns); the title above says what the bars count
         plt.xlabel("model score (match probability)")
         shown = []
+        top = 0
         for label, (color, marker, mark) in HISTOGRAMS.items():
             values = data.scores.get(label, [])
             if values:
                 plt.hist(values, bins=BINS, marker=marker, color=color)
                 shown.append(Series(f"gold {label} ({len(values):,})", color, mark))
+                top = max(top, tallest_bin(values, BINS))
+        if top:  # counts of pairs are whole numbers; the library's own ticks had decimals
+            ticks = count_ticks(top)
+            plt.yticks(ticks, [f"{t:,}" for t in ticks])
         plt.xlim(0, 1)
         scores.refresh()
         self.query_one("#score-legend", PlotLegend).show(shown)
