@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import argparse
+import csv
 import math
 import shlex
 from pathlib import Path
@@ -16,10 +17,17 @@ from .terminal import json_text, padded, shown
 
 
 def parse_together(value: str | None) -> list[str] | None:
-    """``--together a,b,c`` as a list of field names (None: let docket find them)."""
+    """``--together a,b,c`` as a list of field names (None: let docket find them); a name
+    that holds a comma is quoted as in a CSV row: ``'"street, no",town'``."""
     if value is None:
         return None
-    return [name.strip() for name in value.split(",") if name.strip()]
+    try:
+        names = next(csv.reader([value], skipinitialspace=True, strict=True), [])
+    except csv.Error:  # a quote never closed
+        from docket.core import DocketError
+        raise DocketError(f"--together {value}: a quote is not closed; quote a name that "
+                          "holds a comma whole, as '\"street, no\",town'") from None
+    return [name.strip() for name in names if name.strip()]
 
 
 def print_built(built: Any) -> None:
@@ -184,7 +192,8 @@ def register(sub: argparse._SubParsersAction) -> None:
                         "(by default, one that fills 1%% or more of a column is missing)")
     p.add_argument("--together", metavar="COLS",
                    help="fields that say where a record lives, read as one so that one home "
-                        "counts once: comma-separated, or 'none' (by default the address, "
+                        "counts once: comma-separated (quote a name that holds a comma: "
+                        "'\"street, no\",town'), or 'none' (by default the address, "
                         "town, postcode and phone columns, found by name)")
     p.add_argument("--pairs", metavar="PATH",
                    help="candidate pairs from elsewhere: left id, right id (CSV, Parquet, or "
