@@ -79,11 +79,14 @@ def _bad_folder(tmp_path: Path, case: str) -> tuple[Path, str]:
     if case == "missing column":
         frame[["left_id"]].to_parquet(folder / "part-00009.parquet", index=False)
         return folder, "right_id"
+    if case == "part gone":  # a link to a part moved away: its pairs were left out, unsaid
+        (folder / "part-00009.parquet").symlink_to(tmp_path / "moved.parquet")
+        return folder, "part-00009.parquet: a part that cannot be opened"
     (folder / "part-00009.parquet").write_bytes(b"PAR1 not really parquet PAR1")
     return folder, "part-00009.parquet"
 
 
-@pytest.mark.parametrize("case", ["unknown id", "missing column", "corrupt part"])
+@pytest.mark.parametrize("case", ["unknown id", "missing column", "corrupt part", "part gone"])
 def test_bad_part_one_line_exit_2_nothing_left(case: str, tmp_path: Path, capsys) -> None:
     folder, needle = _bad_folder(tmp_path, case)
     project = tmp_path / "p.docket"

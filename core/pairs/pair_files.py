@@ -42,10 +42,14 @@ class PairSource:
 def _parts(path: Path) -> list[Path]:
     if path.is_file():
         return [path] if path.suffix.lower() in PARQUET else []
-    found = sorted(p for p in path.rglob("*") if p.is_file()
+    found = sorted(p for p in path.rglob("*") if not p.is_dir()
                    and not any(part.startswith(("_", ".")) for part in
                                p.relative_to(path).parts))
     parts = [p for p in found if p.suffix.lower() in PARQUET]
+    gone = next((p for p in parts if not p.is_file()), None)
+    if gone is not None:  # a link to a part no longer there: its pairs were left out, unsaid
+        raise DocketError(f"{gone}: a part that cannot be opened (a link to a file no longer "
+                          "there?); restore it, or remove it if its pairs are not wanted")
     if not parts:
         raise DocketError(f"{path}: a folder with no Parquet parts; give a file of pairs or a "
                           "folder of .parquet files")
