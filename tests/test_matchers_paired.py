@@ -51,7 +51,7 @@ def test_matchers_that_predict_alike_show_no_difference() -> None:
                                                              1: [1, 0] + [0] * 6})
     d = paired_difference(one, "a", one, "b", "f1")
     assert (d.difference, d.low, d.high) == (0.0, 0.0, 0.0)
-    assert d.verdict == "no difference in f1 shown at 95%"
+    assert d.verdict == "no difference in F1 shown at 95%"
 
 
 def test_predicted_matches_in_a_stratum_with_none_labelled_widen_the_interval() -> None:

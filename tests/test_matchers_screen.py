@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import re
 from pathlib import Path
 
 import pytest
@@ -48,6 +49,15 @@ def test_failures_are_the_gold_disagreements_grouped_by_differing_fields(rated: 
         assert set(g.differing) <= fields
         assert all(f.differing == g.differing for f in g.failures)
         assert all(f.kind in ("false match", "missed match") for f in g.failures)
+    # a field whose values agree is no difference, at any exact level: 'exact, common' (a
+    # frequent value's own level) was listed as differing, 'Osric Stobwell' on both sides
+    with Project.open(rated, readonly=True) as p:
+        for g in groups:
+            for f in g.failures:
+                levels = {r.field: r.level_name for r in p.card(f.pair_id, "").fields}
+                assert all(not levels[name].startswith("exact") for name in g.differing)
+                assert all(name in g.differing for name, lv in levels.items()
+                           if not lv.startswith("exact") and lv != "missing")
 
 
 @pilot_test
@@ -63,7 +73,14 @@ async def test_the_table_then_where_a_matcher_fails_masked(rated, team_app):
         assert table.row_count == 3  # exact, noisy and the model
         row = [c.plain for c in table.get_row("exact")]
         assert row[3].startswith("1.000") and row[6] == "1.000"
-        assert "paired F1 differences" in screen_text(app)
+        shown = screen_text(app)
+        assert "paired F1 differences" in shown
+        # each verdict on a line of its own, saying F1 as the table heads it: at 80 columns it
+        # wrapped to the left edge, 'no difference in f1' under a column headed F1
+        lines = shown.splitlines()
+        verdicts = [i for i, line in enumerate(lines) if "→ " in line]
+        assert verdicts and all(lines[i].strip().startswith("→ ") and " − " in lines[i - 1]
+                                and " f1 " not in lines[i] for i in verdicts)
         table.move_cursor(row=table.get_row_index("noisy"))
         await press(pilot, "enter")
         fails = app.screen
@@ -112,6 +129,10 @@ async def test_the_table_and_the_failures_keep_every_figure_at_80x24(rated, team
         assert sum(widths[:4]) < 60  # pair, error, left, right: each no wider than its ids
         text = screen_text(app)
         assert "right" in text and "differing values" in text and " differ" in text
+        # a group's count sat in the 'pair' column, where '2' read as a pair id
+        heads = [[c.plain for c in listed.get_row(key)] for key in listed.rows
+                 if str(key.value).startswith("group:")]
+        assert heads and all(h[0] == "" and re.match(r"\d+ pairs?: ", h[4]) for h in heads)
         await press(pilot, "escape")
         await pilot.resize_terminal(120, 40)
         await settle(pilot)

@@ -60,7 +60,7 @@ def test_a_matcher_equal_to_the_truth_scores_kappa_one_and_precision_recall_one(
     f1 = next(d for d in report["differences"] if d["measure"] == "f1"
               and {d["first"], d["second"]} == {"truth", "noisy"})
     assert f1["low"] > 0 if f1["first"] == "truth" else f1["high"] < 0
-    assert f1["verdict"] == "truth has the higher f1"
+    assert f1["verdict"] == "truth has the higher F1"
 
 
 def test_evaluate_matchers_command_human_and_json(judged_sample: Project, capsys) -> None:
@@ -68,7 +68,7 @@ def test_evaluate_matchers_command_human_and_json(judged_sample: Project, capsys
     path = str(judged_sample.path)
     assert main(["evaluate", path, "--matchers"]) == 0
     out = capsys.readouterr().out
-    assert "matchers side by side" in out and "truth has the higher f1" in out
+    assert "matchers side by side" in out and "truth has the higher F1" in out
     assert main(["evaluate", path, "--matchers", "--json"]) == 0
     report = json.loads(capsys.readouterr().out)
     assert {m["name"] for m in report["matchers"]} == {"truth", "noisy", "(model)"}

@@ -49,6 +49,8 @@ from ..quality.audit_sample import AuditSample
 from ..quality.intervals import z_value
 
 MEASURES = ("precision", "recall", "f1")
+# as the tables head them: a verdict said 'no difference in f1' under a column headed F1
+MEASURE_NAMES = {"precision": "precision", "recall": "recall", "f1": "F1"}
 METHOD = ("linearised variance of the difference of two ratio estimators (stratified, each "
           "matcher's predicted matches counted per stratum)")
 SMOOTHING = 0.5  # pseudo-count of each unseen kind in a domain, as in quality.known_domains
@@ -228,18 +230,20 @@ def paired_difference(first_sample: AuditSample, first: str, second_sample: Audi
     split = int(np.sum((first_sample.score >= 0.5) != (second_sample.score >= 0.5)))
     point = _interval(first_sample, second_sample, measure, POOLED, POOLED, confidence)
     if point is None:
-        return PairedDifference(first, second, measure, None, None, None, split,
-                                f"{measure} undefined for one of them on the audit slice")
+        return PairedDifference(
+            first, second, measure, None, None, None, split,
+            f"{MEASURE_NAMES[measure]} undefined for one of them on the audit slice")
     diff, low, high = point
     if _unseen(first_sample) or _unseen(second_sample):
         for fills in ((WRONG, RIGHT), (RIGHT, WRONG)):
             bound = _interval(first_sample, second_sample, measure, *fills, confidence)
             if bound is not None:
                 low, high = min(low, bound[1]), max(high, bound[2])
+    said = MEASURE_NAMES[measure]
     if low > 0:
-        verdict = f"{first} has the higher {measure}"
+        verdict = f"{first} has the higher {said}"
     elif high < 0:
-        verdict = f"{second} has the higher {measure}"
+        verdict = f"{second} has the higher {said}"
     else:
-        verdict = f"no difference in {measure} shown at {confidence:.0%}"
+        verdict = f"no difference in {said} shown at {confidence:.0%}"
     return PairedDifference(first, second, measure, diff, low, high, split, verdict)

@@ -119,9 +119,11 @@ class MatcherFailuresScreen(TeamScreen):
             table.add_column(Text(label, p.muted))
         for group in listed.groups:
             # the heading in the last column: in 'left' it made that column as wide as the
-            # longest list of fields, pushing the right ids and the values out of sight
-            table.add_row(Text(f"{len(group.failures):,}", p.heading), Text(""), Text(""),
-                          Text(""), Text(group.label, p.heading), key=f"group:{group.label}")
+            # longest list of fields, pushing the right ids and the values out of sight; its
+            # count too, which in the 'pair' column read as a pair id ('2')
+            table.add_row(Text(""), Text(""), Text(""), Text(""),
+                          Text(f"{many(len(group.failures), 'pair')}: {group.label}",
+                               p.heading), key=f"group:{group.label}")
             for f in group.failures:
                 if f.pair_id not in listed.values:
                     continue

@@ -152,8 +152,10 @@ def notes_text(report: dict[str, Any], palette: Palette = PLAIN) -> Text:
     for d in (d for d in report["differences"] if d["measure"] == "f1"):
         value = "—" if d["difference"] is None else \
             f"{d['difference']:+.3f} [{d['low']:+.3f}, {d['high']:+.3f}]"
-        text.append(f"  {visible(d['first'])} − {visible(d['second'])}: {value} → "
-                    f"{visible(d['verdict'])}\n")
+        # the verdict on a line of its own: beside the figures it wrapped to the left edge at
+        # 80 columns, where it read as the start of the next difference
+        text.append(f"  {visible(d['first'])} − {visible(d['second'])}: {value}\n")
+        text.append(f"    → {visible(d['verdict'])}\n", p.muted)
     for v in report["variants"]:
         text.append(f"variants {visible(v['group'])}: ", p.heading)
         if "note" in v:
