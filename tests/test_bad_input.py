@@ -394,3 +394,14 @@ def test_force_never_replaces_decisions_it_cannot_count(sample_project: Path, go
     assert hashlib.sha256(sample_project.read_bytes()).hexdigest() == before
     assert main(["new", str(sample_project), "--left", str(good), "--id", "id", "--force",
                  "--discard-decisions"]) == 0  # said: replaced
+
+
+def test_a_table_from_standard_input_is_said_to_need_a_file(
+        sample_project: Path, tmp_path: Path, monkeypatch, capsys) -> None:
+    # '--from -' (as export writes '-o -') was '-: no such file; check the path'
+    monkeypatch.chdir(tmp_path)
+    for argv in (["label", str(sample_project), "--reviewer", "ana", "--from", "-"],
+                 ["evaluate", str(sample_project), "--predictions", "-"]):
+        code, err = run(capsys, *argv)
+        assert_one_line_error(code, err, "-: no such file; a table is read from a file, not "
+                                         "standard input")

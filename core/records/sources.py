@@ -84,7 +84,10 @@ def _read_parquet(path: Path) -> pd.DataFrame:
 def read_frame(path: Path) -> pd.DataFrame:
     """Read any supported file into a frame of strings, with missing values as None."""
     if not path.exists():
-        raise DocketError(f"{path}: no such file; check the path")
+        # '-' is standard output to export, and was 'no such file' here
+        raise DocketError(f"{path}: no such file; " + (
+            "a table is read from a file, not standard input: save it to one and give its "
+            "path" if str(path) == "-" else "check the path"))
     if path.is_dir():
         raise DocketError(f"{path}: is a folder, not a file of records; a table is read from "
                           "one file, so join its parts into one (CSV, TSV, Parquet or JSON "
