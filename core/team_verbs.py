@@ -54,9 +54,10 @@ class TeamVerbs(ProjectFile):
         then a refit; (decisions recorded, the refit). ``progress(step, done, total)`` hears
         of each step and of each batch of rows written."""
         from .reviewing.bulk import apply_rows, read_rows
+        from .reviewing.label_standing import new_rows
         say = progress or (lambda step, done, total: None)
         say("checking the rows", 0, 1)
-        rows = read_rows(self, Path(path), reviewer)
+        rows = new_rows(self, reviewer, read_rows(self, Path(path), reviewer), Path(path))
         say("checking the rows", 1, 1)
         n = apply_rows(self, reviewer, rows,
                        progress=lambda done: say("recording decisions", done, len(rows)))

@@ -288,8 +288,7 @@ def test_labels_that_a_full_disk_keeps_from_taking_back_are_said_to_stand(
         assert str(caught.value) == (
             f"{p.path}: 4 decisions of the 6 for ana were recorded and could not be taken back, "
             "as the disk is full: they stand; free some space, then run the same docket label "
-            "again to record the rest (rows recorded already are recorded again with the same "
-            "label)")
+            "again to record the rest (rows recorded already are not recorded again)")
         assert len(_standing(p)) == 4
 
 

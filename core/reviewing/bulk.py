@@ -283,7 +283,7 @@ def _left_standing(project: ProjectFile, reviewer: str, n: int, total: int,
             f"and could not be taken back, as {why}: they stand; "
             + ("free some space, then " if why == "the disk is full" else "")
             + "run the same docket label again to record the rest (rows recorded already "
-            "are recorded again with the same label)")
+            "are not recorded again)")
 
 
 def label_once(project: ProjectFile, name: str, path: Path, adjudicator: str | None = None
