@@ -140,7 +140,8 @@ def evaluate(args: argparse.Namespace) -> int:
     if args.json:
         print(json_text(report.to_dict()))
         return 0
-    print("\n".join(evaluation_lines(report, name)))
+    from .folding import echo
+    echo("\n".join(evaluation_lines(report, name)))
     return 0
 
 

@@ -155,13 +155,22 @@ def render(action: str, out: Any) -> list[str]:
 
 def table_lines(rows: list[dict[str, Any]]) -> list[str]:
     """The stored matchers, one line each (also used by ``docket status``)."""
+    from rich.cells import cell_len
+
     from .characters import visible as plain
     if not rows:
         return ["no matchers stored; add some with 'docket matchers PROJECT import FILE'"]
-    out = [f"  {'matcher':<22}{'kind':<10}{'threshold':>9}  {'group':<14}{'role':<9}"
-           f"{'given':>10}{'outside':>9}{'absent':>10}"]
-    for m in rows:
-        out.append(f"  {padded(plain(m['name']), 22)}{m['kind']:<10}{m['threshold']:>9g}  "
-                   f"{padded(plain(m['variant_group'] or '—'), 14)}{m['role'] or '—':<9}"
-                   f"{m['given']:>10,}{m['outside']:>9,}{m['absent']:>10,}")
+    # each column as wide as its widest entry: at fixed widths (a name column of 22) the table
+    # was 101 columns for names of nine letters, and every row folded at 80
+    cells = [[plain(m["name"]), m["kind"], f"{m['threshold']:g}", plain(m["variant_group"] or "—"),
+              m["role"] or "—", f"{m['given']:,}", f"{m['outside']:,}", f"{m['absent']:,}"]
+             for m in rows]
+    heads = ["matcher", "kind", "threshold", "group", "role", "given", "outside", "absent"]
+    widths = [max(cell_len(h), *(cell_len(r[i]) for r in cells)) for i, h in enumerate(heads)]
+    left = (True, True, False, True, True, False, False, False)
+    out = []
+    for row in [heads, *cells]:
+        out.append("  " + "  ".join(padded(c, w) if lft else " " * (w - cell_len(c)) + c
+                                    for c, w, lft in zip(row, widths, left, strict=True))
+                   .rstrip())
     return out

@@ -57,7 +57,8 @@ def policy(args: argparse.Namespace) -> int:
     if args.json:
         print(json_text(rules))
         return 0
-    print(("gold policy now: " if changes else "gold policy: ") + "; ".join(policy_lines(rules)))
+    from .folding import echo
+    echo(("gold policy now: " if changes else "gold policy: ") + "; ".join(policy_lines(rules)))
     if rules["min_reviews"] > planned:  # a typo away from no gold label at all
         print(f"note: the queue plans at most {planned} reviewers for a pair (its overlap "
               f"pairs), so a pair becomes gold only once more reviewers than that decide it")

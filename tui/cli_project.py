@@ -124,7 +124,11 @@ def status(args: argparse.Namespace) -> int:
     from .status_text import status_lines
     with open_project(args.project, readonly=True) as project:
         report = project.status()
-    print(json_text(report.to_dict()) if args.json else "\n".join(status_lines(report)))
+    if args.json:
+        print(json_text(report.to_dict()))
+        return 0
+    from .folding import echo
+    echo("\n".join(status_lines(report)))
     return 0
 
 

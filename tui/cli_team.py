@@ -110,7 +110,11 @@ def agreement(args: argparse.Namespace) -> int:
         return 0
     with open_project(args.project, readonly=True) as project:
         report = project.agreement(include_hold=args.include_hold)
-    print(json_text(report.to_dict()) if args.json else "\n".join(agreement_lines(report)))
+    if args.json:
+        print(json_text(report.to_dict()))
+        return 0
+    from .folding import echo
+    echo("\n".join(agreement_lines(report)))
     return 0
 
 

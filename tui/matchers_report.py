@@ -24,7 +24,8 @@ def evaluate_matchers(args: argparse.Namespace) -> int:
     if args.json:
         print(json_text(report))
     else:
-        print("\n".join(render(report, name)))
+        from .folding import echo
+        echo("\n".join(render(report, name)))
     return 0
 
 

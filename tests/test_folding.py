@@ -1,0 +1,52 @@
+"""Reports on a terminal fold their long lines at word ends, under their own text; table rows
+and piped output stay as written."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from docket.tui.cli import main
+from docket.tui.folding import fold
+
+
+def _words(text: str) -> list[str]:
+    return text.split()
+
+
+def test_a_labelled_line_folds_under_its_text_and_a_table_row_stays() -> None:
+    line = ("model        Fellegi–Sunter on field levels ranks the queue (labels recorded, not "
+            "refit yet); threshold 0.5")
+    out = fold(line, 80).splitlines()
+    assert out == ["model        Fellegi–Sunter on field levels ranks the queue (labels recorded,",
+                   "             not refit yet); threshold 0.5"]
+    note = "  chance agreement (u) measured on 100,000 random record pairs, exact agreement " \
+           "from value frequencies"
+    assert fold(note, 80).splitlines()[1].startswith("    from")  # under the text, not at 0
+    row = "       0.1  0.943 [0.793, 1.000]    0.983 [0.908, 1.000]    0.962 [0.878, 1.000]" \
+          "             721"
+    assert fold(row, 80) == row  # its columns would break
+    assert fold("short line", 80) == "short line"
+
+
+@pytest.mark.parametrize("command", ["status", "evaluate", "agreement", "policy"])
+def test_reports_fit_80_columns_on_a_terminal_and_keep_every_word(
+        team: tuple[Path, object], command: str, monkeypatch: pytest.MonkeyPatch,
+        capsys: pytest.CaptureFixture) -> None:
+    # 'docket status' at 80 columns was cut mid-word ("no / t refit yet"), its continuations
+    # at the left edge under the labels
+    project = str(team[0])  # reviewers, labels on the audit slice, an adjudicator
+    assert main([command, project]) == 0
+    piped = capsys.readouterr().out
+    assert max(len(line) for line in piped.splitlines()) > 80  # long lines, kept whole in a pipe
+    monkeypatch.setenv("COLUMNS", "80")  # a terminal of 80 columns (pytest's capture is none)
+    monkeypatch.setattr("sys.stdout.isatty", lambda: True, raising=False)
+    assert main([command, project]) == 0
+    shown = capsys.readouterr().out
+    assert _words(shown) == _words(piped)
+    too_wide = [line for line in shown.splitlines() if len(line) > 80]
+    # only table rows (two or more gaps of spaces) may stay wider, as written
+    assert all(line in piped.splitlines() and line.strip().count("  ") >= 2 for line in too_wide)
+    if command == "status":
+        assert not too_wide
