@@ -6,6 +6,7 @@ import shutil
 import sqlite3
 from pathlib import Path
 
+import pandas as pd
 import pytest
 
 from docket.core import DocketError, Project
@@ -328,3 +329,18 @@ def test_columns_label_does_not_read_are_said_and_other_reviewers_refused(
     assert "column 'reviewer' names reviewer bob, but every row would be recorded for maya" \
         in capsys.readouterr().err
     assert sample_project.read_bytes() == before
+
+
+def test_the_scores_export_with_labels_filled_in_reads_without_a_warning(
+        sample_project: Path, tmp_path: Path, capsys) -> None:
+    # its 13 columns of similarities and probabilities were each named as not read
+    scores = tmp_path / "scores.csv"
+    assert main(["export", str(sample_project), "--what", "scores", "-o", str(scores)]) == 0
+    frame = pd.read_csv(scores, dtype=str).head(2).assign(label="match", a="1", b="", c="",
+                                                          d="", e="", f="")
+    frame.to_csv(scores, index=False)
+    capsys.readouterr()
+    assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(scores)]) == 0
+    assert capsys.readouterr().err == (f"docket: warning: {scores}: 6 columns not read: 'a', "
+                                       "'b', 'c', 'd', 'e' and 1 more; docket label reads "
+                                       "pair_id, label, note, left_id, right_id\n")

@@ -20,6 +20,7 @@ from ..wording import many, noun
 
 READ = ("pair_id", "label", "note", "left_id", "right_id")
 # columns that say whose decision a row is; docket label gives every row to one reviewer
+SCORES = ("probability", "log_odds", "fellegi_sunter_probability", "predicted")  # + sim_COL
 WHO = ("reviewer", "reviewer_name", "rater", "annotator", "labeller", "labeler", "user")
 
 
@@ -42,12 +43,15 @@ def check_columns(path: Path, frame: pd.DataFrame, reviewer: str | None) -> None
                               f"{shown}, but every row would be recorded for {reviewer}; give "
                               "each reviewer's rows in a file of their own with --reviewer, or "
                               "drop the column; nothing was written")
-    unread = [c for c in unread if _folded(c) not in WHO]
+    # the scores export with a label column filled in is a label file: its columns are known
+    unread = [c for c in unread if _folded(c) not in WHO and c not in SCORES
+              and not str(c).startswith("sim_")]
     if unread:
         near = [f"'{c}' (did you mean '{m[0]}'?)" if (m := difflib.get_close_matches(
             str(c).strip().lower(), READ, n=1, cutoff=0.75)) else f"'{c}'" for c in unread]
-        warnings.warn(f"{path}: {many(len(unread), 'column')} not read: {', '.join(near)}; "
-                      f"docket label reads {', '.join(READ)}", stacklevel=3)
+        more = f" and {len(near) - 5:,} more" if len(near) > 5 else ""
+        warnings.warn(f"{path}: {many(len(unread), 'column')} not read: {', '.join(near[:5])}"
+                      f"{more}; docket label reads {', '.join(READ)}", stacklevel=3)
 
 
 def check_ids_given(path: Path, frame: pd.DataFrame) -> None:
