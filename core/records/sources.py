@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import difflib
 import json
 from collections.abc import Sequence
 from dataclasses import dataclass
@@ -228,8 +229,11 @@ def load_table(path: str | Path, id_column: str | None,
             raise DocketError(f"{path}: no id column given and none found; "
                               f"pass --id COLUMN (columns: {', '.join(frame.columns)})")
     if id_column not in frame.columns:
-        raise DocketError(f"{path}: no column '{id_column}'; columns are "
-                          f"{', '.join(frame.columns)}; {fix}")
+        near = [c for c in frame.columns if c.casefold() == id_column.casefold()] or \
+            difflib.get_close_matches(id_column, list(frame.columns), n=1, cutoff=0.75)
+        raise DocketError(f"{path}: no column '{id_column}'; "
+                          + (f"did you mean '{near[0]}'? " if near else "")
+                          + f"columns are {', '.join(frame.columns)}; {fix}")
     ids = frame[id_column]
     empty = ids.isna().to_numpy()
     if empty.any():

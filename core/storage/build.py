@@ -117,7 +117,10 @@ def _check(spec: NewProject) -> None:
 
 
 def _tables(spec: NewProject) -> tuple[Table, Table | None]:
-    left = load_table(spec.left, spec.left_id or spec.id_column)
+    def fix(option: str) -> str:
+        return f"pass the right one with {option}"
+    left = load_table(spec.left, spec.left_id or spec.id_column,
+                      fix("--left-id" if spec.left_id else "--id"))
     if spec.right is None:
         if len(left) < 2:  # else blocking is blamed for the pairs that cannot be
             raise DocketError(f"{spec.left}: one record, so no pair to review; deduplicating "
@@ -125,7 +128,7 @@ def _tables(spec: NewProject) -> tuple[Table, Table | None]:
         return left, None
     right = load_table(spec.right, spec.right_id or spec.id_column or
                        (left.id_column if left.id_column in read_frame(spec.right).columns
-                        else None))
+                        else None), fix("--right-id"))
     copy = copy_warning(left, right)
     if copy:
         warnings.warn(copy, UserWarning, stacklevel=3)
