@@ -272,3 +272,19 @@ def test_a_long_note_wraps_under_its_reviewer():
     assert all(line.startswith("    ") and len(line) <= 28 for line in lines[1:])
     assert " ".join(" ".join(lines).split()) == "note " + note
     assert hanging(Text("  note same pet and phone"), 28).plain == "  note same pet and phone\n"
+
+
+def test_the_clock_column_of_the_reviews_is_named():
+    # 'ines  hold  0:00' left a newcomer to guess what 0:00 was: a time of day, or nothing
+    from docket.core.reviewing.adjudication import Review
+    from docket.core.types import PairCard
+    from docket.tui.widgets.reviews import PairStanding, reviews_text
+
+    card = PairCard(7, "L1", "R1", 0.5, 0.0, 0.0, "uncertain", ())
+    standing = PairStanding("hold", (Review("ines", "hold", "", 0.0, "", False),
+                                     Review("maya", "match", "", 75.0, "", False)))
+    lines = reviews_text(card, standing, "lead", blind=False).plain.splitlines()
+    head = next(line for line in lines if line.startswith("reviewers (2)"))
+    rows = [line for line in lines if line.startswith(("ines", "maya"))]
+    assert head.endswith("time") and rows[0].endswith("0:00") and rows[1].endswith("1:15")
+    assert {len(head)} == {len(row) for row in rows}  # 'time' over the clocks

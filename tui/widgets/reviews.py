@@ -113,7 +113,9 @@ def label_style(label: str, palette: Palette) -> Style:
 def _review_lines(text: Text, reviews: Sequence[Review], names: Sequence[str], me: str,
                   palette: Palette, heading: str, note_word: str, width: int) -> None:
     p = palette
-    text.append(f"{heading} ({len(reviews)})\n", p.muted)
+    # the clock column named: '0:00' beside a label read as a time of day, or as nothing
+    head = f"{heading} ({len(reviews)})"
+    text.append(f"{head:<{width + ROW_REST - 4}}time\n", p.muted)
     for review, name in zip(reviews, names, strict=True):
         if review.reviewer == me:
             who = Text("you", p.heading)
