@@ -35,6 +35,10 @@ def test_a_failed_label_registers_no_one(sample_project: Path, tmp_path: Path, c
     ("1,match\n2,non-match\n1,non-match\n", ["rows 2 and 4 label pair 1 match and non-match"]),
     ("", ["a header and no rows"]),
     ("1,\n", ["row 2 has no label"]),
+    # the scores export with a few labels filled in was refused at its first empty one alone
+    ("1,\n2,match\n3,\n4, \n5,\n", ["4 rows have no label: rows 2, 4, 5… (counting the "
+                                     "header as row 1); give match, non-match or hold, or "
+                                     "leave those rows out"]),
     ("1,match\n ,match\n", ["row 3 has no pair_id;"]),  # was "pair_id None must be a whole..."
     ("1e23,match\n", ["1 unknown pair id: 1e23;"]),
 ])

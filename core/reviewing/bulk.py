@@ -30,7 +30,7 @@ from ..storage import decisions as log
 from ..storage.project_file import ProjectFile
 from ..types import LABELS
 from ..wording import many
-from .label_columns import check_columns, check_ids_given
+from .label_columns import check_columns, check_filled
 
 BATCH_ROWS = 500  # at most, per transaction
 BATCH_S = 0.02  # and a batch ends once it has written for this long
@@ -112,7 +112,7 @@ def read_rows(project: ProjectFile, path: Path, reviewer: str | None = None) -> 
                           "right_id)")
     if not len(frame):
         raise DocketError(f"{path}: a header and no rows; give one decision per row")
-    check_ids_given(path, frame)
+    check_filled(path, frame)
     if "pair_id" in cols:
         ids = pd.to_numeric(frame["pair_id"], errors="coerce")
         bad_rows = [i for i in range(len(ids))
@@ -164,9 +164,6 @@ def read_rows(project: ProjectFile, path: Path, reviewer: str | None = None) -> 
     for i, (pid, label, note) in enumerate(zip(pair_ids, frame["label"], notes, strict=True)):
         lab = str(label or "").strip().lower()
         lab = ALIASES.get(lab, lab)
-        if not lab:
-            raise DocketError(f"{path}: {row_named(path, i)} has no label; give match, "
-                              "non-match or hold; nothing was written")
         if lab not in LABELS:
             raise DocketError(f"{path}: {row_named(path, i)}: label '{label}' is not one of "
                               f"{', '.join(LABELS)}; nothing was written")

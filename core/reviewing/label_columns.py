@@ -12,10 +12,11 @@ import unicodedata
 import warnings
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 
 from ..errors import DocketError
-from ..records.sources import row_named
+from ..records.sources import row_named, row_word
 from ..wording import many, noun
 
 READ = ("pair_id", "label", "note", "left_id", "right_id")
@@ -54,14 +55,25 @@ def check_columns(path: Path, frame: pd.DataFrame, reviewer: str | None) -> None
                       f"{more}; docket label reads {', '.join(READ)}", stacklevel=3)
 
 
-def check_ids_given(path: Path, frame: pd.DataFrame) -> None:
+def check_filled(path: Path, frame: pd.DataFrame) -> None:
     """A row with an id left empty was read as naming the pair (N-00005, None), and refused
-    as no candidate pair, or its pair_id None as not a whole number."""
-    for column in ("pair_id", "left_id", "right_id"):
+    as no candidate pair, or its pair_id None as not a whole number. Rows with no label are
+    named with their count: the scores export with labels filled in for a few pairs was
+    refused at its first unlabelled row, as if that one were the slip."""
+    for column in ("pair_id", "left_id", "right_id", "label"):
         if column not in frame.columns:
             continue
         empty = frame[column].map(lambda v: v is None or pd.isna(v) or not str(v).strip())
-        if empty.any():
-            at = int(empty.to_numpy().argmax())
-            raise DocketError(f"{path}: {row_named(path, at)} has no {column}; give the ids of "
-                              "every row; nothing was written")
+        at = np.flatnonzero(empty.to_numpy(dtype=bool))
+        if not len(at):
+            continue
+        fix = ("give match, non-match or hold, or leave those rows out" if column == "label"
+               else "give the ids of every row")
+        if len(at) == 1:
+            raise DocketError(f"{path}: {row_named(path, int(at[0]))} has no {column}; "
+                              f"{fix}; nothing was written")
+        word, first = row_word(path)
+        listed = ", ".join(str(i + first) for i in at[:3]) + ("…" if len(at) > 3 else "")
+        counted = " (counting the header as row 1)" if word == "row" else ""
+        raise DocketError(f"{path}: {len(at):,} {word}s have no {column}: {word}s {listed}"
+                          f"{counted}; {fix}; nothing was written")
