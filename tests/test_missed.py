@@ -35,6 +35,10 @@ def test_recorded_once_refused_for_candidates_and_unknown_ids(sample_project: Pa
             p.record_missed(ca, cb, "maya")
         with pytest.raises(DocketError, match="no record 'NOPE'"):
             p.record_missed("NOPE", b, "maya")
+        # given the other way round, it was 'check the id (ids are matched exactly)'
+        with pytest.raises(DocketError, match=f"no record '{b}' in the left table of .*; it is "
+                           "a record of the right table: give a left id, then a right id"):
+            p.record_missed(b, a, "maya")
         # A missed match is no candidate and no gold label: the queue never sees it.
         assert p.connection.execute("SELECT count(*) FROM pairs WHERE left_id = ? AND "
                                     "right_id = ?", (a, b)).fetchone()[0] == 0

@@ -56,9 +56,12 @@ def record(project: ProjectFile, left_id: str, right_id: str, reviewer: str,
         for side, rid in (("left", left_id), ("right", right_id)):
             if not _exists(conn, project, side, rid):
                 where = f"the {side} table" if project.link else "the table"
-                raise DocketError(f"no record '{rid}' in {where} of {project.path}; check the "
-                                  "id (ids are matched exactly)"
-                                  + form_hint([rid], project.record_ids(side)))
+                other = "right" if side == "left" else "left"
+                swapped = project.link and _exists(conn, project, other, rid)
+                raise DocketError(f"no record '{rid}' in {where} of {project.path}; " + (
+                    f"it is a record of the {other} table: give a left id, then a right id"
+                    if swapped else "check the id (ids are matched exactly)"
+                    + form_hint([rid], project.record_ids(side))))
         pair = conn.execute("SELECT pair_id FROM pairs WHERE left_id = ? AND right_id = ?",
                             (left_id, right_id)).fetchone()
         if pair is not None:
