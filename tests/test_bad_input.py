@@ -54,6 +54,10 @@ CASES = {
     "id column missing": (lambda d: write(d / "noid.csv", "key,name\n1,a\n"), ["noid.csv", "'id'"]),
     "empty ids": (lambda d: write(d / "emptyid.csv", "id,name\n1,a\n,b\n"),
                   ["emptyid.csv", "empty on row 3 "]),
+    # rows of commas below the data (a spreadsheet's leftovers) were said to lack an id
+    "blank rows": (lambda d: write(d / "blank_rows.csv", "id,name\n1,a\n2,b\n,\n,\n"),
+                   ["empty on rows 4, 5 (counting the header as row 1); they are empty in every "
+                    "column: delete them"]),
     "duplicate ids": (lambda d: write(d / "dup.csv", "id,name\n1,a\n1,b\n2,c\n2,d\n"),
                       ["dup.csv", "duplicate ids", "1, 2"]),
     "empty table": (lambda d: write(d / "empty.csv", "id,name\n"), ["empty.csv", "no records"]),

@@ -238,9 +238,13 @@ def load_table(path: str | Path, id_column: str | None,
     empty = ids.isna().to_numpy()
     if empty.any():
         more = "…" if empty.sum() > 5 else ""
+        # rows of separators alone, a spreadsheet's leftovers below the data, hold no record
+        blank = bool(frame[empty].isna().to_numpy().all())
+        they = ("it is", "it") if empty.sum() == 1 else ("they are", "them")
         raise DocketError(f"{path}: column '{id_column}' is empty on "
-                          f"{rows_named(path, empty.nonzero()[0][:5])}{more}; every record "
-                          "needs an id")
+                          f"{rows_named(path, empty.nonzero()[0][:5])}{more}; " + (
+                              f"{they[0]} empty in every column: delete {they[1]}" if blank
+                              else "every record needs an id"))
     dup = ids[ids.duplicated(keep=False)]
     if len(dup):
         first = list(dict.fromkeys(dup.tolist()))[:5]
