@@ -36,7 +36,10 @@ def test_every_command_that_registers_a_name_refuses_control_characters_or_a_tex
     before = tiny.read_bytes()
     for argv in (["next", str(tiny), "--reviewer", name, "--claim"],
                  ["label", str(tiny), "--reviewer", name, "--from", str(labels)],
-                 ["reviewers", str(tiny), "add", name]):
+                 ["reviewers", str(tiny), "add", name],
+                 # names recorded beside a fact were not checked: an escape was kept
+                 ["reviewers", str(tiny), "add", "lee", "--by", name],
+                 ["missed", str(tiny), "add", "x", "y", "--reviewer", name]):
         assert run(argv) == 2
         err = capsys.readouterr().err.strip()
         assert said in err and "\n" not in err, err

@@ -16,7 +16,7 @@ from typing import Any
 
 from ..errors import DocketError
 from ..records.id_hints import form_hint
-from ..storage import store
+from ..storage import roles, store
 from ..storage.project_file import ProjectFile
 
 COLUMNS = ("left_id", "right_id", "reviewer", "note", "recorded_at", "missed_id")
@@ -45,9 +45,9 @@ def _exists(conn: sqlite3.Connection, project: ProjectFile, side: str, record_id
 def record(project: ProjectFile, left_id: str, right_id: str, reviewer: str,
            note: str = "") -> MissedMatch:
     """Record that the two records are one entity although no candidate pair holds them."""
-    left_id, right_id, reviewer = left_id.strip(), right_id.strip(), reviewer.strip()
-    if not reviewer:
-        raise DocketError("a missed match needs the name of who found it; pass --reviewer NAME")
+    left_id, right_id = left_id.strip(), right_id.strip()
+    # checked as every reviewer's name: an escape sequence in it was kept, to be shown again
+    reviewer = roles.short(roles.plain_name(reviewer, "pass --reviewer NAME, who found it"))
     if not project.link:
         if left_id == right_id:
             raise DocketError(f"{left_id} and {right_id} are the same record; give two ids")

@@ -70,7 +70,7 @@ def add_reviewer(project: ProjectFile, name: str, role: str = "reviewer",
     name = clean_name(name)
     if role not in ROLES:
         raise DocketError(f"unknown role '{role}'; use reviewer or adjudicator")
-    by = clean_name(granted_by) if granted_by.strip() else ""
+    by = roles.short(clean_name(granted_by)) if granted_by.strip() else ""
     with project.transaction() as conn:
         name = roles.as_kept(conn, name)
         row = conn.execute("SELECT role FROM reviewers WHERE name = ?", (name,)).fetchone()

@@ -25,7 +25,7 @@ from .decisions import stamp
 from .migrations import MIGRATED_GRANTOR
 
 __all__ = ["MIGRATED_GRANTOR", "ROLES", "Grant", "as_kept", "enter", "grant", "history",
-           "plain_name", "register", "role_at"]
+           "plain_name", "register", "role_at", "short"]
 DEFAULT_ROLE = "reviewer"
 
 
@@ -92,7 +92,13 @@ def as_kept(conn: sqlite3.Connection, name: str) -> str:
         raise DocketError(f"reviewer {name!r} differs only in letter case from {other!r}, "
                           f"who is in this project already; use {other!r}, or a name "
                           "that differs in more than case")
-    if len(name) > MAX_NAME:  # a file's text given as the name ("$(cat notes)") widened every list
+    return short(name)
+
+
+def short(name: str) -> str:
+    """``name`` unless it is longer than a name is: a file's text given as the name ("$(cat
+    notes)") widened every list it was shown in."""
+    if len(name) > MAX_NAME:
         raise DocketError(f"reviewer name '{name[:20]}…' is {len(name):,} characters long; a "
                           f"name is at most {MAX_NAME}: give a shorter one")
     return name
