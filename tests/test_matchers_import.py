@@ -125,6 +125,11 @@ def test_mark_and_remove(project: Project, tmp_path: Path) -> None:
         catalogue.remove(conn, ["t"])
     with pytest.raises(DocketError, match="no matcher named 'nope'"):
         catalogue.load_scores(project.connection, ["nope"])
+    # a group name holding an escape sequence was kept, and acted on every listing
+    for group in ("v\x1b[2J", "g" * 61):
+        with pytest.raises(DocketError, match=r"--group .*: use 1 to 60 characters"), \
+                project.transaction() as conn:
+            catalogue.mark(conn, "s", group=group)
 
 
 def test_an_option_between_the_action_and_the_file_is_understood(project: Project,

@@ -95,6 +95,9 @@ def save(conn: sqlite3.Connection, info: MatcherInfo, scores: np.ndarray) -> Non
                  (*asdict(info).values(), int(scores.size), blob))
 
 
+MAX_GROUP = 60  # characters, as a matcher's name
+
+
 def mark(conn: sqlite3.Connection, name: str, *, group: str | None = None,
          role: str | None = None, threshold: float | None = None,
          clear_group: bool = False, clear_role: bool = False) -> None:
@@ -111,6 +114,10 @@ def mark(conn: sqlite3.Connection, name: str, *, group: str | None = None,
         raise DocketError("--clear takes a matcher's group and role away: give it alone")
     if group is not None and not group.strip():
         raise DocketError("--group needs a name, e.g. --group prompts")
+    # as a matcher's name: an escape sequence in it was kept, and acted on every listing
+    if group is not None and (len(group.strip()) > MAX_GROUP or not group.strip().isprintable()):
+        raise DocketError(f"--group {group.strip()!r}: use 1 to {MAX_GROUP} characters without "
+                          "line breaks or control characters")
     if group is not None or clear_group:
         conn.execute("UPDATE machine_raters SET variant_group = ? WHERE name = ?",
                      (group.strip() if group is not None else None, name))
