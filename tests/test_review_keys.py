@@ -5,6 +5,8 @@ test_review_moves.py."""
 
 from __future__ import annotations
 
+import io
+
 from docket.core import Project
 from docket.tui.screens import HelpScreen, NoteScreen, ReviewScreen
 from tests.fixtures_review import (
@@ -163,6 +165,15 @@ async def test_help_lists_every_binding_and_the_caution(review_sample, review_ap
             assert binding.id in text, binding.id
             assert binding.description in text
         assert "personal data" in text and "private" in text
+        # every name two spaces or more from its explanation: 'full values show in full the
+        # values...' read as one sentence
+        from rich.console import Console
+        console = Console(width=110, record=True, file=io.StringIO())
+        console.print(app.screen._keys())
+        grid = console.export_text()
+        for binding in ReviewScreen.BINDINGS:
+            if binding.description and binding.tooltip:
+                assert f"{binding.description}  " in grid, binding.description
         await press(pilot, "escape")
         assert isinstance(app.screen, ReviewScreen)
 

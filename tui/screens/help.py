@@ -100,7 +100,9 @@ class HelpScreen(ModalScreen[None]):
         # a grid, so that a long explanation wraps under itself, not under the keys
         grid = Table.grid(padding=(0, 1))
         grid.add_column(no_wrap=True, style="bold", min_width=4)
-        grid.add_column(no_wrap=True, min_width=11)
+        # a cell wider than the longest name ('full values'): at its width, one space apart,
+        # the row read as one sentence, 'full values show in full the values...'
+        grid.add_column(no_wrap=True, min_width=12)
         grid.add_column()
         for row in self.rows:
             grid.add_row(Text(row.keys), Text(row.description), Text(row.tooltip or ""))
