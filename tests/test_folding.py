@@ -50,3 +50,17 @@ def test_reports_fit_80_columns_on_a_terminal_and_keep_every_word(
     assert all(line in piped.splitlines() and line.strip().count("  ") >= 2 for line in too_wide)
     if command == "status":
         assert not too_wide
+
+
+def test_new_folds_its_notes_and_caution_on_a_terminal(
+        tiny_tables: tuple[Path, Path], tmp_path: Path, monkeypatch: pytest.MonkeyPatch,
+        capsys: pytest.CaptureFixture) -> None:
+    # 'docket new' and 'docket demo' cut the caution on personal data mid-word at 80 columns
+    left, right = tiny_tables
+    monkeypatch.setenv("COLUMNS", "80")
+    monkeypatch.setattr("sys.stdout.isatty", lambda: True, raising=False)
+    assert main(["new", str(tmp_path / "t.docket"), "--left", str(left), "--right", str(right),
+                 "--id", "id"]) == 0
+    out = capsys.readouterr().out
+    assert "personal data" in out and "\n  " in out.split("note: Records", 1)[1]
+    assert all(len(line) <= 80 or line.strip().count("  ") >= 2 for line in out.splitlines())

@@ -31,22 +31,23 @@ def parse_together(value: str | None) -> list[str] | None:
 
 
 def print_built(built: Any) -> None:
+    from .folding import echo  # on a terminal the caution and the notes fold at word ends
     r = built.blocking
     how = "chosen from the data" if r.auto else "given"
-    print(f"created {built.path} ({built.mode} mode): {built.n_left:,} left and "
+    echo(f"created {built.path} ({built.mode} mode): {built.n_left:,} left and "
           f"{many(built.n_right, 'right record')}" if built.mode == "link" else
           f"created {built.path} (dedupe mode): {many(built.n_left, 'record')}")
-    print(_ids_line(built))
-    print("fields compared: " + ", ".join(f"{shown(f.name)} ({f.kind})" for f in built.fields))
-    print(f"blocking rules ({how}):")
+    echo(_ids_line(built))
+    echo("fields compared: " + ", ".join(f"{shown(f.name)} ({f.kind})" for f in built.fields))
+    echo(f"blocking rules ({how}):")
     for rule, n in r.per_rule.items():
-        print(f"  {padded(rule, 40)} {n:>10,} {noun(n, 'pair')}")
-    print(f"candidate pairs: {r.pairs:,} of {r.possible:,} possible "
+        echo(f"  {padded(rule, 40)} {n:>10,} {noun(n, 'pair')}")
+    echo(f"candidate pairs: {r.pairs:,} of {r.possible:,} possible "
           f"(reduction ratio {_ratio(r.reduction_ratio)}; "
           f"{100 * r.pairs / max(1, r.possible):.3g} % of all pairs)")
     if built.sampling:
         s = built.sampling
-        print(f"sampled: {s['kept_pairs']:,} of {s['population_pairs']:,} pairs kept "
+        echo(f"sampled: {s['kept_pairs']:,} of {s['population_pairs']:,} pairs kept "
               f"(--sample-above {s['sample_above']:,}); every pair's pattern is counted "
               "and estimates are weighted to all pairs")
     from docket.core import (
@@ -58,17 +59,17 @@ def print_built(built: Any) -> None:
         one_to_one_suggestion,
     )
     prior = min(max(built.model.prior, 1e-300), 1 - 1e-16)
-    print(f"model: odds of a match before the fields "
+    echo(f"model: odds of a match before the fields "
           f"{odds_text(math.log(prior / (1 - prior)))} (fitted in "
           f"{em_rounds(built.model.iterations)}); audit slice "
           f"{many(built.audit_size, 'pair')}; overlap {many(built.overlap_pairs, 'pair')}")
     for few in (one_field_note(len(built.fields), 0), flat_note(built.model.to_dict())):
         if few:
-            print(f"note: {few}")
+            echo(f"note: {few}")
     hint = built.one_to_one_hint
     if hint is not None and hint.suggest:
-        print(f"suggestion: {one_to_one_suggestion({'one_to_one_hint': hint.to_dict()}, 0)}")
-    print(f"note: {CAUTION}")
+        echo(f"suggestion: {one_to_one_suggestion({'one_to_one_hint': hint.to_dict()}, 0)}")
+    echo(f"note: {CAUTION}")
 
 
 def _ids_line(built: Any) -> str:
@@ -115,8 +116,9 @@ def new(args: argparse.Namespace) -> int:
         built = Project.create(spec, progress=update)
     print_built(built)
     where = shlex.quote(str(built.path))
-    print(f"next: docket review {where}   (or: docket next {where} --reviewer NAME; "
-          f"docket status {where})")
+    from .folding import echo
+    echo(f"next: docket review {where}   (or: docket next {where} --reviewer NAME; "
+         f"docket status {where})")
     return 0
 
 
@@ -162,8 +164,9 @@ def label(args: argparse.Namespace) -> int:
     # without them (cross-fitting).
     aside = (f"; {result.set_aside:,} set aside until another reviewer has labelled "
              f"{'it' if result.set_aside == 1 else 'them'}" if result.set_aside else "")
-    print(f"recorded {many(n, 'decision')} for {reviewer}; {refit_words(result)}"
-          f"{'' if result.superseded else aside}")
+    from .folding import echo
+    echo(f"recorded {many(n, 'decision')} for {reviewer}; {refit_words(result)}"
+         f"{'' if result.superseded else aside}")
     return 0
 
 

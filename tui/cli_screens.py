@@ -145,9 +145,10 @@ def demo(args: argparse.Namespace) -> int:
                                    default_reviewer(args.reviewer))
             from .cli_matchers import apply_demo_matchers
             names = apply_demo_matchers(project, sample_dir())
-        print(f"second reviewer {DEMO_SECOND_REVIEWER}: {many(n, 'label')} on overlap pairs; "
+        from .folding import echo
+        echo(f"second reviewer {DEMO_SECOND_REVIEWER}: {many(n, 'label')} on overlap pairs; "
               f"{default_reviewer(args.reviewer)} is an adjudicator")
-        print(f"invented matcher outputs stored: {', '.join(names)} "
+        echo(f"invented matcher outputs stored: {', '.join(names)} "
               f"(docket evaluate {spec.path} --matchers, once the audit pairs have labels)")
     if args.no_open:
         return status(argparse.Namespace(project=str(spec.path), json=False))
