@@ -77,3 +77,16 @@ def test_a_column_whose_name_holds_a_comma_can_be_masked(tmp_path: Path, capsys)
                    "comma goes whole in a --mask of its own; columns are 'id', 'last, first', "
                    "'email'"), err
     assert project.read_bytes() == before
+
+
+@pytest.mark.parametrize("command", ["review", "adjudicate"])
+@pytest.mark.parametrize("value", ["", " ", ","])
+def test_a_mask_that_names_no_column_is_an_error(command: str, value: str, sample_project: Path,
+                                                 capsys) -> None:
+    # '--mask "$COLS"' with COLS unset opened the screen with nothing masked
+    assert main(["reviewers", str(sample_project), "add", "ines", "--role", "adjudicator"]) == 0
+    capsys.readouterr()
+    code = main([command, str(sample_project), "--reviewer", "ines", "--mask", value])
+    err = capsys.readouterr().err.strip()
+    assert code == 2 and err == (f"docket: --mask {value!r} names no column; give the columns "
+                                 "to mask, for example --mask email,phone"), err

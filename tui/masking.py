@@ -61,6 +61,9 @@ def expand_mask(project: Any, values: Sequence[str]) -> list[str]:
     known.update({f[0].casefold(): f[0] for f in sides})
     out: list[str] = []
     for value in values:
+        if not value.replace(",", "").strip():  # '--mask "$COLS"' with COLS unset masked nothing
+            raise DocketError(f"--mask {value!r} names no column; give the columns to mask, "
+                              "for example --mask email,phone")
         whole = value.strip().casefold() in known
         for name in [value] if whole else value.split(","):
             if not name.strip():
@@ -90,8 +93,7 @@ def _unknown(name: str, value: str, known: dict[str, str], columns: list[str]) -
 def parse_mask(option: str | Sequence[str] | None) -> list[str]:
     """The ``--mask`` values as given, every time the option is (``expand_mask`` splits them
     at commas, knowing the columns)."""
-    values = [option] if isinstance(option, str) else list(option or [])
-    return [v for v in values if v.strip()]
+    return [option] if isinstance(option, str) else list(option or [])
 
 
 def _email(value: str, at: int) -> list[bool]:
