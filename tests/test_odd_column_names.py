@@ -67,3 +67,7 @@ def test_together_takes_a_quoted_name_that_holds_a_comma(tmp_path: Path, capsys)
     assert main(["new", str(tmp_path / "q.docket"), "--left", str(table), "--id", "id",
                  "--together", '"last, name,First Name']) == 2
     assert "a quote is not closed" in capsys.readouterr().err
+    # '--together "$COLS"' with COLS unset turned the home grouping off, unsaid
+    assert main(["new", str(tmp_path / "q.docket"), "--left", str(table), "--id", "id",
+                 "--together", " , "]) == 2
+    assert "--together ' , ' names no field" in capsys.readouterr().err

@@ -27,7 +27,12 @@ def parse_together(value: str | None) -> list[str] | None:
         from docket.core import DocketError
         raise DocketError(f"--together {value}: a quote is not closed; quote a name that "
                           "holds a comma whole, as '\"street, no\",town'") from None
-    return [name.strip() for name in names if name.strip()]
+    names = [name.strip() for name in names if name.strip()]
+    if not names:  # '--together "$COLS"' with COLS unset turned the home grouping off, unsaid
+        from docket.core import DocketError
+        raise DocketError(f"--together {value!r} names no field; name two or more, "
+                          "comma-separated, or 'none'")
+    return names
 
 
 def print_built(built: Any) -> None:
