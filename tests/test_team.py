@@ -79,6 +79,8 @@ def test_reviewers_cli_add_list_and_bad_role(tiny: Path, capsys) -> None:
     assert run(["reviewers", str(tiny), "list"]) == 0
     out = capsys.readouterr().out
     assert "ines" in out and "adjudicator" in out
+    # the name column as wide as 'ines' and 'maya': at 18 cells each row was 89 columns
+    assert max(len(line) for line in out.splitlines()) <= 80
     with pytest.raises(SystemExit) as done:
         run(["reviewers", str(tiny), "add", "zoe", "--role", "boss"])
     assert done.value.code == 2

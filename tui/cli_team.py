@@ -12,7 +12,7 @@ from pathlib import Path
 from .agreement_lines import agreement_lines
 from .cli_base import command, default_reviewer, open_project, refit_words
 from .figures import many
-from .terminal import json_text, padded
+from .terminal import json_text, padded, shown
 
 
 def register(sub: argparse._SubParsersAction) -> None:
@@ -89,10 +89,14 @@ def reviewers(args: argparse.Namespace) -> int:
     if not people:
         print("no reviewers yet; add one with 'docket reviewers PROJECT add NAME'")
         return 0
-    print(f"{'name':<18} {'role':<12} {'labels':>7} {'holds':>6} {'adjudicated':>11} "
+    # the name column as wide as the longest name (up to 18, as before): 18 cells for 'ines'
+    # and 'lee' made each row 89 columns, past an 80-column terminal
+    from rich.cells import cell_len
+    wide = min(18, max(4, *(cell_len(shown(r["name"])) for r in people)))
+    print(f"{'name':<{wide}}  {'role':<12} {'labels':>7} {'holds':>6} {'adjudicated':>11} "
           f"{'time':>9}  added")
     for r in people:
-        print(f"{padded(r['name'], 18)} {r['role']:<12} {r['labels']:>7,} {r['holds']:>6,} "
+        print(f"{padded(r['name'], wide)}  {r['role']:<12} {r['labels']:>7,} {r['holds']:>6,} "
               f"{r['adjudications']:>11,} {_duration(r['seconds']):>9}  "
               f"{(r['added_at'] or '—')[:19].replace('T', ' ')}")
     return 0
