@@ -220,6 +220,11 @@ OPTION_CASES = {
     "empty project": (["reviewers", "", "list"], ["argument project: an empty path"]),
     "empty output": (["export", "P", "-o", " "], ["argument -o/--output: an empty path"]),
     "empty copy": (["merge", "P", "P", ""], ["argument OTHER: an empty path"]),
+    # read as not given: the id column was guessed, every matcher taken
+    "empty id column": (["new", "P", "--left", "L", "--left-id", " "],
+                        ["argument --left-id: an empty column name; give one, or leave"]),
+    "empty list of matchers": (["matchers", "P", "queue", "disagreement", "--of", ","],
+                               ["argument --of: an empty list of names"]),
 }
 
 

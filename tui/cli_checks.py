@@ -129,21 +129,30 @@ def _rest_of_a_list(command: argparse.ArgumentParser, args: argparse.Namespace,
 
 
 PATHS = {"FILE", "PATH", "FOLDER", "FILE|-", "OTHER", "FILE|NAME"}  # the metavars of paths
+# Names whose empty value ("$IDCOL" unset) read as not given: --left-id '' guessed the id
+# column, --of ',' took every matcher.
+NAMED = {"COL": "column name", "A,B,...": "list of names"}
 
 
 def _no_empty_path(parser: argparse.ArgumentParser, args: argparse.Namespace) -> None:
-    """An empty path ('--predictions ""', as an unset shell variable gives) is refused. It read
-    as '.', "a folder", and where the option is optional as not given at all: evaluate ran
-    without the predictions asked for, new blocked instead of reading --pairs."""
+    """An empty path ('--predictions ""', as an unset shell variable gives) is refused, and so
+    is an empty column name or list of names (``NAMED``). A path read as '.', "a folder", and
+    where the option is optional as not given at all: evaluate ran without the predictions
+    asked for, new blocked instead of reading --pairs."""
     for command in _parsers(parser, args):
         for action in command._actions:
-            if action.metavar not in PATHS and action.dest != "project":
+            what = ("path" if action.metavar in PATHS or action.dest == "project"
+                    else NAMED.get(str(action.metavar)))
+            if what is None:
                 continue
             value = getattr(args, action.dest, None)
-            if any(isinstance(v, str) and not v.strip()
-                   for v in (value if isinstance(value, list) else [value])):
+            given = value if isinstance(value, list) else [value]
+            if any(isinstance(v, str) and not (v if what == "path" else v.replace(",", ""))
+                   .strip() for v in given):
                 name = "/".join(action.option_strings) or action.metavar or action.dest
-                command.error(f"argument {name}: an empty path; give a file or folder name")
+                command.error(f"argument {name}: an empty {what}; " + (
+                    "give a file or folder name" if what == "path" else
+                    "give one, or leave the option out"))
 
 
 def parse(parser: argparse.ArgumentParser, argv: list[str] | None) -> argparse.Namespace:
