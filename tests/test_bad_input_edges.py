@@ -225,6 +225,8 @@ OPTION_CASES = {
                         ["argument --left-id: an empty column name; give one, or leave"]),
     "empty list of matchers": (["matchers", "P", "queue", "disagreement", "--of", ","],
                                ["argument --of: an empty list of names"]),
+    "empty scheduler": (["new", "P", "--left", "L", "--engine", "dask", "--scheduler", ""],
+                        ["argument --scheduler: an empty address"]),
 }
 
 

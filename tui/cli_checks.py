@@ -130,8 +130,8 @@ def _rest_of_a_list(command: argparse.ArgumentParser, args: argparse.Namespace,
 
 PATHS = {"FILE", "PATH", "FOLDER", "FILE|-", "OTHER", "FILE|NAME"}  # the metavars of paths
 # Names whose empty value ("$IDCOL" unset) read as not given: --left-id '' guessed the id
-# column, --of ',' took every matcher.
-NAMED = {"COL": "column name", "A,B,...": "list of names"}
+# column, --of ',' took every matcher, --scheduler '' started a local cluster.
+NAMED = {"COL": "column name", "A,B,...": "list of names", "ADDRESS": "address"}
 
 
 def _no_empty_path(parser: argparse.ArgumentParser, args: argparse.Namespace) -> None:
