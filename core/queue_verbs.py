@@ -9,12 +9,15 @@ from __future__ import annotations
 
 import sqlite3
 
+from .errors import DocketError
 from .matchers.split_queue import SplitFirst
 from .ordering import queue
 from .storage import claims, roles
 from .storage import decisions as log
 from .storage.project_file import ProjectFile
 from .types import QueueItem
+
+MOST_CLAIMED = 1000  # pairs one call may claim
 
 
 class QueueVerbs(ProjectFile, SplitFirst):
@@ -73,6 +76,11 @@ class QueueVerbs(ProjectFile, SplitFirst):
         if not claim:
             with self._lock:  # looking only: the name is read as it would be registered
                 return self._next(roles.as_kept(self._conn, reviewer), n, exclude)
+        if n > MOST_CLAIMED:  # '-n 100000 --claim' took the whole queue from everyone else
+            raise DocketError(f"-n {n:,} --claim: a claim keeps each pair from other reviewers "
+                              f"for {claims.LEASE.seconds // 60} minutes; claim at most "
+                              f"{MOST_CLAIMED:,} at once (more than anyone reviews in that "
+                              "time), or leave --claim out to look only")
         with self.transaction() as conn:
             reviewer = roles.enter(conn, reviewer)
             items = self._next(reviewer, n, exclude)

@@ -91,6 +91,12 @@ def test_next_without_claim_only_looks(sample_project: Path, capsys) -> None:
     assert len(_claims(sample_project)) == 3
     with sqlite3.connect(sample_project) as conn:
         assert conn.execute("SELECT name FROM reviewers").fetchall() == [("zoe",)]
+    # '-n 100000 --claim' took every pair of the queue from everyone else for 15 minutes
+    capsys.readouterr()
+    assert main(["next", str(sample_project), "--reviewer", "ann", "-n", "1001", "--claim"]) == 2
+    assert "-n 1,001 --claim: a claim keeps each pair from other reviewers for 15 minutes; " \
+        "claim at most 1,000 at once" in capsys.readouterr().err
+    assert len(_claims(sample_project)) == 3
 
 
 def test_two_reviewers_and_an_adjudicator_at_once(sample_project: Path) -> None:
