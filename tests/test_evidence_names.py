@@ -158,7 +158,8 @@ async def test_why_the_pair_is_queued_takes_two_lines_at_most(tmp_path, review_a
             start = next(i for i, x in enumerate(lines) if x.startswith("queued"))
             end = lines.index("other candidates")
             assert 1 <= end - start <= 2, (size, lines[start:end])
-            assert " ".join(lines[start:end]) == "queued  likely non-match (to check)", size
+            assert " ".join(lines[start:end]).split() == \
+                ["queued", "likely", "non-match", "(to", "check)"], size
 
 
 def test_every_reason_for_queueing_takes_two_lines_at_most_at_80_and_120_columns() -> None:
@@ -179,4 +180,21 @@ def test_every_reason_for_queueing_takes_two_lines_at_most_at_80_and_120_columns
             shown = lines[start:lines.index("other candidates")]
             most = 3 if reason == "audit, overlap" and width == NARROW_TEXT else 2
             assert len(shown) <= most, (width, shown)
-            assert " ".join(shown) == f"queued  {words}", (width, shown)
+            assert " ".join(shown).split() == f"queued  {words}".split(), (width, shown)
+
+
+def test_a_value_too_long_for_its_line_goes_on_under_itself() -> None:
+    # 'model   logistic,' then 'from labels' at the left edge, and 'queued  uncertain' then
+    # '(hardest first)', read as lines of their own; indented where that costs no line
+    from dataclasses import replace
+
+    card = replace(_card(PRODUCTS), model="logistic")
+    lines = evidence_text(card, PLAIN, width=NARROW_TEXT).plain.splitlines()
+    assert lines[lines.index("model   logistic,") + 1] == "  from labels"
+    assert lines[lines.index("queued  uncertain") + 1] == "  (hardest first)"
+    wide = evidence_text(card, PLAIN, width=PANEL_TEXT).plain.splitlines()
+    assert wide[wide.index("model   logistic, from") + 1] == "  labels"
+    assert wide[wide.index("queued  uncertain") + 1] == "  (hardest first)"  # not 'first)'
+    doubt = replace(card, reason="likely non-match")
+    lines = evidence_text(doubt, PLAIN, width=NARROW_TEXT).plain.splitlines()
+    assert lines[lines.index("queued  likely") + 1] == "non-match (to check)"  # two lines

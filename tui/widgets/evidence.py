@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import textwrap
 from dataclasses import dataclass
 
 from rich.cells import cell_len
@@ -54,8 +55,19 @@ def _line(text: Text, label: str, value: str, p: Palette, width: int) -> None:
     on the line: 'model   Fellegi–Sunter' (22 cells) in a 20-cell panel left 'model' alone on
     its line, its value under it."""
     one_space = 8 + cell_len(value) > width >= len(label) + 1 + cell_len(value)
-    text.append(f"{label} " if one_space else f"{label:<8}", p.muted)
-    text.append(value + "\n")
+    head = f"{label} " if one_space else f"{label:<8}"
+    text.append(head, p.muted)
+    # A value too long for its line goes on two spaces in, so that its rest ('from labels',
+    # '(hardest first)') does not stand at the left edge like a label of its own; only where
+    # that costs no extra line ('non-match (to check)' fills the narrow panel's line).
+    flush = textwrap.wrap(head + value, width, break_on_hyphens=False)
+    hung = textwrap.wrap(head + value, width, subsequent_indent="  ", break_on_hyphens=False)
+    lines = hung if len(hung) <= len(flush) else flush
+    main, _, aside = value.partition(" (")  # 'uncertain' / '(hardest first)', not 'first)'
+    whole = [head + main, "  (" + aside]
+    if aside and len(flush) == 2 and all(cell_len(x) <= width for x in whole):
+        lines = whole
+    text.append("\n".join([lines[0][len(head):], *lines[1:]]) + "\n")
 
 
 def odds_steps(card: PairCard) -> list[tuple[str, float]]:
