@@ -156,4 +156,11 @@ async def test_found_pairs_line_up_and_the_heading_says_more_may_match(review_sa
         assert len(starts) == 1, "every line's values start at one column"
         await press(pilot, "escape", "slash", *"zzzqqq", "enter")
         heading = app.screen.query_one(OptionList)._options[0].prompt.plain
-        assert heading.startswith("no pair found")
+        assert heading.startswith("no pair found") and "masked" not in heading
+    # an e-mail typed in while e-mails are masked found nothing, and said not why
+    app = review_app(review_sample, mask=["email"])
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        await press(pilot, "slash", *"example.org", "enter")
+        heading = app.screen.query_one(OptionList)._options[0].prompt.plain
+        assert heading.endswith("(masked columns are never searched)")

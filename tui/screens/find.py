@@ -96,6 +96,8 @@ class PairPicker(ModalScreen[int | None]):
         else:
             heading = ("no pair found: try a pair id, a record id, or the start of a word "
                        "of a value")
+            if self.mask:  # a masked e-mail typed in found nothing, and said not why
+                heading += " (masked columns are never searched)"
         self._fill((Group(heading, tuple(found)),))
         results = self.query_one(OptionList)
         if found:
