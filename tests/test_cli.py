@@ -104,7 +104,7 @@ def test_dedupe_mode_and_given_pairs(tmp_path: Path, capsys) -> None:
     assert info["mode"] == "dedupe" and info["pairs"]["candidates"] == 2  # (1,2) once; no (3,3)
 
 
-def test_demo_builds_without_opening(tmp_path: Path, capsys) -> None:
+def test_demo_builds_without_opening(tmp_path: Path, capsys, monkeypatch) -> None:
     assert main(["demo", "--dir", str(tmp_path), "--no-open"]) == 0
     out = capsys.readouterr().out
     assert "vet-clients" in out and "Records may be personal data" in out
@@ -112,6 +112,14 @@ def test_demo_builds_without_opening(tmp_path: Path, capsys) -> None:
     out = capsys.readouterr().out
     assert "using the existing demo project" in out
     assert "personal data" not in out  # the caution is said at creation, not on every status
+
+    # after the screen, the commands to try next: the screens of agreement and evaluate were
+    # named nowhere, and a newcomer met their text alone
+    monkeypatch.setattr("docket.tui.cli_screens._run_review", lambda *a: None)
+    monkeypatch.setattr("docket.tui.cli_screens.need_terminal", lambda command: None)
+    assert main(["demo", "--dir", str(tmp_path)]) == 0
+    out = capsys.readouterr().out
+    assert "next, try:" in out and "add --screen to agreement and evaluate" in out
 
 
 def test_demo_refuses_the_invented_second_reviewer_s_name(tmp_path: Path, capsys) -> None:

@@ -133,7 +133,8 @@ def demo(args: argparse.Namespace) -> int:
                           "--dir a folder you can write to") from None
     spec = demo_spec(folder)
     if spec.path.exists() and not args.fresh:
-        print(f"using the existing demo project {spec.path} (pass --fresh to rebuild it)")
+        from .folding import echo
+        echo(f"using the existing demo project {spec.path} (pass --fresh to rebuild it)")
     else:
         if spec.path.exists() and not args.discard_decisions:
             refuse_to_discard(str(spec.path), "--fresh", keep=DEMO_SECOND_REVIEWER)
@@ -147,14 +148,15 @@ def demo(args: argparse.Namespace) -> int:
             names = apply_demo_matchers(project, sample_dir())
         from .folding import echo
         echo(f"second reviewer {DEMO_SECOND_REVIEWER}: {many(n, 'label')} on overlap pairs; "
-              f"{default_reviewer(args.reviewer)} is an adjudicator")
+             f"{default_reviewer(args.reviewer)} is an adjudicator")
         echo(f"invented matcher outputs stored: {', '.join(names)} "
-              f"(docket evaluate {spec.path} --matchers, once the audit pairs have labels)")
+             f"(docket evaluate {spec.path} --matchers, once the audit pairs have labels)")
     if args.no_open:
         return status(argparse.Namespace(project=str(spec.path), json=False))
     _run_review(spec.path, default_reviewer(args.reviewer), [])
     print(f"your decisions are saved in {spec.path}; next, try:\n"
           f"  docket status {spec.path}\n  docket agreement {spec.path}\n"
           f"  docket adjudicate {spec.path}\n  docket evaluate {spec.path}\n"
-          f"  docket evaluate {spec.path} --matchers")
+          f"  docket evaluate {spec.path} --matchers\n"
+          "(add --screen to agreement and evaluate to see them on a screen)")
     return 0
