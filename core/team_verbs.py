@@ -49,10 +49,11 @@ class TeamVerbs(ProjectFile):
     # -- labels from elsewhere ---------------------------------------------------------------
     def label_from(self, path: str | Path, reviewer: str,
                    progress: Callable[[str, int, int], None] | None = None
-                   ) -> tuple[int, RefitResult]:
+                   ) -> tuple[int, RefitResult | None]:
         """Every row of a labels file for ``reviewer`` (all checked before any is written),
-        then a refit; (decisions recorded, the refit). ``progress(step, done, total)`` hears
-        of each step and of each batch of rows written."""
+        then a refit; (decisions recorded, the refit: None when nothing new was recorded).
+        ``progress(step, done, total)`` hears of each step and of each batch of rows
+        written."""
         from .reviewing.bulk import apply_rows, read_rows
         from .reviewing.label_standing import new_rows
         say = progress or (lambda step, done, total: None)
@@ -61,6 +62,8 @@ class TeamVerbs(ProjectFile):
         say("checking the rows", 1, 1)
         n = apply_rows(self, reviewer, rows,
                        progress=lambda done: say("recording decisions", done, len(rows)))
+        if not n:  # a file run again: 10 s of refit over labels that changed in nothing
+            return 0, None
         say("refitting the model", 0, 1)
         result = self._refit_after(f"the {many(n, 'decision')} for {reviewer} are recorded")
         say("refitting the model", 1, 1)

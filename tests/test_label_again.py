@@ -26,3 +26,19 @@ def test_rows_that_stand_already_are_not_recorded_again(sample_project: Path, tm
         logged = sorted((d.pair_id, d.label, d.note) for d in p.decisions())
     assert logged == [(1, "match", ""), (2, "non-match", "moved"), (2, "non-match", "other town"),
                       (3, "hold", "")]
+
+
+def test_a_file_run_again_unchanged_records_nothing_and_skips_the_refit(
+        sample_project: Path, tmp_path: Path, capsys) -> None:
+    # it refit the model over labels that changed in nothing: 15 s of 15.6 on 24,952 rows
+    rows = tmp_path / "labels.csv"
+    rows.write_text("pair_id,label\n1,match\n2,non-match\n", encoding="utf-8")
+    assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(rows)]) == 0
+    with Project.open(sample_project) as p:
+        refits = p.meta["refits"]
+    capsys.readouterr()
+    assert main(["label", str(sample_project), "--reviewer", "maya", "--from", str(rows)]) == 0
+    out = capsys.readouterr().out
+    assert out == "recorded no decision for maya: nothing new, so the model stays as it was\n"
+    with Project.open(sample_project) as p:
+        assert p.meta["refits"] == refits

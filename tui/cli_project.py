@@ -165,6 +165,9 @@ def label(args: argparse.Namespace) -> int:
     with open_project(args.project) as project, progress_bar() as update:
         # registers the reviewer only if it records
         n, result = project.label_from(Path(args.source), reviewer, update)
+    if result is None:
+        print(f"recorded no decision for {reviewer}: nothing new, so the model stays as it was")
+        return 0
     # Audit pairs are not among them: they are fitted on, and judged by a model fitted
     # without them (cross-fitting).
     aside = (f"; {result.set_aside:,} set aside until another reviewer has labelled "
