@@ -103,6 +103,15 @@ def test_score_refuses_an_existing_output(sample_project_file: Path, tmp_path: P
                     str(tmp_path / "new"), "--model", str(pairs))
     assert_one_line_error(code, err, "model")
     assert not (tmp_path / "new").exists()
+    # written inside the folder of pairs, its parts were read as pairs the next time
+    folder = tmp_path / "parts"
+    folder.mkdir()
+    pd.DataFrame({"left_id": ["N-00001"], "right_id": ["S-10001"]}).to_parquet(
+        folder / "part-0.parquet", index=False)
+    code, err = run(capsys, "score", str(sample_project_file), "--pairs", str(folder), "-o",
+                    str(folder / "scored"))
+    assert_one_line_error(code, err, "scored: inside the folder of pairs")
+    assert [p.name for p in folder.iterdir()] == ["part-0.parquet"]
 
 
 def test_score_tables_that_do_not_fit_the_project_say_what_to_do(

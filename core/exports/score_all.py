@@ -133,6 +133,10 @@ def score_to_parts(job: ScoreJob, pairs: Path, out: Path, engine: str = "in-proc
                    progress: Callable[[int, int], None] | None = None) -> int:
     """Score every pair in ``pairs`` into Parquet parts in the new folder ``out``; rows written."""
     source = open_pairs(pairs)
+    if pairs.is_dir() and out.resolve().is_relative_to(pairs.resolve()):
+        # the next read of that folder took the scored parts for pairs, each pair twice
+        raise DocketError(f"{out}: inside the folder of pairs {pairs}, where its parts would "
+                          "be read as pairs too; give a folder outside it")
     tmp = _target(out)
     try:
         if engine == "dask":
