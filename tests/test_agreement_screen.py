@@ -97,6 +97,22 @@ async def test_a_cell_opens_that_pairs_disagreements_and_one_disagreement_the_pa
 
 
 @pilot_test
+async def test_the_disagreements_list_fits_80_columns(team, team_app):
+    # each note had 28 cells: at 80 columns the second note was out of sight, its heading 'no'
+    path, _ = team
+    app = team_app(path)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await press(pilot, "a")
+        await to_cell(pilot, "maya", "ines")
+        await press(pilot, "enter")
+        table = app.screen.query_one("#disagree-table")
+        width = sum(col.get_render_width(table) for col in table.columns.values())
+        assert width <= table.scrollable_content_region.width
+        assert [c.label.plain for c in table.columns.values()].count("note") == 2
+
+
+@pilot_test
 async def test_blind_shows_no_reviewer_names(team, team_app):
     path, _ = team
     app = team_app(path, blind=True)

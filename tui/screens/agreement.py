@@ -228,15 +228,24 @@ class DisagreementsScreen(TeamScreen):
         for name in (sa, sb):
             table.add_column(literal.one_line(name, NAME_WIDTH, p.escape))
             table.add_column(Text("note", p.muted))
+        note = self._note_cells()
         for r in self.rows:
             table.add_row(Text(str(r["pair_id"])), literal.one_line(r["left_id"], 16, p.escape),
                           literal.one_line(r["right_id"], 16, p.escape),
                           Text(r["label_a"], label_style(r["label_a"], p)),
-                          literal.one_line(r["note_a"] or "—", 28, p.escape),
+                          literal.one_line(r["note_a"] or "—", note, p.escape),
                           Text(r["label_b"], label_style(r["label_b"], p)),
-                          literal.one_line(r["note_b"] or "—", 28, p.escape),
+                          literal.one_line(r["note_b"] or "—", note, p.escape),
                           key=str(r["pair_id"]))
         table.focus()
+
+    def _note_cells(self) -> int:
+        """Each note's share of the line (28 at most): at 28 the second reviewer's note was
+        out of sight at 80 columns, its heading cut to 'no'."""
+        ids = [len(str(r[k])[:16]) for r in self.rows for k in ("left_id", "right_id")]
+        pair = max([4, *(len(str(r["pair_id"])) for r in self.rows)])
+        used = pair + 2 * max([5, *ids]) + 2 * len("non-match") + 7 * 2 + 2  # padding, bar
+        return max(8, min(28, (self.app.size.width - used) // 2))
 
     def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
         event.stop()
