@@ -93,6 +93,12 @@ async def test_the_table_then_where_a_matcher_fails_masked(rated, team_app):
             emails = {v for (v,) in p.connection.execute("SELECT email FROM left_records")
                       if v and len(v) > 8}
         assert not any(e in text for e in emails)  # masked as set
+        # the cursor starts on the first pair, not on its group's heading (Enter did nothing)
+        assert listed.cursor_row == 1
+        listed.move_cursor(row=0)
+        await press(pilot, "enter")
+        assert isinstance(app.screen, MatcherFailuresScreen)
+        assert [n.message for n in app._notifications][-1].startswith("A group's heading")
         listed.move_cursor(row=1)  # the first pair of the largest group
         await press(pilot, "enter")
         assert isinstance(app.screen, PairDetailScreen)

@@ -131,6 +131,8 @@ class MatcherFailuresScreen(TeamScreen):
                                  for fld, a, b in listed.values[f.pair_id])
                 table.add_row(Text(str(f.pair_id)), Text(f.kind), Text(visible(f.left_id)),
                               Text(visible(f.right_id)), Text(diff), key=str(f.pair_id))
+        if table.row_count > 1:  # on the first pair: the first row is its group's heading,
+            table.move_cursor(row=1)  # where Enter did nothing
 
     def action_open(self) -> None:
         table = self.query_one("#failures-table", DataTable)
@@ -139,3 +141,5 @@ class MatcherFailuresScreen(TeamScreen):
         key = str(table.coordinate_to_cell_key(table.cursor_coordinate).row_key.value)
         if key.isdigit():
             self.app.push_screen(PairDetailScreen(int(key)))
+        else:
+            self.notify("A group's heading: move to one of its pairs to open it.")
