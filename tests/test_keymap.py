@@ -42,6 +42,31 @@ def test_keymap_file_forms_and_problems(tmp_path):
     assert keymap_path({"HOME": "/home/u"}) == Path("/home/u/.config/docket/keymap.toml")
 
 
+def test_a_key_taken_from_a_binding_left_as_it_is_is_reported(tmp_path):
+    # 'match = "d"' made d record a match and left non-match without a key, unsaid: a
+    # reviewer pressing d for a non-match recorded a match
+    defaults = {"match": "s", "non-match": "d", "find": "slash"}
+    path = tmp_path / "keymap.toml"
+    path.write_text('match = "d"\n')
+    problems = load_keymap(list(defaults), path, defaults).problems
+    assert problems == [f"{path}: key 'd' is given to match, but it is non-match's own key, "
+                        "so non-match has none now: give non-match a key too"]
+    path.write_text('match = "d"\nnon-match = "n"\n')  # both moved: nothing to say
+    assert load_keymap(list(defaults), path, defaults).problems == []
+    path.write_text('match = "/"\n')  # '/' is the key named 'slash'
+    assert "find has none now" in load_keymap(list(defaults), path, defaults).problems[0]
+    path.write_text('note = "d"\n')  # a binding of another screen takes nothing from this one
+    assert load_keymap(["note", *defaults], path, defaults).problems == []
+
+
+def test_the_review_app_checks_the_keys_the_file_takes(review_sample, review_app, tmp_path):
+    keymap = tmp_path / "keymap.toml"
+    keymap.write_text('match = "d"\n')
+    app = review_app(review_sample, keymap_file=keymap)
+    app.project.close()  # never run: only its keymap is looked at
+    assert any("non-match has none now" in p for p in app.keymap.problems)
+
+
 def test_keymap_keys_no_press_is_named_are_refused_and_the_default_stays(tmp_path):
     ids = ["match", "non-match", "find", "help"]
     path = tmp_path / "keymap.toml"

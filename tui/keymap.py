@@ -21,7 +21,13 @@ from collections.abc import Iterable
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from textual.keys import ASCII_KEY_NAMES, KEY_NAME_REPLACEMENTS, Keys, key_to_character
+from textual.keys import (
+    ASCII_KEY_NAMES,
+    KEY_NAME_REPLACEMENTS,
+    Keys,
+    _character_to_key,
+    key_to_character,
+)
 
 FILE_NAME = "keymap.toml"
 
@@ -69,8 +75,12 @@ def _keys(value: object) -> str | None:
     return ",".join(keys) or None
 
 
-def load_keymap(known_ids: Iterable[str], path: Path | None = None) -> LoadedKeymap:
-    """Read the keymap file (if there is one) and keep the entries for known binding ids."""
+def load_keymap(known_ids: Iterable[str], path: Path | None = None,
+                defaults: dict[str, str] | None = None) -> LoadedKeymap:
+    """Read the keymap file (if there is one) and keep the entries for known binding ids.
+
+    ``defaults`` (binding id to its default key) lets a key taken from a binding left as it
+    is be reported: 'match = "d"' made d record a match and left non-match with no key."""
     path = keymap_path() if path is None else path
     loaded = LoadedKeymap(path)
     if not path.exists():
@@ -102,7 +112,28 @@ def load_keymap(known_ids: Iterable[str], path: Path | None = None) -> LoadedKey
     clashes = _clashes(loaded.keymap)
     loaded.problems += [f"{path}: key '{k}' is given to {', '.join(ids)}; only the first works"
                         for k, ids in clashes.items()]
+    loaded.problems += _taken(loaded.keymap, defaults or {}, path)
     return loaded
+
+
+def _name(key: str) -> str:
+    """A key as Textual names its press: '/' and 'slash' are one key."""
+    return _character_to_key(key) if len(key) == 1 else key
+
+
+def _taken(keymap: dict[str, str], defaults: dict[str, str], path: Path) -> list[str]:
+    """A remapped key that is the default key of a binding the file leaves as it is."""
+    given = {_name(k): bid for bid, keys in keymap.items() if bid in defaults  # one screen's
+             for k in keys.split(",")}
+    out = []
+    for bid, keys in defaults.items():
+        if bid in keymap:
+            continue
+        for key in keys.split(","):
+            if _name(key) in given and given[_name(key)] != bid:
+                out.append(f"{path}: key '{key}' is given to {given[_name(key)]}, but it is "
+                           f"{bid}'s own key, so {bid} has none now: give {bid} a key too")
+    return out
 
 
 def _clashes(keymap: dict[str, str]) -> dict[str, list[str]]:

@@ -25,7 +25,7 @@ from .hosts import Recount
 from .keymap import LoadedKeymap, load_keymap
 from .masking import Mask, expand_mask
 from .screen_exit import clearing
-from .screens.review import ReviewScreen, binding_ids
+from .screens.review import ReviewScreen, binding_ids, default_keys
 from .stopping import quitting_screen
 from .terminal import need_terminal
 from .toasts import OneToastEach
@@ -53,7 +53,7 @@ class ReviewApp(OneToastEach):
         self.clock = clock
         every = project.meta.get("refit_every", 25) if refit_every is None else refit_every
         self.refit_every: int = max(0, int(every))
-        self.keymap: LoadedKeymap = load_keymap(binding_ids(), keymap_file)
+        self.keymap: LoadedKeymap = load_keymap(binding_ids(), keymap_file, default_keys())
         self.counted = 0  # net change in this reviewer's decided pairs during the session
         self.on_painted: Callable[[], None] | None = None  # tests and benchmarks: frame is up
         self._background: Project | None = None

@@ -72,7 +72,10 @@ class TeamApp(OneToastEach):
         self.blind = blind
         self.mask = Mask.of(mask)
         self.clock = clock
-        self.keymap: LoadedKeymap = load_keymap(binding_ids(), keymap_file)
+        from .screens.adjudicate import AdjudicateScreen
+        decides = {b.id: b.key for b in AdjudicateScreen.BINDINGS  # where keys decide
+                   if isinstance(b, Binding) and b.id}
+        self.keymap: LoadedKeymap = load_keymap(binding_ids(), keymap_file, decides)
 
     @property
     def project_name(self) -> str:

@@ -273,3 +273,8 @@ class ReviewScreen(ReviewNotes, ReviewMoves, ReviewBackground, Screen[None]):
 def binding_ids() -> list[str]:
     """Every binding id that a keymap file may remap."""
     return [b.id for b in ReviewScreen.BINDINGS if isinstance(b, Binding) and b.id]
+
+
+def default_keys() -> dict[str, str]:
+    """Each binding id's default key(s), for the keymap file's check of keys it takes."""
+    return {b.id: b.key for b in ReviewScreen.BINDINGS if isinstance(b, Binding) and b.id}
