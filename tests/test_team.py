@@ -210,5 +210,5 @@ def test_next_names_both_reasons_of_an_audit_pair_waiting_for_a_second_reviewer(
     assert line.endswith("  audit, overlap")
     from docket.tui.diff import PLAIN
     from docket.tui.widgets.evidence import evidence_text
-    panel = evidence_text(card, PLAIN).plain
-    assert "queued  audit and overlap (a second reviewer too)" in panel
+    panel = evidence_text(card, PLAIN).plain  # the reason goes on under itself (a7f92a4)
+    assert "queued  audit and overlap\n  (a second reviewer too)" in panel
