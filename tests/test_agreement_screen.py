@@ -99,17 +99,20 @@ async def test_a_cell_opens_that_pairs_disagreements_and_one_disagreement_the_pa
 @pilot_test
 async def test_the_disagreements_list_fits_80_columns(team, team_app):
     # each note had 28 cells: at 80 columns the second note was out of sight, its heading 'no'
+    # and at 120 columns notes were cut at 28 cells with room to spare
     path, _ = team
-    app = team_app(path)
-    async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await press(pilot, "a")
-        await to_cell(pilot, "maya", "ines")
-        await press(pilot, "enter")
-        table = app.screen.query_one("#disagree-table")
-        width = sum(col.get_render_width(table) for col in table.columns.values())
-        assert width <= table.scrollable_content_region.width
-        assert [c.label.plain for c in table.columns.values()].count("note") == 2
+    for size, least in (((80, 24), 8), ((120, 40), 29)):
+        app = team_app(path)
+        async with app.run_test(size=size) as pilot:
+            await settle(pilot)
+            await press(pilot, "a")
+            await to_cell(pilot, "maya", "ines")
+            await press(pilot, "enter")
+            table = app.screen.query_one("#disagree-table")
+            width = sum(col.get_render_width(table) for col in table.columns.values())
+            assert width <= table.scrollable_content_region.width
+            assert [c.label.plain for c in table.columns.values()].count("note") == 2
+            assert app.screen._note_cells() >= least
 
 
 @pilot_test

@@ -240,12 +240,13 @@ class DisagreementsScreen(TeamScreen):
         table.focus()
 
     def _note_cells(self) -> int:
-        """Each note's share of the line (28 at most): at 28 the second reviewer's note was
-        out of sight at 80 columns, its heading cut to 'no'."""
+        """Each note's share of the line: at 28 cells the second reviewer's note was out of
+        sight at 80 columns, its heading cut to 'no', and at 120 notes were cut with room
+        to spare ('surname changed? the rest a…')."""
         ids = [len(str(r[k])[:16]) for r in self.rows for k in ("left_id", "right_id")]
         pair = max([4, *(len(str(r["pair_id"])) for r in self.rows)])
         used = pair + 2 * max([5, *ids]) + 2 * len("non-match") + 7 * 2 + 2  # padding, bar
-        return max(8, min(28, (self.app.size.width - used) // 2))
+        return max(8, min(48, (self.app.size.width - used) // 2))
 
     def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
         event.stop()
