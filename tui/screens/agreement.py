@@ -245,7 +245,10 @@ class DisagreementsScreen(TeamScreen):
         to spare ('surname changed? the rest a…')."""
         ids = [len(str(r[k])[:16]) for r in self.rows for k in ("left_id", "right_id")]
         pair = max([4, *(len(str(r["pair_id"])) for r in self.rows)])
-        used = pair + 2 * max([5, *ids]) + 2 * len("non-match") + 7 * 2 + 2  # padding, bar
+        labels = sum(max(len("non-match"), literal.one_line(self.shown.get(n, n),
+                                                            NAME_WIDTH).cell_len)
+                     for n in (self.a, self.b))  # a label column is as wide as its name
+        used = pair + 2 * max([5, *ids]) + labels + 7 * 2 + 2  # cell padding, scroll bar
         return max(8, min(48, (self.app.size.width - used) // 2))
 
     def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
