@@ -245,3 +245,20 @@ def test_count_ticks_are_whole_steps_of_one_two_or_five() -> None:
     # the library's binning: equal bins from the least value to the largest, which goes last
     assert tallest_bin([0.0, 0.1, 0.5, 1.0, 1.0], 20) == 2
     assert tallest_bin([0.3], 20) == 1
+
+
+@pilot_test
+async def test_help_lists_no_way_back_on_a_screen_opened_alone(team, team_app):
+    # 'evaluate --screen' listed 'esc  back  back to the screen you came from' in its help,
+    # where there is no screen to go back to and esc did nothing; from adjudication it stays
+    from docket.tui.screens.team_help import TeamHelp
+
+    for start, back in (("quality", False), ("adjudicate", True)):
+        app = team_app(team[0], start=start)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(pilot)
+            if start == "adjudicate":
+                await press(pilot, "g")
+            await press(pilot, "question_mark")
+            assert isinstance(app.screen, TeamHelp)
+            assert ("quality-back" in {r.binding_id for r in app.screen.rows}) is back

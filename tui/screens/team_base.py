@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, ClassVar, cast
 
+from textual.binding import Binding
 from textual.screen import Screen
 
 from .help import key_rows
@@ -25,6 +26,10 @@ class TeamScreen(Screen[None]):
     def action_help(self) -> None:
         app = self.team_app
         rows = key_rows(self, app.get_key_display, app.keymap.keymap)
+        if self.check_action("back", ()) is False:  # opened alone from the shell: no way back,
+            back = {b.id for b in self.BINDINGS  # and help listed 'esc back' all the same
+                    if isinstance(b, Binding) and b.action == "back"}
+            rows = [r for r in rows if r.binding_id not in back]
         self.app.push_screen(TeamHelp(rows, app.keymap.path, app.keymap.problems, self.HELP))
 
     def action_back(self) -> None:
