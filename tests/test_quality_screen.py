@@ -55,10 +55,13 @@ async def test_clusters_tab_lists_the_conflict_and_enter_shows_its_members(team,
         await settle(pilot)
         await press(pilot, "3")
         assert "1 conflict" in screen_text(app)
-        assert "held together by gold matches" in screen_text(app)
+        assert "held together by gold matches (pairs)" in screen_text(app)
+        assert "gold non-match (pair)" in screen_text(app)  # '4' read as a count
         await press(pilot, "enter")
         assert isinstance(app.screen, ConflictScreen)
         text = screen_text(app)
+        head = app.screen.query_one("#conflict-head").render().plain
+        assert f"the gold non-match of pair {layout.conflict_non_match} says" in head
         for _, record_id in conflict.members:
             assert record_id in text
         members = app.screen.query_one("#conflict-members")

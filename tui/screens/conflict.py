@@ -7,6 +7,7 @@ contradicts. Enter on a pair opens it with everyone's labels.
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from typing import TYPE_CHECKING, ClassVar, cast
 
 from rich.text import Text
@@ -31,6 +32,11 @@ if TYPE_CHECKING:
 
 MOST_PAIRS = 200  # pairs listed for one cluster; a larger one is cut with a note
 VALUE_WIDTH = 22
+
+
+def pair_ids(ids: Sequence[int]) -> str:
+    """'pair 4' or 'pairs 1, 2, 3'."""
+    return f"{'pair' if len(ids) == 1 else 'pairs'} {', '.join(map(str, ids))}"
 
 
 class ConflictScreen(Screen[None]):
@@ -61,11 +67,11 @@ class ConflictScreen(Screen[None]):
         app, c = self.team_app, self.conflict
         p = Palette.from_variables(self.app.get_css_variables(), self.app.no_color)
         head = Text(f"cluster {c.cluster} · {len(c.members)} records", "bold")
-        head.append(f" · gold matches {', '.join(map(str, c.match_pairs[:12]))}"
-                    f"{' …' if len(c.match_pairs) > 12 else ''} join them, but gold "
-                    f"non-match {', '.join(map(str, c.non_match_pairs))} says two of them "
-                    "differ. One of these labels is wrong: the pairs wait for adjudication.",
-                    p.muted)
+        # pair ids said to be pairs: 'gold non-match 4 says' read as four non-matches
+        head.append(f" · the gold matches of {pair_ids(c.match_pairs[:12])}"
+                    f"{' …' if len(c.match_pairs) > 12 else ''} join them, but the gold "
+                    f"non-match of {pair_ids(c.non_match_pairs)} says two of them differ. One "
+                    "of these labels is wrong: the pairs wait for adjudication.", p.muted)
         self.query_one("#conflict-head", Static).update(head)
         members = self.query_one("#conflict-members", DataTable)
         fields = app.project.fields

@@ -235,7 +235,9 @@ class QualityScreen(TeamScreen):
         table = self.query_one("#conflict-table", DataTable)
         table.clear(columns=True)
         table.display = bool(data.conflicts)  # no column headings over no rows
-        for label in ("cluster", "records", "gold non-match", "held together by gold matches"):
+        # the pairs named as pairs: 'gold non-match 4' read as a count of four
+        for label in ("cluster", "records", "gold non-match (pair)",
+                      "held together by gold matches (pairs)"):
             table.add_column(Text(label, p.muted))
         for c in data.conflicts:
             members = Text(f"{len(c.members)}: ")

@@ -177,8 +177,9 @@ def reviews_text(card: PairCard, standing: PairStanding, adjudicator: str, blind
             text.append("not waiting for adjudication\n")
     if standing.conflict is not None:
         c = standing.conflict
-        text.append(f"  cluster {c.cluster}: {c.members} records; gold matches "
-                    f"{_ids(c.match_pairs)}; gold non-match {_ids(c.non_match_pairs)}\n",
+        text.append(f"  cluster {c.cluster}: {c.members} records; gold matches in pairs "
+                    f"{_ids(c.match_pairs)}; gold non-match in pairs "
+                    f"{_ids(c.non_match_pairs)}\n",
                     p.muted)
     text.append("model  ", p.muted)
     # two short lines rather than one that wraps in a narrow panel
