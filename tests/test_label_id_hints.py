@@ -113,3 +113,15 @@ def test_ids_with_invisible_characters_are_named_so(tmp_path: Path, capsys) -> N
     assert main(["label", str(project), "--reviewer", "ana", "--from", str(labels)]) == 2
     err = capsys.readouterr().err
     assert "'N-7\\u200b' is the record id 'N-7' with invisible characters in it" in err, err
+
+
+def test_ids_written_as_decimal_numbers_are_named_so(tmp_path: Path, capsys) -> None:
+    # a score file written from a column of floats holds '17.0' for the record '17'
+    project = _every_pair_of(tmp_path, "17,Arlo Vesk\n18,Arlo Vesk\n")
+    labels = tmp_path / "l.csv"
+    for row, hint in (("17.0,18", "'17.0' looks like the record id '17' written as a decimal "
+                       "number"), ("17.5,18", "")):
+        labels.write_text(f"left_id,right_id,label\n{row},match\n", encoding="utf-8")
+        assert main(["label", str(project), "--reviewer", "ana", "--from", str(labels)]) == 2
+        err = capsys.readouterr().err
+        assert (hint in err) if hint else "written as a decimal" not in err, err

@@ -1,6 +1,7 @@
 """Hints for ids in a label, predictions, matcher or missed-match file that name no record but
 nearly do: the same id in another Unicode form or with invisible characters in it, with its
-leading zeros dropped, with spaces at its ends or in other letter case."""
+leading zeros dropped or written as a decimal number, with spaces at its ends or in other letter
+case."""
 
 from __future__ import annotations
 
@@ -31,7 +32,23 @@ def form_hint(given: Iterable[object], known: Collection[str]) -> str:
         if seen != text and seen in known:
             return (f"; {text!a} is the record id {seen!a} with invisible characters in it "
                     "(copied from a web page or a document, perhaps): remove them from the file")
-    return _zeros_hint(given, known) or _written_hint(given, known)
+    return _zeros_hint(given, known) or _decimal_hint(given, known) or \
+        _written_hint(given, known)
+
+
+def _decimal_hint(given: Iterable[object], known: Collection[str]) -> str:
+    """A hint for an id that is a record's id written as a decimal number ('17.0' for '17'),
+    as a spreadsheet or a float column writes a whole number."""
+    for value in given:
+        text = str(value).strip()
+        whole, dot, zeros = text.partition(".")
+        if text in known or not dot or not whole.isdigit() or zeros.strip("0"):
+            continue
+        if whole in known:
+            return (f"; '{text}' looks like the record id '{whole}' written as a decimal "
+                    "number, as a spreadsheet or a column of floats writes it: keep the ids as "
+                    "text")
+    return ""
 
 
 def _zeros_hint(given: Iterable[object], known: Collection[str]) -> str:
