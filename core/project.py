@@ -12,6 +12,7 @@ from typing import TYPE_CHECKING, Any
 
 from .errors import DocketError
 from .matcher_verbs import MatcherVerbs
+from .matching import name_swap
 from .matching.explain import explanation
 from .ordering import queue
 from .queue_verbs import QueueVerbs
@@ -104,9 +105,14 @@ class Project(TeamVerbs, ReportVerbs, MatcherVerbs, QueueVerbs):
         lvls = [int(x) for x in levels.split(",")]
         table = explanation(self.meta)
         rows = []
+        swapped = name_swap.swapped_fields(self.fields, left, right)
         for j, (f, lv, sim) in enumerate(zip(self.fields, lvls, row[7:], strict=True)):
+            level_name = names[(f.name, lv)]
+            if f.name in swapped and lv == name_swap.close_level(f, self.meta.get(
+                    "fs_model", {}).get("frequent", {})):
+                level_name = name_swap.SWAPPED
             rows.append(FieldComparison(f.name, f.kind, left.get(f.left_column),
-                                        right.get(f.right_column), sim, lv, names[(f.name, lv)],
+                                        right.get(f.right_column), sim, lv, level_name,
                                         float(table.parts[j][lv])))
         compared_l = {f.left_column for f in self.fields}
         compared_r = {f.right_column for f in self.fields}

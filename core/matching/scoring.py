@@ -13,7 +13,7 @@ import pandas as pd
 
 from ..records import distinct, normalise
 from ..types import FieldSpec
-from . import compare
+from . import compare, name_swap
 
 CHUNK = 250_000
 
@@ -29,9 +29,12 @@ def normalised(fields: list[FieldSpec], frame: pd.DataFrame, side: str) -> dict[
 
 def prepare(fields: list[FieldSpec], left_norm: dict[str, np.ndarray],
             right_norm: dict[str, np.ndarray]) -> dict[str, compare.Prepared]:
-    """Per field, the work done once per record rather than once per pair."""
-    return {f.name: compare.prepare(f.kind, left_norm[f.name], right_norm[f.name])
-            for f in fields}
+    """Per field, the work done once per record rather than once per pair (and the codes of
+    name fields beside each other, for :mod:`name_swap`)."""
+    out = {f.name: compare.prepare(f.kind, left_norm[f.name], right_norm[f.name])
+           for f in fields}
+    out.update(name_swap.prepare(fields, left_norm, right_norm))
+    return out
 
 
 def compare_pairs(fields: list[FieldSpec], left_norm: dict[str, np.ndarray],
@@ -68,6 +71,8 @@ def compare_pairs(fields: list[FieldSpec], left_norm: dict[str, np.ndarray],
             done += 1
             if progress:
                 progress(done, steps)
+        name_swap.apply(fields, left_norm, right_norm, li[sl], ri[sl], sims[sl], levels[sl],
+                        frequent, prepared)
     return sims, levels
 
 

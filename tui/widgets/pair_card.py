@@ -19,7 +19,8 @@ from .card_lines import BAR_CELLS, SHORTENED, Columns, Lines
 STACK_BELOW = 84  # card widths below this put the right value under the left one
 EIGHTHS = " ▏▎▍▌▋▊▉"
 SHORT_LEVELS = {"day/month swapped": "d/m swap", "within a month": "≤ month",
-                "exact, rare": "rare", "exact, common": "common"}
+                "exact, rare": "rare", "exact, common": "common",
+                "close, swapped": "swapped"}  # names in each other's columns (name_swap)
 
 
 @dataclass(frozen=True)
