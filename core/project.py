@@ -106,10 +106,10 @@ class Project(TeamVerbs, ReportVerbs, MatcherVerbs, QueueVerbs):
         table = explanation(self.meta)
         rows = []
         swapped = name_swap.swapped_fields(self.fields, left, right)
+        frequent = self.meta.get("fs_model", {}).get("frequent", {})
         for j, (f, lv, sim) in enumerate(zip(self.fields, lvls, row[7:], strict=True)):
             level_name = names[(f.name, lv)]
-            if f.name in swapped and lv == name_swap.close_level(f, self.meta.get(
-                    "fs_model", {}).get("frequent", {})):
+            if f.name in swapped and lv == name_swap.close_level(f, frequent):
                 level_name = name_swap.SWAPPED
             rows.append(FieldComparison(f.name, f.kind, left.get(f.left_column),
                                         right.get(f.right_column), sim, lv, level_name,

@@ -47,17 +47,14 @@ def close_level(field: FieldSpec, frequent: dict[str, list]) -> int:
     return 2 if field.name in frequent else 1
 
 
-def apply(fields: list[FieldSpec], left_norm: dict[str, np.ndarray],
-          right_norm: dict[str, np.ndarray], li: np.ndarray, ri: np.ndarray,
-          sims: np.ndarray, levels: np.ndarray, frequent: dict[str, list],
+def apply(fields: list[FieldSpec], li: np.ndarray, ri: np.ndarray, sims: np.ndarray,
+          levels: np.ndarray, frequent: dict[str, list],
           prepared: dict[str, compare.Prepared]) -> None:
-    """Set swapped name fields of the pairs (``li``, ``ri``) to 'close', in place."""
+    """Set swapped name fields of the pairs (``li``, ``ri``) to 'close', in place; ``prepared``
+    holds the codes :func:`prepare` makes (``scoring.prepare`` includes them)."""
     for a, b in name_pairs(fields):
         fa, fb = fields[a].name, fields[b].name
-        ab = prepared.get(cross_key(fa, fb)) or compare.prepare("code", left_norm[fa],
-                                                                right_norm[fb])
-        ba = prepared.get(cross_key(fb, fa)) or compare.prepare("code", left_norm[fb],
-                                                                right_norm[fa])
+        ab, ba = prepared[cross_key(fa, fb)], prepared[cross_key(fb, fa)]
         la, lb = close_level(fields[a], frequent), close_level(fields[b], frequent)
         hit = ((ab.lcodes[li] >= 0) & (ab.lcodes[li] == ab.rcodes[ri]) &
                (ba.lcodes[li] >= 0) & (ba.lcodes[li] == ba.rcodes[ri]) &

@@ -49,7 +49,7 @@ def fold(value: str) -> str:
     invisible format characters, so that 'Zoë' and 'ZOE' compare equal."""
     if value.isascii():  # nothing to decompose: the common case, many times faster
         return value.lower()
-    decomposed = _DIACRITICS.sub("", unicodedata.normalize("NFKD", _INVISIBLE.sub("", value)))
+    decomposed = _DIACRITICS.sub("", unicodedata.normalize("NFKD", visible(value)))
     if not decomposed.isascii():  # marks outside that block may remain: look at each character
         decomposed = "".join(ch for ch in decomposed if not unicodedata.combining(ch))
     return decomposed.casefold()
