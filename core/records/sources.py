@@ -15,8 +15,9 @@ import pyarrow.compute as pc
 
 from ..errors import DocketError
 from ..wording import noun
+from .json_tables import read_json
 from .text_tables import EncodingWarning_ as EncodingWarning_
-from .text_tables import check_names, read_delimited, read_json
+from .text_tables import check_names, read_delimited
 
 FORMATS = {".csv": "csv", ".tsv": "tsv", ".tab": "tsv", ".parquet": "parquet", ".pq": "parquet",
            ".jsonl": "jsonl", ".ndjson": "jsonl", ".json": "jsonl"}

@@ -4,7 +4,7 @@ The encoding comes from a byte-order mark when there is one (UTF-8, UTF-16 and U
 written by spreadsheets carry one), else UTF-8, else cp1252 with a warning. A ``.csv`` whose
 header holds no comma but semicolons, tabs or bars is read with that separator, with a
 warning naming it. A row with fewer or more fields than the header is an error naming its
-line. A ``.json`` file may hold one array of objects or JSON lines.
+line. JSON files are read by :mod:`json_tables`.
 """
 
 from __future__ import annotations
@@ -12,7 +12,6 @@ from __future__ import annotations
 import codecs
 import csv
 import io
-import json
 import sys
 import warnings
 from pathlib import Path
@@ -27,8 +26,6 @@ BOMS = ((codecs.BOM_UTF32_LE, "utf-32"), (codecs.BOM_UTF32_BE, "utf-32"),
         (codecs.BOM_UTF8, "utf-8-sig"), (codecs.BOM_UTF16_LE, "utf-16"),
         (codecs.BOM_UTF16_BE, "utf-16"))
 SEPARATORS = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "bars"}
-JSON_KINDS = {int: "a number", float: "a number", str: "a string", bool: "true or false",
-              list: "an array", type(None): "null"}
 
 
 class EncodingWarning_(UserWarning):
@@ -64,14 +61,14 @@ def _packed(path: Path, head: bytes) -> str | None:
     return found
 
 
-def _refuse_packed(path: Path, head: bytes) -> None:
+def refuse_packed(path: Path, head: bytes) -> None:
     packed = _packed(path, head)
     if packed:
         raise DocketError(f"{path}: {packed}")
 
 
 def _encodings(path: Path, head: bytes) -> list[str]:
-    _refuse_packed(path, head)
+    refuse_packed(path, head)
     named = bom_encoding(head)
     if named:
         return [named]
@@ -261,66 +258,3 @@ def read_delimited(path: Path, fmt: str) -> pd.DataFrame:
                           EncodingWarning_, stacklevel=3)
         return frame
     raise DocketError(f"{path}: cannot decode the text; save it as UTF-8")  # pragma: no cover
-
-
-def read_json(path: Path) -> pd.DataFrame:
-    """JSON lines, or one JSON array of objects (one object per record).
-
-    Parsed by Python's json, values kept as parsed: pandas' reader took every number of a
-    column with a gap through a float, so 12345678901234567 was read as ...568 (two records
-    then agreed on a number neither holds), and refused an integer past 64 bits as no JSON.
-    """
-    with path.open("rb") as f:
-        head = f.read(HEAD_BYTES)
-    _refuse_packed(path, head)  # a Parquet or gzip file named .jsonl was "not utf-8 text"
-    encoding = bom_encoding(head) or "utf-8"
-    first = head.decode(encoding, errors="ignore").lstrip("\ufeff \t\r\n")[:1]
-    try:
-        if first != "[":
-            return _flat(path, pd.DataFrame(_json_lines(path, encoding), dtype=object))
-        data = json.loads(path.read_text(encoding=encoding))
-    except UnicodeDecodeError:
-        raise DocketError(f"{path}: not {encoding} text; save it as UTF-8") from None
-    except json.JSONDecodeError as exc:
-        raise DocketError(f"{path}: not valid JSON ({exc}); give one array of objects or "
-                          "JSON lines") from None
-    odd = next((i for i, v in enumerate(data) if not isinstance(v, dict)), None)
-    if odd is not None:
-        kind = JSON_KINDS.get(type(data[odd]), type(data[odd]).__name__)
-        raise DocketError(f"{path}: item {odd + 1} of the JSON array is {kind}, not an "
-                          "object; give one object per "
-                          'record, e.g. [{"id": 1, "name": "..."}]')
-    return _flat(path, pd.DataFrame(data, dtype=object))
-
-
-def _json_lines(path: Path, encoding: str) -> list[dict[str, object]]:
-    """Each line that is not blank, as one JSON object; the first that is none is named."""
-    rows = []
-    with path.open(encoding=encoding) as f:  # lines end at LF, CRLF or CR alike
-        for n, line in enumerate(f, start=1):
-            if not line.strip():
-                continue
-            try:
-                value = json.loads(line)
-            except json.JSONDecodeError as exc:
-                raise DocketError(f"{path}: line {n} is not valid JSON ({exc.msg}); give one "
-                                  "JSON object per line") from None
-            if not isinstance(value, dict):
-                kind = JSON_KINDS.get(type(value), type(value).__name__)
-                raise DocketError(f"{path}: line {n} is {kind}, not an object; give one JSON "
-                                  "object per line")
-            rows.append(value)
-    return rows
-
-
-def _flat(path: Path, frame: pd.DataFrame) -> pd.DataFrame:
-    """Refuse nested values: a record is one flat object (``{"records": [...]}`` is not)."""
-    for col in frame.columns:
-        if frame[col].dtype == object:
-            nested = frame[col].map(lambda v: isinstance(v, (list, dict))).to_numpy()
-            if nested.any():
-                i = int(nested.nonzero()[0][0])
-                kind = "a list" if isinstance(frame[col].iloc[i], list) else "an object"
-                raise DocketError(f"{path}: record {i + 1}, '{col}' holds {kind}; give one "
-                                  "flat object per record (values text, numbers or null)")
-    return frame
