@@ -110,3 +110,11 @@ def dask_scheduler() -> Iterator[str]:
                                        dashboard_address=":0", silence_logs=logging.ERROR)
     yield cluster.scheduler_address
     cluster.close()
+
+
+@pytest.fixture
+def good(tmp_path: Path) -> Path:
+    """A small well-formed table of three records (the bad-input tests' control)."""
+    path = tmp_path / "good.csv"
+    path.write_text("id,name,town\n1,Anna,Oslo\n2,Jon,Bergen\n3,Anne,Oslo\n", encoding="utf-8")
+    return path

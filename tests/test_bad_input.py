@@ -35,11 +35,6 @@ def write(path: Path, text: str, encoding: str = "utf-8") -> Path:
     return path
 
 
-@pytest.fixture
-def good(tmp_path: Path) -> Path:
-    return write(tmp_path / "good.csv", "id,name,town\n1,Anna,Oslo\n2,Jon,Bergen\n3,Anne,Oslo\n")
-
-
 CASES = {
     "missing file": (lambda d: d / "nope.csv", ["nope.csv", "no such file"]),
     "unreadable format": (lambda d: write(d / "data.xyz", "x"),
@@ -180,19 +175,6 @@ def test_a_utf8_file_with_one_latin1_line_is_refused_naming_it(tmp_path: Path, c
     assert not (tmp_path / "p.docket").exists()
 
 
-def test_refuses_to_overwrite_and_keeps_the_file(tmp_path: Path, good: Path, capsys) -> None:
-    project = tmp_path / "p.docket"
-    assert main(["new", str(project), "--left", str(good), "--id", "id", "--block", "town"]) == 0
-    before = hashlib.sha256(project.read_bytes()).hexdigest()
-    code, err = run(capsys, "new", str(project), "--left", str(good), "--id", "id")
-    assert_one_line_error(code, err, "already exists", "--force")
-    # A failing --force build must not touch the existing project either.
-    code, err = run(capsys, "new", str(project), "--left", str(tmp_path / "gone.csv"),
-                    "--id", "id", "--force")
-    assert code == 2
-    assert hashlib.sha256(project.read_bytes()).hexdigest() == before
-
-
 def test_not_a_project_and_newer_version(tmp_path: Path, capsys) -> None:
     text = write(tmp_path / "notes.docket", "hello")
     code, err = run(capsys, "status", str(text))
@@ -259,28 +241,6 @@ def test_real_process_exit_code_and_no_traceback(tmp_path: Path) -> None:
     assert "Traceback" not in done.stderr and len(done.stderr.strip().splitlines()) == 1
 
 
-def test_new_never_replaces_its_own_input_nor_a_file_that_is_no_project(
-        good: Path, tmp_path: Path, capsys) -> None:
-    # 'docket new good.csv --left good.csv --force' replaced the table of records by the project
-    before = good.read_bytes()
-    for force in ([], ["--force"]):
-        code, err = run(capsys, "new", str(good), "--left", str(good), "--id", "id",
-                        "--block", "town", *force)
-        assert_one_line_error(code, err, f"{good}: is a file this project is built from",
-                              "good.docket")
-    assert good.read_bytes() == before
-    notes = write(tmp_path / "notes.docket", "not a project\n")
-    code, err = run(capsys, "new", str(notes), "--left", str(good), "--id", "id", "--force")
-    assert_one_line_error(code, err, "is not a docket project", "--force replaces only")
-    assert notes.read_text(encoding="utf-8") == "not a project\n"
-    project = tmp_path / "p.docket"
-    project.write_bytes(b"")
-    for _ in range(2):  # an empty file, then a project: both replaced when asked
-        assert main(["new", str(project), "--left", str(good), "--id", "id", "--block", "town",
-                     "--force"]) == 0
-    capsys.readouterr()
-
-
 def test_one_table_given_as_both_sides_is_refused(good: Path, tmp_path: Path, capsys) -> None:
     # linked with itself, every record was its own best candidate
     project = tmp_path / "p.docket"
@@ -288,26 +248,6 @@ def test_one_table_given_as_both_sides_is_refused(good: Path, tmp_path: Path, ca
                     str(tmp_path / "." / good.name), "--id", "id")
     assert_one_line_error(code, err, "given as both --left and --right", "--left alone")
     assert not project.exists()
-
-
-def test_force_over_a_project_with_decisions_needs_discard_decisions(
-        good: Path, tmp_path: Path, capsys) -> None:
-    # --force rebuilt over the decisions silently: all of them lost
-    project = tmp_path / "p.docket"
-    argv = ["new", str(project), "--left", str(good), "--id", "id", "--block", "town"]
-    assert main(argv) == 0
-    with Project.open(project) as p:
-        p.decide(p.next_pairs("maya", 1)[0].pair_id, "maya", "match")
-    before = project.read_bytes()
-    capsys.readouterr()
-    code, err = run(capsys, *argv, "--force")
-    assert_one_line_error(code, err, f"{project} holds 1 decision by 1 reviewer that --force "
-                          "would discard", "--force --discard-decisions")
-    assert project.read_bytes() == before
-    assert main([*argv, "--force", "--discard-decisions"]) == 0
-    with Project.open(project) as p:
-        assert p.decisions() == []
-    capsys.readouterr()
 
 
 @pytest.mark.parametrize("argv", [
@@ -363,67 +303,3 @@ def test_a_long_message_keeps_its_start_and_its_end() -> None:
     text = said("start " + "word " * 100_000 + "what to do")
     assert text.startswith("start word") and text.endswith("word what to do")
     assert "…(498,016 characters)…" in text and len(text) < 2100
-
-
-def test_force_never_replaces_another_programs_database(good: Path, tmp_path: Path,
-                                                         capsys) -> None:
-    # it was replaced by the project: any SQLite file passed as one
-    other = tmp_path / "notes.db"
-    conn = sqlite3.connect(other)
-    conn.execute("CREATE TABLE note (body TEXT)")
-    conn.commit()
-    conn.close()
-    before = other.read_bytes()
-    code, err = run(capsys, "new", str(other), "--left", str(good), "--id", "id", "--force")
-    assert_one_line_error(code, err, f"{other}: is an SQLite database of another program",
-                          "--force replaces only a project")
-    assert other.read_bytes() == before
-
-
-def test_force_never_replaces_decisions_it_cannot_count(sample_project: Path, good: Path,
-                                                       capsys) -> None:
-    # a newer docket's project was replaced with its decisions, uncounted, so
-    # --discard-decisions was not asked for
-    with Project.open(sample_project) as project:
-        item = project.next_pairs("ana", 1)[0]
-        project.decide(item.pair_id, "ana", "match")
-    conn = sqlite3.connect(sample_project)
-    conn.execute("PRAGMA user_version = 99")
-    conn.close()
-    before = hashlib.sha256(sample_project.read_bytes()).hexdigest()
-    code, err = run(capsys, "new", str(sample_project), "--left", str(good), "--id", "id",
-                    "--force")
-    assert_one_line_error(code, err, "written by a newer docket", "cannot tell what decisions",
-                          "--force --discard-decisions")
-    assert hashlib.sha256(sample_project.read_bytes()).hexdigest() == before
-    assert main(["new", str(sample_project), "--left", str(good), "--id", "id", "--force",
-                 "--discard-decisions"]) == 0  # said: replaced
-
-
-def test_a_table_from_standard_input_is_said_to_need_a_file(
-        sample_project: Path, tmp_path: Path, monkeypatch, capsys) -> None:
-    # '--from -' (as export writes '-o -') was '-: no such file; check the path'
-    monkeypatch.chdir(tmp_path)
-    for argv in (["label", str(sample_project), "--reviewer", "ana", "--from", "-"],
-                 ["evaluate", str(sample_project), "--predictions", "-"]):
-        code, err = run(capsys, *argv)
-        assert_one_line_error(code, err, "-: no such file; a table is read from a file, not "
-                                         "standard input")
-
-
-@pytest.mark.parametrize("options, needles", [
-    # the hint named --id to someone who had given --left-id
-    (["--left-id", "Client_ID", "--right-id", "ref"],
-     ["no column 'Client_ID'; did you mean 'client_id'?", "with --left-id"]),
-    (["--left-id", "client_id", "--right-id", "reff"],
-     ["no column 'reff'; did you mean 'ref'?", "with --right-id"]),
-    (["--id", "client_id"], ["practice_south.csv: no column 'client_id'; columns are ref,",
-                             "with --right-id"]),
-])
-def test_an_id_column_not_found_names_the_option_and_the_nearest_column(
-        options: list[str], needles: list[str], tmp_path: Path, capsys) -> None:
-    sample = Path(__file__).resolve().parent.parent / "sample"
-    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left",
-                    str(sample / "practice_north.csv"), "--right",
-                    str(sample / "practice_south.csv"), *options)
-    assert_one_line_error(code, err, *needles)
