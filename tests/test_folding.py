@@ -3,6 +3,7 @@ figures only at their gaps; piped output stays as written."""
 
 from __future__ import annotations
 
+import json
 from pathlib import Path
 
 import pytest
@@ -13,6 +14,16 @@ from docket.tui.folding import fold
 
 def _words(text: str) -> list[str]:
     return text.split()
+
+
+def _outside_table(text: str) -> str:
+    """evaluate's text without its threshold table and the table's footnote, which a terminal
+    narrower than the table gets in fewer cells (two decimals)."""
+    lines = text.splitlines()
+    head = next(i for i, line in enumerate(lines) if line.startswith(" threshold  precision"))
+    note = next(i for i in range(head, len(lines)) if lines[i].startswith("  * decision"))
+    end = next(i for i in range(note + 1, len(lines)) if not lines[i].startswith("    "))
+    return "\n".join(lines[:head] + lines[end:])
 
 
 def test_a_labelled_line_folds_under_its_text_and_a_table_row_stays() -> None:
@@ -53,8 +64,37 @@ def test_reports_fit_80_columns_on_a_terminal_and_keep_every_word(
     monkeypatch.setattr("sys.stdout.isatty", lambda: True, raising=False)
     assert main([command, project]) == 0
     shown = capsys.readouterr().out
+    if command == "evaluate":  # its table is drawn to fit (test_evaluate_table_fits_80)
+        shown, piped = _outside_table(shown), _outside_table(piped)
     assert _words(shown) == _words(piped)
     assert max(len(line) for line in shown.splitlines()) <= 80
+
+
+def test_evaluate_table_fits_80_columns_one_line_per_threshold(
+        team: tuple[Path, object], monkeypatch: pytest.MonkeyPatch,
+        capsys: pytest.CaptureFixture) -> None:
+    # the table is 96 cells wide: folded at 80 columns, each threshold took two lines, its
+    # predicted count alone on the second
+    project = str(team[0])
+    assert main(["evaluate", project, "--json"]) == 0
+    report = json.loads(capsys.readouterr().out)
+    monkeypatch.setenv("COLUMNS", "80")
+    monkeypatch.setattr("sys.stdout.isatty", lambda: True, raising=False)
+    assert main(["evaluate", project]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    head = next(i for i, line in enumerate(lines) if line.startswith(" threshold  precision"))
+    rows = lines[head + 1:head + 1 + len(report["estimates"])]
+    assert lines[head].split() == ["threshold", "precision", "recall", "F1", "predicted"]
+    for row, e in zip(rows, report["estimates"], strict=True):
+        assert len(row) <= 80
+        cells = row.lstrip("* ").split()
+        assert float(cells[0]) == e["threshold"]
+        assert cells[-1] == f"{e['predicted_positives']:,.0f}"  # the count, on its own row
+        assert float(cells[1]) == round(e["precision"]["value"], 2)
+        low = e["precision"]["low"]
+        shown_low = float(cells[2].strip("[").split("–")[0])
+        assert shown_low <= low + 1e-9  # rounded outwards: never claims more than it has
+    assert "two decimals" in "\n".join(lines)
 
 
 def test_new_folds_its_notes_and_caution_on_a_terminal(

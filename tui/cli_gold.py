@@ -140,8 +140,8 @@ def evaluate(args: argparse.Namespace) -> int:
     if args.json:
         print(json_text(report.to_dict()))
         return 0
-    from .folding import echo
-    echo("\n".join(evaluation_lines(report, name)))
+    from .folding import echo, width
+    echo("\n".join(evaluation_lines(report, name, width())))
     return 0
 
 

@@ -8,7 +8,17 @@ from typing import Any
 
 from docket.core.results import Evaluation
 
-from .figures import among_pairs, bounds, estimate, interval, labelled_text, many, noun, number
+from .figures import (
+    among_pairs,
+    bounds,
+    estimate,
+    interval,
+    labelled_text,
+    many,
+    narrow_estimate,
+    noun,
+    number,
+)
 from .terminal import padded
 
 
@@ -20,6 +30,31 @@ def _iv(d: dict[str, Any]) -> str:
 def _row(e: dict[str, Any], mark: str) -> str:
     return (f"{mark} {e['threshold']:>8.4g}  {_iv(e['precision']):<24}{_iv(e['recall']):<24}"
             f"{_iv(e['f1']):<24}{e['predicted_positives']:>12,.0f}")
+
+
+WIDE_HEAD = f"{'precision':<24}{'recall':<24}{'F1':<24}{'predicted':>12}"
+NARROW_HEAD = f"{'precision':<16}{'recall':<16}{'F1':<16}{'predicted':>11}"
+WIDE = 12 + len(WIDE_HEAD)  # 96 cells: what a terminal needs for the table in full
+
+
+def _narrow_row(e: dict[str, Any], mark: str) -> str:
+    """A row of the table as the quality screen's narrow one writes it (``0.92 [.88–.95]``):
+    the wide row is 96 cells, and folded at 80 columns each threshold took two lines."""
+    figures = "".join(f"{narrow_estimate(e[k]):<16}" for k in ("precision", "recall", "f1"))
+    return f"{mark} {e['threshold']:>8.4g}  {figures}{e['predicted_positives']:>11,.0f}"
+
+
+NARROW_NOTE = (f", to two decimals with their ends rounded outwards to fit the terminal (three on "
+               f"one of {WIDE} columns, in a pipe or with --json)")
+
+
+def _table(report: Evaluation, width: int | None) -> list[str]:
+    """The threshold table; below ``WIDE`` columns with two decimals, so it fits 80."""
+    narrow = width is not None and width < WIDE
+    head, row = (NARROW_HEAD, _narrow_row) if narrow else (WIDE_HEAD, _row)
+    return [f"{'threshold':>10}  {head}",
+            *(row(e, "*" if e["threshold"] == report.threshold else " ")
+              for e in report.estimates)]
 
 
 def _short(e: dict[str, Any]) -> str:
@@ -37,22 +72,21 @@ def held_line(e: dict[str, Any]) -> str | None:
             "labels can vouch for)")
 
 
-def evaluation_lines(report: Evaluation, name: str) -> list[str]:
-    """The evaluation as lines of text: table, suggestion, naive line, scope, machine rater."""
+def evaluation_lines(report: Evaluation, name: str, width: int | None = None) -> list[str]:
+    """The evaluation as lines of text: table, suggestion, naive line, scope, machine rater;
+    for a terminal of ``width`` columns, a table that fits it (None: in a pipe, in full)."""
     a = report.audit
     conf = f"{report.confidence:.0%}"
     held = f"; {a['held']:,} held" if a.get("held") else ""
     out = [f"{name} · quality from {a.get('sample', 'the audit slice')}: "
            f"{labelled_text(a, held)}; {conf} intervals",
            f"score: {report.model['score']}; decision threshold {report.threshold:g}", ""]
-    head = f"{'precision':<24}{'recall':<24}{'F1':<24}{'predicted':>12}"
-    out.append(f"{'threshold':>10}  {head}")
-    for e in report.estimates:
-        out.append(_row(e, "*" if e["threshold"] == report.threshold else " "))
+    out += _table(report, width)
     first = report.at_threshold
+    narrow = width is not None and width < WIDE
     out.append(f"  * decision threshold. Intervals: {first['precision']['method']} for "
                f"precision, recall and F1 (linearised variance, with an allowance for strata "
-               f"that show no error); predicted matches "
+               f"that show no error){NARROW_NOTE if narrow else ''}; predicted matches "
                f"{among_pairs(first['n_pairs'], a.get('strata', []))}.")
     bound = held_line(first)
     if bound:

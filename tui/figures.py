@@ -64,6 +64,29 @@ def interval(value: float | None, low: float | None, high: float | None,
     return f"{value:.{digits}f} [{low:.{digits}f}, {high:.{digits}f}]"
 
 
+def short_number(x: float) -> str:
+    """0.88 as .88 and 1.00 as 1 (inside an interval, where the leading zero and the trailing
+    zeros only take room: 80 columns must hold every column)."""
+    text = f"{x:.2f}"
+    return "1" if text == "1.00" else text.removeprefix("0")
+
+
+def _bound(x: float, up: bool) -> str:
+    """An interval's end at two decimals, rounded outwards: a low of 0.995 shown as 1 would
+    claim a certainty the labels do not give (the 1e-9 keeps float noise from moving it)."""
+    hundredths = math.ceil(x * 100 - 1e-9) if up else math.floor(x * 100 + 1e-9)
+    return short_number(hundredths / 100)
+
+
+def narrow_estimate(d: Mapping[str, Any]) -> str:
+    """An ``Interval`` as a dict in the fewest cells: ``0.92 [.88–.95]`` for 80 columns."""
+    if d.get("value") is None:
+        return DASH
+    if d.get("low") is None or d.get("high") is None:
+        return f"{d['value']:.2f}"
+    return f"{d['value']:.2f} [{_bound(d['low'], False)}–{_bound(d['high'], True)}]"
+
+
 def estimate(d: Mapping[str, Any], digits: int = 3) -> str:
     """An ``Interval`` as a dict (value, low, high)."""
     return interval(d.get("value"), d.get("low"), d.get("high"), digits)

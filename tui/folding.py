@@ -87,8 +87,14 @@ def fold(text: str, width: int) -> str:
     return "\n".join(out)
 
 
+def width() -> int | None:
+    """The columns ``echo`` folds to, or None when standard output is not a terminal."""
+    return max(40, shutil.get_terminal_size().columns) if sys.stdout.isatty() else None
+
+
 def echo(text: str) -> None:
     """Print ``text``, folded to the terminal's width when standard output is one."""
-    if sys.stdout.isatty():
-        text = fold(text, max(40, shutil.get_terminal_size().columns))
+    columns = width()
+    if columns is not None:
+        text = fold(text, columns)
     print(text)

@@ -6,7 +6,6 @@ decision threshold's mark joins the threshold, rather than a column being cut.
 
 from __future__ import annotations
 
-import math
 from typing import Any
 
 from rich.text import Text
@@ -17,7 +16,7 @@ from docket.core.results import Evaluation
 
 from ..diff import PLAIN, Palette
 from ..evaluation_text import blocking_reach, blocking_size
-from ..figures import among_pairs, bounds, many
+from ..figures import among_pairs, bounds, estimate, many, narrow_estimate, short_number
 
 NARROW_BELOW = 110  # screen widths below this get the narrow threshold table
 WIDE_LABELS = ("", "threshold", "precision [95 % CI]", "recall [95 % CI]", "F1 [95 % CI]",
@@ -51,36 +50,15 @@ def fill_threshold_table(table: DataTable, report: Evaluation, palette: Palette,
                           key=str(e["threshold"]))
 
 
-def _short(x: float) -> str:
-    """0.88 as .88 and 1.00 as 1 (inside an interval, where the leading zero and the trailing
-    zeros only take room: 80 columns must hold every column)."""
-    text = f"{x:.2f}"
-    return "1" if text == "1.00" else text.removeprefix("0")
-
-
-def _bound(x: float, up: bool) -> str:
-    """An interval's end at two decimals, rounded outwards: a low of 0.995 shown as 1 would
-    claim a certainty the labels do not give (the 1e-9 keeps float noise from moving it)."""
-    hundredths = math.ceil(x * 100 - 1e-9) if up else math.floor(x * 100 + 1e-9)
-    return _short(hundredths / 100)
-
-
 def interval(d: dict[str, Any], narrow: bool = False) -> Text:
     """``0.923 [0.880, 0.951]``, or at narrow widths ``0.92 [.88–.95]``."""
-    if d.get("value") is None:
-        return Text("—")
-    digits = 2 if narrow else 3
-    if d.get("low") is None:
-        return Text(f"{d['value']:.{digits}f}")
-    if narrow:
-        return Text(f"{d['value']:.2f} [{_bound(d['low'], False)}–{_bound(d['high'], True)}]")
-    return Text(f"{d['value']:.3f} [{d['low']:.3f}, {d['high']:.3f}]")
+    return Text(narrow_estimate(d) if narrow else estimate(d))
 
 
 def _point(d: dict[str, Any], digits: int = 3) -> str:
     if d.get("value") is None:
         return "—"
-    return f"{d['value']:.{digits}f}" if digits == 3 else _short(d["value"])
+    return f"{d['value']:.{digits}f}" if digits == 3 else short_number(d["value"])
 
 
 def notes_text(report: Evaluation, palette: Palette = PLAIN) -> Text:
