@@ -16,6 +16,7 @@ import pandas as pd
 
 from ..errors import DocketError
 from ..matching.decision_rule import predicted
+from ..records.formula_guard import FORMULA_START, GUARD
 from ..storage import store
 from ..storage.file_health import holds_database, no_room, output_cut_short, special_file
 from ..storage.project_file import ProjectFile
@@ -50,19 +51,17 @@ def scores_frame(project: ProjectFile) -> pd.DataFrame:
     return frame
 
 
-FORMULA_START = ("=", "+", "-", "@", "\t", "\r")  # what a spreadsheet may take for a formula
-GUARD = "'"  # the usual guard: a leading apostrophe makes a spreadsheet show the cell as text
-
-
 def guarded(frame: pd.DataFrame) -> pd.DataFrame:
     """Text cells that a spreadsheet would run as a formula, prefixed with an apostrophe.
 
     Only text columns: numbers (a negative weight) are not formulas. Common practice for CSV
-    injection (OWASP, "CSV Injection"): prefix cells beginning with = + - @ tab or CR.
+    injection (OWASP, "CSV Injection"): prefix cells beginning with = + - @ tab or CR. Text
+    is pandas' string dtype as well as object: pandas 3 reads SQL text as strings, and the
+    scores export's ids went out unguarded ('=SUM(A1)', '@anna').
     """
     out = frame.copy()
     for col in out.columns:
-        if out[col].dtype == object:
+        if out[col].dtype == object or isinstance(out[col].dtype, pd.StringDtype):
             out[col] = out[col].map(lambda v: GUARD + v if isinstance(v, str)
                                     and v.startswith(FORMULA_START) else v)
     return out

@@ -9,6 +9,7 @@ import numpy as np
 import pandas as pd
 
 from ..errors import DocketError
+from ..records.formula_guard import GUARD, unguarded
 from ..records.id_hints import form_hint
 from ..records.sources import read_frame, row_named
 from ..records.text_tables import plain_names
@@ -85,6 +86,9 @@ def read_predictions(project: ProjectFile, path: str | Path) -> tuple[pd.Series,
             row = row_named(path, int(np.flatnonzero(ids.isna().to_numpy())[0]))
             raise DocketError(f"{path}: {row} has no {side}_id")
         known = project.record_ids(side)
+        if ids.astype(str).str.startswith(GUARD).any():  # the scores export, as CSV
+            ids = frame[f"{side}_id"] = pd.Series(unguarded(ids, known), index=frame.index,
+                                                  dtype=object)
         unknown = sorted(set(ids) - known)
         if unknown:
             raise DocketError(f"{path}: {many(len(unknown), side + ' id')} "

@@ -22,6 +22,7 @@ from pathlib import Path
 import pandas as pd
 
 from ..errors import DocketError
+from ..records.formula_guard import GUARD, unguarded
 from ..records.id_hints import form_hint
 from ..records.sources import read_frame, row_named, row_word
 from ..records.text_tables import bom_encoding, plain_names
@@ -65,6 +66,15 @@ def _check_ids_agree(project: ProjectFile, path: Path, frame: pd.DataFrame,
                               f"{pair[1]}, but the row names {a} and {b}; give the pair ids "
                               "of this project (docket next or the scores export), or leave the "
                               "pair_id column out; nothing was written")
+
+
+def _unguard_ids(project: ProjectFile, frame: pd.DataFrame) -> None:
+    """Ids as a CSV export guarded them ("'@anna" for '@anna') read as the records' ids: the
+    gold or scores export given back as a label file was refused as naming no pair."""
+    for side in ("left", "right"):
+        col = f"{side}_id"
+        if col in frame.columns and frame[col].astype(str).str.startswith(GUARD).any():
+            frame[col] = unguarded(frame[col], project.record_ids(side))
 
 
 class _Twice(Exception):
@@ -113,6 +123,7 @@ def read_rows(project: ProjectFile, path: Path, reviewer: str | None = None) -> 
     if not len(frame):
         raise DocketError(f"{path}: a header and no rows; give one decision per row")
     check_filled(path, frame)
+    _unguard_ids(project, frame)
     if "pair_id" in cols:
         ids = pd.to_numeric(frame["pair_id"], errors="coerce")
         bad_rows = [i for i in range(len(ids))
