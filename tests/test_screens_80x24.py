@@ -7,6 +7,7 @@ from __future__ import annotations
 
 from textual.containers import VerticalScroll
 
+from docket.tui.screens.help import key_rows
 from docket.tui.widgets import KeyBar
 from tests.fixtures_review import pilot_test, screen_text
 from tests.screens_support import press, settle
@@ -57,12 +58,33 @@ async def test_key_bar_keeps_declared_order_when_keys_are_remapped(review_sample
         await settle(pilot)
         bar = bar_text(app)
         assert bar.startswith("m match n non-match k hold"), bar
-        for shown in ("c others", "x columns", "? help", "q quit"):
+        for shown in ("c others", "x columns", "? more", "q quit"):
             assert shown in bar
         assert len(bar) <= SMALL[0]
         await press(pilot, "left_square_bracket")  # nothing decided yet: stays in the queue
         await press(pilot, "m", "left_square_bracket")
         assert "esc queue" in bar_text(app)  # the way back appears where it can be seen
+
+
+@pilot_test
+async def test_key_bar_says_when_keys_are_left_out_and_help_lists_them(review_sample,
+                                                                      review_app):
+    # at 80 columns '[ ] history' and 'w full values' had no room, and the bar read '? help'
+    # as if it showed every key
+    app = review_app(review_sample)
+    async with app.run_test(size=SMALL) as pilot:
+        await settle(pilot)
+        bar = bar_text(app)
+        assert bar.startswith("s match d non-match h hold") and bar.endswith("? more q quit")
+        assert "[ ] history" not in bar and "w full values" not in bar and len(bar) <= 80
+        listed = {r.description for r in key_rows(app.screen, app.get_key_display, {})}
+        assert {"back", "fwd", "full values"} <= listed  # help lists what the bar left out
+    app = review_app(review_sample)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        bar = bar_text(app)
+        for shown in ("w full values", "[ ] history", "/ find", "? help", "q quit"):
+            assert shown in bar, bar  # room for every key: help is help again
 
 
 @pilot_test

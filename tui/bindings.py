@@ -25,7 +25,7 @@ HELP = Binding("question_mark", "help", "help", key_display="?", id="help", tool
 QUIT = Binding("q", "quit", "quit", id="quit", tooltip="quit (everything is already saved)")
 EXTRA_COLUMNS = Binding("x", "extra", "columns", id="extra-columns",
                         tooltip="show or hide the columns that are not compared")
-FULL_VALUES = Binding("w", "full_values", "full values", show=False, id="full-values",
+FULL_VALUES = Binding("w", "full_values", "full values", id="full-values",
                       tooltip="show in full the values shortened with … to fit the screen "
                               "(the card may then scroll), or shorten them again")
 REDRAW = Binding("ctrl+l", "redraw", "redraw", show=False, id="redraw",

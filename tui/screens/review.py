@@ -54,10 +54,11 @@ class ReviewScreen(ReviewNotes, ReviewMoves, ReviewBackground, Screen[None]):
         Binding("c", "candidates", "others", id="candidates",
                 tooltip="the other candidate pairs of these two records"),
         shared.EXTRA_COLUMNS,
-        shared.FULL_VALUES,
         *shared.history("decisions"),
         Binding("slash", "find", "find", key_display="/", id="find",
                 tooltip="find a pair by pair id, record id or text"),
+        # last: the card itself names w where a value is shortened
+        shared.FULL_VALUES,
         shared.HELP,
         shared.QUIT,
         shared.REDRAW,

@@ -4,12 +4,12 @@ Textual's footer lists bindings in the order of their keys, so a binding remappe
 keymap file moves to the end, and at 80 columns whatever is at the end is cut off. Here the
 order is the screen's ``BINDINGS`` (by binding id, so remapping never moves a key), help and
 quit are always shown, and when the line is too narrow the keys that do not fit are left out
-(``?`` lists them all) rather than cut in half.
+rather than cut in half, and help reads ``? more``: it lists them all.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import ClassVar
 
 from rich.style import Style
@@ -70,13 +70,25 @@ def items_of(screen: object, key_display: object) -> list[Item]:
     return items
 
 
+MORE = "more"  # help's word when keys are left out: ? lists them
+
+
 def fit(items: list[Item], width: int) -> list[Item]:
-    """The items that fit in ``width`` cells: help and quit always, then others in order."""
+    """The items that fit in ``width`` cells: help and quit always, then others in order.
+
+    When some are left out, help reads "? more" (as wide as "? help"), so the bar says that
+    it does not show every key and where the rest are.
+    """
     def base(action: str) -> str:
         return action.split("(", 1)[0]
 
+    def total(chosen: list[Item]) -> int:
+        return sum(i.width for i in chosen) + max(0, len(chosen) - 1)
+
+    if total(items) <= width:
+        return items
     kept = [i for i in items if base(i.action) in ALWAYS]
-    used = sum(i.width for i in kept) + max(0, len(kept) - 1)
+    used = total(kept)
     chosen = set(map(id, kept))
     for item in items:
         if id(item) in chosen:
@@ -84,7 +96,8 @@ def fit(items: list[Item], width: int) -> list[Item]:
         if used + 1 + item.width <= width:
             chosen.add(id(item))
             used += 1 + item.width
-    return [i for i in items if id(i) in chosen]
+    return [replace(i, description=MORE) if base(i.action) == "help" else i
+            for i in items if id(i) in chosen]
 
 
 class KeyBar(Widget):
