@@ -11,7 +11,6 @@ label is as it was; the log keeps both, as it keeps every undo.
 from __future__ import annotations
 
 import contextlib
-import json
 import sqlite3
 import time
 import warnings
@@ -25,13 +24,13 @@ from ..errors import DocketError
 from ..records.formula_guard import GUARD, unguarded
 from ..records.id_hints import form_hint
 from ..records.sources import read_frame, row_named, row_word
-from ..records.text_tables import bom_encoding, plain_names
+from ..records.text_tables import plain_names
 from ..storage import claims, file_health, roles
 from ..storage import decisions as log
 from ..storage.project_file import ProjectFile
 from ..types import LABELS
 from ..wording import many
-from .label_columns import check_columns, check_filled
+from .label_columns import check_columns, check_filled, check_json_keys
 
 BATCH_ROWS = 500  # at most, per transaction
 BATCH_S = 0.02  # and a batch ends once it has written for this long
@@ -77,43 +76,11 @@ def _unguard_ids(project: ProjectFile, frame: pd.DataFrame) -> None:
             frame[col] = unguarded(frame[col], project.record_ids(side))
 
 
-class _Twice(Exception):
-    pass
-
-
-def _no_key_twice(pairs: list[tuple[str, object]]) -> dict[str, object]:
-    seen: dict[str, object] = {}
-    for key, value in pairs:
-        if key in seen:
-            raise _Twice(key)
-        seen[key] = value
-    return seen
-
-
-def _check_json_keys(path: Path) -> None:
-    """A JSON object that gives a key twice ({"label": "match", "label": "non-match"}): the
-    reader kept the last silently, where a CSV header with a column twice is refused."""
-    if path.suffix.lower() not in (".jsonl", ".ndjson", ".json"):
-        return
-    encoding = bom_encoding(path.read_bytes()[:4]) or "utf-8"
-    text = path.read_text(encoding=encoding, errors="replace").lstrip("\ufeff")
-    chunks = [text] if text.lstrip()[:1] == "[" else text.splitlines()
-    for n, chunk in enumerate(chunks, start=1):
-        try:
-            json.loads(chunk, object_pairs_hook=_no_key_twice)
-        except _Twice as twice:
-            where = "an object" if len(chunks) == 1 and chunk is text else f"line {n}"
-            raise DocketError(f"{path}: {where} gives the key '{twice}' twice, and which one "
-                              "is meant cannot be told; give each key once") from None
-        except ValueError:
-            continue  # (blank lines; anything else the reader has already refused)
-
-
 def read_rows(project: ProjectFile, path: Path, reviewer: str | None = None) -> list[BulkRow]:
     """The rows of a label file, every one checked; ``reviewer`` (whom they are for) is
     checked against a column naming reviewers."""
     frame = read_frame(path)
-    _check_json_keys(path)
+    check_json_keys(path)
     frame.columns = plain_names(list(frame.columns),
                                 ("pair_id", "label", "note", "left_id", "right_id"))
     cols = set(frame.columns)
@@ -214,31 +181,40 @@ def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: s
                progress: Callable[[int], None] | None = None) -> int:
     """Record ``rows`` for ``reviewer`` in batches of at most ``batch`` rows and about
     ``seconds`` of writing each, ``pause`` apart; on any failure, none of them stands.
-    ``progress`` hears the rows written after each batch."""
+    ``progress`` hears the rows gone through after each batch. Returns the decisions
+    recorded: a row whose label and note stand already for the reviewer is passed over in
+    the transaction itself, so that one file run twice at once is logged once."""
     reviewer = roles.plain_name(reviewer)
     with project.reading():
         reviewer = roles.as_kept(project.connection, reviewer)
     _check_room(project, rows)
     written: list[tuple[int, str]] = []
+    at = 0  # rows gone through, written or standing already
     try:
-        while len(written) < len(rows):
-            if written and pause:
+        while at < len(rows):
+            if at and pause:
                 time.sleep(pause)
             done: list[tuple[int, str]] = []
             with project.transaction() as conn:
                 roles.register(conn, reviewer)
                 began = time.monotonic()
-                for r in rows[len(written):len(written) + max(1, batch)]:
-                    if done and time.monotonic() - began > seconds:
+                through = at
+                for r in rows[at:at + max(1, batch)]:
+                    if through > at and time.monotonic() - began > seconds:
                         break
+                    through += 1
+                    claims.release(conn, reviewer, r.pair_id)
                     prior = log.current_of(conn, r.pair_id, reviewer, role)
+                    if prior is not None and (prior.label, prior.note or "") == (r.label,
+                                                                                 r.note):
+                        continue  # another process wrote it meanwhile
                     d = log.append(conn, r.pair_id, reviewer, r.label, r.note, 0.0,
                                    None if prior is None else prior.decision_id, role)
-                    claims.release(conn, reviewer, r.pair_id)
                     done.append((d.pair_id, d.decision_id))
             written += done  # committed: a failed batch was rolled back whole
+            at = through
             if progress:
-                progress(len(written))
+                progress(at)
     except BaseException as exc:
         try:
             _retract(project, reviewer, role, written)
@@ -247,7 +223,7 @@ def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: s
             raise DocketError(_left_standing(project, reviewer, len(written), len(rows), again)
                               ) from exc
         raise
-    return len(rows)
+    return len(written)
 
 
 def _check_room(project: ProjectFile, rows: list[BulkRow]) -> None:
