@@ -64,3 +64,20 @@ def test_a_two_digit_year_keeps_the_day_first_and_lies_in_the_past() -> None:
     short = pd.Series([f"{d:02d}/{m:02d}/{y:02d}" for d, m, y in
                        zip(range(1, 29), [1, 5, 9, 12] * 7, range(40, 96, 2), strict=True)] * 4)
     assert detect_kind("dob", short) == "date"
+
+
+def test_whole_numbers_that_identify_are_codes() -> None:
+    # common practice: an identifier's digits are compared as a code (a typo is one edit), not
+    # as a quantity where two ids within 1 % are 'near'
+    ids = pd.Series([str(1_000_000 + i * 7919) for i in range(200)])
+    assert detect_kind("soc_sec_id", pd.Series(["1234567", "2345678"] * 50)) == "code"
+    assert detect_kind("member_no", pd.Series(["1", "2", "3"] * 50)) == "code"
+    assert detect_kind("patientId", pd.Series(["12", "2", "3"] * 50)) == "code"
+    assert detect_kind("c4", ids) == "code"  # by shape: seven digits, every one different
+    # quantities and counts stay numbers, whatever their size
+    assert detect_kind("amount", ids) == "number"
+    assert detect_kind("no_of_pets", pd.Series(["1", "2", "3"] * 50)) == "number"
+    assert detect_kind("number of children", pd.Series(["1", "2", "3"] * 50)) == "number"
+    assert detect_kind("year", pd.Series(["1999", "2001"] * 50)) == "number"
+    assert detect_kind("paid", pd.Series(["12", "13", "140"] * 50)) == "number"
+    assert detect_kind("price", pd.Series(["12.50", "13.99"] * 50)) == "number"
