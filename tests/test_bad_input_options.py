@@ -6,6 +6,8 @@ from pathlib import Path
 
 import pytest
 
+from docket.tui.cli import main
+
 from .test_bad_input import assert_one_line_error, run
 
 
@@ -36,3 +38,30 @@ def test_an_id_column_not_found_names_the_option_and_the_nearest_column(
                     str(sample / "practice_north.csv"), "--right",
                     str(sample / "practice_south.csv"), *options)
     assert_one_line_error(code, err, *needles)
+
+
+@pytest.mark.parametrize("words, order", [
+    # "invalid choice: 'vets.docket' (choose from 'add', 'list')", said to one who gave list
+    (["reviewers", "list", "P"], "docket reviewers P list"),
+    (["reviewers", "add", "lee", "P", "--role", "adjudicator"],
+     "docket reviewers P add lee --role adjudicator"),
+    (["missed", "add", "N-00001", "S-10001", "P"], "docket missed P add N-00001 S-10001"),
+    # a file to import is not taken for the project
+    (["matchers", "import", "M", "P", "--group", "g"], "docket matchers P import M --group g"),
+    (["reviewers", "list"], "docket reviewers PROJECT list ..."),
+])
+def test_an_action_given_before_the_project_is_said_to_go_after_it(
+        words: list[str], order: str, sample_project: Path, tmp_path: Path, capsys) -> None:
+    matcher = tmp_path / "m.csv"
+    matcher.write_text("left_id,right_id,score\nN-00001,S-10001,0.5\n", encoding="utf-8")
+    given = {"P": str(sample_project), "M": str(matcher)}
+    before = sample_project.read_bytes()
+    with pytest.raises(SystemExit) as stop:
+        main([given.get(w, w) for w in words])
+    err = capsys.readouterr().err
+    assert stop.value.code == 2 and len(err.splitlines()) == 1, err
+    said = " ".join(given.get(w, w) for w in order.split())
+    assert f"the project comes first, then what to do with it: {said} " in err, err
+    assert sample_project.read_bytes() == before
+    # in the order it takes the command runs, and a project named like an action still opens
+    assert main(["reviewers", str(sample_project), "list"]) == 0

@@ -10,7 +10,10 @@ import argparse
 import difflib
 import math
 import re
+import shlex
+import sys
 from collections.abc import Callable, Sequence
+from pathlib import Path
 from typing import NoReturn
 
 _CHOICE = re.compile(r"invalid choice: '([^']*)' \(choose from (.*)\)")
@@ -155,8 +158,55 @@ def _no_empty_path(parser: argparse.ArgumentParser, args: argparse.Namespace) ->
                     "give one, or leave the option out"))
 
 
+def _subcommands(parser: argparse.ArgumentParser) -> dict[str, argparse.ArgumentParser]:
+    sub = next((a for a in parser._actions if isinstance(a, argparse._SubParsersAction)), None)
+    return {} if sub is None else dict(sub.choices)
+
+
+def _actions(command: argparse.ArgumentParser) -> list[str]:
+    """What a command taking 'PROJECT ACTION' does: its sub-commands, or the choices of the
+    positional after the project (matchers)."""
+    places = [a for a in command._actions if not a.option_strings]
+    if len(places) < 2 or places[0].dest != "project":
+        return []
+    if isinstance(places[1], argparse._SubParsersAction):
+        return list(places[1].choices)
+    return [str(c) for c in places[1].choices or ()]
+
+
+def _sqlite(path: Path) -> bool:
+    try:
+        with path.open("rb") as f:
+            return f.read(16) == b"SQLite format 3\x00"
+    except OSError:
+        return False
+
+
+def _project_first(parser: argparse.ArgumentParser, argv: list[str]) -> None:
+    """A command of actions given its action before the project ('docket reviewers list
+    vets.docket', as other tools order it) is refused with the order it takes: it was
+    "invalid choice: 'vets.docket' (choose from 'add', 'list')", of a command given 'list'."""
+    if len(argv) < 2 or "-h" in argv or "--help" in argv:
+        return
+    command = _subcommands(parser).get(argv[0])
+    if command is None or argv[1] not in _actions(command) or Path(argv[1]).exists():
+        return
+    rest = argv[2:]
+    words = [w for w in rest if not w.startswith("-")]
+    project = next((w for w in words if w.endswith(".docket")),  # a file to import is no project
+                   next((w for w in words if _sqlite(Path(w))), None))
+    if project is None:
+        order = f"{command.prog} PROJECT {argv[1]} ..."
+    else:
+        rest.remove(project)
+        order = " ".join(shlex.quote(w) for w in [*command.prog.split(), project, argv[1],
+                                                   *rest])
+    command.error(f"the project comes first, then what to do with it: {order}")
+
+
 def parse(parser: argparse.ArgumentParser, argv: list[str] | None) -> argparse.Namespace:
     """Parse ``argv``; an unknown option is refused with the nearest option of its command."""
+    _project_first(parser, sys.argv[1:] if argv is None else argv)
     args, extra = parser.parse_known_args(argv)
     _no_empty_path(parser, args)
     if extra:
