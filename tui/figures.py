@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Mapping
+from dataclasses import dataclass
 from typing import Any
 
 # counts are worded in the core, so its messages and the screens agree
@@ -161,3 +162,32 @@ def _next_step(step: int) -> int:
     digits = str(step)
     lead, zeros = int(digits[0]), len(digits) - 1
     return (2 if lead == 1 else 5 if lead == 2 else 10) * 10 ** zeros
+
+
+@dataclass(frozen=True)
+class ShareAxis:
+    """An axis of shares (precision, recall) from ``low`` to 1, with its ticks."""
+
+    low: float
+    ticks: list[float]
+
+    @property
+    def zoomed(self) -> bool:
+        return self.low > 0
+
+    def labels(self) -> list[str]:
+        return [f"{t:.2f}" for t in self.ticks]
+
+
+def share_axis(values: list[float]) -> ShareAxis:
+    """From 0 to 1, or, when every value lies in the top half, from a round value below the
+    least of them: the demo's curve sat in the top-right eighth of a 0-to-1 plot, two dozen
+    points in a few cells. The axis spans at least 0.2, so that a few hundredths do not fill
+    it; ticks at a step of 0.05 (a span up to 0.25) or 0.1, the start among them."""
+    least = min(values, default=0.0) - 0.01  # a margin: no point on the axis line itself
+    if least < 0.5:
+        return ShareAxis(0.0, [0.0, 0.25, 0.5, 0.75, 1.0])
+    step = 0.05 if least >= 0.75 else 0.1
+    low = min(0.8, math.floor(round(least / step, 9)) * step)
+    count = round((1 - low) / step)
+    return ShareAxis(round(low, 2), [round(low + i * step, 2) for i in range(count + 1)])

@@ -26,6 +26,7 @@ from ..figures import count_ticks, labelled_text, many, tallest_bin
 from ..widgets.key_bar import KeyBar
 from ..widgets.plot_legend import PlotLegend, Series
 from .conflict import ConflictScreen
+from .pr_plot import PR_TITLE, draw_pr
 from .quality_data import QualityData, load_quality
 from .quality_table import NARROW_BELOW, fill_threshold_table, notes_text
 from .team_base import TeamScreen
@@ -35,15 +36,10 @@ BINS = 20
 # each series: its colour, the plot's marker for it, and that marker as the legend shows it;
 # the marks differ as well as the colours, so that the legend reads without colour
 HISTOGRAMS = {"non-match": ((0, 130, 200), "sd", "██"), "match": ((230, 25, 75), "▒", "▒▒")}
-CURVES = {"design-based": ((0, 130, 200), "braille", "⠒⠒"),
-          "naive (biased)": ((245, 130, 48), "dot", "••"),
-          "threshold": ((230, 25, 75), "x", "x")}
 # Each plot's title is a line of the screen above the plot: the plotting library leaves out a
 # title that does not fit beside the canvas's centre (about 37 cells of a 40-cell plot), so at
 # 80 columns neither plot said what it showed. These fit the 38 cells a plot's line has there.
 SCORE_TITLE = "gold-labelled pairs at each score"
-PR_TITLE = "precision against recall"
-PR_NONE = "precision against recall (none yet)"
 
 
 class QualityScreen(TeamScreen):
@@ -178,34 +174,9 @@ class QualityScreen(TeamScreen):
         scores.refresh()
         self.query_one("#score-legend", PlotLegend).show(shown)
         pr = self.query_one("#pr-plot", PlotextPlot)
-        plt = pr.plt
-        plt.clear_figure()
-        plt.xlabel("recall (within the candidate pairs)")  # and the title names the y axis
-        ticks = [0.0, 0.25, 0.5, 0.75, 1.0]
-        plt.xlim(0, 1)
-        plt.ylim(0, 1)
-        plt.xticks(ticks)
-        plt.yticks(ticks)
-        shown = []
-        self.query_one("#pr-title", Static).update(Text(PR_NONE if data.curve is None
-                                                         else PR_TITLE))
-        if data.curve is not None:
-            for rows, name in ((data.curve.estimates, "design-based"),
-                               (data.curve.naive, "naive (biased)")):
-                points = [(r["recall"]["value"], r["precision"]["value"]) for r in rows
-                          if r["recall"]["value"] is not None and
-                          r["precision"]["value"] is not None]
-                if points:
-                    color, marker, mark = CURVES[name]
-                    plt.plot([x for x, _ in points], [y for _, y in points], marker=marker,
-                             color=color)
-                    shown.append(Series(name, color, mark))
-            at = data.report.at_threshold if data.report else None
-            if at and at["recall"]["value"] is not None and at["precision"]["value"] is not None:
-                color, marker, mark = CURVES["threshold"]
-                plt.scatter([at["recall"]["value"]], [at["precision"]["value"]], marker=marker,
-                            color=color)
-                shown.append(Series(f"threshold {at['threshold']:g}", color, mark))
+        pr.plt.clear_figure()
+        title, shown = draw_pr(pr.plt, data.curve, data.report)
+        self.query_one("#pr-title", Static).update(Text(title))
         pr.refresh()
         self.query_one("#pr-legend", PlotLegend).show(shown)
 
