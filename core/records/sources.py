@@ -19,8 +19,10 @@ from .json_tables import read_json
 from .text_tables import EncodingWarning_ as EncodingWarning_
 from .text_tables import check_names, read_delimited
 
-FORMATS = {".csv": "csv", ".tsv": "tsv", ".tab": "tsv", ".parquet": "parquet", ".pq": "parquet",
-           ".jsonl": "jsonl", ".ndjson": "jsonl", ".json": "jsonl"}
+# .txt: what a spreadsheet saves as "Text (Tab delimited)" or "Unicode Text" (UTF-16, tabs);
+# its separator is read from its header
+FORMATS = {".csv": "csv", ".tsv": "tsv", ".tab": "tsv", ".txt": "text", ".parquet": "parquet",
+           ".pq": "parquet", ".jsonl": "jsonl", ".ndjson": "jsonl", ".json": "jsonl"}
 MAX_COLUMNS = 999  # sqlite-utils writes a record as one statement of at most 999 values
 NULLABLE_INTEGERS = {pa.int8(): pd.Int8Dtype(), pa.int16(): pd.Int16Dtype(),
                      pa.int32(): pd.Int32Dtype(), pa.int64(): pd.Int64Dtype(),
@@ -60,7 +62,7 @@ def detect_format(path: Path) -> str:
     if fmt is None:
         raise DocketError(
             f"{path}: unknown file type '{path.suffix or '(none)'}'; "
-            "use .csv, .tsv, .parquet or .jsonl"
+            "use .csv, .tsv, .txt, .parquet or .jsonl"
         )
     return fmt
 
@@ -282,7 +284,7 @@ def row_word(path: Path) -> tuple[str, int]:
     header as row 1 (the row an editor or spreadsheet shows), a Parquet or JSON file's
     "record" from 1, since it has no header (its second line was named "row 3"). The word and
     what to add to a position from 0."""
-    return ("row", 2) if detect_format(path) in ("csv", "tsv") else ("record", 1)
+    return ("row", 2) if detect_format(path) in ("csv", "tsv", "text") else ("record", 1)
 
 
 def row_named(path: Path, position: int) -> str:

@@ -98,6 +98,12 @@ def choose_separator(path: Path, head_text: str, expected: str) -> str:
     return best
 
 
+def header_separator(head_text: str) -> str:
+    """The separator that splits the header most (tab first on a tie): a .txt file says
+    nothing of its separator, so none is expected and none is warned of."""
+    return max(("\t", ",", ";", "|"), key=lambda sep: len(_header(head_text, sep)))
+
+
 def _ascii_lower(name: str) -> str:
     # SQLite, which keeps the records, tells column names apart ignoring ASCII letter case only
     return "".join(ch.lower() if ch.isascii() else ch for ch in name)
@@ -229,14 +235,15 @@ def holds_nul(path: Path, encoding: str) -> bool:
 
 
 def read_delimited(path: Path, fmt: str) -> pd.DataFrame:
-    """A CSV or TSV file as a frame of strings ("" where a field is empty)."""
+    """A CSV, TSV or .txt file as a frame of strings ("" where a field is empty)."""
     with path.open("rb") as f:
         head = f.read(HEAD_BYTES)
     for encoding in _encodings(path, head):
         try:
             head_text = head.decode(encoding, errors="ignore" if len(head) == HEAD_BYTES
                                     else "strict")
-            sep = choose_separator(path, head_text, "\t" if fmt == "tsv" else ",")
+            sep = (header_separator(head_text) if fmt == "text" else
+                   choose_separator(path, head_text, "\t" if fmt == "tsv" else ","))
             header = _header(head_text, sep)
             check_names(path, header)
             if encoding == "cp1252" and (mixed := mixed_line(path, sep, header)):
