@@ -44,6 +44,11 @@ CASES = {
                        ["rep.csv", "columns 2 and 3"]),
     "ids differ in spaces only": (lambda d: write(d / "sp.csv", "id,name\n1,a\n 1,b\n1 ,c\n"),
                                   ["sp.csv", "'1', ' 1', '1 '", "rows 2, 3, 4", "trim"]),
+    # two records whose ids look alike on every screen: 'José' typed on two systems
+    "ids differ in accent encoding only": (
+        lambda d: write(d / "nfd.csv", "id,name\nJos\u00e9,a\nAnna,b\nJose\u0301,c\n"),
+        ["nfd.csv: column 'id' holds ids that differ only in how their accents are encoded",
+         "('Jos\\xe9', 'Jose\\u0301' on rows 2, 4", "composed (NFC)"]),
     "short row": (lambda d: write(d / "short.csv", "id,a,b,c,d,e,f,g\n1,2,3,4,5,6,7,8\n2,x,y\n"),
                   ["short.csv", "line 3", "3 of the header's 8"]),
     "long row": (lambda d: write(d / "long.csv", "id,a\n1,2\n2,3,4,5\n"),

@@ -15,6 +15,7 @@ import pyarrow.compute as pc
 
 from ..errors import DocketError
 from ..wording import noun
+from .id_forms import check_written_alike
 from .json_tables import read_json
 from .text_tables import EncodingWarning_ as EncodingWarning_
 from .text_tables import check_names, read_delimited
@@ -255,28 +256,11 @@ def load_table(path: str | Path, id_column: str | None,
         raise DocketError(f"{path}: column '{id_column}' has duplicate ids "
                           f"({', '.join(map(str, first))}{'…' if dup.nunique() > 5 else ''}; "
                           f"'{first[0]}' on {rows}); ids must be unique")
-    _check_edge_spaces(path, id_column, ids)
+    check_written_alike(path, id_column, ids, lambda at: rows_named(path, at))
     frame = frame.set_index(id_column, drop=True)
     frame.index = frame.index.astype(str)
     frame.index.name = id_column
     return Table(path=path, id_column=id_column, frame=frame)
-
-
-def _check_edge_spaces(path: Path, id_column: str, ids: pd.Series) -> None:
-    """Refuse ids that are one id once the spaces at their ends are trimmed ('1', ' 1', '1 ').
-
-    Kept apart they would be different records that a pairs or label file, typed by hand,
-    cannot tell apart; trimmed silently, an id would no longer be the one in the file.
-    """
-    trimmed = ids.str.strip()
-    clash = trimmed.duplicated(keep=False).to_numpy()
-    if clash.any():
-        first = trimmed[clash].iloc[0]
-        rows = rows_named(path, np.flatnonzero(clash & (trimmed == first).to_numpy())[:5])
-        shown = ", ".join(repr(v) for v in ids[clash & (trimmed == first).to_numpy()][:5])
-        raise DocketError(f"{path}: column '{id_column}' holds ids that differ only in spaces "
-                          f"at their ends ({shown} on {rows}); trim them so "
-                          "each record has one id")
 
 
 def row_word(path: Path) -> tuple[str, int]:
