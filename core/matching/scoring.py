@@ -23,7 +23,8 @@ def normalised(fields: list[FieldSpec], frame: pd.DataFrame, side: str) -> dict[
     out = {}
     for f in fields:
         column = f.left_column if side == "left" else f.right_column
-        out[f.name] = distinct.per_distinct(frame[column], normalise.NORMALISERS[f.kind])
+        values = frame[column]
+        out[f.name] = distinct.per_distinct(values, normalise.reader(f.kind, values.unique()))
     return out
 
 

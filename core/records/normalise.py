@@ -11,7 +11,7 @@ import datetime as dt
 import html
 import re
 import unicodedata
-from collections.abc import Callable
+from collections.abc import Callable, Iterable
 
 import numpy as np
 import pandas as pd
@@ -112,6 +112,33 @@ LONGEST_DATE = 64  # characters: 'Wednesday, 12 September 2024, 10:30:00 +01:00'
 def date(value: str) -> float | None:
     """Days since 1970-01-01. ISO first, then day/month/year (the usual order outside the US),
     read as month/day/year only where the middle number cannot be a month; None for words."""
+    return _date(value, month_first=False)
+
+
+def date_month_first(value: str) -> float | None:
+    """:func:`date` for a column written month/day/year: 03/04/1980 is 4 March."""
+    return _date(value, month_first=True)
+
+
+def date_reader(values: Iterable[object]) -> Callable[[str], float | None]:
+    """How a column's numeric dates are read, from the dates that can only be read one way.
+
+    A value such as 03/04/1980 reads either way; 25/03/1980 only day first, 03/25/1980 only
+    month first. Where a column holds the month-first kind (two or more) and hardly any of
+    the other (one in twenty), every ambiguous value of it is read month first too: a register
+    that writes US dates was read day first wherever the day was 12 or less, so its 4 March
+    met the other register's 1980-03-04 only as 'day/month swapped'."""
+    day_first = month_first = 0
+    for v in values:
+        m = _DMY.match(v.strip()) if isinstance(v, str) else None
+        if m:
+            a, b = int(m[1]), int(m[2])
+            day_first += a > 12 >= b
+            month_first += b > 12 >= a
+    return date_month_first if month_first >= 2 and 20 * day_first <= month_first else date
+
+
+def _date(value: str, month_first: bool) -> float | None:
     text = visible(value).strip()
     if len(text) > LONGEST_DATE:  # no date; the parser took 110 s over 2,000,000 digits
         return None
@@ -128,7 +155,10 @@ def date(value: str) -> float | None:
             year = int(m[3]) if len(m[3]) == 4 else _full_year(int(m[3]))
             # day/month/year unless the month cannot be one and the day can: then the US order
             # (12/31/1990), which is unambiguous there
-            parts = (year, day, month) if month > 12 >= day else (year, month, day)
+            if month_first:  # the column's order, unless this value can only be the other
+                parts = (year, day, month) if not day > 12 >= month else (year, month, day)
+            else:
+                parts = (year, day, month) if month > 12 >= day else (year, month, day)
     if parts is None:
         if not any(ch.isdigit() for ch in text):  # "now", "today": words are not dates
             return None
@@ -153,6 +183,11 @@ def _full_year(two_digits: int) -> int:
     now = dt.date.today().year
     year = two_digits + now // 100 * 100
     return year - 100 if year > now else year
+
+
+def reader(kind: str, values: Iterable[object]) -> Callable[[str], object]:
+    """The normaliser of a kind for one side's column (a date column's order is its own)."""
+    return date_reader(values) if kind == "date" else NORMALISERS[kind]
 
 
 NORMALISERS: dict[str, Callable[[str], object]] = {

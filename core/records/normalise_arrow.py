@@ -109,20 +109,25 @@ def iso_days(values: pa.Array) -> tuple[np.ndarray, np.ndarray]:
     return np.where(ok, days, np.nan), iso
 
 
-def date_many(values: pa.Array) -> np.ndarray:
+def date_many(values: pa.Array, read: Callable[[str], float | None] = normalise.date
+              ) -> np.ndarray:
     days, iso = iso_days(values)
     out = np.empty(len(days), dtype=object)
     out[:] = [None if np.isnan(v) else float(v) for v in days.tolist()]
     rest = np.flatnonzero(~iso)
     if len(rest):
         strings = values.take(pa.array(rest)).to_pylist()
-        out[rest] = [normalise.date(v) for v in strings]
+        out[rest] = [read(v) for v in strings]
     return out
+
+
+def date_many_month_first(values: pa.Array) -> np.ndarray:
+    return date_many(values, normalise.date_month_first)
 
 
 MANY: dict[Callable, Callable[[pa.Array], np.ndarray]] = {
     normalise.words: words_many, normalise.name: name_many, normalise.code: code_many,
-    normalise.date: date_many}
+    normalise.date: date_many, normalise.date_month_first: date_many_month_first}
 
 
 def apply(uniques: np.ndarray, func: Callable[[str], object]) -> list[object] | None:
