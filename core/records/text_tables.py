@@ -154,9 +154,13 @@ def check_widths(path: Path, encoding: str, sep: str) -> None:
         try:
             header = _header_key(next(rows, []))
             width = len(header)
+            # a row is the header again only if its first cell is, in any case: one cheap test
+            # per row first (keying every cell of every row took 18 s of 20 on 1,000,000 rows)
+            first = header[0].lower() if header else None
             start = rows.line_num + 1  # the line the next row begins on
             for row in rows:
-                if row and _header_key(row) == header:  # files joined end to end
+                if row and row[0].strip().lstrip("\ufeff").strip().lower() == first \
+                        and _header_key(row) == header:  # files joined end to end
                     raise DocketError(
                         f"{path}: line {rows.line_num} repeats the header (were two files "
                         "joined?); remove that line, or read the files one at a time")
