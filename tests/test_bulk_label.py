@@ -93,15 +93,15 @@ def test_a_batch_that_fails_takes_back_the_ones_before(sample_project: Path, mon
         p.decide(ids[1], "ana", "hold")  # ana's own earlier label comes back
         want = _standing(p)
         calls = {"n": 0}
-        real = bulk.claims.release
+        real = bulk.claims.release_many
 
-        def full_disk(conn: sqlite3.Connection, reviewer: str, pair_id: int) -> None:
+        def full_disk(conn: sqlite3.Connection, reviewer: str, pair_ids: list[int]) -> None:
             calls["n"] += 1
-            if calls["n"] == 5:  # in the third batch of two
+            if calls["n"] == 3:  # in the third batch of two
                 raise sqlite3.OperationalError("database or disk is full")
-            real(conn, reviewer, pair_id)
+            real(conn, reviewer, pair_ids)
 
-        monkeypatch.setattr(bulk.claims, "release", full_disk)
+        monkeypatch.setattr(bulk.claims, "release_many", full_disk)
         rows = [BulkRow(pid, "non-match", "bulk") for pid in ids]
         with pytest.raises(DocketError, match="disk full"):
             apply_rows(p, "ana", rows, batch=2, seconds=float('inf'), pause=0)
@@ -253,15 +253,15 @@ def test_labels_that_a_full_disk_keeps_from_taking_back_are_said_to_stand(
     with Project.open(sample_project) as p:
         ids = [i.pair_id for i in p.next_pairs("ana", 6)]
         calls = {"n": 0}
-        real = bulk.log.append
+        real = bulk.log.append_many
 
         def append(conn: sqlite3.Connection, *args: object) -> object:
             calls["n"] += 1
-            if calls["n"] >= 5:  # the third batch of two, and every retraction after it
+            if calls["n"] >= 3:  # the third batch of two, and the retraction after it
                 raise sqlite3.OperationalError("database or disk is full")
             return real(conn, *args)  # type: ignore[arg-type]
 
-        monkeypatch.setattr(bulk.log, "append", append)
+        monkeypatch.setattr(bulk.log, "append_many", append)
         rows = [BulkRow(pid, "match", "") for pid in ids]
         with pytest.raises(DocketError) as caught:
             apply_rows(p, "ana", rows, batch=2, seconds=float('inf'), pause=0)

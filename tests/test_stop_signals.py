@@ -37,15 +37,15 @@ def test_sigterm_in_label_takes_back_the_batches_written(
     rows = tmp_path / "labels.csv"
     rows.write_text("pair_id,label\n" + "".join(f"{i},match\n" for i in ids), encoding="utf-8")
     calls = {"n": 0}
-    real = bulk.claims.release
+    real = bulk.claims.release_many
 
     def release(*args: object) -> None:
         calls["n"] += 1
-        if calls["n"] == 700:  # batches hold at most 500 rows: at least one is committed
+        if calls["n"] == 2:  # batches hold at most 500 rows: one is committed
             signal.raise_signal(signal.SIGTERM)
         real(*args)  # type: ignore[arg-type]
 
-    monkeypatch.setattr(bulk.claims, "release", release)
+    monkeypatch.setattr(bulk.claims, "release_many", release)
     monkeypatch.setattr(bulk.time, "sleep", lambda _s: None)
     assert main(["label", str(sample_project), "--reviewer", "ana", "--from", str(rows)]) == 143
     assert capsys.readouterr().err == (

@@ -31,9 +31,12 @@ from ..storage.project_file import ProjectFile
 from ..types import LABELS
 from ..wording import many
 from .label_columns import check_columns, check_filled, check_json_keys
+from .label_pairs import check_ids_agree, ends_of_ids, ids_of_ends
 
 BATCH_ROWS = 500  # at most, per transaction
-BATCH_S = 0.02  # and a batch ends once it has written for this long
+BATCH_S = 0.02  # a batch held the write lock this long or less: the next is twice as large;
+# over twice this, half as large
+FIRST_BATCH = 100
 PAUSE_S = 0.005  # between batches: a waiting writer asks every millisecond (ProjectFile)
 # Room a decision takes, measured: 510 bytes without a note (the log row, its indexes, the
 # current label); and the write-ahead log grows to SQLite's checkpoint size, 1,000 pages.
@@ -48,23 +51,6 @@ class BulkRow:
     pair_id: int
     label: str
     note: str
-
-
-def _check_ids_agree(project: ProjectFile, path: Path, frame: pd.DataFrame,
-                     pair_ids: list[int]) -> None:
-    """Rows that give a pair id and record ids name one pair both ways. Pair ids belong to one
-    build: from another copy or an edited file they named other pairs, and the ids beside
-    them were ignored, so the labels went to the wrong pairs, unsaid."""
-    ends = {p: (a, b) for p, a, b in project.connection.execute(
-        "SELECT pair_id, left_id, right_id FROM pairs")}
-    for i, (pid, a, b) in enumerate(zip(pair_ids, frame["left_id"], frame["right_id"],
-                                        strict=True)):
-        pair = ends[pid]
-        if (a, b) != pair and (project.link or (b, a) != pair):
-            raise DocketError(f"{path}: {row_named(path, i)}: pair {pid} is {pair[0]} and "
-                              f"{pair[1]}, but the row names {a} and {b}; give the pair ids "
-                              "of this project (docket next or the scores export), or leave the "
-                              "pair_id column out; nothing was written")
 
 
 def _unguard_ids(project: ProjectFile, frame: pd.DataFrame) -> None:
@@ -100,23 +86,25 @@ def read_rows(project: ProjectFile, path: Path, reviewer: str | None = None) -> 
                               f"{frame['pair_id'].iloc[bad_rows[0]]!r} must be a whole "
                               "number (the pair_id column of 'docket next' or the scores "
                               "export)")
-        known = {r[0] for r in project.connection.execute("SELECT pair_id FROM pairs")}
         pair_ids = [int(x) for x in ids]
+        ends = ends_of_ids(project.connection, pair_ids)
         # named as written: "1e23" read as a number would be shown as 99999999999999991611392
         unknown = [str(t) for p, t in zip(pair_ids, frame["pair_id"], strict=True)
-                   if p not in known]
+                   if p not in ends]
         if unknown:
             raise DocketError(f"{path}: {many(len(unknown), 'unknown pair id')}: "
                               f"{', '.join(unknown[:5])}; nothing was written")
         if {"left_id", "right_id"} <= cols:
-            _check_ids_agree(project, path, frame, pair_ids)
+            check_ids_agree(project, path, frame, pair_ids, ends)
     elif {"left_id", "right_id"} <= cols:
-        lookup = {(a, b): p for p, a, b in project.connection.execute(
-            "SELECT pair_id, left_id, right_id FROM pairs")}
+        named = list(zip(frame["left_id"], frame["right_id"], strict=True))
+        # both ways round: a dedupe pair may be named right id first, and a link row so named
+        # is said to be
+        lookup = ids_of_ends(project.connection, [*named, *((b, a) for a, b in named)])
         pair_ids = []
         missing: list[str] = []
         swapped = 0  # link rows naming a pair right id first
-        for i, (a, b) in enumerate(zip(frame["left_id"], frame["right_id"], strict=True)):
+        for i, (a, b) in enumerate(named):
             p = lookup.get((a, b))
             if p is None and not project.link:
                 p = lookup.get((b, a))
@@ -190,29 +178,30 @@ def apply_rows(project: ProjectFile, reviewer: str, rows: list[BulkRow], role: s
     _check_room(project, rows)
     written: list[tuple[int, str]] = []
     at = 0  # rows gone through, written or standing already
+    size = max(1, batch if seconds == float("inf") else min(batch, FIRST_BATCH))
     try:
         while at < len(rows):
             if at and pause:
                 time.sleep(pause)
-            done: list[tuple[int, str]] = []
+            part = rows[at:at + size]
             with project.transaction() as conn:
-                roles.register(conn, reviewer)
                 began = time.monotonic()
-                through = at
-                for r in rows[at:at + max(1, batch)]:
-                    if through > at and time.monotonic() - began > seconds:
-                        break
-                    through += 1
-                    claims.release(conn, reviewer, r.pair_id)
-                    prior = log.current_of(conn, r.pair_id, reviewer, role)
-                    if prior is not None and (prior.label, prior.note or "") == (r.label,
-                                                                                 r.note):
-                        continue  # another process wrote it meanwhile
-                    d = log.append(conn, r.pair_id, reviewer, r.label, r.note, 0.0,
-                                   None if prior is None else prior.decision_id, role)
-                    done.append((d.pair_id, d.decision_id))
-            written += done  # committed: a failed batch was rolled back whole
-            at = through
+                roles.register(conn, reviewer)
+                claims.release_many(conn, reviewer, [r.pair_id for r in part])
+                prior = log.current_many(conn, [r.pair_id for r in part], reviewer, role)
+                done = log.append_many(conn, reviewer, role, [
+                    (r.pair_id, r.label, r.note, d.decision_id if d else None)
+                    for r in part if (d := prior.get(r.pair_id)) is None
+                    # a row standing already: another process wrote it meanwhile
+                    or (d.label, d.note or "") != (r.label, r.note)])
+            # committed: a failed batch was rolled back whole
+            written += [(d.pair_id, d.decision_id) for d in done]
+            at += len(part)
+            # a batch is a few statements that cannot stop part way: the next one is sized by
+            # how long this one held the write lock, its commit included
+            took = time.monotonic() - began
+            size = max(1, size // 2) if took > 2 * seconds else \
+                min(max(1, batch), size * 2) if took < seconds else size
             if progress:
                 progress(at)
     except BaseException as exc:
@@ -254,8 +243,8 @@ def _retract(project: ProjectFile, reviewer: str, role: str, written: list[tuple
 def _append_retractions(project: ProjectFile, reviewer: str, role: str,
                         written: list[tuple[int, str]]) -> None:
     with project.transaction() as conn:
-        for pair_id, decision_id in reversed(written):
-            log.append(conn, pair_id, reviewer, None, "", 0.0, decision_id, role)
+        log.append_many(conn, reviewer, role, [(pair_id, None, "", decision_id)
+                                               for pair_id, decision_id in reversed(written)])
 
 
 def _left_standing(project: ProjectFile, reviewer: str, n: int, total: int,

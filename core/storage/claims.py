@@ -76,6 +76,13 @@ def release(conn: sqlite3.Connection, reviewer: str, pair_id: int | None = None,
                      (int(pair_id), role, reviewer))
 
 
+def release_many(conn: sqlite3.Connection, reviewer: str, pair_ids: Iterable[int],
+                 role: str = "reviewer") -> None:
+    """``release`` of many pairs in one statement."""
+    conn.executemany("DELETE FROM claims WHERE pair_id = ? AND role = ? AND reviewer = ?",
+                     [(int(p), role, reviewer) for p in pair_ids])
+
+
 def held_by_others(conn: sqlite3.Connection, name: str, role: str) -> set[int]:
     """Pairs that someone else holds a live claim on in ``role``."""
     return {int(p) for (p,) in conn.execute(
