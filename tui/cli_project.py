@@ -16,22 +16,22 @@ from .figures import ratio_text as _ratio
 from .terminal import json_text, padded, shown
 
 
-def parse_together(value: str | None) -> list[str] | None:
-    """``--together a,b,c`` as a list of field names (None: let docket find them); a name
-    that holds a comma is quoted as in a CSV row: ``'"street, no",town'``."""
+def parse_together(value: str | None, option: str = "--together",
+                   give: str = "two or more, comma-separated, or 'none'") -> list[str] | None:
+    """``--together a,b,c`` (or ``--compare``) as a list of field names (None: not given); a
+    name that holds a comma is quoted as in a CSV row: ``'"street, no",town'``."""
     if value is None:
         return None
     try:
         names = next(csv.reader([value], skipinitialspace=True, strict=True), [])
     except csv.Error:  # a quote never closed
         from docket.core import DocketError
-        raise DocketError(f"--together {value}: a quote is not closed; quote a name that "
+        raise DocketError(f"{option} {value}: a quote is not closed; quote a name that "
                           "holds a comma whole, as '\"street, no\",town'") from None
     names = [name.strip() for name in names if name.strip()]
     if not names:  # '--together "$COLS"' with COLS unset turned the home grouping off, unsaid
         from docket.core import DocketError
-        raise DocketError(f"--together {value!r} names no field; name two or more, "
-                          "comma-separated, or 'none'")
+        raise DocketError(f"{option} {value!r} names no field; name {give}")
     return names
 
 
@@ -109,6 +109,7 @@ def new(args: argparse.Namespace) -> int:
         left_id=args.left_id, right_id=args.right_id, column_map=parse_map(args.map),
         kinds=parse_kinds(args.field), keep_placeholders=args.keep_placeholders,
         together=parse_together(args.together),
+        compare=parse_together(args.compare, "--compare", "one or more, comma-separated"),
         pairs_file=Path(args.pairs) if args.pairs else None,
         rules=args.block or [], audit=args.audit, overlap=args.overlap,
         overlap_reviewers=args.overlap_reviewers,
@@ -202,6 +203,10 @@ def register(sub: argparse._SubParsersAction) -> None:
                    help="compare left column L with right column R (repeatable)")
     p.add_argument("--field", action="append", metavar="COL:KIND",
                    help="set a field's kind instead of the detected one (repeatable)")
+    p.add_argument("--compare", metavar="COLS",
+                   help="compare only these columns, comma-separated (quoted as --together; "
+                        "by default every column the tables share); the rest are shown, not "
+                        "compared")
     p.add_argument("--keep-placeholders", action="store_true",
                    help="compare values such as 'N/A', 'unknown', '-' or 'XX1 1XX' as written "
                         "(by default, one that fills 1%% or more of a column is missing)")

@@ -11,6 +11,7 @@ import pandas as pd
 from ..errors import DocketError
 from ..types import KINDS, FieldSpec
 from . import normalise, placeholders
+from .chosen_columns import chosen
 from .unpaired import map_advice, unpaired_warning
 from .unreadable import unreadable_warning
 
@@ -141,9 +142,11 @@ def parse_kinds(items: list[str] | None) -> dict[str, str]:
 
 def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: str,
                    right_name: str | None, mapping: dict[str, str],
-                   kinds: dict[str, str], keep_placeholders: bool = False) -> list[FieldSpec]:
-    """The compared fields: common columns (after the map), each with a detected kind and
-    the placeholders it reads as missing (none with ``keep_placeholders``)."""
+                   kinds: dict[str, str], keep_placeholders: bool = False,
+                   only: list[str] | None = None) -> list[FieldSpec]:
+    """The compared fields: common columns (after the map), or those of them ``only`` names,
+    each with a detected kind and the placeholders it reads as missing (none with
+    ``keep_placeholders``)."""
     right_frame = left if right is None else right
     for lcol, rcol in mapping.items():
         if lcol == left.index.name or rcol == right_frame.index.name:
@@ -174,6 +177,9 @@ def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: st
         if rcol in right_frame.columns:
             pairs.append((lcol, rcol))
             taken.add(rcol)
+    shared = pairs  # what the tables share, whatever --compare leaves out of it
+    if only is not None:
+        pairs = chosen(pairs, only)
     for col in kinds:
         if col not in {p[0] for p in pairs}:
             raise DocketError(f"--field {col}: no compared column of that name; compared "
@@ -232,7 +238,7 @@ def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: st
         warnings.warn(f"{why}; not compared (give --field {col}:KIND to compare it anyway)",
                       stacklevel=2)
     unpaired = None if right is None else \
-        unpaired_warning(left, right, pairs, left_name, right_name or "the right table")
+        unpaired_warning(left, right, shared, left_name, right_name or "the right table")
     if unpaired:
         warnings.warn(unpaired, stacklevel=2)
     for said_line in said:

@@ -54,6 +54,7 @@ class NewProject:
     kinds: dict[str, str] = field(default_factory=dict)
     keep_placeholders: bool = False  # compare 'N/A', 'XX1 1XX' as written, not as missing
     together: list[str] | None = None  # fields read as one home (None: found by name; ["none"])
+    compare: list[str] | None = None  # the columns compared (None: all the tables share)
     pairs_file: Path | None = None
     rules: list[str] = field(default_factory=list)
     audit: int | None = None
@@ -161,11 +162,12 @@ def build(spec: NewProject, progress: Progress | None = None,
     step("reading records", 2, 2)
     fields = fieldmod.resolve_fields(left.frame, None if right is None else right.frame,
                                      str(left.path), None if right is None else str(right.path),
-                                     spec.column_map, spec.kinds, spec.keep_placeholders)
+                                     spec.column_map, spec.kinds, spec.keep_placeholders,
+                                     spec.compare)
     if len(fields) > MAX_FIELDS:
         raise DocketError(f"{left.path}: {len(fields):,} fields to compare, more than the "
-                          f"{MAX_FIELDS:,} a project can hold; skip some with --field COL:skip "
-                          "or keep only the columns worth comparing")
+                          f"{MAX_FIELDS:,} a project can hold; name the columns worth comparing "
+                          "with --compare COLS, or skip some with --field COL:skip")
     # compared with placeholders missing; the file keeps each value as written, for reviewers
     seen_left = _as_compared(left, fields, "left")
     seen_right = None if right is None else _as_compared(right, fields, "right")

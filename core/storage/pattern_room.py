@@ -24,5 +24,5 @@ def check_room(names: list[str], radix: list[int], where: str) -> None:
         return
     raise DocketError(f"{where}: {len(names):,} fields to compare give more level patterns than "
                       f"docket can count in one 64-bit code per pair; the first {fit} fit (up "
-                      f"to '{names[fit - 1]}'): leave the others out with --field COL:skip, or "
-                      "give a table of fewer columns")
+                      f"to '{names[fit - 1]}'): name the columns worth comparing with "
+                      "--compare COLS (comma-separated), or leave some out with --field COL:skip")
