@@ -13,7 +13,8 @@ from docket.core import NewProject, Project
 
 # The fixtures shared by several test files live beside their helpers; registered here, a test
 # names them as arguments and imports only the helpers.
-pytest_plugins = ["tests.fixtures_review", "tests.screens_support", "tests.gold_fixtures"]
+pytest_plugins = ["tests.fixtures_review", "tests.screens_support", "tests.gold_fixtures",
+                  "tests.odd_data"]
 
 REPO = Path(__file__).resolve().parent.parent
 SAMPLE = REPO / "sample"

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import re
 
+from rich.cells import cell_len
 from rich.style import Style, StyleType
 from rich.text import Text
 
@@ -113,3 +114,37 @@ def one_line(value: str | None, width: int, escape_style: StyleType = "bold",
     text.no_wrap = True
     text.truncate(width, overflow="ellipsis")
     return text
+
+
+def middle_cut(text: Text, width: int, mark_style: StyleType = "") -> Text:
+    """``text`` (one line) in at most ``width`` cells, its middle replaced by '…'."""
+    if text.cell_len <= width:
+        return text
+    keep = max(1, width - 1)
+    head = _fill(text.plain, (keep + 1) // 2)
+    tail = _fill(text.plain[::-1], keep // 2)
+    return Text.assemble(text[:head], ("…", mark_style), text[len(text.plain) - tail:])
+
+
+def _fill(chars: str, cells: int) -> int:
+    """How many of ``chars``, from the start, fill at most ``cells`` cells."""
+    used = n = 0
+    for ch in chars:
+        used += cell_len(ch)
+        if used > cells:
+            break
+        n += 1
+    return n
+
+
+def record_id(value: str, width: int, escape_style: StyleType = "bold") -> Text:
+    """A record's id on one line of at most ``width`` cells, its middle left out.
+
+    Ids of 200 characters that differ only at their end ('L-xxxx…x-000073') were cut at the
+    end, so that two records' ids read the same in a title or a list; the end stays now.
+    """
+    if len(value) > 4 * width:  # each end keeps 2 x width characters, more than it shows
+        value = value[:2 * width] + value[-2 * width:]
+    text = literal_text(value, escape_style=escape_style, cap=len(value))
+    text.no_wrap = True
+    return middle_cut(text, width)

@@ -30,7 +30,7 @@ from ..diff import PLAIN, Palette
 from ..navigation import Mode, Move, Navigator
 from ..widgets import CardOptions, Pace, PairCardView, StatusLine
 from ..widgets.key_bar import KeyBar
-from ..widgets.pair_card import card_title
+from ..widgets.pair_card import put_card_title
 from ..widgets.reviews import ConflictInfo, PairStanding, ReviewsPanel
 from .adjudication_queue import HELD, AdjudicationQueue
 from .help import key_rows
@@ -162,7 +162,7 @@ class AdjudicateScreen(AdjudicationQueue, Screen[None]):
             panel.show_message(Text(""))
         else:
             card_view.show(self.card, CardOptions(self.palette, app.mask, self.show_extra))
-            box.border_title = card_title(self.card, self.palette)
+            put_card_title(box, self.card, self.palette)
             box.border_subtitle = Text(self.where) if self.where else None
             panel.show(self.card, self.standing, app.adjudicator, app.blind, self.palette)
         panel.border_title = "reviews · names hidden" if app.blind else "reviews"
@@ -253,6 +253,12 @@ class AdjudicateScreen(AdjudicationQueue, Screen[None]):
     def on_resize(self) -> None:
         # A taller or shorter terminal changes the room for the card, not its width.
         self.call_after_refresh(self.query_one(PairCardView).refit)
+        self.call_after_refresh(self._retitle)
+
+    def _retitle(self) -> None:
+        """The title's ids cut again to the card's new width."""
+        if self.card is not None:
+            put_card_title(self.query_one("#card-box", VerticalScroll), self.card, self.palette)
 
     def action_extra(self) -> None:
         self.show_extra = not self.show_extra

@@ -230,8 +230,8 @@ class DisagreementsScreen(TeamScreen):
             table.add_column(Text("note", p.muted))
         note = self._note_cells()
         for r in self.rows:
-            table.add_row(Text(str(r["pair_id"])), literal.one_line(r["left_id"], 16, p.escape),
-                          literal.one_line(r["right_id"], 16, p.escape),
+            table.add_row(Text(str(r["pair_id"])), literal.record_id(r["left_id"], 16, p.escape),
+                          literal.record_id(r["right_id"], 16, p.escape),
                           Text(r["label_a"], label_style(r["label_a"], p)),
                           literal.one_line(r["note_a"] or "—", note, p.escape),
                           Text(r["label_b"], label_style(r["label_b"], p)),

@@ -36,7 +36,7 @@ class Layout:
 
 
 def layout(other_ids: list[str], box: int) -> Layout:
-    ids = min(ID_CELLS, max([1] + [literal.one_line(i, ID_CELLS).cell_len for i in other_ids]))
+    ids = min(ID_CELLS, max([1] + [literal.record_id(i, ID_CELLS).cell_len for i in other_ids]))
     column = 7 + 2 + ids + 2 + len("p ") + PROBABILITY_CELLS + 2
     beside = box - column >= SUMMARY_CELLS
     return Layout(ids, column if beside else INDENT, beside, box)
@@ -74,7 +74,7 @@ def other_line(card: PairCard, record: str, at: Layout, mask: Mask,
     """Pair ``card`` among ``record``'s candidates: the other record's id and values."""
     left = card.left_id != record  # the other record is the left one
     text = Text(f"{card.pair_id:>7}  ", no_wrap=True, overflow="ellipsis")
-    text.append_text(literal.one_line(card.left_id if left else card.right_id, at.id_cells))
+    text.append_text(literal.record_id(card.left_id if left else card.right_id, at.id_cells))
     _padded(text, 7 + 2 + at.id_cells)
     text.append(f"  p {probability_text(card.probability)}")
     if at.beside:
@@ -91,7 +91,7 @@ def record_line(heading: str, card: PairCard, record: str, at: Layout, mask: Mas
     """The group's heading, and under it ``record``'s own values, at the values' column."""
     text = Text(heading, "bold")
     text.append("  ")
-    text.append_text(literal.one_line(record, ID_CELLS))
+    text.append_text(literal.record_id(record, ID_CELLS))
     text.append("\n" + " " * at.column)
     text.append_text(summary(side_values(card, card.left_id == record, mask),
                              at.box - at.column))

@@ -79,7 +79,7 @@ class ConflictScreen(Screen[None]):
             members.add_column(literal.one_line(label, VALUE_WIDTH, p.escape))
         for side, rid in c.members:
             record = app.project.record(side or "left", rid)
-            cells = [Text(side or "—", p.muted), literal.one_line(rid, VALUE_WIDTH, p.escape)]
+            cells = [Text(side or "—", p.muted), literal.record_id(rid, VALUE_WIDTH, p.escape)]
             for f in fields:
                 value = record.get(f.right_column if side == "right" else f.left_column)
                 if value is not None and app.mask and app.mask.applies(f.name):
@@ -94,8 +94,8 @@ class ConflictScreen(Screen[None]):
         for pid, label in listed[:MOST_PAIRS]:
             card = app.project.card(pid, "")
             pairs.add_row(Text(str(pid)), Text(label, label_style(label, p)),
-                          literal.one_line(card.left_id, VALUE_WIDTH, p.escape),
-                          literal.one_line(card.right_id, VALUE_WIDTH, p.escape), key=str(pid))
+                          literal.record_id(card.left_id, VALUE_WIDTH, p.escape),
+                          literal.record_id(card.right_id, VALUE_WIDTH, p.escape), key=str(pid))
         more = f" (first {MOST_PAIRS} of {len(listed):,})" if len(listed) > MOST_PAIRS else ""
         self.query_one("#conflict-pairs-head", Static).update(
             Text(f"gold labels in this cluster{more} · Enter opens a pair", p.muted))

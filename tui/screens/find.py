@@ -42,7 +42,7 @@ def _line_layout(cards: list[PairCard]) -> tuple[int, int, int]:
     values start at one column. The values of 'p 0.00002' and 'p 0.0004' lines began a cell
     apart, so the found names zig-zagged down the list."""
     def widest(values: list[str], cells: int) -> int:
-        return max([1, *(literal.one_line(v, cells).cell_len for v in values)])
+        return max([1, *(literal.record_id(v, cells).cell_len for v in values)])
     return (widest([c.left_id for c in cards], candidate_lines.ID_CELLS),
             widest([c.right_id for c in cards], candidate_lines.ID_CELLS),
             widest([probability_text(c.probability) for c in cards], 12))
@@ -141,10 +141,10 @@ class PairPicker(ModalScreen[int | None]):
         mine = self.project.current_label(card.pair_id, self.reviewer)
         text = Text(f"{card.pair_id:>7}  ", no_wrap=True, overflow="ellipsis")
         left_cells, right_cells, prob_cells = at
-        text.append_text(literal.one_line(card.left_id, candidate_lines.ID_CELLS))
+        text.append_text(literal.record_id(card.left_id, candidate_lines.ID_CELLS))
         _pad(text, 9 + left_cells)
         text.append(" ↔ ")
-        text.append_text(literal.one_line(card.right_id, candidate_lines.ID_CELLS))
+        text.append_text(literal.record_id(card.right_id, candidate_lines.ID_CELLS))
         _pad(text, 9 + left_cells + 3 + right_cells)
         text.append(f"  p {probability_text(card.probability):<{prob_cells}}  ")
         if card.fields:

@@ -71,7 +71,7 @@ class PairDetailScreen(Screen[None]):
         self.query_one(PairCardView).show(card, CardOptions(palette, app.mask,
                                                             self.show_extra))
         box = self.query_one("#card-box", VerticalScroll)
-        box.border_title = card_title(card, palette)
+        box.border_title = card_title(card, palette, box.size.width or self.app.size.width)
         panel = self.query_one(ReviewsPanel)
         panel.show(card, PairStanding(None, tuple(reviews), gold), app.adjudicator, app.blind,
                    palette, self.aliases)

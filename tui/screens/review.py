@@ -25,7 +25,7 @@ from .. import bindings as shared
 from ..diff import PLAIN, Palette
 from ..navigation import Mode, Navigator
 from ..widgets import CardOptions, EvidencePanel, KeyBar, Pace, PairCardView, StatusLine, YourSide
-from ..widgets.pair_card import card_title
+from ..widgets.pair_card import card_title, put_card_title
 from .help import HelpScreen, key_rows
 from .review_background import ReviewBackground
 from .review_moves import ReviewMoves
@@ -167,7 +167,7 @@ class ReviewScreen(ReviewNotes, ReviewMoves, ReviewBackground, Screen[None]):
         else:
             opts = CardOptions(self.palette, self.review_app.mask, self.show_extra)
             card_view.show(self.card, opts)
-            title = card_title(self.card, self.palette)
+            title = card_title(self.card, self.palette, box.size.width)
             if title.plain != self._title:
                 self._title = title.plain
                 box.border_title = title
@@ -248,6 +248,13 @@ class ReviewScreen(ReviewNotes, ReviewMoves, ReviewBackground, Screen[None]):
     def on_resize(self) -> None:
         # A taller or shorter terminal changes the room for the card, not its width.
         self.call_after_refresh(self.query_one(PairCardView).refit)
+        self.call_after_refresh(self._retitle)
+
+    def _retitle(self) -> None:
+        """The title's ids cut again to the card's new width."""
+        if self.card is not None:
+            box = self.query_one("#card-box", VerticalScroll)
+            self._title = put_card_title(box, self.card, self.palette)
 
     def action_extra(self) -> None:
         self.show_extra = not self.show_extra

@@ -67,23 +67,7 @@ def shorten(text: Text, width: int, mark_style: str | Style = "") -> Text:
     if lead or cut:
         body = shorten(text[front:back], room if room >= MIN_BODY else width, mark_style)
         return Text.assemble(text[:front], body, text[back:]) if room >= MIN_BODY else body
-    keep = max(1, width - 1)
-    head_cells, tail_cells = (keep + 1) // 2, keep // 2
-    head = _cut(text, head_cells, from_end=False)
-    tail = _cut(text, tail_cells, from_end=True)
-    return Text.assemble(text[:head], ("…", mark_style), text[len(text.plain) - tail:])
-
-
-def _cut(text: Text, cells: int, from_end: bool) -> int:
-    """How many characters, from the start (or end), fill at most ``cells`` cells."""
-    chars = reversed(text.plain) if from_end else iter(text.plain)
-    used = n = 0
-    for ch in chars:
-        used += cell_len(ch)
-        if used > cells:
-            break
-        n += 1
-    return n
+    return literal.middle_cut(text, width, mark_style)
 
 
 def cell(text: Text | None, width: int, right: bool = False) -> Text:

@@ -153,14 +153,27 @@ def _extra_rows(out: Lines, card: PairCard, opts: CardOptions, width: int) -> No
             out.add(name, None, [left, right], [], None)
 
 
-def card_title(card: PairCard, palette: Palette) -> Text:
+def card_title(card: PairCard, palette: Palette, width: int = 0) -> Text:
+    """'pair 12 · L-17 ↔ R-4' for a box ``width`` cells wide (0: not laid out yet). The ids
+    share what the box's top edge leaves (24 cells each at most): at 80 columns a title of
+    two long ids ran past it and the border cut the right id at its end, where long ids differ.
+    """
     title = Text("pair ", palette.muted)
     title.append(str(card.pair_id), palette.heading)
     title.append(" · ", palette.muted)
-    title.append_text(literal.one_line(card.left_id, 24, palette.escape))
+    room = (width - 6 - title.cell_len - 3) // 2 if width else 24  # corners and ' ↔ '
+    cells = max(8, min(24, room))
+    title.append_text(literal.record_id(card.left_id, cells, palette.escape))
     title.append(" ↔ ", palette.muted)
-    title.append_text(literal.one_line(card.right_id, 24, palette.escape))
+    title.append_text(literal.record_id(card.right_id, cells, palette.escape))
     return title
+
+
+def put_card_title(box: Widget, card: PairCard, palette: Palette) -> str:
+    """``box``'s border title for ``card``, cut to its width now; its text."""
+    title = card_title(card, palette, box.size.width)
+    box.border_title = title
+    return title.plain
 
 
 class PairCardView(Static):

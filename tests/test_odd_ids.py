@@ -1,0 +1,39 @@
+"""Record ids of 200 characters that differ only at their end stay told apart on screen."""
+
+from __future__ import annotations
+
+from textual.containers import VerticalScroll
+
+from docket.tui import literal
+from tests.fixtures_review import pilot_test, press, screen_text, settle
+from tests.odd_data import long_id
+
+
+def test_a_long_id_keeps_its_end() -> None:
+    shown = literal.record_id(long_id("L", 49), 18).plain
+    assert shown.startswith("L-xxx") and shown.endswith("0000049") and len(shown) == 18
+    assert literal.record_id("L-17", 18).plain == "L-17"
+    assert literal.record_id("a\x1bb" * 100, 12).cell_len <= 12  # escapes count their cells
+
+
+@pilot_test
+async def test_the_card_title_and_the_candidates_show_where_long_ids_differ(odd_project,
+                                                                           review_app):
+    # both ids were cut at their end: at 80 columns the title read 'L-xxxxxxxxxxxxxxxxxxxxx…
+    # ↔ R-xxxxxxxxxx…' (the right one cut again by the border), and every other candidate
+    # was 'R-xxxxxxxxxxx…'
+    app = review_app(odd_project)
+    for size in ((80, 24), (120, 40)):
+        async with app.run_test(size=size) as pilot:
+            await settle(pilot)
+            card = app.screen.card
+            box = app.screen.query_one("#card-box", VerticalScroll)
+            title = app.screen._title  # the title's text (border_title reads as markup)
+            assert card.left_id[-7:] in title and card.right_id[-7:] in title, title
+            assert len(title) + 6 <= box.size.width  # within the border, corners included
+            await press(pilot, "c")
+            text = screen_text(app)
+            others = [i for i in range(6) if f"{i:06d}" in text]
+            assert len(others) >= 3, text  # the record's own, and its candidates', told apart
+            await press(pilot, "escape")
+        app = review_app(odd_project)
