@@ -117,6 +117,22 @@ def test_the_model_is_named_on_its_line_at_80_columns() -> None:
     assert "model   Fellegi–Sunter" in lines  # lined up with 'queued  ' where there is room
 
 
+def test_a_probability_near_0_or_1_stays_whole_in_the_narrow_panel() -> None:
+    # 'probability < 0.000001' is 22 cells: in the 20-cell panel it wrapped at its space, the
+    # '<' at the end of one line and the number alone on the next
+    from dataclasses import replace
+
+    for log_odds, shown in ((-30.0, "< 0.000001"), (30.0, "> 0.999999"), (0.0, "0.500")):
+        card = replace(_card(PRODUCTS), probability=1 / (1 + math.exp(-log_odds)))
+        for width in (NARROW_TEXT, PANEL_TEXT):
+            lines = evidence_text(card, PLAIN, width=width).plain.splitlines()
+            assert all(len(line) <= width for line in lines[:2]), (width, lines[:2])
+            assert f"probability {shown}" in lines[0] or lines[1].strip() == shown, lines[:2]
+    card = replace(_card(PRODUCTS), probability=1e-9)
+    assert evidence_text(card, PLAIN, width=PANEL_TEXT).plain.startswith(
+        "probability < 0.000001")  # on one line where the panel has room
+
+
 def test_the_other_candidates_counts_fit_the_narrow_panel() -> None:
     # 'first 34 · second 36' (one table deduplicated) took 22 cells of the 20-cell panel at
     # 80 columns, 'second 36' wrapping to a line of its own

@@ -117,7 +117,12 @@ def evidence_text(card: PairCard, palette: Palette, you: YourSide = YourSide(),
     p = palette
     text = Text()
     # labels as narrow as they go: "1 to 3.7k" must fit beside "odds" in a 20-column panel
-    _row(text, "probability", Text(probability_text(card.probability), p.heading), 12)
+    shown = probability_text(card.probability)
+    if 12 + cell_len(shown) > width:  # '< 0.000001' wrapped at its space, '<' left behind
+        text.append("probability\n")
+        _row(text, "  ", Text(shown, p.heading), 2)
+    else:
+        _row(text, "probability", Text(shown, p.heading), 12)
     _row(text, "odds", Text(odds_text(card.log_odds),
                             p.positive if card.log_odds > 0 else p.negative), 8)
     text.append("from the start\n", p.muted)
