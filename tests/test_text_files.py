@@ -1,6 +1,6 @@
-"""A table saved as .txt, as a spreadsheet saves "Text (Tab delimited)" or "Unicode Text"
-(UTF-16 with a byte-order mark, tabs): read with the separator its header uses. It was
-refused as "unknown file type '.txt'"."""
+"""Text tables as spreadsheets save them: a .txt file ("Text (Tab delimited)", or "Unicode
+Text", UTF-16 with a byte-order mark and tabs), read with the separator its header uses (it
+was refused as "unknown file type '.txt'"), and a first line 'sep=;' naming the separator."""
 
 from __future__ import annotations
 
@@ -45,3 +45,32 @@ def test_a_txt_label_file_and_a_ragged_txt_table(sample_project: Path, tmp_path:
                     "--id", "id")
     assert_one_line_error(code, err, "ragged.txt: line 3 has 3 of the header's 2 fields")
     assert not (tmp_path / "r.docket").exists()
+
+
+@pytest.mark.parametrize("mark", ["", "\ufeff"], ids=["plain", "bom"])
+def test_a_separator_hint_line_names_the_separator(mark: str, tmp_path: Path,
+                                                   capsys: pytest.CaptureFixture[str]) -> None:
+    # 'sep=;' before the header, as programs exporting for a spreadsheet write it: it was read
+    # as the header, and the file refused as "line 2 has 3 of the header's 2 fields"
+    left = tmp_path / "clients.csv"
+    left.write_text(mark + "sep=;\r\n" + "".join(";".join(r) + "\r\n" for r in ROWS),
+                    encoding="utf-8")
+    path = tmp_path / "p.docket"
+    assert main(["new", str(path), "--left", str(left), "--id", "id", "--block", "*"]) == 0
+    assert "separated by" not in capsys.readouterr().err
+    with Project.open(path, readonly=True) as p:
+        names = {r: n for r, n in p.connection.execute("SELECT id, name FROM left_records")}
+    assert names == {r[0]: r[1] for r in ROWS[1:]}
+    # a ragged row is named by its line in the file, the hint counted
+    left.write_text("sep=;\nid;name\n1;Anna\n2;Bo;Vik\n", encoding="utf-8")
+    code, err = run(capsys, "new", str(tmp_path / "r.docket"), "--left", str(left), "--id",
+                    "id")
+    assert_one_line_error(code, err, "clients.csv: line 4 has 3 of the header's 2 fields")
+
+
+def test_a_separator_hint_in_a_matcher_file(sample_project: Path, tmp_path: Path,
+                                            capsys: pytest.CaptureFixture[str]) -> None:
+    rows = tmp_path / "rater.csv"
+    rows.write_text("sep=;\nleft_id;right_id;score\nN-00005;S-10731;0.9\n", encoding="utf-8")
+    assert main(["matchers", str(sample_project), "import", str(rows)]) == 0
+    assert "stored matcher rater" in capsys.readouterr().out

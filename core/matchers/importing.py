@@ -21,7 +21,7 @@ import pyarrow.parquet as pq
 
 from ..errors import DocketError
 from ..records.sources import detect_format, read_frame, row_named
-from ..records.text_tables import plain_names
+from ..records.text_tables import plain_names, separator_hint
 from ..storage import store
 from ..storage.project_file import ProjectFile
 from . import catalogue
@@ -73,7 +73,7 @@ def _read(path: Path) -> pa.Table:
     try:
         if fmt == "parquet":
             table = pq.read_table(path)
-        elif fmt in ("csv", "tsv"):
+        elif fmt in ("csv", "tsv") and not _hinted(path):
             table = pa.Table.from_pandas(
                 pd.read_csv(path, dtype=str, sep="\t" if fmt == "tsv" else ",",
                             engine="pyarrow", keep_default_na=False), preserve_index=False)
@@ -85,6 +85,13 @@ def _read(path: Path) -> pa.Table:
                         ("left_id", "right_id", "matcher", SCORE, LABEL))
     return pa.table({name: col if name == SCORE and _numeric(col) else _strings(col)
                      for name, col in zip(names, table.columns, strict=True)})
+
+
+def _hinted(path: Path) -> bool:
+    """A first line 'sep=;' (a spreadsheet's hint): the general reader takes it."""
+    with path.open("rb") as f:
+        head = f.read(16).decode("utf-8", errors="replace")
+    return separator_hint(head) is not None
 
 
 def _numeric(column: pa.ChunkedArray) -> bool:

@@ -98,6 +98,16 @@ def choose_separator(path: Path, head_text: str, expected: str) -> str:
     return best
 
 
+def separator_hint(head_text: str) -> str | None:
+    """The separator a first line 'sep=;' names: a spreadsheet's hint, written by programs
+    that export for it and honoured when it opens the file. It was read as the header, and
+    the file refused as "line 2 has 3 of the header's 2 fields"."""
+    first = head_text.lstrip("\ufeff").split("\n", 1)[0].rstrip("\r")
+    if len(first) == 5 and first[:4].lower() == "sep=" and first[4] not in "\"'\r":
+        return first[4]
+    return None
+
+
 def header_separator(head_text: str) -> str:
     """The separator that splits the header most (tab first on a tie): a .txt file says
     nothing of its separator, so none is expected and none is warned of."""
@@ -141,9 +151,10 @@ def plain_names(names: list[str], wanted: tuple[str, ...]) -> list[str]:
     return renamed if len(set(renamed)) == len(renamed) else names
 
 
-def check_widths(path: Path, encoding: str, sep: str) -> None:
+def check_widths(path: Path, encoding: str, sep: str, skip: bool = False) -> None:
     """Every row has as many fields as the header (a short row would pass silently), and none
-    is the header again (it would be read as a record whose id is the id column's name)."""
+    is the header again (it would be read as a record whose id is the id column's name).
+    ``skip``: the first line is a separator hint, before the header."""
     # the csv module refuses a value over 131,072 characters, which pandas reads: a long
     # text (an abstract, a note) is a record's value like any other
     limit = csv.field_size_limit(sys.maxsize)
@@ -152,6 +163,8 @@ def check_widths(path: Path, encoding: str, sep: str) -> None:
         # 'Bob Smith', and a quote never closed made the rest of the file one value
         rows = csv.reader(f, delimiter=sep, strict=True)
         try:
+            if skip:
+                next(rows, None)
             header = _header_key(next(rows, []))
             width = len(header)
             # a row is the header again only if its first cell is, in any case: one cheap test
@@ -246,18 +259,22 @@ def read_delimited(path: Path, fmt: str) -> pd.DataFrame:
         try:
             head_text = head.decode(encoding, errors="ignore" if len(head) == HEAD_BYTES
                                     else "strict")
-            sep = (header_separator(head_text) if fmt == "text" else
-                   choose_separator(path, head_text, "\t" if fmt == "tsv" else ","))
+            hint = separator_hint(head_text)
+            if hint is not None:  # the header is the line after it
+                head_text = head_text.split("\n", 1)[1] if "\n" in head_text else ""
+            sep = hint or (header_separator(head_text) if fmt == "text" else
+                           choose_separator(path, head_text, "\t" if fmt == "tsv" else ","))
             header = _header(head_text, sep)
             check_names(path, header)
             if encoding == "cp1252" and (mixed := mixed_line(path, sep, header)):
                 raise DocketError(mixed)
-            check_widths(path, encoding, sep)
+            check_widths(path, encoding, sep, skip=hint is not None)
             # pandas' C reader before 3.0 ends a value at a NUL ('n\x00q' became 'n'): a file
             # holding one is read by its Python reader, slower and exact
             engine = "python" if holds_nul(path, encoding) else "c"
             frame = pd.read_csv(path, sep=sep, dtype=str, keep_default_na=False,
-                                encoding=encoding, engine=engine)
+                                encoding=encoding, engine=engine,
+                                skiprows=1 if hint is not None else None)
             if len(header) == frame.shape[1]:  # the names as written, not pandas' "Unnamed: 2"
                 frame.columns = header
         except UnicodeDecodeError:
