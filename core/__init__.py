@@ -35,6 +35,7 @@ _ELSEWHERE = {
     "output_format": ("exports.exporting", "output_format"),
     "atomic_write": ("exports.exporting", "atomic_write"),
     "write_rows": ("exports.export_kinds", "write_rows"),
+    "write_scores": ("exports.scores_export", "write_scores"),
     "score_to_parts": ("exports.score_all", "score_to_parts"),
     "many": ("wording", "many"),
     "noun": ("wording", "noun"),

@@ -188,16 +188,17 @@ def export(args: argparse.Namespace) -> int:
             if note:
                 print(f"note: {note}", file=sys.stderr)
         return 0
-    from docket.core import write_rows
+    from docket.core import write_scores
 
     from .progress import working
-    with working("exporting the scores", args.output != "-"):  # '-': the rows are the output
-        with open_project(args.project, readonly=True) as project:
-            project.refuse_over_sources(args.output)
-            frame = project.scores_frame()
-        write_rows(frame, args.output, args.format, guard=getattr(args, "formula_guard", True))
+    # '-': the rows are the output
+    with working("exporting the scores", args.output != "-"), \
+            open_project(args.project, readonly=True) as project:
+        project.refuse_over_sources(args.output)
+        n = write_scores(project, args.output, args.format,
+                         guard=getattr(args, "formula_guard", True))
     if args.output != "-":
-        print(f"wrote {many(len(frame), 'pair')} to {args.output}", file=sys.stderr)
+        print(f"wrote {many(n, 'pair')} to {args.output}", file=sys.stderr)
     return 0
 
 

@@ -67,9 +67,10 @@ def guarded(frame: pd.DataFrame) -> pd.DataFrame:
     return out
 
 
-def csv_text(frame: pd.DataFrame, guard: bool = True) -> str:
+def csv_text(frame: pd.DataFrame, guard: bool = True, header: bool = True) -> str:
     """CSV with CRLF line ends (RFC 4180), so a field holding a bare CR or LF is quoted too."""
-    return (guarded(frame) if guard else frame).to_csv(index=False, lineterminator="\r\n")
+    return (guarded(frame) if guard else frame).to_csv(index=False, lineterminator="\r\n",
+                                                       header=header)
 
 
 def jsonl_text(frame: pd.DataFrame) -> str:
@@ -139,14 +140,30 @@ def write_parquet(frame: pd.DataFrame, target: Any) -> None:
     Arrow's ``null`` type: such a file and a later one holding values could not be read as
     one dataset ("Unsupported cast from string to null"), so it is ``string`` too.
     """
-    import pyarrow as pa
     import pyarrow.parquet as pq
+
+    pq.write_table(arrow_table(frame), target)
+
+
+def arrow_table(frame: pd.DataFrame) -> Any:
+    """The frame as an Arrow table, its text columns ``string`` (see ``write_parquet``)."""
+    import pyarrow as pa
 
     table = pa.Table.from_pandas(frame, preserve_index=False)
     schema = pa.schema([pa.field(f.name, pa.string())
                         if pa.types.is_large_string(f.type) or pa.types.is_null(f.type)
                         else f for f in table.schema], metadata=table.schema.metadata)
-    pq.write_table(table.cast(schema), target)
+    return table.cast(schema)
+
+
+def parquet_to_stdout(fill: Callable[[io.BytesIO], object]) -> None:
+    """Parquet made by ``fill`` in memory, then written to stdout; never to a terminal."""
+    if sys.stdout.isatty():  # binary, record values in it raw: a terminal would act
+        raise DocketError("--format parquet -o -: Parquet is binary, not for a "
+                          "terminal; write it to a file (-o FILE.parquet) or pipe it")
+    buf = io.BytesIO()
+    fill(buf)
+    to_stdout(buf.getvalue())
 
 
 def write_frame(frame: pd.DataFrame, target: str, fmt: str | None = None,
@@ -158,12 +175,7 @@ def write_frame(frame: pd.DataFrame, target: str, fmt: str | None = None,
     kind = output_format(target, fmt)
     if target == "-":
         if kind == "parquet":
-            if sys.stdout.isatty():  # binary, record values in it raw: a terminal would act
-                raise DocketError("--format parquet -o -: Parquet is binary, not for a "
-                                  "terminal; write it to a file (-o FILE.parquet) or pipe it")
-            buf = io.BytesIO()
-            write_parquet(frame, buf)
-            to_stdout(buf.getvalue())
+            parquet_to_stdout(lambda buf: write_parquet(frame, buf))
         elif kind == "csv":
             to_stdout(csv_text(frame, guard))
         else:
