@@ -37,3 +37,16 @@ async def test_the_card_title_and_the_candidates_show_where_long_ids_differ(odd_
             assert len(others) >= 3, text  # the record's own, and its candidates', told apart
             await press(pilot, "escape")
         app = review_app(odd_project)
+
+
+def test_docket_next_cuts_a_long_id_in_its_middle(odd_project, capsys) -> None:
+    # each id wider than 70 cells was cut at its end: 'L-xxxx…' on every line of the list
+    from docket.tui.cli import main
+
+    assert main(["next", str(odd_project), "--reviewer", "ann", "-n", "12"]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    ids = [line.strip() for line in lines if line.strip().startswith(("L-", "R-"))]
+    assert len(ids) == 24 and all(len(line) <= 80 for line in lines)
+    assert {i[-7:] for i in ids} == {f"{n:07d}" for n in range(6)}  # every end in sight
+    assert all("…" in i and i.startswith(("L-xxx", "R-xxx")) for i in ids)
+    assert lines[-1].startswith("(an id with … in it is cut to fit")

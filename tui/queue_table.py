@@ -4,8 +4,9 @@ The id columns are as wide as the ids listed, not a fixed 22 cells, so short ids
 reason room. Ids too long for one row (two UUIDs and a reason take 97 cells) put the right id
 under the left one instead; ids too long for that (the left id beside the pair id, probability
 and reason leaves it about 39 cells) each take a line of their own under their pair's row.
-An id is cut only where it is wider than a whole line less the indent, with an ellipsis and a
-last line saying that ``--json`` lists every id whole, since ids are what a reviewer copies.
+An id is cut only where it is wider than a whole line less the indent, in its middle (its
+start and its end kept, where long ids differ), with an ellipsis and a last line saying
+that ``--json`` lists every id whole, since ids are what a reviewer copies.
 """
 
 from __future__ import annotations
@@ -23,7 +24,7 @@ WIDTH = 80  # a terminal's width by default, and what a pasted listing keeps
 PAIR, PROBABILITY = 8, 11  # pair ids up to 99,999,999; "probability" is the widest cell
 GAP = "  "
 INDENT = " " * (PAIR + len(GAP))  # ids under their pair's row start under the left id column
-CUT_NOTE = "(an id ending in … is cut to fit; docket next --json lists every id whole)"
+CUT_NOTE = "(an id with … in it is cut to fit; docket next --json lists every id whole)"
 
 
 def _row(pair: object, left: str | None, probability: str, why: str, left_w: int) -> str:
@@ -32,11 +33,16 @@ def _row(pair: object, left: str | None, probability: str, why: str, left_w: int
 
 
 def _fitted(value: str, room: int) -> tuple[str, bool]:
-    """``shown(value)`` whole if it fits ``room`` cells, else cut to them with an ellipsis."""
+    """``shown(value)`` whole if it fits ``room`` cells, else cut to them in the middle: ids of
+    200 characters that differ at their end, cut there, were listed all alike."""
     text = shown(value)
     if cell_len(text) <= room:
         return text, False
-    return set_cell_size(text, room - 1).rstrip() + "…", True
+    head = set_cell_size(text, room // 2).rstrip()
+    back = set_cell_size(text[::-1], room - 1 - cell_len(head))[::-1]
+    while cell_len(back) and cell_len(head) + 1 + cell_len(back) > room:  # a wide character
+        back = back[1:]
+    return head + "…" + back.lstrip(), True
 
 
 def queue_lines(items: Sequence[QueueItem], width: int = WIDTH) -> list[str]:
