@@ -11,6 +11,7 @@ from .matching.model import EM_ROUNDS
 from .reviewing import gold, missed
 from .storage import store
 from .storage.project_file import ProjectFile
+from .wording import many
 
 CAUTION = ("Records may be personal data: keep the project file private (it is created readable "
            "by you alone), mask what reviewers need not see, and let people review before any "
@@ -96,7 +97,8 @@ def one_to_one_suggestion(meta: dict, labels: int) -> str | None:
         return None
     return (f"both tables look free of duplicates (only {hint['left_repeated']:.1%} and "
             f"{hint['right_repeated']:.1%} of their records copy another exactly), yet "
-            f"{hint['several']:,} records have more than one predicted match: a build with "
+            f"{many(hint['several'], 'record has', 'records have')} more than one predicted "
+            "match: a build with "
             "--one-to-one would keep only pairs that are each other's best")
 
 

@@ -71,6 +71,9 @@ def test_stratum_without_labels_is_left_out_and_named() -> None:
     e = estimate_at(s, 0.5)
     assert e.n_pairs == 10
     assert "stratum lo (100 pairs) has no labels" in " ".join(design_notes(s, 0.5))
+    one = AuditSample([0.9, 0.7], [1, 0], ["hi", "hi"], [0.2, 0.2],
+                      stratum_sizes={"hi": 10, "lo": 1}, drawn={"hi": 2, "lo": 1})
+    assert "stratum lo (1 pair) has no labels" in " ".join(design_notes(one, 0.5))  # '1 pairs'
 
 
 def test_note_bounds_matches_that_may_hide_where_none_was_labelled() -> None:

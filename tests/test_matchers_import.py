@@ -74,6 +74,9 @@ def test_pairs_outside_the_candidates_are_counted_and_reported(project: Project,
     assert f"{len(outside)} rows name pairs outside the candidate pairs" in out
     with Project.open(project.path, readonly=True) as p:
         assert catalogue.matchers(p.connection)[0].outside == len(outside) == 3
+    rows[4:6].to_csv(path, index=False)  # one outside row: it was "1 rows name pairs"
+    assert main(["matchers", str(project.path), "import", str(path), "--name", "one"]) == 0
+    assert "  1 row names a pair outside the candidate pairs" in capsys.readouterr().out
 
 
 def _digest(path: Path) -> str:

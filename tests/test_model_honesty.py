@@ -17,6 +17,7 @@ from docket.core.matching.decision_rule import one_to_one_hint
 from docket.core.matching.explain import LogOddsTable, factor_text, odds_text, probability_of
 from docket.core.matching.model import monotone_m
 from docket.core.ordering.queue import diversified
+from docket.core.report import one_to_one_suggestion
 from docket.core.storage.refit import audit_scores
 from tests.conftest import SAMPLE, sample_spec
 from tests.quality import load_truth
@@ -199,6 +200,10 @@ def test_one_to_one_is_suggested_only_for_clean_tables() -> None:
     assert one_to_one_hint(clean, clean, li, ri, yes).several == 1  # left record 0
     assert not one_to_one_hint(doubled, clean, li, ri, yes).suggest
     assert not one_to_one_hint(clean, clean, li[1:], ri[1:], yes[1:]).suggest
+    hint = one_to_one_hint(clean, clean, li, ri, yes)
+    said = one_to_one_suggestion({"one_to_one_hint": {
+        "suggest": True, "several": hint.several, "left_repeated": 0.0, "right_repeated": 0.0}}, 0)
+    assert said is not None and "yet 1 record has more than one predicted match" in said
 
 
 @pytest.mark.parametrize("seed", [0, 1])

@@ -140,7 +140,8 @@ def render(action: str, out: Any) -> list[str]:
                          f"{m['absent']:,} absent (count as predicted non-matches)")
             if m["outside"]:
                 shown = ", ".join(f"{plain(a)}|{plain(b)}" for a, b in m["outside_examples"])
-                lines.append(f"  {m['outside']:,} rows name pairs outside the candidate pairs "
+                lines.append(f"  {many(m['outside'], 'row names a pair', 'rows name pairs')} "
+                             "outside the candidate pairs "
                              f"(not stored, no audit stratum holds them), e.g. {shown}")
         return lines
     if action == "queue":

@@ -6,6 +6,7 @@ reader can tell a figure resting on the labels from one resting on an allowance.
 
 from __future__ import annotations
 
+from ..wording import many
 from .audit_sample import AuditSample
 from .intervals import clopper_pearson
 
@@ -22,7 +23,7 @@ def design_notes(sample: AuditSample, threshold: float, confidence: float = 0.95
     missing = [h for h, n in sample.stratum_sizes.items() if n and h not in labelled]
     if missing:
         left_out = sum(sample.stratum_sizes[h] for h in missing)
-        notes.append(f"{_strata(missing)} ({left_out:,} pairs) "
+        notes.append(f"{_strata(missing)} ({many(left_out, 'pair')}) "
                      + ("has no labels and is" if len(missing) == 1 else "have no labels and are")
                      + " left out")
     held = sample.held_counts()
