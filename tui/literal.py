@@ -121,12 +121,12 @@ def middle_cut(text: Text, width: int, mark_style: StyleType = "") -> Text:
     if text.cell_len <= width:
         return text
     keep = max(1, width - 1)
-    head = _fill(text.plain, (keep + 1) // 2)
-    tail = _fill(text.plain[::-1], keep // 2)
+    head = fill(text.plain, (keep + 1) // 2)
+    tail = fill(text.plain[::-1], keep // 2)
     return Text.assemble(text[:head], ("…", mark_style), text[len(text.plain) - tail:])
 
 
-def _fill(chars: str, cells: int) -> int:
+def fill(chars: str, cells: int) -> int:
     """How many of ``chars``, from the start, fill at most ``cells`` cells."""
     used = n = 0
     for ch in chars:

@@ -65,8 +65,24 @@ def shorten(text: Text, width: int, mark_style: str | Style = "") -> Text:
     front, back = (lead.end() if lead else 0), (cut.start() if cut else len(plain))
     room = width - cell_len(plain[:front]) - cell_len(plain[back:])
     if lead or cut:
-        body = shorten(text[front:back], room if room >= MIN_BODY else width, mark_style)
-        return Text.assemble(text[:front], body, text[back:]) if room >= MIN_BODY else body
+        # The part shown of a long value ends (or starts) where the marker is, not where the
+        # value does: its middle cut, 'lor…m … [+4,351 characters]' showed its 600th
+        # character as if it were the last. It is cut on the marker's side instead.
+        body = text[front:back]
+        if room >= MIN_BODY:
+            inner, before, after = room, text[:front], text[back:]
+        else:  # no room for the markers: an ellipsis stands where each was
+            inner = width - bool(lead) - bool(cut)
+            before = Text("…", mark_style) if lead else Text()
+            after = Text("…", mark_style) if cut else Text()
+        from_end = bool(lead) and not cut  # only the start is left out: keep the end
+        n = literal.fill(body.plain[::-1] if from_end else body.plain, inner)
+        kept = body[len(body.plain) - n:] if from_end else body[:n]
+        if from_end:
+            kept.left_crop(len(kept.plain) - len(kept.plain.lstrip(" ")))
+        else:
+            kept.rstrip()  # 'lorem  … [+4,351': the marker brings its own space
+        return Text.assemble(before, kept, after)
     return literal.middle_cut(text, width, mark_style)
 
 
