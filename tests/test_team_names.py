@@ -63,7 +63,8 @@ def test_a_name_in_another_case_is_refused_by_every_command_naming_the_known_one
                  ["reviewers", str(tiny), "add", "ana", "--role", "adjudicator"]):
         assert run(argv) == 2, argv
         err = capsys.readouterr().err.strip()
-        assert "differs only in letter case from 'Ana'" in err and "use 'Ana'" in err, err
+        assert "differs only in letter case or accents from 'Ana'" in err, err
+        assert "use 'Ana'" in err, err
         assert "\n" not in err and "Traceback" not in err
     assert tiny.read_bytes() == before
     with Project.open(tiny) as p:
@@ -72,6 +73,24 @@ def test_a_name_in_another_case_is_refused_by_every_command_naming_the_known_one
         with pytest.raises(DocketError, match="'Ana'"):
             make_app(tiny, "ana")
     assert _names(tiny) == ["Ana"]
+
+
+def test_a_name_with_other_accents_is_refused_as_the_known_one(tiny: Path, tmp_path: Path,
+                                                              capsys) -> None:
+    # 'inés' beside 'ines' became a second reviewer: one person's labels on an overlap pair
+    # then counted as two reviewers agreeing
+    labels = tmp_path / "labels.csv"
+    labels.write_text(f"pair_id,label\n{pair_ids(tiny)[0]},match\n", encoding="utf-8")
+    assert run(["label", str(tiny), "--reviewer", "ines", "--from", str(labels)]) == 0
+    capsys.readouterr()
+    before = tiny.read_bytes()
+    for name in ("inés", "Inès", "INES"):
+        assert run(["label", str(tiny), "--reviewer", name, "--from", str(labels)]) == 2
+        err = capsys.readouterr().err.strip()
+        assert f"reviewer '{name}' differs only in letter case or accents from 'ines'" in err
+    assert tiny.read_bytes() == before
+    assert run(["reviewers", str(tiny), "add", "inez"]) == 0  # another letter: another name
+    assert _names(tiny) == ["ines", "inez"]
 
 
 def test_names_in_either_unicode_form_are_one_reviewer(tiny: Path) -> None:

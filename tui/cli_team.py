@@ -145,8 +145,8 @@ def merge(args: argparse.Namespace) -> int:
     if result.new_reviewers:
         print("new reviewers: " + ", ".join(result.new_reviewers))
     for name, other in result.alike_names:
-        print(f"note: {name} (from a copy) and {other} differ only in letter case or in how "
-              "their accents are encoded, and count as two reviewers")
+        print(f"note: {name} (from a copy) and {other} differ only in letter case or "
+              "accents, and count as two reviewers")
     for name in result.unconfirmed_adjudicators:
         print(f"note: {name} adjudicated in a copy but is not an adjudicator here; confirm with "
               f"'docket reviewers {args.project} add {name} --role adjudicator'")

@@ -61,12 +61,14 @@ def plain_name(name: str, how: str = "pass --reviewer NAME") -> str:
 
 
 def _folded(name: str) -> str:
-    return unicodedata.normalize("NFC", unicodedata.normalize("NFC", name).casefold())
+    # letter case and accents aside: 'inés' typed on one keyboard, 'ines' on another
+    bare = unicodedata.normalize("NFD", name.casefold())
+    return unicodedata.normalize("NFC", "".join(c for c in bare if not unicodedata.combining(c)))
 
 
 def alike(name: str, known: list[str]) -> str | None:
-    """The first of ``known`` (another name) that ``name`` equals but for letter case or
-    Unicode form."""
+    """The first of ``known`` (another name) that ``name`` equals but for letter case,
+    accents or Unicode form."""
     folded = _folded(name)
     return next((k for k in known if k != name and _folded(k) == folded), None)
 
@@ -77,7 +79,8 @@ MAX_NAME = 100  # characters, for a new name; names kept already stay usable
 def as_kept(conn: sqlite3.Connection, name: str) -> str:
     """``name`` as the project keeps it: a known name differing only in Unicode form (a file
     written before names were normalised) is that name; a new name equal to a known one but
-    for letter case is refused, since it is almost surely the same person typed otherwise.
+    for letter case or accents is refused, since it is almost surely the same person typed
+    otherwise (kept apart, one person's two names count as two reviewers of an overlap pair).
     A file already holding both spellings keeps working: an exact name is always taken. A new
     name comes back in NFC."""
     if conn.execute("SELECT 1 FROM reviewers WHERE name = ?", (name,)).fetchone():
@@ -89,9 +92,9 @@ def as_kept(conn: sqlite3.Connection, name: str) -> str:
         return same[0]
     other = alike(name, known)
     if other is not None:
-        raise DocketError(f"reviewer {name!r} differs only in letter case from {other!r}, "
-                          f"who is in this project already; use {other!r}, or a name "
-                          "that differs in more than case")
+        raise DocketError(f"reviewer {name!r} differs only in letter case or accents from "
+                          f"{other!r}, who is in this project already; use {other!r}, or a "
+                          "name that differs in more than these")
     return short(name)
 
 
