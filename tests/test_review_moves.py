@@ -164,3 +164,34 @@ async def test_found_pairs_line_up_and_the_heading_says_more_may_match(review_sa
         await press(pilot, "slash", *"example.org", "enter")
         heading = app.screen.query_one(OptionList)._options[0].prompt.plain
         assert heading.endswith("(masked columns are never searched)")
+
+
+@pilot_test
+async def test_a_slow_search_leaves_the_screen_answering(review_sample, review_app):
+    # find searched on the main thread: text no index finds is looked for in every value
+    # (0.16 s over 200,000 records of four short fields, longer over long text), and until it
+    # was done no key, not even Escape, was read
+    import threading
+
+    app = review_app(review_sample)
+    release, searched = threading.Event(), []
+
+    def slow_find(text, limit, skip):
+        searched.append(threading.current_thread() is not threading.main_thread())
+        release.wait(timeout=30)  # held until the test has pressed its keys
+        return []
+
+    app.find = slow_find
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await press(pilot, "slash", *"zzzqqq")
+        await pilot.press("enter")
+        await pilot.pause()
+        heading = app.screen.query_one(OptionList)._options[0].prompt.plain
+        assert heading == "searching for ‘zzzqqq’ …"
+        await pilot.press("escape")  # read while the search still runs
+        await pilot.pause()
+        assert not isinstance(app.screen, PairPicker)
+        release.set()
+        await settle(pilot)
+    assert searched == [True]  # in a worker thread

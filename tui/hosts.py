@@ -6,7 +6,7 @@ the screens import each other in one direction only.
 
 from __future__ import annotations
 
-from collections.abc import Callable
+from collections.abc import Callable, Collection
 from contextlib import AbstractContextManager
 from dataclasses import dataclass
 from typing import Any, Protocol
@@ -56,6 +56,8 @@ class ReviewHost(Host, Protocol):
     def recount(self, counted_at: int) -> Recount: ...
 
     def refit(self, counted_at: int) -> Recount: ...
+
+    def find(self, text: str, limit: int, skip: Collection[str]) -> list[int]: ...
 
 
 class TeamHost(Host, Protocol):

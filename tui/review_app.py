@@ -11,7 +11,7 @@ import contextlib
 import gc
 import threading
 import time
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Collection, Sequence
 from pathlib import Path
 
 from textual.binding import Binding
@@ -84,6 +84,10 @@ class ReviewApp(OneToastEach):
         """Worker thread: this reviewer's decided and remaining pairs, counted in full."""
         decided, remaining = self.background().progress(self.reviewer)
         return Recount(decided, remaining, counted_at)
+
+    def find(self, text: str, limit: int, skip: Collection[str]) -> list[int]:
+        """Worker thread: find's search, on the second connection."""
+        return self.background().find(text, limit, skip)
 
     def refit(self, counted_at: int) -> Recount:
         """Worker thread: refit the model and re-rank the queue, then count again."""

@@ -58,7 +58,8 @@ class ReviewMoves:
     def action_find(self) -> None:
         app = self.review_app
         self.app.push_screen(PairPicker(app.project, app.reviewer, app.mask,
-                                        title="find a pair"), self._open_aside)
+                                        title="find a pair", finder=app.find),
+                             self._open_aside)
 
     def action_candidates(self) -> None:
         app = self.review_app
