@@ -26,11 +26,13 @@ class ReportVerbs(ProjectFile):
     # -- evaluation --------------------------------------------------------------------------
     def evaluate(self, thresholds: Sequence[float] | None = None,
                  target_precision: float | None = None,
-                 target_recall: float | None = None) -> Evaluation:
-        """The model judged on the audit slice (see ``quality.evaluate.evaluate``)."""
+                 target_recall: float | None = None, scores: pd.Series | None = None
+                 ) -> Evaluation:
+        """The model judged on the audit slice (see ``quality.evaluate.evaluate``); ``scores``
+        from ``model_scores``, when the caller has them already."""
         from .quality.evaluate import evaluate
         return Evaluation.from_dict(evaluate(self, thresholds, target_precision,
-                                             target_recall))
+                                             target_recall, scores=scores))
 
     def evaluate_predictions(self, path: str | Path, threshold: float | None = None,
                              thresholds: Sequence[float] | None = None,

@@ -164,8 +164,9 @@ def _report(project: ProjectFile, scores: pd.Series, threshold: float,
 
 def evaluate(project: ProjectFile, thresholds: Sequence[float] | None = None,
              target_precision: float | None = None, target_recall: float | None = None,
-             confidence: float = 0.95) -> dict[str, Any]:
-    """The project's model judged on the audit slice: a JSON-ready dict.
+             confidence: float = 0.95, scores: pd.Series | None = None) -> dict[str, Any]:
+    """The project's model judged on the audit slice: a JSON-ready dict. ``scores`` (from
+    ``model_scores``) spares reading every pair again for a second evaluation.
 
     Keys: ``estimates`` (design-based precision, recall and F1 per threshold, each interval
     naming its method), ``at_threshold`` (the project threshold's row), ``naive`` and
@@ -173,7 +174,7 @@ def evaluate(project: ProjectFile, thresholds: Sequence[float] | None = None,
     target precision or recall, else None), ``best_f1``, ``scope`` (recall is within the
     candidate pairs; the blocking rules' reach), ``audit``, ``methods`` and ``model``.
     """
-    scores = model_scores(project)
+    scores = model_scores(project) if scores is None else scores
     out = _report(project, scores, project.threshold, thresholds, target_precision,
                   target_recall, confidence)
     one = bool(project.meta.get("one_to_one"))

@@ -33,15 +33,15 @@ def load_quality(project: Project) -> QualityData:
     """Worker thread: evaluation, scores by gold label, clusters and conflicts."""
     report = curve = None
     problem = cluster_problem = ""
+    by_pair = project.model_scores()  # read once: every pair's score, for three uses
     try:
-        report = project.evaluate()
-        curve = project.evaluate(thresholds=CURVE)
+        report = project.evaluate(scores=by_pair)
+        curve = project.evaluate(thresholds=CURVE, scores=by_pair)
     except DocketError as exc:
         problem = str(exc)
     except (ValueError, ArithmeticError) as exc:  # a figure the estimator could not form
         problem = f"the estimates could not be worked out ({exc})"
     scores: dict[str, list[float]] = {"match": [], "non-match": []}
-    by_pair = project.model_scores()
     for g in project.gold_labels():
         scores.setdefault(g.label, []).append(float(by_pair.get(g.pair_id, 0.0)))
     found: tuple[ClusterConflict, ...] = ()
