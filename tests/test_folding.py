@@ -109,3 +109,17 @@ def test_new_folds_its_notes_and_caution_on_a_terminal(
     out = capsys.readouterr().out
     assert "personal data" in out and "\n  " in out.split("note: Records", 1)[1]
     assert max(len(line) for line in out.splitlines()) <= 80
+
+
+def test_wide_characters_fold_by_their_cells() -> None:
+    # folded by its count of characters, a line of CJK column names ran to 104 cells of an
+    # 80-column terminal, which then cut it mid-word again
+    from rich.cells import cell_len
+
+    line = "fields compared: " + ", ".join(f"東京都新宿区{i} (text)" for i in range(12))
+    out = fold(line, 80).splitlines()
+    assert max(cell_len(x) for x in out) <= 80 and len(out) == 4
+    assert _words("\n".join(out)) == _words(line)
+    assert all(x.startswith("  ") for x in out[1:])  # under the text, as any other line
+    row = "  東京都新宿区西新宿二丁目東京都      498 pairs   x  y"  # a figure row: at its gaps
+    assert [cell_len(x) for x in fold(row, 40).splitlines()] == [32, 18]

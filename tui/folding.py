@@ -5,7 +5,9 @@ characters; an 80-column terminal cut them mid-word ("no / t refit yet"), the re
 at the left edge under the labels. On a terminal each such line now continues under the start
 of its own text; a row of figures (two or more gaps of spaces, as a table's) folds only at
 its gaps, so that no figure is cut in two. Piped or redirected output is not folded: a line
-stays one line for grep.
+stays one line for grep. Widths are terminal cells, as printed (``characters.visible``): a
+CJK character takes two, so a line of them folded by its count of characters ran to 104
+cells of an 80-column terminal.
 """
 
 from __future__ import annotations
@@ -13,10 +15,18 @@ from __future__ import annotations
 import re
 import shutil
 import sys
-import textwrap
+
+from rich.cells import cell_len
+
+from .characters import visible
 
 GAP = re.compile(r" {2,}")
 LABEL_CELLS = 24  # text before one gap up to this wide is a label ("model        ...")
+
+
+def cells(text: str) -> int:
+    """The terminal cells ``text`` takes as printed (its stand-ins included)."""
+    return cell_len(visible(text))
 
 
 def _hang(line: str) -> int | None:
@@ -26,8 +36,8 @@ def _hang(line: str) -> int | None:
     gaps = list(GAP.finditer(line, lead))
     if len(gaps) >= 2:
         return None
-    if gaps and gaps[0].start() - lead <= LABEL_CELLS:
-        return gaps[0].end()
+    if gaps and cells(line[lead:gaps[0].start()]) <= LABEL_CELLS:
+        return cells(line[:gaps[0].end()])
     return lead + 2
 
 
@@ -35,7 +45,7 @@ def _second(line: str) -> int:
     """The column of a figure row's second figure, where its rest goes on."""
     lead = len(line) - len(line.lstrip(" "))
     gap = GAP.search(line, lead)
-    return gap.end() if gap else lead + 2
+    return cells(line[:gap.end()]) if gap else lead + 2
 
 
 def _at_gaps(line: str, width: int, hang: int) -> list[str]:
@@ -45,7 +55,7 @@ def _at_gaps(line: str, width: int, hang: int) -> list[str]:
     parts = re.split(r"( {2,})", line[lead:])  # figure, gap, figure, gap, ...
     lines, now = [], " " * lead + parts[0]
     for gap, part in zip(parts[1::2], parts[2::2], strict=True):
-        if len(now) + len(gap) + len(part) <= width:
+        if cells(now) + len(gap) + cells(part) <= width:
             now += gap + part  # the gap as written: a table's columns stay lined up
         else:
             lines.append(now)
@@ -74,17 +84,33 @@ def fold(text: str, width: int) -> str:
                 j += 1
             hang = _rows_hang(lines[i:j], width)
             for row in lines[i:j]:
-                out += [row] if len(row) <= width else _at_gaps(row, width, hang)
+                out += [row] if cells(row) <= width else _at_gaps(row, width, hang)
             i = j
             continue
         hang = _hang(line) or 0
-        if len(line) <= width or hang > width // 2:
+        if cells(line) <= width or hang > width // 2:
             out.append(line)
         else:
-            out += textwrap.wrap(line, width, subsequent_indent=" " * hang,
-                                 break_long_words=False, break_on_hyphens=False)
+            out += _words(line, width, hang)
         i += 1
     return "\n".join(out)
+
+
+def _words(line: str, width: int, hang: int) -> list[str]:
+    """``line`` folded at its spaces into lines of at most ``width`` cells (a word wider than
+    that stays whole on a line of its own), the second and later ``hang`` cells in."""
+    lead = len(line) - len(line.lstrip(" "))
+    parts = re.split(r"( +)", line[lead:])  # word, spaces, word, ...
+    lines, now = [], " " * lead + parts[0]
+    for space, word in zip(parts[1::2], parts[2::2], strict=True):
+        if not word:  # spaces that end the line
+            continue
+        if cells(now) + len(space) + cells(word) <= width:
+            now += space + word
+        else:
+            lines.append(now)
+            now = " " * hang + word
+    return [*lines, now]
 
 
 def width() -> int | None:
