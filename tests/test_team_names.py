@@ -4,6 +4,7 @@ case refused naming the known one, and an older file's names kept as they were s
 
 from __future__ import annotations
 
+import shlex
 import sqlite3
 import unicodedata
 from pathlib import Path
@@ -143,3 +144,29 @@ def test_next_without_claim_reads_the_name_as_the_project_keeps_it(tiny: Path, c
             p.next_pairs(NFC.upper(), 1)
     assert run(["next", str(tiny), "--reviewer", "JOSÉ"]) == 2
     assert "letter case" in capsys.readouterr().err
+
+
+def test_a_new_name_one_slip_from_a_known_one_is_added_on_purpose_first(
+        tiny: Path, tmp_path: Path, capsys) -> None:
+    # 'ins' for 'ines' became a reviewer of its own: the same person's labels on an overlap
+    # pair counted as two reviewers agreeing
+    labels = tmp_path / "labels.csv"
+    labels.write_text(f"pair_id,label\n{pair_ids(tiny)[0]},match\n", encoding="utf-8")
+    assert run(["label", str(tiny), "--reviewer", "ines", "--from", str(labels)]) == 0
+    capsys.readouterr()
+    before = tiny.read_bytes()
+    for name, argv in (("ins", ["label", str(tiny), "--reviewer", "ins", "--from", str(labels)]),
+                       ("inse", ["next", str(tiny), "--reviewer", "inse"]),
+                       ("in es", ["next", str(tiny), "--reviewer", "in es", "--claim"])):
+        assert run(argv) == 2, argv
+        err = capsys.readouterr().err.strip()
+        assert (f"reviewer '{name}' is new to this project, and one character from 'ines', "
+                "who is in it already: if that is you, use 'ines'; if another person, add "
+                f"them first with 'docket reviewers {tiny} add {shlex.quote(name)}'") in err, err
+    assert tiny.read_bytes() == before
+    # named on purpose, the person works under that name; short names are often two people
+    assert run(["reviewers", str(tiny), "add", "ins"]) == 0
+    assert run(["label", str(tiny), "--reviewer", "ins", "--from", str(labels)]) == 0
+    assert run(["label", str(tiny), "--reviewer", "lee", "--from", str(labels)]) == 0
+    assert run(["label", str(tiny), "--reviewer", "leo", "--from", str(labels)]) == 0
+    assert _names(tiny) == ["ines", "ins", "lee", "leo"]

@@ -72,7 +72,7 @@ def add_reviewer(project: ProjectFile, name: str, role: str = "reviewer",
         raise DocketError(f"unknown role '{role}'; use reviewer or adjudicator")
     by = roles.short(clean_name(granted_by)) if granted_by.strip() else ""
     with project.transaction() as conn:
-        name = roles.as_kept(conn, name)
+        name = roles.as_kept(conn, name, added=True)
         row = conn.execute("SELECT role FROM reviewers WHERE name = ?", (name,)).fetchone()
         before = None if row is None else row[0]
         roles.register(conn, name)

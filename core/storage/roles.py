@@ -12,6 +12,7 @@ edit them, and a name is not proof of who typed it.
 from __future__ import annotations
 
 import bisect
+import shlex
 import sqlite3
 import unicodedata
 import uuid
@@ -76,13 +77,30 @@ def alike(name: str, known: list[str]) -> str | None:
 MAX_NAME = 100  # characters, for a new name; names kept already stay usable
 
 
-def as_kept(conn: sqlite3.Connection, name: str) -> str:
+def near(name: str, known: list[str]) -> str | None:
+    """The first of ``known`` one slip of the keyboard from ``name`` (a letter more, less,
+    other, or two swapped; case and accents aside), for names of four letters or more:
+    'ins' or 'inse' for 'ines'. Short names ('lee', 'leo') are often two people."""
+    from rapidfuzz.distance import OSA
+    folded = _folded(name)
+    return next((k for k in known if max(len(folded), len(_folded(k))) >= 4
+                 and OSA.distance(folded, _folded(k), score_cutoff=1) == 1), None)
+
+
+def _project_path(conn: sqlite3.Connection) -> str:
+    row = conn.execute("PRAGMA database_list").fetchone()
+    return str(row[2]) if row and row[2] else "PROJECT"
+
+
+def as_kept(conn: sqlite3.Connection, name: str, added: bool = False) -> str:
     """``name`` as the project keeps it: a known name differing only in Unicode form (a file
     written before names were normalised) is that name; a new name equal to a known one but
     for letter case or accents is refused, since it is almost surely the same person typed
     otherwise (kept apart, one person's two names count as two reviewers of an overlap pair).
     A file already holding both spellings keeps working: an exact name is always taken. A new
-    name comes back in NFC."""
+    name one slip from a known one ('ins' beside 'ines') is refused too unless ``added``
+    (``docket reviewers add``, where a person is named on purpose). A new name comes back in
+    NFC."""
     if conn.execute("SELECT 1 FROM reviewers WHERE name = ?", (name,)).fetchone():
         return name
     known = [k for (k,) in conn.execute("SELECT name FROM reviewers ORDER BY name")]
@@ -95,6 +113,13 @@ def as_kept(conn: sqlite3.Connection, name: str) -> str:
         raise DocketError(f"reviewer {name!r} differs only in letter case or accents from "
                           f"{other!r}, who is in this project already; use {other!r}, or a "
                           "name that differs in more than these")
+    slip = None if added else near(name, known)
+    if slip is not None:
+        raise DocketError(
+            f"reviewer {name!r} is new to this project, and one character from {slip!r}, who "
+            f"is in it already: if that is you, use {slip!r}; if another person, add them "
+            f"first with 'docket reviewers {shlex.quote(_project_path(conn))} add "
+            f"{shlex.quote(name)}'")
     return short(name)
 
 
