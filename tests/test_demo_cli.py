@@ -34,6 +34,15 @@ def test_demo_refuses_the_invented_second_reviewer_s_name(tmp_path: Path, capsys
     assert not (tmp_path / "d").exists()
 
 
+def test_demo_for_a_user_named_near_its_second_reviewer(tmp_path: Path, capsys) -> None:
+    # ines and the user inez are two people, added on purpose: a slip's refusal is not for them
+    assert main(["demo", "--dir", str(tmp_path), "--no-open", "--reviewer", "inez"]) == 0
+    assert "second reviewer ines: 350 labels" in capsys.readouterr().out
+    with Project.open(tmp_path / "vet-clients.docket", readonly=True) as p:
+        assert sorted(p.connection.execute("SELECT name, role FROM reviewers")) == [
+            ("ines", "reviewer"), ("inez", "adjudicator")]
+
+
 def test_demo_into_no_folder_name_is_one_line(tmp_path: Path, capsys,
                                              monkeypatch: pytest.MonkeyPatch) -> None:
     monkeypatch.chdir(tmp_path)  # --dir '' built the demo in the current folder
