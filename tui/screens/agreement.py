@@ -30,6 +30,8 @@ from .pair_detail import PairDetailScreen
 from .team_base import TeamScreen
 from .team_help import AGREEMENT
 
+ID_CELLS, MIN_ID_CELLS = 16, 10  # a record id in the disagreements, at most and at least
+MIN_NOTE_CELLS = 8
 
 class AgreementScreen(TeamScreen):
     HELP = AGREEMENT
@@ -228,10 +230,11 @@ class DisagreementsScreen(TeamScreen):
         for name in (sa, sb):
             table.add_column(literal.one_line(name, NAME_WIDTH, p.escape))
             table.add_column(Text("note", p.muted))
-        note = self._note_cells()
+        note, id_cells = self._cells()
         for r in self.rows:
-            table.add_row(Text(str(r["pair_id"])), literal.record_id(r["left_id"], 16, p.escape),
-                          literal.record_id(r["right_id"], 16, p.escape),
+            table.add_row(Text(str(r["pair_id"])),
+                          literal.record_id(r["left_id"], id_cells, p.escape),
+                          literal.record_id(r["right_id"], id_cells, p.escape),
                           Text(r["label_a"], label_style(r["label_a"], p)),
                           literal.one_line(r["note_a"] or "—", note, p.escape),
                           Text(r["label_b"], label_style(r["label_b"], p)),
@@ -239,17 +242,24 @@ class DisagreementsScreen(TeamScreen):
                           key=str(r["pair_id"]))
         table.focus()
 
-    def _note_cells(self) -> int:
-        """Each note's share of the line: at 28 cells the second reviewer's note was out of
-        sight at 80 columns, its heading cut to 'no', and at 120 notes were cut with room
-        to spare ('surname changed? the rest a…')."""
-        ids = [len(str(r[k])[:16]) for r in self.rows for k in ("left_id", "right_id")]
+    def _cells(self) -> tuple[int, int]:
+        """Each note's share of the line, and each id's: at 28 cells the second reviewer's
+        note was out of sight at 80 columns, its heading cut to 'no', and at 120 notes were
+        cut with room to spare ('surname changed? the rest a…'). Ids give up cells (16 down
+        to 10) before a note goes below 8: two 200-character ids and a 12-cell name put the
+        second note out of sight again."""
         pair = max([4, *(len(str(r["pair_id"])) for r in self.rows)])
         labels = sum(max(len("non-match"), literal.one_line(self.shown.get(n, n),
                                                             NAME_WIDTH).cell_len)
                      for n in (self.a, self.b))  # a label column is as wide as its name
-        used = pair + 2 * max([5, *ids]) + labels + 7 * 2 + 2  # cell padding, scroll bar
-        return max(8, min(48, (self.app.size.width - used) // 2))
+        widest = max([5, *(literal.record_id(str(r[k]), ID_CELLS).cell_len
+                           for r in self.rows for k in ("left_id", "right_id"))])
+        for ids in range(widest, min(widest, MIN_ID_CELLS) - 1, -1):
+            used = pair + 2 * ids + labels + 7 * 2 + 2  # cell padding, scroll bar
+            note = (self.app.size.width - used) // 2
+            if note >= MIN_NOTE_CELLS:
+                break
+        return max(MIN_NOTE_CELLS, min(48, note)), ids
 
     def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
         event.stop()

@@ -1,0 +1,41 @@
+"""The team screens on untuned data: 200-character ids, names that look like markup or are
+written right to left."""
+
+from __future__ import annotations
+
+from docket.core import Project
+from tests.fixtures_review import pilot_test, press, screen_text, settle
+from tests.test_agreement_screen import to_cell
+
+NAMES = ("[bold]bob[/]", "محمد")  # 12 cells, the widest a name column gets beside 'non-match'
+
+
+def _two_reviewers_disagree(path) -> None:
+    with Project.open(path) as p:
+        for name in NAMES:
+            p.add_reviewer(name)
+        p.add_reviewer("lead", role="adjudicator")
+        pairs = [i.pair_id for i in p.next_pairs(NAMES[0], 12)]
+        for k, pid in enumerate(pairs):
+            p.decide(pid, NAMES[0], "match", note="[red]surname[/] changed")
+            p.decide(pid, NAMES[1], "non-match" if k % 2 else "match", note="שרה\tכהן moved")
+
+
+@pilot_test
+async def test_both_notes_of_a_disagreement_are_in_sight_beside_long_ids(odd_project,
+                                                                       team_app):
+    # two 200-character ids took 16 cells each, and with a 12-cell name the notes were given
+    # 8 cells each where 3 were left: the second note was out of sight at 80 columns
+    _two_reviewers_disagree(odd_project)
+    for size in ((80, 24), (120, 40)):
+        app = team_app(odd_project, start="agreement")
+        async with app.run_test(size=size) as pilot:
+            await settle(pilot)
+            await to_cell(pilot, *NAMES)
+            await press(pilot, "enter")
+            table = app.screen.query_one("#disagree-table")
+            width = sum(col.get_render_width(table) for col in table.columns.values())
+            assert width <= table.scrollable_content_region.width, size
+            text = screen_text(app)
+            assert "[red]su" in text and "שרה\\t" in text  # literal, both in sight
+            assert "…0000" in text  # the ids' ends, where they differ
