@@ -23,7 +23,7 @@ N_RECORDS = 250_000
 N_PAIRS = 1_000_000
 
 
-def make_inputs(folder: Path, seed: int = 0) -> tuple[Path, Path, Path]:
+def make_inputs(folder: Path, seed: int = 0, n_pairs: int = N_PAIRS) -> tuple[Path, Path, Path]:
     rng = np.random.default_rng(seed)
     first = np.array(["anna", "jon", "kari", "per", "liv", "ole", "mia", "emil", "ida", "noah"])
     last = np.array([f"{a}{b}" for a in ("berg", "dahl", "lund", "moe", "vik", "strand")
@@ -43,10 +43,10 @@ def make_inputs(folder: Path, seed: int = 0) -> tuple[Path, Path, Path]:
     lp, rp = folder / "left.parquet", folder / "right.parquet"
     left.to_parquet(lp, index=False)
     right.to_parquet(rp, index=False)
-    li = rng.integers(0, N_RECORDS, N_PAIRS * 11 // 10)
-    ri = rng.integers(0, N_RECORDS, N_PAIRS * 11 // 10)
+    li = rng.integers(0, N_RECORDS, n_pairs * 11 // 10)
+    ri = rng.integers(0, N_RECORDS, n_pairs * 11 // 10)
     pairs = pd.DataFrame({"left_id": left.id.to_numpy()[li], "right_id": right.id.to_numpy()[ri]})
-    pairs = pairs.drop_duplicates().head(N_PAIRS)
+    pairs = pairs.drop_duplicates().head(n_pairs)
     pp = folder / "pairs.parquet"
     pairs.to_parquet(pp, index=False)
     return lp, rp, pp

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 import pytest
 
@@ -37,3 +38,17 @@ def test_parts_write_what_the_whole_frame_wrote(sample_project: Path, tmp_path: 
         if one_to_one:
             assert (whole["predicted"] == "match").sum() < (whole["probability"]
                                                             >= p.threshold).sum()
+
+
+def test_numbers_formatted_once_each_are_the_text_pandas_wrote() -> None:
+    from docket.core.exports.exporting import csv_text, guarded
+    rng = np.random.default_rng(9)  # seeded values, many repeated, beside awkward ones
+    awkward = [np.nan, -0.0, 0.0, np.inf, -np.inf, 1e-300, 0.1 + 0.2, 1e22, 3.0, -2.5, 5e-324]
+    values = np.concatenate([rng.choice(rng.random(40), 500), awkward])
+    frame = pd.DataFrame({"id": np.arange(values.size), "a": values, "b": values[::-1] * -7,
+                          "text": ["-1", "=x", "plain"] * (values.size // 3) + ["x"] * (
+                              values.size % 3), "small": values.astype(np.float32)})
+    for guard in (True, False):
+        before = (guarded(frame) if guard else frame).to_csv(index=False,
+                                                            lineterminator="\r\n")
+        assert csv_text(frame, guard) == before

@@ -69,8 +69,27 @@ def guarded(frame: pd.DataFrame) -> pd.DataFrame:
 
 def csv_text(frame: pd.DataFrame, guard: bool = True, header: bool = True) -> str:
     """CSV with CRLF line ends (RFC 4180), so a field holding a bare CR or LF is quoted too."""
-    return (guarded(frame) if guard else frame).to_csv(index=False, lineterminator="\r\n",
-                                                       header=header)
+    return floats_as_text(guarded(frame) if guard else frame).to_csv(
+        index=False, lineterminator="\r\n", header=header)
+
+
+def floats_as_text(frame: pd.DataFrame) -> pd.DataFrame:
+    """Each float64 column as the text pandas writes for it in a CSV (numpy's ``str`` of the
+    value, '' where missing), each distinct value formatted once. pandas formats every cell:
+    4.4 s of the 9.6 s of the scores of 1,000,000 pairs, whose probabilities are one per
+    pattern and similarities few. Distinct by their bits, so -0.0 stays '-0.0'. Called after
+    the formula guard: a negative number is no formula."""
+    out = None
+    for i, dtype in enumerate(frame.dtypes):
+        if dtype != np.float64:
+            continue
+        values = frame.iloc[:, i].to_numpy()
+        codes, uniques = pd.factorize(values.view(np.int64))
+        text = uniques.view(np.float64).astype(str).astype(object)[codes]
+        text[np.isnan(values)] = ""
+        out = frame.copy(deep=False) if out is None else out
+        out.isetitem(i, text)
+    return frame if out is None else out
 
 
 def jsonl_text(frame: pd.DataFrame) -> str:
