@@ -65,3 +65,19 @@ def test_an_action_given_before_the_project_is_said_to_go_after_it(
     assert sample_project.read_bytes() == before
     # in the order it takes the command runs, and a project named like an action still opens
     assert main(["reviewers", str(sample_project), "list"]) == 0
+
+
+def test_a_project_given_as_a_table_says_how_its_decisions_come_in(
+        sample_project: Path, tmp_path: Path, capsys) -> None:
+    # 'label P --from colleague.docket' was "unknown file type '.docket'"
+    copy = tmp_path / "colleague.docket"
+    copy.write_bytes(sample_project.read_bytes())
+    before = sample_project.read_bytes()
+    for argv in (["label", str(sample_project), "--reviewer", "ana", "--from", str(copy)],
+                 ["evaluate", str(sample_project), "--predictions", str(copy)],
+                 ["new", str(tmp_path / "n.docket"), "--left", str(copy)]):
+        code, err = run(capsys, *argv)
+        assert_one_line_error(code, err, f"{copy}: an SQLite database (a docket project?), not "
+                              "a table; decisions in a copy of this project come in with "
+                              "'docket merge PROJECT COPY'")
+    assert sample_project.read_bytes() == before and not (tmp_path / "n.docket").exists()

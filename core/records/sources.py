@@ -18,7 +18,7 @@ from ..wording import noun
 from .id_forms import check_written_alike
 from .json_tables import read_json
 from .text_tables import EncodingWarning_ as EncodingWarning_
-from .text_tables import check_names, read_delimited
+from .text_tables import check_names, is_sqlite, read_delimited
 
 # .txt: what a spreadsheet saves as "Text (Tab delimited)" or "Unicode Text" (UTF-16, tabs);
 # its separator is read from its header
@@ -60,12 +60,17 @@ def detect_format(path: Path) -> str:
     if fmt is None and path.suffix.lower() in PACKED_SUFFIXES:
         raise DocketError(f"{path}: {PACKED_SUFFIXES[path.suffix.lower()]} "
                           "(CSV, TSV, Parquet or JSON lines)")
+    if fmt is None and is_sqlite(path):  # 'label P --from colleague.docket', meaning merge
+        raise DocketError(f"{path}: an SQLite database (a docket project?), not a table; "
+                          "decisions in a copy of this project come in with 'docket merge "
+                          "PROJECT COPY'")
     if fmt is None:
         raise DocketError(
             f"{path}: unknown file type '{path.suffix or '(none)'}'; "
             "use .csv, .tsv, .txt, .parquet or .jsonl"
         )
     return fmt
+
 
 
 def _read_text(path: Path, fmt: str) -> pd.DataFrame:

@@ -49,6 +49,15 @@ PACKED = ((b"\x1f\x8b", "a gzip-compressed file; unpack it first"),
           (b"SQLite format 3\x00", "an SQLite database, not a table of records"))
 
 
+def is_sqlite(path: Path) -> bool:
+    """Whether ``path`` begins as an SQLite database does (a docket project is one)."""
+    try:
+        with path.open("rb") as f:
+            return f.read(16) == PACKED[-1][0]
+    except OSError:
+        return False
+
+
 def _packed(path: Path, head: bytes) -> str | None:
     found = next((what for magic, what in PACKED if head.startswith(magic)), None)
     if found is None and head[:3] == b"BZh" and head[4:10] == b"1AY&SY":  # "BZh9" + block mark
