@@ -39,3 +39,21 @@ async def test_both_notes_of_a_disagreement_are_in_sight_beside_long_ids(odd_pro
             text = screen_text(app)
             assert "[red]su" in text and "שרה\\t" in text  # literal, both in sight
             assert "…0000" in text  # the ids' ends, where they differ
+
+
+@pilot_test
+async def test_a_conflict_lists_its_records_by_the_ends_of_their_ids(odd_project, team_app):
+    # the members were joined and cut at 40 cells: 'L-xxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxx…',
+    # the start of the first id alone
+    with Project.open(odd_project) as p:
+        p.add_reviewer("lead", role="adjudicator")
+        rows = p.connection.execute("SELECT pair_id, left_id, right_id FROM pairs").fetchall()
+        for pid, left, right in rows:  # the pairs form one ring: one non-match in it
+            wrong = (left[-1], right[-1]) == ("2", "3")
+            p.decide(pid, "ann", "non-match" if wrong else "match")
+    app = team_app(odd_project, start="quality")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await press(pilot, "3")
+        row = next(line for line in screen_text(app).splitlines() if "12: " in line)
+        assert "…-0000000, " in row and "…-0000001" in row, row

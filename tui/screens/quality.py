@@ -211,9 +211,11 @@ class QualityScreen(TeamScreen):
                       "held together by gold matches (pairs)"):
             table.add_column(Text(label, p.muted))
         for c in data.conflicts:
-            members = Text(f"{len(c.members)}: ")
-            members.append_text(literal.one_line(", ".join(rid for _, rid in c.members), 40,
-                                                 p.escape))
+            members = Text(f"{len(c.members)}: ", no_wrap=True)
+            for k, (_, rid) in enumerate(c.members[:4]):  # each id's end kept: long ids
+                members.append(", " if k else "")          # differ there
+                members.append_text(literal.record_id(rid, 18, p.escape))
+            members.truncate(44, overflow="ellipsis")
             table.add_row(Text(str(c.cluster)), members,
                           Text(", ".join(map(str, c.non_match_pairs))),
                           Text(", ".join(map(str, c.match_pairs[:12])) +
