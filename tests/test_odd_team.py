@@ -57,3 +57,18 @@ async def test_a_conflict_lists_its_records_by_the_ends_of_their_ids(odd_project
         await press(pilot, "3")
         row = next(line for line in screen_text(app).splitlines() if "12: " in line)
         assert "…-0000000, " in row and "…-0000001" in row, row
+
+
+def test_reviewers_list_keeps_80_columns_with_a_long_name(odd_project, capsys) -> None:
+    # a 12-cell name made each row 85 columns: the terminal wrapped it mid-date
+    from rich.cells import cell_len
+
+    from docket.tui.cli import main
+
+    _two_reviewers_disagree(odd_project)
+    assert main(["reviewers", str(odd_project), "list"]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    assert max(cell_len(x) for x in lines) <= 80, lines
+    at = lines.index(NAMES[0])  # on a line of its own, its figures under it
+    assert lines[at + 1].split()[:2] == ["reviewer", "12"]
+    assert any(x.startswith("محمد ") and "reviewer" in x for x in lines)  # short: one line

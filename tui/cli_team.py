@@ -89,17 +89,25 @@ def reviewers(args: argparse.Namespace) -> int:
     if not people:
         print("no reviewers yet; add one with 'docket reviewers PROJECT add NAME'")
         return 0
-    # the name column as wide as the longest name (up to 18, as before): 18 cells for 'ines'
-    # and 'lee' made each row 89 columns, past an 80-column terminal
+    # the name column as wide as the longest name that leaves the row within 80 columns (8
+    # cells); a longer name goes on a line of its own, its figures under it: 18 cells for
+    # 'ines' made each row 89 columns, and a 12-cell name wrapped its row mid-date
     from rich.cells import cell_len
-    wide = min(18, max(4, *(cell_len(shown(r["name"])) for r in people)))
+    wide = min(80 - REVIEWER_ROW, max(4, *(cell_len(shown(r["name"])) for r in people)))
     print(f"{'name':<{wide}}  {'role':<12} {'labels':>7} {'holds':>6} {'adjudicated':>11} "
           f"{'time':>9}  added")
     for r in people:
-        print(f"{padded(r['name'], wide)}  {r['role']:<12} {r['labels']:>7,} {r['holds']:>6,} "
+        name = shown(r["name"])
+        if cell_len(name) > wide:
+            print(name)
+            name = ""
+        print(f"{padded(name, wide)}  {r['role']:<12} {r['labels']:>7,} {r['holds']:>6,} "
               f"{r['adjudications']:>11,} {_duration(r['seconds']):>9}  "
               f"{(r['added_at'] or '—')[:19].replace('T', ' ')}")
     return 0
+
+
+REVIEWER_ROW = 2 + 12 + 1 + 7 + 1 + 6 + 1 + 11 + 1 + 9 + 2 + 19  # a row of the list less its name
 
 
 # -- agreement ---------------------------------------------------------------------------
