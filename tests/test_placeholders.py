@@ -30,6 +30,27 @@ def test_what_does_not(value: str) -> None:
     assert not placeholders.looks_like_placeholder(value)
 
 
+@pytest.mark.parametrize("value", ["Москва", "Ελένη", "東京都", "محمد عبد الله", "שרה כהן",
+                                   "김민준", "Иванов 0", "東京都9"])
+def test_a_value_in_another_script_is_a_value(value: str) -> None:
+    # letters were a-z alone: each of these was 'punctuation alone', a placeholder
+    assert not placeholders.looks_like_placeholder(value)
+
+
+def test_a_frequent_town_in_cyrillic_is_compared(tmp_path: Path, capsys) -> None:
+    # 'Москва' in a third of the column was read as missing, and a column of towns written
+    # in Cyrillic alone was left out as 'only placeholders'
+    towns = ["Москва", "Москва", "Москва", "Тверь", "Казань", "Омск"] * 5
+    frame = pd.DataFrame({"id": [f"r{i}" for i in range(30)], "town": towns,
+                          "name": [f"Иван Петров{i}" for i in range(30)]})
+    frame.to_csv(tmp_path / "t.csv", index=False)
+    assert main(["new", str(tmp_path / "t.docket"), "--left", str(tmp_path / "t.csv"),
+                 "--id", "id", "--block", "town"]) == 0
+    assert "placeholder" not in capsys.readouterr().err
+    with Project.open(tmp_path / "t.docket") as project:
+        assert [f.name for f in project.fields] == ["town", "name"]
+
+
 def test_a_date_for_none_in_a_column_of_births() -> None:
     births = pd.Series([f"19{40 + i % 50}-0{1 + i % 9}-1{i % 10}" for i in range(190)] +
                        ["1900-01-01"] * 10)

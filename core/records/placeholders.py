@@ -25,7 +25,10 @@ WORDS = frozenset({
     "na", "nk", "nil", "none", "null", "nan", "unknown", "unk", "notknown", "notavailable",
     "notapplicable", "notgiven", "notstated", "notrecorded", "notspecified", "unspecified",
     "missing", "tbc", "tba", "tbd", "nodata", "noinfo", "undefined", "blank", "empty", "void"})
-_NOT_ALNUM = re.compile(r"[^0-9a-z]+")
+# letters and digits of any script: kept to a-z and 0-9, every Cyrillic, Greek, Arabic, Hebrew
+# or CJK value was 'punctuation alone', so a frequent one ('Москва' in a third of a column of
+# towns) was read as missing, and a column of such values was left out as all placeholders
+_NOT_ALNUM = re.compile(r"[\W_]+")
 # dates that forms and databases write for 'not known': 1 January 1900 (and the day before, a
 # spreadsheet's day 0), 1 January 1800, 31 December 9999; days since 1970-01-01
 SENTINEL_DAYS = frozenset({-25567.0, -25568.0, -62091.0, 2932896.0})
