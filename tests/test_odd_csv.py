@@ -195,6 +195,50 @@ def test_a_column_without_values_is_left_out_and_said(tmp_path: Path, capsys) ->
     assert "fields compared: name (name), email (code)" in capsys.readouterr().out
 
 
+def test_a_column_of_one_value_throughout_is_left_out_and_said(tmp_path: Path, capsys) -> None:
+    # 'country' NO in every record, 'source' naming each file: compared, each gave every pair
+    # one level, weighed x1 and shown on every card
+    names = ["Ana Berg", "Bo Lind", "Cy Dahl", "Di Ek", "Eva Sund"]
+    for side, source in (("l", "north"), ("r", "south")):
+        (tmp_path / f"{side}.csv").write_text("id,name,country,source\n" + "".join(
+            f"{k},{names[k % 5]} {k},NO,{source}\n" for k in range(25)), encoding="utf-8")
+    left, right = tmp_path / "l.csv", tmp_path / "r.csv"
+    assert main(["new", str(tmp_path / "p.docket"), "--left", str(left), "--right", str(right),
+                 "--id", "id", "--block", "*"]) == 0
+    out, err = capsys.readouterr()
+    assert "fields compared: name (name)\n" in out
+    assert err.splitlines() == [
+        f"docket: warning: column '{col}' holds one value in every record of {left} ('{a}') "
+        f"and of {right} ('{b}'), which tells no pair apart; not compared (give --field "
+        f"{col}:KIND to compare it anyway)" for col, a, b in (("country", "NO", "NO"),
+                                                           ("source", "north", "south"))]
+    assert main(["new", str(tmp_path / "q.docket"), "--left", str(left), "--right", str(right),
+                 "--id", "id", "--block", "*", "--field", "country:code"]) == 0  # asked for
+    assert "fields compared: name (name), country (code)" in capsys.readouterr().out
+    # a toy table all in Oslo keeps its town: in three records one value may be chance
+    toy = tmp_path / "toy.csv"
+    toy.write_text("id,name,town\n1,Anna,Oslo\n2,Anne,Oslo\n3,Jon,Oslo\n", encoding="utf-8")
+    assert main(["new", str(tmp_path / "t.docket"), "--left", str(toy), "--id", "id",
+                 "--block", "town"]) == 0
+    assert "town" in capsys.readouterr().out
+
+
+def test_many_columns_of_one_value_are_said_in_one_line(tmp_path: Path, capsys) -> None:
+    wide = tmp_path / "w.csv"
+    wide.write_text("id,name,a,b,c,d\n" + "".join(f"{k},Name {k % 7},x,y,z,w\n"
+                                                  for k in range(30)), encoding="utf-8")
+    assert main(["new", str(tmp_path / "p.docket"), "--left", str(wide), "--id", "id"]) == 0
+    assert capsys.readouterr().err.splitlines() == [
+        "docket: warning: 4 columns hold one value in every record, which tells no pair "
+        "apart: 'a', 'b', 'c' and 1 more; not compared (give --field COL:KIND to compare one "
+        "anyway)"]
+    same = tmp_path / "same.csv"  # nothing left to compare is one line saying why
+    same.write_text("id,name\n" + "".join(f"{k},Anna\n" for k in range(30)), encoding="utf-8")
+    code, err = run(capsys, "new", str(tmp_path / "s.docket"), "--left", str(same), "--id", "id")
+    assert_one_line_error(code, err, f"{same}: no column to compare tells records apart: "
+                          f"column 'name' holds one value in every record of {same} ('Anna')")
+
+
 @pytest.mark.parametrize("suffix", [".csv", ".jsonl", ".parquet"])
 def test_a_column_name_holding_a_nul_is_refused_by_its_position(
         suffix: str, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:

@@ -5,13 +5,13 @@ from __future__ import annotations
 import re
 import warnings
 
-import numpy as np
 import pandas as pd
 
 from ..errors import DocketError
 from ..types import KINDS, FieldSpec
 from . import normalise, placeholders
 from .chosen_columns import chosen
+from .silent_columns import one_value, silent_lines, without_values
 from .unpaired import map_advice, unpaired_warning
 from .unreadable import unreadable_warning
 
@@ -186,16 +186,21 @@ def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: st
                               f"columns are {', '.join(p[0] for p in pairs) or '(none)'}")
     fields = []
     left_out: dict[str, str] = {}  # column -> why it holds nothing to compare
+    constant: list[str] = []  # those of them holding one value throughout
     said: list[str] = []  # the placeholder warnings, said once the fields stand
     for lcol, rcol in pairs:
         kind = kinds.get(lcol)
         if kind == "skip":
             continue
         if kind is None:
-            empty = _without_values(left, right, lcol, rcol, left_name, right_name)
+            empty = without_values(left, right, lcol, rcol, left_name, right_name)
+            same = None if empty else one_value(left, right, lcol, rcol, left_name, right_name)
+            if same:
+                constant.append(lcol)
+            empty = empty or same
             if empty:
-                # every pair would be 'missing' there: a field of no evidence, whose levels
-                # the model would still weigh and the screens show on every pair
+                # every pair would be 'missing' (or at one level) there: a field of no
+                # evidence, whose levels the model would still weigh and the screens show
                 left_out[lcol] = empty
                 continue
         sides = [(left, lcol, left_name)] if right is None else [
@@ -226,17 +231,22 @@ def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: st
         if skipped and not left_out:
             raise DocketError(f"{where}: --field ...:skip leaves no column to compare (skipped: "
                               f"{', '.join(skipped)}); leave one to compare")
-        if left_out:
+        if left_out and not constant:
             raise DocketError(f"{where}: no column to compare holds values ("
                               f"{', '.join(left_out)} {'holds' if len(left_out) == 1 else 'hold'}"
                               " none); give tables with values in the columns to compare")
+        if left_out:
+            raise DocketError(f"{where}: no column to compare tells records apart: "
+                              f"{next(iter(left_out.values()))}"
+                              + (f" (and {len(left_out) - 1} more such)" if len(left_out) > 1
+                                 else "")
+                              + "; give --field COL:KIND to compare one anyway")
         advice = "name them alike or pair them with --map LEFT=RIGHT" if right is None else \
             map_advice(left, right, [str(c) for c in left.columns],
                        [str(c) for c in right.columns])
         raise DocketError(f"{where}: no columns in common to compare; {advice}")
-    for col, why in left_out.items():
-        warnings.warn(f"{why}; not compared (give --field {col}:KIND to compare it anyway)",
-                      stacklevel=2)
+    for silent in silent_lines(left_out, constant):
+        warnings.warn(silent, stacklevel=2)
     unpaired = None if right is None else \
         unpaired_warning(left, right, shared, left_name, right_name or "the right table")
     if unpaired:
@@ -266,24 +276,3 @@ def masked(frame: pd.DataFrame, fields: list[FieldSpec], side: str) -> pd.DataFr
                 out = frame.copy(deep=False)
             out[column] = placeholders.without(frame[column], f.missing)
     return out
-
-
-def _has_values(values: pd.Series) -> bool:
-    # Stops at the first value with text, which nearly always answers. The column is not
-    # copied: dropping its missing values (a new Series and index per column) and a string
-    # copy of it raised a 2 x 250,000-record build's peak memory by 50 MB.
-    column = values.to_numpy()
-    return any(str(column[i]).strip() for i in np.flatnonzero(values.notna().to_numpy()))
-
-
-def _without_values(left: pd.DataFrame, right: pd.DataFrame | None, lcol: str, rcol: str,
-                    left_name: str, right_name: str | None) -> str | None:
-    """Why a column cannot be compared for want of values, or None when both sides have some."""
-    if right is None:
-        return None if _has_values(left[lcol]) else f"{left_name}: column '{lcol}' holds no value"
-    sides = ((left, lcol, left_name), (right, rcol, right_name or "the right table"))
-    missing = [name if col == lcol else f"{name} (as '{col}')" for frame, col, name in sides
-               if not _has_values(frame[col])]
-    if not missing:
-        return None
-    return f"column '{lcol}' holds no value in {' or in '.join(missing)}"
