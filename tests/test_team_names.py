@@ -169,4 +169,7 @@ def test_a_new_name_one_slip_from_a_known_one_is_added_on_purpose_first(
     assert run(["label", str(tiny), "--reviewer", "ins", "--from", str(labels)]) == 0
     assert run(["label", str(tiny), "--reviewer", "lee", "--from", str(labels)]) == 0
     assert run(["label", str(tiny), "--reviewer", "leo", "--from", str(labels)]) == 0
-    assert _names(tiny) == ["ines", "ins", "lee", "leo"]
+    # numbered on purpose: a team's raters, a second account
+    for name in ("rater1", "rater2", "rater12", "ines2"):
+        assert run(["label", str(tiny), "--reviewer", name, "--from", str(labels)]) == 0, name
+    assert _names(tiny) == ["ines", "ines2", "ins", "lee", "leo", "rater1", "rater12", "rater2"]

@@ -80,11 +80,17 @@ MAX_NAME = 100  # characters, for a new name; names kept already stay usable
 def near(name: str, known: list[str]) -> str | None:
     """The first of ``known`` one slip of the keyboard from ``name`` (a letter more, less,
     other, or two swapped; case and accents aside), for names of four letters or more:
-    'ins' or 'inse' for 'ines'. Short names ('lee', 'leo') are often two people."""
+    'ins' or 'inse' for 'ines'. Short names ('lee', 'leo') are often two people, and names
+    that differ in their digits ('rater1', 'rater2') are numbered so on purpose."""
     from rapidfuzz.distance import OSA
     folded = _folded(name)
     return next((k for k in known if max(len(folded), len(_folded(k))) >= 4
+                 and _digits(k) == _digits(name)  # 'rater1', 'rater2': numbered on purpose
                  and OSA.distance(folded, _folded(k), score_cutoff=1) == 1), None)
+
+
+def _digits(name: str) -> str:
+    return "".join(c for c in name if c.isdigit())
 
 
 def _project_path(conn: sqlite3.Connection) -> str:
