@@ -130,6 +130,8 @@ def render(value: str | None, palette: Palette, *, differs: list[bool] | None = 
     style = base or Style()
     start = window_start(differs, len(value), cap)
     shown = value[start:start + cap]
+    if start + cap < len(value):  # cut here: the marker brings its own space
+        shown = shown.rstrip(" ")
     left_out = len(value) - start - len(shown)
     flags = (differs or [])[start:start + cap]
     hide = mask_flags(shown) if mask else None

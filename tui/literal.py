@@ -73,7 +73,8 @@ def capped(value: str, cap: int = CAP) -> tuple[str, int]:
     """The part of ``value`` that is shown, and how many characters were left out."""
     if len(value) <= cap:
         return value, 0
-    return value[:cap], len(value) - cap
+    shown = value[:cap].rstrip(" ")  # the marker brings its own space: 'lorem  … [+3,402'
+    return shown, len(value) - len(shown)
 
 
 def cut_marker(left_out: int) -> str:
