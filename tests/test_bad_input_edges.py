@@ -66,6 +66,12 @@ CASES = {
     "JSON object of records": (lambda d: write(d / "wrap.json", json.dumps(
         {"records": [{"id": 1, "name": "a"}, {"id": 2, "name": "b"}]})),
         ["wrap.json", "record 1, 'records' holds a list", "flat object"]),
+    # the reader kept 'Bo' silently, where a CSV header with a column twice is refused
+    "JSON lines with a key twice": (lambda d: write(d / "twice.jsonl", '{"id": 1, "name": "Ana"}\n'
+                                                    '{"id": 2, "name": "Ana", "name": "Bo"}\n'),
+                                    ["twice.jsonl: line 2 gives the key 'name' twice"]),
+    "JSON array with a key twice": (lambda d: write(d / "twice.json", '[{"id": 1, "id": 2}]'),
+                                    ["twice.json: an object gives the key 'id' twice"]),
     "JSON lines with a nested object": (lambda d: write(d / "nest.jsonl", '{"id": 1, "at": '
                                                         '{"town": "Oslo"}}\n{"id": 2}\n'),
                                         ["nest.jsonl", "record 1, 'at' holds an object"]),

@@ -14,6 +14,26 @@ JSON_KINDS = {int: "a number", float: "a number", str: "a string", bool: "true o
               list: "an array", type(None): "null"}
 
 
+class _Twice(Exception):
+    pass
+
+
+def _no_key_twice(pairs: list[tuple[str, object]]) -> dict[str, object]:
+    """An object as a dict, refused when it gives a key twice ({"name": "Anna", "name": "Bo"}):
+    the reader kept the last silently, where a CSV header with a column twice is refused."""
+    seen: dict[str, object] = {}
+    for key, value in pairs:
+        if key in seen:
+            raise _Twice(key)
+        seen[key] = value
+    return seen
+
+
+def _twice(path: Path, where: str, key: _Twice) -> DocketError:
+    return DocketError(f"{path}: {where} gives the key '{key}' twice, and which one is meant "
+                       "cannot be told; give each key once")
+
+
 def read_json(path: Path) -> pd.DataFrame:
     """JSON lines, or one JSON array of objects (one object per record).
 
@@ -29,7 +49,9 @@ def read_json(path: Path) -> pd.DataFrame:
     try:
         if first != "[":
             return _flat(path, pd.DataFrame(_json_lines(path, encoding), dtype=object))
-        data = json.loads(path.read_text(encoding=encoding))
+        data = json.loads(path.read_text(encoding=encoding), object_pairs_hook=_no_key_twice)
+    except _Twice as key:
+        raise _twice(path, "an object", key) from None
     except UnicodeDecodeError:
         raise DocketError(f"{path}: not {encoding} text; save it as UTF-8") from None
     except json.JSONDecodeError as exc:
@@ -52,7 +74,9 @@ def _json_lines(path: Path, encoding: str) -> list[dict[str, object]]:
             if not line.strip():
                 continue
             try:
-                value = json.loads(line)
+                value = json.loads(line, object_pairs_hook=_no_key_twice)
+            except _Twice as key:
+                raise _twice(path, f"line {n}", key) from None
             except json.JSONDecodeError as exc:
                 raise DocketError(f"{path}: line {n} is not valid JSON ({exc.msg}); give one "
                                   "JSON object per line") from None

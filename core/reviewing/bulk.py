@@ -30,7 +30,7 @@ from ..storage import decisions as log
 from ..storage.project_file import ProjectFile
 from ..types import LABELS
 from ..wording import many
-from .label_columns import check_columns, check_filled, check_json_keys
+from .label_columns import check_columns, check_filled
 from .label_pairs import check_ids_agree, ends_of_ids, ids_of_ends
 
 BATCH_ROWS = 500  # at most, per transaction
@@ -66,7 +66,6 @@ def read_rows(project: ProjectFile, path: Path, reviewer: str | None = None) -> 
     """The rows of a label file, every one checked; ``reviewer`` (whom they are for) is
     checked against a column naming reviewers."""
     frame = read_frame(path)
-    check_json_keys(path)
     frame.columns = plain_names(list(frame.columns),
                                 ("pair_id", "label", "note", "left_id", "right_id"))
     cols = set(frame.columns)

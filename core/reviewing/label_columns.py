@@ -1,4 +1,4 @@
-"""The columns of a label file that ``docket label`` does not read, and JSON keys given twice.
+"""The columns of a label file that ``docket label`` does not read.
 
 A column it does not know was dropped unsaid: a 'notes' column lost every note, and a
 'reviewer' column naming someone else had that person's labels recorded as the --reviewer's,
@@ -8,7 +8,6 @@ which makes two people one in every agreement figure.
 from __future__ import annotations
 
 import difflib
-import json
 import unicodedata
 import warnings
 from pathlib import Path
@@ -18,7 +17,6 @@ import pandas as pd
 
 from ..errors import DocketError
 from ..records.sources import row_named, row_word
-from ..records.text_tables import bom_encoding
 from ..wording import many, noun
 
 READ = ("pair_id", "label", "note", "left_id", "right_id")
@@ -79,35 +77,3 @@ def check_filled(path: Path, frame: pd.DataFrame) -> None:
         counted = " (counting the header as row 1)" if word == "row" else ""
         raise DocketError(f"{path}: {len(at):,} {word}s have no {column}: {word}s {listed}"
                           f"{counted}; {fix}; nothing was written")
-
-
-class _Twice(Exception):
-    pass
-
-
-def _no_key_twice(pairs: list[tuple[str, object]]) -> dict[str, object]:
-    seen: dict[str, object] = {}
-    for key, value in pairs:
-        if key in seen:
-            raise _Twice(key)
-        seen[key] = value
-    return seen
-
-
-def check_json_keys(path: Path) -> None:
-    """A JSON object that gives a key twice ({"label": "match", "label": "non-match"}): the
-    reader kept the last silently, where a CSV header with a column twice is refused."""
-    if path.suffix.lower() not in (".jsonl", ".ndjson", ".json"):
-        return
-    encoding = bom_encoding(path.read_bytes()[:4]) or "utf-8"
-    text = path.read_text(encoding=encoding, errors="replace").lstrip("\ufeff")
-    chunks = [text] if text.lstrip()[:1] == "[" else text.splitlines()
-    for n, chunk in enumerate(chunks, start=1):
-        try:
-            json.loads(chunk, object_pairs_hook=_no_key_twice)
-        except _Twice as twice:
-            where = "an object" if len(chunks) == 1 and chunk is text else f"line {n}"
-            raise DocketError(f"{path}: {where} gives the key '{twice}' twice, and which one "
-                              "is meant cannot be told; give each key once") from None
-        except ValueError:
-            continue  # (blank lines; anything else the reader has already refused)
