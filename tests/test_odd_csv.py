@@ -74,18 +74,21 @@ def test_a_nameless_empty_column_from_a_trailing_separator_is_left_out(
         assert [f.name for f in project.fields] == ["name", "town"]
 
 
-@pytest.mark.parametrize("name, text", [
-    ("blank.csv", _csv([(r[0], "x", *r[1:]) for r in ROWS], "\n", "id, ,name,town")),
-    ("blank.json", '[{"id": "1", "": "x", "name": "Tove"}, {"id": "2", "": null, "name": "Bo"}]'),
+@pytest.mark.parametrize("name, text, said", [
+    ("blank.csv", _csv([(r[0], "x", *r[1:]) for r in ROWS], "\n", "id, ,name,town"),
+     "column 2 has no name in the header but holds values; name it"),
+    # a JSON file has no header, and was said to ('column 2 has no name in the header')
+    ("blank.json", '[{"id": "1", "": "x", "name": "Tove"}, {"id": "2", "": null, "name": "Bo"}]',
+     'the key "" (column 2) holds values; give it a name'),
 ])
 def test_a_nameless_column_holding_values_is_refused_by_its_position(
-        name: str, text: str, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+        name: str, text: str, said: str, tmp_path: Path,
+        capsys: pytest.CaptureFixture[str]) -> None:
     left = tmp_path / name
     left.write_text(text, encoding="utf-8")
     project = tmp_path / "p.docket"
     code, err = run(capsys, "new", str(project), "--left", str(left), "--id", "id")
-    assert_one_line_error(code, err, f"{left}: column 2 has no name in the header but holds "
-                          "values", "name it")
+    assert_one_line_error(code, err, f"{left}: {said}")
     assert not project.exists()
 
 

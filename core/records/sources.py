@@ -135,8 +135,12 @@ def _without_blank_names(path: Path, frame: pd.DataFrame) -> pd.DataFrame:
         if name:
             keep.append(position - 1)
         elif _holds_values(frame.iloc[:, position - 1]):
-            raise DocketError(f"{path}: column {position} has no name in the header but holds "
-                              "values; name it, or remove the column")
+            # JSON and Parquet have keys and names, not a header
+            named = {"jsonl": f'the key "" (column {position})', "parquet":
+                     f"column {position}, named \"\","}.get(detect_format(path))
+            raise DocketError(f"{path}: {named} holds values; give it a name, or remove it"
+                              if named else f"{path}: column {position} has no name in the "
+                              "header but holds values; name it, or remove the column")
     return frame if len(keep) == frame.shape[1] else frame.iloc[:, keep]
 
 
