@@ -28,7 +28,7 @@ async def test_the_card_title_and_the_candidates_show_where_long_ids_differ(odd_
             await settle(pilot)
             card = app.screen.card
             box = app.screen.query_one("#card-box", VerticalScroll)
-            title = app.screen._title  # the title's text (border_title reads as markup)
+            title = box.title_text  # the title as text (border_title reads as markup)
             assert card.left_id[-7:] in title and card.right_id[-7:] in title, title
             assert len(title) + 6 <= box.size.width  # within the border, corners included
             await press(pilot, "c")
@@ -50,3 +50,21 @@ def test_docket_next_cuts_a_long_id_in_its_middle(odd_project, capsys) -> None:
     assert {i[-7:] for i in ids} == {f"{n:07d}" for n in range(6)}  # every end in sight
     assert all("…" in i and i.startswith(("L-xxx", "R-xxx")) for i in ids)
     assert lines[-1].startswith("(an id with … in it is cut to fit")
+
+
+@pilot_test
+async def test_the_title_follows_the_card_box_when_the_terminal_narrows(odd_project,
+                                                                        review_app):
+    # resized from 200 columns to 80 under the candidates list, the title kept its wide ids
+    # and the border cut the right one at its end: 'R-xxxxxxxxxx……'
+    app = review_app(odd_project)
+    async with app.run_test(size=(200, 50)) as pilot:
+        await settle(pilot)
+        await press(pilot, "c")  # a modal screen over the card
+        await pilot.resize_terminal(80, 24)
+        await settle(pilot)
+        await press(pilot, "escape")
+        box = app.screen.query_one("#card-box", VerticalScroll)
+        title = box.title_text
+        assert len(title) + 6 <= box.size.width, (title, box.size.width)
+        assert title.endswith(app.screen.card.right_id[-7:])

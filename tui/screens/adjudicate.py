@@ -19,7 +19,7 @@ from typing import TYPE_CHECKING, ClassVar, cast
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
-from textual.containers import Horizontal, VerticalScroll
+from textual.containers import Horizontal
 from textual.screen import Screen
 
 from docket.core.errors import DocketError
@@ -30,7 +30,7 @@ from ..diff import PLAIN, Palette
 from ..navigation import Mode, Move, Navigator
 from ..widgets import CardOptions, Pace, PairCardView, StatusLine
 from ..widgets.key_bar import KeyBar
-from ..widgets.pair_card import put_card_title
+from ..widgets.pair_card import CardBox
 from ..widgets.reviews import ConflictInfo, PairStanding, ReviewsPanel
 from .adjudication_queue import HELD, AdjudicationQueue
 from .help import key_rows
@@ -99,7 +99,7 @@ class AdjudicateScreen(AdjudicationQueue, Screen[None]):
     def compose(self) -> ComposeResult:
         yield StatusLine(id="status")
         with Horizontal(id="body"):
-            with VerticalScroll(id="card-box"):
+            with CardBox(id="card-box"):
                 yield PairCardView(id="card")
             yield ReviewsPanel(id="reviews")
         yield KeyBar()
@@ -152,17 +152,17 @@ class AdjudicateScreen(AdjudicationQueue, Screen[None]):
     def _paint(self) -> None:
         app = self.team_app
         card_view = self.query_one(PairCardView)
-        box = self.query_one("#card-box", VerticalScroll)
+        box = self.query_one(CardBox)
         panel = self.query_one(ReviewsPanel)
         if self.card is None:
             card_view.show_message(self._empty_message())
-            box.border_title = Text("adjudication queue empty" if self.queue is not None
-                                    else "adjudication")
+            box.title_for(None, text="adjudication queue empty" if self.queue is not None
+                          else "adjudication")
             box.border_subtitle = None
             panel.show_message(Text(""))
         else:
             card_view.show(self.card, CardOptions(self.palette, app.mask, self.show_extra))
-            put_card_title(box, self.card, self.palette)
+            box.title_for(self.card, self.palette)
             box.border_subtitle = Text(self.where) if self.where else None
             panel.show(self.card, self.standing, app.adjudicator, app.blind, self.palette)
         panel.border_title = "reviews · names hidden" if app.blind else "reviews"
@@ -253,12 +253,6 @@ class AdjudicateScreen(AdjudicationQueue, Screen[None]):
     def on_resize(self) -> None:
         # A taller or shorter terminal changes the room for the card, not its width.
         self.call_after_refresh(self.query_one(PairCardView).refit)
-        self.call_after_refresh(self._retitle)
-
-    def _retitle(self) -> None:
-        """The title's ids cut again to the card's new width."""
-        if self.card is not None:
-            put_card_title(self.query_one("#card-box", VerticalScroll), self.card, self.palette)
 
     def action_extra(self) -> None:
         self.show_extra = not self.show_extra

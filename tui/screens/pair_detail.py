@@ -11,14 +11,14 @@ from typing import TYPE_CHECKING, ClassVar, cast
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
-from textual.containers import Horizontal, VerticalScroll
+from textual.containers import Horizontal
 from textual.screen import Screen
 from textual.widgets import Static
 
 from ..diff import Palette
 from ..widgets import CardOptions, PairCardView
 from ..widgets.key_bar import KeyBar
-from ..widgets.pair_card import card_title
+from ..widgets.pair_card import CardBox
 from ..widgets.reviews import PairStanding, ReviewsPanel
 
 if TYPE_CHECKING:
@@ -52,7 +52,7 @@ class PairDetailScreen(Screen[None]):
     def compose(self) -> ComposeResult:
         yield Static(self.heading, id="detail-heading")
         with Horizontal(id="body"):
-            with VerticalScroll(id="card-box"):
+            with CardBox(id="card-box"):
                 yield PairCardView(id="card")
             yield ReviewsPanel(id="reviews")
         yield KeyBar()
@@ -70,8 +70,8 @@ class PairDetailScreen(Screen[None]):
                      if g.pair_id == self.pair_id), None)
         self.query_one(PairCardView).show(card, CardOptions(palette, app.mask,
                                                             self.show_extra))
-        box = self.query_one("#card-box", VerticalScroll)
-        box.border_title = card_title(card, palette, box.size.width or self.app.size.width)
+        box = self.query_one(CardBox)
+        box.title_for(card, palette)
         panel = self.query_one(ReviewsPanel)
         panel.show(card, PairStanding(None, tuple(reviews), gold), app.adjudicator, app.blind,
                    palette, self.aliases)

@@ -15,7 +15,7 @@ from typing import TYPE_CHECKING, ClassVar, cast
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
-from textual.containers import Horizontal, VerticalScroll
+from textual.containers import Horizontal
 from textual.screen import Screen
 
 from docket.core.errors import DocketError
@@ -25,7 +25,7 @@ from .. import bindings as shared
 from ..diff import PLAIN, Palette
 from ..navigation import Mode, Navigator
 from ..widgets import CardOptions, EvidencePanel, KeyBar, Pace, PairCardView, StatusLine, YourSide
-from ..widgets.pair_card import card_title, put_card_title
+from ..widgets.pair_card import CardBox
 from .help import HelpScreen, key_rows
 from .review_background import ReviewBackground
 from .review_moves import ReviewMoves
@@ -85,7 +85,6 @@ class ReviewScreen(ReviewNotes, ReviewMoves, ReviewBackground, Screen[None]):
         self.model_note = ""
         self.palette: Palette = PLAIN
         self._footer_in_queue = True
-        self._title = ""
         self._where_shown = ""
         self._scrolled_for = -1
 
@@ -97,7 +96,7 @@ class ReviewScreen(ReviewNotes, ReviewMoves, ReviewBackground, Screen[None]):
     def compose(self) -> ComposeResult:
         yield StatusLine(id="status")
         with Horizontal(id="body"):
-            with VerticalScroll(id="card-box"):
+            with CardBox(id="card-box"):
                 yield PairCardView(id="card")
             yield EvidencePanel(id="evidence")
         yield KeyBar()
@@ -117,7 +116,6 @@ class ReviewScreen(ReviewNotes, ReviewMoves, ReviewBackground, Screen[None]):
 
     def _on_theme(self) -> None:
         self._set_palette()
-        self._title = ""  # repaint the title in the new colours too
         self._paint()
 
     # -- showing a pair ----------------------------------------------------------------------
@@ -154,23 +152,20 @@ class ReviewScreen(ReviewNotes, ReviewMoves, ReviewBackground, Screen[None]):
     def _paint(self) -> None:
         """Draw the pair on screen; the app's ``on_painted`` hook runs after the frame."""
         card_view = self.query_one(PairCardView)
-        box = self.query_one("#card-box", VerticalScroll)
+        box = self.query_one(CardBox)
         evidence = self.query_one(EvidencePanel)
         if self.card is None:
             card_view.show_message(Text(
                 "Nothing left in your queue. [ looks back at your decisions; / finds a pair; "
                 "q quits.", self.palette.muted))
-            box.border_title = Text("queue empty")
+            box.title_for(None, text="queue empty")
             box.border_subtitle = None
-            self._title, self._where_shown = "", ""
+            self._where_shown = ""
             evidence.show(None, self.palette, model_note=self.model_note)
         else:
             opts = CardOptions(self.palette, self.review_app.mask, self.show_extra)
             card_view.show(self.card, opts)
-            title = card_title(self.card, self.palette, box.size.width)
-            if title.plain != self._title:
-                self._title = title.plain
-                box.border_title = title
+            box.title_for(self.card, self.palette)
             if self.where != self._where_shown:
                 self._where_shown = self.where
                 box.border_subtitle = Text(self.where) if self.where else None
@@ -248,13 +243,6 @@ class ReviewScreen(ReviewNotes, ReviewMoves, ReviewBackground, Screen[None]):
     def on_resize(self) -> None:
         # A taller or shorter terminal changes the room for the card, not its width.
         self.call_after_refresh(self.query_one(PairCardView).refit)
-        self.call_after_refresh(self._retitle)
-
-    def _retitle(self) -> None:
-        """The title's ids cut again to the card's new width."""
-        if self.card is not None:
-            box = self.query_one("#card-box", VerticalScroll)
-            self._title = put_card_title(box, self.card, self.palette)
 
     def action_extra(self) -> None:
         self.show_extra = not self.show_extra

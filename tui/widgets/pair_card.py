@@ -5,6 +5,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field, replace
 
 from rich.text import Text
+from textual.containers import VerticalScroll
 from textual.widget import Widget
 from textual.widgets import Static
 
@@ -169,11 +170,35 @@ def card_title(card: PairCard, palette: Palette, width: int = 0) -> Text:
     return title
 
 
-def put_card_title(box: Widget, card: PairCard, palette: Palette) -> str:
-    """``box``'s border title for ``card``, cut to its width now; its text."""
-    title = card_title(card, palette, box.size.width)
-    box.border_title = title
-    return title.plain
+class CardBox(VerticalScroll):
+    """The scrolling box around the pair card, its title the pair and its records' ids.
+
+    The title's ids are cut to the box's width, again whenever the box is resized (also
+    while a modal screen is over it): resized from 200 columns to 80, the title kept its
+    wide ids and the border cut the right one at its end ('R-xxxxxxxxxx……').
+    """
+
+    _titled: tuple[PairCard, Palette] | None = None
+    _title_key: tuple[str, Palette] | None = None
+
+    def title_for(self, card: PairCard | None, palette: Palette = PLAIN,
+                  text: str = "") -> str:
+        """Title the box for ``card`` (None: ``text`` instead); the title's text."""
+        self._titled = None if card is None else (card, palette)
+        title = Text(text) if card is None else card_title(card, palette, self.size.width)
+        key = (title.plain, palette)  # a new theme repaints it in its colours
+        if key != self._title_key:  # the same title is not set again on every key
+            self._title_key = key
+            self.border_title = title
+        return title.plain
+
+    @property
+    def title_text(self) -> str:
+        return "" if self._title_key is None else self._title_key[0]
+
+    def on_resize(self) -> None:
+        if self._titled is not None:
+            self.title_for(*self._titled)
 
 
 class PairCardView(Static):
