@@ -123,3 +123,24 @@ def test_wide_characters_fold_by_their_cells() -> None:
     assert all(x.startswith("  ") for x in out[1:])  # under the text, as any other line
     row = "  東京都新宿区西新宿二丁目東京都      498 pairs   x  y"  # a figure row: at its gaps
     assert [cell_len(x) for x in fold(row, 40).splitlines()] == [32, 18]
+
+
+def test_errors_and_warnings_fold_on_a_terminal_and_stay_one_line_in_a_pipe(
+        tmp_path: Path, monkeypatch: pytest.MonkeyPatch, capsys: pytest.CaptureFixture) -> None:
+    # at 80 columns the terminal cut docket new's warnings mid-word ('not compare' / 'd',
+    # '--keep-placeh' / 'olders'), and its errors
+    table = tmp_path / "t.csv"
+    table.write_text("id,name,empty\n" + "".join(f"r{i},Anna Berg{i},\n" for i in range(9)),
+                     encoding="utf-8")
+    args = ["new", str(tmp_path / "t.docket"), "--left", str(table), "--id", "id",
+            "--block", "empty"]  # a warning (a column of no value), then an error
+    assert main(args) == 2
+    piped = capsys.readouterr().err.splitlines()
+    assert len(piped) == 2 and all(line.startswith("docket: ") for line in piped)
+    monkeypatch.setenv("COLUMNS", "80")
+    monkeypatch.setattr("sys.stderr.isatty", lambda: True, raising=False)
+    assert main(args) == 2
+    shown = capsys.readouterr().err.splitlines()
+    assert len(shown) > 2 and max(len(line) for line in shown) <= 80, shown
+    assert _words("\n".join(shown)) == _words("\n".join(piped))
+    assert all(line.startswith(("docket: ", "  ")) for line in shown)  # the rest under it

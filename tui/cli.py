@@ -90,18 +90,20 @@ def _main(argv: list[str] | None) -> int:
         return code
     except DocketError as exc:
         with contextlib.suppress(Exception):  # standard error itself may be what failed
-            print(f"docket: {said(exc)}", file=sys.stderr)
+            from .folding import to_stderr
+            to_stderr(f"docket: {said(exc)}")
         return exc.exit_code
     except sqlite3.Error as exc:  # the file met trouble mid-command (full disk, busy, damage)
         from docket.core import file_trouble
-        print(f"docket: {said(file_trouble(exc, getattr(args, 'project', None) or 'project'))}",
-              file=sys.stderr)
+
+        from .folding import to_stderr
+        to_stderr(f"docket: {said(file_trouble(exc, getattr(args, 'project', None) or 'project'))}")
         return 2
     except KeyboardInterrupt as exc:  # what stands, when some of the work did
         by = f" by {received()}" if received() else ""
         with contextlib.suppress(OSError):  # after SIGHUP the terminal may be gone
-            print(f"docket: interrupted{by}; {said(exc) or 'nothing was half-written'}",
-                  file=sys.stderr)
+            from .folding import to_stderr
+            to_stderr(f"docket: interrupted{by}; {said(exc) or 'nothing was half-written'}")
         return exit_code()
     except BrokenPipeError:
         os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())

@@ -9,7 +9,6 @@ import argparse
 import getpass
 import os
 import shutil
-import sys
 import textwrap
 from collections.abc import Callable
 from typing import Any
@@ -77,7 +76,8 @@ MASK_HELP = ("show these columns partly masked; repeatable, and a column whose n
 def warn_line(message: Warning | str, category: type, *rest: Any, **kw: Any) -> None:
     """How the command line shows a warning: one line, no source excerpt."""
     # said: a value inside (a column name) may hold a newline, which would forge a line
-    print(f"docket: warning: {said(message)}", file=sys.stderr)
+    from .folding import to_stderr
+    to_stderr(f"docket: warning: {said(message)}")
 
 
 def open_project(path: str, readonly: bool = False) -> Any:

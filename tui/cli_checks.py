@@ -89,7 +89,9 @@ class Parser(argparse.ArgumentParser):
     """argparse with one-line errors and suggestions (argparse has its own only from 3.14)."""
 
     def error(self, message: str) -> NoReturn:
-        self.exit(2, f"{self.prog}: {message}{_hint(message)} (see '{self.prog} --help')\n")
+        from .folding import for_stderr
+        self.exit(2, for_stderr(f"{self.prog}: {message}{_hint(message)} (see '{self.prog} "
+                                "--help')") + "\n")
 
 
 def _options(parser: argparse.ArgumentParser) -> list[str]:

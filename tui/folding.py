@@ -124,3 +124,17 @@ def echo(text: str) -> None:
     if columns is not None:
         text = fold(text, columns)
     print(text)
+
+
+def to_stderr(line: str) -> None:
+    """An error or warning (one line, see ``terminal.said``) on standard error, folded at word
+    ends when that is a terminal: at 80 columns the terminal cut 'docket new''s warnings
+    mid-word ('not compare' / 'd', '--keep-placeh' / 'olders'). Piped, it stays one line."""
+    print(for_stderr(line), file=sys.stderr)
+
+
+def for_stderr(text: str) -> str:
+    """``text`` folded for standard error when that is a terminal (else as it is)."""
+    if sys.stderr.isatty():
+        return fold(text, max(40, shutil.get_terminal_size().columns))
+    return text
