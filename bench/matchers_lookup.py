@@ -22,7 +22,7 @@ import numpy as np
 import pyarrow as pa
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
-from docket.core.matchers.pair_keys import lookup, lookup_many, pair_keys
+from docket.core.storage.pair_keys import lookup, lookup_many, pair_keys
 
 N_LEFT, PER_LEFT, N_FILES = 200_000, 5, 5
 

@@ -15,7 +15,7 @@ from hypothesis import strategies as st
 from docket.core import NewProject, Project
 from docket.core.matchers import catalogue
 from docket.core.matchers.importing import import_matchers
-from docket.core.matchers.pair_keys import lookup, pair_keys
+from docket.core.storage.pair_keys import lookup, pair_keys
 from tests.conftest import SAMPLE
 from tests.matchers_support import candidates
 

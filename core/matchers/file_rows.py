@@ -14,8 +14,8 @@ import pyarrow.compute as pc
 from ..errors import DocketError
 from ..records.id_hints import form_hint
 from ..records.sources import row_named
+from ..storage.pair_keys import PairKeys, lookup_many
 from ..storage.project_file import ProjectFile
-from .pair_keys import PairKeys, lookup_many
 
 
 def fail(path: Path, position: int, what: str) -> DocketError:

@@ -23,10 +23,10 @@ from ..errors import DocketError
 from ..records.sources import detect_format, read_frame, row_named
 from ..records.text_tables import plain_names, separator_hint
 from ..storage import store
+from ..storage.pair_keys import pair_keys
 from ..storage.project_file import ProjectFile
 from . import catalogue
 from .file_rows import Reader, check_ids, fail, first
-from .pair_keys import pair_keys
 
 SCORE = "score"
 LABEL = "label"

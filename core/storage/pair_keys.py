@@ -1,4 +1,5 @@
-"""Finding many (left id, right id) rows among the candidate pairs at once.
+"""Finding many (left id, right id) rows among the candidate pairs at once (a matcher's file,
+for import or for evaluate --predictions).
 
 A million candidate pairs are read from the project file as one text (``group_concat``), split
 and joined into one key per pair by pyarrow, and each matcher file's rows are joined the same
@@ -17,7 +18,7 @@ from __future__ import annotations
 
 import sqlite3
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 import pyarrow as pa
@@ -38,6 +39,8 @@ class PairKeys:
     position: np.ndarray  # position in pair-id order (``catalogue.pair_ids``) of keys[i]
     separator: str
     link: bool
+    ids: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=np.int64))  # pair ids,
+    # in pair-id order: ids[position[i]] is the pair of keys[i]
 
     @property
     def n_pairs(self) -> int:
@@ -72,7 +75,7 @@ def pair_keys(conn: sqlite3.Connection, link: bool) -> PairKeys:
     keys = join(parts.take(pa.array(every + 1)), parts.take(pa.array(every + 2)), sep)
     position = np.empty(n, dtype=np.int64)
     position[np.argsort(ids, kind="stable")] = np.arange(n)
-    return PairKeys(keys, position, sep, link)
+    return PairKeys(keys, position, sep, link, np.sort(ids))
 
 
 def join(left: pa.Array | pa.ChunkedArray, right: pa.Array | pa.ChunkedArray,
