@@ -144,3 +144,17 @@ def test_errors_and_warnings_fold_on_a_terminal_and_stay_one_line_in_a_pipe(
     assert len(shown) > 2 and max(len(line) for line in shown) <= 80, shown
     assert _words("\n".join(shown)) == _words("\n".join(piped))
     assert all(line.startswith(("docket: ", "  ")) for line in shown)  # the rest under it
+
+
+def test_a_list_of_items_folds_between_its_items() -> None:
+    # folded at any space, status cut 'similar' from its factor: 'similar' / '÷1.6'
+    line = ("  pet            exact, rare ×7.9 · exact, common ×4.2 · close ×2.4 · similar ÷1.6 "
+            "· different ÷2.5 · missing ×1")
+    assert fold(line, 80).splitlines() == [
+        "  pet            exact, rare ×7.9 · exact, common ×4.2 · close ×2.4",
+        "                 · similar ÷1.6 · different ÷2.5 · missing ×1"]
+    out = fold(line, 40).splitlines()
+    assert all(len(x) <= 40 for x in out) and out[1:] == [
+        "                 · exact, common ×4.2", "                 · close ×2.4",
+        "                 · similar ÷1.6", "                 · different ÷2.5",
+        "                 · missing ×1"]

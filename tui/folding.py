@@ -98,7 +98,27 @@ def fold(text: str, width: int) -> str:
 
 def _words(line: str, width: int, hang: int) -> list[str]:
     """``line`` folded at its spaces into lines of at most ``width`` cells (a word wider than
-    that stays whole on a line of its own), the second and later ``hang`` cells in."""
+    that stays whole on a line of its own), the second and later ``hang`` cells in. A list of
+    items set apart by ' · ' folds between its items, each continuation beginning with its
+    '·': folded at any space, 'similar ×2.2' was cut from its factor."""
+    if " · " not in line:
+        return _plain_words(line, width, hang)
+    lead = len(line) - len(line.lstrip(" "))
+    first, *items = line[lead:].split(" · ")
+    lines, now = [], " " * lead + first
+    for item in items:
+        if cells(now) + 3 + cells(item) <= width:
+            now += " · " + item
+        else:
+            lines.append(now)
+            now = " " * hang + "· " + item
+    out: list[str] = []
+    for part in [*lines, now]:  # an item wider than a line: at its spaces
+        out += [part] if cells(part) <= width else _plain_words(part, width, hang)
+    return out
+
+
+def _plain_words(line: str, width: int, hang: int) -> list[str]:
     lead = len(line) - len(line.lstrip(" "))
     parts = re.split(r"( +)", line[lead:])  # word, spaces, word, ...
     lines, now = [], " " * lead + parts[0]
