@@ -93,3 +93,20 @@ def test_an_apostrophe_that_is_part_of_an_id_stays(project: Path, tmp_path: Path
             "SELECT pair_id FROM pairs WHERE left_id = ? AND right_id = ?",
             ("'=x", "@anna")).fetchone()[0]
     assert _standing(project, "ode") == {pair: "match"}
+
+
+def test_a_guarded_export_reads_back_as_pairs_to_score_or_build(project: Path,
+                                                                tmp_path: Path) -> None:
+    # score --pairs and new --pairs refused it: "4 left ids not in ...: ''-17', ''@anna'..."
+    scores = tmp_path / "scores.csv"
+    assert main(["export", str(project), "--what", "scores", "-o", str(scores)]) == 0
+    out = tmp_path / "scored"
+    assert main(["score", str(project), "--pairs", str(scores), "-o", str(out)]) == 0
+    scored = pd.concat(pd.read_parquet(part) for part in sorted(out.glob("*.parquet")))
+    assert sorted(scored["left_id"]) == sorted(IDS)  # the records' ids, not the guarded text
+    rebuilt = tmp_path / "again.docket"
+    assert main(["new", str(rebuilt), "--left", str(tmp_path / "l.jsonl"), "--right",
+                 str(tmp_path / "r.jsonl"), "--id", "id", "--pairs", str(scores)]) == 0
+    with Project.open(rebuilt, readonly=True) as p:
+        assert sorted(r for (r,) in p.connection.execute("SELECT left_id FROM pairs")) == \
+            sorted(IDS)

@@ -46,8 +46,9 @@ class ScoreJob:
         b = _text(frame.iloc[:, 1]).reset_index(drop=True)
         li, ri = positions(self.where, a, b, self.left_index, self.right_index, *self.names)
         out = score_pairs(self.model, self.left_norm, self.right_norm, li, ri)
-        out.insert(0, "right_id", b.to_numpy())
-        out.insert(0, "left_id", a.to_numpy())
+        # the records' own ids: a guarded id ("'@anna") read from a CSV export stays no id
+        out.insert(0, "right_id", self.right_index.to_numpy()[ri])
+        out.insert(0, "left_id", self.left_index.to_numpy()[li])
         return out
 
 

@@ -18,6 +18,7 @@ import numpy as np
 import pandas as pd
 
 from ..errors import DocketError
+from ..records.formula_guard import FORMULA_START, GUARD
 from ..wording import many, quoted
 
 BATCH = 500_000
@@ -174,7 +175,7 @@ def positions(where: Path | str, a: pd.Series, b: pd.Series, left_index: pd.Inde
     if na.any():
         row = row0 + int(np.flatnonzero(na)[0])
         raise DocketError(f"{where}: row {row} has an empty id; every pair needs both ids")
-    lpos, rpos = _lookup(left_index, a), _lookup(right_index, b)
+    lpos, rpos = _found(left_index, a), _found(right_index, b)
     for pos, ids, side, name in ((lpos, a, "left", left_name), (rpos, b, "right", right_name)):
         if (pos < 0).any():
             bad = list(dict.fromkeys(ids[pos < 0].tolist()))
@@ -182,6 +183,22 @@ def positions(where: Path | str, a: pd.Series, b: pd.Series, left_index: pd.Inde
                               f"{quoted(bad)}; give ids exactly as the records have them "
                               "(spaces and case count)")
     return lpos.astype(np.int64), rpos.astype(np.int64)
+
+
+def _found(index: pd.Index, ids: pd.Series) -> np.ndarray:
+    """``_lookup``, with an id a CSV export guarded ("'@anna" for '@anna') taken as the id
+    it guards where the id as written names no record: the scores export given to score
+    --pairs or new --pairs was refused as naming no record."""
+    pos = _lookup(index, ids)
+    missed = np.flatnonzero(pos < 0)
+    if missed.size:
+        values = ids.iloc[missed].astype(str)
+        guarded = values.str.startswith(GUARD).to_numpy() & \
+            values.str[1:].str.startswith(FORMULA_START).to_numpy()
+        if guarded.any():
+            at = missed[guarded]
+            pos[at] = _lookup(index, values[guarded].str[1:])
+    return pos
 
 
 def _lookup(index: pd.Index, ids: pd.Series) -> np.ndarray:
