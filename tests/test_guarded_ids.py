@@ -110,3 +110,15 @@ def test_a_guarded_export_reads_back_as_pairs_to_score_or_build(project: Path,
     with Project.open(rebuilt, readonly=True) as p:
         assert sorted(r for (r,) in p.connection.execute("SELECT left_id FROM pairs")) == \
             sorted(IDS)
+
+
+def test_a_guarded_export_reads_back_as_a_matchers_file(project: Path, tmp_path: Path,
+                                                        capsys: pytest.CaptureFixture[str]
+                                                        ) -> None:
+    scores = tmp_path / "scores.csv"
+    assert main(["export", str(project), "--what", "scores", "-o", str(scores)]) == 0
+    frame = _read(scores).rename(columns={"probability": "score"})
+    frame[["left_id", "right_id", "score"]].to_csv(tmp_path / "rater.csv", index=False)
+    capsys.readouterr()
+    assert main(["matchers", str(project), "import", str(tmp_path / "rater.csv")]) == 0
+    assert f"{len(IDS)} candidate pairs given, 0 absent" in capsys.readouterr().out

@@ -12,6 +12,7 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from ..errors import DocketError
+from ..records.formula_guard import GUARD, unguarded
 from ..records.id_hints import form_hint
 from ..records.sources import row_named
 from ..storage.pair_keys import PairKeys, lookup_many
@@ -68,6 +69,20 @@ class Reader:
             table = batch[-1][0]
             self.last = (table["left_id"], table["right_id"], out[-1])
         return out
+
+    def unguarded(self, table: pa.Table) -> pa.Table:
+        """``table`` with each id a CSV export guarded ("'@anna") read as the record's id it
+        guards, where the id as written names no record (``records.formula_guard``)."""
+        for side in ("left", "right"):
+            name = f"{side}_id"
+            ids = table[name]
+            if not pc.any(pc.starts_with(ids, GUARD)).as_py():
+                continue
+            if side not in self.known:
+                self.known[side] = self.project.record_ids(side)
+            fixed = pa.array(unguarded(ids.to_pylist(), self.known[side]), type=ids.type)
+            table = table.set_column(table.schema.get_field_index(name), name, fixed)
+        return table
 
     def _known_records(self, a: pa.ChunkedArray, b: pa.ChunkedArray, pos: np.ndarray,
                        path: Path) -> None:

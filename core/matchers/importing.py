@@ -230,7 +230,8 @@ def read_files(project: ProjectFile, paths: Sequence[str | Path],
         batch.clear()
 
     for path in paths:
-        batch.append(_prepare(Path(path)))
+        batch.append(prepared := _prepare(Path(path)))
+        prepared.table = reader.unguarded(prepared.table)  # a CSV export's ids, guarded
         if sum(f.table.num_rows for f in batch) >= BATCH_ROWS:
             flush()
     flush()
