@@ -277,3 +277,12 @@ def test_next_fits_80_columns_with_ids_too_long_to_share_a_row(tmp_path: Path,
     assert "--json" in lines[-1]
     assert main(["next", str(project), "--reviewer", "maya", "--json"]) == 0
     assert too_long in {i["left_id"] for i in json.loads(capsys.readouterr().out)}
+
+
+def test_help_as_a_command_shows_the_help_asked_for(capsys) -> None:
+    # 'docket help export' was "invalid choice: 'help'"
+    for words, start in ((["help"], "usage: docket [-h]"),
+                         (["help", "export"], "usage: docket export")):
+        with pytest.raises(SystemExit) as stop:
+            main(words)
+        assert stop.value.code == 0 and capsys.readouterr().out.startswith(start), words

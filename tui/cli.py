@@ -78,7 +78,10 @@ def main(argv: list[str] | None = None, to_the_end: bool = False) -> int:
 
 def _main(argv: list[str] | None) -> int:
     parser = build_parser()
-    args = parse(parser, argv)
+    words = sys.argv[1:] if argv is None else list(argv)
+    if words[:1] == ["help"]:  # 'docket help export', as many tools take it: that --help
+        words = [*words[1:2], "--help"]
+    args = parse(parser, words)
     if not getattr(args, "func", None):
         parser.print_help()
         return 0
