@@ -81,3 +81,28 @@ def test_a_project_given_as_a_table_says_how_its_decisions_come_in(
                               "a table; decisions in a copy of this project come in with "
                               "'docket merge PROJECT COPY'")
     assert sample_project.read_bytes() == before and not (tmp_path / "n.docket").exists()
+
+
+def test_an_option_of_one_value_given_twice_is_refused(sample_project: Path, tmp_path: Path,
+                                                       capsys) -> None:
+    # argparse kept the last unsaid: '--from a.csv --from b.csv' recorded b.csv alone
+    first, second = tmp_path / "a.csv", tmp_path / "b.csv"
+    first.write_text("pair_id,label\n1,match\n", encoding="utf-8")
+    second.write_text("pair_id,label\n2,match\n", encoding="utf-8")
+    before = sample_project.read_bytes()
+    for argv, said in (
+            (["label", str(sample_project), "--reviewer", "ana", "--from", str(first),
+              "--from", str(second)], f"--from: given twice, '{first}' and '{second}'"),
+            (["label", str(sample_project), "--reviewer", "ana", "--reviewer", "ben",
+              "--from", str(first)], "--reviewer: given twice, 'ana' and 'ben'"),
+            (["export", str(sample_project), "--what", "gold", "--what", "scores", "-o", "-"],
+             "--what: given twice, 'gold' and 'scores'")):
+        with pytest.raises(SystemExit) as stop:
+            main(argv)
+        err = capsys.readouterr().err
+        assert stop.value.code == 2 and len(err.splitlines()) == 1, err
+        assert f"{said}; give it once" in err, err
+    assert sample_project.read_bytes() == before
+    # the same value twice says one thing, and options meant to repeat still do
+    assert main(["label", str(sample_project), "--reviewer", "ana", "--reviewer", "ana",
+                 "--from", str(first)]) == 0

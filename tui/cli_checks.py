@@ -14,7 +14,7 @@ import shlex
 import sys
 from collections.abc import Callable, Sequence
 from pathlib import Path
-from typing import NoReturn
+from typing import Any, NoReturn
 
 _CHOICE = re.compile(r"invalid choice: '([^']*)' \(choose from (.*)\)")
 
@@ -85,13 +85,37 @@ def _hint(message: str) -> str:
     return ""
 
 
+GIVEN = "_given_once"  # the namespace's record of the one-value options given so far
+
+
+class _Once(argparse._StoreAction):
+    """An option that takes one value, refused when given twice with two values: argparse kept
+    the last unsaid, so 'label --from a.csv --from b.csv' recorded b.csv alone, and
+    '--reviewer ana --reviewer ben' gave ana's file to ben."""
+
+    def __call__(self, parser: argparse.ArgumentParser, namespace: argparse.Namespace,
+                 values: Any, option_string: str | None = None) -> None:
+        given: dict[str, Any] = namespace.__dict__.setdefault(GIVEN, {})
+        if self.dest in given and given[self.dest] != values:
+            parser.error(f"argument {'/'.join(self.option_strings)}: given twice, "
+                         f"{given[self.dest]!r} and {values!r}; give it once")
+        given[self.dest] = values
+        setattr(namespace, self.dest, values)
+
+
 class Parser(argparse.ArgumentParser):
-    """argparse with one-line errors and suggestions (argparse has its own only from 3.14)."""
+    """argparse with one-line errors and suggestions (argparse has its own only from 3.14),
+    and options of one value that may be given once."""
 
     def error(self, message: str) -> NoReturn:
         from .folding import for_stderr
         self.exit(2, for_stderr(f"{self.prog}: {message}{_hint(message)} (see '{self.prog} "
                                 "--help')") + "\n")
+
+    def add_argument(self, *names: Any, **kwargs: Any) -> argparse.Action:
+        if names and str(names[0]).startswith("-") and kwargs.get("action") in (None, "store"):
+            kwargs["action"] = _Once
+        return super().add_argument(*names, **kwargs)
 
 
 def _options(parser: argparse.ArgumentParser) -> list[str]:
