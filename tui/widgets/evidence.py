@@ -2,10 +2,12 @@
 
 from __future__ import annotations
 
+import io
 import textwrap
 from dataclasses import dataclass
 
 from rich.cells import cell_len
+from rich.console import Console
 from rich.text import Text
 from textual.widgets import Static
 
@@ -32,6 +34,7 @@ REASONS = {
 SHOWN = 3  # fields listed one by one in the odds steps; the rest share one line
 NAME_CELLS = 10  # short names keep one column for the factors, as wide as this
 PANEL_TEXT = 26  # cells of text in the panel at its wide width (30, less border and padding)
+NOTE_CAP = 200  # characters of the reviewer's note shown, fewer where the panel is short
 SHORT_MODEL = {"fellegi-sunter": "Fellegi–Sunter", "logistic": "logistic, from labels"}
 
 
@@ -113,7 +116,8 @@ def candidate_lines(card: PairCard, width: int) -> list[str]:
 
 
 def evidence_text(card: PairCard, palette: Palette, you: YourSide = YourSide(),
-                  model_note: str = "", width: int = PANEL_TEXT) -> Text:
+                  model_note: str = "", width: int = PANEL_TEXT,
+                  note_cap: int = NOTE_CAP) -> Text:
     p = palette
     text = Text()
     # labels as narrow as they go: "1 to 3.7k" must fit beside "odds" in a 20-column panel
@@ -146,12 +150,22 @@ def evidence_text(card: PairCard, palette: Palette, you: YourSide = YourSide(),
         text.append(you.label + "\n", p.heading)
     if you.note:
         text.append("note, for your decision: " if you.note_pending else "note ", p.muted)
-        text.append_text(literal.literal_text(you.note, escape_style=p.escape, cap=200))
+        text.append_text(literal.literal_text(you.note, escape_style=p.escape, cap=note_cap))
         text.append("\n")
+        if len(you.note) > note_cap:
+            text.append("e shows the whole note\n", p.muted)
     if model_note:
         text.append(model_note + "\n", p.muted)
     text.rstrip()
     return text
+
+
+def _height(text: Text, width: int) -> int:
+    """The lines ``text`` takes, wrapped to ``width`` cells as the panel wraps it."""
+    return len(text.wrap(_CONSOLE, max(1, width)))
+
+
+_CONSOLE = Console(file=io.StringIO(), width=400, color_system=None, legacy_windows=False)
 
 
 class EvidencePanel(Static):
@@ -168,7 +182,14 @@ class EvidencePanel(Static):
             self.update(Text(model_note, palette.muted), layout=False)
             return
         width = self.content_size.width or PANEL_TEXT  # before the first layout: the wide size
-        self.update(evidence_text(card, palette, you, model_note, width), layout=False)
+        room = self.content_size.height
+        # A long note ran past the panel's foot at 80x24, its end (and a refit's message
+        # after it) cut off unseen: it is shortened to the lines the panel has, and says so.
+        for cap in (NOTE_CAP, 120, 60, 24):
+            text = evidence_text(card, palette, you, model_note, width, cap)
+            if not you.note or not room or _height(text, width) <= room:
+                break
+        self.update(text, layout=False)
 
     def on_resize(self) -> None:
         # the names' room follows the panel's width (narrower below 110 columns)
