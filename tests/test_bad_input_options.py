@@ -106,3 +106,18 @@ def test_an_option_of_one_value_given_twice_is_refused(sample_project: Path, tmp
     # the same value twice says one thing, and options meant to repeat still do
     assert main(["label", str(sample_project), "--reviewer", "ana", "--reviewer", "ana",
                  "--from", str(first)]) == 0
+
+
+def test_a_suggested_command_can_be_pasted_with_spaces_in_its_words(
+        sample_project: Path, tmp_path: Path, capsys) -> None:
+    # 'add one with docket reviewers my proj.docket add Anne Berg --role adjudicator' ran as
+    # 'add Anne' with 'Berg' left over
+    folder = tmp_path / "sp ace"
+    folder.mkdir()
+    project = folder / "my proj.docket"
+    project.write_bytes(sample_project.read_bytes())
+    code, err = run(capsys, "adjudicate", str(project), "--reviewer", "Anne Berg")
+    assert_one_line_error(code, err, f"'docket reviewers '{project}' add 'Anne Berg' --role "
+                                     "adjudicator'")
+    code, err = run(capsys, "status", str(folder / "none.docket"))
+    assert_one_line_error(code, err, f"create it with 'docket new '{folder / 'none.docket'}' ...'")

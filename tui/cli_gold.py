@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import argparse
 import math
+import shlex
 import sys
 from typing import Any
 
@@ -179,7 +180,8 @@ def export(args: argparse.Namespace) -> int:
         none = {"conflicts": ": no conflicts, no gold non-match falls inside a cluster",
                 # the export is the only mention of missed matches a reader of the
                 # README meets; an empty file said nothing of how one is recorded
-                "missed": f": no missed match recorded (docket missed {args.project} add "
+                "missed": ": no missed match recorded (docket missed "
+                          f"{shlex.quote(args.project)} add "
                           "LEFT RIGHT records a true match that no candidate pair holds)"
                 }.get(args.what, "")
         said_written(n, args.output, none)

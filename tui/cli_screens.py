@@ -8,6 +8,7 @@ one-line message and exit code 2 from ``cli.main``.
 from __future__ import annotations
 
 import argparse
+import shlex
 from importlib import resources
 from pathlib import Path
 from typing import Any
@@ -150,13 +151,15 @@ def demo(args: argparse.Namespace) -> int:
         echo(f"second reviewer {DEMO_SECOND_REVIEWER}: {many(n, 'label')} on overlap pairs; "
              f"{default_reviewer(args.reviewer)} is an adjudicator")
         echo(f"invented matcher outputs stored: {', '.join(names)} "
-             f"(docket evaluate {spec.path} --matchers, once the audit pairs have labels)")
+             f"(docket evaluate {shlex.quote(str(spec.path))} --matchers, once the audit pairs "
+             "have labels)")
     if args.no_open:
         return status(argparse.Namespace(project=str(spec.path), json=False))
     _run_review(spec.path, default_reviewer(args.reviewer), [])
+    where = shlex.quote(str(spec.path))
     print(f"your decisions are saved in {spec.path}; next, try:\n"
-          f"  docket status {spec.path}\n  docket agreement {spec.path}\n"
-          f"  docket adjudicate {spec.path}\n  docket evaluate {spec.path}\n"
-          f"  docket evaluate {spec.path} --matchers\n"
+          f"  docket status {where}\n  docket agreement {where}\n"
+          f"  docket adjudicate {where}\n  docket evaluate {where}\n"
+          f"  docket evaluate {where} --matchers\n"
           "(add --screen to agreement and evaluate to see them on a screen)")
     return 0

@@ -6,6 +6,7 @@ Argument parsing and printing only; the facade draws it (``Project.draw_suppleme
 from __future__ import annotations
 
 import argparse
+import shlex
 
 from .cli_base import command, open_project
 from .cli_checks import at_least
@@ -49,5 +50,6 @@ def supplement(args: argparse.Namespace) -> int:
     print(f"drew {many(made['size'], 'candidate pair')} stratified on the scores of {made['file']} "
           f"(stratum: drawn of pairs — {strata}; seed {made['seed']})")
     print("they come in the audit share of every reviewer's queue; once reviewed: "
-          f"docket evaluate {args.project} --predictions {made['file']} --supplement")
+          f"docket evaluate {shlex.quote(args.project)} --predictions "
+          f"{shlex.quote(made['file'])} --supplement")
     return 0

@@ -7,6 +7,7 @@ Argument parsing and printing only; the work is done by ``docket.core.reviewing.
 from __future__ import annotations
 
 import argparse
+import shlex
 from pathlib import Path
 
 from .agreement_lines import agreement_lines
@@ -157,7 +158,8 @@ def merge(args: argparse.Namespace) -> int:
               "accents, and count as two reviewers")
     for name in result.unconfirmed_adjudicators:
         print(f"note: {name} adjudicated in a copy but is not an adjudicator here; confirm with "
-              f"'docket reviewers {args.project} add {name} --role adjudicator'")
+              f"'docket reviewers {shlex.quote(args.project)} add {shlex.quote(name)} --role "
+              "adjudicator'")
     if refit is not None:
         print(refit_words(refit))
     return 0

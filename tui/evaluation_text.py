@@ -4,6 +4,7 @@ quality screen draws the same object (``screens/quality_table.py``)."""
 
 from __future__ import annotations
 
+import shlex
 from typing import Any
 
 from docket.core.results import Evaluation
@@ -136,7 +137,8 @@ def blocking_reach(m: dict | None, project: str) -> str:
     and gave the reduction ratio, which says nothing of the matches left out."""
     if not m or not m["count"]:
         return ("blocking reach (the share of true matches that are candidates) is not measured: "
-                f"record matches blocking left out with docket missed {project} add LEFT RIGHT")
+                f"record matches blocking left out with docket missed {shlex.quote(str(project))} "
+                "add LEFT RIGHT")
     return (f"blocking reach: the candidates hold {m['reach']:.1%} of the "
             f"{many(m['gold_matches'] + m['count'], 'match')} known ({m['count']:,} recorded "
             "with docket missed; rough, and if anything too high)")

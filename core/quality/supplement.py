@@ -19,6 +19,7 @@ drawn on (a fingerprint of them); other scores need a supplement of their own.
 from __future__ import annotations
 
 import hashlib
+import shlex
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -137,7 +138,8 @@ def supplement_sample(project: ProjectFile, scores: pd.Series, path: str | Path
     made = stored(project).get(key)
     if made is None:
         raise DocketError(f"{path}: no supplement was drawn on these scores; draw one with "
-                          f"docket supplement {project.path} --predictions {path}, then "
+                          f"docket supplement {shlex.quote(str(project.path))} --predictions "
+                          f"{shlex.quote(str(path))}, then "
                           "review its pairs")
     every = pd.read_sql_query("SELECT pair_id, stratum, audit FROM pairs ORDER BY pair_id",
                               project.connection)

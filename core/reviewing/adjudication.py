@@ -7,6 +7,8 @@ wait, and what becomes gold, is the policy of ``reviewing.gold``.
 
 from __future__ import annotations
 
+import shlex
+
 from ..errors import DocketError
 from ..storage import claims, roles
 from ..storage.project_file import ProjectFile
@@ -28,8 +30,9 @@ def require_adjudicator(project: ProjectFile, name: str) -> str:
         name = roles.as_kept(project.connection, roles.plain_name(name))
     if not is_adjudicator(project, name):
         raise DocketError(f"{name.strip()} is not an adjudicator of {project.path}, and only "
-                          f"adjudicators may settle pairs; add one with 'docket reviewers "
-                          f"{project.path} add {name.strip()} --role adjudicator'")
+                          "adjudicators may settle pairs; add one with 'docket reviewers "
+                          f"{shlex.quote(str(project.path))} add {shlex.quote(name.strip())} "
+                          "--role adjudicator'")
     return name
 
 
@@ -102,7 +105,8 @@ def adjudicate(project: ProjectFile, pair_id: int, adjudicator: str, label: str,
         raise DocketError(f"{adjudicator.strip()} decided pair {pair_id} as a reviewer, and the "
                           "project's policy asks for an independent adjudicator: another "
                           "adjudicator must settle it (docket policy "
-                          f"{project.path} --adjudicator-may-settle-own allows it)")
+                          f"{shlex.quote(str(project.path))} --adjudicator-may-settle-own "
+                          "allows it)")
     return project.decide(pair_id, adjudicator.strip(), label, reason, seconds,
                           role="adjudicator")
 

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import json
 import os
+import shlex
 import sqlite3
 from datetime import UTC, datetime
 from pathlib import Path
@@ -135,7 +136,8 @@ def open_file(path: Path, readonly: bool = False, check: bool = True) -> sqlite3
     """
     file_health.check_place(path, write=not readonly)
     if not path.exists():
-        raise DocketError(f"{path}: no such project; create it with 'docket new {path} ...'")
+        raise DocketError(f"{path}: no such project; create it with "
+                          f"'docket new {shlex.quote(str(path))} ...'")
     if path.is_dir():
         raise NotAProject(f"{path}: a folder, not a docket project; check the path")
     if file_health.special_file(path):

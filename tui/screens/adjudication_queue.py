@@ -4,6 +4,7 @@ screen), served one claimed pair at a time. Mixed into ``AdjudicateScreen``."""
 
 from __future__ import annotations
 
+import shlex
 import sqlite3
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
@@ -153,5 +154,6 @@ class AdjudicationQueue:
         return Text(
             f"{settled}\n\nWhat next: [ looks back at your adjudications; a shows how far the "
             "reviewers agree; g shows the model's quality; q quits. New pairs arrive here as "
-            f"reviewers label overlap pairs (docket review {path}). Export the gold labels "
-            f"with: docket export {path} --what gold -o gold.csv", self.palette.muted)
+            f"reviewers label overlap pairs (docket review {shlex.quote(str(path))}). Export the "
+            f"gold labels with: docket export {shlex.quote(str(path))} --what gold -o gold.csv",
+            self.palette.muted)
