@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import re
+import unicodedata
 import warnings
 
 import pandas as pd
@@ -164,14 +165,18 @@ def resolve_fields(left: pd.DataFrame, right: pd.DataFrame | None, left_name: st
             raise DocketError(f"{right_name or left_name}: --map names column '{rcol}', which it "
                               f"does not have (columns: {', '.join(right_frame.columns)})")
     pairs: list[tuple[str, str]] = []
-    # a column named alike but for letter case ('Name', 'name') is the same field: two exports
-    # of one register differ that way; an exact name or a --map pairing goes first
-    by_case = {str(c).lower(): c for c in right_frame.columns}
+    # a column named alike but for letter case ('Name', 'name') or Unicode form ('Prénom'
+    # composed, or with its accent a mark of its own) is the same field: two exports of one
+    # register differ that way; an exact name or a --map pairing goes first
+    def alike(name: object) -> str:
+        return unicodedata.normalize("NFC", str(name)).lower()
+
+    by_case = {alike(c): c for c in right_frame.columns}
     taken = set(mapping.values()) | (set(left.columns) & set(right_frame.columns))
     for lcol in left.columns:
         rcol = mapping.get(lcol, lcol)
         if rcol not in right_frame.columns and lcol not in mapping:
-            rcol = by_case.get(str(lcol).lower(), rcol)
+            rcol = by_case.get(alike(lcol), rcol)
             if rcol in taken:
                 continue
         if rcol in right_frame.columns:
