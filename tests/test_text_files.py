@@ -74,3 +74,23 @@ def test_a_separator_hint_in_a_matcher_file(sample_project: Path, tmp_path: Path
     rows.write_text("sep=;\nleft_id;right_id;score\nN-00005;S-10731;0.9\n", encoding="utf-8")
     assert main(["matchers", str(sample_project), "import", str(rows)]) == 0
     assert "stored matcher rater" in capsys.readouterr().out
+
+
+def test_a_table_without_a_header_row_is_said_to_want_one(tmp_path: Path,
+                                                          capsys: pytest.CaptureFixture[str]
+                                                          ) -> None:
+    # its first record was read as the column names: without --id, 'no id column found
+    # (columns: 1, Anna Berg, Oslo)'; with --id, built with that record gone, unsaid
+    left = tmp_path / "export.csv"
+    left.write_text("N-1,Anna Berg,Oslo\nN-2,Anna Berg,Oslo\nN-3,Bo Lind,Vik\nN-4,Bo Lind,Vik\n",
+                    encoding="utf-8")
+    said = (f"{left}: its first line reads as a record, not a header: 'Anna Berg' and 'Oslo' "
+            "are values of their own columns too; if the file has no header row, add one")
+    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(left))
+    assert_one_line_error(code, err, said)
+    assert main(["new", str(tmp_path / "q.docket"), "--left", str(left), "--id", "N-1"]) == 0
+    assert said in capsys.readouterr().err
+    # a header whose names are no values of their own columns says nothing
+    left.write_text("id,name,town\nN-1,Anna Berg,Oslo\nN-2,Anna Berg,Oslo\n", encoding="utf-8")
+    assert main(["new", str(tmp_path / "r.docket"), "--left", str(left)]) == 0
+    assert "reads as a record" not in capsys.readouterr().err

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import difflib
 import json
+import warnings
 from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
@@ -15,6 +16,7 @@ import pyarrow.compute as pc
 
 from ..errors import DocketError
 from ..wording import noun
+from .headerless import first_line_a_record
 from .id_forms import check_written_alike
 from .json_tables import read_json
 from .text_tables import EncodingWarning_ as EncodingWarning_
@@ -235,11 +237,12 @@ def load_table(path: str | Path, id_column: str | None,
     if taken is not None:  # a column so named hides SQLite's own row number, which search needs
         raise DocketError(f"{path}: column '{taken}' has the name SQLite keeps for its row "
                           f"numbers; rename it (for example to '{taken}_1')")
+    headless = first_line_a_record(path, frame, detect_format(path) in ("csv", "tsv", "text"))
     if id_column is None:
         # an id-like column with gaps or repeats is still the id: say what is wrong with it
         id_column = guess_id_column(frame) or next(iter(id_like(frame)), None)
         if id_column is None:
-            raise DocketError(f"{path}: no id column given and none found; "
+            raise DocketError(headless or f"{path}: no id column given and none found; "
                               f"pass --id COLUMN (columns: {', '.join(frame.columns)})")
     if id_column not in frame.columns:
         near = [c for c in frame.columns if c.casefold() == id_column.casefold()] or \
@@ -269,6 +272,8 @@ def load_table(path: str | Path, id_column: str | None,
     frame = frame.set_index(id_column, drop=True)
     frame.index = frame.index.astype(str)
     frame.index.name = id_column
+    if headless:
+        warnings.warn(headless, stacklevel=2)
     return Table(path=path, id_column=id_column, frame=frame)
 
 
