@@ -67,3 +67,20 @@ def test_the_scores_export_with_labels_filled_in_reads_without_a_warning(
     assert capsys.readouterr().err == (f"docket: warning: {scores}: 6 columns not read: 'a', "
                                        "'b', 'c', 'd', 'e' and 1 more; docket label reads "
                                        "pair_id, label, note, left_id, right_id\n")
+
+
+def test_a_label_file_without_a_header_is_said_to_want_one(sample_project: Path,
+                                                           tmp_path: Path, capsys) -> None:
+    # typed by hand, '1,match' first: it was "needs a 'label' column"
+    before = sample_project.read_bytes()
+    for body, first in (("1,match\n2,non-match\n", "match"),
+                        ("N-00001,S-10001,Non_Match,same\n", "Non_Match")):
+        rows = tmp_path / "labels.csv"
+        rows.write_text(body, encoding="utf-8")
+        assert main(["label", str(sample_project), "--reviewer", "maya", "--from",
+                     str(rows)]) == 2
+        err = capsys.readouterr().err.strip()
+        assert err == (f"docket: {rows}: its first line reads as a decision ('{first}'), not a "
+                       "header; add a header row: pair_id,label (or left_id,right_id,label), "
+                       "with note if the file has notes")
+    assert sample_project.read_bytes() == before

@@ -70,6 +70,12 @@ def read_rows(project: ProjectFile, path: Path, reviewer: str | None = None) -> 
                                 ("pair_id", "label", "note", "left_id", "right_id"))
     cols = set(frame.columns)
     if "label" not in cols:
+        said = [str(c) for c in frame.columns
+                if ALIASES.get(str(c).strip().lower(), str(c).strip().lower()) in LABELS]
+        if said:  # '1,match' on the first line: a decision, read as the header
+            raise DocketError(f"{path}: its first line reads as a decision ('{said[0]}'), not "
+                              "a header; add a header row: pair_id,label (or left_id,"
+                              "right_id,label), with note if the file has notes")
         raise DocketError(f"{path}: needs a 'label' column (with pair_id, or left_id and "
                           "right_id)")
     if not len(frame):
