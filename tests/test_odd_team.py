@@ -72,3 +72,28 @@ def test_reviewers_list_keeps_80_columns_with_a_long_name(odd_project, capsys) -
     at = lines.index(NAMES[0])  # on a line of its own, its figures under it
     assert lines[at + 1].split()[:2] == ["reviewer", "12"]
     assert any(x.startswith("محمد ") and "reviewer" in x for x in lines)  # short: one line
+
+
+@pilot_test
+async def test_the_reviews_panel_scrolls_when_its_reviews_run_past_its_foot(odd_project,
+                                                                           team_app):
+    # five reviewers with notes of a few lines: at 80x24 the adjudicator saw two of the five
+    # labels and not the gold line, and the panel could not be scrolled
+    from docket.tui.widgets.reviews import ReviewsPanel
+
+    note = ("the surname changed after marriage and the street is new but the pet is the "
+            "same old dog and the phone matches an earlier record")
+    with Project.open(odd_project) as p:
+        p.add_reviewer("lead", role="adjudicator")
+        pid = p.next_pairs("r0", 1)[0].pair_id
+        for k in range(5):
+            p.decide(pid, f"r{k}", ("match", "non-match")[k % 2], note=f"{k}: {note}")
+    app = team_app(odd_project)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        panel = app.screen.query_one(ReviewsPanel)
+        assert all(f"r{k} " in panel.content.plain for k in range(5))
+        assert panel.max_scroll_y > 0  # taller than the panel: it scrolls
+        await press(pilot, "tab", "end")  # as the help says: Tab moves to it
+        assert panel.scroll_y == panel.max_scroll_y
+        assert "gold" in screen_text(app)

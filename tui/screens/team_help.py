@@ -18,7 +18,8 @@ from .help import CAUTION, HelpScreen, KeyRow
 ADJUDICATION = (
     "Each pair here waits for a final label: its reviewers disagree, one held it, or a chain "
     "of gold matches contradicts a gold non-match. Every reviewer's label, note and time on "
-    "the pair (0:00 for labels read from a file) is shown beside the card. Decide with the "
+    "the pair (0:00 for labels read from a file) is shown beside the card; when they are "
+    "more than it holds, it scrolls (Tab moves to it, then the arrow keys). Decide with the "
     "review keys, then give a short reason: the adjudication is saved with it at once, and "
     "the pair becomes gold (a hold leaves it waiting). Escape in the reason box writes "
     "nothing. Undo adds a retraction to the log; nothing is deleted. Only adjudicators may "

@@ -17,6 +17,9 @@ from dataclasses import dataclass
 from rich.console import Console
 from rich.style import Style
 from rich.text import Text
+from textual.app import ComposeResult
+from textual.containers import VerticalScroll
+from textual.visual import VisualType
 from textual.widgets import Static
 
 from docket.core import odds_text
@@ -216,21 +219,42 @@ def _ids(ids: Sequence[int], most: int = 6) -> str:
     return shown + (f" +{len(ids) - most}" if len(ids) > most else "") if ids else "—"
 
 
-class ReviewsPanel(Static):
-    """Shows :func:`reviews_text` for the pair on screen, or a plain message."""
+class ReviewsPanel(VerticalScroll):
+    """Shows :func:`reviews_text` for the pair on screen, or a plain message; it scrolls.
+
+    A plain text widget does not scroll: five reviewers with notes of a few lines each ran
+    past the panel's foot at 80x24, and the adjudicator saw two of the five labels, and not
+    the gold line, with nothing to say so. The text now sits in a scrolling box (a scroll bar
+    shows when it is taller; Tab focuses it, the arrow keys or the wheel scroll it).
+    """
 
     BORDER_TITLE = "reviews"
 
     def __init__(self, *, id: str | None = None) -> None:
-        super().__init__("", id=id)
+        super().__init__(id=id)
         self._shown: tuple | None = None  # what show() was last given, for a resize
+
+    def compose(self) -> ComposeResult:
+        yield Static("", classes="reviews-text")
+
+    @property
+    def content(self) -> VisualType:
+        """What the panel shows now."""
+        return self.query_one(".reviews-text", Static).content
 
     def show(self, card: PairCard, standing: PairStanding, adjudicator: str, blind: bool,
              palette: Palette = PLAIN, aliases: Mapping[str, str] | None = None) -> None:
         self._shown = (card, standing, adjudicator, blind, palette, aliases)
-        width = self.content_size.width or NAME_WIDTH + ROW_REST
-        self.update(reviews_text(card, standing, adjudicator, blind, palette, aliases,
-                                 max(6, width - ROW_REST)))
+        # a cell kept for the scroll bar, shown or not: text drawn for the width without it
+        # wrapped again once the bar appeared ('time' alone on a line)
+        width = self.content_region.width - 1 if self.content_region.width else (
+            NAME_WIDTH + ROW_REST)
+        self._text(reviews_text(card, standing, adjudicator, blind, palette, aliases,
+                                max(6, width - ROW_REST)))
+
+    def _text(self, text: Text) -> None:
+        self.query_one(".reviews-text", Static).update(text)
+        self.scroll_home(animate=False)  # a new pair's reviews start at their top
 
     def on_resize(self) -> None:
         if self._shown is not None:
@@ -238,4 +262,4 @@ class ReviewsPanel(Static):
 
     def show_message(self, message: Text) -> None:
         self._shown = None
-        self.update(message)
+        self._text(message)
