@@ -33,6 +33,7 @@ _ELSEWHERE = {
     "file_trouble": ("storage.file_health", "explain"),
     "output_cut_short": ("storage.file_health", "output_cut_short"),
     "output_format": ("exports.exporting", "output_format"),
+    "refuse_folder": ("exports.exporting", "refuse_folder"),
     "atomic_write": ("exports.exporting", "atomic_write"),
     "write_rows": ("exports.export_kinds", "write_rows"),
     "write_scores": ("exports.scores_export", "write_scores"),

@@ -222,3 +222,19 @@ def test_an_export_never_replaces_a_table_the_project_was_built_from(
     elsewhere.parent.mkdir()
     elsewhere.write_text("pair_id,label\n", encoding="utf-8")
     assert main(["export", str(project), "--what", "scores", "-o", str(elsewhere)]) == 0
+
+
+def test_an_export_to_a_folder_asks_for_a_file_in_it(project: Path, tmp_path: Path,
+                                                     capsys) -> None:
+    # '-o .' was "cannot tell the format from the extension", and with --format csv
+    # "cannot write (Device or resource busy)"
+    folder = tmp_path / "out"
+    folder.mkdir()
+    for extra, example in (([], "scores.csv"), (["--format", "csv"], "scores.csv"),
+                           (["--what", "gold", "--for-lm"], "gold.jsonl"),
+                           (["--what", "model"], "model.json")):
+        assert main(["export", str(project), "-o", str(folder), *extra]) == 2
+        err = capsys.readouterr().err.strip()
+        assert err == (f"docket: {folder}: is a folder; give the export a file name in it, as "
+                       f"{folder / example}"), err
+    assert list(folder.iterdir()) == []

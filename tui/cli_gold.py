@@ -147,7 +147,9 @@ def evaluate(args: argparse.Namespace) -> int:
 
 
 def export(args: argparse.Namespace) -> int:
-    from docket.core import output_format
+    from docket.core import output_format, refuse_folder
+    kind = "json" if args.what == "model" else "jsonl" if args.for_lm else args.format or "csv"
+    refuse_folder(args.output, f"{args.what}.{kind}")
     if args.what == "model":
         from pathlib import Path
 

@@ -5,6 +5,7 @@ from __future__ import annotations
 import io
 import json
 import os
+import shlex
 import sys
 import tempfile
 from collections.abc import Callable, Iterable
@@ -25,7 +26,16 @@ FORMATS = {".csv": "csv", ".parquet": "parquet", ".pq": "parquet", ".jsonl": "js
            ".ndjson": "jsonl"}
 
 
+def refuse_folder(target: str, example: str = "export.csv") -> None:
+    """An export goes to a file: '-o .' or '-o exports/' was "cannot tell the format from the
+    extension", or with --format "cannot write (Device or resource busy)"."""
+    if target != "-" and (target.endswith(("/", os.sep)) or Path(target).is_dir()):
+        raise DocketError(f"{target}: is a folder; give the export a file name in it, as "
+                          f"{shlex.quote(str(Path(target) / example))}")
+
+
 def output_format(target: str, fmt: str | None) -> str:
+    refuse_folder(target, f"export.{fmt or 'csv'}")
     if fmt:
         if fmt not in ("csv", "parquet", "jsonl"):
             raise DocketError(f"--format {fmt}: use csv, parquet or jsonl")
