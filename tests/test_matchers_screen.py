@@ -144,3 +144,16 @@ async def test_the_table_and_the_failures_keep_every_figure_at_80x24(rated, team
         await settle(pilot)
         row = [c.plain for c in table.get_row("exact")]
         assert row[1] == "label" and row[3].startswith("1.000 [")  # wide: as before
+
+
+@pilot_test
+async def test_escape_on_the_screen_opened_alone_keeps_it(rated, team_app):
+    # 'docket evaluate --matchers --screen' then Escape took the only screen away: a blank
+    # terminal, where q did nothing (only ctrl+q quit)
+    app = team_app(rated, start="matchers")
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        await press(pilot, "escape")
+        assert isinstance(app.screen, MatchersScreen)
+        await press(pilot, "q")
+    assert app.return_code is not None or not app.is_running

@@ -132,6 +132,11 @@ class MatchersScreen(TeamScreen):
         if self.report is not None and narrow != self._narrow:
             self._table(self.report)
 
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        # opened alone from the shell (--screen) there is no screen to go back to: Escape
+        # took this one away and left a blank terminal where q did nothing
+        return not self.standalone if action == "back" else True
+
     def action_reload(self) -> None:
         self._load()
 

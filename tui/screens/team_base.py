@@ -33,7 +33,8 @@ class TeamScreen(Screen[None]):
         self.app.push_screen(TeamHelp(rows, app.keymap.path, app.keymap.problems, self.HELP))
 
     def action_back(self) -> None:
-        self.app.pop_screen()
+        if len(self.app.screen_stack) > 2:  # never the last screen: a blank one is under it
+            self.app.pop_screen()
 
     def action_quit(self) -> None:
         self.app.exit()
