@@ -94,3 +94,14 @@ def test_a_table_without_a_header_row_is_said_to_want_one(tmp_path: Path,
     left.write_text("id,name,town\nN-1,Anna Berg,Oslo\nN-2,Anna Berg,Oslo\n", encoding="utf-8")
     assert main(["new", str(tmp_path / "r.docket"), "--left", str(left)]) == 0
     assert "reads as a record" not in capsys.readouterr().err
+
+
+def test_a_matcher_file_split_by_semicolons(sample_project: Path, tmp_path: Path,
+                                            capsys: pytest.CaptureFixture[str]) -> None:
+    # its fast reader split at commas alone, read one column 'left_id;right_id;score' and
+    # refused the file as naming no left_id
+    rows = tmp_path / "rater.csv"
+    rows.write_text("left_id;right_id;score\nN-00005;S-10731;0.9\n", encoding="utf-8")
+    assert main(["matchers", str(sample_project), "import", str(rows)]) == 0
+    out, err = capsys.readouterr()
+    assert "stored matcher rater" in out and "separated by semicolons" in err

@@ -21,7 +21,7 @@ import pyarrow.parquet as pq
 
 from ..errors import DocketError
 from ..records.sources import detect_format, read_frame, row_named
-from ..records.text_tables import plain_names, separator_hint
+from ..records.text_tables import HEAD_BYTES, plain_names, separator_hint
 from ..storage import store
 from ..storage.pair_keys import pair_keys
 from ..storage.project_file import ProjectFile
@@ -73,7 +73,7 @@ def _read(path: Path) -> pa.Table:
     try:
         if fmt == "parquet":
             table = pq.read_table(path)
-        elif fmt in ("csv", "tsv") and not _hinted(path):
+        elif fmt in ("csv", "tsv") and _plain_header(path, "\t" if fmt == "tsv" else ","):
             table = pa.Table.from_pandas(
                 pd.read_csv(path, dtype=str, sep="\t" if fmt == "tsv" else ",",
                             engine="pyarrow", keep_default_na=False), preserve_index=False)
@@ -87,11 +87,14 @@ def _read(path: Path) -> pa.Table:
                      for name, col in zip(names, table.columns, strict=True)})
 
 
-def _hinted(path: Path) -> bool:
-    """A first line 'sep=;' (a spreadsheet's hint): the general reader takes it."""
+def _plain_header(path: Path, sep: str) -> bool:
+    """Whether the fast reader reads the file right: its header is split by ``sep`` and comes
+    first. A header split by semicolons (a spreadsheet's CSV in many locales) was read as one
+    column, 'left_id;right_id;score', and refused as naming none; a first line 'sep=;' was
+    read as the header. The general reader takes both."""
     with path.open("rb") as f:
-        head = f.read(16).decode("utf-8", errors="replace")
-    return separator_hint(head) is not None
+        head = f.read(HEAD_BYTES).decode("utf-8", errors="replace")
+    return separator_hint(head) is None and sep in head.split("\n", 1)[0]
 
 
 def _numeric(column: pa.ChunkedArray) -> bool:
