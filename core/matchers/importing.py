@@ -20,6 +20,7 @@ import pyarrow.compute as pc
 import pyarrow.parquet as pq
 
 from ..errors import DocketError
+from ..records import decimal_commas
 from ..records.sources import detect_format, read_frame, row_named
 from ..records.text_tables import HEAD_BYTES, plain_names, separator_hint
 from ..storage import store
@@ -122,7 +123,9 @@ def _values(table: pa.Table, path: Path) -> tuple[str, np.ndarray]:
         try:  # arrow parses decimal text exactly; pandas 2's to_numeric may lose the last bit
             num = pc.cast(pc.utf8_trim_whitespace(raw), pa.float64()).to_numpy()
         except pa.ArrowInvalid:  # blanks or words: find the first bad row below
-            num = pd.to_numeric(raw.to_pandas(), errors="coerce").to_numpy(dtype=float)
+            commas = decimal_commas.read_arrow(raw)  # '0,87', as a spreadsheet saved it
+            num = (commas.to_numpy(zero_copy_only=False) if commas is not None else
+                   pd.to_numeric(raw.to_pandas(), errors="coerce").to_numpy(dtype=float))
     bad = first(~np.isfinite(num))
     if bad is not None:
         raise fail(path, bad, f"score {raw[bad].as_py()!r} is not a number")

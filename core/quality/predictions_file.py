@@ -10,6 +10,7 @@ import pandas as pd
 import pyarrow as pa
 
 from ..errors import DocketError
+from ..records import decimal_commas
 from ..records.formula_guard import GUARD, unguarded
 from ..records.id_hints import form_hint
 from ..records.sources import read_frame, row_named
@@ -38,6 +39,9 @@ def _flag(values: pd.Series, path: Path) -> np.ndarray:
 
 
 def _numbers(values: pd.Series, column: str, path: Path) -> np.ndarray:
+    # '0,87' beside '1', as a spreadsheet saves scores in many European locales
+    if not pd.api.types.is_numeric_dtype(values) and decimal_commas.written_so(values):
+        values = values.map(lambda v: v if v is None else str(v).strip().replace(",", "."))
     num = pd.to_numeric(values, errors="coerce")
     bad = values[num.isna() | ~np.isfinite(num.fillna(0.0))]
     if len(bad):
