@@ -7,7 +7,7 @@ from textual.widgets import Input
 
 from docket.tui import literal
 from docket.tui.widgets.card_lines import shorten
-from tests.fixtures_review import pilot_test, press, settle
+from tests.fixtures_review import pilot_test, press, screen_text, settle
 from tests.odd_data import ESSAY
 
 
@@ -47,3 +47,34 @@ async def test_a_long_note_is_shortened_to_the_panel_and_says_so(odd_project, re
             assert _height(shown, panel.content_size.width) <= panel.content_size.height
             assert ("END" in shown.plain) == whole, size
             assert ("e shows the whole note" in shown.plain) != whole
+
+
+@pilot_test
+async def test_a_placeholder_is_named_so_on_the_card(tmp_path, review_app):
+    # 'N/A' beside 'N/A' (read as missing, as meant) stood under the word 'unread'
+    import warnings
+
+    from docket.core import NewProject, Project
+
+    for side in ("L", "R"):
+        rows = ["id,name,phone"] + [
+            f"{side}{i},Anna Berg{i},{'N/A' if i % 2 else f'555-01{i:02d}'}" for i in range(10)]
+        (tmp_path / f"{side}.csv").write_text("\n".join(rows) + "\n", encoding="utf-8")
+    (tmp_path / "pairs.csv").write_text(
+        "left_id,right_id\n" + "".join(f"L{i},R{i}\n" for i in range(10)), encoding="utf-8")
+    path = tmp_path / "p.docket"
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # 'N/A' stands for no value: said, as meant
+        Project.create(NewProject(path=path, left=tmp_path / "L.csv", right=tmp_path / "R.csv",
+                                  id_column="id", pairs_file=tmp_path / "pairs.csv", seed=0))
+    with Project.open(path) as p:
+        assert next(f for f in p.fields if f.name == "phone").missing == ("N/A",)
+        pid = p.find("L1")[0]
+    app = review_app(path)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        await press(pilot, "slash", *str(pid), "enter", "enter")
+        lines = screen_text(app).splitlines()
+        at = next(i for i, x in enumerate(lines) if "phone" in x and "N/A" in x)
+        shown = lines[at] + lines[at + 1]  # the level goes under the similarity
+        assert "placeholder" in shown and "unread" not in shown, shown

@@ -30,7 +30,7 @@ from ..diff import PLAIN, Palette
 from ..navigation import Mode, Move, Navigator
 from ..widgets import CardOptions, Pace, PairCardView, StatusLine
 from ..widgets.key_bar import KeyBar
-from ..widgets.pair_card import CardBox
+from ..widgets.pair_card import CardBox, placeholders_of
 from ..widgets.reviews import ConflictInfo, PairStanding, ReviewsPanel
 from .adjudication_queue import HELD, AdjudicationQueue
 from .help import key_rows
@@ -161,7 +161,9 @@ class AdjudicateScreen(AdjudicationQueue, Screen[None]):
             box.border_subtitle = None
             panel.show_message(Text(""))
         else:
-            card_view.show(self.card, CardOptions(self.palette, app.mask, self.show_extra))
+            card_view.show(self.card, CardOptions(
+                self.palette, app.mask, self.show_extra,
+                placeholders=placeholders_of(app.project.fields)))
             box.title_for(self.card, self.palette)
             box.border_subtitle = Text(self.where) if self.where else None
             panel.show(self.card, self.standing, app.adjudicator, app.blind, self.palette)

@@ -18,7 +18,7 @@ from textual.widgets import Static
 from ..diff import Palette
 from ..widgets import CardOptions, PairCardView
 from ..widgets.key_bar import KeyBar
-from ..widgets.pair_card import CardBox
+from ..widgets.pair_card import CardBox, placeholders_of
 from ..widgets.reviews import PairStanding, ReviewsPanel
 
 if TYPE_CHECKING:
@@ -68,8 +68,8 @@ class PairDetailScreen(Screen[None]):
         reviews = project.reviews_of(self.pair_id, app.adjudicator)
         gold = next(((g.label, g.how) for g in project.gold_labels()
                      if g.pair_id == self.pair_id), None)
-        self.query_one(PairCardView).show(card, CardOptions(palette, app.mask,
-                                                            self.show_extra))
+        self.query_one(PairCardView).show(card, CardOptions(
+            palette, app.mask, self.show_extra, placeholders=placeholders_of(project.fields)))
         box = self.query_one(CardBox)
         box.title_for(card, palette)
         panel = self.query_one(ReviewsPanel)

@@ -25,7 +25,7 @@ from .. import bindings as shared
 from ..diff import PLAIN, Palette
 from ..navigation import Mode, Navigator
 from ..widgets import CardOptions, EvidencePanel, KeyBar, Pace, PairCardView, StatusLine, YourSide
-from ..widgets.pair_card import CardBox
+from ..widgets.pair_card import CardBox, placeholders_of
 from .help import HelpScreen, key_rows
 from .review_background import ReviewBackground
 from .review_moves import ReviewMoves
@@ -163,7 +163,8 @@ class ReviewScreen(ReviewNotes, ReviewMoves, ReviewBackground, Screen[None]):
             self._where_shown = ""
             evidence.show(None, self.palette, model_note=self.model_note)
         else:
-            opts = CardOptions(self.palette, self.review_app.mask, self.show_extra)
+            opts = CardOptions(self.palette, self.review_app.mask, self.show_extra,
+                               placeholders=placeholders_of(self.review_app.project.fields))
             card_view.show(self.card, opts)
             box.title_for(self.card, self.palette)
             if self.where != self._where_shown:

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field, replace
 
 from rich.text import Text
@@ -10,7 +11,7 @@ from textual.widget import Widget
 from textual.widgets import Static
 
 from docket.core import factor_text
-from docket.core.types import FieldComparison, PairCard
+from docket.core.types import FieldComparison, FieldSpec, PairCard
 
 from .. import literal
 from ..diff import PLAIN, Palette, paired
@@ -33,6 +34,13 @@ class CardOptions:
     show_extra: bool = False
     stacked: bool = False
     full_values: bool = False  # wrap every long value, even when the card must then scroll
+    # each field's values read as missing ('N/A', 'XX1 1XX'), so that the card can say so
+    placeholders: Mapping[str, frozenset[str]] = field(default_factory=dict)
+
+
+def placeholders_of(fields: Iterable[FieldSpec]) -> dict[str, frozenset[str]]:
+    """The values each field reads as missing, for :class:`CardOptions`."""
+    return {f.name: frozenset(f.missing) for f in fields if f.missing}
 
 
 def similarity_bar(sim: float | None, cells: int = BAR_CELLS) -> str:
@@ -60,12 +68,15 @@ def factor_cell(part: float, palette: Palette, missing: bool = False) -> Text:
 UNREAD = {"number": "no number", "date": "no date"}
 
 
-def _level_text(row: FieldComparison) -> str:
+def _level_text(row: FieldComparison, placeholders: frozenset[str] = frozenset()) -> str:
     """The level as the card names it. 'missing' where both sides hold text means a value the
-    field's kind cannot read ('ca. 120' as a number): it counts as missing, but the reviewer
-    sees two values under the word 'missing' and cannot tell why."""
+    field's kind cannot read ('ca. 120' as a number), or one that stands for no value ('N/A'):
+    it counts as missing, but the reviewer sees two values under the word 'missing' and
+    cannot tell why. A placeholder is named so: 'unread' beside 'N/A' said nothing of it."""
     both = bool((row.left or "").strip()) and bool((row.right or "").strip())
     if row.level_name == "missing" and both:
+        if {(row.left or "").strip(), (row.right or "").strip()} & placeholders:
+            return "placeholder"
         return UNREAD.get(row.kind, "unread")
     return SHORT_LEVELS.get(row.level_name, row.level_name)
 
@@ -112,7 +123,8 @@ def card_text(card: PairCard, opts: CardOptions, width: int,
         name = _name(row.field, quiet, p)
         sim = Text(similarity_bar(row.similarity, cells), p.quiet if quiet else p.muted)
         weight = factor_cell(row.contribution, p, missing)
-        level_name = "" if quiet else _level_text(row)
+        level_name = "" if quiet else _level_text(row, opts.placeholders.get(row.field,
+                                                                             frozenset()))
         level = Text(level_name, p.muted)
         if cols.stacked:
             out.add(name, Text(marks[0], p.muted), [left], [sim], weight)
