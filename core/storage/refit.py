@@ -4,7 +4,8 @@ Labels come from the caller, one per pair, under the fitting rule of ``reviewing
 
 Honest by cross-fitting: the audit slice's labels help fit the model that ranks the queue, but
 ``evaluate`` judges each labelled audit pair by the score of a model fitted without its half of
-the slice (two halves by pair id), so no audit label is judged by a score it trained.
+the slice (two halves by pair id), its ranker (Fellegi–Sunter or logistic) chosen without that
+half too, so no audit label is judged by a score it trained or a choice it made.
 Blind: labels on pairs still open for another reviewer (overlap pairs) never reach a fit, so
 one reviewer's label cannot move the probability the next reviewer is shown for that pair.
 """
@@ -126,23 +127,33 @@ def refit(conn: sqlite3.Connection, labels: dict[int, int], mark: int | None = N
         coef = fit_logistic(x[lab_pat[mask]], lab_y[mask], bounds=bounds).coef
         return fs, LogOddsTable.from_logistic(fs_table, coef, n_levels)
 
-    everything = np.ones(len(lab_pairs), dtype=bool)
-    ranker = "fellegi-sunter"
-    fs_loss = lr_loss = None
-    n_match = int(lab_y.sum())
-    if n_match >= MIN_PER_CLASS and len(lab_y) - n_match >= MIN_PER_CLASS:
-        fs0 = LogOddsTable.from_fs(fs_fit(everything))
+    def choose(mask: np.ndarray) -> tuple[str, float | None, float | None]:
+        """The ranker that predicts held-out labels better, from the labels in ``mask``."""
+        y = lab_y[mask]
+        if y.sum() < MIN_PER_CLASS or len(y) - y.sum() < MIN_PER_CLASS:
+            return "fellegi-sunter", None, None
+
+        def fit_within(inner: np.ndarray) -> FSModel:
+            whole = np.zeros(len(lab_y), dtype=bool)
+            whole[np.flatnonzero(mask)[inner]] = True
+            return fs_fit(whole)
+
+        fs0 = LogOddsTable.from_fs(fs_fit(mask))
         x_all = one_hot(patterns, n_levels, fs0.log_odds(patterns))
-        fs_loss, lr_loss = _fold_losses(x_all, fs_fit, lab_pat, lab_y, lab_pairs, patterns,
-                                        bounds)
-        if lr_loss < fs_loss:
-            ranker = "logistic"
+        fs_l, lr_l = _fold_losses(x_all, fit_within, lab_pat[mask], y, lab_pairs[mask],
+                                  patterns, bounds)
+        return ("logistic" if lr_l < fs_l else "fellegi-sunter"), fs_l, lr_l
+
+    everything = np.ones(len(lab_pairs), dtype=bool)
+    n_match = int(lab_y.sum())
+    ranker, fs_loss, lr_loss = choose(everything)
     fs, table = table_fit(everything, ranker)
     crossed: dict[str, float] = {}
     for k in (0, 1):
         judged = is_audit & (half == k)
         if judged.any():
-            _, other = table_fit(~judged, ranker)
+            # the half's own labels choose neither the ranker nor its fit (cross-fitting)
+            _, other = table_fit(~judged, choose(~judged)[0])
             p_k = other.probability(patterns[lab_pat[judged]])
             crossed.update({str(int(p)): float(q) for p, q in zip(lab_pairs[judged], p_k,
                                                                    strict=True)})
