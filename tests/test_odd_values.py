@@ -78,3 +78,20 @@ async def test_a_placeholder_is_named_so_on_the_card(tmp_path, review_app):
         at = next(i for i, x in enumerate(lines) if "phone" in x and "N/A" in x)
         shown = lines[at] + lines[at + 1]  # the level goes under the similarity
         assert "placeholder" in shown and "unread" not in shown, shown
+
+
+def test_field_names_keep_their_ends_and_wide_names_their_cells() -> None:
+    # cut at the end, 'customer_address_line_1' and '..._2' both read 'customer_addr…', and a
+    # column of CJK names was as wide as their count of characters: '住所住 …'
+    from docket.core.types import FieldComparison, PairCard
+    from docket.tui.widgets.pair_card import CardOptions, card_text
+
+    names = ["住所住所住所", "名前", "customer_address_line_1", "customer_address_line_2"]
+    fields = tuple(FieldComparison(field=n, kind="text", left="a", right="b", similarity=0.5,
+                                   level=1, level_name="similar", contribution=0.3)
+                   for n in names)
+    card = PairCard(pair_id=1, left_id="l", right_id="r", probability=0.5, log_odds=0.0,
+                    base_log_odds=-1.2, reason="uncertain", fields=fields)
+    lines = card_text(card, CardOptions(), 54)[0].plain.splitlines()
+    shown = [x.split()[0] for x in lines[1:] if x.strip() and not x.startswith(" ")]
+    assert shown == ["住所住所住所", "名前", "custome…line_1", "custome…line_2"]

@@ -32,7 +32,8 @@ class Columns:
 
     @classmethod
     def fit(cls, width: int, names: list[str], stacked: bool) -> Columns:
-        name = max(5, min(14, max((len(n) for n in names), default=5)))
+        # cells, not characters: a column of CJK names was half as wide as its names
+        name = max(5, min(14, max((cell_len(literal.visible(n)) for n in names), default=5)))
         cells = 3 if stacked else BAR_CELLS
         sim = 6 + cells
         fixed = name + sim + 5 + 4 + (1 if stacked else 0)  # four gaps; stacked: L/R marker

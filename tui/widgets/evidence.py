@@ -134,7 +134,7 @@ def evidence_text(card: PairCard, palette: Palette, you: YourSide = YourSide(),
     steps = odds_steps(card)
     for (name, keep, factor), (_, part) in zip(step_lines(steps, width), steps, strict=True):
         text.append("  ")
-        shown = literal.one_line(name, keep, p.escape)
+        shown = literal.record_id(name, keep, p.escape)  # its end kept: names differ there
         text.append_text(shown)
         text.append(" " * (1 + keep - shown.cell_len))
         text.append(factor + "\n", p.positive if part > 0 else

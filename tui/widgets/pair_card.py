@@ -91,7 +91,9 @@ def _masked(row: FieldComparison, mask: Mask) -> bool:
 
 
 def _name(name: str, quiet: bool, palette: Palette, width: int = 14) -> Text:
-    text = literal.one_line(name, width, escape_style=palette.escape)
+    """A field's name in its column, its middle left out where it is longer: cut at the end,
+    'customer_address_line_1' and '..._2' both read 'customer_addr…'."""
+    text = literal.record_id(name, width, escape_style=palette.escape)
     text.stylize(palette.quiet if quiet else palette.heading)
     return text
 
@@ -120,7 +122,7 @@ def card_text(card: PairCard, opts: CardOptions, width: int,
         missing = row.left is None or row.right is None
         left, right = paired(row.left, row.right, row.kind, p,
                              mask=_masked(row, opts.mask), quiet=quiet)
-        name = _name(row.field, quiet, p)
+        name = _name(row.field, quiet, p, cols.name)
         sim = Text(similarity_bar(row.similarity, cells), p.quiet if quiet else p.muted)
         weight = factor_cell(row.contribution, p, missing)
         level_name = "" if quiet else _level_text(row, opts.placeholders.get(row.field,
@@ -158,7 +160,7 @@ def _extra_rows(out: Lines, card: PairCard, opts: CardOptions, width: int) -> No
             left = absent
         if key not in card.right_extra:
             right = absent
-        name = _name(key, False, p)
+        name = _name(key, False, p, out.cols.name)
         if out.cols.stacked:
             out.add(name, Text(marks[0], p.muted), [left], [], None)
             out.add(None, Text(marks[1], p.muted), [right], [], None)
