@@ -65,8 +65,11 @@ def how_fitted(fs: dict) -> list[str]:
     else:
         out.append("chance agreement (u) estimated among the candidate pairs")
     rounds = fs.get("iterations", 0)
+    by_rule = fs.get("rule_classes", 0)
     out.append(f"agreement among matches (m) by EM, {em_rounds(rounds)}"
-               + (f", {fs['labels_used']:,} labels held fixed" if fs.get("labels_used") else ""))
+               + (f", {fs['labels_used']:,} labels held fixed" if fs.get("labels_used") else "")
+               + (f", non-matches read as {by_rule} kinds, one per blocking rule (each pair "
+                  "under the first rule that found it)" if by_rule else ""))
     pooled = [f"{f}: {g}" for f, groups in zip(fs["fields"], fs.get("pooled", []), strict=False)
               for g in groups]
     out.append("levels kept in order" + (f" by pooling {'; '.join(pooled)}" if pooled

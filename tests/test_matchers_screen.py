@@ -88,7 +88,8 @@ async def test_the_table_then_where_a_matcher_fails_masked(rated, team_app):
         listed = fails.query_one("#failures-table")
         assert listed.row_count == len(groups) + sum(len(g.failures) for g in groups)
         text = screen_text(app)
-        assert groups[0].label in text and "gets wrong" in text
+        # a heading of nine fields is cut at the table's width ('... born diffe')
+        assert groups[0].label[:60] in text and "gets wrong" in text
         with Project.open(rated, readonly=True) as p:
             emails = {v for (v,) in p.connection.execute("SELECT email FROM left_records")
                       if v and len(v) > 8}

@@ -42,6 +42,8 @@ async def test_the_curve_fills_its_plot_and_the_axes_say_where_they_start(team, 
         rows = [r for r, line in enumerate(body) if line.strip()]
         width = max(len(line) for line in body)
         assert max(marked) - min(marked) > width // 2, size  # across more than half the plot
-        assert rows[-1] - rows[0] > len(body) // 2, size  # and down more than half of it
+        # and down more than half of it, unless the points lie within the axis's least span
+        # (0.2): then they keep to its top, as far apart as they are
+        assert rows[-1] - rows[0] > len(body) // 2 or y_low.group(1) == "0.80", size
 
     await on_the_plots_tab(team[0], team_app, check)

@@ -152,7 +152,7 @@ async def test_found_pairs_line_up_and_the_heading_says_more_may_match(review_sa
         lines = [o.prompt.plain for o in results._options if not o.disabled]
         assert len(lines) == 50 and heading.startswith("the first 50 pairs found; more may")
         assert len({line.index("  p ") for line in lines}) == 1
-        starts = {re.match(r".*?  p \S+\s+", line).end() for line in lines}  # type: ignore[union-attr]
+        starts = {re.match(r".*?  p (?:[<>] )?\S+\s+", line).end() for line in lines}  # type: ignore[union-attr]
         assert len(starts) == 1, "every line's values start at one column"
         await press(pilot, "escape", "slash", *"zzzqqq", "enter")
         heading = app.screen.query_one(OptionList)._options[0].prompt.plain

@@ -171,9 +171,12 @@ def _probabilities(project_path: Path) -> dict[frozenset, float]:
 
 def test_housemates_are_not_called_matches_for_sharing_one_home(tmp_path: Path) -> None:
     table, truth, housemates = _people(tmp_path / "people.csv")
-    Project.create(NewProject(path=tmp_path / "one.docket", left=table, id_column="id"))
+    # one blocking rule, so that EM reads one kind of non-match (with a kind per rule it
+    # calls no housemate a match either way, and the home's part would go unmeasured)
+    Project.create(NewProject(path=tmp_path / "one.docket", left=table, id_column="id",
+                              rules=["family_name"]))
     Project.create(NewProject(path=tmp_path / "apart.docket", left=table, id_column="id",
-                              together=["none"]))
+                              together=["none"], rules=["family_name"]))
     with Project.open(tmp_path / "one.docket") as project:
         told = " ".join(project.status().model["how_fitted"])
     assert "address, town, postcode, phone read together, as one home" in told

@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from . import rule_classes
 from . import together as together_mod
 from .dependence import fit_shrink
 
@@ -40,6 +41,7 @@ class FSModel:
     together: list[str] = field(default_factory=list)  # fields read as one (together.py)
     joint_u: float = 0.0  # chance that random records agree on all of ``together``
     factors: list[float] = field(default_factory=list)  # per field (together.py); [] = all 1
+    rule_classes: int = 0  # EM's kinds of non-matches, one per blocking rule (0: one kind)
 
     def log_odds_table(self) -> tuple[float, list[np.ndarray]]:
         """Natural log-odds before the fields, and each field's contribution per level."""
@@ -76,7 +78,7 @@ class FSModel:
                 "pooled": self.pooled, "sampled_pairs": self.sampled_pairs,
                 "frequent": self.frequent, "population": self.population,
                 "shrink": self.shrink, "together": self.together, "joint_u": self.joint_u,
-                "factors": self.factors}
+                "factors": self.factors, "rule_classes": self.rule_classes}
 
     @classmethod
     def from_dict(cls, d: dict) -> FSModel:
@@ -85,7 +87,8 @@ class FSModel:
                    d.get("u_source", "candidates"), d.get("pooled", []),
                    d.get("sampled_pairs", 0), d.get("frequent", {}), d.get("population", 0),
                    d.get("shrink", 1.0), list(d.get("together", [])),
-                   float(d.get("joint_u", 0.0)), list(d.get("factors", [])))
+                   float(d.get("joint_u", 0.0)), list(d.get("factors", [])),
+                   int(d.get("rule_classes", 0)))
 
 
 def posterior(weight: np.ndarray | float, prior: float) -> np.ndarray:
@@ -103,7 +106,7 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
            non_matches: np.ndarray | None = None, max_iter: int = EM_ROUNDS, tol: float = EM_TOL,
            start: FSModel | None = None, u_random: list[np.ndarray] | None = None,
            population: float | None = None, together: list[str] | None = None,
-           joint_u: float = 0.0) -> FSModel:
+           joint_u: float = 0.0, by_rule: rule_classes.RuleRows | None = None) -> FSModel:
     """EM over patterns; ``matches``/``non_matches`` count labelled pairs per pattern.
 
     Labelled pairs keep their class in every E-step (semi-supervised EM). EM over candidates
@@ -116,8 +119,10 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
     are kept in order (a better level never weighs less than a worse one: pool adjacent
     violators). With ``together`` (fields that say where a record lives) and ``joint_u`` (the
     chance of agreeing on all of them), EM reads those fields as one column and their weights
-    are scaled so that one home counts once (:mod:`together`). The fit is a pure function of
-    its inputs, so a refit on the same data gives the same parameters.
+    are scaled so that one home counts once (:mod:`together`). With ``by_rule`` (the pairs
+    counted by pattern and by the blocking rule that found them) and no labels, EM reads one
+    kind of non-match per rule (:mod:`rule_classes`). The fit is a pure function of its
+    inputs, so a refit on the same data gives the same parameters.
     """
     patterns = np.asarray(patterns, dtype=np.int64)
     counts = np.asarray(counts, dtype=float)
@@ -144,7 +149,10 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
         u = [np.asarray(x, dtype=float) for x in start.u]
         prior = start.prior
     it = 0
-    for it in range(1, max_iter + 1):  # noqa: B007 - the count is reported
+    # one class of non-matches per blocking rule, where EM reads enough columns (rule_classes)
+    by_rule_used = (start is None and not (lab_m.sum() or lab_n.sum())
+                    and rule_classes.usable(by_rule, len(seen_lv)))
+    for it in range(1, 0 if by_rule_used else max_iter + 1):  # noqa: B007 - reported
         g = FSModel(fields, seen_names, [list(x) for x in m], [list(x) for x in u],
                     prior).probability(seen)
         new_m, new_u, new_prior = _m_step(seen, seen_lv, free * g + lab_m,
@@ -155,9 +163,20 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
         m, u, prior = new_m, new_u, new_prior
         if delta < tol:
             break
+    view = None  # EM's share of matches per pattern, where the model alone does not give it
+    if by_rule_used and by_rule is not None:
+        seen_fields = ([n for i, n in enumerate(fields) if i not in members] + ["home"]
+                       if seen is not patterns else list(fields))
+        home = set(together or []) if seen is not patterns else set()
+        keyed = rule_classes.keyed_columns(by_rule.keys, seen_fields, home)
+        post, it = rule_classes.fit(seen[by_rule.pattern], by_rule, keyed, seen_lv, m,
+                                    max_iter, tol)
+        view = rule_classes.per_pattern(by_rule, post, len(counts))
+        m, u, prior = _m_step(seen, seen_lv, free * view + lab_m, free * (1.0 - view) + lab_n)
     if seen is not patterns:  # every field's own m and u, from EM's view of each pattern
-        g = FSModel(fields, seen_names, [list(x) for x in m], [list(x) for x in u],
-                    prior).probability(seen)
+        g = view if view is not None else FSModel(
+            fields, seen_names, [list(x) for x in m], [list(x) for x in u],
+            prior).probability(seen)
         m, u, prior = _m_step(patterns, n_lv, free * g + lab_m, free * (1.0 - g) + lab_n)
     model = _oriented(FSModel(fields, level_names, [list(x) for x in m], [list(x) for x in u],
                               prior, it, int(lab_m.sum() + lab_n.sum())))
@@ -174,13 +193,17 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
     out = FSModel(fields, level_names, [list(map(float, x)) for x in m],
                   [list(map(float, x)) for x in u], prior, it, model.labels_used, source,
                   pooled)
+    if by_rule_used and by_rule is not None:
+        out.rule_classes = len(by_rule.keys)
     if source == "random pairs":
         if together:
             out.together, out.joint_u = list(together), float(joint_u)
             out.factors = together_mod.factors(fields, level_names, m, u, out.together,
                                                joint_u)
         # EM's share of matches per pattern among the candidates, labels as they are
-        share = (free * model.probability(patterns) + lab_m) / np.maximum(counts, 1e-12)
+        if view is None:
+            view = model.probability(patterns)
+        share = (free * view + lab_m) / np.maximum(counts, 1e-12)
         base = math.log(out.prior / (1.0 - out.prior))
         fields_sum = out.pattern_weight(patterns) * math.log(2.0)
         out.shrink, base = fit_shrink(fields_sum, base, share, counts)

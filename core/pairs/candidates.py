@@ -136,6 +136,19 @@ def given_keys(source: PairSource, left: Table, right: Table | None, step: Step
     return distinct, reader.report(len(distinct))
 
 
+def rule_fields(rule_names: list[str], fields: list[FieldSpec]) -> list[list[str]]:
+    """The fields each rule's key reads, by its name ([] for given pairs and '*')."""
+    out: list[list[str]] = []
+    for name in rule_names:
+        try:
+            rule = blocking.parse_rule(name, fields)
+        except DocketError:  # 'given': pairs from a file
+            out.append([])
+            continue
+        out.append([k.column for k in rule.keys if k.func != "every"])
+    return out
+
+
 def rules_for(spec_rules: list[str], left: Table, right: Table | None, fields: list[FieldSpec],
               max_pairs: int, step: Step) -> tuple[list[blocking.Rule], bool]:
     if spec_rules:

@@ -195,9 +195,10 @@ def build(spec: NewProject, progress: Progress | None = None,
         step("fitting the model")
         patterns = levels_of(codes, scorer.radix)
         possible = possible_pairs(left, right)
+        by_rule = engine.rule_rows(codes, candidates.rule_fields(engine.rule_names, fields))
         model = fit_em(patterns, counts, base.level_names, [f.name for f in fields],
                        u_random=base.u, population=possible, together=base.together,
-                       joint_u=base.joint_u)
+                       joint_u=base.joint_u, by_rule=by_rule)
         model.population = possible
         model.sampled_pairs = base.sampled
         model.frequent = base.frequent

@@ -22,6 +22,7 @@ import pandas as pd
 
 from ..errors import DocketError
 from ..matching import compare
+from ..matching.rule_classes import RuleRows
 from ..ordering.sampling import SamplePlan, pick
 from ..pairs import blocking
 from ..pairs.candidates import possible_pairs, rules_for, width_of
@@ -168,6 +169,15 @@ class DaskEngine:
         if progress:
             progress(1, 1)
         return counts.index.to_numpy(np.int64), counts.to_numpy(np.int64)
+
+    def rule_rows(self, codes: np.ndarray, keys: list[list[str]]) -> RuleRows | None:
+        """After :meth:`score`: the pairs counted by pattern and by the rule that found them."""
+        if len(keys) < 2:
+            return None
+        sizes = self.frame.groupby(["code", "rule"]).size().compute()
+        joint = sizes.index.get_level_values(0).to_numpy(np.int64)
+        rules = sizes.index.get_level_values(1).to_numpy(np.int64)
+        return RuleRows.of(joint, rules, codes, keys, sizes.to_numpy())
 
     def keep(self, plan: SamplePlan, scorer: Any = None, progress: Any = None) -> Kept:
         """The kept pairs; their similarities are compared again by the caller."""

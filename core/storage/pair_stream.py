@@ -17,6 +17,7 @@ from typing import Any
 import numpy as np
 
 from ..matching import scoring
+from ..matching.rule_classes import RuleRows
 from ..ordering.sampling import Held, SamplePlan, pick
 from ..types import FieldSpec
 from .score_pool import score_all, workers_for
@@ -118,6 +119,10 @@ class InProcess:
             self.held_sims = np.concatenate(sims)
         codes, counts = np.unique(self.codes, return_counts=True)
         return codes, counts
+
+    def rule_rows(self, codes: np.ndarray, keys: list[list[str]]) -> RuleRows | None:
+        """After :meth:`score`: the pairs counted by pattern and by the rule that found them."""
+        return RuleRows.of(self.codes, self.rule_ix, codes, keys)
 
     def keep(self, plan: SamplePlan, scorer: ChunkScorer | None = None,
              progress: Callable[[int, int], None] | None = None) -> Kept:

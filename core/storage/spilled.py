@@ -121,6 +121,10 @@ class Spilled:
     def __len__(self) -> int:
         return self.n
 
+    def rule_rows(self, codes: np.ndarray, keys: list[list[str]]) -> None:
+        """Given pairs have no rule: EM reads them as one population."""
+        return None
+
     def _keys(self, b: int) -> np.ndarray:
         return np.fromfile(self._file(b, "keys"), dtype=np.int64)
 
