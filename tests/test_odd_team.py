@@ -97,3 +97,21 @@ async def test_the_reviews_panel_scrolls_when_its_reviews_run_past_its_foot(odd_
         await press(pilot, "tab", "end")  # as the help says: Tab moves to it
         assert panel.scroll_y == panel.max_scroll_y
         assert "gold" in screen_text(app)
+
+
+@pilot_test
+async def test_reviewer_names_keep_their_ends_in_the_reviews_panel(odd_project, team_app):
+    # cut at the end, 'annotator_north_01' and '..._02' both read 'annotator…' at 80x24
+    from docket.tui.widgets.reviews import ReviewsPanel
+
+    names = ("annotator_north_01", "annotator_north_02")
+    with Project.open(odd_project) as p:
+        p.add_reviewer("lead", role="adjudicator")
+        pid = p.next_pairs(names[0], 1)[0].pair_id
+        for name, label in zip(names, ("match", "non-match"), strict=True):
+            p.decide(pid, name, label)
+    app = team_app(odd_project)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        text = app.screen.query_one(ReviewsPanel).content.plain
+        assert "…h_01 " in text and "…h_02 " in text, text  # told apart

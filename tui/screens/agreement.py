@@ -116,7 +116,7 @@ class AgreementScreen(TeamScreen):
         table = self.query_one(DataTable)
         table.clear(columns=True)
         for name in names:
-            table.add_column(literal.one_line(self.shown[name], NAME_WIDTH, p.escape),
+            table.add_column(literal.record_id(self.shown[name], NAME_WIDTH, p.escape),
                              key=name)
         for row in names:
             cells: list[Text] = []
@@ -128,7 +128,7 @@ class AgreementScreen(TeamScreen):
                 else:
                     cells.append(cell_text(self.entries.get((row, col)), p))
             table.add_row(*cells, height=2, key=row,
-                          label=literal.one_line(self.shown[row], NAME_WIDTH, p.escape))
+                          label=literal.record_id(self.shown[row], NAME_WIDTH, p.escape))
         self.query_one("#agree-overall", Static).update(overall_text(report, self.shown, p))
         if report.reviewer_pairs:  # start on the reviewer pair with most pairs used
             top = max(report.reviewer_pairs, key=lambda r: r["n"])
@@ -219,16 +219,16 @@ class DisagreementsScreen(TeamScreen):
         self.rows = app.project.disagreements(self.a, self.b)
         sa, sb = self.shown.get(self.a, self.a), self.shown.get(self.b, self.b)
         head = Text(f"{many(len(self.rows), 'disagreement')} of ", "bold")
-        head.append_text(literal.one_line(sa, NAME_WIDTH, p.escape))
+        head.append_text(literal.record_id(sa, NAME_WIDTH, p.escape))
         head.append(" and ", "bold")
-        head.append_text(literal.one_line(sb, NAME_WIDTH, p.escape))
+        head.append_text(literal.record_id(sb, NAME_WIDTH, p.escape))
         head.append(" (a hold against a label counts) · Enter opens the pair", p.muted)
         self.query_one("#disagree-head", Static).update(head)
         table = self.query_one(DataTable)
         for label in ("pair", "left", "right"):
             table.add_column(Text(label, p.muted))
         for name in (sa, sb):
-            table.add_column(literal.one_line(name, NAME_WIDTH, p.escape))
+            table.add_column(literal.record_id(name, NAME_WIDTH, p.escape))
             table.add_column(Text("note", p.muted))
         note, id_cells = self._cells()
         for r in self.rows:
@@ -249,8 +249,8 @@ class DisagreementsScreen(TeamScreen):
         to 10) before a note goes below 8: two 200-character ids and a 12-cell name put the
         second note out of sight again."""
         pair = max([4, *(len(str(r["pair_id"])) for r in self.rows)])
-        labels = sum(max(len("non-match"), literal.one_line(self.shown.get(n, n),
-                                                            NAME_WIDTH).cell_len)
+        labels = sum(max(len("non-match"), literal.record_id(self.shown.get(n, n),
+                                                             NAME_WIDTH).cell_len)
                      for n in (self.a, self.b))  # a label column is as wide as its name
         widest = max([5, *(literal.record_id(str(r[k]), ID_CELLS).cell_len
                            for r in self.rows for k in ("left_id", "right_id"))])
@@ -276,8 +276,8 @@ class DisagreementsScreen(TeamScreen):
     def _open(self, pair_id: int) -> None:
         p = Palette.from_variables(self.app.get_css_variables(), self.app.no_color)
         heading = Text(f"pair {pair_id}: a disagreement of ", p.muted)
-        heading.append_text(literal.one_line(self.shown.get(self.a, self.a), NAME_WIDTH))
+        heading.append_text(literal.record_id(self.shown.get(self.a, self.a), NAME_WIDTH))
         heading.append(" and ", p.muted)
-        heading.append_text(literal.one_line(self.shown.get(self.b, self.b), NAME_WIDTH))
+        heading.append_text(literal.record_id(self.shown.get(self.b, self.b), NAME_WIDTH))
         heading.append(" · Escape goes back to the list", p.muted)
         self.app.push_screen(PairDetailScreen(pair_id, heading, self.shown))

@@ -41,9 +41,9 @@ def detail_text(entry: dict[str, Any], shown: dict[str, str], palette: Palette =
     p = palette
     a = shown.get(entry["reviewer_a"], entry["reviewer_a"])
     b = shown.get(entry["reviewer_b"], entry["reviewer_b"])
-    text = literal.one_line(a, NAME_WIDTH, p.escape)
+    text = literal.record_id(a, NAME_WIDTH, p.escape)
     text.append(" × ")
-    text.append_text(literal.one_line(b, NAME_WIDTH, p.escape))
+    text.append_text(literal.record_id(b, NAME_WIDTH, p.escape))
     text.append(f": {many(entry['n'], 'pair')} used of {entry['n_common']:,} in common\n", p.muted)
     text.append("Cohen's kappa ", p.muted)
     if entry["too_few"]:
@@ -58,9 +58,9 @@ def detail_text(entry: dict[str, Any], shown: dict[str, str], palette: Palette =
                     f"{number(entry['prevalence_index'])}  bias index "
                     f"{number(entry['bias_index'])}\n", p.muted)
     text.append("holds on the pairs in common: ", p.muted)
-    text.append_text(literal.one_line(a, NAME_WIDTH, p.escape))
+    text.append_text(literal.record_id(a, NAME_WIDTH, p.escape))
     text.append(f" {percent(entry['hold_rate_a'], ' ')}, ", p.muted)
-    text.append_text(literal.one_line(b, NAME_WIDTH, p.escape))
+    text.append_text(literal.record_id(b, NAME_WIDTH, p.escape))
     text.append(f" {percent(entry['hold_rate_b'], ' ')} · Enter lists their disagreements",
                 p.muted)
     return text
@@ -89,7 +89,7 @@ def overall_text(report: AgreementReport, shown: dict[str, str],
         text.append("Dawid–Skene  ", p.muted)
         parts = []
         for v in sorted(ds["reviewers"], key=lambda r: shown.get(r["name"], r["name"])):
-            part = literal.one_line(shown.get(v["name"], v["name"]), NAME_WIDTH, p.escape)
+            part = literal.record_id(shown.get(v["name"], v["name"]), NAME_WIDTH, p.escape)
             sens, spec = v["sensitivity"], v["specificity"]
             part.append(f" sensitivity {interval(sens['value'], sens['low'], sens['high'], 2)}, "
                         f"specificity {interval(spec['value'], spec['low'], spec['high'], 2)}")

@@ -123,7 +123,7 @@ def _review_lines(text: Text, reviews: Sequence[Review], names: Sequence[str], m
         if review.reviewer == me:
             who = Text("you", p.heading)
         else:
-            who = literal.one_line(name, width, p.escape)
+            who = literal.record_id(name, width, p.escape)  # its end kept: names differ there
         who.truncate(width, overflow="ellipsis", pad=True)
         text.append_text(who)
         text.append(" ")

@@ -85,7 +85,7 @@ class StatusLine(Horizontal):
         text = Text() if self.compact else Text("docket · ", "bold")
         text.append_text(literal.one_line(project, 14 if self.compact else 20))
         text.append(" · ")
-        text.append_text(literal.one_line(reviewer, 12 if self.compact else 16))
+        text.append_text(literal.record_id(reviewer, 12 if self.compact else 16))
         if busy:
             text.append(f" · {busy}", "italic")  # a word: a symbol would need explaining
         self._put("who", text, sized=True)
