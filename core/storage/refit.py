@@ -12,6 +12,7 @@ one reviewer's label cannot move the probability the next reviewer is shown for 
 
 from __future__ import annotations
 
+import contextlib
 import sqlite3
 from dataclasses import dataclass
 
@@ -81,6 +82,17 @@ def decision_mark(conn: sqlite3.Connection) -> int:
     return int(conn.execute("SELECT coalesce(max(rowid), 0) FROM decisions").fetchone()[0])
 
 
+def one_blas_thread() -> contextlib.AbstractContextManager[object]:
+    """BLAS on one thread while the models are fitted. Their products are small (labels by
+    about twenty columns, a hundred times per fit) and OpenBLAS's threads, waiting on each
+    other and on whatever else shares the cores, made them slow: a refit on 23,000 labels
+    took 4.1-7.8 s on two shared cores and 1.5-2.0 s on one thread, every figure the same."""
+    # scipy's own BLAS loaded now: the limit holds only for libraries loaded before it
+    import scipy.linalg  # noqa: F401
+    from threadpoolctl import threadpool_limits
+    return threadpool_limits(limits=1, user_api="blas")
+
+
 def refit(conn: sqlite3.Connection, labels: dict[int, int], mark: int | None = None
           ) -> RefitResult:
     """Refit from ``labels`` (pair_id -> 1 match / 0 non-match, the fitting rule of
@@ -90,6 +102,11 @@ def refit(conn: sqlite3.Connection, labels: dict[int, int], mark: int | None = N
     label commands, a review screen beside a merge), and the one that read its labels first
     may finish last; it then writes nothing, so the model stays the one fitted on more.
     """
+    with one_blas_thread():
+        return _refit(conn, labels, mark)
+
+
+def _refit(conn: sqlite3.Connection, labels: dict[int, int], mark: int | None) -> RefitResult:
     meta = store.get_meta(conn)
     base = FSModel.from_dict(meta["fs_model"])
     patterns, counts = _load(conn)
