@@ -37,6 +37,7 @@ async def main():
                         start=sys.argv[2], keymap_file=None)
     async with app.run_test(size=(120, 40)) as pilot:
         await pilot.pause()
+        await app.workers.wait_for_complete()  # the figures worked out, shown
         await pilot.pause()
     app.project.close()
 asyncio.run(main())
@@ -61,7 +62,10 @@ def _labels(pairs: pd.DataFrame, rng: np.random.Generator, flip: float) -> np.nd
 def _files(project: Path, folder: Path) -> None:
     """ana.csv and ben.csv (two reviewers), big.csv (25,000 rows), matcher.csv (every pair)."""
     import sqlite3
-    with sqlite3.connect(project) as conn:
+    from contextlib import closing
+    # closed, not only committed: an open connection kept the later commands' writes in the
+    # write-ahead log, which a copy of the file alone does not hold
+    with closing(sqlite3.connect(project)) as conn:
         pairs = pd.read_sql_query(
             "SELECT p.left_id, p.right_id, p.audit, t.probability FROM pairs p "
             "JOIN patterns t USING (pattern_id)", conn)
@@ -87,8 +91,12 @@ def _measure(args: list[str]) -> tuple[float, float]:
     out = Path(tempfile.mkstemp(suffix=".time")[1])
     cmd = [str(timer), "-f", "%M", "-o", str(out), *args] if timer.exists() else args
     t = time.perf_counter()
-    subprocess.run(cmd, check=True, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    run = subprocess.run(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
     wall = time.perf_counter() - t
+    if run.returncode:
+        lines = run.stderr.strip().splitlines() or ["(nothing on stderr)"]
+        print(f"failed ({run.returncode}): {' '.join(args[:3])}: {lines[-1]}", flush=True)
+        return float("nan"), float("nan")
     peak = (float(out.read_text().split()[-1]) / 1024 if timer.exists() else float("nan"))
     out.unlink()
     return wall, peak
