@@ -89,11 +89,18 @@ def bootstrap_interval(units: np.ndarray, statistic: Callable[[np.ndarray], floa
 
     Replicates where the statistic is undefined (NaN) are dropped; bounds clipped to [-1, 1].
     """
+    return bootstrap_rows(units.shape[0], lambda rows: statistic(units[rows]), confidence,
+                          n_boot, seed)
+
+
+def bootstrap_rows(n: int, statistic: Callable[[np.ndarray], float], confidence: float = 0.95,
+                   n_boot: int = N_BOOT, seed: int = 0) -> tuple[float | None, float | None]:
+    """``bootstrap_interval`` of ``n`` rows, ``statistic`` given each resample's row numbers
+    (the same draws)."""
     rng = np.random.default_rng(seed)
-    n = units.shape[0]
     if n < 2:
         return (None, None)
-    reps = np.array([statistic(units[rng.integers(0, n, n)]) for _ in range(n_boot)])
+    reps = np.array([statistic(rng.integers(0, n, n)) for _ in range(n_boot)])
     reps = reps[np.isfinite(reps)]
     if reps.size < n_boot // 2:
         return (None, None)
@@ -162,3 +169,37 @@ def alpha_from_counts(counts: np.ndarray) -> float:
     agree = float(np.sum(np.sum(counts * (counts - 1.0), axis=1) / (per_unit - 1.0)))
     chance = n * n - float(np.sum(counts.sum(axis=0) ** 2))
     return math.nan if chance <= 0 else 1.0 - (n - 1.0) * (n - agree) / chance
+
+
+# Over 25,000 pairs that four reviewers labelled, the two intervals above took 8.7 s: each of
+# 4,000 resamples copied the table and worked every row out again. Each row's part is worked
+# out once here, with the same operations, and a resample's figure from its rows' parts and
+# its column sums (whole numbers, exact in any order): the same figures to the bit.
+def fleiss_of_rows(table: np.ndarray) -> Callable[[np.ndarray], float]:
+    """``fleiss_from_counts(table[rows])`` as a function of ``rows``."""
+    m = table.sum(axis=1)[0]
+    agreeing = (np.sum(table.astype(float) ** 2, axis=1) - m) / (m * (m - 1))
+
+    def stat(rows: np.ndarray) -> float:
+        columns = np.bincount(rows, minlength=len(table)) @ table
+        shares = columns / columns.sum()
+        p_bar = float(np.mean(agreeing[rows]))
+        p_e = float(np.sum(shares ** 2))
+        return math.nan if 1.0 - p_e < 1e-12 else (p_bar - p_e) / (1.0 - p_e)
+    return stat
+
+
+def alpha_of_rows(counts: np.ndarray) -> Callable[[np.ndarray], float]:
+    """``alpha_from_counts(counts[rows])`` as a function of ``rows``."""
+    per_unit = counts.sum(axis=1)
+    agreeing = np.sum(counts * (counts - 1.0), axis=1) / (per_unit - 1.0)
+
+    def stat(rows: np.ndarray) -> float:
+        n = float(per_unit[rows].sum())
+        if n == 0:
+            return math.nan
+        agree = float(np.sum(agreeing[rows]))
+        columns = np.bincount(rows, minlength=len(counts)) @ counts
+        chance = n * n - float(np.sum(columns ** 2))
+        return math.nan if chance <= 0 else 1.0 - (n - 1.0) * (n - agree) / chance
+    return stat

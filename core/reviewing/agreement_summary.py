@@ -28,9 +28,9 @@ from .agreement import (
 )
 from .agreement_intervals import (
     MIN_PAIRS,
-    alpha_from_counts,
-    bootstrap_interval,
-    fleiss_from_counts,
+    alpha_of_rows,
+    bootstrap_rows,
+    fleiss_of_rows,
     pabak_interval,
 )
 from .agreement_many import fleiss, krippendorff_alpha_nominal, rating_counts
@@ -168,10 +168,10 @@ def overall_agreement(
         result = fleiss(counts)
         kappa, band, used = result.kappa, result.band, len(chosen)
         if used >= MIN_PAIRS:
-            f_low, f_high = bootstrap_interval(counts, fleiss_from_counts)
+            f_low, f_high = bootstrap_rows(len(counts), fleiss_of_rows(counts))
         pairable = rating_counts([v for v in per_unit.values() if len(v) >= 2], categories)
         if len(pairable) >= MIN_PAIRS:
-            a_low, a_high = bootstrap_interval(pairable.astype(float), alpha_from_counts)
+            a_low, a_high = bootstrap_rows(len(pairable), alpha_of_rows(pairable.astype(float)))
     data = [[counted(given.get(unit)) for unit in per_unit] for given in labels.values()]
     return OverallResult(
         include_hold=include_hold,
