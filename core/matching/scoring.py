@@ -24,7 +24,7 @@ def normalised(fields: list[FieldSpec], frame: pd.DataFrame, side: str) -> dict[
     for f in fields:
         column = f.left_column if side == "left" else f.right_column
         values = frame[column]
-        out[f.name] = distinct.per_distinct(values, normalise.reader(f.kind, values.unique()))
+        out[f.name] = distinct.per_distinct(values, normalise.reader(f.kind, values))
     return out
 
 

@@ -128,7 +128,7 @@ def _key_values(key: Key, values: pd.Series, kind: str) -> tuple[Lists, Lists]:
     elif key.func == "tokens":
         norm = normalise.words
     elif kind in ("number", "date", "code"):
-        norm = normalise.reader(kind, values.unique())
+        norm = normalise.reader(kind, values)
     else:
         norm = normalise.words
     done = distinct.per_distinct(values, norm)

@@ -185,9 +185,9 @@ def _full_year(two_digits: int) -> int:
     return year - 100 if year > now else year
 
 
-def reader(kind: str, values: Iterable[object]) -> Callable[[str], object]:
+def reader(kind: str, values: pd.Series) -> Callable[[str], object]:
     """The normaliser of a kind for one side's column (a date column's order is its own)."""
-    return date_reader(values) if kind == "date" else NORMALISERS[kind]
+    return date_reader(values.unique()) if kind == "date" else NORMALISERS[kind]
 
 
 NORMALISERS: dict[str, Callable[[str], object]] = {
