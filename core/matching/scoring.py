@@ -72,7 +72,8 @@ def compare_pairs(fields: list[FieldSpec], left_norm: dict[str, np.ndarray],
             done += 1
             if progress:
                 progress(done, steps)
-        name_swap.apply(fields, li[sl], ri[sl], sims[sl], levels[sl], frequent, prepared)
+        name_swap.apply(fields, li[sl], ri[sl], sims[sl], levels[sl], frequent, prepared,
+                        (left_norm, right_norm))
     return sims, levels
 
 
