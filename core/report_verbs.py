@@ -14,6 +14,8 @@ from .storage.project_file import ProjectFile
 if TYPE_CHECKING:
     import pandas as pd
 
+    from .types import ClusterConflict
+
 
 class ReportVerbs(ProjectFile):
     """Mixed into ``Project``."""
@@ -62,6 +64,11 @@ class ReportVerbs(ProjectFile):
     def clusters_frame(self, all_records: bool = False) -> pd.DataFrame:
         from .exports.gold_export import clusters_frame
         return clusters_frame(self, all_records)
+
+    def clusters_and_conflicts(self) -> tuple[pd.DataFrame, list[ClusterConflict]]:
+        """The clusters frame and the conflicts, the gold labels read once for both."""
+        from .exports.gold_export import clusters_and_conflicts
+        return clusters_and_conflicts(self)
 
     def refuse_over_sources(self, target: str) -> None:
         """Refuse an export ``target`` that is a table this project was built from."""

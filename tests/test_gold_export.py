@@ -273,3 +273,9 @@ def test_the_queue_reads_the_gold_labels_once_and_finds_what_two_reads_found(
     assert ge.conflict_queue_pairs(tiny) == twice and len(calls) == 1
     pd.testing.assert_frame_equal(ge.conflicts_frame(tiny), listing)
     assert len(calls) == 2
+
+
+def test_clusters_and_conflicts_from_one_reading_are_each_as_read_alone(tiny: Project) -> None:
+    frame, found = tiny.clusters_and_conflicts()
+    pd.testing.assert_frame_equal(frame, ge.clusters_frame(tiny))
+    assert found == ge.conflicts(tiny) and found

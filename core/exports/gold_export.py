@@ -191,15 +191,16 @@ def _state(project: ProjectFile, all_records: bool = False,
     return _State(cluster_of, clustering.conflicts(cluster_of, non), by_cluster, non_ids)
 
 
-def clusters_frame(project: ProjectFile, all_records: bool = False) -> pd.DataFrame:
+def clusters_frame(project: ProjectFile, all_records: bool = False,
+                   gold: pd.DataFrame | None = None) -> pd.DataFrame:
     """Record id -> cluster id over the connected components of the gold matches.
 
     By default the records named by some gold label; with ``all_records`` every record (the
     rest are singletons). Link mode adds ``side`` (left or right): the same id may occur on
     both sides and name different records. ``cluster_size`` counts members; ``conflict`` marks
-    a cluster that holds a gold non-match.
+    a cluster that holds a gold non-match. ``gold``: ``gold_frame``, when the caller has it.
     """
-    state = _state(project, all_records)
+    state = _state(project, all_records, gold)
     sizes = pd.Series(list(state.cluster_of.values())).value_counts().to_dict()
     bad = {c.cluster for c in state.conflicts}
     rows = []
@@ -225,6 +226,13 @@ def conflicts(project: ProjectFile, gold: pd.DataFrame | None = None) -> list[Cl
         tuple(sorted(state.non_match_ids[pair] for pair in c.non_matches)),
         tuple(sorted(state.match_pairs.get(c.cluster, []))))
         for c in state.conflicts]
+
+
+def clusters_and_conflicts(project: ProjectFile
+                           ) -> tuple[pd.DataFrame, list[ClusterConflict]]:
+    """``clusters_frame`` and ``conflicts`` from one reading of the gold labels."""
+    gold = gold_frame(project)
+    return clusters_frame(project, gold=gold), conflicts(project, gold)
 
 
 def conflict_pairs(project: ProjectFile) -> set[int]:

@@ -94,7 +94,8 @@ def no_gold_yet(project: ProjectFile, drawn: int) -> DocketError:
                        "audit pair")
 
 
-def audit_sample(project: ProjectFile, scores: pd.Series | None = None) -> AuditSample:
+def audit_sample(project: ProjectFile, scores: pd.Series | None = None,
+                 gold: Mapping[int, int] | None = None) -> AuditSample:
     """The audit slice's standing gold labels with their strata and inclusion probabilities.
 
     ``scores`` (by pair id) defaults to ``model_scores``; every candidate pair's score goes in
@@ -104,7 +105,7 @@ def audit_sample(project: ProjectFile, scores: pd.Series | None = None) -> Audit
     """
     scores = model_scores(project) if scores is None else scores
     rows = audit_rows(project)
-    gold = gold_y(project)
+    gold = gold_y(project) if gold is None else gold  # (``gold_y``, when the caller has it)
     held = held_pairs(project, gold)
     base = sample_from(scores.reindex(rows["pair_id"]).to_numpy(),
                        [gold.get(int(p)) for p in rows["pair_id"]], rows["stratum"].to_numpy(),

@@ -104,7 +104,9 @@ def _report(project: ProjectFile, scores: pd.Series, threshold: float,
     _check_target("recall", target_recall)
     if target_precision is not None and target_recall is not None:
         raise DocketError("give --target-precision or --target-recall, not both")
-    sample, design_strata = design or (audit_sample(project, scores), audit_strata(project))
+    gold = gold_y(project)  # once: every gold label worked out took 0.5 s at 28,000
+    sample, design_strata = design or (audit_sample(project, scores, gold),
+                                       audit_strata(project))
     drawn = sum(v[1] for v in design_strata.values())
     if sample.n_labelled == 0:
         raise no_gold_yet(project, drawn)
@@ -113,7 +115,6 @@ def _report(project: ProjectFile, scores: pd.Series, threshold: float,
     rows = [e.to_dict() for e in table]
     for row in rows:
         row["note"] = "; ".join(design_notes(sample, row["threshold"], confidence))
-    gold = gold_y(project)
     g_ids = np.fromiter(gold, dtype=np.int64, count=len(gold))
     g_y = np.fromiter(gold.values(), dtype=np.int64, count=len(gold))
     g_s = scores.reindex(g_ids).to_numpy(dtype=float)

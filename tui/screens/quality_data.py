@@ -47,8 +47,8 @@ def load_quality(project: Project) -> QualityData:
     found: tuple[ClusterConflict, ...] = ()
     clusters = largest = clustered = 0
     try:
-        found = tuple(project.conflicts())
-        frame = project.clusters_frame()
+        frame, listed = project.clusters_and_conflicts()
+        found = tuple(listed)
         sizes = frame.drop_duplicates("cluster")["cluster_size"]
         multi = sizes[sizes >= 2]
         clusters, clustered = len(multi), int(multi.sum())
