@@ -84,3 +84,13 @@ def test_housemates_with_rules_of_their_own(tmp_path: Path) -> None:
     assert len(mates) > 50 and sum(read[p] >= 0.5 for p in mates) <= 0.02 * len(mates)
     true = [frozenset(p) for p in truth if frozenset(p) in read]
     assert sum(read[p] >= 0.5 for p in true) >= 0.95 * len(true)
+
+
+def test_rows_of_codes_near_the_top_of_int64() -> None:
+    # a project of many fields has pattern codes near 2**62: codes times the rules overflowed
+    big = np.array([2**62 + 5, 2**62 + 9], dtype=np.int64)
+    rows = rule_classes.RuleRows.of(big[[0, 1, 1]], np.array([2, 0, 2]), big,
+                                    [["a"], ["b"], ["c"]])
+    assert rows is not None
+    assert list(zip(rows.pattern, rows.rule, rows.counts, strict=True)) == [
+        (0, 2, 1.0), (1, 0, 1.0), (1, 2, 1.0)]

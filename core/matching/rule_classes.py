@@ -45,11 +45,13 @@ class RuleRows:
         rules = np.asarray(rules, dtype=np.int64)
         if len(keys) < 2 or len(codes) == 0 or np.all(rules == rules[0]):
             return None
-        uniq, inverse = np.unique(codes * len(keys) + rules, return_inverse=True)
+        # by pattern index, not code: a code of many fields times the rules passes int64
+        at = np.searchsorted(pattern_codes, codes).astype(np.int64)
+        uniq, inverse = np.unique(at * len(keys) + rules, return_inverse=True)
         counts = np.bincount(inverse, weights=None if pairs is None else
                              np.asarray(pairs, dtype=float), minlength=len(uniq))
-        return cls(np.searchsorted(pattern_codes, uniq // len(keys)), uniq % len(keys),
-                   counts.astype(float), [list(k) for k in keys])
+        return cls(uniq // len(keys), uniq % len(keys), counts.astype(float),
+                   [list(k) for k in keys])
 
 
 def usable(rows: RuleRows | None, columns: int) -> bool:
