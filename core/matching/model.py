@@ -178,8 +178,11 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
             fields, seen_names, [list(x) for x in m], [list(x) for x in u],
             prior).probability(seen)
         m, u, prior = _m_step(patterns, n_lv, free * g + lab_m, free * (1.0 - g) + lab_n)
-    model = _oriented(FSModel(fields, level_names, [list(x) for x in m], [list(x) for x in u],
-                              prior, it, int(lab_m.sum() + lab_n.sum())))
+    fitted = FSModel(fields, level_names, [list(x) for x in m], [list(x) for x in u], prior,
+                     it, int(lab_m.sum() + lab_n.sum()))
+    model = _oriented(fitted)
+    if model is not fitted and view is not None:  # the classes swapped names: so does the view
+        view = 1.0 - view
     m = [np.asarray(x) for x in model.m]
     u = [np.asarray(x) for x in model.u]
     prior = model.prior
