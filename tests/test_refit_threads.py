@@ -3,6 +3,8 @@
 from __future__ import annotations
 
 import contextlib
+import json
+import math
 import shutil
 import sqlite3
 from pathlib import Path
@@ -39,4 +41,20 @@ def test_one_blas_thread_fits_the_same_model(sample_project: Path, tmp_path: Pat
     monkeypatch.setattr(refit, "one_blas_thread", contextlib.nullcontext)
     with Project.open(other) as q:
         q.refit()
-    assert _fitted(sample_project) == _fitted(other)
+    # the same to the bit on the newest BLAS; an older one sums a product's parts in another
+    # order on several threads, so the last bits of a float may differ (the floors' run)
+    assert _close(_fitted(sample_project), _fitted(other))
+
+
+def _close(a: object, b: object) -> bool:
+    """Equal, floats within 1e-9 relative, JSON text read as its values."""
+    if isinstance(a, str) and isinstance(b, str) and a[:1] in "[{" and b[:1] in "[{":
+        a, b = json.loads(a), json.loads(b)
+    if isinstance(a, float) or isinstance(b, float):
+        return isinstance(a, int | float) and isinstance(b, int | float) and \
+            math.isclose(a, b, rel_tol=1e-9, abs_tol=1e-12)
+    if isinstance(a, dict) and isinstance(b, dict):
+        return a.keys() == b.keys() and all(_close(a[k], b[k]) for k in a)
+    if isinstance(a, list | tuple) and isinstance(b, list | tuple):
+        return len(a) == len(b) and all(_close(x, y) for x, y in zip(a, b, strict=True))
+    return a == b
