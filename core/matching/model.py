@@ -150,9 +150,9 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
         prior = start.prior
     it = 0
     # one class of non-matches per blocking rule, where EM reads enough columns (rule_classes)
-    by_rule_used = (start is None and not (lab_m.sum() or lab_n.sum())
-                    and rule_classes.usable(by_rule, len(seen_lv)))
-    for it in range(1, 0 if by_rule_used else max_iter + 1):  # noqa: B007 - reported
+    rules = by_rule if (start is None and not (lab_m.sum() or lab_n.sum())
+                        and rule_classes.usable(by_rule, len(seen_lv))) else None
+    for it in range(1, 0 if rules is not None else max_iter + 1):  # noqa: B007 - reported
         g = FSModel(fields, seen_names, [list(x) for x in m], [list(x) for x in u],
                     prior).probability(seen)
         new_m, new_u, new_prior = _m_step(seen, seen_lv, free * g + lab_m,
@@ -164,14 +164,14 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
         if delta < tol:
             break
     view = None  # EM's share of matches per pattern, where the model alone does not give it
-    if by_rule_used and by_rule is not None:
+    if rules is not None:
         seen_fields = ([n for i, n in enumerate(fields) if i not in members] + ["home"]
                        if seen is not patterns else list(fields))
         home = set(together or []) if seen is not patterns else set()
-        keyed = rule_classes.keyed_columns(by_rule.keys, seen_fields, home)
-        post, it = rule_classes.fit(seen[by_rule.pattern], by_rule, keyed, seen_lv, m,
-                                    max_iter, tol)
-        view = rule_classes.per_pattern(by_rule, post, len(counts))
+        keyed = rule_classes.keyed_columns(rules.keys, seen_fields, home)
+        post, it = rule_classes.fit(seen[rules.pattern], rules, keyed, seen_lv, m, max_iter,
+                                    tol)
+        view = rule_classes.per_pattern(rules, post, len(counts))
         m, u, prior = _m_step(seen, seen_lv, free * view + lab_m, free * (1.0 - view) + lab_n)
     if seen is not patterns:  # every field's own m and u, from EM's view of each pattern
         g = view if view is not None else FSModel(
@@ -196,8 +196,8 @@ def fit_em(patterns: np.ndarray, counts: np.ndarray, level_names: list[list[str]
     out = FSModel(fields, level_names, [list(map(float, x)) for x in m],
                   [list(map(float, x)) for x in u], prior, it, model.labels_used, source,
                   pooled)
-    if by_rule_used and by_rule is not None:
-        out.rule_classes = len(by_rule.keys)
+    if rules is not None:
+        out.rule_classes = len(rules.keys)
     if source == "random pairs":
         if together:
             out.together, out.joint_u = list(together), float(joint_u)

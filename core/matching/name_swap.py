@@ -15,7 +15,6 @@ all present: 24 of the people's 140 misses with no labels were such.
 from __future__ import annotations
 
 import numpy as np
-from rapidfuzz import process
 from rapidfuzz.distance import JaroWinkler
 
 from ..records import normalise
@@ -52,11 +51,6 @@ def close_level(field: FieldSpec, frequent: dict[str, list]) -> int:
     return 2 if field.name in frequent else 1
 
 
-def _close(a: list, b: list) -> np.ndarray:
-    """Jaro–Winkler of each two normalised names, as the name comparator's 'close' reads it."""
-    return process.cpdist(a, b, scorer=JaroWinkler.normalized_similarity, dtype=np.float32)
-
-
 def apply(fields: list[FieldSpec], li: np.ndarray, ri: np.ndarray, sims: np.ndarray,
           levels: np.ndarray, frequent: dict[str, list],
           prepared: dict[str, compare.Prepared],
@@ -84,8 +78,10 @@ def apply(fields: list[FieldSpec], li: np.ndarray, ri: np.ndarray, sims: np.ndar
         if not len(rest):
             continue
         left, right = norm
-        x = _close(left[fa][li[rest]].tolist(), right[fb][ri[rest]].tolist())
-        y = _close(left[fb][li[rest]].tolist(), right[fa][ri[rest]].tolist())
+        # the name comparator's own scorer (Jaro–Winkler, on the threads it is allowed)
+        score = compare.SCORERS["name"]
+        x = score(left[fa][li[rest]].tolist(), right[fb][ri[rest]].tolist())
+        y = score(left[fb][li[rest]].tolist(), right[fa][ri[rest]].tolist())
         near = (x >= CLOSE) & (y >= CLOSE)
         rows = rest[near]
         if len(rows):

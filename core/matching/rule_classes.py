@@ -85,8 +85,10 @@ def fit(seen: np.ndarray, rows: RuleRows, keyed: list[set[int]], n_lv: list[int]
     each row, as EM reads them), and the rounds taken."""
     n_rules = len(rows.keys)
     group, w = rows.rule, rows.counts
+    of_rule = [group == g for g in range(n_rules)]
+    totals = np.bincount(group, weights=w, minlength=n_rules)
     m = [np.asarray(x, dtype=float) for x in m_start]
-    u = [[_normal(_counts(seen[group == g, f], w[group == g], k)) for f, k in enumerate(n_lv)]
+    u = [[_normal(_counts(seen[of_rule[g], f], w[of_rule[g]], k)) for f, k in enumerate(n_lv)]
          for g in range(n_rules)]
     prior = np.full(n_rules, 0.1)
     it = 0
@@ -103,10 +105,9 @@ def fit(seen: np.ndarray, rows: RuleRows, keyed: list[set[int]], n_lv: list[int]
         wm, wu = w * post, w * (1.0 - post)
         new_m = [_normal(_counts(seen[:, f], wm, k)) for f, k in enumerate(n_lv)]
         shared = [_normal(_counts(seen[:, f], wu, k)) for f, k in enumerate(n_lv)]
-        new_u = [[_normal(_counts(seen[group == g, f], wu[group == g], k))
+        new_u = [[_normal(_counts(seen[of_rule[g], f], wu[of_rule[g]], k))
                   if f in keyed[g] else shared[f] for f, k in enumerate(n_lv)]
                  for g in range(n_rules)]
-        totals = np.bincount(group, weights=w, minlength=n_rules)
         new_prior = np.clip(np.bincount(group, weights=wm, minlength=n_rules)
                             / np.maximum(totals, 1e-300), 1e-6, 1 - 1e-6)
         delta = max(float(np.max(np.abs(new_prior - prior))),

@@ -125,7 +125,15 @@ def _refit(conn: sqlite3.Connection, labels: dict[int, int], mark: int | None) -
     n_levels = [len(x) for x in base.level_names]
     bounds = ordered_bounds(n_levels)  # the ranker's levels kept in order, as the model's are
 
+    fitted_on: dict[bytes, FSModel] = {}  # the ranker's choice and its fit share a mask's fit
+
     def fs_fit(mask: np.ndarray) -> FSModel:
+        key = np.packbits(mask).tobytes()  # one length of mask within a refit
+        if key not in fitted_on:
+            fitted_on[key] = _fs_fit(mask)
+        return fitted_on[key]
+
+    def _fs_fit(mask: np.ndarray) -> FSModel:
         m = np.bincount(lab_pat[mask], weights=lab_y[mask], minlength=len(counts))
         n = np.bincount(lab_pat[mask], weights=1 - lab_y[mask], minlength=len(counts))
         fitted = fit_em(patterns, counts, base.level_names, base.fields, m, n,
