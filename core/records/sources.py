@@ -19,8 +19,10 @@ from ..wording import noun
 from .headerless import first_line_a_record
 from .id_forms import check_written_alike
 from .json_tables import read_json
+from .normalise import visible
 from .text_tables import EncodingWarning_ as EncodingWarning_
 from .text_tables import check_names, is_sqlite, read_delimited
+from .totals_row import totals_row
 
 # .txt: what a spreadsheet saves as "Text (Tab delimited)" or "Unicode Text" (UTF-16, tabs);
 # its separator is read from its header
@@ -237,7 +239,9 @@ def load_table(path: str | Path, id_column: str | None,
     if taken is not None:  # a column so named hides SQLite's own row number, which search needs
         raise DocketError(f"{path}: column '{taken}' has the name SQLite keeps for its row "
                           f"numbers; rename it (for example to '{taken}_1')")
-    headless = first_line_a_record(path, frame, detect_format(path) in ("csv", "tsv", "text"))
+    delimited = detect_format(path) in ("csv", "tsv", "text")
+    headless = first_line_a_record(path, frame, delimited)
+    totals = totals_row(frame, delimited)
     if id_column is None:
         # an id-like column with gaps or repeats is still the id: say what is wrong with it
         id_column = guess_id_column(frame) or next(iter(id_like(frame)), None)
@@ -257,10 +261,12 @@ def load_table(path: str | Path, id_column: str | None,
         # rows of separators alone, a spreadsheet's leftovers below the data, hold no record
         blank = bool(frame[empty].isna().to_numpy().all())
         they = ("it is", "it") if empty.sum() == 1 else ("they are", "them")
+        last = f"{row_named(path, len(frame) - 1)} holds {totals}: a totals row, not a " \
+            "record; delete it" if totals and empty[-1] else ""
         raise DocketError(f"{path}: column '{id_column}' is empty on "
                           f"{rows_named(path, empty.nonzero()[0][:5])}{more}; " + (
                               f"{they[0]} empty in every column: delete {they[1]}" if blank
-                              else "every record needs an id"))
+                              else last or "every record needs an id"))
     dup = ids[ids.duplicated(keep=False)]
     if len(dup):
         first = list(dict.fromkeys(dup.tolist()))[:5]
@@ -274,6 +280,10 @@ def load_table(path: str | Path, id_column: str | None,
     frame.index.name = id_column
     if headless:
         warnings.warn(headless, stacklevel=2)
+    if totals:
+        warnings.warn(f"{path}: its last row, {row_named(path, len(frame) - 1)}, holds "
+                      f"{totals}: a spreadsheet's totals row? It is read as a record (id "
+                      f"'{visible(frame.index[-1])}'); delete it if so", stacklevel=2)
     return Table(path=path, id_column=id_column, frame=frame)
 
 
