@@ -174,6 +174,25 @@ def test_amounts_written_the_ways_shops_write_them() -> None:
     assert detect_kind("price", prices) == "number"
 
 
+
+def test_negative_amounts_and_swiss_grouping_as_spreadsheets_write_them() -> None:
+    # Worked by hand. A spreadsheet's accounting format writes -1,299.00 as '(1,299.00)', a
+    # US export '-$1,299.00', a typeset one U+2212 for the minus, a Swiss one '1'299.00':
+    # each was no number, so a refund met the other register's '-1299' as missing
+    import pandas as pd
+
+    from docket.core.records.fields import detect_kind
+    same = ["-1299", "(1,299.00)", "($1,299.00)", "-$1,299.00", "$-1,299", "USD -1299",
+            "\u22121299", "(1.299,00 EUR)", "-1'299.00", "-1\u2019299.00"]
+    assert {v: normalise.number(v) for v in same} == dict.fromkeys(same, -1299.0)
+    assert normalise.number("1'234'567.50") == 1234567.5
+    # no number still: an unclosed or empty bracket, two signs, a phone, a bare sign or sign
+    for value in ("(12", "()", "(-5)", "--12", "-(12)", "(555) 123-4567", "12'34", "-", "$",
+                  "-$", "(inf)"):
+        assert normalise.number(value) is None, value
+    amounts = pd.Series([f"({k:,}.50)" if k % 4 == 0 else f"{k:,}.50" for k in range(900, 1200)])
+    assert detect_kind("amount", amounts) == "number"
+
 def test_patterns_with_many_levels_stay_distinct() -> None:
     from docket.core.matching.scoring import group_patterns
 

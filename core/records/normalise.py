@@ -87,20 +87,31 @@ _DECIMAL_COMMA = re.compile(r"^[-+]?[\d.\s\u00a0']*\d,\d{1,2}$")
 _THOUSANDS = re.compile(r"[.\s\u00a0']")  # what groups thousands beside a decimal comma
 
 
+# an apostrophe grouping thousands before a decimal point, as Swiss amounts are written
+# ('1'234.50', common practice there; also with the typographic one, U+2019)
+_APOSTROPHES = re.compile(r"(?<=\d)['\u2019](?=\d{3}(?!\d))")
+
+
 def number(value: str) -> float | None:
-    """A number as written in most places: '1,299.00', '1.299,00', '$1,299', '12,5 EUR'."""
+    """A number as written in most places: '1,299.00', '1.299,00', '$1,299', '12,5 EUR', and
+    the negative amounts spreadsheets write: '(1,299.00)', '-$1,299', U+2212 for '-'."""
     try:  # a plain number, the common case: no pattern needed
         x = float(value)
         return x if np.isfinite(x) else None
     except ValueError:
         pass
-    text = _CURRENCY.sub("", visible(value)).strip()
+    text, sign = visible(value).strip().replace("\u2212", "-"), ""
+    if len(text) > 2 and text[0] == "(" and text[-1] == ")":  # an accountant's negative
+        text, sign = text[1:-1], "-"
+    text = _CURRENCY.sub("", text).strip()
+    if text[:1] in ("+", "-") and not sign:  # the sign before the currency: '-$12.00'
+        text, sign = _CURRENCY.sub("", text[1:]).strip(), text[0]
     if _DECIMAL_COMMA.match(text):
         text = _THOUSANDS.sub("", text).replace(",", ".")
     else:
-        text = text.replace(",", "")
+        text = _APOSTROPHES.sub("", text).replace(",", "")
     try:
-        x = float(text)
+        x = float(sign + text)
     except ValueError:
         return None
     return x if np.isfinite(x) else None
