@@ -11,8 +11,8 @@ small or one class is rare, and its bounds pass 1. Here:
   coverage_agreement.py) it covers at n = 60, kappa 0.9 and at n = 200 with 3 % prevalence.
   The model behind it gives both reviewers the same share of matches; when their shares differ,
   the interval is widened to hold Cohen's estimate.
-- Cohen's kappa, three categories (holds counted), Fleiss' kappa and Krippendorff's alpha:
-  percentile bootstrap over pairs (the units), seeded, clipped to [-1, 1].
+- Cohen's kappa, three categories (holds counted, and someone held), Fleiss' kappa and
+  Krippendorff's alpha: percentile bootstrap over pairs (the units), seeded, clipped to [-1, 1].
 - PABAK, a linear function of the observed agreement p_o: the Wilson interval of p_o mapped
   through (k p_o - 1) / (k - 1).
 """
@@ -123,6 +123,12 @@ def kappa_interval(table: np.ndarray, kappa: float, confidence: float = 0.95
                    ) -> tuple[float | None, float | None, str]:
     """The interval for Cohen's kappa that suits the table's size (see module notes)."""
     counts = np.asarray(table, dtype=np.int64)
+    # A category neither reviewer used (hold, counted with --include-hold, where no one held)
+    # adds nothing to kappa; without it the table is 2 x 2 and gets the interval two
+    # categories get, not a bootstrap that gives [1, 1] for 15 pairs in perfect agreement.
+    used = (counts.sum(axis=0) + counts.sum(axis=1)) > 0
+    if used.sum() == 2 and counts.shape[0] > 2:
+        counts = counts[np.ix_(used, used)]
     if not math.isfinite(kappa):
         return (None, None, GOF if counts.shape == (2, 2) else BOOT)
     if counts.shape == (2, 2):
