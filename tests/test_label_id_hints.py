@@ -125,3 +125,25 @@ def test_ids_written_as_decimal_numbers_are_named_so(tmp_path: Path, capsys) -> 
         assert main(["label", str(project), "--reviewer", "ana", "--from", str(labels)]) == 2
         err = capsys.readouterr().err
         assert (hint in err) if hint else "written as a decimal" not in err, err
+
+
+def test_ids_that_the_table_wrote_as_decimal_numbers_are_named_so(tmp_path: Path,
+                                                                  capsys) -> None:
+    # a CSV saved from a column of floats writes its ids '0.0', '1.0'; the other table of the
+    # link writes '0', '1', so a label file's left_id '0' was among the known ids and the
+    # refusal gave no hint at all
+    left, right = tmp_path / "l.csv", tmp_path / "r.csv"
+    left.write_text("id,name\n0.0,Arlo Vesk\n1.0,Cai Sint\n", encoding="utf-8")
+    right.write_text("id,name\n0,Arlo Vesk\n1,Cai Sint\n", encoding="utf-8")
+    project = tmp_path / "f.docket"
+    assert main(["new", str(project), "--left", str(left), "--right", str(right), "--id", "id",
+                 "--block", "*"]) == 0
+    capsys.readouterr()
+    labels = tmp_path / "labels.csv"
+    for row, hint in (("0,0", "'0' looks like the record id '0.0', which the table writes as "
+                       "a decimal number"), ("0.0,0", None), ("7,0", "")):
+        labels.write_text(f"left_id,right_id,label\n{row},match\n", encoding="utf-8")
+        code = main(["label", str(project), "--reviewer", "ana", "--from", str(labels)])
+        err = capsys.readouterr().err
+        assert code == (0 if hint is None else 2), err
+        assert (hint in err) if hint else "decimal number" not in err, err

@@ -1,12 +1,12 @@
 """Hints for ids in a label, predictions, matcher or missed-match file that name no record but
 nearly do: the same id in another Unicode form or with invisible characters in it, with its
-leading zeros dropped or written as a decimal number, with spaces at its ends or in other letter
-case."""
+leading zeros dropped or written as a decimal number (or the other way round), with spaces at
+its ends or in other letter case."""
 
 from __future__ import annotations
 
 import unicodedata
-from collections.abc import Collection, Iterable
+from collections.abc import Callable, Collection, Iterable
 
 from .normalise import visible
 
@@ -48,28 +48,54 @@ def _decimal_hint(given: Iterable[object], known: Collection[str]) -> str:
             return (f"; '{text}' looks like the record id '{whole}' written as a decimal "
                     "number, as a spreadsheet or a column of floats writes it: keep the ids as "
                     "text")
-    return ""
+    return _whole_hint(given, known)
+
+
+def _whole_hint(given: Iterable[object], known: Collection[str]) -> str:
+    """The other way round: records whose ids a float column wrote as '17.0' (a CSV saved from
+    one, read as text and kept as written), named in a file as '17'."""
+    def whole(k: str) -> str | None:
+        number, dot, zeros = k.partition(".")
+        return number.lstrip("0") if dot and number.isdigit() and zeros and \
+            not zeros.strip("0") else None
+    found = _digit_twin(given, known, whole)
+    return "" if found is None else (
+        f"; '{found[0]}' looks like the record id '{found[1]}', which the table writes as a "
+        "decimal number (a column of floats saved as text): write the ids as the table has "
+        f"them ('{found[1]}'), or save the table with whole-number ids and build the project "
+        "again")
 
 
 def _zeros_hint(given: Iterable[object], known: Collection[str]) -> str:
     """A hint for an id that is a record's id with its leading zeros dropped, as a spreadsheet
     does to a column it takes for numbers: '7' for '000007' was refused as naming no pair."""
-    padded: dict[str, str | None] | None = None
+    found = _digit_twin(given, known, lambda k: k.lstrip("0") if k.isdigit() and
+                        k.startswith("0") else None)
+    return "" if found is None else (
+        f"; '{found[0]}' looks like the record id '{found[1]}' with its leading zeros "
+        "dropped, as a spreadsheet does to numbers: keep the ids as text")
+
+
+def _digit_twin(given: Iterable[object], known: Collection[str],
+                key: Callable[[str], str | None]) -> tuple[str, str] | None:
+    """The first id given, all digits, that names no record while its digits are a record's
+    id as ``key`` reads it (None: an id it does not read), with that record's id. Digits that
+    two records' ids share name neither: which one was meant cannot be told."""
+    twins: dict[str, str | None] | None = None
     for value in given:
         text = str(value).strip()
         if text in known or not text.isdigit():
             continue
-        if padded is None:
-            padded = {}
+        if twins is None:
+            twins = {}
             for k in known:
-                if k.isdigit() and k.startswith("0"):
-                    short = k.lstrip("0")
-                    padded[short] = None if short in padded else k  # two: cannot tell which
-        twin = padded.get(text.lstrip("0"))
+                short = key(k)
+                if short is not None:
+                    twins[short] = None if short in twins else k
+        twin = twins.get(text.lstrip("0"))
         if twin is not None:
-            return (f"; '{text}' looks like the record id '{twin}' with its leading zeros "
-                    "dropped, as a spreadsheet does to numbers: keep the ids as text")
-    return ""
+            return text, twin
+    return None
 
 
 def _written_hint(given: Iterable[object], known: Collection[str]) -> str:

@@ -109,20 +109,26 @@ def read_rows(project: ProjectFile, path: Path, reviewer: str | None = None) -> 
         pair_ids = []
         missing: list[str] = []
         swapped = 0  # link rows naming a pair right id first
+        astray: list[tuple[str, str]] = []  # the others that name no pair
         for i, (a, b) in enumerate(named):
             p = lookup.get((a, b))
             if p is None and not project.link:
                 p = lookup.get((b, a))
             if p is None:
                 missing.append(f"{row_named(path, i)} ({a}, {b})")
-                swapped += project.link and (b, a) in lookup
+                turned = project.link and (b, a) in lookup
+                swapped += turned
+                if not turned:
+                    astray.append((a, b))
             else:
                 pair_ids.append(p)
         if missing:
             are = "1 pair is not a candidate pair" if len(missing) == 1 else \
                 f"{len(missing)} pairs are not candidate pairs"
-            known = project.record_ids("left") | project.record_ids("right")
-            hint = form_hint([*frame["left_id"], *frame["right_id"]], known) or (
+            # side by side: a link's left ids written '17.0' and right ids '17' hid the
+            # left_id '17' that names no left record among the right's ids
+            hint = form_hint([a for a, _ in astray], project.record_ids("left")) or \
+                form_hint([b for _, b in astray], project.record_ids("right")) or (
                 f"; {many(swapped, 'of them is', 'of them are')} a pair with its ids the other "
                 "way round: left_id takes the left table's id, right_id the right's"
                 if swapped else "")
