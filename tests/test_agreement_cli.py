@@ -124,3 +124,40 @@ def test_too_few_pairs_for_fleiss_kappa_carries_no_band(sample_project: Path, tm
     assert isinstance(report, AgreementReport)
     shown = overall_text(report, {}).plain
     assert "needs 10), 2 ratings each" in shown and "(Poor)" not in shown
+
+
+
+def label_alike(project: Path, tmp_path: Path, given: dict[str, str], n: int) -> None:
+    """Each reviewer gives pairs 1..n one label, by ``docket label``."""
+    for name, label in given.items():
+        source = tmp_path / f"{name}.csv"
+        source.write_text("pair_id,label\n" + "".join(f"{p},{label}\n" for p in range(1, n + 1)),
+                          encoding="utf-8")
+        assert run(["label", str(project), "--reviewer", name, "--from", str(source)]) == 0
+
+
+def test_a_figure_with_enough_pairs_but_none_to_give_says_undefined(
+        sample_project: Path, tmp_path: Path, capsys) -> None:
+    # Both say match on 20 pairs: chance agreement is 1, so kappa and alpha are 0 / 0
+    # (scikit-learn's cohen_kappa_score and krippendorff.alpha give NaN here, the reference
+    # libraries). Fleiss' line said "undefined", alpha's showed a bare dash.
+    label_alike(sample_project, tmp_path, {"ana": "match", "ben": "match"}, 20)
+    capsys.readouterr()
+    assert run(["agreement", str(sample_project)]) == 0
+    out = capsys.readouterr().out
+    assert "Krippendorff's alpha (nominal) — (n 20; undefined) on pairs" in out
+    assert "Fleiss' kappa — (n 20; undefined) on pairs with 2 ratings each" in out
+    assert "Cohen's kappa — (n 20; undefined)" in out
+
+
+def test_pairs_whose_second_label_is_a_hold_are_said_to_have_one_rating(
+        sample_project: Path, tmp_path: Path, capsys) -> None:
+    from docket.core import Project
+    from docket.tui.screens.agreement_text import overall_text
+    label_alike(sample_project, tmp_path, {"ana": "hold", "ben": "match"}, 12)
+    capsys.readouterr()
+    assert run(["agreement", str(sample_project)]) == 0
+    said = "Fleiss' kappa — (no pair has two ratings yet; a hold counts as no rating)"
+    assert said in capsys.readouterr().out
+    with Project.open(sample_project) as project:
+        assert said in overall_text(project.agreement(), {}).plain

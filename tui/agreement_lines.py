@@ -60,6 +60,13 @@ def _rate_lines(ds: dict[str, Any] | None, out: list[str]) -> None:
         out.append(f"  warning: {ds['warning']}")
 
 
+def no_two_ratings(report: AgreementReport) -> str:
+    """Fleiss' kappa where no pair has two ratings; beside pairs two reviewers labelled, that
+    is their holds, which rate nothing."""
+    held = not report.include_hold and any(v["holds"] for v in report.reviewers.values())
+    return "— (no pair has two ratings yet" + ("; a hold counts as no rating)" if held else ")")
+
+
 def agreement_lines(report: AgreementReport) -> list[str]:
     """The agreement report as lines of text (JSON is its ``to_dict``)."""
     out: list[str] = []
@@ -88,7 +95,7 @@ def agreement_lines(report: AgreementReport) -> list[str]:
         out.append(f"  Fleiss' kappa {fleiss} on pairs with "
                    f"{o['fleiss_raters']} ratings each")
     else:
-        out.append("  Fleiss' kappa — (no pair has two ratings yet)")
+        out.append(f"  Fleiss' kappa {no_two_ratings(report)}")
     alpha = counted(o["krippendorff_alpha"], o["alpha_low"], o["alpha_high"], o["alpha_units"],
                     floor)
     out.append(f"  Krippendorff's alpha (nominal) {alpha} on pairs with two or more ratings")

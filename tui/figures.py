@@ -98,6 +98,8 @@ def counted(value: float | None, low: float | None, high: float | None, n: int,
     """A coefficient with its interval and count, or "too few pairs to say" below ``floor``."""
     if n < floor:
         return f"{TOO_FEW} (n {n:,}; needs {floor})"
+    if value is None:  # enough pairs, but no figure: every rating fell in one category
+        return f"{DASH} (n {n:,}; undefined)"
     return f"{interval(value, low, high, digits)} (n {n:,})"
 
 
@@ -106,7 +108,7 @@ def counted_band(value: float | None, low: float | None, high: float | None, n: 
     """``counted`` with its band beside it, but none beside "too few pairs to say": a band
     there ("(Poor)") would claim what the count cannot carry."""
     text = counted(value, low, high, n, floor)
-    return text if n < floor else f"{text} ({band})"
+    return text if n < floor or value is None else f"{text} ({band})"
 
 
 def bounds(b: Mapping[str, Any] | None, digits: int = 3) -> str:

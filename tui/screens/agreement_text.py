@@ -12,6 +12,7 @@ from rich.text import Text
 from docket.core.results import AgreementReport
 
 from .. import literal
+from ..agreement_lines import no_two_ratings
 from ..diff import PLAIN, Palette
 from ..figures import TOO_FEW, counted, counted_band, interval, many, number, percent
 
@@ -78,7 +79,7 @@ def overall_text(report: AgreementReport, shown: dict[str, str],
         text.append(f"Fleiss' kappa {fleiss}, {o['fleiss_raters']} "
                     "ratings each")
     else:
-        text.append("Fleiss' kappa — (no pair has two ratings yet)")
+        text.append(f"Fleiss' kappa {no_two_ratings(report)}")
     alpha = counted(o["krippendorff_alpha"], o["alpha_low"], o["alpha_high"], o["alpha_units"],
                     floor)
     text.append(f" · Krippendorff's alpha (nominal) {alpha}\n")
