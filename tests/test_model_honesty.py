@@ -18,7 +18,7 @@ from docket.core.matching.explain import LogOddsTable, factor_text, odds_text, p
 from docket.core.matching.model import monotone_m
 from docket.core.ordering.queue import diversified
 from docket.core.report import one_to_one_suggestion
-from docket.core.storage.refit import audit_scores
+from docket.core.storage.refit import CROSS_PARTS, audit_scores
 from tests.conftest import SAMPLE, sample_spec
 from tests.quality import load_truth
 
@@ -147,9 +147,10 @@ def test_audit_labels_are_cross_fitted(sample_project: Path) -> None:
         crossed = audit_scores(project.meta)
         audit_ids = {r[0] for r in rows if r[3]}
         assert set(crossed) == audit_ids
-        # Each labelled audit pair's score comes from a fit without its half of the slice:
-        # refitting with that half's labels flipped must leave its own score unchanged.
-        half0 = sorted(p for p in audit_ids if p % 2 == 0)
+        # Each labelled audit pair's score comes from a fit without its fifth of the slice
+        # (parts by pair id modulo 5): refitting with that part's labels flipped must leave
+        # its own scores unchanged.
+        half0 = sorted(p for p in audit_ids if p % CROSS_PARTS == 0)
         for p in half0:
             card = project.card(p)
             flipped = "non-match" if (card.left_id, card.right_id) in TRUTH else "match"

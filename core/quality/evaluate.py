@@ -182,7 +182,7 @@ def evaluate(project: ProjectFile, thresholds: Sequence[float] | None = None,
     out["queue_order"] = describe(project.meta)
     out["model"] = {"ranker": project.meta.get("ranker"), "one_to_one": one,
                     "audit_labels": "cross-fitted: each labelled audit pair is scored by a "
-                                    "model fitted without its half of the audit slice",
+                                    "model fitted without its fifth of the audit slice",
                     "score": "match probability, kept only on each record's mutual best pair"
                     if one else "match probability"}
     return json_ready(out)

@@ -3,9 +3,11 @@
 Labels come from the caller, one per pair, under the fitting rule of ``reviewing.labels``.
 
 Honest by cross-fitting: the audit slice's labels help fit the model that ranks the queue, but
-``evaluate`` judges each labelled audit pair by the score of a model fitted without its half of
-the slice (two halves by pair id), its ranker (Fellegi–Sunter or logistic) chosen without that
-half too, so no audit label is judged by a score it trained or a choice it made.
+``evaluate`` judges each labelled audit pair by the score of a model fitted without its fifth of
+the slice (five parts by pair id), its ranker (Fellegi–Sunter or logistic) chosen without that
+part too, so no audit label is judged by a score it trained or a choice it made. Five parts,
+not two: a model fitted on half the audit labels misses more matches than the one it stands
+for, and its misses made ``evaluate`` read recall low (bench/refit_bias.py).
 Blind: labels on pairs still open for another reviewer (overlap pairs) never reach a fit, so
 one reviewer's label cannot move the probability the next reviewer is shown for that pair.
 """
@@ -25,7 +27,8 @@ from ..ordering import queue
 from . import store
 from .writer import write_model
 
-FOLDS = 5
+FOLDS = 5  # of the labels, to choose the ranker by held-out loss
+CROSS_PARTS = 5  # of the audit slice, to score each part by a fit without it
 MIN_PER_CLASS = 5
 
 
@@ -120,7 +123,7 @@ def _refit(conn: sqlite3.Connection, labels: dict[int, int], mark: int | None) -
     lab_y = np.array([labels[p] for p in lab_pairs], dtype=float)
     lab_pat = np.array([info[int(p)][0] for p in lab_pairs], dtype=np.int64)
     is_audit = np.array([bool(info[int(p)][1]) for p in lab_pairs], dtype=bool)
-    half = lab_pairs % 2
+    part = lab_pairs % CROSS_PARTS
     u_random = [np.asarray(u) for u in base.u] if base.u_source == "random pairs" else None
     n_levels = [len(x) for x in base.level_names]
     bounds = ordered_bounds(n_levels)  # the ranker's levels kept in order, as the model's are
@@ -174,10 +177,10 @@ def _refit(conn: sqlite3.Connection, labels: dict[int, int], mark: int | None) -
     ranker, fs_loss, lr_loss = choose(everything)
     fs, table = table_fit(everything, ranker)
     crossed: dict[str, float] = {}
-    for k in (0, 1):
-        judged = is_audit & (half == k)
+    for k in range(CROSS_PARTS):
+        judged = is_audit & (part == k)
         if judged.any():
-            # the half's own labels choose neither the ranker nor its fit (cross-fitting)
+            # the part's own labels choose neither the ranker nor its fit (cross-fitting)
             _, other = table_fit(~judged, choose(~judged)[0])
             p_k = other.probability(patterns[lab_pat[judged]])
             crossed.update({str(int(p)): float(q) for p, q in zip(lab_pairs[judged], p_k,
@@ -218,5 +221,5 @@ def _refit(conn: sqlite3.Connection, labels: dict[int, int], mark: int | None) -
 
 
 def audit_scores(meta: dict) -> dict[int, float]:
-    """Cross-fitted probability of each labelled audit pair (fitted without its half)."""
+    """Cross-fitted probability of each labelled audit pair (fitted without its part)."""
     return {int(k): float(v) for k, v in meta.get("audit_scores", {}).items()}
