@@ -44,7 +44,7 @@ class Columns:
 _WRAP_CONSOLE = Console(file=io.StringIO(), width=400, color_system=None, legacy_windows=False)
 
 
-def _wrap(text: Text, width: int) -> list[Text]:
+def wrap(text: Text, width: int) -> list[Text]:
     if text.cell_len <= width and "\n" not in text.plain:
         return [text]
     return list(text.wrap(_WRAP_CONSOLE, width, overflow="fold"))
@@ -106,7 +106,7 @@ class _Row:
     one_line: bool = False  # shortened with '…' instead of wrapped
 
     def height(self, value_width: int) -> int:
-        wrapped = [] if self.one_line else [len(_wrap(c, value_width)) for c in self.cells
+        wrapped = [] if self.one_line else [len(wrap(c, value_width)) for c in self.cells
                                             if c is not None]
         return max([1, len(self.sim), *wrapped])
 
@@ -160,7 +160,7 @@ class Lines:
     def _render_row(self, row: _Row) -> None:
         c = self.cols
         wrapped = [([] if cell is None else [shorten(cell, c.value, self.mark_style)]
-                    if row.one_line else _wrap(cell, c.value)) for cell in row.cells]
+                    if row.one_line else wrap(cell, c.value)) for cell in row.cells]
         height = max([1, len(row.sim), *(len(w) for w in wrapped)])
         for i in range(height):
             line = cell(row.name if i == 0 else None, c.name)

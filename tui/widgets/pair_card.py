@@ -16,7 +16,7 @@ from docket.core.types import FieldComparison, FieldSpec, PairCard
 from .. import literal
 from ..diff import PLAIN, Palette, paired
 from ..masking import Mask
-from .card_lines import BAR_CELLS, SHORTENED, Columns, Lines
+from .card_lines import BAR_CELLS, SHORTENED, Columns, Lines, wrap
 
 STACK_BELOW = 84  # card widths below this put the right value under the left one
 EIGHTHS = " ▏▎▍▌▋▊▉"
@@ -86,6 +86,27 @@ def _is_quiet(row: FieldComparison) -> bool:
             and row.right is not None)
 
 
+def _empty_on_both(rows: Iterable[FieldComparison]) -> list[str]:
+    """The fields that neither record holds and that move no odds, when two or more: in a
+    sparse table (a supplier register of forty columns, most of them empty) the card was
+    rows of '— missing —' beside '— missing —', and the one field holding a value was below
+    the screen's edge at 80x24. They go on one line; a field the ranker weighs missing, its
+    factor not x1, keeps its row, so that the factors shown still multiply out to the odds."""
+    names = [r.field for r in rows if not (r.left or "").strip() and not (r.right or "").strip()
+             and factor_text(r.contribution) == "×1"]
+    return names if len(names) >= 2 else []
+
+
+def _empty_line(names: list[str], palette: Palette) -> Text:
+    """'3 fields missing on both: fax, web, vat', wrapped to the card's width."""
+    line = Text(f"{len(names)} fields missing on both: ", palette.muted)
+    for i, name in enumerate(names):
+        if i:
+            line.append(", ", palette.muted)
+        line.append_text(literal.record_id(name, 24, escape_style=palette.escape))
+    return line
+
+
 def _masked(row: FieldComparison, mask: Mask) -> bool:
     return bool(mask) and mask.applies(row.field)
 
@@ -117,7 +138,10 @@ def card_text(card: PairCard, opts: CardOptions, width: int,
     out.add(Text("field", p.muted), Text(" "), head, [Text("sim", p.muted)],
             Text("odds", p.muted))
     cells = 3 if cols.stacked else BAR_CELLS
+    empty = _empty_on_both(card.fields)
     for row in card.fields:
+        if row.field in empty:
+            continue
         quiet = _is_quiet(row)
         missing = row.left is None or row.right is None
         left, right = paired(row.left, row.right, row.kind, p,
@@ -135,6 +159,8 @@ def card_text(card: PairCard, opts: CardOptions, width: int,
             shown = [sim, level] if level_name not in ("different", "missing") and \
                 level_name else [sim]
             out.add(name, None, [left, right], shown, weight)
+    for line in wrap(_empty_line(empty, p), width) if empty else []:
+        out.line(line, width)
     if opts.show_extra:
         _extra_rows(out, card, opts, width)
     too_tall = max_lines is not None and out.height() > max_lines
