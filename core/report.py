@@ -115,10 +115,12 @@ def status(project: ProjectFile) -> dict[str, Any]:
     n_left = one("SELECT count(*) FROM left_records")
     n_right = one("SELECT count(*) FROM right_records") if project.link else n_left
     per_reviewer: dict[str, dict[str, int]] = {}
-    for reviewer, label, n in conn.execute(
-            "SELECT reviewer, label, count(*) FROM current WHERE role = 'reviewer' "
-            "GROUP BY reviewer, label ORDER BY reviewer, label"):
-        per_reviewer.setdefault(reviewer, {})[label] = n
+    per_adjudicator: dict[str, dict[str, int]] = {}  # without it the lines did not add up
+    for reviewer, role, label, n in conn.execute(
+            "SELECT reviewer, role, label, count(*) FROM current "
+            "GROUP BY reviewer, role, label ORDER BY reviewer, label"):
+        mine = per_reviewer if role == "reviewer" else per_adjudicator
+        mine.setdefault(reviewer, {})[label] = n
     roles = dict(conn.execute("SELECT name, role FROM reviewers"))
     table = explanation(meta)
     model = []
@@ -154,6 +156,7 @@ def status(project: ProjectFile) -> dict[str, Any]:
             "pairs_decided": one("SELECT count(DISTINCT pair_id) FROM current"),
             "per_reviewer": {r: {"role": roles.get(r, "reviewer"), **c}
                              for r, c in per_reviewer.items()},
+            "per_adjudicator": per_adjudicator,
         },
         "model": {
             "ranker": meta.get("ranker"),

@@ -41,7 +41,7 @@ class StatusReport(_Report):
     pairs: dict[str, int]  # candidates, open, audit, overlap
     blocking: dict[str, Any]
     sampling: dict[str, Any] | None
-    decisions: dict[str, Any]  # log_entries, retractions, ..., per_reviewer
+    decisions: dict[str, Any]  # log_entries, retractions, ..., per_reviewer, per_adjudicator
     model: dict[str, Any]
     settings: dict[str, Any]
     gold_policy: dict[str, Any]

@@ -35,6 +35,9 @@ def status_lines(info: StatusReport) -> list[str]:
     for name, c in dec["per_reviewer"].items():
         counts = ", ".join(f"{k} {v:,}" for k, v in c.items() if k != "role")
         out.append(f"  {padded(name, 16)} {c['role']:<12} {counts}")
+    for name, c in dec.get("per_adjudicator", {}).items():
+        counts = ", ".join(f"{k} {v:,}" for k, v in c.items())
+        out.append(f"  {padded(name, 16)} {'adjudicated':<12} {counts}")
     out.append(f"model        {MODEL_NAMES.get(model['ranker'], model['ranker'])} ranks the "
                f"queue ({model['ranker_note']}); threshold {model['threshold']}"
                + ("; one-to-one" if model["one_to_one"] else ""))
