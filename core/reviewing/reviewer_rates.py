@@ -11,8 +11,9 @@ Holds are a third response of the two classes (a reviewer may hold a match or a 
 ``hold_rate`` per class is reported beside the rates; the classes stay match and non-match.
 
 Intervals: percentile bootstrap over pairs (units resampled with replacement, EM restarted from
-the fitted values), ``N_BOOT`` replicates, seeded. When few pairs carry two or more labels the
-rates rest mostly on the model's assumptions, and the summary warns.
+the fitted values), ``N_BOOT`` replicates, seeded, widened where needed to hold the Wilson
+interval of the pairs each rate rests on (``_counted_bounds``). When few pairs carry two or
+more labels the rates rest mostly on the model's assumptions, and the summary warns.
 """
 
 from __future__ import annotations
@@ -125,6 +126,32 @@ def _bootstrap(obs: tuple[np.ndarray, np.ndarray, np.ndarray], n_units: int, n_r
     return th
 
 
+def _counted_bounds(obs: tuple[np.ndarray, np.ndarray, np.ndarray], post: np.ndarray,
+                    n_raters: int, confidence: float) -> np.ndarray:
+    """(rater, class, low/high): the Wilson interval of each rate from the pairs behind it.
+
+    A rater's pairs of class k are counted by their posterior share of k, and those they gave
+    k likewise. A rate near 1 gives every bootstrap resample a fit near 1 too, so the
+    percentile interval alone held three reviewers' true 0.95 in 63 % of 40-pair samples; no
+    interval may be narrower than the count of pairs it rests on allows.
+    """
+    from scipy.stats import norm
+
+    unit, rater, label = obs
+    z2 = float(norm.ppf(0.5 + confidence / 2.0)) ** 2
+    out = np.zeros((n_raters, post.shape[1], 2))
+    for k in range(post.shape[1]):
+        n = np.bincount(rater, weights=post[unit, k], minlength=n_raters)
+        x = np.bincount(rater, weights=post[unit, k] * (label == k), minlength=n_raters)
+        share = np.divide(x, n, out=np.zeros_like(n), where=n > 0)
+        centre = (share + z2 / (2 * n + 1e-300)) / (1 + z2 / (n + 1e-300))
+        half = np.sqrt(z2 * share * (1 - share) / (n + 1e-300)
+                       + z2 * z2 / (4 * n * n + 1e-300)) / (1 + z2 / (n + 1e-300))
+        out[:, k, 0] = np.where(n > 0, centre - half, 0.0)
+        out[:, k, 1] = np.where(n > 0, centre + half, 1.0)
+    return np.clip(out, 0.0, 1.0)
+
+
 def reviewer_rates(labels: Mapping[str, Mapping[int, str]], include_hold: bool,
                    n_boot: int = N_BOOT, seed: int = 0,
                    confidence: float = 0.95) -> RatesSummary | None:
@@ -139,7 +166,8 @@ def reviewer_rates(labels: Mapping[str, Mapping[int, str]], include_hold: bool,
         per_unit[pid] = per_unit.get(pid, 0) + 1
     multi = sum(v >= 2 for v in per_unit.values())
     method = (f"Dawid–Skene EM, two classes, responses {', '.join(responses)}; intervals: "
-              f"percentile bootstrap over pairs, {n_boot} replicates")
+              f"percentile bootstrap over pairs, {n_boot} replicates, at least the Wilson "
+              "interval of the pairs each rate rests on")
     triangle = _triangle(labels)
     if triangle is None:
         return RatesSummary(False, "not identified: needs three reviewers who share at least "
@@ -154,10 +182,13 @@ def reviewer_rates(labels: Mapping[str, Mapping[int, str]], include_hold: bool,
     boot = _bootstrap(obs, len(units), len(raters), len(responses), priors, theta, n_boot,
                       np.random.default_rng(seed))  # (n_boot, raters, classes, responses)
     alpha = 1.0 - confidence
+    floor = _counted_bounds(obs, np.array([[fit.posteriors[u][c] for c in CLASSES]
+                                           for u in units]), len(raters), confidence)
 
     def rate(i: int, k: int) -> Rate:
         lo, hi = np.quantile(boot[:, i, k, k], [alpha / 2, 1 - alpha / 2])
-        return Rate(float(theta[i, k, k]), float(lo), float(hi))
+        return Rate(float(theta[i, k, k]), float(min(lo, floor[i, k, 0])),
+                    float(max(hi, floor[i, k, 1])))
 
     counts = {name: len(given) for name, given in labels.items()}
     rows = tuple(ReviewerRates(
