@@ -22,6 +22,7 @@ _ELSEWHERE = {
     "one_field_note": ("report", "one_field_note"),
     "em_rounds": ("report", "em_rounds"),
     "flat_note": ("report", "flat_note"),
+    "crowded_note": ("report", "crowded_note"),
     "MODEL_NAMES": ("matching.explain", "MODEL_NAMES"),
     "odds_text": ("matching.explain", "odds_text"),
     "factor_text": ("matching.explain", "factor_text"),

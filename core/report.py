@@ -6,6 +6,7 @@ import math
 from typing import Any
 
 from .matchers import catalogue
+from .matching.decision_rule import CROWDED
 from .matching.explain import explanation
 from .matching.model import EM_ROUNDS
 from .reviewing import gold, missed
@@ -43,6 +44,22 @@ def flat_note(fs: dict) -> str | None:
     return ("no field's level moves the odds by as much as ×2 either way, so every pair has "
             "about the odds before the fields: EM found nothing that tells matches apart, and "
             "until pairs are labelled and refit these probabilities are no estimate")
+
+
+def crowded_note(crowding: dict | None, fs: dict, labels: int) -> str | None:
+    """Why a model that predicts many matches per record is suspect before labels (None when
+    it does not, or labels are in): see ``decision_rule.Crowding``."""
+    if labels or not crowding or crowding["per_record"] <= CROWDED:
+        return None
+    shrink = fs.get("shrink", 1.0)
+    factors = fs.get("factors") or [1.0] * len(fs["m"])
+    top = max(range(len(fs["fields"])), key=lambda f: shrink * factors[f] * math.log2(
+        max(fs["m"][f][0], 1e-300) / max(fs["u"][f][0], 1e-300)))
+    return (f"with no labels the model predicts {crowding['predicted']:,} matches, "
+            f"{crowding['per_record']:.1f} for each record that has one, more than copies "
+            f"usually make: EM may have taken a value many records share (it weighs "
+            f"{fs['fields'][top]} most) for what makes a match; label pairs and refit before "
+            "trusting its predictions")
 
 
 def one_field_note(fields: int, labels_used: int) -> str | None:
@@ -169,6 +186,8 @@ def status(project: ProjectFile) -> dict[str, Any]:
             "threshold": meta["threshold"],
             "one_to_one": meta.get("one_to_one", False),
             "one_to_one_suggested": one_to_one_suggestion(meta, one(
+                "SELECT count(*) FROM current")),
+            "crowded": crowded_note(meta.get("crowding"), fs, one(
                 "SELECT count(*) FROM current")),
             "refits": meta.get("refits", 0),
             "labels_used": fs.get("labels_used", 0),

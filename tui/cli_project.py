@@ -57,6 +57,7 @@ def print_built(built: Any) -> None:
               "and estimates are weighted to all pairs")
     from docket.core import (
         CAUTION,
+        crowded_note,
         em_rounds,
         flat_note,
         odds_text,
@@ -68,7 +69,9 @@ def print_built(built: Any) -> None:
           f"{odds_text(math.log(prior / (1 - prior)))} (fitted in "
           f"{em_rounds(built.model.iterations)}); audit slice "
           f"{many(built.audit_size, 'pair')}; overlap {many(built.overlap_pairs, 'pair')}")
-    for few in (one_field_note(len(built.fields), 0), flat_note(built.model.to_dict())):
+    crowd = None if built.crowding is None else built.crowding.to_dict()
+    for few in (one_field_note(len(built.fields), 0), flat_note(built.model.to_dict()),
+                crowded_note(crowd, built.model.to_dict(), 0)):
         if few:
             echo(f"note: {few}")
     hint = built.one_to_one_hint

@@ -44,6 +44,8 @@ def status_lines(info: StatusReport) -> list[str]:
     out += [f"  {shown(line)}" for line in model["how_fitted"]]  # they name the columns
     if model.get("one_to_one_suggested"):
         out.append(f"  suggestion: {model['one_to_one_suggested']}")
+    if model.get("crowded"):
+        out.append(f"  caution: {shown(model['crowded'])}")
     out.append(f"odds before the fields {odds_text(math.log(model['odds_before_fields']))}; "
                "each field's level multiplies them:")
     for f in model["fields"]:

@@ -90,6 +90,7 @@ class Built:
     ids_guessed: tuple[bool, bool] = (False, False)  # chosen by docket, not given by the user
     sampling: dict[str, Any] | None = None  # how a sampled project was drawn; None: all pairs
     one_to_one_hint: decision_rule.OneToOneHint | None = None
+    crowding: decision_rule.Crowding | None = None  # predicted matches per record
 
 
 def _check(spec: NewProject) -> None:
@@ -215,6 +216,9 @@ def build(spec: NewProject, progress: Progress | None = None,
     pattern_ix = np.searchsorted(codes, kept.codes)
     hint = None if right is None or spec.one_to_one else decision_rule.one_to_one_hint(
         lnorm, rnorm, li, ri, prob[pattern_ix] >= spec.threshold)
+    # over the kept pairs: a sampled project's figure is low, so it warns less, never wrongly
+    crowd = None if spec.one_to_one else decision_rule.crowding(
+        li, ri, prob[pattern_ix] >= spec.threshold, right is not None)
     if not plan.keeps_all:
         left, right, li, ri = _named_records(left, right, li, ri)
 
@@ -251,7 +255,8 @@ def build(spec: NewProject, progress: Progress | None = None,
                       fingerprint=fp, report=engine.report, step=step)
         sampled = plan.describe(spec.sample_above) if not plan.keeps_all else None
         store.set_meta(conn, sampling=sampled, engine=engine.name,
-                       **({} if hint is None else {"one_to_one_hint": hint.to_dict()}))
+                       **({} if hint is None else {"one_to_one_hint": hint.to_dict()}),
+                       **({} if crowd is None else {"crowding": crowd.to_dict()}))
         step("building indexes")
         store.finish_file(conn)
         step("building indexes", 1, 1)
@@ -265,7 +270,8 @@ def build(spec: NewProject, progress: Progress | None = None,
                  int(audit.selected.sum()), int(overlap.sum()),
                  (left.id_column, None if right is None else right.id_column),
                  (not (spec.left_id or spec.id_column),
-                  right is not None and not (spec.right_id or spec.id_column)), sampled, hint)
+                  right is not None and not (spec.right_id or spec.id_column)), sampled, hint,
+                 crowd)
 
 
 def open_engine(spec: NewProject, left: Table, right: Table | None, fields: list[FieldSpec],
