@@ -238,3 +238,16 @@ def test_an_export_to_a_folder_asks_for_a_file_in_it(project: Path, tmp_path: Pa
         assert err == (f"docket: {folder}: is a folder; give the export a file name in it, as "
                        f"{folder / example}"), err
     assert list(folder.iterdir()) == []
+
+
+def test_a_format_its_name_contradicts_is_refused(sample_project: Path, tmp_path: Path,
+                                                  capsys: pytest.CaptureFixture[str]) -> None:
+    # '-o x.parquet --format csv' wrote CSV into a file every Parquet reader then refused
+    out = tmp_path / "x.parquet"
+    assert main(["export", str(sample_project), "-o", str(out), "--format", "csv"]) == 2
+    err = capsys.readouterr().err
+    assert "its name says parquet but --format csv" in err and "x.csv" in err
+    assert len(err.strip().splitlines()) == 1 and not out.exists()
+    # a name that says no format is the user's choice
+    assert main(["export", str(sample_project), "-o", str(tmp_path / "x.txt"),
+                 "--format", "csv"]) == 0

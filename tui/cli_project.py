@@ -277,7 +277,9 @@ def register(sub: argparse._SubParsersAction) -> None:
 
     p = command(sub, "label", "Record decisions in bulk from a file, then refit the model.",
                  "The file (CSV or JSONL) has columns left_id,right_id,label[,note] or "
-                 "pair_id,label[,note]; label is match, non-match or hold. Every row is checked "
+                 "pair_id,label[,note]; label is match, non-match or hold "
+                 "(any letter case; non_match, nonmatch and no-match mean non-match). "
+                 "Every row is checked "
                  "before anything is written. Rows are written in short batches, so reviewers "
                  "at work on the project meanwhile are not held up; should writing fail part "
                  "way, the rows already written are taken back.",

@@ -39,6 +39,13 @@ def output_format(target: str, fmt: str | None) -> str:
     if fmt:
         if fmt not in ("csv", "parquet", "jsonl"):
             raise DocketError(f"--format {fmt}: use csv, parquet or jsonl")
+        # CSV in a file named .parquet is unreadable where its name sends it (a .txt or any
+        # other name is the user's own choice)
+        named = FORMATS.get(Path(target).suffix.lower()) if target != "-" else None
+        if named is not None and named != fmt:
+            raise DocketError(f"{target}: its name says {named} but --format {fmt} was given; "
+                              f"drop --format, or name the file "
+                              f"{shlex.quote(str(Path(target).with_suffix('.' + fmt)))}")
         return fmt
     if target == "-":
         return "csv"
