@@ -70,3 +70,13 @@ def test_every_gold_format_holds_the_adjudicated_label(tiny: Path, tmp_path: Pat
     assert json.loads(capsys.readouterr().out)["gold_labels"] == 3
     assert run(["evaluate", str(tiny), "--json"]) == 0
     assert json.loads(capsys.readouterr().out)["gold_labels"] == 3
+
+
+def test_a_label_after_the_adjudication_is_kept_in_reviews(tiny: Path, tmp_path: Path) -> None:
+    # README: the latest adjudication decides; a later reviewer's label stays in `reviews`
+    settle(tiny)
+    out = tmp_path / "gold.jsonl"
+    assert run(["export", str(tiny), "--what", "gold", "-o", str(out)]) == 0
+    rows = [json.loads(line) for line in out.read_text().splitlines()]
+    later = [r for r in rows if "omar" in json.dumps(r.get("reviews"))]
+    assert len(later) == 1 and later[0]["label"] == "non-match"
