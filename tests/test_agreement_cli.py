@@ -97,6 +97,11 @@ def test_holds_are_left_out_by_default_and_counted_on_request(
     (pair,) = json.loads(capsys.readouterr().out)["reviewer_pairs"]
     assert pair["n"] == 51 and pair["confusion"]["categories"] == ["match", "non-match", "hold"]
     assert pair["confusion"]["table"] == [[20, 5, 0], [10, 15, 0], [1, 0, 0]]
+    # PABAK = (k p_o - 1) / (k - 1) with k the categories (Byrt, Bishop & Carlin 1993, from
+    # memory): 35 of 51 agree over three, and the text says it is over three
+    assert pair["pabak"] == pytest.approx((3 * 35 / 51 - 1) / 2, abs=1e-12)
+    assert run(["agreement", str(sample_project), "--include-hold"]) == 0
+    assert "PABAK over 3 categories" in capsys.readouterr().out
     # a hold is counted among a reviewer's labels yet rates nothing: the heading says so
     assert run(["agreement", str(sample_project)]) == 0
     assert capsys.readouterr().out.splitlines()[0].endswith(

@@ -19,8 +19,12 @@ def _pair_lines(r: dict[str, Any], floor: int, out: list[str]) -> None:
     else:
         out.append(f"  Cohen's kappa {interval(r['kappa'], r['ci_low'], r['ci_high'], 4)} "
                    f"(n {r['n']:,}; {r['band']}); SE {number(r['se'], 4)}")
+        # PABAK's chance is 1 / k: with hold a category, k is 3 whether or not anyone held
+        k = len(r["confusion"]["categories"])
+        over = f" over {k} categories" if k > 2 else ""
         out.append(f"  observed {number(r['observed'], 4)}  chance {number(r['expected'], 4)}  "
-                   f"PABAK {interval(r['pabak'], r['pabak_low'], r['pabak_high'], 4)}  prevalence "
+                   f"PABAK{over} {interval(r['pabak'], r['pabak_low'], r['pabak_high'], 4)}  "
+                   "prevalence "
                    f"index {number(r['prevalence_index'], 4)}  bias index "
                    f"{number(r['bias_index'], 4)}")
     out.append(f"  holds: {a} {percent(r['hold_rate_a'])}, {b} {percent(r['hold_rate_b'])}")
