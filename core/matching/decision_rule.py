@@ -74,10 +74,6 @@ class Crowding:
     predicted: int
     per_record: float
 
-    @property
-    def crowded(self) -> bool:
-        return self.per_record > CROWDED
-
     def to_dict(self) -> dict:
         return self.__dict__.copy()
 
