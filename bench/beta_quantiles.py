@@ -10,7 +10,7 @@ import math
 import random
 import time
 
-from docket.core.quality.intervals import beta_quantile
+from docket.core.intervals import beta_quantile
 
 
 def _cf(a: float, b: float, x: float) -> float:

@@ -14,7 +14,7 @@ import docket.core
 from .import_graph import first_cycle, imports, modules
 
 FLOORS = [
-    {"errors", "types", "results", "wording"},  # plain data
+    {"errors", "types", "results", "wording", "intervals"},  # plain data and arithmetic
     {"records"},
     {"pairs"},
     {"matching"},

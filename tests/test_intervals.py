@@ -7,7 +7,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from statsmodels.stats.proportion import proportion_confint
 
-from docket.core.quality.intervals import clopper_pearson, wilson, z_value
+from docket.core.intervals import clopper_pearson, wilson, z_value
 
 
 @pytest.mark.parametrize(

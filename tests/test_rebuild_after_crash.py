@@ -12,7 +12,7 @@ from pathlib import Path
 import pytest
 
 from docket.core import Project
-from docket.core.quality.intervals import clopper_pearson
+from docket.core.intervals import clopper_pearson
 from tests.conftest import sample_spec
 
 # A child that commits a decision in WAL mode and is then killed before it can checkpoint, so

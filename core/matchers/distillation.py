@@ -15,7 +15,7 @@ from typing import Any
 
 import numpy as np
 
-from ..quality.intervals import wilson
+from ..intervals import wilson
 from ..storage.project_file import ProjectFile
 from .judged import Judged
 

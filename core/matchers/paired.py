@@ -45,8 +45,8 @@ from typing import Any
 
 import numpy as np
 
+from ..intervals import z_value
 from ..quality.audit_sample import AuditSample
-from ..quality.intervals import z_value
 
 MEASURES = ("precision", "recall", "f1")
 # as the tables head them: a verdict said 'no difference in f1' under a column headed F1

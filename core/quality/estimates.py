@@ -37,8 +37,8 @@ from dataclasses import replace
 
 import numpy as np
 
+from ..intervals import clopper_pearson, wilson, z_value
 from .audit_sample import AuditSample, Bounds, Interval, QualityEstimate
-from .intervals import clopper_pearson, wilson, z_value
 from .known_domains import known_domains
 from .threshold_choice import suggest_threshold  # noqa: F401  (part of this module's API)
 

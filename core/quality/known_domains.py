@@ -53,8 +53,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..intervals import beta_quantile, clopper_pearson, wilson, z_value
 from .audit_sample import AuditSample, Interval
-from .intervals import beta_quantile, clopper_pearson, wilson, z_value
 
 LINEARISED = "linearised-korn-graubard"
 SMOOTHING = 0.5

@@ -6,9 +6,9 @@ reader can tell a figure resting on the labels from one resting on an allowance.
 
 from __future__ import annotations
 
+from ..intervals import clopper_pearson
 from ..wording import many
 from .audit_sample import AuditSample
-from .intervals import clopper_pearson
 
 
 def _strata(keys: list) -> str:
