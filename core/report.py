@@ -28,17 +28,23 @@ def em_rounds(rounds: int) -> str:
     return f"{told}, its limit: stopped before it settled"
 
 
+def _level_weights(fs: dict) -> list[list[float]]:
+    """log2(m/u) per field and level of a stored model, times its shrink and the field's factor
+    (what ``FSModel.weights`` gives, from the dict the notes are handed)."""
+    shrink = fs.get("shrink", 1.0)
+    factors = fs.get("factors") or [1.0] * len(fs["m"])
+    return [[shrink * c * math.log2(m / u) if m > 0 and u > 0 else 0.0
+             for m, u in zip(ms, us, strict=True)]
+            for ms, us, c in zip(fs["m"], fs["u"], factors, strict=True)]
+
+
 def flat_note(fs: dict) -> str | None:
     """Why a model none of whose levels moves the odds much says nothing yet (None when some
     level does, or labels are in): EM on a small table found no split, and status printed
     "odds before the fields 1e6 to 1" and a ×1 beside every level, unexplained."""
     if fs.get("labels_used") or len(fs["fields"]) == 1:  # one field: one_field_note says it
         return None
-    shrink = fs.get("shrink", 1.0)
-    factors = fs.get("factors") or [1.0] * len(fs["m"])
-    biggest = max((abs(shrink * c * math.log2(m / u))
-                   for ms, us, c in zip(fs["m"], fs["u"], factors, strict=True)
-                   for m, u in zip(ms, us, strict=True) if m > 0 and u > 0), default=0.0)
+    biggest = max((abs(w) for ws in _level_weights(fs) for w in ws), default=0.0)
     if biggest >= 1.0:  # some level doubles or halves the odds
         return None
     return ("no field's level moves the odds by as much as ×2 either way, so every pair has "
@@ -51,10 +57,8 @@ def crowded_note(crowding: dict | None, fs: dict, labels: int) -> str | None:
     it does not, or labels are in): see ``decision_rule.Crowding``."""
     if labels or not crowding or crowding["per_record"] <= CROWDED:
         return None
-    shrink = fs.get("shrink", 1.0)
-    factors = fs.get("factors") or [1.0] * len(fs["m"])
-    top = max(range(len(fs["fields"])), key=lambda f: shrink * factors[f] * math.log2(
-        max(fs["m"][f][0], 1e-300) / max(fs["u"][f][0], 1e-300)))
+    best = [ws[0] for ws in _level_weights(fs)]  # each field's best level
+    top = best.index(max(best))
     return (f"with no labels the model predicts {crowding['predicted']:,} matches, "
             f"{crowding['per_record']:.1f} for each record that has one, more than copies "
             f"usually make: EM may have taken a value many records share (it weighs "

@@ -24,6 +24,7 @@ from itertools import combinations
 
 import numpy as np
 
+from ..intervals import wilson
 from .dawid_skene import dawid_skene
 
 CLASSES = ("match", "non-match")
@@ -135,21 +136,14 @@ def _counted_bounds(obs: tuple[np.ndarray, np.ndarray, np.ndarray], post: np.nda
     percentile interval alone held three reviewers' true 0.95 in 63 % of 40-pair samples; no
     interval may be narrower than the count of pairs it rests on allows.
     """
-    from scipy.stats import norm
-
     unit, rater, label = obs
-    z2 = float(norm.ppf(0.5 + confidence / 2.0)) ** 2
     out = np.zeros((n_raters, post.shape[1], 2))
     for k in range(post.shape[1]):
         n = np.bincount(rater, weights=post[unit, k], minlength=n_raters)
         x = np.bincount(rater, weights=post[unit, k] * (label == k), minlength=n_raters)
-        share = np.divide(x, n, out=np.zeros_like(n), where=n > 0)
-        centre = (share + z2 / (2 * n + 1e-300)) / (1 + z2 / (n + 1e-300))
-        half = np.sqrt(z2 * share * (1 - share) / (n + 1e-300)
-                       + z2 * z2 / (4 * n * n + 1e-300)) / (1 + z2 / (n + 1e-300))
-        out[:, k, 0] = np.where(n > 0, centre - half, 0.0)
-        out[:, k, 1] = np.where(n > 0, centre + half, 1.0)
-    return np.clip(out, 0.0, 1.0)
+        for i in range(n_raters):
+            out[i, k] = wilson(float(x[i]), float(n[i]), confidence)
+    return out
 
 
 def reviewer_rates(labels: Mapping[str, Mapping[int, str]], include_hold: bool,

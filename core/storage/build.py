@@ -214,11 +214,11 @@ def build(spec: NewProject, progress: Progress | None = None,
         scorer, kept.keys, lambda d, t: step("comparing the kept pairs", d, t))
     li, ri = scorer.positions(kept.keys)
     pattern_ix = np.searchsorted(codes, kept.codes)
+    yes = prob[pattern_ix] >= spec.threshold
     hint = None if right is None or spec.one_to_one else decision_rule.one_to_one_hint(
-        lnorm, rnorm, li, ri, prob[pattern_ix] >= spec.threshold)
+        lnorm, rnorm, li, ri, yes)
     # over the kept pairs: a sampled project's figure is low, so it warns less, never wrongly
-    crowd = None if spec.one_to_one else decision_rule.crowding(
-        li, ri, prob[pattern_ix] >= spec.threshold, right is not None)
+    crowd = None if spec.one_to_one else decision_rule.crowding(li, ri, yes, right is not None)
     if not plan.keeps_all:
         left, right, li, ri = _named_records(left, right, li, ri)
 
