@@ -40,7 +40,7 @@ async def test_the_pair_on_screen_is_claimed_until_decided_or_quit(review_sample
 async def test_a_refit_that_fails_is_reported_and_the_review_goes_on(review_sample, review_app):
     app = review_app(review_sample, refit_every=1)
 
-    def locked(counted_at: int) -> object:
+    def locked() -> object:
         raise sqlite3.OperationalError("database is locked")
 
     app.refit = locked  # type: ignore[method-assign]

@@ -24,7 +24,7 @@ class Recount:
 
     decided: int
     remaining: int
-    counted_at: int  # the app's ``counted`` when the worker started
+    counted_at: int  # the app's ``counted`` when the pairs were counted
     note: str = ""  # what a refit did, for the evidence panel
 
 
@@ -53,9 +53,9 @@ class ReviewHost(Host, Protocol):
 
     def serve_next(self) -> QueueItem | None: ...
 
-    def recount(self, counted_at: int) -> Recount: ...
+    def recount(self) -> Recount: ...
 
-    def refit(self, counted_at: int) -> Recount: ...
+    def refit(self) -> Recount: ...
 
     def find(self, text: str, limit: int, skip: Collection[str]) -> list[int]: ...
 

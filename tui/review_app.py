@@ -31,6 +31,7 @@ from .terminal import need_terminal
 from .toasts import OneToastEach
 
 Clock = Callable[[], float]
+RECOUNTS = 3  # counts a recount makes at most while decisions keep coming
 
 
 class ReviewApp(OneToastEach):
@@ -80,20 +81,28 @@ class ReviewApp(OneToastEach):
             items = self.project.next_pairs(self.reviewer, 1)
         return items[0] if items else None
 
-    def recount(self, counted_at: int) -> Recount:
-        """Worker thread: this reviewer's decided and remaining pairs, counted in full."""
-        decided, remaining = self.background().progress(self.reviewer)
-        return Recount(decided, remaining, counted_at)
+    def recount(self) -> Recount:
+        """Worker thread: this reviewer's decided and remaining pairs, counted in full, with
+        the session's ``counted`` as it stood when they were counted (read on both sides of
+        the count, and counted again if a decision came between). Taken when the worker
+        started, a refit's count, made after its seconds of fitting, held the decisions made
+        meanwhile and had them added again: 26 decisions read '27 done'."""
+        for _ in range(RECOUNTS):
+            before = self.counted
+            decided, remaining = self.background().progress(self.reviewer)
+            if self.counted == before:
+                break
+        return Recount(decided, remaining, before)
 
     def find(self, text: str, limit: int, skip: Collection[str]) -> list[int]:
         """Worker thread: find's search, on the second connection."""
         return self.background().find(text, limit, skip)
 
-    def refit(self, counted_at: int) -> Recount:
+    def refit(self) -> Recount:
         """Worker thread: refit the model and re-rank the queue, then count again."""
         result = self.background().refit()
-        count = self.recount(counted_at)
-        return Recount(count.decided, count.remaining, counted_at,
+        count = self.recount()
+        return Recount(count.decided, count.remaining, count.counted_at,
                        "model refit: another process refit on later decisions; theirs stands"
                        if result.superseded else
                        f"model refit: {result.labels} labels, {result.ranker}")

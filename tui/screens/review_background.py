@@ -3,7 +3,6 @@ worker threads, so a decision never waits for either. Mixed into ``ReviewScreen`
 
 from __future__ import annotations
 
-from functools import partial
 from typing import TYPE_CHECKING
 
 from textual.worker import Worker, WorkerState
@@ -30,7 +29,7 @@ class ReviewBackground:
 
     def _count(self) -> None:
         app = self.review_app
-        self.run_worker(partial(app.recount, app.counted), thread=True, group="count",
+        self.run_worker(app.recount, thread=True, group="count",
                         name="count", exit_on_error=False)
 
     def _after_decision(self) -> None:
@@ -41,7 +40,7 @@ class ReviewBackground:
             self.refitting = True
             self.query_one(StatusLine).set_who(app.project_name, app.reviewer, "refitting")
             # A refit that fails (the file busy, say) is reported; the review goes on.
-            self.run_worker(partial(app.refit, app.counted), thread=True, group="refit",
+            self.run_worker(app.refit, thread=True, group="refit",
                             name="refit", exit_on_error=False)
 
     def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
