@@ -195,3 +195,33 @@ async def test_a_slow_search_leaves_the_screen_answering(review_sample, review_a
         release.set()
         await settle(pilot)
     assert searched == [True]  # in a worker thread
+
+
+def _prompts(results: OptionList) -> list[str]:
+    return [o.prompt.plain for o in results._options if not o.disabled]
+
+
+@pilot_test
+async def test_found_and_candidate_lines_are_laid_out_again_when_the_terminal_narrows(
+        review_sample, review_app):
+    # Found at 120 columns and narrowed to 80, the lines kept their wide layout: the values
+    # beside the ids wrapped mid-value, their second half under the pair id.
+    app = review_app(review_sample)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        for keys in (("slash", *"Hartfield", "enter"), ("c",)):
+            await press(pilot, *keys)
+            results = app.screen.query_one(OptionList)
+            await press(pilot, "down")
+            chosen = results.get_option_at_index(results.highlighted).id
+            assert all(len(p.splitlines()) == 1 for p in _prompts(results))
+            await pilot.resize_terminal(80, 24)
+            await settle(pilot)
+            box = results.scrollable_content_region.width
+            assert all(len(p.splitlines()) == 2 for p in _prompts(results))
+            assert all(cell_len(line) <= box for p in _prompts(results) for line in p.splitlines())
+            assert results.get_option_at_index(results.highlighted).id == chosen
+            await pilot.resize_terminal(120, 40)
+            await settle(pilot)
+            assert all(len(p.splitlines()) == 1 for p in _prompts(results))
+            await press(pilot, "escape")

@@ -74,6 +74,7 @@ class PairPicker(ModalScreen[int | None]):
         self.title_text = title
         self.search = search
         self.groups = groups
+        self._filled: tuple[Group, ...] = ()  # what the list shows, laid out again on resize
 
     def compose(self) -> ComposeResult:
         with Vertical(id="picker-box") as box:
@@ -127,7 +128,21 @@ class PairPicker(ModalScreen[int | None]):
         if found:
             results.focus()
 
+    def on_resize(self) -> None:
+        """The lines again for the new width, the same pair under the cursor. Opened at 120
+        columns and narrowed to 80, the lines kept their wide layout and wrapped mid-value,
+        the second half under the pair id."""
+        if not self._filled:
+            return
+        results = self.query_one(OptionList)
+        at = results.highlighted
+        chosen = None if at is None else results.get_option_at_index(at).id
+        self._fill(self._filled)
+        if chosen is not None:
+            results.highlighted = results.get_option_index(chosen)
+
     def _fill(self, groups: tuple[Group, ...]) -> None:
+        self._filled = groups
         results = self.query_one(OptionList)
         results.clear_options()
         options: list[Option] = []
