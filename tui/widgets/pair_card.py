@@ -72,11 +72,12 @@ def _level_text(row: FieldComparison, placeholders: frozenset[str] = frozenset()
     """The level as the card names it. 'missing' where both sides hold text means a value the
     field's kind cannot read ('ca. 120' as a number), or one that stands for no value ('N/A'):
     it counts as missing, but the reviewer sees two values under the word 'missing' and
-    cannot tell why. A placeholder is named so: 'unread' beside 'N/A' said nothing of it."""
+    cannot tell why. A placeholder is named so, 'no value': 'unread' beside 'N/A' said nothing
+    of it, and 'placeholder' was cut to 'placehol…' in the 9 cells of a card at 80 columns."""
     both = bool((row.left or "").strip()) and bool((row.right or "").strip())
     if row.level_name == "missing" and both:
         if {(row.left or "").strip(), (row.right or "").strip()} & placeholders:
-            return "placeholder"
+            return "no value"
         return UNREAD.get(row.kind, "unread")
     return SHORT_LEVELS.get(row.level_name, row.level_name)
 
