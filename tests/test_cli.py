@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import argparse
 import json
 from pathlib import Path
 
@@ -22,6 +23,31 @@ def test_every_command_has_help_with_an_example(capsys) -> None:
         assert done.value.code == 0
         out = capsys.readouterr().out
         assert "example:" in out and f"docket {name}" in out, name
+
+
+def _options(parser: argparse.ArgumentParser, words: list[str]):
+    for action in parser._actions:
+        if isinstance(action, argparse._SubParsersAction):
+            for name, inner in action.choices.items():
+                yield from _options(inner, [*words, name])
+        else:
+            yield " ".join(words), action
+
+
+def test_every_option_says_what_it_does_and_actions_name_their_project_so(capsys) -> None:
+    # 'export --help' listed --what and --format bare (--what defaults to scores, unsaid), and
+    # an action's errors read "docket reviewers project add: ... required: name (see 'docket
+    # reviewers project add --help')", as if 'project' were to be typed
+    bare = [(words, action.option_strings or action.dest)
+            for words, action in _options(build_parser(), []) if action.help is None]
+    assert bare == []
+    for argv, start in ((["reviewers", "x.docket", "add"], "docket reviewers PROJECT add: "),
+                        (["missed", "x.docket", "add", "L1"], "docket missed PROJECT add: ")):
+        with pytest.raises(SystemExit):
+            build_parser().parse_args(argv)
+        err = capsys.readouterr().err
+        assert err.startswith(start) and " project " not in err, err
+        assert err.split("required: ")[1].split()[0] in ("NAME", "RIGHT"), err
 
 
 def test_help_fits_an_80_column_terminal_and_wraps_at_word_ends(

@@ -85,10 +85,12 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "docket export vets.docket --what training -o training.parquet", export)
     p.add_argument("project", help="the project file (made by docket new)")
     p.add_argument("--what", choices=["scores", "gold", "training", "clusters", "conflicts",
-                                      "missed", "model"], default="scores")
+                                      "missed", "model"], default="scores",
+                   help="what to write (default scores; see above)")
     p.add_argument("-o", "--output", required=True, metavar="FILE|-",
                    help="file (.csv, .parquet, .jsonl) or - for standard output")
-    p.add_argument("--format", choices=["csv", "parquet", "jsonl"])
+    p.add_argument("--format", choices=["csv", "parquet", "jsonl"],
+                   help="default: from the file's extension; csv for -")
     p.add_argument("--test-share", type=share, default=0.2, metavar="SHARE",
                    help="training: share in the test split (default 0.2)")
     p.add_argument("--seed", type=at_least(0), default=0,

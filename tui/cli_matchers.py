@@ -33,7 +33,7 @@ def register(sub: argparse._SubParsersAction) -> None:
         "Then: docket evaluate PROJECT --matchers",
         "docket matchers vets.docket import outputs.csv --group prompts", run)
     p.add_argument("project", help="the project file (made by docket new)")
-    p.add_argument("action", choices=ACTIONS)
+    p.add_argument("action", choices=ACTIONS, help="what to do (see above)")
     p.add_argument("names", nargs="*", metavar="FILE|NAME",
                    help="files to import, or matcher names to mark / remove / create")
     p.add_argument("--name", metavar="NAME", help="import: the matcher of a single file")

@@ -25,7 +25,9 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "docket missed vets.docket add N-00412 S-11877 --reviewer maya "
                  "--note 'same owner, moved'", missed)
     p.add_argument("project", help="the project file (made by docket new)")
-    actions = p.add_subparsers(dest="action", metavar="ACTION", required=True)
+    # prog: the actions' usage and errors read 'docket missed project add', as if to be typed
+    actions = p.add_subparsers(dest="action", metavar="ACTION", required=True,
+                               prog="docket missed PROJECT")
     a = actions.add_parser("add", help="record a missed match by its two record ids",
                            description="Record a true match that is not a candidate pair.")
     _ids(a)

@@ -25,7 +25,8 @@ def register(sub: argparse._SubParsersAction) -> None:
     """Add review, demo and adjudicate to the command's sub-parsers."""
     p = command(sub, "review", "Open the review screen on a reviewer's queue.",
                  "Keys: s match, d non-match, h hold, z undo, e note, [ ] history, / find, "
-                 "? help, q quit. Every decision is saved as it is made.",
+                 "c other candidates, x columns not compared, w full values, ? help, q quit. "
+                 "Every decision is saved as it is made.",
                  "docket review vets.docket --reviewer maya --mask email,phone", review)
     p.add_argument("project", help="the project file (made by docket new)")
     p.add_argument("--reviewer", metavar="NAME",
@@ -48,14 +49,18 @@ def register(sub: argparse._SubParsersAction) -> None:
 
     p = command(
         sub, "adjudicate", "Open the adjudication screen: settle the pairs reviewers differ on.",
-        "The queue holds pairs whose reviewers disagree, pairs with a hold, and gold\n"
-        "non-matches that a chain of gold matches contradicts (cluster conflicts). Beside the\n"
-        "pair card: every reviewer's label, note and time spent, your own earlier label\n"
-        "flagged.\n\nKeys: s match, d non-match, h hold (each then asks for a short reason),\n"
-        "z undo, [ ] your adjudications, a agreement, g quality, ? help, q quit.\n\n"
+        # newlines only between paragraphs: each line is wrapped to the terminal on its own,
+        # so a line broken by hand for one width ('Beside the') broke again at another
+        "The queue holds pairs whose reviewers disagree, pairs with a hold, and gold "
+        "non-matches that a chain of gold matches contradicts (cluster conflicts). Beside the "
+        "pair card: every reviewer's label, note and time spent, your own earlier label "
+        "flagged.\n\nKeys: s match, d non-match, h hold (each then asks for a short reason), "
+        "z undo, [ ] your adjudications, x columns, w full values, a agreement, g quality, "
+        "? help, q quit.\n\n"
         "Only reviewers with the adjudicator role may adjudicate; add one with\n"
         "  docket reviewers PROJECT add NAME --role adjudicator",
-        "docket adjudicate vets.docket --reviewer ines --blind --mask email,phone", adjudicate)
+        # lee, as in the README's quickstart, where ines is a reviewer and this is refused
+        "docket adjudicate vets.docket --reviewer lee --blind --mask email,phone", adjudicate)
     p.add_argument("project", help="the project file (made by docket new)")
     p.add_argument("--reviewer", metavar="NAME",
                    help="the adjudicator; defaults to $DOCKET_REVIEWER, then your user name")

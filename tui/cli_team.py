@@ -25,10 +25,13 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "holds, adjudications and time spent.",
                  "docket reviewers vets.docket add ines --role adjudicator", reviewers)
     p.add_argument("project", help="the project file (made by docket new)")
-    actions = p.add_subparsers(dest="action", metavar="ACTION", required=True)
+    # prog: the actions' usage and errors read 'docket reviewers project add', as if to be typed
+    actions = p.add_subparsers(dest="action", metavar="ACTION", required=True,
+                               prog="docket reviewers PROJECT")
     a = actions.add_parser("add", help="register a reviewer or change their role",
                            description="Register a reviewer, or change an existing one's role.")
-    a.add_argument("name", help="the reviewer's name, as they give it to review, next and label")
+    a.add_argument("name", metavar="NAME",
+                   help="the reviewer's name, as they give it to review, next and label")
     a.add_argument("--role", choices=["reviewer", "adjudicator"], default="reviewer",
                    help="default reviewer")
     a.add_argument("--by", metavar="NAME",
