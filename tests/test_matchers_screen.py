@@ -140,9 +140,18 @@ async def test_the_table_and_the_failures_keep_every_figure_at_80x24(rated, team
         heads = [[c.plain for c in listed.get_row(key)] for key in listed.rows
                  if str(key.value).startswith("group:")]
         assert heads and all(h[0] == "" and re.match(r"\d+ pairs?: ", h[4]) for h in heads)
-        await press(pilot, "escape")
+        # the values ran past the right edge ('Averil Bremford ≠ Averil Bremfo'), the rest out
+        # of sight but for a sideways scroll: they wrap in the room the ids leave, a line a field
+        assert sum(widths) <= listed.scrollable_content_region.width
+        tall = [row for row in listed.ordered_rows if row.height > 1]
+        assert tall and not listed.max_scroll_x
+        values = [listed.get_row(key)[4].plain for key in listed.rows
+                  if not str(key.value).startswith("group:")]
+        assert any(len(v.splitlines()) > 1 and " ≠ " in v.splitlines()[1] for v in values)
         await pilot.resize_terminal(120, 40)
         await settle(pilot)
+        assert sum(c.get_render_width(listed) for c in listed.columns.values()) > 100
+        await press(pilot, "escape")
         row = [c.plain for c in table.get_row("exact")]
         assert row[1] == "label" and row[3].startswith("1.000 [")  # wide: as before
 

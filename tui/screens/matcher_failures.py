@@ -27,6 +27,8 @@ from .pair_detail import PairDetailScreen
 from .team_base import TeamScreen
 
 SHOWN = 300  # pairs listed at most; the counts still cover all
+MIN_VALUES = 24  # the least room for the differing values; narrower, the table scrolls sideways
+SCROLLBAR = 2  # cells the table's vertical scroll bar takes when its rows overflow
 HELP = (
     "The gold-labelled pairs on which this matcher disagrees with the gold label, grouped by "
     "the compared fields whose values differ between the two records (missing values do not "
@@ -76,6 +78,7 @@ class MatcherFailuresScreen(TeamScreen):
         super().__init__()
         self.matcher = name
         self.palette: Palette = PLAIN
+        self._listed: Listed | None = None
 
     def compose(self) -> ComposeResult:
         yield Static(id="failures-head")
@@ -105,7 +108,12 @@ class MatcherFailuresScreen(TeamScreen):
         elif event.state == WorkerState.SUCCESS:
             self._paint(event.worker.result)
 
+    def on_resize(self) -> None:
+        if self._listed is not None:
+            self.call_after_refresh(self._paint, self._listed)
+
     def _paint(self, listed: Listed) -> None:
+        self._listed = listed
         p, mask = self.palette, self.team_app.mask
         total = sum(len(g.failures) for g in listed.groups)
         head = Text(f"where {visible(self.matcher)} fails · ", "bold")
@@ -114,25 +122,43 @@ class MatcherFailuresScreen(TeamScreen):
                     "no gold-labelled pair disagrees with it")
         self.query_one("#failures-head", Static).update(head)
         table = self.query_one("#failures-table", DataTable)
+        at = table.cursor_row if table.row_count else 1
         table.clear(columns=True)
-        for label in ("pair", "error", "left", "right", "differing values"):
-            table.add_column(Text(label, p.muted))
+        rows: list[tuple[list[Text], str]] = []
         for group in listed.groups:
             # the heading in the last column: in 'left' it made that column as wide as the
             # longest list of fields, pushing the right ids and the values out of sight; its
             # count too, which in the 'pair' column read as a pair id ('2')
-            table.add_row(Text(""), Text(""), Text(""), Text(""),
+            rows.append(([Text(""), Text(""), Text(""), Text(""),
                           Text(f"{many(len(group.failures), 'pair')}: {group.label}",
-                               p.heading), key=f"group:{group.label}")
+                               p.heading)], f"group:{group.label}"))
             for f in group.failures:
                 if f.pair_id not in listed.values:
                     continue
-                diff = "; ".join(f"{fld}: {shown(a, fld, mask)} ≠ {shown(b, fld, mask)}"
-                                 for fld, a, b in listed.values[f.pair_id])
-                table.add_row(Text(str(f.pair_id)), Text(f.kind), Text(visible(f.left_id)),
-                              Text(visible(f.right_id)), Text(diff), key=str(f.pair_id))
+                diff = "\n".join(f"{fld}: {shown(a, fld, mask)} ≠ {shown(b, fld, mask)}"
+                                  for fld, a, b in listed.values[f.pair_id])  # a line each
+                rows.append(([Text(str(f.pair_id)), Text(f.kind), Text(visible(f.left_id)),
+                              Text(visible(f.right_id)), Text(diff)], str(f.pair_id)))
+        for label in ("pair", "error", "left", "right"):
+            table.add_column(Text(label, p.muted))
+        # The values wrap in the room the other columns leave: on one line they ran past the
+        # right edge at 80 columns ('Averil Bremford ≠ Averil Bremfo'), the rest of them out
+        # of sight but for a sideways scroll nothing on screen mentioned.
+        table.add_column(Text("differing values", p.muted), width=self._room(table, rows))
+        for cells, key in rows:
+            table.add_row(*cells, key=key, height=None)
         if table.row_count > 1:  # on the first pair: the first row is its group's heading,
-            table.move_cursor(row=1)  # where Enter did nothing
+            table.move_cursor(row=max(1, min(at, table.row_count - 1)))  # where Enter did nothing
+
+    @staticmethod
+    def _room(table: DataTable, rows: list[tuple[list[Text], str]]) -> int:
+        """Cells left for the differing values beside the first four columns (each as wide
+        as its widest cell or heading, plus the table's padding on both sides)."""
+        pad = 2 * table.cell_padding
+        used = sum(max(len(label), *(cells[i].cell_len for cells, _ in rows)) + pad
+                   for i, label in enumerate(("pair", "error", "left", "right")))
+        width = table.scrollable_content_region.width or table.app.size.width
+        return max(MIN_VALUES, width - used - pad - SCROLLBAR)
 
     def action_open(self) -> None:
         table = self.query_one("#failures-table", DataTable)
