@@ -119,11 +119,22 @@ def one_to_one_suggestion(meta: dict, labels: int) -> str | None:
     hint = meta.get("one_to_one_hint")
     if labels or meta.get("one_to_one") or not hint or not hint.get("suggest"):
         return None
-    return (f"both tables look free of duplicates (only {hint['left_repeated']:.1%} and "
-            f"{hint['right_repeated']:.1%} of their records copy another exactly), yet "
+    return (f"both tables look free of duplicates ({_copies(hint)}), yet "
             f"{many(hint['several'], 'record has', 'records have')} more than one predicted "
             "match: a build with "
             "--one-to-one would keep only pairs that are each other's best")
+
+
+def _copies(hint: dict) -> str:
+    """How many records copy another in each table. 'only 0.0% and 0.0% of their records'
+    read as a figure hiding something, where no record copied another."""
+    left, right = hint["left_repeated"], hint["right_repeated"]
+    if not left and not right:
+        return "no record copies another of its table exactly"
+
+    def share(x: float) -> str:
+        return "none" if not x else "under 0.1%" if x < 0.0005 else f"{x:.1%}"
+    return f"records that copy another of their table exactly: {share(left)} and {share(right)}"
 
 
 def status(project: ProjectFile) -> dict[str, Any]:

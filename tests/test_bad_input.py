@@ -285,6 +285,17 @@ def test_a_closed_standard_output_is_refused_before_any_work(
     assert main(["status", str(sample_project)]) == 0
 
 
+def test_a_project_named_without_its_ending_is_pointed_to(sample_project: Path,
+                                                        capsys) -> None:
+    # 'docket status vets' beside vets.docket said to create it with 'docket new vets ...'
+    bare = sample_project.with_suffix("")
+    code, err = run(capsys, "status", str(bare))
+    assert_one_line_error(code, err, f"{bare}: no such project; did you mean {sample_project}?")
+    assert not bare.exists()
+    code, err = run(capsys, "status", str(bare) + "x")
+    assert_one_line_error(code, err, "no such project; create it with 'docket new")
+
+
 def test_a_huge_value_in_an_error_is_cut_to_its_start_and_length(tmp_path: Path,
                                                                  capsys) -> None:
     # the line quoted both 1 MB ids whole: one line of two megabytes

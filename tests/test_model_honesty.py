@@ -205,6 +205,11 @@ def test_one_to_one_is_suggested_only_for_clean_tables() -> None:
     said = one_to_one_suggestion({"one_to_one_hint": {
         "suggest": True, "several": hint.several, "left_repeated": 0.0, "right_repeated": 0.0}}, 0)
     assert said is not None and "yet 1 record has more than one predicted match" in said
+    # 'only 0.0% and 0.0% of their records copy another exactly' where none did
+    assert "(no record copies another of its table exactly)" in said and "0.0%" not in said
+    said = one_to_one_suggestion({"one_to_one_hint": {
+        "suggest": True, "several": 2, "left_repeated": 0.0003, "right_repeated": 0.0}}, 0)
+    assert said is not None and "exactly: under 0.1% and none)" in said
 
 
 @pytest.mark.parametrize("seed", [0, 1])

@@ -136,6 +136,9 @@ def open_file(path: Path, readonly: bool = False, check: bool = True) -> sqlite3
     """
     file_health.check_place(path, write=not readonly)
     if not path.exists():
+        named = path.with_name(path.name + ".docket")
+        if not path.suffix and named.is_file():  # 'docket status vets' beside vets.docket
+            raise DocketError(f"{path}: no such project; did you mean {named}?")
         raise DocketError(f"{path}: no such project; create it with "
                           f"'docket new {shlex.quote(str(path))} ...'")
     if path.is_dir():
