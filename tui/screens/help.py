@@ -111,7 +111,9 @@ class HelpScreen(ModalScreen[None]):
     def _keymap(self) -> Text:
         text = Text("Remap keys in ")
         text.append(str(self.keymap_file), "bold")
-        text.append(", one line per binding id, for example  match = \"m\"\n")
+        # the example on a line of its own: within the sentence it was wrapped at its spaces,
+        # 'match =' at the end of one line and '"m"' alone on the next
+        text.append(", one line per binding id, for example:\n  match = \"m\"\n")
         text.append("ids: " + ", ".join(r.binding_id for r in self.rows))
         for problem in self.problems:
             text.append("\n" + problem, "italic")
