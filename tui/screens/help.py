@@ -111,9 +111,10 @@ class HelpScreen(ModalScreen[None]):
     def _keymap(self) -> Text:
         text = Text("Remap keys in ")
         text.append(str(self.keymap_file), "bold")
-        # the example on a line of its own: within the sentence it was wrapped at its spaces,
-        # 'match =' at the end of one line and '"m"' alone on the next
-        text.append(", one line per binding id, for example:\n  match = \"m\"\n")
+        # the example without spaces, which TOML allows: wrapped at its spaces, 'match =' ended
+        # one line and '"m"' began the next (on a line of its own, it pushed the last line of
+        # ids below a 120x40 help box)
+        text.append(", one line per binding id, for example  match=\"m\"\n")
         text.append("ids: " + ", ".join(r.binding_id for r in self.rows))
         for problem in self.problems:
             text.append("\n" + problem, "italic")
