@@ -28,6 +28,7 @@ from . import (
 )
 from .cli_base import Formatter, version, warn_line
 from .cli_checks import Parser, parse
+from .interrupts import interrupt_within
 from .stopping import at_the_last, exit_code, received, stop_signals, work_done
 from .terminal import output_closed, safe_streams, said
 
@@ -103,14 +104,22 @@ def _main(argv: list[str] | None) -> int:
         to_stderr(f"docket: {said(file_trouble(exc, getattr(args, 'project', None) or 'project'))}")
         return 2
     except KeyboardInterrupt as exc:  # what stands, when some of the work did
-        by = f" by {received()}" if received() else ""
-        with contextlib.suppress(OSError):  # after SIGHUP the terminal may be gone
-            from .folding import to_stderr
-            to_stderr(f"docket: interrupted{by}; {said(exc) or 'nothing was half-written'}")
-        return exit_code()
+        return _interrupted(said(exc))
+    except Exception as exc:
+        if not interrupt_within(exc):
+            raise
+        return _interrupted("")  # the error was the interrupt's, turned on its way up
     except BrokenPipeError:
         os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
         return 0
+
+
+def _interrupted(what_stands: str) -> int:
+    by = f" by {received()}" if received() else ""
+    with contextlib.suppress(OSError):  # after SIGHUP the terminal may be gone
+        from .folding import to_stderr
+        to_stderr(f"docket: interrupted{by}; {what_stands or 'nothing was half-written'}")
+    return exit_code()
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -9,13 +9,19 @@ from __future__ import annotations
 
 import sys
 
+from .interrupts import interrupt_within
+
 INTERRUPT_EXIT = 130  # 128 + SIGINT, as stopping.py and a shell report Ctrl-C
 
 
 def run() -> None:
     try:
         from .cli import run as run_command
-    except KeyboardInterrupt:
+    except (KeyboardInterrupt, ImportError) as exc:
+        # pybind11 turns a Ctrl-C met while a module loads into ImportError ('initialization
+        # failed'), the interrupt kept as its cause
+        if not interrupt_within(exc):
+            raise
         print("docket: interrupted while starting; nothing was done", file=sys.stderr)
         sys.exit(INTERRUPT_EXIT)
     run_command()

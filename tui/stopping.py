@@ -11,7 +11,9 @@ Once the command's work is complete and its result printed (:func:`work_done`), 
 no longer interrupts anything: the command ends with its own exit code, as it would have a
 moment later. Left to the default, a signal in those last moments (the interpreter's exit
 takes a tenth of a second) ended a finished command with 143 and no line, which read as work
-lost when none was.
+lost when none was. Ctrl-C (SIGINT) is held the same way once the work is done: left to
+Python's own handler, a Ctrl-C in those moments ended a finished ``docket new`` or ``label``
+as killed (-2, nothing said) or as "interrupted" although its work was complete.
 """
 
 from __future__ import annotations
@@ -27,7 +29,8 @@ from types import FrameType
 
 from docket.core.errors import Interrupted
 
-STOPS = ("SIGTERM", "SIGHUP")  # by name: Windows has no SIGHUP
+STOPS = ("SIGTERM", "SIGHUP", "SIGINT")  # by name: Windows has no SIGHUP
+SAID = ("SIGTERM", "SIGHUP")  # named in 'interrupted by ...': Ctrl-C is the user's own key
 INTERRUPT_EXIT = 130  # 128 + SIGINT, as a shell reports Ctrl-C
 
 _received: list[int] = []
@@ -137,8 +140,10 @@ def _screen_loop() -> asyncio.AbstractEventLoop | None:
 
 
 def received() -> str | None:
-    """The name of the stop signal that arrived, if one did (``'SIGTERM'``)."""
-    return signal.Signals(_received[0]).name if _received else None
+    """The name of the stop signal that arrived, if one did and it is worth naming
+    (``'SIGTERM'``; Ctrl-C's SIGINT is not)."""
+    name = signal.Signals(_received[0]).name if _received else None
+    return name if name in SAID else None
 
 
 def exit_code() -> int:
