@@ -89,3 +89,21 @@ def test_reach_is_the_share_of_known_matches_that_are_candidates() -> None:
     # common practice: reach (pair completeness) = true matches among candidates / all known
     assert reach(0, 0) is None
     assert reach(9, 1) == pytest.approx(0.9)
+
+
+def test_an_id_with_a_space_at_its_start_is_taken_as_written(tmp_path: Path) -> None:
+    # ' =r5' is a record of its own (a table refuses ' 7' only beside '7'); the command
+    # trimmed every id it was given, so ' =r5' read '=r5' and was 'no record', and an id
+    # with a stray space of its own ('r1 ') still names 'r1'
+    from docket.core import NewProject
+    table = tmp_path / "people.csv"
+    table.write_text("id,name,town\n =r5,ann vale,esk\nr1,bo marsh,bly\nr2,cy moor,esk\n"
+                     "r3,di ford,bly\n", encoding="utf-8")
+    path = tmp_path / "p.docket"
+    Project.create(NewProject(path=path, left=table, id_column="id", rules=["town"]))
+    with Project.open(path) as p:
+        pairs = set(p.connection.execute("SELECT left_id, right_id FROM pairs"))
+        assert (" =r5", "r1") not in pairs and ("r1", " =r5") not in pairs
+        found = p.record_missed(" =r5", "r1 ", "maya")
+        assert (found.left_id, found.right_id) == (" =r5", "r1")
+        assert p.remove_missed("r1", " =r5") and p.missed_matches() == []

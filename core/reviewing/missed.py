@@ -42,17 +42,26 @@ def _exists(conn: sqlite3.Connection, project: ProjectFile, side: str, record_id
                         (record_id,)).fetchone() is not None
 
 
+def _as_typed(conn: sqlite3.Connection, project: ProjectFile, side: str, record_id: str) -> str:
+    """The id as given where a record has it, else trimmed (a copied id's stray space): ids
+    are matched exactly, and a table may hold ' 7' (it refuses ' 7' beside '7')."""
+    if record_id != record_id.strip() and not _exists(conn, project, side, record_id):
+        return record_id.strip()
+    return record_id
+
+
 def record(project: ProjectFile, left_id: str, right_id: str, reviewer: str,
            note: str = "") -> MissedMatch:
     """Record that the two records are one entity although no candidate pair holds them."""
-    left_id, right_id = left_id.strip(), right_id.strip()
     # checked as every reviewer's name: an escape sequence in it was kept, to be shown again
     reviewer = roles.short(roles.plain_name(reviewer, "pass --reviewer NAME, who found it"))
-    if not project.link:
-        if left_id == right_id:
-            raise DocketError(f"{left_id} and {right_id} are the same record; give two ids")
-        left_id, right_id = sorted((left_id, right_id))  # one table: the pair has no order
     with project.transaction() as conn:
+        left_id, right_id = (_as_typed(conn, project, side, rid) for side, rid in
+                             (("left", left_id), ("right", right_id)))
+        if not project.link:
+            if left_id == right_id:
+                raise DocketError(f"{left_id} and {right_id} are the same record; give two ids")
+            left_id, right_id = sorted((left_id, right_id))  # one table: the pair has no order
         for side, rid in (("left", left_id), ("right", right_id)):
             if not _exists(conn, project, side, rid):
                 where = f"the {side} table" if project.link else "the table"
@@ -80,10 +89,11 @@ def record(project: ProjectFile, left_id: str, right_id: str, reviewer: str,
 
 def remove(project: ProjectFile, left_id: str, right_id: str) -> bool:
     """Take back a missed match recorded by mistake; False when there was none."""
-    a, b = left_id.strip(), right_id.strip()
-    if not project.link:
-        a, b = sorted((a, b))
     with project.transaction() as conn:
+        a, b = (_as_typed(conn, project, side, rid) for side, rid in
+                (("left", left_id), ("right", right_id)))
+        if not project.link:
+            a, b = sorted((a, b))
         cur = conn.execute("DELETE FROM missed_matches WHERE left_id = ? AND right_id = ?", (a, b))
     return cur.rowcount > 0
 
