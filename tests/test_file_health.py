@@ -170,3 +170,28 @@ def test_a_project_named_with_uri_characters_opens(name: str, tmp_path: Path, ca
     with Project.open(project, readonly=True) as opened:
         assert opened.record("left", "2") == {"name": "Tove Mask", "town": "Oslo"}
     assert sorted(p.name for p in tmp_path.iterdir()) == sorted([copy.name, name, "t.csv"])
+
+
+@pytest.mark.parametrize("edit", [
+    "DELETE FROM meta WHERE key = 'fields'", "DELETE FROM meta WHERE key = 'threshold'",
+    "UPDATE meta SET value = '{' WHERE key = 'mode'", "DROP TABLE meta"])
+@pytest.mark.parametrize("command", ["status", "label"])
+def test_a_project_whose_settings_were_cut_is_called_damaged(
+        sample_project: Path, tmp_path: Path, capsys, edit: str, command: str) -> None:
+    # an SQLite tool's edit (anyone who can write the file can) left 'KeyError: fields' and a
+    # traceback from every command
+    with sqlite3.connect(sample_project) as conn:
+        conn.execute(edit)
+    conn.close()
+    before = sample_project.read_bytes()
+    rows = tmp_path / "labels.csv"
+    rows.write_text("pair_id,label\n1,match\n", encoding="utf-8")
+    args = [command, str(sample_project)] + (
+        ["--reviewer", "ana", "--from", str(rows)] if command == "label" else [])
+    assert main(args) == 2
+    err = capsys.readouterr().err
+    assert err.startswith(f"docket: {sample_project}: the project file is damaged (its "
+                          "settings ") and len(err.splitlines()) == 1, err
+    assert sample_project.read_bytes() == before
+    assert not Path(f"{sample_project}-wal").exists()  # refused, nothing left beside it
+    assert not Path(f"{sample_project}-shm").exists()

@@ -19,7 +19,17 @@ from ..errors import DocketError
 from ..types import LABELS, Decision, FieldSpec
 from . import claims, drafts, roles, store
 from . import decisions as log
-from .file_health import ProjectFileError, check_still_writable, close_reader, explain, identity
+from .file_health import (
+    ProjectFileError,
+    check_still_writable,
+    close_reader,
+    damaged,
+    explain,
+    identity,
+)
+
+# what every command reads of the settings (meta) of a file docket built
+OPENING_KEYS = ("threshold", "left_id_column", "right_id_column", "name")
 
 
 class ProjectFile:
@@ -30,9 +40,18 @@ class ProjectFile:
         self._conn = conn
         self._identity = identity(path)
         self._lock = threading.RLock()
-        self.meta: dict[str, Any] = store.get_meta(conn)
-        self.fields = [FieldSpec(**f) for f in self.meta["fields"]]
-        self.link = self.meta["mode"] == "link"
+        try:
+            self.meta: dict[str, Any] = store.get_meta(conn)
+            self.fields = [FieldSpec(**f) for f in self.meta["fields"]]
+            self.link = self.meta["mode"] == "link"
+            for key in OPENING_KEYS:
+                self.meta[key]
+        except (KeyError, TypeError, ValueError, sqlite3.OperationalError) as exc:
+            # a docket file whose settings were edited or cut away: a KeyError's traceback
+            close_reader(conn, path)  # read-only or not, nothing left beside the file
+            what = f"its settings lack {exc}" if isinstance(exc, KeyError) else (
+                f"its settings cannot be read: {exc}")
+            raise ProjectFileError(damaged(path, what)) from None
 
     # -- opening -----------------------------------------------------------------------------
     @classmethod

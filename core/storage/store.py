@@ -182,7 +182,10 @@ def open_file(path: Path, readonly: bool = False, check: bool = True) -> sqlite3
 
 
 def get_meta(conn: sqlite3.Connection) -> dict[str, Any]:
-    return {k: json.loads(v) for k, v in conn.execute("SELECT key, value FROM meta")}
+    # fetched whole first: a value that is no JSON (an edited file) must not leave the query
+    # open, which kept a refusing read-only open's -wal and -shm beside the file
+    rows = conn.execute("SELECT key, value FROM meta").fetchall()
+    return {k: json.loads(v) for k, v in rows}
 
 
 def set_meta(conn: sqlite3.Connection, **values: Any) -> None:
