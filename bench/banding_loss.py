@@ -17,9 +17,11 @@ inside a band carries signal the bands throw away, in two ways:
 
 Data: DBLP-ACM (link; link without titles, the hardest of them; titles as one table), the
 bundled sample, the sample's generator run with another seed, and two invented scenarios
-(bench/invented_tables.py: products to deduplicate, suppliers to link); nothing was tuned on the
-last three. Answers come from the truth files.
-Rerun: python bench/banding_loss.py [link authors titles sample other products suppliers]
+(bench/invented_tables.py: products to deduplicate, suppliers to link) and eateries to
+deduplicate on name and town (bench/invented_eateries.py); nothing was tuned on the last four.
+Answers come from the truth files.
+Rerun: python bench/banding_loss.py [link authors titles sample other products suppliers
+       eateries]
 """
 
 from __future__ import annotations
@@ -33,6 +35,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 from _common import REPO, data_dir
+from invented_eateries import eateries
 from invented_tables import products, suppliers
 from model_quality import titles_table
 from sklearn.linear_model import LogisticRegression
@@ -138,7 +141,7 @@ def _run(name: str, spec: NewProject, truth: set, n_true: int, n: int) -> None:
 def main() -> None:
     folder = data_dir()
     which = set(sys.argv[1:]) or {"link", "authors", "titles", "sample", "other", "products",
-                                  "suppliers"}
+                                  "suppliers", "eateries"}
     with tempfile.TemporaryDirectory() as tmp_name:
         tmp = Path(tmp_name)
         if "link" in which:
@@ -179,6 +182,11 @@ def main() -> None:
             csv, both_ways = products(tmp)
             _run("products to deduplicate (invented)",
                  NewProject(path=tmp / "products.docket", left=csv, id_column="id"),
+                 both_ways, len(both_ways) // 2, 200)
+        if "eateries" in which:
+            csv, both_ways = eateries(tmp)
+            _run("eateries to deduplicate on name and town (invented)",
+                 NewProject(path=tmp / "eateries.docket", left=csv, id_column="id"),
                  both_ways, len(both_ways) // 2, 200)
         if "suppliers" in which:
             left, right, truth = suppliers(tmp)

@@ -5,9 +5,11 @@ Targets: DBLP-ACM link with no labels (no --one-to-one) F1 ≥ 0.90; after 200 q
 labels ≥ 0.98; DBLP-ACM titles as one table: reach ≥ 0.995 in ≤ 50,000 candidates and F1 ≥ 0.80
 after 300 labels; the sample F1 ≥ 0.98 after 200 labels. Answers come from the truth files.
 Invented scenarios nothing was tuned on (bench/invented_tables.py: products, suppliers;
-bench/invented_people.py: people to deduplicate, two registers of people to link) are printed
+bench/invented_people.py: people to deduplicate, two registers of people to link;
+bench/invented_eateries.py: two town guides' eateries to deduplicate on name and town) are printed
 beside them, with no target.
-Rerun: python bench/model_quality.py [link titles sample products suppliers people registers]
+Rerun: python bench/model_quality.py [link titles sample products suppliers people registers
+       eateries]
 """
 
 from __future__ import annotations
@@ -19,6 +21,7 @@ from pathlib import Path
 
 import pandas as pd
 from _common import REPO, data_dir
+from invented_eateries import eateries
 from invented_people import people, registers
 from invented_tables import products, suppliers
 
@@ -74,7 +77,8 @@ def _run(name: str, spec: NewProject, truth: set, n: int) -> None:
 
 # each makes its tables (one: deduplicate, two: link) and the true pairs in a folder
 INVENTED: dict[str, Callable[[Path], tuple]] = {
-    "products": products, "suppliers": suppliers, "people": people, "registers": registers}
+    "products": products, "suppliers": suppliers, "people": people, "registers": registers,
+    "eateries": eateries}
 
 
 def main() -> None:

@@ -15,6 +15,9 @@ from .figures import many, noun
 from .figures import ratio_text as _ratio
 from .terminal import json_text, padded, shown
 
+# a word rule leaving this share of records unpaired is named after the build
+ALONE_NOTE = 0.1
+
 
 def parse_together(value: str | None, option: str = "--together",
                    give: str = "two or more, comma-separated, or 'none'") -> list[str] | None:
@@ -50,6 +53,15 @@ def print_built(built: Any) -> None:
     echo(f"candidate pairs: {r.pairs:,} of {r.possible:,} possible "
           f"(reduction ratio {_ratio(r.reduction_ratio)}; "
           f"{100 * r.pairs / max(1, r.possible):.3g} % of all pairs)")
+    for col, n in r.alone.items():
+        records = built.n_left + (built.n_right if built.mode == "link" else 0)
+        if n >= ALONE_NOTE * records:
+            other = "record of the other table" if built.mode == "link" else "other record"
+            rules = " ".join(f"--block {shlex.quote(x)}" for x in [*r.rules, f"lone({col})"])
+            echo(f"note: {many(n, 'record')} ({n / records:.0%}) are in no candidate pair and "
+                 f"share no uncommon word of {shown(col)} with any {other}: where one has a copy "
+                 f"with a typo in that word, nothing pairs the two. {shown(rules)} also pairs "
+                 "each such record with its 3 nearest by spelling")
     if built.sampling:
         s = built.sampling
         echo(f"sampled: {s['kept_pairs']:,} of {s['population_pairs']:,} pairs kept "
@@ -189,8 +201,9 @@ def register(sub: argparse._SubParsersAction) -> None:
                  "rules docket chooses from the data), compares them, fits a Fellegi-Sunter model "
                  "and draws the audit slice.\n\nBlocking keys: col, col[:N], tokens(col), "
                  "digits(col), year(col); join keys with & inside a rule; several --block rules "
-                 "are OR-ed; near(col) (each record's nearest by TF-IDF similarity) and * "
-                 "(every pair, for small tables) stand alone.\nField kinds: name, text, "
+                 "are OR-ed; near(col) (each record's nearest by TF-IDF similarity), "
+                 "lone(col) (the nearest of only the records no uncommon word of col pairs) "
+                 "and * (every pair, for small tables) stand alone.\nField kinds: name, text, "
                  "longtext, code, number, date (or skip).",
                  "docket new vets.docket --left north.csv --right south.csv "
                  "--left-id client_id --right-id ref --map owner=owner_name",

@@ -16,9 +16,8 @@ from .blocking import (
     parse_rule,
     rule_pairs,
 )
-from .neighbours import NEAR_K
+from .neighbours import NEAR_K, NEAR_KINDS
 
-NEAR_KINDS = ("longtext", "name")
 NEAR_MAX_RECORDS = 20_000  # both sides together: the exact search grows with their square
 
 MAX_EXACT = 3
@@ -93,3 +92,4 @@ def choose_rules(left: pd.DataFrame, right: pd.DataFrame | None, fields: list[Fi
         # No key covers the records, but there are few enough pairs to compare them all.
         chosen.append(parse_rule(EVERY, fields))
     return chosen
+

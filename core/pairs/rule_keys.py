@@ -9,7 +9,7 @@ from __future__ import annotations
 import re
 from typing import Any
 
-_CALL = re.compile(r"^\s*(tokens|digits|year|near)\s*\((.*)\)\s*$", re.S)
+_CALL = re.compile(r"^\s*(tokens|digits|year|near|lone)\s*\((.*)\)\s*$", re.S)
 _FIRST = re.compile(r"^(.*?)\[\s*:\s*(\d+)\s*\]\s*$", re.S)
 Groups = tuple[Any, ...]  # (func, inside the call, column, length), as blocking._KEY's
 
