@@ -137,3 +137,26 @@ def test_scored_parts_on_a_full_disk_say_so(tmp_path: Path) -> None:
     assert str(caught.value) == (f"{tmp_path / 'scored'}: disk full while writing the scored "
                                  "parts; nothing was written; free some space, or give a "
                                  "folder on another disk")
+
+
+def test_a_reader_that_stops_early_ends_the_command_quietly(
+        sample_project: Path, capsys: pytest.CaptureFixture[str],
+        monkeypatch: pytest.MonkeyPatch) -> None:
+    # 'docket status PROJECT | head -2' once ended in a BrokenPipeError traceback: the clause
+    # for an error a Ctrl-C caused stood before the one for a closed pipe, and re-raised
+    class Gone(io.StringIO):
+        def write(self, _text: str) -> int:
+            raise BrokenPipeError
+
+        def fileno(self) -> int:
+            return devnull
+
+    import os
+    devnull = os.open(os.devnull, os.O_WRONLY)
+    monkeypatch.setattr(sys, "stdout", Gone())
+    monkeypatch.setattr(os, "dup2", lambda _fd, _to: None)  # pytest's own stdout stays
+    try:
+        assert main(["status", str(sample_project)]) == 0
+    finally:
+        os.close(devnull)
+    assert "Traceback" not in capsys.readouterr().err

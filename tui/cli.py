@@ -105,13 +105,13 @@ def _main(argv: list[str] | None) -> int:
         return 2
     except KeyboardInterrupt as exc:  # what stands, when some of the work did
         return _interrupted(said(exc))
-    except Exception as exc:
-        if not interrupt_within(exc):
-            raise
-        return _interrupted("")  # the error was the interrupt's, turned on its way up
     except BrokenPipeError:
         os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
         return 0
+    except Exception as exc:  # last: a re-raise here skips the clauses after it
+        if not interrupt_within(exc):
+            raise
+        return _interrupted("")  # the error was the interrupt's, turned on its way up
 
 
 def _interrupted(what_stands: str) -> int:
