@@ -224,6 +224,24 @@ def test_an_export_never_replaces_a_table_the_project_was_built_from(
     assert main(["export", str(project), "--what", "scores", "-o", str(elsewhere)]) == 0
 
 
+def test_an_export_through_a_link_never_replaces_a_table_either(
+        tiny_tables: tuple[Path, Path], tmp_path: Path, capsys) -> None:
+    # the export replaces the file a link names, and the check went by the link's own name:
+    # '-o latest.csv', a link to the left table, wrote the scores over its records
+    left, right = tiny_tables
+    project = tmp_path / "tiny.docket"
+    assert main(["new", str(project), "--left", str(left), "--right", str(right), "--id", "id",
+                 "--block", "*"]) == 0
+    table = left.read_bytes()
+    link = tmp_path / "latest.csv"
+    link.symlink_to(left)
+    capsys.readouterr()
+    assert main(["export", str(project), "--what", "scores", "-o", str(link)]) == 2
+    err = capsys.readouterr().err
+    assert f"{link}: is the left table this project was built from" in err, err
+    assert left.read_bytes() == table and link.is_symlink()
+
+
 def test_an_export_to_a_folder_asks_for_a_file_in_it(project: Path, tmp_path: Path,
                                                      capsys) -> None:
     # '-o .' was "cannot tell the format from the extension", and with --format csv

@@ -8,6 +8,7 @@ holds that table's id column is taken for the table itself.
 
 from __future__ import annotations
 
+import os
 import re
 from pathlib import Path
 from typing import Any
@@ -34,9 +35,12 @@ def refuse_over_sources(meta: dict[str, Any], target: str) -> None:
     path = Path(target)
     if target == "-" or not path.is_file():
         return
+    # the export replaces the file a link names (atomic_write): '-o latest.csv', a link to
+    # the left table, wrote the scores over its records
+    names = {path.name, Path(os.path.realpath(path)).name}
     for side in ("left", "right"):
         name, id_column = meta.get(f"{side}_file"), meta.get(f"{side}_id_column")
-        if not name or path.name != name:
+        if not name or name not in names:
             continue
         try:
             holds_id = id_column in _columns(path)
