@@ -12,6 +12,7 @@ import unicodedata
 from hypothesis import given, settings
 from hypothesis import strategies as st
 from rich.console import Console
+from rich.text import Text
 
 from docket.tui import literal
 from docket.tui.diff import PLAIN, Palette, differing, paired, render
@@ -77,6 +78,28 @@ def test_a_long_value_shortened_to_one_line_keeps_its_markers_whole():
                     assert literal.CUT_MARK.search(line) or literal.LEAD_MARK.match(line), line
     assert shorten(literal.literal_text(BIG), 28).plain.endswith(
         f" … [+{len(BIG) - len(BIG[:literal.CAP].rstrip()):,} characters]")
+
+
+def test_a_word_too_long_for_its_line_breaks_after_a_mark():
+    # Folded at the edge of a card at 80 columns (26 cells), an e-mail one cell too long read
+    # 'desmelle.remion@example.ne' over a lone 't', a domain that looked mistyped
+    from rich.cells import cell_len
+
+    from docket.tui.widgets.card_lines import wrap
+    _, right = paired("grees.remion@example.net", "desmelle.remion@example.net", "code",
+                         PLAIN)
+    lines = wrap(right, 26)
+    assert [line.plain for line in lines] == ["desmelle.remion@example.", "net"]
+    # the highlights go with their characters: the differing start, nothing in 'net'
+    assert right.spans and lines[0].spans == right.spans and not lines[1].spans
+    # breaking after a mark only past a third of the line; else at the edge, as before
+    assert [x.plain for x in wrap(Text("a@" + "b" * 30), 26)] == ["a@" + "b" * 24, "b" * 6]
+    assert [x.plain for x in wrap(Text("x" * 60), 26)] == ["x" * 26, "x" * 26, "x" * 8]
+    # a space comes first; wide characters are counted in cells
+    assert [x.plain for x in wrap(Text("Flat 5, " + "y" * 30), 26)] == ["Flat 5,", "y" * 26,
+                                                                        "y" * 4]
+    assert all(cell_len(x.plain) <= 15 for x in wrap(Text("山田太郎" * 10), 15))
+    assert [x.plain for x in wrap(Text("one\n" + "z" * 30), 26)] == ["one", "z" * 26, "z" * 4]
 
 
 def test_long_value_window_holds_the_first_difference():
