@@ -268,3 +268,5 @@ async def test_help_lists_no_way_back_on_a_screen_opened_alone(team, team_app):
             await press(pilot, "question_mark")
             assert isinstance(app.screen, TeamHelp)
             assert ("quality-back" in {r.binding_id for r in app.screen.rows}) is back
+            # the keymap's example is one of this screen's ids: it was 'match' here
+            assert ' quality-plots="m"\n' in app.screen._keymap().plain

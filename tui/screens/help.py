@@ -113,8 +113,11 @@ class HelpScreen(ModalScreen[None]):
         text.append(str(self.keymap_file), "bold")
         # the example without spaces, which TOML allows: wrapped at its spaces, 'match =' ended
         # one line and '"m"' began the next (on a line of its own, it pushed the last line of
-        # ids below a 120x40 help box)
-        text.append(", one line per binding id, for example  match=\"m\"\n")
+        # ids below a 120x40 help box). It names one of this screen's ids: the quality
+        # screen's help gave 'match', an id it does not have.
+        ids = [r.binding_id for r in self.rows]
+        example = "match" if "match" in ids or not ids else ids[0]
+        text.append(f", one line per binding id, for example  {example}=\"m\"\n")
         text.append("ids: " + ", ".join(r.binding_id for r in self.rows))
         for problem in self.problems:
             text.append("\n" + problem, "italic")
