@@ -35,6 +35,29 @@ def kappa_coverage(n: int, prevalence: float, kappa: float, reps: int, seed: int
     return hit / max(reps - undefined, 1), outside, undefined
 
 
+def many_coverage(n: int, prevalence: float, kappa: float, reps: int, seed: int = 0
+                  ) -> tuple[float, float]:
+    """Coverage of Fleiss' kappa's and Krippendorff's alpha's intervals, two reviewers per
+    pair, among the tables where each is defined."""
+    from docket.core.reviewing.agreement_summary import overall_agreement
+
+    rng = np.random.default_rng(seed)
+    hits = [0, 0]
+    defined = [0, 0]
+    for _ in range(reps):
+        (mm, mn), (nm, nn) = two_raters(rng, n, prevalence, kappa).tolist()
+        says = ["mm"] * mm + ["mn"] * mn + ["nm"] * nm + ["nn"] * nn
+        labels = {who: {u: "match" if s[i] == "m" else "non-match" for u, s in enumerate(says)}
+                  for i, who in enumerate(("ana", "ben"))}
+        got = overall_agreement(labels)
+        for j, (low, high) in enumerate(((got.fleiss_low, got.fleiss_high),
+                                         (got.alpha_low, got.alpha_high))):
+            if low is not None and high is not None:
+                defined[j] += 1
+                hits[j] += low <= kappa <= high
+    return hits[0] / max(defined[0], 1), hits[1] / max(defined[1], 1)
+
+
 def default_design(rng: np.random.Generator, n_pairs: int = 1500, prevalence: float = 0.3,
                    overlap: float = 0.2) -> tuple[dict[str, dict[int, str]], np.ndarray]:
     """docket's default overlap design with three reviewers: every pair decided by one

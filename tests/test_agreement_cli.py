@@ -121,7 +121,7 @@ def test_too_few_pairs_for_fleiss_kappa_carries_no_band(sample_project: Path, tm
         assert run(["label", str(sample_project), "--reviewer", name, "--from", str(source)]) == 0
     capsys.readouterr()
     assert run(["agreement", str(sample_project)]) == 0
-    (line,) = [x for x in capsys.readouterr().out.splitlines() if "Fleiss' kappa" in x]
+    (line,) = [x for x in capsys.readouterr().out.splitlines() if x.startswith("  Fleiss' kappa")]
     assert line == ("  Fleiss' kappa too few pairs to say (n 6; needs 10) on pairs with 2 "
                     "ratings each")
     with Project.open(sample_project) as project:

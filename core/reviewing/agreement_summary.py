@@ -29,8 +29,8 @@ from .agreement import (
 from .agreement_intervals import (
     MIN_PAIRS,
     alpha_of_rows,
-    bootstrap_rows,
     fleiss_of_rows,
+    many_interval,
     pabak_interval,
 )
 from .agreement_many import fleiss, krippendorff_alpha_nominal, rating_counts
@@ -82,10 +82,12 @@ class OverallResult(_ToDict):
     fleiss_raters: int
     krippendorff_alpha: float
     alpha_units: int
-    fleiss_low: float | None = None  # percentile bootstrap over pairs, clipped to [-1, 1]
+    fleiss_low: float | None = None  # agreement_intervals.many_interval
     fleiss_high: float | None = None
     alpha_low: float | None = None
     alpha_high: float | None = None
+    fleiss_ci_method: str | None = None
+    alpha_ci_method: str | None = None
 
 
 def _check_labels(labels: Mapping[Any, Mapping[Any, str]]) -> None:
@@ -160,7 +162,7 @@ def overall_agreement(
                 per_unit.setdefault(unit, []).append(label)
     sizes = Counter(len(v) for v in per_unit.values() if len(v) >= 2)
     kappa, band, modal, used = _NAN, UNDEFINED, 0, 0
-    f_low = f_high = a_low = a_high = None
+    f_low = f_high = a_low = a_high = f_how = a_how = None
     if sizes:
         modal = max(sizes, key=lambda size: (sizes[size], size))
         chosen = [v for v in per_unit.values() if len(v) == modal]
@@ -168,10 +170,12 @@ def overall_agreement(
         result = fleiss(counts)
         kappa, band, used = result.kappa, result.band, len(chosen)
         if used >= MIN_PAIRS:
-            f_low, f_high = bootstrap_rows(len(counts), fleiss_of_rows(counts))
+            f_low, f_high, f_how = many_interval(counts, kappa, fleiss_of_rows(counts))
         pairable = rating_counts([v for v in per_unit.values() if len(v) >= 2], categories)
         if len(pairable) >= MIN_PAIRS:
-            a_low, a_high = bootstrap_rows(len(pairable), alpha_of_rows(pairable.astype(float)))
+            of_rows = alpha_of_rows(pairable.astype(float))
+            a_low, a_high, a_how = many_interval(pairable, of_rows(np.arange(len(pairable))),
+                                                 of_rows)
     data = [[counted(given.get(unit)) for unit in per_unit] for given in labels.values()]
     return OverallResult(
         include_hold=include_hold,
@@ -188,4 +192,6 @@ def overall_agreement(
         fleiss_high=f_high,
         alpha_low=a_low,
         alpha_high=a_high,
+        fleiss_ci_method=f_how,
+        alpha_ci_method=a_how,
     )

@@ -19,9 +19,10 @@ from .agreement_intervals import MIN_PAIRS
 
 SE_KIND = ("Fleiss, Cohen & Everitt (1969) large-sample non-null standard error (SAS 'ASE', "
            "Stata kapci); se0 is the standard error under kappa = 0")
-CI_KIND = ("two categories: goodness-of-fit interval (Donner & Eliasziw 1992); with holds as "
-           "a third category that someone used: percentile bootstrap over pairs; never outside "
-           "[-1, 1]. "
+CI_KIND = ("two categories: goodness-of-fit interval (Donner & Eliasziw 1992), for Cohen's "
+           "kappa and, where every pair has two ratings, for Fleiss' kappa and Krippendorff's "
+           "alpha; with holds as a third category that someone used, or three ratings of a "
+           "pair: percentile bootstrap over pairs; never outside [-1, 1]. "
            "wald_low / wald_high: kappa ± 1.959964 × se, as SAS and Stata print it")
 BAND_CONVENTION = ("Landis & Koch (1977), edges closed upper-inclusively: kappa < 0 Poor; "
                    "0 ≤ kappa ≤ 0.20 Slight; 0.20 < kappa ≤ 0.40 Fair; 0.40 < kappa ≤ 0.60 "
