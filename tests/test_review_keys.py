@@ -165,6 +165,7 @@ async def test_help_lists_every_binding_and_the_caution(review_sample, review_ap
             assert binding.id in text, binding.id
             assert binding.description in text
         assert "personal data" in text and "private" in text
+        assert "only what they need (--mask)" in text  # the one caution of 'new' it lacked
         # every name two spaces or more from its explanation: 'full values show in full the
         # values...' read as one sentence
         from rich.console import Console

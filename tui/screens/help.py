@@ -15,11 +15,13 @@ from textual.containers import VerticalScroll
 from textual.screen import ModalScreen, Screen
 from textual.widgets import Static
 
+# Masking was the one caution of 'docket new' missing here, where a reviewer may need it
 CAUTION = (
     "Records may be personal data. Keep the project file private: it holds every record and "
-    "every decision. Do not copy it to shared places, and delete copies you no longer need. "
-    "Decisions made here can merge people's records; when you cannot tell, hold the pair. "
-    "Follow your local data-protection law and your organisation's policy."
+    "every decision; never copy it to shared places, and delete copies you no longer need. "
+    "Show reviewers only what they need (--mask). Decisions here can merge people's records: "
+    "when you cannot tell, hold the pair. Follow your local data-protection law and your "
+    "organisation's policy."
 )
 
 HOW = (
@@ -29,7 +31,7 @@ HOW = (
     "past decision, or undoing one, adds to the log; nothing is deleted. When the pair card is "
     "taller than the screen, the arrow keys and Page Up / Page Down scroll it; a value shortened "
     "with … to fit comes back in full with w. While the model is refit in the background, the "
-    "status line says so (\"refitting\"); you can go on deciding. Esc, ? or q closes this help."
+    "status line says so (\"refitting\"); you can go on deciding."
 )
 
 
