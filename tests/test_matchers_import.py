@@ -90,7 +90,7 @@ def _digest(path: Path) -> str:
     (lambda f: f.assign(left_id=f.left_id.where(f.index != 3, "NOPE-1")),
      "row 5: left_id 'NOPE-1' names no record"),
     (lambda f: f.assign(label=f.label.where(f.index != 2, "maybe")),
-     "row 4: label 'maybe' is not match or non-match"),
+     "row 4: label 'maybe' is not match or non-match (or 1 / 0)"),
     (lambda f: f.drop(columns="label").assign(score=[0.5] * 6 + [1.5] + [0.1] * (len(f) - 7)),
      "row 8: score 1.5 lies outside 0 to 1"),
     (lambda f: f.drop(columns="label").assign(score=["x"] + [0.1] * (len(f) - 1)),
@@ -158,3 +158,20 @@ def test_column_names_in_another_case_are_read(project: Project, tmp_path: Path)
     assert read.name == "m"
     scores = catalogue.load_scores(project.connection, ["m"])["m"]
     assert np.count_nonzero(~np.isnan(scores)) == 50
+
+
+def test_a_label_column_reads_the_words_evaluate_reads(project: Project, tmp_path: Path) -> None:
+    # 'nonmatch', 'no-match' and 1 / 0 were refused here ("label 'nonmatch' is not match or
+    # non-match") while 'evaluate --predictions' and 'label' read the same file
+    from docket.core.quality.predictions_file import read_predictions
+    frame = candidates(project)[:8]
+    words = ["match", "nonmatch", "1", "0", "Yes", "no-match", "TRUE", "non_match"]
+    path = tmp_path / "words.csv"
+    pd.DataFrame({"left_id": frame.left_id, "right_id": frame.right_id,
+                  "label": words}).to_csv(path, index=False)
+    (stored,) = import_matchers(project, [path])
+    scores = catalogue.load_scores(project.connection, [stored.name])[stored.name]
+    at = np.searchsorted(catalogue.pair_ids(project.connection), frame.pair_id.to_numpy())
+    meant = [1.0, 0.0, 1.0, 0.0, 1.0, 0.0, 1.0, 0.0]
+    assert scores[at].tolist() == meant
+    assert read_predictions(project, path)[0].loc[frame.pair_id].tolist() == meant  # read there

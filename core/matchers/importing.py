@@ -20,6 +20,7 @@ import pyarrow.compute as pc
 import pyarrow.parquet as pq
 
 from ..errors import DocketError
+from ..quality.predictions_file import FALSE_WORDS, TRUE_WORDS
 from ..records import decimal_commas
 from ..records.sources import detect_format, read_frame, row_named
 from ..records.text_tables import HEAD_BYTES, plain_names, separator_hint
@@ -31,7 +32,9 @@ from .file_rows import Reader, check_ids, fail, first
 
 SCORE = "score"
 LABEL = "label"
-LABELS = {"match": 1.0, "non-match": 0.0}
+# the words 'evaluate --predictions' reads in a label column, so one matcher file serves both:
+# 'nonmatch' and '0' were refused here and read there
+LABELS = {**dict.fromkeys(sorted(TRUE_WORDS), 1.0), **dict.fromkeys(sorted(FALSE_WORDS), 0.0)}
 MAX_NAME = 60
 # Rows looked up together: one hash of the candidate keys serves them all, and memory stays
 # bounded (a batch's files are held until their rows are found).
@@ -114,7 +117,7 @@ def _values(table: pa.Table, path: Path) -> tuple[str, np.ndarray]:
         bad = first(pc.is_null(code).to_numpy(zero_copy_only=False))
         if bad is not None:
             raise fail(path, bad, f"label {table[LABEL][bad].as_py()!r} is not match or "
-                        "non-match")
+                        "non-match (or 1 / 0)")
         return LABEL, np.array(list(LABELS.values()))[code.to_numpy(zero_copy_only=False)]
     raw = table[SCORE]
     if _numeric(raw):

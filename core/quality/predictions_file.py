@@ -22,7 +22,7 @@ from ..wording import many, quoted
 SCORE_COLUMNS = ("score", "probability")
 LABEL_COLUMNS = ("label", "predicted")
 TRUE_WORDS = {"match", "1", "true", "yes", "y", "t"}
-FALSE_WORDS = {"non-match", "nonmatch", "non_match", "0", "false", "no", "n", "f"}
+FALSE_WORDS = {"non-match", "nonmatch", "non_match", "no-match", "0", "false", "no", "n", "f"}
 
 
 def _flag(values: pd.Series, path: Path) -> np.ndarray:
