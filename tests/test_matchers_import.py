@@ -175,3 +175,24 @@ def test_a_label_column_reads_the_words_evaluate_reads(project: Project, tmp_pat
     meant = [1.0, 0.0, 1.0, 0.0, 1.0, 0.0, 1.0, 0.0]
     assert scores[at].tolist() == meant
     assert read_predictions(project, path)[0].loc[frame.pair_id].tolist() == meant  # read there
+
+
+def test_the_scores_export_is_read_as_a_matcher(project: Project, tmp_path: Path,
+                                                capsys) -> None:
+    # its probability and predicted columns, read by 'evaluate --predictions', were refused
+    # here: "needs one column named score (0 to 1) or label (match / non-match), not neither"
+    path = tmp_path / "scores.csv"
+    assert main(["export", str(project.path), "--what", "scores", "-o", str(path)]) == 0
+    (stored,) = import_matchers(project, [path])
+    assert stored.kind == "score"
+    exported = pd.read_csv(path).sort_values("pair_id")
+    scores = catalogue.load_scores(project.connection, [stored.name])[stored.name]
+    assert np.allclose(scores, exported["probability"].to_numpy())
+    only = tmp_path / "predicted.csv"
+    exported[["left_id", "right_id", "predicted"]].to_csv(only, index=False)
+    (labels,) = import_matchers(project, [only])
+    assert labels.kind == "label"
+    neither = tmp_path / "neither.csv"
+    exported[["left_id", "right_id"]].to_csv(neither, index=False)
+    with pytest.raises(DocketError, match=r"or label \(match / non-match\), and has neither$"):
+        import_matchers(project, [neither])

@@ -32,6 +32,7 @@ from .file_rows import Reader, check_ids, fail, first
 
 SCORE = "score"
 LABEL = "label"
+ALIASES = {"probability": SCORE, "predicted": LABEL}  # in this order (see _aliased)
 # the words 'evaluate --predictions' reads in a label column, so one matcher file serves both:
 # 'nonmatch' and '0' were refused here and read there
 LABELS = {**dict.fromkeys(sorted(TRUE_WORDS), 1.0), **dict.fromkeys(sorted(FALSE_WORDS), 0.0)}
@@ -85,10 +86,22 @@ def _read(path: Path) -> pa.Table:
         table = None  # other encodings, ragged rows: the general reader says why
     if table is None:
         table = pa.Table.from_pandas(read_frame(path), preserve_index=False)
-    names = plain_names([str(c).strip() for c in table.column_names],
-                        ("left_id", "right_id", "matcher", SCORE, LABEL))
+    names = _aliased(plain_names([str(c).strip() for c in table.column_names],
+                                 ("left_id", "right_id", "matcher", SCORE, LABEL, *ALIASES)))
     return pa.table({name: col if name == SCORE and _numeric(col) else _strings(col)
                      for name, col in zip(names, table.columns, strict=True)})
+
+
+def _aliased(names: list[str]) -> list[str]:
+    """The names 'evaluate --predictions' reads as a score or label (``ALIASES``) taken as
+    those, where the file has no column of that name: docket's own scores export (probability
+    and predicted) was refused as having 'neither'. A probability is read before a predicted
+    label made from it, as there."""
+    out = list(names)
+    for alias, meant in ALIASES.items():
+        if alias in out and SCORE not in out and LABEL not in out:
+            out[out.index(alias)] = meant
+    return out
 
 
 def _plain_header(path: Path, sep: str) -> bool:
@@ -110,7 +123,8 @@ def _values(table: pa.Table, path: Path) -> tuple[str, np.ndarray]:
     has_score, has_label = SCORE in names, LABEL in names
     if has_score == has_label:
         raise DocketError(f"{path}: needs one column named {SCORE} (0 to 1) or {LABEL} "
-                          "(match / non-match), not " + ("both" if has_score else "neither"))
+                          "(match / non-match), " + ("not both" if has_score else
+                                                     "and has neither"))
     if has_label:
         text = pc.utf8_lower(pc.utf8_trim_whitespace(table[LABEL]))
         code = pc.index_in(text, value_set=pa.array(list(LABELS), pa.large_string()))
