@@ -272,3 +272,15 @@ async def test_theme_change_repaints_with_the_new_theme(review_sample, review_ap
         app.theme = "textual-light"
         await settle(pilot)
         assert review(app).palette != before
+
+
+@pilot_test
+async def test_help_names_the_masked_columns(review_sample, review_app):
+    # nothing on screen named them, and '01•• ••• ••69' could pass for a damaged value
+    for mask, said in (((), None), (("email", "phone"), "Masked here: email, phone")):
+        app = review_app(review_sample, mask=list(mask))
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(pilot)
+            await press(pilot, "question_mark")
+            text = screen_text(app)
+            assert ("Masked here" in text) is bool(said) and (said is None or said in text)

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from collections.abc import Callable
+from collections.abc import Callable, Collection
 from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import ClassVar
@@ -83,20 +83,31 @@ class HelpScreen(ModalScreen[None]):
         Binding("q", "close", "close", show=False, id="help-close-q"),
     ]
 
-    def __init__(self, rows: list[KeyRow], keymap_file: Path, problems: list[str]) -> None:
+    def __init__(self, rows: list[KeyRow], keymap_file: Path, problems: list[str],
+                 masked: Collection[str] = ()) -> None:
         super().__init__()
         self.rows = rows
         self.keymap_file = keymap_file
         self.problems = problems
+        self.masked = sorted(masked)
 
     def compose(self) -> ComposeResult:
         with VerticalScroll(id="help-box") as box:
             box.border_title = "help"
             box.border_subtitle = "esc closes"
-            yield Static(Text(CAUTION, style="bold"), id="help-caution")
+            yield Static(self._caution(), id="help-caution")
             yield Static(self._keys(), id="help-keys")
             yield Static(Text(HOW), id="help-how")
             yield Static(self._keymap(), id="help-keymap")
+
+    def _caution(self) -> Text:
+        """The caution, and the columns masked on this screen: nothing on screen named them,
+        and a reviewer could take '01•• ••• ••69' for a damaged value."""
+        text = Text(CAUTION, style="bold")
+        if self.masked:
+            text.append(f"\nMasked here: {', '.join(self.masked)} (• hides their characters; "
+                        "find never searches them).", style="not bold")
+        return text
 
     def _keys(self) -> Table:
         # a grid, so that a long explanation wraps under itself, not under the keys

@@ -252,7 +252,8 @@ class ReviewScreen(ReviewNotes, ReviewMoves, ReviewBackground, Screen[None]):
     def action_help(self) -> None:
         app = self.review_app
         rows = key_rows(self, app.get_key_display, app.keymap.keymap)
-        self.app.push_screen(HelpScreen(rows, app.keymap.path, app.keymap.problems))
+        self.app.push_screen(HelpScreen(rows, app.keymap.path, app.keymap.problems,
+                                        app.mask.columns))
 
     def action_quit(self) -> None:
         self.app.exit()

@@ -30,7 +30,8 @@ class TeamScreen(Screen[None]):
             back = {b.id for b in self.BINDINGS  # and help listed 'esc back' all the same
                     if isinstance(b, Binding) and b.action == "back"}
             rows = [r for r in rows if r.binding_id not in back]
-        self.app.push_screen(TeamHelp(rows, app.keymap.path, app.keymap.problems, self.HELP))
+        self.app.push_screen(TeamHelp(rows, app.keymap.path, app.keymap.problems, self.HELP,
+                                      app.mask.columns))
 
     def action_back(self) -> None:
         if len(self.app.screen_stack) > 2:  # never the last screen: a blank one is under it

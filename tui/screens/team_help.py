@@ -6,6 +6,7 @@ blind, adjudication is not).
 
 from __future__ import annotations
 
+from collections.abc import Collection
 from pathlib import Path
 
 from rich.text import Text
@@ -13,7 +14,7 @@ from textual.app import ComposeResult
 from textual.containers import VerticalScroll
 from textual.widgets import Static
 
-from .help import CAUTION, HelpScreen, KeyRow
+from .help import HelpScreen, KeyRow
 
 ADJUDICATION = (
     "Each pair here waits for a final label: its reviewers disagree, one held it, or a chain "
@@ -44,15 +45,15 @@ class TeamHelp(HelpScreen):
     """The review help's layout with a paragraph of this screen's own."""
 
     def __init__(self, rows: list[KeyRow], keymap_file: Path, problems: list[str],
-                 how: str) -> None:
-        super().__init__(rows, keymap_file, problems)
+                 how: str, masked: Collection[str] = ()) -> None:
+        super().__init__(rows, keymap_file, problems, masked)
         self.how = how
 
     def compose(self) -> ComposeResult:
         with VerticalScroll(id="help-box") as box:
             box.border_title = "help"
             box.border_subtitle = "esc closes"
-            yield Static(Text(CAUTION, style="bold"), id="help-caution")
+            yield Static(self._caution(), id="help-caution")
             yield Static(self._keys(), id="help-keys")
             yield Static(Text(self.how), id="help-how")
             yield Static(self._keymap(), id="help-keymap")
