@@ -145,6 +145,25 @@ def test_unknown_ids_in_pairs_file(tmp_path: Path, good: Path, capsys) -> None:
     assert not (tmp_path / "p.docket").exists()
 
 
+def test_a_pairs_file_without_a_header_is_named(tmp_path: Path, good: Path, capsys) -> None:
+    # its first pair was read as the header, and left out unsaid (98 of 99 pairs read)
+    pairs = write(tmp_path / "pairs.csv", "1,2\n1,3\n2,3\n")
+    code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(good), "--id", "id",
+                    "--pairs", str(pairs))
+    assert_one_line_error(code, err, "pairs.csv: its first line (1, 2) names two records, so "
+                          "it is a pair, not a header; add a first line left_id,right_id")
+    assert not (tmp_path / "p.docket").exists()
+    write(pairs, "left,right\n1,2\n1,3\n2,3\n")  # a header of other names still serves
+    assert main(["new", str(tmp_path / "p.docket"), "--left", str(good), "--id", "id",
+                 "--pairs", str(pairs)]) == 0
+    capsys.readouterr()
+    write(pairs, "1,2\n1,3\n")
+    code, err = run(capsys, "score", str(tmp_path / "p.docket"), "--pairs", str(pairs), "-o",
+                    str(tmp_path / "scored"))
+    assert_one_line_error(code, err, "its first line (1, 2) names two records")
+    assert not (tmp_path / "scored").exists()
+
+
 def test_rule_over_the_cap_suggests_a_tighter_rule(tmp_path: Path, capsys) -> None:
     oslo = write(tmp_path / "oslo.csv", "id,name,town\n1,Anna,Oslo\n2,Jon,Oslo\n3,Anne,Oslo\n")
     code, err = run(capsys, "new", str(tmp_path / "p.docket"), "--left", str(oslo), "--id", "id",

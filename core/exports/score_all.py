@@ -22,7 +22,7 @@ import pandas as pd
 from ..errors import DocketError
 from ..matching import scoring
 from ..matching.model_file import ScoringModel, score_pairs
-from ..pairs.pair_files import _text, id_batches, open_pairs, positions
+from ..pairs.pair_files import _text, id_batches, open_pairs, positions, refuse_headless
 from ..records.fields import masked
 from ..records.sources import Table, load_table
 from ..storage.file_health import no_room
@@ -145,6 +145,8 @@ def score_to_parts(job: ScoreJob, pairs: Path, out: Path, engine: str = "in-proc
         else:
             rows = 0
             for i, (_, a, b) in enumerate(id_batches(source)):
+                if i == 0:
+                    refuse_headless(source, job.left_index, job.right_index)
                 part = job(pd.DataFrame({"a": a, "b": b}))
                 with _writing(out):
                     part.to_parquet(tmp / f"part-{i:05d}.parquet", index=False)
@@ -168,6 +170,7 @@ def _on_dask(job: ScoreJob, source: Any, tmp: Path, workers: int,
             raw = dd.read_parquet([str(p) for p in source.parts], columns=list(source.columns))
         else:
             _, a, b = next(id_batches(source))
+            refuse_headless(source, job.left_index, job.right_index)
             raw = dd.from_pandas(pd.DataFrame({"a": a, "b": b}), npartitions=2 * workers)
         meta = pd.DataFrame({"left_id": pd.Series(dtype=object),
                              "right_id": pd.Series(dtype=object),

@@ -16,7 +16,7 @@ from ..records.sources import Table
 from ..types import FieldSpec
 from ..wording import many, noun
 from . import autoblock, blocking
-from .pair_files import PairSource, id_batches, positions
+from .pair_files import PairSource, id_batches, positions, refuse_headless
 
 Step = Callable[..., None]
 
@@ -55,6 +55,8 @@ class GivenReader:
         done = row_in_part = 0
         last = None
         for part, a, b in id_batches(source):
+            if last is None:
+                refuse_headless(source, lindex, rindex)
             row_in_part = 0 if part != last else row_in_part
             last = part
             first_row = row_in_part + (1 if source.is_parquet else 2)

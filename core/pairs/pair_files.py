@@ -65,6 +65,17 @@ def _choose(columns: list[str], where: Path) -> tuple[str, str]:
     return columns[0], columns[1]
 
 
+def refuse_headless(source: PairSource, left_index: pd.Index, right_index: pd.Index) -> None:
+    """A text file of pairs whose first line is a pair (both cells record ids) has no header:
+    read as one, its first pair was left out, unsaid."""
+    if source.is_parquet or source.columns == ID_COLUMNS:
+        return
+    a, b = source.columns
+    if a in left_index and b in right_index:
+        raise DocketError(f"{source.path}: its first line ({a}, {b}) names two records, so it "
+                          "is a pair, not a header; add a first line left_id,right_id")
+
+
 def open_pairs(path: Path) -> PairSource:
     """Check every part's footer and columns before any work: a bad part fails at once."""
     import pyarrow.parquet as pq

@@ -26,7 +26,7 @@ from ..matching.rule_classes import RuleRows
 from ..ordering.sampling import SamplePlan, pick
 from ..pairs import blocking
 from ..pairs.candidates import possible_pairs, rules_for, width_of
-from ..pairs.pair_files import _text, id_batches, keys_of, open_pairs
+from ..pairs.pair_files import _text, id_batches, keys_of, open_pairs, refuse_headless
 from ..records.sources import Table
 from ..types import FieldSpec
 from .pair_stream import CHUNK, ChunkScorer, Kept, order_kept
@@ -206,6 +206,7 @@ def _given(spec: Any, left: Table, right: Table | None, dd: Any, client: Any,
     names = (left.path.name, other.path.name)
     if not source.is_parquet:  # a text file is read here; its keys are spread to the workers
         _, a, b = next(id_batches(source))
+        refuse_headless(source, lindex, rindex)
         keys = _keys_part(pd.DataFrame({"a": a, "b": b}), lindex, rindex, right is None,
                           str(spec.pairs_file), names)
         frame = dd.from_pandas(keys, npartitions=_partitions(len(keys), workers))
