@@ -276,3 +276,23 @@ def test_a_value_that_goes_on_after_its_closing_quote_is_refused(
     assert_one_line_error(code, err, f"{left}: line 3: a value goes on after its closing quote",
                           '"""Bob"" Smith"')
     assert not project.exists()
+
+
+@pytest.mark.parametrize(("text", "said"), [
+    ("\n" + _csv(ROWS, "\n"), "line 1, where the header belongs, is blank; delete the blank "
+     "lines above the header (the column names, on line 2)"),
+    ("  \r\n\r\n" + _csv(ROWS, "\r\n"), "line 1, where the header belongs, is blank; delete "
+     "the blank lines above the header (the column names, on line 3)"),
+    ("  \n\n  \n", "the file holds only blank lines; it needs a header row and records"),
+    ("", "the file is empty; it needs a header row and records")],
+    ids=["blank line", "spaces and blank line", "only blank lines", "nothing"])
+def test_a_blank_line_where_the_header_belongs_is_named(
+        text: str, said: str, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # 'line 2 has 3 of the header's 0 fields', and for blank lines alone 'line 3 repeats
+    # the header (were two files joined?)'
+    left = tmp_path / "export.csv"
+    left.write_text(text, encoding="utf-8", newline="")
+    project = tmp_path / "p.docket"
+    code, err = run(capsys, "new", str(project), "--left", str(left), "--id", "id")
+    assert_one_line_error(code, err, f"{left}: {said}")
+    assert not project.exists()

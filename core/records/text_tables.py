@@ -15,6 +15,7 @@ import io
 import sys
 import warnings
 from pathlib import Path
+from typing import Any
 
 import pandas as pd
 
@@ -175,6 +176,8 @@ def check_widths(path: Path, encoding: str, sep: str, skip: bool = False) -> Non
             if skip:
                 next(rows, None)
             header = _header_key(next(rows, []))
+            if rows.line_num and len(header) <= 1 and not any(header):  # a blank first line
+                _blank_header(path, rows)
             width = len(header)
             # a row is the header again only if its first cell is, in any case: one cheap test
             # per row first (keying every cell of every row took 18 s of 20 on 1,000,000 rows)
@@ -217,6 +220,18 @@ def _quoting(path: Path, exc: csv.Error, start: int, line: int) -> str:
                 '"Bob" Smith); quote the whole value and double the quotes inside it '
                 '("""Bob"" Smith"), or leave its quotes out')
     return f"{path}: line {line}: {exc}; check the file's contents"
+
+
+def _blank_header(path: Path, rows: Any) -> None:
+    """A blank first line above the header was 'line 2 has 2 of the header's 0 fields', and a
+    file of blank lines 'line 3 repeats the header'."""
+    for row in rows:
+        if any(cell.strip() for cell in row):
+            raise DocketError(f"{path}: line 1, where the header belongs, is blank; delete the "
+                              f"blank lines above the header (the column names, on line "
+                              f"{rows.line_num})")
+    raise DocketError(f"{path}: the file holds only blank lines; it needs a header row and "
+                      "records")
 
 
 def _header_key(row: list[str]) -> list[str]:
