@@ -164,6 +164,11 @@ def test_a_new_name_one_slip_from_a_known_one_is_added_on_purpose_first(
                 "who is in it already: if that is you, use 'ines'; if another person, add "
                 f"them first with 'docket reviewers {tiny} add {shlex.quote(name)}'") in err, err
     assert tiny.read_bytes() == before
+    # from the project's own folder the file is named as typed, not by its whole path
+    with pytest.MonkeyPatch.context() as patch:
+        patch.chdir(tiny.parent)
+        assert run(["next", tiny.name, "--reviewer", "ins"]) == 2
+        assert f"'docket reviewers {tiny.name} add ins'" in capsys.readouterr().err
     # named on purpose, the person works under that name; short names are often two people
     assert run(["reviewers", str(tiny), "add", "ins"]) == 0
     assert run(["label", str(tiny), "--reviewer", "ins", "--from", str(labels)]) == 0

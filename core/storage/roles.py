@@ -12,6 +12,7 @@ edit them, and a name is not proof of who typed it.
 from __future__ import annotations
 
 import bisect
+import os
 import shlex
 import sqlite3
 import unicodedata
@@ -94,8 +95,17 @@ def _digits(name: str) -> str:
 
 
 def _project_path(conn: sqlite3.Connection) -> str:
+    """The file as the user is likely to have named it: under the working folder, relative to
+    it (SQLite gives the whole path: 'docket review vets.docket' was told to run 'docket
+    reviewers /home/.../vets.docket add ...')."""
     row = conn.execute("PRAGMA database_list").fetchone()
-    return str(row[2]) if row and row[2] else "PROJECT"
+    if not row or not row[2]:
+        return "PROJECT"
+    try:
+        near = os.path.relpath(row[2])
+    except ValueError:  # another drive (Windows)
+        return str(row[2])
+    return str(row[2]) if near.startswith("..") else near
 
 
 def as_kept(conn: sqlite3.Connection, name: str, added: bool = False) -> str:
