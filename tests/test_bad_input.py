@@ -45,6 +45,10 @@ CASES = {
                    ["data.csv.gz: a compressed file; unpack it first"]),
     "folder": (lambda d: (d / "parts").mkdir() or d / "parts",
                ["parts: is a folder, not a file of records", "join its parts into one"]),
+    # a named pipe was read twice, and the second read waited for a writer for ever
+    "named pipe": (lambda d: os.mkfifo(d / "fifo.csv") or d / "fifo.csv",
+                   ["fifo.csv: a pipe or device, not a file; save what it gives to a file"]),
+    "device": (lambda _d: Path("/dev/zero"), ["/dev/zero: a pipe or device, not a file"]),
     "garbled parquet": (lambda d: write(d / "bad.parquet", "not parquet"), ["bad.parquet"]),
     "id column missing": (lambda d: write(d / "noid.csv", "key,name\n1,a\n"), ["noid.csv", "'id'"]),
     "empty ids": (lambda d: write(d / "emptyid.csv", "id,name\n1,a\n,b\n"),
@@ -162,6 +166,24 @@ def test_a_pairs_file_without_a_header_is_named(tmp_path: Path, good: Path, caps
                     str(tmp_path / "scored"))
     assert_one_line_error(code, err, "its first line (1, 2) names two records")
     assert not (tmp_path / "scored").exists()
+
+
+@pytest.mark.parametrize("command", ["label", "pairs", "matchers", "predictions"])
+def test_a_named_pipe_is_refused_by_every_reader(command: str, tmp_path: Path, good: Path,
+                                                 capsys) -> None:
+    fifo = tmp_path / "fifo.csv"
+    os.mkfifo(fifo)
+    project = tmp_path / "p.docket"
+    if command != "pairs":
+        assert main(["new", str(project), "--left", str(good), "--id", "id"]) == 0
+        capsys.readouterr()
+    argv = {"label": ["label", str(project), "--reviewer", "ana", "--from", str(fifo)],
+            "pairs": ["new", str(project), "--left", str(good), "--id", "id", "--pairs",
+                      str(fifo)],
+            "matchers": ["matchers", str(project), "import", str(fifo)],
+            "predictions": ["evaluate", str(project), "--predictions", str(fifo)]}[command]
+    code, err = run(capsys, *argv)
+    assert_one_line_error(code, err, f"{fifo}: a pipe or device, not a file")
 
 
 def test_rule_over_the_cap_suggests_a_tighter_rule(tmp_path: Path, capsys) -> None:

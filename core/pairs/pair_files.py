@@ -82,6 +82,8 @@ def open_pairs(path: Path) -> PairSource:
 
     if not path.exists():
         raise DocketError(f"{path}: no such file or folder of pairs; check the path")
+    from ..records.sources import refuse_special
+    refuse_special(path)  # a pipe was 'a folder with no Parquet parts'
     parts = _parts(path)
     if not parts:
         return PairSource(path, [], ID_COLUMNS, -1)

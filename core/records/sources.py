@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import difflib
 import json
+import stat
 import warnings
 from collections.abc import Sequence
 from dataclasses import dataclass
@@ -59,7 +60,20 @@ PACKED_SUFFIXES = {**dict.fromkeys((".gz", ".bz2", ".xz", ".zst", ".zip", ".7z")
                                    "a spreadsheet; save the sheet as CSV and give that")}
 
 
+def refuse_special(path: Path) -> None:
+    """A named pipe (mkfifo, or '<(zcat t.csv.gz)') was read more than once, and the second
+    read waited for a writer for ever; /dev/zero was 'UTF-16 without a byte-order mark'."""
+    try:
+        mode = path.stat().st_mode
+    except OSError:
+        return  # missing: each reader says so in its own words
+    if not (stat.S_ISREG(mode) or stat.S_ISDIR(mode)):
+        raise DocketError(f"{path}: a pipe or device, not a file; save what it gives to a "
+                          "file and give that (a table is read more than once)")
+
+
 def detect_format(path: Path) -> str:
+    refuse_special(path)
     fmt = FORMATS.get(path.suffix.lower())
     if fmt is None and path.suffix.lower() in PACKED_SUFFIXES:
         raise DocketError(f"{path}: {PACKED_SUFFIXES[path.suffix.lower()]} "
