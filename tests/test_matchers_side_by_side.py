@@ -164,4 +164,8 @@ def test_the_model_row_is_what_evaluate_reports(sample_project: Path, tmp_path: 
         for end in ("value", "low", "high"):
             assert model[measure][end] == pytest.approx(plain[measure][end]), (measure, end)
     truth = _row(report, "truth")
-    assert truth["recall"]["low"] > 0.0 and truth["precision"]["high"] == 1.0
+    # 60 labels leave about ten in the lowest stratum's 24,000 pairs, which no label shows a
+    # match in: recall's lower end allows for the matches they cannot rule out and may reach 0
+    # (tests/test_unseen_matches.py); the point and the upper end stay those of a perfect rater
+    assert truth["recall"]["value"] == 1.0 and truth["recall"]["high"] == 1.0
+    assert truth["recall"]["low"] < 1.0 and truth["precision"]["high"] == 1.0

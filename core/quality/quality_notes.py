@@ -60,6 +60,8 @@ def design_notes(sample: AuditSample, threshold: float, confidence: float = 0.95
                      for h in no_match)
         their = "its" if len(no_match) == 1 else "their"
         notes.append(f"no labelled match in {_strata(no_match)}: {their} matches count as "
-                     f"0, though up to {hidden:,.0f} could hide there ({confidence:.0%} bound per "
-                     "stratum), which the recall interval does not reflect")
+                     f"0 in the point, though up to {hidden:,.0f} could hide there "
+                     f"({confidence:.0%} bound per stratum); the lower ends of recall and F1 "
+                     "allow for half a match's worth there, so they read low while few pairs "
+                     "there are labelled")
     return notes
