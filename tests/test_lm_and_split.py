@@ -67,6 +67,14 @@ def test_a_template_of_ones_own_is_filled_and_checked(tiny: Project, tmp_path: P
     with pytest.raises(DocketError, match="no such template file"):
         LmTemplate.load(tmp_path / "absent.txt")
     assert "$first" in DEFAULT_TEMPLATE and "$second" in DEFAULT_TEMPLATE
+    # a data file or /dev/zero given by mistake: the latter was read until memory ran out
+    mine.write_text("$first $second " + "x" * 1_000_000, encoding="utf-8")
+    with pytest.raises(DocketError, match="over 1 MB, too long for a template"):
+        LmTemplate.load(mine)
+    with pytest.raises(DocketError, match="over 1 MB, too long for a template"):
+        LmTemplate.load("/dev/zero")
+    mine.write_bytes("\ufeff$first | $second".encode())  # a byte-order mark is no text of it
+    assert LmTemplate.load(mine).text == "$first | $second"
 
 
 # -- the split --------------------------------------------------------------------------------

@@ -51,6 +51,9 @@ def serialise_record(names: Sequence[str], values: Sequence[object]) -> str:
     return "; ".join(f"{n}: {clean(v)}" for n, v in zip(names, values, strict=True))
 
 
+MAX_TEMPLATE_BYTES = 1_000_000  # a prompt's wording; its records come in through $first
+
+
 @dataclass(frozen=True)
 class LmTemplate:
     text: str
@@ -63,7 +66,13 @@ class LmTemplate:
             return cls(DEFAULT_TEMPLATE)
         path = Path(path)
         try:
-            text = path.read_text(encoding="utf-8-sig")
+            with path.open("rb") as f:  # at most a little more than a template holds:
+                raw = f.read(MAX_TEMPLATE_BYTES + 1)  # /dev/zero was read until memory ran out
+            if len(raw) > MAX_TEMPLATE_BYTES:
+                raise DocketError(f"{path}: over {MAX_TEMPLATE_BYTES // 1_000_000} MB, too "
+                                  "long for a template (a data file given by mistake?); give "
+                                  "a text with $first and $second")
+            text = raw.decode("utf-8-sig")
         except FileNotFoundError:
             raise DocketError(f"{path}: no such template file; check the path") from None
         except UnicodeDecodeError:
