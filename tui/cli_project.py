@@ -57,11 +57,15 @@ def print_built(built: Any) -> None:
         records = built.n_left + (built.n_right if built.mode == "link" else 0)
         if n >= ALONE_NOTE * records:
             other = "record of the other table" if built.mode == "link" else "other record"
-            rules = " ".join(f"--block {shlex.quote(x)}" for x in [*r.rules, f"lone({col})"])
+            rules = _with_rules(r.rules, f"lone({col})")
             echo(f"note: {many(n, 'record')} ({n / records:.0%}) are in no candidate pair and "
                  f"share no uncommon word of {shown(col)} with any {other}: where one has a copy "
                  f"with a typo in that word, nothing pairs the two. {shown(rules)} also pairs "
                  "each such record with its 3 nearest by spelling")
+    for rule, n in r.unread_names.items():
+        echo(f"note: no rule reads a name: their words alone would pair too many records. "
+             f"{shown(_with_rules(r.rules, rule))} would add about {n:,} pairs (more true "
+             "pairs found, and more look-alikes to tell apart)")
     if built.sampling:
         s = built.sampling
         echo(f"sampled: {s['kept_pairs']:,} of {s['population_pairs']:,} pairs kept "
@@ -90,6 +94,10 @@ def print_built(built: Any) -> None:
     if hint is not None and hint.suggest:
         echo(f"suggestion: {one_to_one_suggestion({'one_to_one_hint': hint.to_dict()}, 0)}")
     echo(f"note: {CAUTION}")
+
+
+def _with_rules(rules: list[str], extra: str) -> str:
+    return " ".join(f"--block {shlex.quote(x)}" for x in [*rules, extra])
 
 
 def _ids_line(built: Any) -> str:

@@ -67,6 +67,8 @@ class BlockingReport:
     # per name or long-text field of a word rule: records in no pair whom no shared word of it
     # pairs with another (their copies with a typo in that word are found only by lone(col))
     alone: dict[str, int] = field(default_factory=dict)
+    # chosen rules only: a narrower word rule (and its estimated pairs) per name no rule reads
+    unread_names: dict[str, int] = field(default_factory=dict)
 
     @property
     def reduction_ratio(self) -> float:
@@ -75,7 +77,8 @@ class BlockingReport:
     def to_dict(self) -> dict:
         return {"rules": self.rules, "auto": self.auto, "pairs": self.pairs,
                 "possible": self.possible, "reduction_ratio": self.reduction_ratio,
-                "per_rule": self.per_rule, "alone": self.alone}
+                "per_rule": self.per_rule, "alone": self.alone,
+                "unread_names": self.unread_names}
 
 
 def rule_keys(rule: Rule, left: pd.DataFrame, right: pd.DataFrame | None,

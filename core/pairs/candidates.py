@@ -193,4 +193,7 @@ def blocked_keys(rules: list[blocking.Rule], auto: bool, left: Table, right: Tab
     li, ri, rule_ix, report = blocking.block(
         rules, left.frame, None if right is None else right.frame, fields, max_pairs, auto,
         lambda d, t: step("blocking", d, t))
+    if auto:
+        report.unread_names = autoblock.unread_names(
+            rules, left.frame, None if right is None else right.frame, fields, max_pairs)
     return li * np.int64(width_of(left, right)) + ri, rule_ix, report
