@@ -101,6 +101,9 @@ class ReportVerbs(ProjectFile):
         ``docket.core.score_to_parts``."""
         from .exports.score_all import make_job, stored_tables
         from .matching.model_file import ScoringModel, from_meta
+        if model:
+            from .records.sources import refuse_special
+            refuse_special(Path(model))  # --model /dev/zero was read until memory ran out
         scorer = ScoringModel.load(model) if model else from_meta(self.meta)
         tables = stored_tables(self, Path(left) if left else None,
                                Path(right) if right else None)

@@ -168,7 +168,7 @@ def test_a_pairs_file_without_a_header_is_named(tmp_path: Path, good: Path, caps
     assert not (tmp_path / "scored").exists()
 
 
-@pytest.mark.parametrize("command", ["label", "pairs", "matchers", "predictions"])
+@pytest.mark.parametrize("command", ["label", "pairs", "matchers", "predictions", "model"])
 def test_a_named_pipe_is_refused_by_every_reader(command: str, tmp_path: Path, good: Path,
                                                  capsys) -> None:
     fifo = tmp_path / "fifo.csv"
@@ -178,12 +178,16 @@ def test_a_named_pipe_is_refused_by_every_reader(command: str, tmp_path: Path, g
         assert main(["new", str(project), "--left", str(good), "--id", "id"]) == 0
         capsys.readouterr()
     argv = {"label": ["label", str(project), "--reviewer", "ana", "--from", str(fifo)],
+            "model": ["score", str(project), "--pairs", str(good), "--model", "/dev/zero",
+                      "-o", str(tmp_path / "scored")],
             "pairs": ["new", str(project), "--left", str(good), "--id", "id", "--pairs",
                       str(fifo)],
             "matchers": ["matchers", str(project), "import", str(fifo)],
             "predictions": ["evaluate", str(project), "--predictions", str(fifo)]}[command]
     code, err = run(capsys, *argv)
-    assert_one_line_error(code, err, f"{fifo}: a pipe or device, not a file")
+    # a model file is read once, but /dev/zero was read until memory ran out
+    assert_one_line_error(code, err, f"{'/dev/zero' if command == 'model' else fifo}: a pipe "
+                          "or device, not a file")
 
 
 def test_rule_over_the_cap_suggests_a_tighter_rule(tmp_path: Path, capsys) -> None:

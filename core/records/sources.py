@@ -69,7 +69,7 @@ def refuse_special(path: Path) -> None:
         return  # missing: each reader says so in its own words
     if not (stat.S_ISREG(mode) or stat.S_ISDIR(mode)):
         raise DocketError(f"{path}: a pipe or device, not a file; save what it gives to a "
-                          "file and give that (a table is read more than once)")
+                          "file and give that")
 
 
 def detect_format(path: Path) -> str:
