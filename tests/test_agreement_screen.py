@@ -92,6 +92,13 @@ async def test_a_cell_opens_that_pairs_disagreements_and_one_disagreement_the_pa
         assert isinstance(app.screen, PairDetailScreen) and app.screen.pair_id == listed[1]
         text = app.screen.query_one(ReviewsPanel).content.plain
         assert "maya" in text and "ines" in text and "same vet, I think" in text
+        # ? opened nothing here: the pair's own help names its keys, w among them
+        await press(pilot, "question_mark")
+        assert type(app.screen).__name__ == "TeamHelp"
+        helped = screen_text(app)
+        assert "full values" in helped and "Nothing is decided here" in helped
+        await press(pilot, "escape")
+        assert isinstance(app.screen, PairDetailScreen)
         await press(pilot, "escape", "escape", "escape")
         assert type(app.screen).__name__ == "AdjudicateScreen"
 

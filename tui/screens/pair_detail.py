@@ -6,13 +6,12 @@ Read-only: nothing is decided here (adjudication happens on the adjudication scr
 from __future__ import annotations
 
 from collections.abc import Mapping
-from typing import TYPE_CHECKING, ClassVar, cast
+from typing import ClassVar
 
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal
-from textual.screen import Screen
 from textual.widgets import Static
 
 from ..diff import Palette
@@ -20,12 +19,18 @@ from ..widgets import CardOptions, PairCardView
 from ..widgets.key_bar import KeyBar
 from ..widgets.pair_card import CardBox, placeholders_of
 from ..widgets.reviews import PairStanding, ReviewsPanel
+from .team_base import TeamScreen
 
-if TYPE_CHECKING:
-    from ..hosts import TeamHost
+HELP = (
+    "One pair as it stands: the card with the characters that differ highlighted, and beside "
+    "it every label, note and time given on it, and its gold label if it has one. Nothing is "
+    "decided here: settle a disagreement on the adjudication screen. Escape goes back to the "
+    "list this pair was opened from."
+)
 
 
-class PairDetailScreen(Screen[None]):
+class PairDetailScreen(TeamScreen):
+    HELP = HELP
     HORIZONTAL_BREAKPOINTS: ClassVar[list[tuple[int, str]] | None] = [
         (0, "-tiny"), (64, "-narrow"), (110, "-wide")]
     BINDINGS: ClassVar[list[BindingType]] = [
@@ -34,6 +39,8 @@ class PairDetailScreen(Screen[None]):
                 tooltip="show or hide the columns that are not compared"),
         Binding("w", "full_values", "full values", show=False, id="detail-full-values",
                 tooltip="show in full the values shortened with … to fit, or shorten again"),
+        Binding("question_mark", "help", "help", key_display="?", id="detail-help",
+                tooltip="this help"),
         Binding("q", "quit", "quit", id="detail-quit", tooltip="quit docket"),
     ]
 
@@ -44,10 +51,6 @@ class PairDetailScreen(Screen[None]):
         self.heading = heading or Text()
         self.aliases = aliases
         self.show_extra = False
-
-    @property
-    def team_app(self) -> TeamHost:
-        return cast("TeamHost", self.app)
 
     def compose(self) -> ComposeResult:
         yield Static(self.heading, id="detail-heading")
@@ -87,9 +90,3 @@ class PairDetailScreen(Screen[None]):
     def action_extra(self) -> None:
         self.show_extra = not self.show_extra
         self._paint()
-
-    def action_back(self) -> None:
-        self.app.pop_screen()
-
-    def action_quit(self) -> None:
-        self.app.exit()
