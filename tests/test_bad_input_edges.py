@@ -310,3 +310,19 @@ def test_the_model_is_not_written_in_another_format(sample_project: Path, tmp_pa
     assert_one_line_error(code, err, "model.csv: the model is a JSON file, not a table",
                           f"name it {tmp_path / 'model.json'}")
     assert not out.exists()
+
+
+def test_ids_that_differ_only_in_letter_case_are_read_and_named(tmp_path: Path,
+                                                                 capsys) -> None:
+    # read as two records, as ids are matched exactly, and said nothing of: a spreadsheet's
+    # lookup, or a database's case-blind collation, takes 'ab12' and 'AB12' for one id
+    left = write(tmp_path / "case.csv", "id,name\nab12,Ann Vale\nAB12,Ann Vale\nc3,Bo Moor\n"
+                 "d4,Cy Ford\nX,Di Hale\nx,Di Hale\n")
+    project = tmp_path / "p.docket"
+    assert main(["new", str(project), "--left", str(left), "--id", "id"]) == 0
+    err = capsys.readouterr().err
+    assert (f"{left}: column 'id' holds ids that differ only in letter case ('ab12', 'AB12' "
+            "on rows 2, 3 (counting the header as row 1), and 1 more such set); each is a "
+            "record of its own") in err, err
+    with Project.open(project, readonly=True) as p:
+        assert {"ab12", "AB12", "X", "x"} <= p.record_ids("left")
