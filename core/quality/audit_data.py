@@ -83,6 +83,14 @@ def held_pairs(project: ProjectFile, gold: Mapping[int, int]) -> set[int]:
             "hold" in (*e.reviewers.values(), *e.adjudicators.values())}
 
 
+def disputed_pairs(project: ProjectFile, gold: Mapping[int, int]) -> set[int]:
+    """Pairs whose reviewers disagree (a match beside a non-match), with no gold label and no
+    hold: they wait for an adjudicator, and count as not yet labelled."""
+    return {pid for pid, e in standing(project.connection).items() if pid not in gold and
+            {"match", "non-match"} <= set(e.reviewers.values()) and
+            "hold" not in (*e.reviewers.values(), *e.adjudicators.values())}
+
+
 def no_gold_yet(project: ProjectFile, drawn: int) -> DocketError:
     """The one line for an audit slice with no gold label, counting the held audit pairs."""
     audit = set(audit_rows(project)["pair_id"].tolist())
@@ -101,7 +109,8 @@ def audit_sample(project: ProjectFile, scores: pd.Series | None = None,
     ``scores`` (by pair id) defaults to ``model_scores``; every candidate pair's score goes in
     as the sample's ``population``, so predicted matches per stratum are counted, not
     estimated. Audit pairs not reviewed yet or in disagreement count as missing at random
-    within their stratum; held ones are kept apart, for bounds.
+    within their stratum (``disputed_pairs`` for the notes); held ones are kept apart, for
+    bounds.
     """
     scores = model_scores(project) if scores is None else scores
     rows = audit_rows(project)

@@ -25,7 +25,14 @@ from ..reviewing import missed
 from ..reviewing.agreement import json_ready
 from ..storage.project_file import ProjectFile
 from . import estimates
-from .audit_data import audit_rows, audit_sample, audit_strata, gold_y, no_gold_yet
+from .audit_data import (
+    audit_rows,
+    audit_sample,
+    audit_strata,
+    disputed_pairs,
+    gold_y,
+    no_gold_yet,
+)
 from .audit_data import model_scores as model_scores  # part of this module's API
 from .audit_data import sample_from as sample_from  # part of this module's API
 from .machine_rater import machine_rater
@@ -113,12 +120,13 @@ def _report(project: ProjectFile, scores: pd.Series, threshold: float,
     ts = _thresholds(thresholds, threshold)
     table = estimates.threshold_table(sample, ts, confidence)
     rows = [e.to_dict() for e in table]
+    audit_ids = set(audit_rows(project)["pair_id"].tolist())
+    disputed = len(disputed_pairs(project, gold) & audit_ids)
     for row in rows:
-        row["note"] = "; ".join(design_notes(sample, row["threshold"], confidence))
+        row["note"] = "; ".join(design_notes(sample, row["threshold"], confidence, disputed))
     g_ids = np.fromiter(gold, dtype=np.int64, count=len(gold))
     g_y = np.fromiter(gold.values(), dtype=np.int64, count=len(gold))
     g_s = scores.reindex(g_ids).to_numpy(dtype=float)
-    audit_ids = set(audit_rows(project)["pair_id"].tolist())
     mark = NAIVE_WEIGHTS if set(gold) <= audit_ids else NAIVE_QUEUE
     naive = [_naive(g_s, g_y, t, confidence, mark) for t in ts]
     at = ts.index(round(float(threshold), 12))

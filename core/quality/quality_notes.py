@@ -17,7 +17,15 @@ def _strata(keys: list) -> str:
     return f"{word} " + ", ".join(str(k) for k in sorted(keys, key=str))
 
 
-def design_notes(sample: AuditSample, threshold: float, confidence: float = 0.95) -> list[str]:
+DISPUTED = ("taken as missing at random too, though reviewers disagree on the hard pairs "
+            "more than on the rest, so the figures lean towards the easy ones (in a simulation "
+            "recall read up to 0.005 high): adjudicate them")
+
+
+def design_notes(sample: AuditSample, threshold: float, confidence: float = 0.95,
+                 disputed: int | None = None) -> list[str]:
+    """The notes of one row; ``disputed`` counts the audit pairs whose reviewers disagree
+    (None: not counted, and the note says the unlabelled may include them)."""
     notes = []
     labelled = sample.labelled_counts()
     missing = [h for h, n in sample.stratum_sizes.items() if n and h not in labelled]
@@ -29,10 +37,15 @@ def design_notes(sample: AuditSample, threshold: float, confidence: float = 0.95
     held = sample.held_counts()
     drawn = sum(sample.drawn[h] for h in labelled)
     waiting = drawn - sample.n_labelled - sum(held.get(h, 0) for h in labelled)
+    unsaid = " (or in disagreement)" if disputed is None else ""
+    disputed = min(max(disputed or 0, 0), max(waiting, 0))
     if waiting > 0:
-        notes.append(f"{sample.n_labelled:,} of {drawn:,} drawn audit pairs labelled; "
-                     f"{waiting:,} not reviewed yet (or in disagreement) are taken as missing "
-                     "at random within their stratum")
+        notes.append(f"{sample.n_labelled:,} of {drawn:,} drawn audit pairs labelled" + (
+            f"; {waiting - disputed:,} not reviewed yet{unsaid} are taken as missing at random "
+            "within their stratum" if waiting > disputed else ""))
+    if disputed:
+        notes.append(f"{many(disputed, 'audit pair')} in disagreement, waiting for an "
+                     f"adjudicator, {'is' if disputed == 1 else 'are'} {DISPUTED}")
     if held:
         per = ", ".join(f"{h}: {k}" for h, k in sorted(held.items(), key=lambda kv: str(kv[0])))
         notes.append(f"{sample.n_held:,} audit pairs are held (per stratum {per}): held pairs "
