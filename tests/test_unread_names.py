@@ -62,7 +62,8 @@ def test_new_prints_the_rules_to_add(tmp_path: Path, capsys: pytest.CaptureFixtu
                  "--field", "phone:code"]) == 0
     out = capsys.readouterr().out
     assert ("note: no rule reads a name: their words alone would pair too many records. "
-            "--block phone --block born --block 'tokens(given) & tokens(family)' would add about") in out
+            "--block phone --block born --block 'tokens(given) & tokens(family)' would add "
+            "about") in out
     assert main(["new", str(tmp_path / "q.docket"), "--left", str(csv), "--id", "id",
                  "--max-pairs", "2000", "--block", "phone"]) == 0
     assert "no rule reads a name" not in capsys.readouterr().out  # given rules: the user's

@@ -26,7 +26,7 @@ QUIT = Binding("q", "quit", "quit", id="quit", tooltip="quit (everything is alre
 EXTRA_COLUMNS = Binding("x", "extra", "columns", id="extra-columns",
                         tooltip="show or hide the columns that are not compared")
 FULL_VALUES = Binding("w", "full_values", "full values", id="full-values",
-                      tooltip="show in full the values shortened with … to fit the screen "
-                              "(the card may then scroll), or shorten them again")
+                      tooltip="show in full the values shortened with … to fit (the card may "
+                              "then scroll), or shorten them again")
 REDRAW = Binding("ctrl+l", "redraw", "redraw", show=False, id="redraw",
                  tooltip="paint the screen again")

@@ -56,6 +56,7 @@ class ReviewApp(OneToastEach):
         self.refit_every: int = max(0, int(every))
         self.keymap: LoadedKeymap = load_keymap(binding_ids(), keymap_file, default_keys())
         self.counted = 0  # net change in this reviewer's decided pairs during the session
+        self.later: list[int] = []  # pairs put off this session: served once nothing else is
         self.on_painted: Callable[[], None] | None = None  # tests and benchmarks: frame is up
         self._background: Project | None = None
         self._background_lock = threading.Lock()
@@ -73,13 +74,27 @@ class ReviewApp(OneToastEach):
             return self._background
 
     def serve_next(self) -> QueueItem | None:
-        """The next pair of this reviewer's queue, claimed so that no one else is given it."""
+        """The next pair of this reviewer's queue, claimed so that no one else is given it;
+        the pairs put off come back once nothing else is left."""
+        later = tuple(self.later)
         try:
-            items = self.project.next_pairs(self.reviewer, 1, claim=True)
+            items = self.project.next_pairs(self.reviewer, 1, later, claim=True)
         except DocketError as exc:  # a busy or read-only file: show the pair all the same
             self.notify(f"Pair not claimed: {exc}", severity="warning", markup=False)
-            items = self.project.next_pairs(self.reviewer, 1)
+            items = self.project.next_pairs(self.reviewer, 1, later)
+        if not items and later:
+            self.later.clear()
+            self.notify(f"Only the {'pair' if len(later) == 1 else 'pairs'} you put off "
+                        f"{'is' if len(later) == 1 else 'are'} left: back in turn.")
+            return self.serve_next()
         return items[0] if items else None
+
+    def put_off(self, pair_id: int) -> None:
+        """Leave the pair on screen undecided for now: it is not served again this session
+        until the queue holds nothing else, and others may be given it meanwhile."""
+        self.later.append(pair_id)
+        with contextlib.suppress(DocketError):
+            self.project.release(self.reviewer, pair_id)
 
     def recount(self) -> Recount:
         """Worker thread: this reviewer's decided and remaining pairs, counted in full, with

@@ -29,9 +29,8 @@ HOW = (
     "resumes your queue. Review is blind: other reviewers' labels are never shown. A note is "
     "saved the moment you write it and goes with your decision on the pair. Changing a "
     "past decision, or undoing one, adds to the log; nothing is deleted. When the pair card is "
-    "taller than the screen, the arrow keys and Page Up / Page Down scroll it; a value shortened "
-    "with … to fit comes back in full with w. While the model is refit in the background, the "
-    "status line says so (\"refitting\"); you can go on deciding."
+    "taller than the screen, the arrow keys and Page Up / Page Down scroll it. While the model "
+    "is refit in the background (\"refitting\"), go on deciding."
 )
 
 

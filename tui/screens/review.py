@@ -47,6 +47,8 @@ class ReviewScreen(ReviewNotes, ReviewMoves, ReviewBackground, Screen[None]):
                 tooltip="cannot tell: hold it for adjudication"),
         Binding("z", "undo", "undo", id="undo", tooltip="take back your latest decision"),
         Binding("e", "note", "note", id="note", tooltip="write a note on this pair"),
+        Binding("l", "later", "later", id="later", show=False,
+                tooltip="not now: it comes back when nothing else is left"),
         # The key bar shows bindings in this order and leaves out what does not fit (help
         # lists it): the ones a newcomer cannot guess come before those they can.
         Binding("escape", "to_queue", "queue", id="to-queue",

@@ -45,6 +45,13 @@ class ReviewMoves:
     def action_forward(self) -> None:
         self._go(self.nav.forward("You are at the newest pair."))
 
+    def action_later(self) -> None:
+        if self.mode != "queue" or self.item is None:
+            self.notify("Only the queue's pair can be put off; Escape goes back to the queue.")
+            return
+        self.review_app.put_off(self.item.pair_id)
+        self._show_queue()
+
     def action_to_queue(self) -> None:
         if self.mode != "queue":
             self._show_queue()
