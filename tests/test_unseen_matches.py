@@ -62,3 +62,24 @@ def test_recall_intervals_cover_where_the_lowest_stratum_hides_a_few_matches() -
     cov = coverage(pop, "whole slice", range(runs), (0.5,))
     # before the allowance: 14 of 60 slices held the truth (median width 0.010; now 0.079)
     assert holds_nominal(round(cov[("model", 0.5, "recall")][0] * runs), runs)
+
+
+def test_unseen_predicted_matches_are_priced_by_labelled_pairs_of_like_score() -> None:
+    # Stratum 1: 100 pairs, 50 at 0.95 and 50 at 0.3, 40 labelled: the 20 at 0.95 all matches,
+    # the 20 at 0.3 half. Stratum 0: 10,000 pairs, 200 of them at 0.3, 30 labelled, all at
+    # 0.001. At 0.2 stratum 0's 200 predicted matches have no labelled pair; priced by the
+    # labelled predicted pairs nearest in score (hot-deck imputation by a covariate, common
+    # practice in survey estimation) they count at 10 / 20, not at stratum 1's 30 / 40:
+    # precision (100 x 0.75 + 200 x 0.5) / 300 by hand.
+    score = np.r_[np.full(20, 0.95), np.full(20, 0.3), np.full(30, 0.001)]
+    label = np.r_[np.ones(20), np.ones(10), np.zeros(10), np.zeros(30)].astype(int)
+    stratum = np.r_[np.ones(40), np.zeros(30)].astype(int)
+    pi = np.r_[np.full(40, 0.4), np.full(30, 30 / 10_000)]
+    population = {1: np.r_[np.full(50, 0.95), np.full(50, 0.3)],
+                  0: np.r_[np.full(200, 0.3), np.full(9_800, 0.001)]}
+    sample = AuditSample(score, label, stratum, pi, {0: 10_000, 1: 100}, {0: 30, 1: 40},
+                         population=population)
+    e = estimate_at(sample, 0.2)
+    assert abs(e.precision.value - (100 * 0.75 + 200 * 0.5) / 300) < 1e-12
+    # the interval stays the bounds from all 200 wrong to all right
+    assert e.precision.low <= 75 / 300 + 1e-9 and e.precision.high >= 275 / 300 - 1e-9

@@ -54,8 +54,13 @@ recall intervals are 0.5-0.7 wide: 50 labels say little about tens of thousands 
 (bench/estimate_bias.py; DEVELOPERS.md, "Audit labels scored by fits without them").
 
 Unseen domains. A domain with pairs but no labelled pair (predicted matches in a stratum whose
-labels hold none, say) has a share the labels cannot estimate. Its point counts it at the share
-of the strata that have labels (pooled), but the interval does not pretend to know more: its
+labels hold none, say) has a share the labels cannot estimate. Its point counts predicted
+matches at the precision of the 20 labelled predicted pairs nearest in score to the domain's
+median (design-weighted), other pairs at the share of the strata that have labels (pooled).
+Pooled, the predicted matches read high: after a refit on 400 audit labels of the invented
+people about 215 pairs of the lowest label-free stratum score 0.2 or more and none is labelled,
+and precision at 0.2 read +0.033 high over 12 seeds (seed 7: 0.923, truth 0.851; priced by
+score: 0.864). The interval does not pretend to know more: its
 lower bound is that of the figures with every unseen pair wrong (predicted ones non-matches,
 others missed matches), its upper bound that with every one right: bounds, as for holds.
 """
@@ -217,6 +222,27 @@ def _outer(point: Interval, worst: Interval, best: Interval) -> Interval:
                     point.method)
 
 
+LIKE = 20  # labelled predicted pairs nearest in score that price an unseen domain
+
+
+def _like_scored(sample: AuditSample, h: object, t: float, cells: np.ndarray,
+                 pred: _Domain) -> _Domain:
+    """An unseen domain of predicted matches priced at the precision of the LIKE labelled
+    predicted pairs nearest in score to its median (design-weighted), not of all of them: a
+    refit lifts pairs of the lowest stratum just over a low threshold, where precision is
+    lower than among the strata's sure matches (see the module notes)."""
+    scores = sample.population[h] if sample.population is not None else np.zeros(0)
+    mine = scores[scores >= t]
+    labelled = np.flatnonzero(sample.score >= t)
+    if not mine.size or not labelled.size:
+        return pred
+    near = labelled[np.argsort(np.abs(sample.score[labelled] - np.median(mine)),
+                               kind="stable")[:LIKE]]
+    w = sample.weights()[near]
+    share = float(w @ cells[near, 0] / w.sum())
+    return _Domain(pred.size, share, share, 0.0)
+
+
 def known_domains(sample: AuditSample, t: float, cells: np.ndarray, confidence: float
                   ) -> tuple[Interval, Interval, Interval, Interval, float, float]:
     """Precision, recall, F1, true matches, predicted matches and true positives at ``t``."""
@@ -235,7 +261,10 @@ def known_domains(sample: AuditSample, t: float, cells: np.ndarray, confidence: 
         return sum(d.size * d.point for d in seen) / total if total else 0.5
 
     big_pp = float(sum(counts.get(h, 0) for h in sample.labelled_counts()))
-    precision, recall, f1, big_t, m, var = _figures(parts, pooled(0), pooled(1), big_pp,
+    point_parts = [(_like_scored(sample, h, t, cells, pred), other) if math.isnan(pred.point)
+                   and pred.size else (pred, other)
+                   for h, (pred, other) in zip(sample.stratum_index(), parts, strict=True)]
+    precision, recall, f1, big_t, m, var = _figures(point_parts, pooled(0), pooled(1), big_pp,
                                                     confidence)
     if any(math.isnan(d.point) and d.size for pair in parts for d in pair):
         worst = _figures(parts, 0.0, 1.0, big_pp, confidence)

@@ -64,7 +64,8 @@ def design_notes(sample: AuditSample, threshold: float, confidence: float = 0.95
         if unseen:
             k = sum(counts[h] for h in unseen)
             notes.append(f"{k:,} predicted matches in {_strata(unseen)} have no labelled "
-                         "pair: the point counts them at the precision of the other strata; the "
+                         "pair: the point counts them at the precision of the labelled predicted "
+                         "matches nearest in score; the "
                          "intervals are bounds, from all of them wrong to all of them right")
     no_match = [h for h, m in labelled.items() if sample.stratum_sizes[h] > m
                 and not sample.label[sample.stratum == h].any()]
