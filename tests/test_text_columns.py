@@ -9,7 +9,7 @@ import pandas as pd
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from docket.core.records import sources
+from docket.core.records import cell_text
 
 
 def cell(v: object) -> str | None:
@@ -27,7 +27,7 @@ def cell(v: object) -> str | None:
 def test_blank_characters_are_pythons_whitespace() -> None:
     # str.isspace over every code point is the definition strip() uses (common practice)
     want = {chr(c) for c in range(sys.maxunicode + 1) if chr(c).isspace()}
-    assert set(sources.BLANK) == want
+    assert set(cell_text.BLANK) == want
 
 
 texts = st.lists(st.one_of(st.none(), st.text(max_size=6),
@@ -40,7 +40,7 @@ texts = st.lists(st.one_of(st.none(), st.text(max_size=6),
 def test_text_columns_match_cell_by_cell(values: list[str | None]) -> None:
     want = [cell(v) for v in values]
     for dtype in (object, "string"):
-        got = sources._column_text(pd.Series(values, dtype=dtype)).tolist()
+        got = cell_text.column_text(pd.Series(values, dtype=dtype)).tolist()
         assert got == want, dtype
 
 
@@ -49,9 +49,9 @@ def test_text_columns_match_cell_by_cell(values: list[str | None]) -> None:
                           st.integers(-2**40, 2**40).map(float)), min_size=1, max_size=30))
 def test_float_columns_match_cell_by_cell(values: list[float]) -> None:
     want = [cell(v) for v in values]
-    assert sources._column_text(pd.Series(values, dtype=float)).tolist() == want
+    assert cell_text.column_text(pd.Series(values, dtype=float)).tolist() == want
     as32 = pd.Series(np.clip(values, -1e30, 1e30), dtype=np.float32)
-    assert sources._column_text(as32).tolist() == [cell(v) for v in as32.astype(object)]
+    assert cell_text.column_text(as32).tolist() == [cell(v) for v in as32.astype(object)]
 
 
 def test_other_columns_match_cell_by_cell() -> None:
@@ -62,4 +62,4 @@ def test_other_columns_match_cell_by_cell() -> None:
              pd.Series([None, None], dtype=object)]
     for s in cases:
         want = [None if pd.isna(v) else cell(v) for v in s.astype(object)]
-        assert sources._column_text(s).tolist() == want, s.tolist()
+        assert cell_text.column_text(s).tolist() == want, s.tolist()

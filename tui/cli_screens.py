@@ -13,8 +13,9 @@ from importlib import resources
 from pathlib import Path
 from typing import Any
 
+from .built_text import print_built
 from .cli_base import MASK_HELP, command, default_reviewer, open_project, refuse_to_discard
-from .cli_project import print_built, status
+from .cli_project import status
 from .figures import many
 from .terminal import need_terminal
 
