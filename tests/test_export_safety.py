@@ -203,13 +203,19 @@ def test_an_export_to_a_terminal_device_or_a_project_on_a_pipe_is_refused(
     assert stat.S_ISFIFO(pipe.stat().st_mode)
 
 
+def _tiny_project(left: Path, right: Path, tmp_path: Path) -> Path:
+    """A project of the two tiny tables, every pair a candidate."""
+    project = tmp_path / "tiny.docket"
+    assert main(["new", str(project), "--left", str(left), "--right", str(right), "--id", "id",
+                 "--block", "*"]) == 0
+    return project
+
+
 def test_an_export_never_replaces_a_table_the_project_was_built_from(
         tiny_tables: tuple[Path, Path], tmp_path: Path, capsys) -> None:
     # '-o left.csv' (a slip of tab completion) wrote the scores over the left table's records
     left, right = tiny_tables
-    project = tmp_path / "tiny.docket"
-    assert main(["new", str(project), "--left", str(left), "--right", str(right), "--id", "id",
-                 "--block", "*"]) == 0
+    project = _tiny_project(left, right, tmp_path)
     tables = left.read_bytes(), right.read_bytes()
     capsys.readouterr()
     for what, target in (("scores", left), ("gold", right)):
@@ -229,9 +235,7 @@ def test_an_export_through_a_link_never_replaces_a_table_either(
     # the export replaces the file a link names, and the check went by the link's own name:
     # '-o latest.csv', a link to the left table, wrote the scores over its records
     left, right = tiny_tables
-    project = tmp_path / "tiny.docket"
-    assert main(["new", str(project), "--left", str(left), "--right", str(right), "--id", "id",
-                 "--block", "*"]) == 0
+    project = _tiny_project(left, right, tmp_path)
     table = left.read_bytes()
     link = tmp_path / "latest.csv"
     link.symlink_to(left)

@@ -7,21 +7,21 @@ from typing import Any
 import pandas as pd
 
 from ..types import FieldSpec
-from .blocking import (
-    EVERY,
-    Rule,
-    _drop_common_tokens,
-    estimate_pairs,
-    exploded,
-    parse_rule,
-    rule_pairs,
-)
+from .blocking import rule_pairs
 from .neighbours import NEAR_K, NEAR_KINDS
+from .pair_sets import EVERY
+from .rules import Rule, _drop_common_tokens, estimate_pairs, exploded, parse_rule
 
 NEAR_MAX_RECORDS = 20_000  # both sides together: the exact search grows with their square
 
 MAX_EXACT = 3
 MAX_TOKENS = 2
+
+
+def _filled(f: FieldSpec, left: pd.DataFrame, right: pd.DataFrame | None) -> float:
+    """The share of records holding a value of ``f``, on the emptier side."""
+    other = left if right is None else right
+    return float(min(left[f.left_column].notna().mean(), other[f.right_column].notna().mean()))
 
 
 def _budget(n_left: int, n_right: int, max_pairs: int) -> int:
@@ -47,9 +47,7 @@ def choose_rules(left: pd.DataFrame, right: pd.DataFrame | None, fields: list[Fi
     tokens: list[Any] = []
     for f in fields:
         lvals = left[f.left_column]
-        rvals = lvals if right is None else right[f.right_column]
-        fill = min(lvals.notna().mean(), rvals.notna().mean())
-        if fill < 0.5:
+        if _filled(f, left, right) < 0.5:
             continue
         if f.kind in ("code", "date", "number"):
             distinct = lvals.nunique() / max(1, lvals.notna().sum())
@@ -94,9 +92,6 @@ def choose_rules(left: pd.DataFrame, right: pd.DataFrame | None, fields: list[Fi
     return chosen
 
 
-
-
-
 def unread_names(rules: list[Rule], left: pd.DataFrame, right: pd.DataFrame | None,
                  fields: list[FieldSpec], max_pairs: int) -> dict[str, int]:
     """When no chosen rule reads any name field (mostly filled): the narrowest join of one
@@ -105,16 +100,11 @@ def unread_names(rules: list[Rule], left: pd.DataFrame, right: pd.DataFrame | No
     alone would pair 29 million; no rule read a name and 7 % of the true pairs were no
     candidates (with ``tokens(given_name) & tokens(family_name)``, 139,797 more pairs: 2.5 %).
     Not chosen for the user: F1 before labels fell (DEVELOPERS.md, "Names in large tables")."""
-    def filled(g: FieldSpec) -> float:
-        other = left if right is None else right
-        return float(min(left[g.left_column].notna().mean(),
-                         other[g.right_column].notna().mean()))
-
     read = {k.column for r in rules for k in r.keys}
-    names = [f for f in fields if f.kind == "name" and filled(f) >= 0.5]
+    names = [f for f in fields if f.kind == "name" and _filled(f, left, right) >= 0.5]
     if not names or any(f.name in read for f in names):
         return {}
-    dates = [f for f in fields if f.kind == "date" and filled(f) >= 0.5]
+    dates = [f for f in fields if f.kind == "date" and _filled(f, left, right) >= 0.5]
     joins = [(a, f"tokens({b.name})") for i, a in enumerate(names) for b in names[i + 1:]]
     for keys in (joins, [(a, f"year({d.name})") for a in names for d in dates]):
         best: tuple[int, Rule] | None = None

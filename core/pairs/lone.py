@@ -35,8 +35,8 @@ def alone(column: str, left: pd.DataFrame, right: pd.DataFrame | None,
         return out
 
     out_l = mask(len(left), words_l, paired_l)
-    return out_l, (out_l if right is None else
-                   mask(len(right), words_r if words_r is not None else words_l, paired_r))
+    return out_l, (out_l if right is None or words_r is None else
+                   mask(len(right), words_r, paired_r))
 
 
 def left_alone(rules: list[Rule], left: pd.DataFrame, right: pd.DataFrame | None,

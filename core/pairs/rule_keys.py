@@ -11,7 +11,7 @@ from typing import Any
 
 _CALL = re.compile(r"^\s*(tokens|digits|year|near|lone)\s*\((.*)\)\s*$", re.S)
 _FIRST = re.compile(r"^(.*?)\[\s*:\s*(\d+)\s*\]\s*$", re.S)
-Groups = tuple[Any, ...]  # (func, inside the call, column, length), as blocking._KEY's
+Groups = tuple[Any, ...]  # (func, inside the call, column, length), as rules._KEY's
 
 
 def _known(part: str, names: set[str]) -> Groups | None:
