@@ -80,8 +80,10 @@ class Project(TeamVerbs, ReportVerbs, MatcherVerbs, QueueVerbs):
             return self._record(side, record_id)
 
     def card(self, pair_id: int, reason: str | None = None) -> PairCard:
-        """Everything the pair card and evidence panel show for one pair."""
-        with self._lock:
+        """Everything the pair card and evidence panel show for one pair: its probability and
+        the model's factors read together, whoever refit last."""
+        with self._lock, self._snapshot():
+            self.reload_if_refit()
             sims = ", ".join(store.similarity_column(f.name) for f in self.fields)
             row = self._conn.execute(
                 f"SELECT p.left_id, p.right_id, p.audit, p.overlap, p.n_labels, t.levels, "

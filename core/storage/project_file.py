@@ -7,6 +7,7 @@ evaluation) take a ``ProjectFile`` so that nothing below the facade imports it.
 from __future__ import annotations
 
 import contextlib
+import json
 import sqlite3
 import threading
 import time
@@ -81,6 +82,18 @@ class ProjectFile:
         with self._lock:
             self.meta = store.get_meta(self._conn)
 
+    def reload_if_refit(self) -> bool:
+        """Read the settings again when a refit elsewhere (a label file, a merge, another
+        screen) has replaced the model since they were read: a screen kept open showed the new
+        probability beside the old model's factors ('probability 0.209', 'odds 1 to 1e50').
+        True when it did. One small read; call it within the read it goes with."""
+        with self._lock:
+            row = self._conn.execute("SELECT value FROM meta WHERE key = 'refits'").fetchone()
+            if (0 if row is None else json.loads(row[0])) == self.meta.get("refits", 0):
+                return False
+            self.meta = store.get_meta(self._conn)
+            return True
+
     @property
     def threshold(self) -> float:
         return float(self.meta["threshold"])
@@ -102,6 +115,18 @@ class ProjectFile:
         """The connection, serialised with every other call on this project object."""
         with self._lock:
             yield self._conn
+
+    @contextmanager
+    def _snapshot(self) -> Iterator[None]:
+        """Reads that see one state of the file (a read transaction), unless one is open."""
+        if self._conn.in_transaction:
+            yield
+            return
+        self._conn.execute("BEGIN")
+        try:
+            yield
+        finally:
+            self._conn.execute("COMMIT")
 
     @contextmanager
     def transaction(self) -> Iterator[sqlite3.Connection]:

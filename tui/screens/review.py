@@ -85,6 +85,7 @@ class ReviewScreen(ReviewNotes, ReviewMoves, ReviewBackground, Screen[None]):
         self.since_refit = 0
         self.refitting = False
         self.model_note = ""
+        self.refits_seen: int | None = None  # the model's refit count as last shown
         self.palette: Palette = PLAIN
         self._footer_in_queue = True
         self._where_shown = ""
@@ -125,6 +126,7 @@ class ReviewScreen(ReviewNotes, ReviewMoves, ReviewBackground, Screen[None]):
         project = self.review_app.project
         self.nav.mode, self.item, self.where, self.pending_note = mode, item, where, ""
         self.card = None if item is None else project.card(item.pair_id, item.reason)
+        self._follow_refits()
         self.mine = None if item is None else project.current_label(item.pair_id,
                                                                    self.review_app.reviewer)
         if item is not None and self.mine is None:  # a note written earlier, not yet decided

@@ -19,6 +19,7 @@ class ReviewBackground:
         since_refit: int
         refitting: bool
         model_note: str
+        refits_seen: int | None
         decided: int
         remaining: int | None
 
@@ -26,6 +27,19 @@ class ReviewBackground:
         def query_one(self, selector: type[StatusLine]) -> StatusLine: ...
         def run_worker(self, work: object, **options: object) -> Worker: ...
         def notify(self, message: str, **options: object) -> None: ...
+
+    def _follow_refits(self) -> None:
+        """After reading a card: when the model was refit since the last one, here or by
+        another command (a label file, a merge, another reviewer's screen), the panel says so
+        and the counts are taken again; they had gone on from before ('40 decided' after a
+        label file had recorded 197 more)."""
+        meta = self.review_app.project.meta
+        refits = int(meta.get("refits", 0))
+        if self.refits_seen is not None and refits != self.refits_seen:
+            labels = int(meta.get("fs_model", {}).get("labels_used", 0))
+            self.model_note = f"model refit: {labels} labels, {meta.get('ranker')}"
+            self._count()
+        self.refits_seen = refits
 
     def _count(self) -> None:
         app = self.review_app
@@ -59,6 +73,7 @@ class ReviewBackground:
         if worker.group == "refit":
             self.model_note = count.note
             app.project.reload()
+            self.refits_seen = int(app.project.meta.get("refits", 0))
         moved = app.counted - count.counted_at  # decisions made while the worker counted
         self.decided, self.remaining = count.decided + moved, max(0, count.remaining - moved)
         self._status()
