@@ -288,3 +288,30 @@ def test_the_clock_column_of_the_reviews_is_named():
     rows = [line for line in lines if line.startswith(("ines", "maya"))]
     assert head.endswith("time") and rows[0].endswith("0:00") and rows[1].endswith("1:15")
     assert {len(head)} == {len(row) for row in rows}  # 'time' over the clocks
+
+
+@pilot_test
+async def test_pairs_sent_while_the_screen_is_open_come_with_r_or_on_coming_back(
+        sample_project, team_app):
+    # Seen in a terminal: the empty queue said new pairs arrive as reviewers label, and a
+    # disagreement labelled meanwhile never came until the screen was opened again.
+    from docket.core.reviewing.bulk import BulkRow, apply_rows
+    with Project.open(sample_project) as project:
+        add_reviewer(project, "lead", "adjudicator")
+        first, second = [r[0] for r in project.connection.execute(
+            "SELECT pair_id FROM pairs WHERE overlap = 1 ORDER BY pair_id LIMIT 2")]
+    app = team_app(sample_project)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert screen(app).queue == [] and "r looks again" in screen(app)._empty_message().plain
+        with Project.open(sample_project) as other:  # two reviewers, beside the screen
+            apply_rows(other, "maya", [BulkRow(first, "match", "")])
+            apply_rows(other, "ines", [BulkRow(first, "non-match", "")])
+        await press(pilot, "r")
+        assert screen(app).pair_id == first and screen(app).standing.why == "disagreement"
+        with Project.open(sample_project) as other:
+            apply_rows(other, "ines", [BulkRow(second, "hold", "")])
+        await press(pilot, "a")
+        assert isinstance(app.screen, AgreementScreen)
+        await press(pilot, "escape")
+        assert [pid for pid, _ in screen(app).queue] == [first, second]

@@ -57,7 +57,7 @@ def register(sub: argparse._SubParsersAction) -> None:
         "pair card: every reviewer's label, note and time spent, your own earlier label "
         "flagged.\n\nKeys: s match, d non-match, h hold (each then asks for a short reason), "
         "z undo, [ ] your adjudications, x columns, w full values, a agreement, g quality, "
-        "? help, q quit.\n\n"
+        "r look again (pairs reviewers sent since), ? help, q quit.\n\n"
         "Only reviewers with the adjudicator role may adjudicate; add one with\n"
         "  docket reviewers PROJECT add NAME --role adjudicator",
         # lee, as in the README's quickstart, where ines is a reviewer and this is refused

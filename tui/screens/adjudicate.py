@@ -59,6 +59,8 @@ class AdjudicateScreen(AdjudicationQueue, Screen[None]):
                 tooltip="how far the reviewers agree, and their disagreements"),
         Binding("g", "quality", "quality", id="quality",
                 tooltip="precision and recall from the audit slice; clusters and conflicts"),
+        Binding("r", "look_again", "look again", id="adjudication-reload",
+                tooltip="read the queue again: pairs reviewers have sent since"),
         *shared.history("adjudications"),
         # last: the card itself names w where a value is shortened
         shared.FULL_VALUES,
@@ -259,6 +261,15 @@ class AdjudicateScreen(AdjudicationQueue, Screen[None]):
     def action_extra(self) -> None:
         self.show_extra = not self.show_extra
         self._paint()
+
+    def action_look_again(self) -> None:
+        self._refresh_queue()
+        self.notify("Reading the adjudication queue again.")
+
+    def on_screen_resume(self) -> None:
+        # back from agreement, quality or help: reviewers may have sent pairs meanwhile
+        if self.queue is not None:
+            self._refresh_queue()
 
     def action_agreement(self) -> None:
         from .agreement import AgreementScreen

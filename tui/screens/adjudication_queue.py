@@ -153,7 +153,8 @@ class AdjudicationQueue:
                         f"{'it comes' if left == 1 else 'they come'} back here if left.")
         return Text(
             f"{settled}\n\nWhat next: [ looks back at your adjudications; a shows how far the "
-            "reviewers agree; g shows the model's quality; q quits. New pairs arrive here as "
-            f"reviewers label overlap pairs (docket review {shlex.quote(str(path))}). Export the "
+            "reviewers agree; g shows the model's quality; q quits. New pairs come as "
+            f"reviewers label overlap pairs (docket review {shlex.quote(str(path))}): r looks "
+            "again for them. Export the "
             f"gold labels with: docket export {shlex.quote(str(path))} --what gold -o gold.csv",
             self.palette.muted)
